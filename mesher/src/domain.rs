@@ -1,0 +1,95 @@
+//! The meshed domain: the region around the parts that the outer boundary closes.
+
+use crate::geometry::{bbox, dist, Symmetry};
+use crate::{MeshError, MeshSpec, Refinement};
+
+/// How the outside of the model is closed.
+#[derive(Clone, Debug, PartialEq)]
+pub enum OuterBoundary {
+    /// Unbounded space: a disk (half-disk when axisymmetric) whose exterior is
+    /// mapped by the Kelvin transformation onto a second disk.
+    Open,
+    /// A = 0 on a box. `None` picks a box twice the size of the parts.
+    FluxParallel { from_to: Option<([f64; 2], [f64; 2])> },
+}
+
+/// The closed outline of the physical domain, counter-clockwise.
+#[derive(Clone, Debug)]
+pub struct Domain {
+    pub outline: Vec<[f64; 2]>,
+    /// Centre and radius of the disk for an open boundary.
+    pub kelvin: Option<([f64; 2], f64)>,
+    /// Largest element size anywhere in the domain.
+    pub max_size: f64,
+}
+
+/// Number of chords of the open boundary's circle.
+const RIM_SEGMENTS: usize = 64;
+
+impl Domain {
+    pub fn enclosing(spec: &MeshSpec, polygons: &[Vec<[f64; 2]>]) -> Result<Domain, MeshError> {
+        let part_points = polygons.iter().flatten().copied();
+        let (lo, hi) = bbox(part_points.clone());
+        let axisym = spec.symmetry == Symmetry::Axisymmetric;
+        match &spec.outer {
+            OuterBoundary::Open => {
+                let c = if axisym { [0.0, 0.5 * (lo[1] + hi[1])] } else { [0.5 * (lo[0] + hi[0]), 0.5 * (lo[1] + hi[1])] };
+                let r_parts = part_points.map(|p| dist(p, c)).fold(0.0, f64::max);
+                let r_all = refinement_points(&spec.refinements).map(|p| dist(p, c)).fold(0.0, f64::max);
+                let radius = (1.5 * r_parts).max(1.1 * r_all);
+                let outline = circle_outline(c, radius, axisym);
+                Ok(Domain { outline, kelvin: Some((c, radius)), max_size: radius / 6.0 })
+            }
+            OuterBoundary::FluxParallel { from_to } => {
+                let (b0, b1) = match from_to {
+                    Some((a, b)) => ([a[0].min(b[0]), a[1].min(b[1])], [a[0].max(b[0]), a[1].max(b[1])]),
+                    None => {
+                        let (rlo, rhi) = bbox(refinement_points(&spec.refinements).chain([lo, hi]));
+                        let pad = (rhi[0] - rlo[0]).max(rhi[1] - rlo[1]) * 0.5;
+                        let x0 = if axisym { 0.0 } else { rlo[0] - pad };
+                        ([x0, rlo[1] - pad], [rhi[0] + pad, rhi[1] + pad])
+                    }
+                };
+                if !(lo[0] >= b0[0] && lo[1] >= b0[1] && hi[0] <= b1[0] && hi[1] <= b1[1]) || (axisym && b0[0] != 0.0) {
+                    return Err(MeshError::Triangulation(
+                        "the flux-parallel box must contain every part (and start at r = 0 when axisymmetric)".into(),
+                    ));
+                }
+                let outline = vec![b0, [b1[0], b0[1]], b1, [b0[0], b1[1]]];
+                let size = (b1[0] - b0[0]).max(b1[1] - b0[1]);
+                Ok(Domain { outline, kelvin: None, max_size: size / 6.0 })
+            }
+        }
+    }
+
+    pub fn area(&self) -> f64 {
+        crate::geometry::signed_area(&self.outline).abs()
+    }
+}
+
+fn refinement_points(refinements: &[Refinement]) -> impl Iterator<Item = [f64; 2]> + Clone + '_ {
+    refinements.iter().flat_map(|r| match r {
+        Refinement::Point { at, .. } => vec![*at],
+        Refinement::Line { from, to, .. } => vec![*from, *to],
+    })
+}
+
+/// Circle (or its r >= 0 half, from the south pole to the north pole) as a polygon.
+fn circle_outline(c: [f64; 2], radius: f64, half: bool) -> Vec<[f64; 2]> {
+    if half {
+        let n = RIM_SEGMENTS / 2;
+        return (0..=n)
+            .map(|k| {
+                let t = -std::f64::consts::FRAC_PI_2 + std::f64::consts::PI * k as f64 / n as f64;
+                let r = if k == 0 || k == n { 0.0 } else { radius * t.cos() };
+                [r, c[1] + radius * t.sin()]
+            })
+            .collect();
+    }
+    (0..RIM_SEGMENTS)
+        .map(|k| {
+            let t = 2.0 * std::f64::consts::PI * k as f64 / RIM_SEGMENTS as f64;
+            [c[0] + radius * t.cos(), c[1] + radius * t.sin()]
+        })
+        .collect()
+}

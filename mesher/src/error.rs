@@ -1,0 +1,40 @@
+//! Why a geometry could not be meshed; each variant names the part involved.
+
+use std::fmt;
+
+/// A geometry or meshing failure, always caused by the input.
+#[derive(Clone, Debug, PartialEq)]
+pub enum MeshError {
+    TooFewPoints { part: usize, count: usize },
+    RepeatedPoint { part: usize, index: usize },
+    SelfIntersection { part: usize, edges: [usize; 2] },
+    ZeroArea { part: usize },
+    AcrossAxis { part: usize },
+    NotFinite { part: usize },
+    BadSize { part: usize, size: f64 },
+    OutOfRange { part: usize, extent: f64 },
+    TooManyTriangles { estimate: f64, limit: usize },
+    Triangulation(String),
+    NoParts,
+}
+
+impl fmt::Display for MeshError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        use MeshError::*;
+        match self {
+            TooFewPoints { part, count } => write!(f, "part {part}: a polygon needs at least 3 points, found {count}"),
+            RepeatedPoint { part, index } => write!(f, "part {part}: point {index} repeats the point before it"),
+            SelfIntersection { part, edges } => write!(f, "part {part}: the polygon crosses itself (edges {} and {})", edges[0], edges[1]),
+            ZeroArea { part } => write!(f, "part {part}: the shape has zero area"),
+            AcrossAxis { part } => write!(f, "part {part}: the shape crosses the symmetry axis (axisymmetric shapes must lie in r >= 0; only a circle centred on the axis may cross it, as a sphere)"),
+            NotFinite { part } => write!(f, "part {part}: a coordinate is not a finite number"),
+            BadSize { part, size } => write!(f, "part {part}: mesh size must be a positive finite length, got {size}"),
+            OutOfRange { part, extent } => write!(f, "part {part}: the shape spans {extent:.3e} m, outside the sensible range 1e-6 m to 1e4 m"),
+            TooManyTriangles { estimate, limit } => write!(f, "the mesh would need about {estimate:.3e} triangles, more than the limit of {limit}; coarsen mesh.size or mesh_size, or raise the limit with [mesh] max_elements"),
+            Triangulation(msg) => write!(f, "triangulation failed: {msg}"),
+            NoParts => write!(f, "the study has no parts"),
+        }
+    }
+}
+
+impl std::error::Error for MeshError {}

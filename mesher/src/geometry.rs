@@ -1,0 +1,265 @@
+//! Part shapes, their conversion to closed polygons, and plane geometry helpers.
+
+use crate::{MeshError, MeshSpec};
+
+/// Planar studies use (x, y); axisymmetric studies use (r, z) with r >= 0.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Symmetry {
+    Planar,
+    Axisymmetric,
+}
+
+/// A part's outline as the case file gives it.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Shape {
+    Polygon(Vec<[f64; 2]>),
+    Rect { from: [f64; 2], to: [f64; 2] },
+    Circle { center: [f64; 2], radius: f64 },
+}
+
+/// Largest sagitta of a circle's chords, as a fraction of the local size.
+pub const CHORD_FRACTION: f64 = 0.02;
+
+impl Shape {
+    /// Exact area of the shape as the study sees it (the r >= 0 half of an
+    /// axis-centred circle in an axisymmetric study).
+    pub fn exact_area(&self, symmetry: Symmetry) -> f64 {
+        match self {
+            Shape::Polygon(p) => signed_area(p).abs(),
+            Shape::Rect { from, to } => ((to[0] - from[0]) * (to[1] - from[1])).abs(),
+            Shape::Circle { center, radius } => {
+                let full = std::f64::consts::PI * radius * radius;
+                if symmetry == Symmetry::Axisymmetric && center[0] == 0.0 {
+                    full / 2.0
+                } else {
+                    full
+                }
+            }
+        }
+    }
+
+    /// True when the point lies inside or on the shape.
+    pub fn contains(&self, p: [f64; 2]) -> bool {
+        match self {
+            Shape::Polygon(poly) => point_in_polygon(poly, p),
+            Shape::Rect { from, to } => {
+                let (x0, x1) = (from[0].min(to[0]), from[0].max(to[0]));
+                let (y0, y1) = (from[1].min(to[1]), from[1].max(to[1]));
+                p[0] >= x0 && p[0] <= x1 && p[1] >= y0 && p[1] <= y1
+            }
+            Shape::Circle { center, radius } => dist(p, *center) <= *radius,
+        }
+    }
+}
+
+/// Closed counter-clockwise polygons of every part, validated, with circles
+/// split so that each chord is no longer than the part's size and its sagitta
+/// stays below `CHORD_FRACTION` of that size.
+pub fn part_polygons(spec: &MeshSpec) -> Result<Vec<Vec<[f64; 2]>>, MeshError> {
+    if spec.parts.is_empty() {
+        return Err(MeshError::NoParts);
+    }
+    spec.parts
+        .iter()
+        .enumerate()
+        .map(|(i, part)| {
+            if !(part.mesh_size.is_finite() && part.mesh_size > 0.0) {
+                return Err(MeshError::BadSize { part: i, size: part.mesh_size });
+            }
+            let poly = shape_polygon(i, &part.shape, part.mesh_size, spec.symmetry)?;
+            validate_polygon(i, &poly, spec.symmetry)?;
+            Ok(poly)
+        })
+        .collect()
+}
+
+fn shape_polygon(part: usize, shape: &Shape, size: f64, symmetry: Symmetry) -> Result<Vec<[f64; 2]>, MeshError> {
+    let mut poly = match shape {
+        Shape::Polygon(p) => p.clone(),
+        Shape::Rect { from, to } => {
+            let (x0, x1) = (from[0].min(to[0]), from[0].max(to[0]));
+            let (y0, y1) = (from[1].min(to[1]), from[1].max(to[1]));
+            vec![[x0, y0], [x1, y0], [x1, y1], [x0, y1]]
+        }
+        Shape::Circle { center, radius } => circle_polygon(part, *center, *radius, size, symmetry)?,
+    };
+    if poly.iter().flatten().any(|v| !v.is_finite()) {
+        return Err(MeshError::NotFinite { part });
+    }
+    if poly.len() >= 3 && signed_area(&poly) < 0.0 {
+        poly.reverse();
+    }
+    Ok(poly)
+}
+
+fn circle_polygon(part: usize, c: [f64; 2], radius: f64, size: f64, symmetry: Symmetry) -> Result<Vec<[f64; 2]>, MeshError> {
+    if !(radius.is_finite() && c[0].is_finite() && c[1].is_finite()) {
+        return Err(MeshError::NotFinite { part });
+    }
+    if radius <= 0.0 {
+        return Err(MeshError::ZeroArea { part });
+    }
+    let n = circle_segments(radius, size);
+    let sphere = symmetry == Symmetry::Axisymmetric && c[0] == 0.0;
+    if sphere {
+        // The r >= 0 half: from the south pole round the outside to the north pole.
+        let half = n.div_ceil(2).max(4);
+        let pts = (0..=half)
+            .map(|k| {
+                let t = -std::f64::consts::FRAC_PI_2 + std::f64::consts::PI * k as f64 / half as f64;
+                let r = if k == 0 || k == half { 0.0 } else { radius * t.cos() };
+                [r, c[1] + radius * t.sin()]
+            })
+            .collect();
+        return Ok(pts);
+    }
+    Ok((0..n)
+        .map(|k| {
+            let t = 2.0 * std::f64::consts::PI * k as f64 / n as f64;
+            [c[0] + radius * t.cos(), c[1] + radius * t.sin()]
+        })
+        .collect())
+}
+
+/// Number of chords for a circle: chord <= size and sagitta <= CHORD_FRACTION * size.
+pub fn circle_segments(radius: f64, size: f64) -> usize {
+    let by_length = (2.0 * std::f64::consts::PI * radius / size).ceil();
+    let sag = (CHORD_FRACTION * size).min(radius);
+    let by_sagitta = (std::f64::consts::PI / (1.0 - sag / radius).acos()).ceil();
+    (by_length.max(by_sagitta).max(16.0) as usize).min(1 << 16)
+}
+
+fn validate_polygon(part: usize, poly: &[[f64; 2]], symmetry: Symmetry) -> Result<(), MeshError> {
+    if poly.len() < 3 {
+        return Err(MeshError::TooFewPoints { part, count: poly.len() });
+    }
+    let extent = bbox_extent(poly);
+    if !(1e-6..=1e4).contains(&extent) || poly.iter().flatten().any(|v| v.abs() > 1e4) {
+        return Err(MeshError::OutOfRange { part, extent });
+    }
+    for i in 0..poly.len() {
+        let j = (i + 1) % poly.len();
+        if dist(poly[i], poly[j]) <= 1e-9 * extent {
+            return Err(MeshError::RepeatedPoint { part, index: j });
+        }
+    }
+    if signed_area(poly).abs() <= 1e-12 * extent * extent {
+        return Err(MeshError::ZeroArea { part });
+    }
+    if symmetry == Symmetry::Axisymmetric && poly.iter().any(|p| p[0] < 0.0) {
+        return Err(MeshError::AcrossAxis { part });
+    }
+    if let Some(edges) = first_self_intersection(poly) {
+        return Err(MeshError::SelfIntersection { part, edges });
+    }
+    Ok(())
+}
+
+fn first_self_intersection(poly: &[[f64; 2]]) -> Option<[usize; 2]> {
+    let n = poly.len();
+    if n > 4096 {
+        return None; // generated circles: convex by construction
+    }
+    for i in 0..n {
+        for j in i + 2..n {
+            if i == 0 && j == n - 1 {
+                continue;
+            }
+            let (a, b) = (poly[i], poly[(i + 1) % n]);
+            let (c, d) = (poly[j], poly[(j + 1) % n]);
+            if segments_intersect(a, b, c, d) {
+                return Some([i, j]);
+            }
+        }
+    }
+    None
+}
+
+/// Proper or touching intersection of two closed segments.
+pub fn segments_intersect(a: [f64; 2], b: [f64; 2], c: [f64; 2], d: [f64; 2]) -> bool {
+    let d1 = orient(c, d, a);
+    let d2 = orient(c, d, b);
+    let d3 = orient(a, b, c);
+    let d4 = orient(a, b, d);
+    if ((d1 > 0.0 && d2 < 0.0) || (d1 < 0.0 && d2 > 0.0)) && ((d3 > 0.0 && d4 < 0.0) || (d3 < 0.0 && d4 > 0.0)) {
+        return true;
+    }
+    let on = |p: [f64; 2], q: [f64; 2], r: [f64; 2], o: f64| {
+        o == 0.0 && r[0] >= p[0].min(q[0]) && r[0] <= p[0].max(q[0]) && r[1] >= p[1].min(q[1]) && r[1] <= p[1].max(q[1])
+    };
+    on(c, d, a, d1) || on(c, d, b, d2) || on(a, b, c, d3) || on(a, b, d, d4)
+}
+
+/// Twice the signed area of triangle (a, b, c); positive when counter-clockwise.
+pub fn orient(a: [f64; 2], b: [f64; 2], c: [f64; 2]) -> f64 {
+    (b[0] - a[0]) * (c[1] - a[1]) - (b[1] - a[1]) * (c[0] - a[0])
+}
+
+/// Signed area of a closed polygon (shoelace formula).
+pub fn signed_area(poly: &[[f64; 2]]) -> f64 {
+    let n = poly.len();
+    (0..n)
+        .map(|i| {
+            let (p, q) = (poly[i], poly[(i + 1) % n]);
+            p[0] * q[1] - q[0] * p[1]
+        })
+        .sum::<f64>()
+        / 2.0
+}
+
+/// Even-odd point-in-polygon test; points on an edge count as inside.
+pub fn point_in_polygon(poly: &[[f64; 2]], p: [f64; 2]) -> bool {
+    let n = poly.len();
+    let mut inside = false;
+    for i in 0..n {
+        let (a, b) = (poly[i], poly[(i + 1) % n]);
+        if point_on_segment(a, b, p) {
+            return true;
+        }
+        if (a[1] > p[1]) != (b[1] > p[1]) {
+            let x = a[0] + (p[1] - a[1]) / (b[1] - a[1]) * (b[0] - a[0]);
+            if p[0] < x {
+                inside = !inside;
+            }
+        }
+    }
+    inside
+}
+
+fn point_on_segment(a: [f64; 2], b: [f64; 2], p: [f64; 2]) -> bool {
+    let len = dist(a, b);
+    orient(a, b, p).abs() <= 1e-12 * len * len
+        && p[0] >= a[0].min(b[0]) - 1e-15
+        && p[0] <= a[0].max(b[0]) + 1e-15
+        && p[1] >= a[1].min(b[1]) - 1e-15
+        && p[1] <= a[1].max(b[1]) + 1e-15
+}
+
+/// Distance from p to the segment ab.
+pub fn point_segment_distance(p: [f64; 2], a: [f64; 2], b: [f64; 2]) -> f64 {
+    let ab = [b[0] - a[0], b[1] - a[1]];
+    let len2 = ab[0] * ab[0] + ab[1] * ab[1];
+    let t = if len2 > 0.0 { (((p[0] - a[0]) * ab[0] + (p[1] - a[1]) * ab[1]) / len2).clamp(0.0, 1.0) } else { 0.0 };
+    dist(p, [a[0] + t * ab[0], a[1] + t * ab[1]])
+}
+
+pub fn dist(a: [f64; 2], b: [f64; 2]) -> f64 {
+    (a[0] - b[0]).hypot(a[1] - b[1])
+}
+
+pub fn bbox(points: impl IntoIterator<Item = [f64; 2]>) -> ([f64; 2], [f64; 2]) {
+    let mut lo = [f64::INFINITY; 2];
+    let mut hi = [f64::NEG_INFINITY; 2];
+    for p in points {
+        for k in 0..2 {
+            lo[k] = lo[k].min(p[k]);
+            hi[k] = hi[k].max(p[k]);
+        }
+    }
+    (lo, hi)
+}
+
+fn bbox_extent(poly: &[[f64; 2]]) -> f64 {
+    let (lo, hi) = bbox(poly.iter().copied());
+    (hi[0] - lo[0]).max(hi[1] - lo[1])
+}

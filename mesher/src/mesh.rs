@@ -1,0 +1,114 @@
+//! The plain-data mesh handed to the solver, with its quality figures.
+
+use crate::exterior::ExteriorDisk;
+use crate::geometry::{orient, Symmetry};
+
+/// What a triangle of the physical domain is made of.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum Region {
+    Air,
+    /// Index of the part in the order of the case file.
+    Part(usize),
+}
+
+/// What a boundary or interface edge is.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum BoundaryTag {
+    /// The symmetry axis r = 0 of an axisymmetric study.
+    Axis,
+    /// The outer box of a flux-parallel study.
+    Outer,
+    /// The circle where the Kelvin-mapped exterior joins the domain.
+    Rim,
+    /// An edge between two different regions.
+    Interface(Region, Region),
+}
+
+/// Triangles, nodes and tags of a study.
+///
+/// Nodes `0..n_physical` lie in the physical domain; nodes after that belong
+/// only to the Kelvin-mapped exterior and have no physical position.
+#[derive(Clone, Debug)]
+pub struct Mesh {
+    pub symmetry: Symmetry,
+    pub nodes: Vec<[f64; 2]>,
+    pub n_physical: usize,
+    /// Counter-clockwise node triples of the physical domain.
+    pub triangles: Vec<[usize; 3]>,
+    pub regions: Vec<Region>,
+    pub boundary: Vec<([usize; 2], BoundaryTag)>,
+    pub exterior: Option<ExteriorDisk>,
+}
+
+/// Summary figures of a mesh.
+#[derive(Clone, Debug)]
+pub struct MeshQuality {
+    pub min_angle_deg: f64,
+    pub min_area: f64,
+    pub total_area: f64,
+}
+
+impl Mesh {
+    pub fn n_nodes(&self) -> usize {
+        self.nodes.len()
+    }
+
+    pub fn triangle_points(&self, t: usize) -> [[f64; 2]; 3] {
+        self.triangles[t].map(|n| self.nodes[n])
+    }
+
+    pub fn triangle_area(&self, t: usize) -> f64 {
+        let [a, b, c] = self.triangle_points(t);
+        0.5 * orient(a, b, c)
+    }
+
+    /// Triangles per region (air first, then parts by index).
+    pub fn triangles_per_part(&self, n_parts: usize) -> (usize, Vec<usize>) {
+        let mut per = vec![0; n_parts];
+        let mut air = 0;
+        for r in &self.regions {
+            match r {
+                Region::Air => air += 1,
+                Region::Part(i) if *i < n_parts => per[*i] += 1,
+                Region::Part(_) => {}
+            }
+        }
+        (air, per)
+    }
+
+    /// Area of each part as meshed.
+    pub fn part_areas(&self, n_parts: usize) -> Vec<f64> {
+        let mut areas = vec![0.0; n_parts];
+        for (t, r) in self.regions.iter().enumerate() {
+            if let Region::Part(i) = r {
+                areas[*i] += self.triangle_area(t);
+            }
+        }
+        areas
+    }
+
+    pub fn quality(&self) -> MeshQuality {
+        let mut q = MeshQuality { min_angle_deg: 180.0, min_area: f64::INFINITY, total_area: 0.0 };
+        for t in 0..self.triangles.len() {
+            let p = self.triangle_points(t);
+            let area = self.triangle_area(t);
+            q.min_area = q.min_area.min(area);
+            q.total_area += area;
+            q.min_angle_deg = q.min_angle_deg.min(min_angle_deg(p));
+        }
+        q
+    }
+}
+
+/// Smallest interior angle of a triangle, degrees.
+pub fn min_angle_deg(p: [[f64; 2]; 3]) -> f64 {
+    (0..3)
+        .map(|k| {
+            let (a, b, c) = (p[k], p[(k + 1) % 3], p[(k + 2) % 3]);
+            let u = [b[0] - a[0], b[1] - a[1]];
+            let v = [c[0] - a[0], c[1] - a[1]];
+            let cos = (u[0] * v[0] + u[1] * v[1]) / (u[0].hypot(u[1]) * v[0].hypot(v[1]));
+            cos.clamp(-1.0, 1.0).acos().to_degrees()
+        })
+        .fold(180.0, f64::min)
+}

@@ -1,0 +1,294 @@
+//! One constrained Delaunay triangulation of the domain and all parts,
+//! refined to the graded size field, then to the minimum angle.
+
+use crate::domain::Domain;
+use crate::exterior;
+use crate::geometry::{dist, point_in_polygon, Symmetry};
+use crate::mesh::{BoundaryTag, Mesh, Region};
+use crate::size_field::{self, SizeSource};
+use crate::{MeshError, MeshSpec};
+use spade::handles::FixedVertexHandle;
+use spade::{AngleLimit, ConstrainedDelaunayTriangulation, Point2, RefinementParameters, Triangulation};
+
+type Cdt = ConstrainedDelaunayTriangulation<Point2<f64>>;
+
+/// The working state of the mesher: the triangulation and a target size per vertex.
+struct Work<'a> {
+    cdt: Cdt,
+    size: Vec<f64>,
+    sources: Vec<SizeSource>,
+    /// Sources before this index are part edges, after it probes.
+    n_part_sources: usize,
+    grading: f64,
+    max_size: f64,
+    polygons: &'a [Vec<[f64; 2]>],
+    part_sizes: Vec<f64>,
+    axisymmetric: bool,
+    /// Set once the outline (which holds the axis) is in.
+    constrained_axis: bool,
+}
+
+/// Rounds coordinates below any sensible geometry scale to zero, so that
+/// points meant to be on the axis are exactly on it.
+fn snap(v: f64) -> f64 {
+    if v.abs() < 1e-15 {
+        0.0
+    } else {
+        v
+    }
+}
+
+pub fn mesh_domain(spec: &MeshSpec, polygons: &[Vec<[f64; 2]>], domain: &Domain) -> Result<Mesh, MeshError> {
+    let mut work = Work {
+        cdt: Cdt::new(),
+        size: Vec::new(),
+        sources: size_field::sources(spec, polygons),
+        n_part_sources: polygons.iter().map(Vec::len).sum(),
+        grading: spec.grading.clamp(1.05, 4.0),
+        max_size: domain.max_size,
+        polygons,
+        part_sizes: spec.parts.iter().map(|p| p.mesh_size).collect(),
+        axisymmetric: spec.symmetry == Symmetry::Axisymmetric,
+        constrained_axis: false,
+    };
+    work.add_polyline(&domain.outline, true)?;
+    work.constrained_axis = true;
+    for poly in polygons {
+        work.add_polyline(poly, true)?;
+    }
+    let max_vertices = spec.max_triangles / 2 + 1000;
+    work.refine_to_size(max_vertices, spec.max_triangles)?;
+    work.refine_angles(spec.min_angle_deg, max_vertices, spec.max_triangles)?;
+    let mut mesh = work.extract(spec.symmetry, domain);
+    if let Some((c, radius)) = domain.kelvin {
+        attach_exterior(&mut mesh, c, radius)?;
+    }
+    Ok(mesh)
+}
+
+impl Work<'_> {
+    fn size_at(&self, p: [f64; 2]) -> f64 {
+        size_field::size_at(p, &self.sources, self.grading, self.max_size)
+    }
+
+    /// Size wanted by the probes alone (few sources, so brute force is cheap).
+    fn probe_size_at(&self, p: [f64; 2]) -> f64 {
+        size_field::size_at(p, &self.sources[self.n_part_sources..], self.grading, self.max_size)
+    }
+
+    /// True for an edge on the axis r = 0 that the outline already constrains.
+    fn on_axis(&self, a: FixedVertexHandle, b: FixedVertexHandle) -> bool {
+        self.axisymmetric && self.cdt.vertex(a).position().x == 0.0 && self.cdt.vertex(b).position().x == 0.0 && self.constrained_axis
+    }
+
+    fn insert(&mut self, p: [f64; 2], size: f64, hint: Option<FixedVertexHandle>) -> Result<FixedVertexHandle, MeshError> {
+        let pt = Point2::new(snap(p[0]), snap(p[1]));
+        let v = match hint {
+            Some(h) => self.cdt.insert_with_hint(pt, h),
+            None => self.cdt.insert(pt),
+        }
+        .map_err(|e| MeshError::Triangulation(format!("point ({:.6e}, {:.6e}): {e:?}", p[0], p[1])))?;
+        let i = v.index();
+        if i >= self.size.len() {
+            self.size.resize(i + 1, f64::INFINITY);
+        }
+        self.size[i] = self.size[i].min(size);
+        Ok(v)
+    }
+
+    /// Inserts a polyline split so that no piece is longer than the local size.
+    fn add_points(&mut self, pts: &[[f64; 2]], closed: bool) -> Result<Vec<FixedVertexHandle>, MeshError> {
+        let n = pts.len();
+        let segs = if closed { n } else { n - 1 };
+        let mut handles = Vec::new();
+        for &p in &pts[..segs.max(1)] {
+            let s = self.size_at(p);
+            handles.push(self.insert(p, s, handles.last().copied())?);
+        }
+        if !closed && n > 1 {
+            let s = self.size_at(pts[n - 1]);
+            handles.push(self.insert(pts[n - 1], s, handles.last().copied())?);
+        }
+        Ok(handles)
+    }
+
+    fn add_polyline(&mut self, pts: &[[f64; 2]], closed: bool) -> Result<(), MeshError> {
+        let handles = self.add_points(pts, closed)?;
+        let m = handles.len();
+        for i in 0..m {
+            let (a, b) = (handles[i], handles[(i + 1) % m]);
+            if a != b && !self.on_axis(a, b) {
+                self.cdt.add_constraint_and_split(a, b, |p| Point2::new(snap(p.x), snap(p.y)));
+            }
+        }
+        let n = self.cdt.num_vertices();
+        for i in self.size.len()..n {
+            let p = self.cdt.vertex(FixedVertexHandle::from_index(i)).position();
+            let s = self.size_at([p.x, p.y]);
+            self.size.push(s);
+        }
+        Ok(())
+    }
+
+    /// Target size inside each face's region (infinite for air).
+    fn region_sizes(&self) -> Vec<f64> {
+        let regions = face_regions(&self.cdt, self.polygons);
+        regions
+            .into_iter()
+            .map(|r| match r {
+                Some(Region::Part(i)) => self.part_sizes[i],
+                _ => f64::INFINITY,
+            })
+            .collect()
+    }
+
+    /// Inserts the centroid of every triangle longer than its target size, pass after pass.
+    fn refine_to_size(&mut self, max_vertices: usize, max_triangles: usize) -> Result<(), MeshError> {
+        loop {
+            let region_size = self.region_sizes();
+            let mut pending = Vec::new();
+            for face in self.cdt.inner_faces() {
+                let vs = face.vertices();
+                let pos = vs.map(|v| [v.position().x, v.position().y]);
+                let hs = vs.map(|v| self.size[v.fix().index()]);
+                let rs = region_size[face.fix().index()];
+                let centroid = [(pos[0][0] + pos[1][0] + pos[2][0]) / 3.0, (pos[0][1] + pos[1][1] + pos[2][1]) / 3.0];
+                let probe = self.probe_size_at(centroid);
+                let target = hs.iter().copied().fold(rs.min(probe), f64::min);
+                let edges = face.adjacent_edges();
+                let lens = edges.map(|e| {
+                    let [p, q] = e.positions();
+                    (p.x - q.x).hypot(p.y - q.y)
+                });
+                let k = (0..3).fold(0, |m, i| if lens[i] > lens[m] { i } else { m });
+                if lens[k] > target {
+                    // A long constraint edge is split at its midpoint (a centroid would not shorten it).
+                    let (c, rs) = if edges[k].is_constraint_edge() {
+                        let [p, q] = edges[k].positions();
+                        let other = edges[k].rev().face().as_inner().map_or(f64::INFINITY, |f| region_size[f.fix().index()]);
+                        ([0.5 * (p.x + q.x), 0.5 * (p.y + q.y)], rs.min(other))
+                    } else {
+                        (centroid, rs)
+                    };
+                    let grown = (0..3).map(|k| hs[k] + (self.grading - 1.0) * dist(c, pos[k])).fold(rs.min(self.probe_size_at(c)), f64::min);
+                    pending.push((c, grown, vs[0].fix()));
+                }
+            }
+            if pending.is_empty() {
+                return Ok(());
+            }
+            if self.cdt.num_vertices() + pending.len() > max_vertices {
+                return Err(MeshError::TooManyTriangles { estimate: 2.0 * (self.cdt.num_vertices() + pending.len()) as f64, limit: max_triangles });
+            }
+            let before = self.cdt.num_vertices();
+            for (c, s, hint) in pending {
+                self.insert(c, s, Some(hint))?;
+            }
+            if self.cdt.num_vertices() == before {
+                return Ok(());
+            }
+        }
+    }
+
+    fn refine_angles(&mut self, min_angle: f64, max_vertices: usize, max_triangles: usize) -> Result<(), MeshError> {
+        let angle = min_angle.clamp(20.0, 33.0);
+        let extra = max_vertices.saturating_sub(self.cdt.num_vertices());
+        let params = RefinementParameters::<f64>::new().with_angle_limit(AngleLimit::from_deg(angle)).with_max_additional_vertices(extra);
+        let result = self.cdt.refine(params);
+        if !result.refinement_complete && self.cdt.num_vertices() >= max_vertices {
+            return Err(MeshError::TooManyTriangles { estimate: 2.0 * self.cdt.num_vertices() as f64, limit: max_triangles });
+        }
+        Ok(())
+    }
+
+    fn extract(&self, symmetry: Symmetry, domain: &Domain) -> Mesh {
+        let nodes: Vec<[f64; 2]> = self.cdt.vertices().map(|v| [v.position().x, v.position().y]).collect();
+        let regions_by_face = face_regions(&self.cdt, self.polygons);
+        let mut triangles = Vec::with_capacity(self.cdt.num_inner_faces());
+        let mut regions = Vec::with_capacity(self.cdt.num_inner_faces());
+        for face in self.cdt.inner_faces() {
+            triangles.push(face.vertices().map(|v| v.fix().index()));
+            regions.push(regions_by_face[face.fix().index()].unwrap_or(Region::Air));
+        }
+        let mut boundary = Vec::new();
+        for edge in self.cdt.convex_hull() {
+            let [a, b] = edge.vertices().map(|v| v.fix().index());
+            let on_axis = symmetry == Symmetry::Axisymmetric && nodes[a][0].abs() <= 0.0 && nodes[b][0].abs() <= 0.0;
+            let tag = if on_axis {
+                BoundaryTag::Axis
+            } else if domain.kelvin.is_some() {
+                BoundaryTag::Rim
+            } else {
+                BoundaryTag::Outer
+            };
+            boundary.push(([a, b], tag));
+        }
+        for edge in self.cdt.undirected_edges() {
+            if !edge.is_constraint_edge() {
+                continue;
+            }
+            let [d0, d1] = [edge.as_directed(), edge.as_directed().rev()];
+            let (f0, f1) = (d0.face().as_inner(), d1.face().as_inner());
+            if let (Some(f0), Some(f1)) = (f0, f1) {
+                let r0 = regions_by_face[f0.fix().index()].unwrap_or(Region::Air);
+                let r1 = regions_by_face[f1.fix().index()].unwrap_or(Region::Air);
+                if r0 != r1 {
+                    let [a, b] = edge.vertices().map(|v| v.fix().index());
+                    boundary.push(([a, b], BoundaryTag::Interface(r0, r1)));
+                }
+            }
+        }
+        let n_physical = nodes.len();
+        Mesh { symmetry, nodes, n_physical, triangles, regions, boundary, exterior: None }
+    }
+}
+
+/// Region of every inner face: flood fill across non-constraint edges, then
+/// one point-in-polygon test per connected component (last part wins).
+fn face_regions(cdt: &Cdt, polygons: &[Vec<[f64; 2]>]) -> Vec<Option<Region>> {
+    let n = cdt.num_inner_faces() + 1;
+    let mut region: Vec<Option<Region>> = vec![None; n];
+    let mut stack = Vec::new();
+    for start in cdt.inner_faces() {
+        if region[start.fix().index()].is_some() {
+            continue;
+        }
+        let p = start.positions();
+        let c = [(p[0].x + p[1].x + p[2].x) / 3.0, (p[0].y + p[1].y + p[2].y) / 3.0];
+        let r = polygons.iter().rposition(|poly| point_in_polygon(poly, c)).map_or(Region::Air, Region::Part);
+        region[start.fix().index()] = Some(r);
+        stack.push(start);
+        while let Some(face) = stack.pop() {
+            for edge in face.adjacent_edges() {
+                if edge.is_constraint_edge() {
+                    continue;
+                }
+                if let Some(next) = edge.rev().face().as_inner() {
+                    let slot = &mut region[next.fix().index()];
+                    if slot.is_none() {
+                        *slot = Some(r);
+                        stack.push(next);
+                    }
+                }
+            }
+        }
+    }
+    region
+}
+
+fn attach_exterior(mesh: &mut Mesh, c: [f64; 2], radius: f64) -> Result<(), MeshError> {
+    let mut rim: Vec<usize> = mesh.boundary.iter().filter(|(_, t)| *t == BoundaryTag::Rim).flat_map(|(e, _)| *e).collect();
+    if mesh.symmetry == Symmetry::Axisymmetric {
+        rim.extend(mesh.boundary.iter().filter(|(_, t)| *t == BoundaryTag::Axis).flat_map(|(e, _)| *e).filter(|&n| (dist(mesh.nodes[n], c) - radius).abs() <= 1e-9 * radius));
+    }
+    rim.sort_unstable();
+    rim.dedup();
+    let rim: Vec<(usize, [f64; 2])> = rim.into_iter().map(|n| (n, mesh.nodes[n])).collect();
+    let half = mesh.symmetry == Symmetry::Axisymmetric;
+    let disk = exterior::build(c, radius, &rim, half, mesh.nodes.len())?;
+    for local in rim.len()..disk.mapped.len() {
+        mesh.nodes.push(disk.mapped[local]);
+    }
+    mesh.exterior = Some(disk);
+    Ok(())
+}

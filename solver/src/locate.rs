@@ -1,0 +1,88 @@
+//! Point location in the physical triangles with a uniform bucket grid.
+
+use crate::assembly::Elements;
+use crate::element::barycentric;
+
+/// A bucket grid over the physical triangles.
+pub struct Locator {
+    origin: [f64; 2],
+    cell: f64,
+    dims: [usize; 2],
+    start: Vec<usize>,
+    items: Vec<usize>,
+}
+
+/// Barycentric coordinates may fall this far below zero and still count as inside.
+const INSIDE_TOLERANCE: f64 = 1e-9;
+
+impl Locator {
+    pub fn new(els: &Elements) -> Locator {
+        let n = els.n_physical.max(1);
+        let pts = els.coords[..els.n_physical].iter().flatten();
+        let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
+        for p in pts {
+            for k in 0..2 {
+                lo[k] = lo[k].min(p[k]);
+                hi[k] = hi[k].max(p[k]);
+            }
+        }
+        let extent = (hi[0] - lo[0]).max(hi[1] - lo[1]).max(f64::MIN_POSITIVE);
+        let area = (hi[0] - lo[0]).max(1e-300) * (hi[1] - lo[1]).max(1e-300);
+        let cell = (area / n as f64).sqrt().max(extent / 2048.0) * 2.0;
+        let dims = [((hi[0] - lo[0]) / cell) as usize + 1, ((hi[1] - lo[1]) / cell) as usize + 1];
+        let mut count = vec![0usize; dims[0] * dims[1] + 1];
+        let range = |x: &[[f64; 2]; 3]| {
+            let ix0 = ((x.iter().map(|p| p[0]).fold(f64::INFINITY, f64::min) - lo[0]) / cell) as usize;
+            let ix1 = ((x.iter().map(|p| p[0]).fold(f64::NEG_INFINITY, f64::max) - lo[0]) / cell) as usize;
+            let iy0 = ((x.iter().map(|p| p[1]).fold(f64::INFINITY, f64::min) - lo[1]) / cell) as usize;
+            let iy1 = ((x.iter().map(|p| p[1]).fold(f64::NEG_INFINITY, f64::max) - lo[1]) / cell) as usize;
+            (ix0, ix1.min(dims[0] - 1), iy0, iy1.min(dims[1] - 1))
+        };
+        for x in &els.coords[..els.n_physical] {
+            let (x0, x1, y0, y1) = range(x);
+            for iy in y0..=y1 {
+                for ix in x0..=x1 {
+                    count[iy * dims[0] + ix + 1] += 1;
+                }
+            }
+        }
+        for i in 1..count.len() {
+            count[i] += count[i - 1];
+        }
+        let start = count.clone();
+        let mut fill = count;
+        let mut items = vec![0; start[start.len() - 1]];
+        for (e, x) in els.coords[..els.n_physical].iter().enumerate() {
+            let (x0, x1, y0, y1) = range(x);
+            for iy in y0..=y1 {
+                for ix in x0..=x1 {
+                    let c = iy * dims[0] + ix;
+                    items[fill[c]] = e;
+                    fill[c] += 1;
+                }
+            }
+        }
+        Locator { origin: lo, cell, dims, start, items }
+    }
+
+    /// Every physical triangle that contains p (on an edge: several), with barycentrics.
+    pub fn containing(&self, els: &Elements, p: [f64; 2]) -> Vec<(usize, [f64; 3])> {
+        let fx = (p[0] - self.origin[0]) / self.cell;
+        let fy = (p[1] - self.origin[1]) / self.cell;
+        if !(fx >= -1e-9 && fy >= -1e-9) || !fx.is_finite() || !fy.is_finite() {
+            return Vec::new();
+        }
+        let (ix, iy) = ((fx.max(0.0)) as usize, (fy.max(0.0)) as usize);
+        if ix >= self.dims[0] || iy >= self.dims[1] {
+            return Vec::new();
+        }
+        let c = iy * self.dims[0] + ix;
+        self.items[self.start[c]..self.start[c + 1]]
+            .iter()
+            .filter_map(|&e| {
+                let lam = barycentric(&els.coords[e], p);
+                lam.iter().all(|&l| l >= -INSIDE_TOLERANCE).then(|| (e, lam.map(|l| l.max(0.0))))
+            })
+            .collect()
+    }
+}

@@ -1,0 +1,73 @@
+//! Constitutive laws H(B) of the regions: linear, saturating, permanent magnet.
+
+use crate::bh_curve::BhCurve;
+use crate::{MU0, NU0};
+use std::sync::Arc;
+
+/// How a region's field strength follows from its flux density.
+#[derive(Clone, Debug)]
+pub enum Law {
+    /// H = B / (mu0 mu_r).
+    Linear { relative_permeability: f64 },
+    /// H = H(|B|) B/|B| from a B-H curve.
+    Saturating(Arc<BhCurve>),
+    /// Linear recoil line: H = (B - Br) / (mu0 mu_rec), remanence `br` in T.
+    Magnet { recoil_permeability: f64, br: [f64; 2] },
+}
+
+/// H at a point and the tangent dH/dB (symmetric 2x2).
+#[derive(Clone, Copy, Debug)]
+pub struct FieldResponse {
+    pub h: [f64; 2],
+    pub dh_db: [[f64; 2]; 2],
+    /// Secant reluctivity |H|/|B| seen by the relative permeability output.
+    pub nu: f64,
+}
+
+impl Law {
+    pub fn air() -> Law {
+        Law::Linear { relative_permeability: 1.0 }
+    }
+
+    pub fn is_nonlinear(&self) -> bool {
+        matches!(self, Law::Saturating(_))
+    }
+
+    pub fn response(&self, b: [f64; 2]) -> FieldResponse {
+        match self {
+            Law::Linear { relative_permeability } => {
+                let nu = NU0 / relative_permeability;
+                FieldResponse { h: [nu * b[0], nu * b[1]], dh_db: [[nu, 0.0], [0.0, nu]], nu }
+            }
+            Law::Magnet { recoil_permeability, br } => {
+                let nu = NU0 / recoil_permeability;
+                FieldResponse { h: [nu * (b[0] - br[0]), nu * (b[1] - br[1])], dh_db: [[nu, 0.0], [0.0, nu]], nu }
+            }
+            Law::Saturating(curve) => {
+                let bm = b[0].hypot(b[1]);
+                let (nu, dh) = curve.reluctivity(bm);
+                let extra = if bm > 1e-12 { (dh - nu) / (bm * bm) } else { 0.0 };
+                let t = [[nu + extra * b[0] * b[0], extra * b[0] * b[1]], [extra * b[0] * b[1], nu + extra * b[1] * b[1]]];
+                FieldResponse { h: [nu * b[0], nu * b[1]], dh_db: t, nu }
+            }
+        }
+    }
+
+    /// Stored energy density (J/m3): the integral of H dB from the
+    /// unloaded state (B = 0, or B = Br for a magnet).
+    pub fn energy_density(&self, b: [f64; 2]) -> f64 {
+        match self {
+            Law::Linear { relative_permeability } => 0.5 * NU0 / relative_permeability * (b[0] * b[0] + b[1] * b[1]),
+            Law::Magnet { recoil_permeability, br } => {
+                let d = [b[0] - br[0], b[1] - br[1]];
+                0.5 * NU0 / recoil_permeability * (d[0] * d[0] + d[1] * d[1])
+            }
+            Law::Saturating(curve) => curve.energy_density(b[0].hypot(b[1])),
+        }
+    }
+
+    /// Relative permeability B/(mu0 H) as a secant value for output.
+    pub fn relative_permeability(&self, b: [f64; 2]) -> f64 {
+        1.0 / (MU0 * self.response(b).nu)
+    }
+}

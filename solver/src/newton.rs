@@ -1,0 +1,129 @@
+//! Newton-Raphson on the whole system with the exact tangent and a
+//! backtracking line search on the residual norm.
+
+use crate::assembly::{System, NONE};
+use crate::linear_system::{CholeskySolver, LinearError};
+use crate::problem::Problem;
+use std::time::Instant;
+
+/// What happened during a solve: the soft outcome and where the time went.
+#[derive(Clone, Debug, Default)]
+pub struct SolveReport {
+    pub converged: bool,
+    pub iterations: usize,
+    /// |residual| / |residual at zero potential| after each iteration (first entry: 1).
+    pub residual_history: Vec<f64>,
+    pub update_history: Vec<f64>,
+    pub n_dofs: usize,
+    pub seconds_pattern: f64,
+    pub seconds_assembly: f64,
+    pub seconds_symbolic: f64,
+    pub seconds_numeric: f64,
+    pub seconds_solve: f64,
+}
+
+impl SolveReport {
+    pub fn residual(&self) -> f64 {
+        self.residual_history.last().copied().unwrap_or(0.0)
+    }
+}
+
+/// Why the solver could not produce an answer at all.
+#[derive(Clone, Debug, PartialEq)]
+pub enum SolveError {
+    Linear(LinearError),
+    /// A NaN or infinity appeared in the iterate.
+    NotFinite { iteration: usize },
+}
+
+impl std::fmt::Display for SolveError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            SolveError::Linear(LinearError::NotPositiveDefinite) => write!(f, "the system matrix is not positive definite: check for non-physical materials (permeability <= 0) or a region with no reference potential"),
+            SolveError::Linear(LinearError::OutOfMemory) => write!(f, "out of memory in the sparse factorization; coarsen the mesh"),
+            SolveError::NotFinite { iteration } => write!(f, "a non-finite value appeared in Newton iteration {iteration}; check material data for zeros or extreme values"),
+        }
+    }
+}
+
+impl std::error::Error for SolveError {}
+
+fn norm(v: &[f64]) -> f64 {
+    v.iter().map(|x| x * x).sum::<f64>().sqrt()
+}
+
+/// Solves the problem; returns the potential at every node (reduced field:
+/// the applied field's potential is not included) and the report.
+pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(usize, f64)) -> Result<(Vec<f64>, SolveReport), SolveError> {
+    let mut report = SolveReport { n_dofs: system.n_dofs, ..Default::default() };
+    let mut a = vec![0.0; system.dof_of_node.len()];
+    let t = Instant::now();
+    let mut residual = system.assemble(problem, &a);
+    report.seconds_assembly += t.elapsed().as_secs_f64();
+    let r0 = norm(&residual).max(f64::MIN_POSITIVE);
+    report.residual_history.push(1.0);
+    if system.n_dofs == 0 || norm(&residual) == 0.0 {
+        report.converged = true;
+        return Ok((a, report));
+    }
+    let t = Instant::now();
+    let chol = CholeskySolver::analyse(&system.matrix).map_err(SolveError::Linear)?;
+    report.seconds_symbolic = t.elapsed().as_secs_f64();
+    let linear = !problem.is_nonlinear();
+    let settings = problem.newton;
+    for it in 1..=settings.max_iterations {
+        let t = Instant::now();
+        let factor = chol.factorize(&system.matrix).map_err(SolveError::Linear)?;
+        report.seconds_numeric += t.elapsed().as_secs_f64();
+        let t = Instant::now();
+        let mut step: Vec<f64> = residual.iter().map(|r| -r).collect();
+        factor.solve(&mut step);
+        report.seconds_solve += t.elapsed().as_secs_f64();
+        if step.iter().any(|v| !v.is_finite()) {
+            return Err(SolveError::NotFinite { iteration: it });
+        }
+        let (new_a, new_residual, seconds) = line_search(problem, system, &a, &step, norm(&residual));
+        report.seconds_assembly += seconds;
+        let update = norm(&step) / norm_of_dofs(system, &new_a).max(f64::MIN_POSITIVE);
+        a = new_a;
+        residual = new_residual;
+        let rel = norm(&residual) / r0;
+        report.iterations = it;
+        report.residual_history.push(rel);
+        report.update_history.push(update);
+        progress(it, rel);
+        if !rel.is_finite() {
+            return Err(SolveError::NotFinite { iteration: it });
+        }
+        if (linear && rel < 1e-6) || (rel < settings.residual_tolerance && update < settings.update_tolerance.max(1e-14)) || rel < 1e-14 {
+            report.converged = true;
+            break;
+        }
+    }
+    Ok((a, report))
+}
+
+fn norm_of_dofs(system: &System, a: &[f64]) -> f64 {
+    system.dof_of_node.iter().zip(a).filter(|(d, _)| **d != NONE).map(|(_, v)| v * v).sum::<f64>().sqrt()
+}
+
+/// Tries the full step, then halves it while the residual does not fall.
+/// Leaves the system assembled at the accepted point.
+fn line_search(problem: &Problem, system: &mut System, a: &[f64], step: &[f64], r_old: f64) -> (Vec<f64>, Vec<f64>, f64) {
+    let t = Instant::now();
+    let mut alpha = 1.0;
+    loop {
+        let mut trial = a.to_vec();
+        for (n, &d) in system.dof_of_node.iter().enumerate() {
+            if d != NONE {
+                trial[n] += alpha * step[d];
+            }
+        }
+        let residual = system.assemble(problem, &trial);
+        let r = norm(&residual);
+        if r <= (1.0 - 1e-4 * alpha) * r_old || alpha < 1.0 / 32.0 || !problem.is_nonlinear() {
+            return (trial, residual, t.elapsed().as_secs_f64());
+        }
+        alpha *= 0.5;
+    }
+}

@@ -1,0 +1,48 @@
+//! A magnetostatic problem: a mesh with a law and a current density per part.
+
+use crate::material::Law;
+use mesher::Mesh;
+
+/// Newton-Raphson stopping rules.
+#[derive(Clone, Copy, Debug)]
+pub struct NewtonSettings {
+    /// Stop when |residual| / |residual at the start| falls below this.
+    pub residual_tolerance: f64,
+    /// ... and |update| / |potential| falls below this.
+    pub update_tolerance: f64,
+    pub max_iterations: usize,
+}
+
+impl Default for NewtonSettings {
+    fn default() -> Self {
+        NewtonSettings { residual_tolerance: 1e-8, update_tolerance: 1e-6, max_iterations: 40 }
+    }
+}
+
+/// Everything the solver needs. Lengths in metres, SI throughout.
+#[derive(Clone, Debug)]
+pub struct Problem<'m> {
+    pub mesh: &'m Mesh,
+    /// Law of each part, by part index.
+    pub laws: Vec<Law>,
+    /// Current density of each part, A/m2 (+phi or out of the plane).
+    pub current_density: Vec<f64>,
+    /// Uniform applied flux density, T ([x, y] planar, [r, z] axisymmetric: only z is allowed).
+    pub applied_field: [f64; 2],
+    pub newton: NewtonSettings,
+}
+
+impl Problem<'_> {
+    pub fn is_nonlinear(&self) -> bool {
+        self.laws.iter().any(Law::is_nonlinear)
+    }
+
+    /// The analytic potential of the applied field at a physical point
+    /// (A = Bx y - By x planar, A = Bz r / 2 axisymmetric).
+    pub fn applied_potential(&self, p: [f64; 2]) -> f64 {
+        match self.mesh.symmetry {
+            mesher::Symmetry::Planar => self.applied_field[0] * p[1] - self.applied_field[1] * p[0],
+            mesher::Symmetry::Axisymmetric => 0.5 * self.applied_field[1] * p[0],
+        }
+    }
+}
