@@ -2,17 +2,21 @@
 //! scatter map that puts each element entry straight into its slot of the
 //! compressed lower triangle.
 
-use crate::element::{element_system, ElementLoad, Placement};
+use crate::element::{element_system, ElementLoad, ElementOrder, LocalSystem, Placement, EDGES, MAX_NODES};
 use crate::material::Law;
 use crate::problem::Problem;
 use mesher::{BoundaryTag, Mesh, Region, Symmetry};
 use nalgebra_sparse::{pattern::SparsityPattern, CscMatrix};
 use rayon::prelude::*;
 
-/// Marks a fixed node or an element entry that has no slot.
+/// Marks a fixed node.
 pub const NONE: usize = usize::MAX;
+/// Marks an element entry that has no slot.
+const NO_SLOT: u32 = u32::MAX;
+/// Elements computed in parallel before their entries are scattered.
+const BLOCK: usize = 1 << 14;
 
-/// What an element is made of, as an index into the problem's laws.
+/// What an element is made of.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub enum ElementKind {
     Air,
@@ -23,16 +27,23 @@ pub enum ElementKind {
 /// The flat element table: physical triangles first, then the exterior disk.
 #[derive(Clone, Debug)]
 pub struct Elements {
-    pub nodes: Vec<[usize; 3]>,
+    pub order: ElementOrder,
+    /// Global node ids: corners, then edge midpoints (quadratic only).
+    pub nodes: Vec<[usize; MAX_NODES]>,
+    /// Corner coordinates in the element's own frame (mapped for the exterior).
     pub coords: Vec<[[f64; 2]; 3]>,
     pub kinds: Vec<ElementKind>,
     pub n_physical: usize,
     pub exterior: Option<([f64; 2], f64)>,
+    /// Total node count (mesh nodes plus edge midpoints).
+    pub n_nodes: usize,
+    /// Physical position of every node; exterior-only nodes keep their mapped position.
+    pub positions: Vec<[f64; 2]>,
 }
 
 impl Elements {
-    pub fn from_mesh(mesh: &Mesh) -> Elements {
-        let mut nodes = mesh.triangles.clone();
+    pub fn from_mesh(mesh: &Mesh, order: ElementOrder) -> Elements {
+        let mut corners: Vec<[usize; 3]> = mesh.triangles.clone();
         let mut coords: Vec<[[f64; 2]; 3]> = mesh.triangles.iter().map(|t| t.map(|n| mesh.nodes[n])).collect();
         let mut kinds: Vec<ElementKind> = mesh
             .regions
@@ -45,13 +56,18 @@ impl Elements {
         let mut exterior = None;
         if let Some(disk) = &mesh.exterior {
             for t in &disk.triangles {
-                nodes.push(t.map(|l| disk.global[l]));
+                corners.push(t.map(|l| disk.global[l]));
                 coords.push(t.map(|l| disk.mapped[l]));
                 kinds.push(ElementKind::Exterior);
             }
             exterior = Some((disk.center, disk.radius));
         }
-        Elements { nodes, coords, kinds, n_physical: mesh.triangles.len(), exterior }
+        let mut positions = mesh.nodes.clone();
+        let nodes = match order {
+            ElementOrder::Linear => corners.iter().map(|c| [c[0], c[1], c[2], NONE, NONE, NONE]).collect(),
+            ElementOrder::Quadratic => add_midpoints(&corners, &coords, &mut positions),
+        };
+        Elements { order, nodes, coords, kinds, n_physical: mesh.triangles.len(), exterior, n_nodes: positions.len(), positions }
     }
 
     pub fn placement(&self, e: usize) -> Placement {
@@ -68,6 +84,84 @@ impl Elements {
     pub fn is_empty(&self) -> bool {
         self.nodes.is_empty()
     }
+
+    /// The element's nodes that exist (3 or 6).
+    pub fn element_nodes(&self, e: usize) -> &[usize] {
+        &self.nodes[e][..self.order.n_nodes()]
+    }
+
+    /// Nodal values of a global vector gathered for element e.
+    pub fn gather(&self, e: usize, values: &[f64]) -> [f64; MAX_NODES] {
+        let mut a = [0.0; MAX_NODES];
+        for (k, &n) in self.element_nodes(e).iter().enumerate() {
+            a[k] = values[n];
+        }
+        a
+    }
+}
+
+/// Numbers the edge midpoints: one node per distinct edge, shared by the
+/// triangles on both sides (rim edges join the domain and the exterior).
+fn add_midpoints(corners: &[[usize; 3]], coords: &[[[f64; 2]; 3]], positions: &mut Vec<[f64; 2]>) -> Vec<[usize; MAX_NODES]> {
+    let mut keys: Vec<(usize, usize, u32)> = Vec::with_capacity(3 * corners.len());
+    for (e, c) in corners.iter().enumerate() {
+        for (k, [a, b]) in EDGES.iter().enumerate() {
+            let (lo, hi) = (c[*a].min(c[*b]), c[*a].max(c[*b]));
+            keys.push((lo, hi, (3 * e + k) as u32));
+        }
+    }
+    keys.par_sort_unstable();
+    let mut mid = vec![NONE; 3 * corners.len()];
+    let mut prev = (NONE, NONE);
+    let mut id = positions.len();
+    for &(lo, hi, slot) in &keys {
+        if (lo, hi) != prev {
+            prev = (lo, hi);
+            id = positions.len();
+            let e = slot as usize / 3;
+            let [a, b] = EDGES[slot as usize % 3];
+            let x = coords[e];
+            // Physical elements come first, so a shared edge takes its physical midpoint.
+            positions.push([0.5 * (x[a][0] + x[b][0]), 0.5 * (x[a][1] + x[b][1])]);
+        }
+        mid[slot as usize] = id;
+    }
+    corners.iter().enumerate().map(|(e, c)| [c[0], c[1], c[2], mid[3 * e], mid[3 * e + 1], mid[3 * e + 2]]).collect()
+}
+
+/// Nodes held at zero reduced potential: the axis, a flux-parallel box, infinity.
+fn fixed_nodes(mesh: &Mesh, els: &Elements) -> Vec<bool> {
+    let mut fixed = vec![false; els.n_nodes];
+    let mut fixed_edges: Vec<(usize, usize)> = Vec::new();
+    for (edge, tag) in &mesh.boundary {
+        if matches!(tag, BoundaryTag::Axis | BoundaryTag::Outer) {
+            fixed[edge[0]] = true;
+            fixed[edge[1]] = true;
+            fixed_edges.push((edge[0].min(edge[1]), edge[0].max(edge[1])));
+        }
+    }
+    let axisym = mesh.symmetry == Symmetry::Axisymmetric;
+    for e in 0..els.len() {
+        let x = els.coords[e];
+        for k in 0..3 {
+            if axisym && x[k][0] <= 0.0 {
+                fixed[els.nodes[e][k]] = true;
+            }
+        }
+        if els.order == ElementOrder::Quadratic {
+            for (k, [a, b]) in EDGES.iter().enumerate() {
+                let (na, nb) = (els.nodes[e][*a], els.nodes[e][*b]);
+                let on_axis = axisym && x[*a][0] <= 0.0 && x[*b][0] <= 0.0;
+                if on_axis || (e < els.n_physical && fixed_edges.contains(&(na.min(nb), na.max(nb)))) {
+                    fixed[els.nodes[e][3 + k]] = true;
+                }
+            }
+        }
+    }
+    if let Some(disk) = &mesh.exterior {
+        fixed[disk.global[disk.infinity]] = true;
+    }
+    fixed
 }
 
 /// The assembled linear system's structure, reused by every Newton step.
@@ -77,43 +171,17 @@ pub struct System {
     pub n_dofs: usize,
     /// Lower triangle of the tangent, compressed by columns.
     pub matrix: CscMatrix<f64>,
-    /// For element e, entry (i, j): the slot in `matrix` values, or NONE.
-    scatter: Vec<usize>,
-    local_k: Vec<[[f64; 3]; 3]>,
-    local_r: Vec<[f64; 3]>,
+    /// For element e, entry (i, j): the slot in `matrix` values, or NO_SLOT.
+    scatter: Vec<u32>,
+    block: Vec<LocalSystem>,
     air: Law,
 }
 
-/// Nodes held at zero reduced potential: the axis, a flux-parallel box, infinity.
-fn fixed_nodes(mesh: &Mesh) -> Vec<bool> {
-    let mut fixed = vec![false; mesh.n_nodes()];
-    for (edge, tag) in &mesh.boundary {
-        if matches!(tag, BoundaryTag::Axis | BoundaryTag::Outer) {
-            fixed[edge[0]] = true;
-            fixed[edge[1]] = true;
-        }
-    }
-    if mesh.symmetry == Symmetry::Axisymmetric {
-        for (n, p) in mesh.nodes.iter().enumerate().take(mesh.n_physical) {
-            fixed[n] |= p[0] <= 0.0;
-        }
-    }
-    if let Some(disk) = &mesh.exterior {
-        fixed[disk.global[disk.infinity]] = true;
-        if mesh.symmetry == Symmetry::Axisymmetric {
-            for (l, p) in disk.mapped.iter().enumerate() {
-                fixed[disk.global[l]] |= p[0] <= 0.0;
-            }
-        }
-    }
-    fixed
-}
-
 impl System {
-    pub fn new(mesh: &Mesh) -> System {
-        let elements = Elements::from_mesh(mesh);
-        let fixed = fixed_nodes(mesh);
-        let mut dof_of_node = vec![NONE; mesh.n_nodes()];
+    pub fn new(mesh: &Mesh, order: ElementOrder) -> System {
+        let elements = Elements::from_mesh(mesh, order);
+        let fixed = fixed_nodes(mesh, &elements);
+        let mut dof_of_node = vec![NONE; elements.n_nodes];
         let mut n_dofs = 0;
         for (n, f) in fixed.iter().enumerate() {
             if !f {
@@ -124,36 +192,41 @@ impl System {
         let (pattern, scatter) = build_pattern(&elements, &dof_of_node, n_dofs);
         let nnz = pattern.nnz();
         let matrix = CscMatrix::try_from_pattern_and_values(pattern, vec![0.0; nnz]).expect("pattern and values agree by construction");
-        let n_el = elements.len();
-        System { elements, dof_of_node, n_dofs, matrix, scatter, local_k: vec![[[0.0; 3]; 3]; n_el], local_r: vec![[0.0; 3]; n_el], air: Law::air() }
+        System { elements, dof_of_node, n_dofs, matrix, scatter, block: Vec::new(), air: Law::air() }
     }
 
     /// Fills the tangent and returns the residual at nodal potentials `a` (all nodes).
     pub fn assemble(&mut self, problem: &Problem, a: &[f64]) -> Vec<f64> {
         let symmetry = problem.mesh.symmetry;
         let els = &self.elements;
-        let air = &self.air;
-        self.local_k.par_iter_mut().zip(self.local_r.par_iter_mut()).enumerate().for_each(|(e, (k, r))| {
-            let an = els.nodes[e].map(|n| a[n]);
-            let load = element_load(els.kinds[e], problem, air);
-            (*k, *r) = element_system(&els.coords[e], &an, symmetry, els.placement(e), load);
-        });
+        let m = els.order.n_nodes();
         let values = self.matrix.values_mut();
         values.iter_mut().for_each(|v| *v = 0.0);
         let mut residual = vec![0.0; self.n_dofs];
-        for e in 0..els.len() {
-            let slots = &self.scatter[9 * e..9 * e + 9];
-            let k = &self.local_k[e];
-            for i in 0..3 {
-                for j in 0..3 {
-                    let s = slots[3 * i + j];
-                    if s != NONE {
-                        values[s] += k[i][j];
+        let air = &self.air;
+        for start in (0..els.len()).step_by(BLOCK) {
+            let end = (start + BLOCK).min(els.len());
+            (start..end)
+                .into_par_iter()
+                .map(|e| {
+                    let load = element_load(els.kinds[e], problem, air);
+                    element_system(&els.coords[e], &els.gather(e, a), els.order, symmetry, els.placement(e), load)
+                })
+                .collect_into_vec(&mut self.block);
+            for (off, (k, r)) in self.block.iter().enumerate() {
+                let e = start + off;
+                let slots = &self.scatter[MAX_NODES * MAX_NODES * e..MAX_NODES * MAX_NODES * (e + 1)];
+                for i in 0..m {
+                    for j in 0..m {
+                        let s = slots[MAX_NODES * i + j];
+                        if s != NO_SLOT {
+                            values[s as usize] += k[i][j];
+                        }
                     }
-                }
-                let d = self.dof_of_node[els.nodes[e][i]];
-                if d != NONE {
-                    residual[d] += self.local_r[e][i];
+                    let d = self.dof_of_node[els.nodes[e][i]];
+                    if d != NONE {
+                        residual[d] += r[i];
+                    }
                 }
             }
         }
@@ -170,18 +243,31 @@ pub fn element_load<'a>(kind: ElementKind, problem: &'a Problem, air: &'a Law) -
     }
 }
 
+/// Free dofs of element e's nodes, NONE where fixed.
+fn element_dofs(els: &Elements, dof_of_node: &[usize], e: usize) -> [usize; MAX_NODES] {
+    let mut d = [NONE; MAX_NODES];
+    for (k, &n) in els.element_nodes(e).iter().enumerate() {
+        d[k] = dof_of_node[n];
+    }
+    d
+}
+
 /// Column lists of the lower triangle, then the slot of each element entry.
-fn build_pattern(els: &Elements, dof_of_node: &[usize], n: usize) -> (SparsityPattern, Vec<usize>) {
-    let mut count = vec![1usize; n];
-    for t in &els.nodes {
-        for i in 0..3 {
-            for j in 0..3 {
-                let (di, dj) = (dof_of_node[t[i]], dof_of_node[t[j]]);
-                if di != NONE && dj != NONE && di > dj {
-                    count[dj] += 1;
+fn build_pattern(els: &Elements, dof_of_node: &[usize], n: usize) -> (SparsityPattern, Vec<u32>) {
+    let m = els.order.n_nodes();
+    let pairs = |e: usize, mut f: Box<dyn FnMut(usize, usize) + '_>| {
+        let d = element_dofs(els, dof_of_node, e);
+        for i in 0..m {
+            for j in 0..m {
+                if d[i] != NONE && d[j] != NONE && d[i] > d[j] {
+                    f(d[i], d[j]);
                 }
             }
         }
+    };
+    let mut count = vec![1usize; n];
+    for e in 0..els.len() {
+        pairs(e, Box::new(|_, c| count[c] += 1));
     }
     let mut start = vec![0usize; n + 1];
     for c in 0..n {
@@ -193,16 +279,14 @@ fn build_pattern(els: &Elements, dof_of_node: &[usize], n: usize) -> (SparsityPa
         rows[fill[c]] = c;
         fill[c] += 1;
     }
-    for t in &els.nodes {
-        for i in 0..3 {
-            for j in 0..3 {
-                let (di, dj) = (dof_of_node[t[i]], dof_of_node[t[j]]);
-                if di != NONE && dj != NONE && di > dj {
-                    rows[fill[dj]] = di;
-                    fill[dj] += 1;
-                }
-            }
-        }
+    for e in 0..els.len() {
+        pairs(
+            e,
+            Box::new(|r, c| {
+                rows[fill[c]] = r;
+                fill[c] += 1;
+            }),
+        );
     }
     let mut offsets = Vec::with_capacity(n + 1);
     let mut indices = Vec::with_capacity(rows.len() / 2);
@@ -219,17 +303,17 @@ fn build_pattern(els: &Elements, dof_of_node: &[usize], n: usize) -> (SparsityPa
         }
         offsets.push(indices.len());
     }
-    let scatter = els
-        .nodes
-        .par_iter()
-        .flat_map_iter(|t| {
-            let mut s = [NONE; 9];
-            for i in 0..3 {
-                for j in 0..3 {
-                    let (di, dj) = (dof_of_node[t[i]], dof_of_node[t[j]]);
-                    if di != NONE && dj != NONE && di >= dj {
-                        let col = &indices[offsets[dj]..offsets[dj + 1]];
-                        s[3 * i + j] = offsets[dj] + col.binary_search(&di).unwrap_or(0);
+    drop(rows);
+    let scatter = (0..els.len())
+        .into_par_iter()
+        .flat_map_iter(|e| {
+            let d = element_dofs(els, dof_of_node, e);
+            let mut s = [NO_SLOT; MAX_NODES * MAX_NODES];
+            for i in 0..m {
+                for j in 0..m {
+                    if d[i] != NONE && d[j] != NONE && d[i] >= d[j] {
+                        let col = &indices[offsets[d[j]]..offsets[d[j] + 1]];
+                        s[MAX_NODES * i + j] = (offsets[d[j]] + col.binary_search(&d[i]).unwrap_or(0)) as u32;
                     }
                 }
             }

@@ -1,14 +1,38 @@
-//! The linear-triangle kernel: B = B_bg + G a at each quadrature point, and
-//! the element residual and Newton tangent.
+//! Triangle kernels of order 1 (3 nodes) and 2 (6 nodes): B = B_bg + G a at
+//! each quadrature point, and the element residual and Newton tangent.
 //!
 //! Planar: B = (dA/dy, -dA/dx), weight = area (per metre of depth).
 //! Axisymmetric: B = (-dA/dz, dA/dr + A/r), weight = 2 pi r area.
 //! Kelvin exterior (axisymmetric only): the weight gains |x' - c|^2 / R^2.
+//!
+//! Node order: the three corners, then the midpoints of edges 0-1, 1-2, 2-0.
 
 use crate::material::Law;
-use crate::quadrature::{Rule, CENTROID, DEGREE5};
+use crate::quadrature::DEGREE5;
 use crate::NU0;
 use mesher::Symmetry;
+
+/// Most nodes an element has.
+pub const MAX_NODES: usize = 6;
+
+/// Polynomial order of the potential in each triangle.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum ElementOrder {
+    Linear,
+    Quadratic,
+}
+
+impl ElementOrder {
+    pub fn n_nodes(self) -> usize {
+        match self {
+            ElementOrder::Linear => 3,
+            ElementOrder::Quadratic => 6,
+        }
+    }
+}
+
+/// Corner pairs of the three edges, in midpoint-node order.
+pub const EDGES: [[usize; 2]; 3] = [[0, 1], [1, 2], [2, 0]];
 
 /// Where a triangle lives, which fixes its weight and background field.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -24,45 +48,81 @@ pub struct PointOp {
     /// Integration weight (area, times 2 pi r and the Kelvin factor where they apply).
     pub weight: f64,
     /// B = g * a (rows: first and second component of B).
-    pub g: [[f64; 3]; 2],
+    pub g: [[f64; MAX_NODES]; 2],
     /// Shape function values.
-    pub n: [f64; 3],
+    pub n: [f64; MAX_NODES],
+    pub len: usize,
     pub x: [f64; 2],
 }
 
-/// Calls `f` at every quadrature point of the triangle `x`.
-pub fn for_each_point(x: &[[f64; 2]; 3], symmetry: Symmetry, placement: Placement, mut f: impl FnMut(&PointOp)) {
-    let rule: &Rule = match symmetry {
-        Symmetry::Planar => &CENTROID,
-        Symmetry::Axisymmetric => &DEGREE5,
-    };
-    for (lam, w) in rule.points.iter().zip(rule.weights) {
-        f(&point_op(x, symmetry, placement, *lam, *w));
+/// Calls `f` at every quadrature point of the triangle with corners `x`.
+pub fn for_each_point(x: &[[f64; 2]; 3], order: ElementOrder, symmetry: Symmetry, placement: Placement, mut f: impl FnMut(&PointOp)) {
+    for (lam, w) in DEGREE5.points.iter().zip(DEGREE5.weights) {
+        f(&point_op(x, order, symmetry, placement, *lam, *w));
     }
+}
+
+/// Shape functions and their gradients at barycentric point `lam`.
+fn shape(order: ElementOrder, lam: [f64; 3], grad_lam: [[f64; 2]; 3]) -> ([f64; MAX_NODES], [[f64; 2]; MAX_NODES]) {
+    let mut n = [0.0; MAX_NODES];
+    let mut dn = [[0.0; 2]; MAX_NODES];
+    match order {
+        ElementOrder::Linear => {
+            n[..3].copy_from_slice(&lam);
+            dn[..3].copy_from_slice(&grad_lam);
+        }
+        ElementOrder::Quadratic => {
+            for i in 0..3 {
+                n[i] = lam[i] * (2.0 * lam[i] - 1.0);
+                dn[i] = grad_lam[i].map(|g| (4.0 * lam[i] - 1.0) * g);
+            }
+            for (k, [a, b]) in EDGES.iter().enumerate() {
+                n[3 + k] = 4.0 * lam[*a] * lam[*b];
+                dn[3 + k] = [0, 1].map(|d| 4.0 * (lam[*a] * grad_lam[*b][d] + lam[*b] * grad_lam[*a][d]));
+            }
+        }
+    }
+    (n, dn)
+}
+
+/// Gradients of the barycentric coordinates and the (signed) area.
+pub fn barycentric_gradients(x: &[[f64; 2]; 3]) -> ([[f64; 2]; 3], f64) {
+    let d = (x[1][0] - x[0][0]) * (x[2][1] - x[0][1]) - (x[2][0] - x[0][0]) * (x[1][1] - x[0][1]);
+    let g = [0, 1, 2].map(|i| {
+        let (j, k) = ((i + 1) % 3, (i + 2) % 3);
+        [(x[j][1] - x[k][1]) / d, (x[k][0] - x[j][0]) / d]
+    });
+    (g, 0.5 * d)
 }
 
 /// The operator at barycentric point `lam`, with integration weight `w` (a
 /// fraction of the area; pass 1 to get the density per unit area).
-pub fn point_op(x: &[[f64; 2]; 3], symmetry: Symmetry, placement: Placement, lam: [f64; 3], w: f64) -> PointOp {
-    let twice_area = (x[1][0] - x[0][0]) * (x[2][1] - x[0][1]) - (x[2][0] - x[0][0]) * (x[1][1] - x[0][1]);
-    let b = [x[1][1] - x[2][1], x[2][1] - x[0][1], x[0][1] - x[1][1]].map(|v| v / twice_area);
-    let c = [x[2][0] - x[1][0], x[0][0] - x[2][0], x[1][0] - x[0][0]].map(|v| v / twice_area);
-    let area = 0.5 * twice_area;
-    let p = [
-        lam[0] * x[0][0] + lam[1] * x[1][0] + lam[2] * x[2][0],
-        lam[0] * x[0][1] + lam[1] * x[1][1] + lam[2] * x[2][1],
-    ];
+pub fn point_op(x: &[[f64; 2]; 3], order: ElementOrder, symmetry: Symmetry, placement: Placement, lam: [f64; 3], w: f64) -> PointOp {
+    let (grad_lam, area) = barycentric_gradients(x);
+    let (n, dn) = shape(order, lam, grad_lam);
+    let len = order.n_nodes();
+    let p = [0, 1].map(|k| lam[0] * x[0][k] + lam[1] * x[1][k] + lam[2] * x[2][k]);
+    let mut g = [[0.0; MAX_NODES]; 2];
     match symmetry {
-        Symmetry::Planar => PointOp { weight: w * area, g: [c, b.map(|v| -v)], n: lam, x: p },
+        Symmetry::Planar => {
+            for i in 0..len {
+                g[0][i] = dn[i][1];
+                g[1][i] = -dn[i][0];
+            }
+            PointOp { weight: w * area, g, n, len, x: p }
+        }
         Symmetry::Axisymmetric => {
             let r = p[0];
             let kelvin = match placement {
                 Placement::Physical => 1.0,
                 Placement::Exterior { center, radius } => ((p[0] - center[0]).powi(2) + (p[1] - center[1]).powi(2)) / (radius * radius),
             };
-            // On the axis itself A = 0 at the axis nodes, so A/r tends to dA/dr.
-            let gz = if r > 0.0 { [b[0] + lam[0] / r, b[1] + lam[1] / r, b[2] + lam[2] / r] } else { b.map(|v| 2.0 * v) };
-            PointOp { weight: w * area * 2.0 * std::f64::consts::PI * r * kelvin, g: [c.map(|v| -v), gz], n: lam, x: p }
+            for i in 0..len {
+                g[0][i] = -dn[i][1];
+                // On the axis A vanishes, so A/r tends to dA/dr there.
+                g[1][i] = if r > 0.0 { dn[i][0] + n[i] / r } else { 2.0 * dn[i][0] };
+            }
+            PointOp { weight: w * area * 2.0 * std::f64::consts::PI * r * kelvin, g, n, len, x: p }
         }
     }
 }
@@ -76,11 +136,18 @@ pub fn barycentric(x: &[[f64; 2]; 3], p: [f64; 2]) -> [f64; 3] {
 }
 
 /// B at a point from the element's nodal potentials.
-pub fn flux_density(op: &PointOp, a: &[f64; 3], background: [f64; 2]) -> [f64; 2] {
-    [
-        background[0] + op.g[0][0] * a[0] + op.g[0][1] * a[1] + op.g[0][2] * a[2],
-        background[1] + op.g[1][0] * a[0] + op.g[1][1] * a[1] + op.g[1][2] * a[2],
-    ]
+pub fn flux_density(op: &PointOp, a: &[f64; MAX_NODES], background: [f64; 2]) -> [f64; 2] {
+    let mut b = background;
+    for i in 0..op.len {
+        b[0] += op.g[0][i] * a[i];
+        b[1] += op.g[1][i] * a[i];
+    }
+    b
+}
+
+/// Potential at a point from the element's nodal potentials.
+pub fn potential(op: &PointOp, a: &[f64; MAX_NODES]) -> f64 {
+    (0..op.len).map(|i| op.n[i] * a[i]).sum()
 }
 
 /// The sources and law that act in one element.
@@ -93,22 +160,25 @@ pub struct ElementLoad<'a> {
     pub background: [f64; 2],
 }
 
+/// Local tangent matrix and residual of one element.
+pub type LocalSystem = ([[f64; MAX_NODES]; MAX_NODES], [f64; MAX_NODES]);
+
 /// Element residual r_i = sum w (G^T (H - nu0 B_bg) - N_i J) and tangent K = sum w G^T dH/dB G.
 #[allow(non_snake_case)]
-pub fn element_system(x: &[[f64; 2]; 3], a: &[f64; 3], symmetry: Symmetry, placement: Placement, load: ElementLoad) -> ([[f64; 3]; 3], [f64; 3]) {
-    let mut K = [[0.0; 3]; 3];
-    let mut r = [0.0; 3];
-    for_each_point(x, symmetry, placement, |op| {
+pub fn element_system(x: &[[f64; 2]; 3], a: &[f64; MAX_NODES], order: ElementOrder, symmetry: Symmetry, placement: Placement, load: ElementLoad) -> LocalSystem {
+    let mut K = [[0.0; MAX_NODES]; MAX_NODES];
+    let mut r = [0.0; MAX_NODES];
+    for_each_point(x, order, symmetry, placement, |op| {
         let B = flux_density(op, a, load.background);
         let resp = load.law.response(B);
         let hr = [resp.h[0] - NU0 * load.background[0], resp.h[1] - NU0 * load.background[1]];
-        for i in 0..3 {
+        for i in 0..op.len {
             r[i] += op.weight * (op.g[0][i] * hr[0] + op.g[1][i] * hr[1] - op.n[i] * load.current_density);
             let tg = [
                 resp.dh_db[0][0] * op.g[0][i] + resp.dh_db[0][1] * op.g[1][i],
                 resp.dh_db[1][0] * op.g[0][i] + resp.dh_db[1][1] * op.g[1][i],
             ];
-            for j in 0..3 {
+            for j in 0..op.len {
                 K[i][j] += op.weight * (tg[0] * op.g[0][j] + tg[1] * op.g[1][j]);
             }
         }

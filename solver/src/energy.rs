@@ -19,8 +19,8 @@ pub fn stored_energy(solution: &Solution) -> Energy {
     let mut e_sum = Energy { stored: 0.0, coenergy: 0.0 };
     for e in 0..els.len() {
         let load = element_load(els.kinds[e], &solution.problem, &air);
-        let a = els.nodes[e].map(|n| solution.reduced[n]);
-        for_each_point(&els.coords[e], solution.symmetry(), solution.placement(e), |op| {
+        let a = els.gather(e, &solution.reduced);
+        for_each_point(&els.coords[e], els.order, solution.symmetry(), solution.placement(e), |op| {
             let b = flux_density(op, &a, load.background);
             let w = load.law.energy_density(b);
             let h = load.law.response(b).h;

@@ -30,9 +30,12 @@ pub fn winding_linkage(solution: &Solution, parts: &[(usize, f64)], turns: f64) 
             if els.kinds[e] != ElementKind::Part(part) {
                 continue;
             }
-            let a: [f64; 3] = els.nodes[e].map(|n| solution.node_potential(n));
-            for_each_point(&els.coords[e], solution.symmetry(), solution.placement(e), |op| {
-                integral += op.weight * (op.n[0] * a[0] + op.n[1] * a[1] + op.n[2] * a[2]);
+            let mut a = [0.0; crate::element::MAX_NODES];
+            for (k, &n) in els.element_nodes(e).iter().enumerate() {
+                a[k] = solution.node_potential(n);
+            }
+            for_each_point(&els.coords[e], els.order, solution.symmetry(), solution.placement(e), |op| {
+                integral += op.weight * crate::element::potential(op, &a);
                 area += op.weight * if solution.symmetry() == Symmetry::Axisymmetric { 1.0 / (2.0 * std::f64::consts::PI * op.x[0]) } else { 1.0 };
             });
         }

@@ -22,24 +22,16 @@ pub struct Force {
     pub contact: bool,
 }
 
-/// Gradients of the three shape functions of a triangle.
-fn shape_gradients(x: &[[f64; 2]; 3]) -> [[f64; 2]; 3] {
-    let d = (x[1][0] - x[0][0]) * (x[2][1] - x[0][1]) - (x[2][0] - x[0][0]) * (x[1][1] - x[0][1]);
-    [0, 1, 2].map(|i| {
-        let (j, k) = ((i + 1) % 3, (i + 2) % 3);
-        [(x[j][1] - x[k][1]) / d, (x[k][0] - x[j][0]) / d]
-    })
-}
-
 pub fn force_on(solution: &Solution, parts: &[usize], torque_center: [f64; 2]) -> Force {
     let els = &solution.elements;
     let n_nodes = solution.reduced.len();
+    let corners = |e: usize| [els.nodes[e][0], els.nodes[e][1], els.nodes[e][2]];
     let in_set = |k: ElementKind| matches!(k, ElementKind::Part(i) if parts.contains(&i));
     let mut weight = vec![0.0; n_nodes];
     let mut other = vec![false; n_nodes];
     for e in 0..els.n_physical {
         let k = els.kinds[e];
-        for &n in &els.nodes[e] {
+        for n in corners(e) {
             if in_set(k) {
                 weight[n] = 1.0;
             } else if k != ElementKind::Air {
@@ -55,14 +47,14 @@ pub fn force_on(solution: &Solution, parts: &[usize], torque_center: [f64; 2]) -
         if els.kinds[e] != ElementKind::Air {
             continue;
         }
-        let g = els.nodes[e].map(|n| weight[n]);
+        let g = corners(e).map(|n| weight[n]);
         if g.iter().all(|&v| v == 0.0) {
             continue;
         }
-        let dn = shape_gradients(&els.coords[e]);
+        let (dn, _) = crate::element::barycentric_gradients(&els.coords[e]);
         let grad = [0, 1].map(|k| g[0] * dn[0][k] + g[1] * dn[1][k] + g[2] * dn[2][k]);
-        let a = els.nodes[e].map(|n| solution.reduced[n]);
-        for_each_point(&els.coords[e], solution.symmetry(), solution.placement(e), |op| {
+        let a = els.gather(e, &solution.reduced);
+        for_each_point(&els.coords[e], els.order, solution.symmetry(), solution.placement(e), |op| {
             let b = crate::element::flux_density(op, &a, solution.problem.applied_field);
             let half = 0.5 * (b[0] * b[0] + b[1] * b[1]);
             let t = [[b[0] * b[0] - half, b[0] * b[1]], [b[0] * b[1], b[1] * b[1] - half]];

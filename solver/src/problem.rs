@@ -1,5 +1,6 @@
 //! A magnetostatic problem: a mesh with a law and a current density per part.
 
+use crate::element::ElementOrder;
 use crate::material::Law;
 use mesher::Mesh;
 
@@ -27,12 +28,18 @@ pub struct Problem<'m> {
     pub laws: Vec<Law>,
     /// Current density of each part, A/m2 (+phi or out of the plane).
     pub current_density: Vec<f64>,
-    /// Uniform applied flux density, T ([x, y] planar, [r, z] axisymmetric: only z is allowed).
+    /// Uniform applied flux density, T ([x, y] planar; [0, z] axisymmetric).
     pub applied_field: [f64; 2],
+    pub order: ElementOrder,
     pub newton: NewtonSettings,
 }
 
-impl Problem<'_> {
+impl<'m> Problem<'m> {
+    /// A problem with no applied field, quadratic elements and default Newton settings.
+    pub fn new(mesh: &'m Mesh, laws: Vec<Law>, current_density: Vec<f64>) -> Problem<'m> {
+        Problem { mesh, laws, current_density, applied_field: [0.0, 0.0], order: ElementOrder::Quadratic, newton: NewtonSettings::default() }
+    }
+
     pub fn is_nonlinear(&self) -> bool {
         self.laws.iter().any(Law::is_nonlinear)
     }

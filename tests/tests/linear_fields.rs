@@ -1,7 +1,7 @@
 //! Linear magnetostatics against closed forms.
 
 use mesher::{OuterBoundary, Refinement, Shape, Symmetry};
-use solver::{solve, Law, NewtonSettings, Problem};
+use solver::{solve, Law, Problem};
 use validation::reference::cylinder_axis_bz;
 use validation::{mesh, rel, spec};
 
@@ -17,13 +17,7 @@ fn cylinder_on_axis_field_matches_charge_model() {
         OuterBoundary::Open,
     );
     let m = mesh(&s);
-    let problem = Problem {
-        mesh: &m,
-        laws: vec![Law::Magnet { recoil_permeability: 1.0, br: [0.0, br] }],
-        current_density: vec![0.0],
-        applied_field: [0.0, 0.0],
-        newton: NewtonSettings::default(),
-    };
+    let problem = Problem::new(&m, vec![Law::Magnet { recoil_permeability: 1.0, br: [0.0, br] }], vec![0.0]);
     let sol = solve(&problem, &|_, _| {}).unwrap();
     eprintln!("nodes {} dofs {}", m.n_nodes(), sol.report.n_dofs);
     for k in 0..=16 {
