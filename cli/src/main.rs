@@ -1,1 +1,97 @@
-fn main() {}
+//! The `lodestone` command: solve, check, mesh and materials.
+
+use clap::{Args, Parser, Subcommand};
+use lodestone::commands;
+use std::path::PathBuf;
+
+#[derive(Parser)]
+#[command(name = "lodestone", version, about = "Permanent-magnet assemblies by 2D finite elements (planar and axisymmetric), driven by a TOML case file.")]
+struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Args, Clone)]
+struct Common {
+    /// No progress, only errors and the final summary.
+    #[arg(long, short, global = true)]
+    quiet: bool,
+}
+
+#[derive(Subcommand)]
+enum Command {
+    /// Mesh, solve and write results (every sweep variant).
+    Solve {
+        case: PathBuf,
+        /// Output folder (default: <case name>-results in the current folder).
+        #[arg(short, long)]
+        output: Option<PathBuf>,
+        /// Override a parameter: --set gap=2.5 (repeatable).
+        #[arg(long = "set", value_name = "NAME=VALUE")]
+        set: Vec<String>,
+        /// Refuse meshes with more triangles than this.
+        #[arg(long)]
+        max_elements: Option<usize>,
+        /// Solve only every N-th sweep variant starting at K (K/N, from 0).
+        #[arg(long, value_name = "K/N")]
+        shard: Option<String>,
+        /// Solve variants again even when their results are already whole.
+        #[arg(long)]
+        force: bool,
+        #[command(flatten)]
+        common: Common,
+    },
+    /// Solve and evaluate every [[expect]]; exit 1 if any fails.
+    Check {
+        #[arg(required = true)]
+        cases: Vec<PathBuf>,
+        /// Write a JUnit XML report of the expectations.
+        #[arg(long)]
+        junit: Option<PathBuf>,
+        #[arg(long = "set", value_name = "NAME=VALUE")]
+        set: Vec<String>,
+        #[arg(long)]
+        max_elements: Option<usize>,
+        #[command(flatten)]
+        common: Common,
+    },
+    /// Mesh only, for inspection: mesh.vtu, mesh.svg and a summary.
+    Mesh {
+        case: PathBuf,
+        #[arg(short, long)]
+        output: Option<PathBuf>,
+        #[arg(long = "set", value_name = "NAME=VALUE")]
+        set: Vec<String>,
+        #[arg(long)]
+        max_elements: Option<usize>,
+        #[command(flatten)]
+        common: Common,
+    },
+    /// List the built-in material library, or show one entry.
+    Materials {
+        name: Option<String>,
+        /// Draw the entry's B-H curve (soft materials) or demagnetization line (magnets) to an SVG file.
+        #[arg(long, value_name = "FILE.svg")]
+        plot: Option<PathBuf>,
+    },
+    /// Merge the outputs of sharded sweep runs into one sweep.csv.
+    Merge {
+        /// The output folders of the shards (or one folder holding them all).
+        #[arg(required = true)]
+        folders: Vec<PathBuf>,
+        #[arg(short, long)]
+        output: PathBuf,
+    },
+}
+
+fn main() {
+    let cli = Cli::parse();
+    let code = match cli.command {
+        Command::Solve { case, output, set, max_elements, shard, force, common } => commands::solve(&case, output, &set, max_elements, shard.as_deref(), force, common.quiet),
+        Command::Check { cases, junit, set, max_elements, common } => commands::check(&cases, junit, &set, max_elements, common.quiet),
+        Command::Mesh { case, output, set, max_elements, common } => commands::mesh(&case, output, &set, max_elements, common.quiet),
+        Command::Materials { name, plot } => commands::materials(name.as_deref(), plot),
+        Command::Merge { folders, output } => commands::merge(&folders, &output),
+    };
+    std::process::exit(code);
+}

@@ -37,7 +37,7 @@ impl Domain {
                 let r_parts = part_points.map(|p| dist(p, c)).fold(0.0, f64::max);
                 let r_all = refinement_points(&spec.refinements).map(|p| dist(p, c)).fold(0.0, f64::max);
                 let radius = (1.5 * r_parts).max(1.1 * r_all);
-                let outline = circle_outline(c, radius, axisym);
+                let outline = circle_outline(c, radius, axisym, f64::INFINITY);
                 Ok(Domain { outline, kelvin: Some((c, radius)), max_size: radius / 6.0 })
             }
             OuterBoundary::FluxParallel { from_to } => {
@@ -74,10 +74,14 @@ fn refinement_points(refinements: &[Refinement]) -> impl Iterator<Item = [f64; 2
     })
 }
 
-/// Circle (or its r >= 0 half, from the south pole to the north pole) as a polygon.
-fn circle_outline(c: [f64; 2], radius: f64, half: bool) -> Vec<[f64; 2]> {
+/// Circle (or its r >= 0 half, from the south pole to the north pole) as a
+/// polygon with chords no longer than `max_chord` (and at least RIM_SEGMENTS of them).
+pub fn circle_outline(c: [f64; 2], radius: f64, half: bool, max_chord: f64) -> Vec<[f64; 2]> {
+    let by_size = (2.0 * std::f64::consts::PI * radius / max_chord).ceil();
+    let full = if by_size.is_finite() { (by_size as usize).clamp(RIM_SEGMENTS, 1 << 16) } else { RIM_SEGMENTS };
+    let full = full.div_ceil(2) * 2;
     if half {
-        let n = RIM_SEGMENTS / 2;
+        let n = full / 2;
         return (0..=n)
             .map(|k| {
                 let t = -std::f64::consts::FRAC_PI_2 + std::f64::consts::PI * k as f64 / n as f64;
@@ -86,9 +90,9 @@ fn circle_outline(c: [f64; 2], radius: f64, half: bool) -> Vec<[f64; 2]> {
             })
             .collect();
     }
-    (0..RIM_SEGMENTS)
+    (0..full)
         .map(|k| {
-            let t = 2.0 * std::f64::consts::PI * k as f64 / RIM_SEGMENTS as f64;
+            let t = 2.0 * std::f64::consts::PI * k as f64 / full as f64;
             [c[0] + radius * t.cos(), c[1] + radius * t.sin()]
         })
         .collect()

@@ -6,9 +6,10 @@
 //! is invariant under this conformal map, so the exterior is meshed and
 //! assembled like air. In axisymmetric studies the energy density picks up
 //! the factor |x' - c|^2 / R^2 (Freeman and Lowther, IEEE Trans. Magn. 25(5),
-//! 1989); the solver applies it. Rim nodes are shared with the domain and
-//! keep their positions (split points on the rim's chords lie within the
-//! chord sagitta of the circle, so the map is the identity there to that order).
+//! 1989); the solver applies it. Rim nodes are shared with the domain; in
+//! the exterior's own coordinates they sit on the exact circle (split points
+//! on the domain's rim chords lie within a chord sagitta inside it, so the
+//! map is the identity there to that order).
 
 use crate::MeshError;
 use spade::{DelaunayTriangulation, Point2, Triangulation};
@@ -35,7 +36,10 @@ const RING_GROWTH: f64 = 1.3;
 /// as (global id, position on the circle).
 pub fn build(center: [f64; 2], radius: f64, rim: &[(usize, [f64; 2])], half: bool, first_free_id: usize) -> Result<ExteriorDisk, MeshError> {
     let spacing = rim_spacing(rim, center, radius, half);
-    let mut points: Vec<[f64; 2]> = rim.iter().map(|r| r.1).collect();
+    // Rim points go onto the exact circle (same angle): split points of the
+    // domain's rim chords lie a sagitta inside it, and nearly collinear hull
+    // points would give the exterior zero-area slivers.
+    let mut points: Vec<[f64; 2]> = rim.iter().map(|r| onto_circle(r.1, center, radius)).collect();
     let mut global: Vec<usize> = rim.iter().map(|r| r.0).collect();
     let (mut rho, mut delta) = (radius, spacing);
     loop {
@@ -60,6 +64,15 @@ pub fn build(center: [f64; 2], radius: f64, rim: &[(usize, [f64; 2])], half: boo
     }
     let triangles = dt.inner_faces().map(|f| f.vertices().map(|v| v.fix().index())).collect();
     Ok(ExteriorDisk { center, radius, mapped: points, global, triangles, infinity })
+}
+
+fn onto_circle(p: [f64; 2], c: [f64; 2], radius: f64) -> [f64; 2] {
+    let d = (p[0] - c[0]).hypot(p[1] - c[1]);
+    if d == 0.0 {
+        return p;
+    }
+    let r = if p[0] == 0.0 { 0.0 } else { c[0] + (p[0] - c[0]) * radius / d };
+    [r, c[1] + (p[1] - c[1]) * radius / d]
 }
 
 fn rim_spacing(rim: &[(usize, [f64; 2])], c: [f64; 2], radius: f64, half: bool) -> f64 {

@@ -51,7 +51,16 @@ pub fn mesh_domain(spec: &MeshSpec, polygons: &[Vec<[f64; 2]>], domain: &Domain)
         axisymmetric: spec.symmetry == Symmetry::Axisymmetric,
         constrained_axis: false,
     };
-    work.add_polyline(&domain.outline, true)?;
+    let outline = match domain.kelvin {
+        // The rim is split on the circle itself: bisected chords would leave
+        // points a rounding error inside the hull, and slivers with them.
+        Some((c, radius)) => {
+            let rim_size = domain.outline.iter().map(|&p| work.size_at(p)).fold(f64::INFINITY, f64::min);
+            crate::domain::circle_outline(c, radius, spec.symmetry == Symmetry::Axisymmetric, rim_size)
+        }
+        None => domain.outline.clone(),
+    };
+    work.add_polyline(&outline, true)?;
     work.constrained_axis = true;
     for poly in polygons {
         work.add_polyline(poly, true)?;
@@ -101,15 +110,56 @@ impl Work<'_> {
         let n = pts.len();
         let segs = if closed { n } else { n - 1 };
         let mut handles = Vec::new();
-        for &p in &pts[..segs.max(1)] {
-            let s = self.size_at(p);
-            handles.push(self.insert(p, s, handles.last().copied())?);
+        for i in 0..segs.max(1) {
+            let (a, b) = (pts[i], pts[(i + 1) % n]);
+            let mut pieces = vec![a];
+            if n > 1 {
+                self.split_segment(a, b, 0, &mut pieces);
+            }
+            for p in pieces {
+                let s = self.size_at(p);
+                handles.push(self.insert_snapped(p, s)?);
+            }
         }
         if !closed && n > 1 {
             let s = self.size_at(pts[n - 1]);
             handles.push(self.insert(pts[n - 1], s, handles.last().copied())?);
         }
         Ok(handles)
+    }
+
+    /// Appends the interior split points of ab (not a, not b) by bisection
+    /// until no piece is longer than the size at its ends and middle.
+    fn split_segment(&self, a: [f64; 2], b: [f64; 2], depth: u32, out: &mut Vec<[f64; 2]>) {
+        let m = [0.5 * (a[0] + b[0]), 0.5 * (a[1] + b[1])];
+        let h = self.size_at(a).min(self.size_at(b)).min(self.size_at(m));
+        if dist(a, b) <= h || depth > 30 {
+            return;
+        }
+        self.split_segment(a, m, depth + 1, out);
+        out.push(m);
+        self.split_segment(m, b, depth + 1, out);
+    }
+
+    /// Inserts a boundary point, reusing an existing vertex closer than a
+    /// millionth of the local size: collinear edges of touching parts split
+    /// independently would otherwise leave slivers that no refinement can heal.
+    fn insert_snapped(&mut self, p: [f64; 2], size: f64) -> Result<FixedVertexHandle, MeshError> {
+        use spade::PositionInTriangulation::*;
+        let pt = Point2::new(snap(p[0]), snap(p[1]));
+        let near = match self.cdt.locate(pt) {
+            OnVertex(v) => Some(v),
+            OnEdge(e) => self.cdt.directed_edge(e).vertices().into_iter().find(|v| dist([v.position().x, v.position().y], p) < 1e-6 * size).map(|v| v.fix()),
+            OnFace(f) => self.cdt.face(f).vertices().into_iter().find(|v| dist([v.position().x, v.position().y], p) < 1e-6 * size).map(|v| v.fix()),
+            _ => None,
+        };
+        match near {
+            Some(v) => {
+                self.size[v.index()] = self.size[v.index()].min(size);
+                Ok(v)
+            }
+            None => self.insert(p, size, None),
+        }
     }
 
     fn add_polyline(&mut self, pts: &[[f64; 2]], closed: bool) -> Result<(), MeshError> {
@@ -162,14 +212,12 @@ impl Work<'_> {
                 });
                 let k = (0..3).fold(0, |m, i| if lens[i] > lens[m] { i } else { m });
                 if lens[k] > target {
-                    // A long constraint edge is split at its midpoint (a centroid would not shorten it).
-                    let (c, rs) = if edges[k].is_constraint_edge() {
-                        let [p, q] = edges[k].positions();
-                        let other = edges[k].rev().face().as_inner().map_or(f64::INFINITY, |f| region_size[f.fix().index()]);
-                        ([0.5 * (p.x + q.x), 0.5 * (p.y + q.y)], rs.min(other))
-                    } else {
-                        (centroid, rs)
-                    };
+                    // A long constraint edge (only where the pre-split missed a
+                    // size) is left as it is: a centroid would not shorten it.
+                    if edges[k].is_constraint_edge() {
+                        continue;
+                    }
+                    let c = centroid;
                     let grown = (0..3).map(|k| hs[k] + (self.grading - 1.0) * dist(c, pos[k])).fold(rs.min(self.probe_size_at(c)), f64::min);
                     pending.push((c, grown, vs[0].fix()));
                 }

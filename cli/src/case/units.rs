@@ -1,0 +1,161 @@
+//! Units of the trade and their SI factors, written once.
+//!
+//! Factors follow the SI Brochure (BIPM, 9th ed., 2019) and NIST SP 811
+//! (2008 ed.), appendix B: 1 in = 0.0254 m exactly, 1 mil = 0.001 in,
+//! 1 G = 1e-4 T, 1 Oe = 1000/(4 pi) A/m, 1 lbf = 4.4482216152605 N,
+//! 1 MGOe = 1e6 G Oe = 100/(4 pi) kJ/m3.
+
+use std::f64::consts::PI;
+
+/// What a quantity measures.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Kind {
+    Length,
+    FluxDensity,
+    FieldStrength,
+    EnergyProduct,
+    Temperature,
+    Current,
+    CurrentDensity,
+    Force,
+    Percent,
+    PercentPerKelvin,
+    Angle,
+    MagneticFlux,
+    Inductance,
+    Energy,
+    Moment,
+    Dimensionless,
+}
+
+impl Kind {
+    pub fn describe(self) -> &'static str {
+        match self {
+            Kind::Length => "a length (mm, cm, m, in, mil)",
+            Kind::FluxDensity => "a flux density (T, mT, G, kG)",
+            Kind::FieldStrength => "a field strength (A/m, kA/m, Oe, kOe)",
+            Kind::EnergyProduct => "an energy product (kJ/m3, MGOe)",
+            Kind::Temperature => "a temperature (degC, K)",
+            Kind::Current => "a current (A, kA)",
+            Kind::CurrentDensity => "a current density (A/m2, A/mm2)",
+            Kind::Force => "a force (N, kN, lbf)",
+            Kind::Percent => "a percentage (%)",
+            Kind::PercentPerKelvin => "a temperature coefficient (%/K)",
+            Kind::Angle => "an angle (deg, rad)",
+            Kind::MagneticFlux => "a magnetic flux (Wb, mWb, uWb)",
+            Kind::Inductance => "an inductance (H, mH, uH)",
+            Kind::Energy => "an energy (J, mJ)",
+            Kind::Moment => "a magnetic moment (A m2)",
+            Kind::Dimensionless => "a plain number",
+        }
+    }
+
+    /// The SI unit name used in output headers.
+    pub fn si_name(self) -> &'static str {
+        match self {
+            Kind::Length => "m",
+            Kind::FluxDensity => "T",
+            Kind::FieldStrength => "A/m",
+            Kind::EnergyProduct => "J/m3",
+            Kind::Temperature => "degC",
+            Kind::Current => "A",
+            Kind::CurrentDensity => "A/m2",
+            Kind::Force => "N",
+            Kind::Percent => "%",
+            Kind::PercentPerKelvin => "%/K",
+            Kind::Angle => "rad",
+            Kind::MagneticFlux => "Wb",
+            Kind::Inductance => "H",
+            Kind::Energy => "J",
+            Kind::Moment => "A m2",
+            Kind::Dimensionless => "1",
+        }
+    }
+}
+
+/// (symbol, kind, factor to SI). Temperatures convert to degrees Celsius.
+pub const UNITS: &[(&str, Kind, f64)] = &[
+    ("m", Kind::Length, 1.0),
+    ("cm", Kind::Length, 0.01),
+    ("mm", Kind::Length, 0.001),
+    ("um", Kind::Length, 1e-6),
+    ("in", Kind::Length, 0.0254),
+    ("mil", Kind::Length, 0.0254e-3),
+    ("T", Kind::FluxDensity, 1.0),
+    ("mT", Kind::FluxDensity, 1e-3),
+    ("uT", Kind::FluxDensity, 1e-6),
+    ("G", Kind::FluxDensity, 1e-4),
+    ("kG", Kind::FluxDensity, 0.1),
+    ("mG", Kind::FluxDensity, 1e-7),
+    ("A/m", Kind::FieldStrength, 1.0),
+    ("kA/m", Kind::FieldStrength, 1e3),
+    ("Oe", Kind::FieldStrength, 1000.0 / (4.0 * PI)),
+    ("kOe", Kind::FieldStrength, 1e6 / (4.0 * PI)),
+    ("J/m3", Kind::EnergyProduct, 1.0),
+    ("kJ/m3", Kind::EnergyProduct, 1e3),
+    ("MGOe", Kind::EnergyProduct, 1e5 / (4.0 * PI)),
+    ("degC", Kind::Temperature, 1.0),
+    ("K", Kind::Temperature, 1.0),
+    ("A", Kind::Current, 1.0),
+    ("kA", Kind::Current, 1e3),
+    ("A/m2", Kind::CurrentDensity, 1.0),
+    ("A/mm2", Kind::CurrentDensity, 1e6),
+    ("N", Kind::Force, 1.0),
+    ("kN", Kind::Force, 1e3),
+    ("lbf", Kind::Force, 4.448_221_615_260_5),
+    ("%", Kind::Percent, 1.0),
+    ("%/K", Kind::PercentPerKelvin, 1.0),
+    ("%/degC", Kind::PercentPerKelvin, 1.0),
+    ("deg", Kind::Angle, PI / 180.0),
+    ("rad", Kind::Angle, 1.0),
+    ("Wb", Kind::MagneticFlux, 1.0),
+    ("mWb", Kind::MagneticFlux, 1e-3),
+    ("uWb", Kind::MagneticFlux, 1e-6),
+    ("H", Kind::Inductance, 1.0),
+    ("mH", Kind::Inductance, 1e-3),
+    ("uH", Kind::Inductance, 1e-6),
+    ("J", Kind::Energy, 1.0),
+    ("mJ", Kind::Energy, 1e-3),
+    ("A m2", Kind::Moment, 1.0),
+    ("A*m2", Kind::Moment, 1.0),
+];
+
+/// Offset added after scaling, for absolute temperatures (K to degC).
+pub fn offset(symbol: &str) -> f64 {
+    if symbol == "K" {
+        -273.15
+    } else {
+        0.0
+    }
+}
+
+/// Looks a unit up by its symbol.
+pub fn unit(symbol: &str) -> Option<(Kind, f64)> {
+    UNITS.iter().find(|u| u.0 == symbol).map(|u| (u.1, u.2))
+}
+
+/// Symbols that measure `kind`.
+pub fn symbols_of(kind: Kind) -> Vec<&'static str> {
+    UNITS.iter().filter(|u| u.1 == kind).map(|u| u.0).collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn factors_match_published_definitions() {
+        // NIST SP 811 (2008), B.8: inch = 2.54e-2 m exactly; mil = 2.54e-5 m.
+        assert_eq!(unit("in").unwrap().1, 2.54e-2);
+        assert!((unit("mil").unwrap().1 - 2.54e-5).abs() < 1e-20);
+        // NIST SP 811 B.8: gauss = 1e-4 T; oersted = 79.57747 A/m.
+        assert_eq!(unit("G").unwrap().1, 1e-4);
+        assert!((unit("Oe").unwrap().1 - 79.577_47).abs() < 1e-5);
+        // NIST SP 811 B.8: pound-force = 4.448222 N.
+        assert!((unit("lbf").unwrap().1 - 4.448_222).abs() < 1e-6);
+        // SI Brochure 9th ed.: T = 0 K corresponds to -273.15 degC.
+        assert_eq!(offset("K"), -273.15);
+        // 1 MGOe = 7.957747 kJ/m3 (from G and Oe above).
+        assert!((unit("MGOe").unwrap().1 - 7957.747).abs() < 1e-3);
+    }
+}

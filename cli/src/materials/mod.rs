@@ -1,0 +1,68 @@
+//! The built-in material library: magnet grades, soft-magnetic curves and
+//! linear materials, each entry with its source.
+//!
+//! Grade values are typical catalogue values (the standards that define
+//! minimum values, IEC 60404-8-1 and MMPA 0100, are not freely readable);
+//! source ids refer to the project's docs/materials.md.
+
+mod magnets;
+mod soft;
+
+pub use magnets::MagnetGrade;
+
+/// What a material is, physically.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Material {
+    /// Non-magnetic and non-conducting (mu_r = 1).
+    Air,
+    /// Non-magnetic conductor that may carry a winding current (mu_r = 1).
+    Conductor,
+    /// Linear permeable material.
+    Linear { relative_permeability: f64 },
+    /// Soft magnetic material with a B-H curve (H in A/m, B in T).
+    Soft { curve: Vec<[f64; 2]> },
+    /// Permanent magnet, linear recoil line.
+    Magnet(MagnetGrade),
+}
+
+/// A library or user entry.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Entry {
+    pub name: String,
+    pub family: String,
+    pub material: Material,
+    /// Where the numbers come from, with the labels of docs/materials.md.
+    pub source: String,
+}
+
+/// The entry with this name (case-sensitive, as the trade writes it).
+pub fn lookup(name: &str) -> Option<Entry> {
+    linear(name).or_else(|| soft::lookup(name)).or_else(|| magnets::lookup(name))
+}
+
+/// Every name the library answers to (composite NdFeB grades included).
+pub fn names() -> Vec<String> {
+    let mut v: Vec<String> = LINEAR.iter().map(|l| l.0.to_string()).collect();
+    v.extend(soft::names());
+    v.extend(magnets::names());
+    v
+}
+
+const LINEAR: &[(&str, &str, f64, &str)] = &[
+    ("air", "linear", 1.0, "definition: relative permeability 1"),
+    ("vacuum", "linear", 1.0, "definition: relative permeability 1"),
+    ("copper", "conductor", 1.0, "copper is diamagnetic with mu_r - 1 about -1e-5 (from memory); taken as 1"),
+    ("aluminium", "conductor", 1.0, "aluminium is paramagnetic with mu_r - 1 about 2e-5 (from memory); taken as 1"),
+    ("austenitic-stainless", "linear", 1.004, "annealed austenitic stainless: mu_r 1.003 to 1.005 at 16 kA/m (S39); rises with cold work"),
+    ("plastic", "linear", 1.0, "non-magnetic: relative permeability 1"),
+];
+
+fn linear(name: &str) -> Option<Entry> {
+    let l = LINEAR.iter().find(|l| l.0 == name)?;
+    let material = match (l.0, l.1) {
+        ("air" | "vacuum" | "plastic", _) => Material::Air,
+        (_, "conductor") => Material::Conductor,
+        _ => Material::Linear { relative_permeability: l.2 },
+    };
+    Some(Entry { name: l.0.into(), family: l.1.into(), material, source: l.3.into() })
+}

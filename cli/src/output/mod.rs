@@ -1,0 +1,65 @@
+//! Writing results: every file goes to a temporary name beside its target
+//! and is renamed into place only when whole, so a failed or interrupted
+//! run never leaves half a file and never spoils earlier results.
+
+pub mod csv;
+pub mod svg;
+pub mod vtk;
+
+use std::io::Write;
+use std::path::{Path, PathBuf};
+
+/// Files to write, as (name inside the output folder, bytes).
+pub type FileSet = Vec<(PathBuf, Vec<u8>)>;
+
+const TMP_MARK: &str = ".lodestone-tmp-";
+
+/// Writes every file of the set under `dir` (created if missing) atomically per file.
+pub fn write_all(dir: &Path, files: &FileSet) -> Result<(), String> {
+    std::fs::create_dir_all(dir).map_err(|e| format!("cannot create the output folder {}: {e}", dir.display()))?;
+    remove_stale(dir);
+    let mut staged = Vec::new();
+    for (name, bytes) in files {
+        let target = dir.join(name);
+        if let Some(parent) = target.parent() {
+            std::fs::create_dir_all(parent).map_err(|e| format!("cannot create {}: {e}", parent.display()))?;
+        }
+        let tmp = target.with_file_name(format!("{TMP_MARK}{}-{}", std::process::id(), name.file_name().map_or_else(String::new, |n| n.to_string_lossy().into_owned())));
+        let written = std::fs::File::create(&tmp).and_then(|mut f| {
+            f.write_all(bytes)?;
+            f.sync_all()
+        });
+        if let Err(e) = written {
+            let _ = std::fs::remove_file(&tmp);
+            for (t, _) in &staged {
+                let _ = std::fs::remove_file(t);
+            }
+            return Err(format!("cannot write {}: {e}", target.display()));
+        }
+        staged.push((tmp, target));
+    }
+    for (tmp, target) in &staged {
+        std::fs::rename(tmp, target).map_err(|e| format!("cannot move {} into place: {e}", target.display()))?;
+    }
+    Ok(())
+}
+
+/// Removes temporary files left by an interrupted run.
+fn remove_stale(dir: &Path) {
+    if let Ok(entries) = std::fs::read_dir(dir) {
+        for e in entries.flatten() {
+            if e.file_name().to_string_lossy().starts_with(TMP_MARK) {
+                let _ = std::fs::remove_file(e.path());
+            }
+        }
+    }
+}
+
+/// Checks that a folder can be written before any long work starts.
+pub fn check_writable(dir: &Path) -> Result<(), String> {
+    std::fs::create_dir_all(dir).map_err(|e| format!("cannot create the output folder {}: {e}", dir.display()))?;
+    let probe = dir.join(format!("{TMP_MARK}probe-{}", std::process::id()));
+    std::fs::write(&probe, b"").map_err(|e| format!("cannot write in the output folder {}: {e}", dir.display()))?;
+    let _ = std::fs::remove_file(probe);
+    Ok(())
+}

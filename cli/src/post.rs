@@ -1,0 +1,293 @@
+//! Post-processing of a solved study into the stable results (SI units):
+//! probes, forces, fluxes, energy, part statistics and the flat list of
+//! scalar values that `[[expect]]` and sweep tables read.
+
+use crate::case::model::{Bound, FluxSpec, Model, ProbeShape};
+use crate::materials::Material;
+use mesher::Symmetry;
+use serde::Serialize;
+use solver::assembly::ElementKind;
+use solver::{energy, flux, force, Solution};
+use std::collections::BTreeMap;
+
+#[derive(Serialize, Clone, Debug)]
+pub struct Results {
+    pub format: &'static str,
+    pub study: StudyInfo,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub variant: Option<VariantInfo>,
+    pub mesh: MeshInfo,
+    pub solve: SolveInfo,
+    pub probes: BTreeMap<String, ProbeResult>,
+    pub forces: BTreeMap<String, ForceResult>,
+    pub flux: BTreeMap<String, FluxResult>,
+    pub energy: EnergyResult,
+    pub parts: BTreeMap<String, PartResult>,
+    pub expect: Vec<ExpectResult>,
+    /// Every scalar by its `[[expect]]` name, SI units.
+    pub values: BTreeMap<String, f64>,
+    pub cautions: Vec<&'static str>,
+}
+
+/// Which sweep variant a result belongs to.
+#[derive(Serialize, serde::Deserialize, Clone, Debug, PartialEq)]
+pub struct VariantInfo {
+    pub index: usize,
+    pub label: String,
+    pub swept: Vec<(String, f64)>,
+}
+
+#[derive(Serialize, Clone, Debug)]
+pub struct StudyInfo {
+    pub title: String,
+    pub geometry: &'static str,
+    pub temperature_c: f64,
+    pub depth_m: f64,
+    pub parameters: BTreeMap<String, f64>,
+}
+
+#[derive(Serialize, Clone, Debug)]
+pub struct MeshInfo {
+    pub nodes: usize,
+    pub elements: usize,
+    pub unknowns: usize,
+    pub element_order: u32,
+    pub min_angle_deg: f64,
+}
+
+#[derive(Serialize, Clone, Debug)]
+pub struct SolveInfo {
+    pub converged: bool,
+    pub iterations: usize,
+    pub residual: f64,
+    pub residual_history: Vec<f64>,
+    pub seconds: f64,
+}
+
+#[derive(Serialize, Clone, Debug)]
+pub struct ProbeResult {
+    pub points: Vec<[f64; 2]>,
+    pub b: Vec<[f64; 2]>,
+    pub bmag: Vec<f64>,
+    pub h: Vec<[f64; 2]>,
+}
+
+#[derive(Serialize, Clone, Debug)]
+pub struct ForceResult {
+    pub vector: [f64; 2],
+    pub magnitude: f64,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub torque: Option<f64>,
+    pub contact: bool,
+}
+
+#[derive(Serialize, Clone, Debug)]
+pub struct FluxResult {
+    pub wb: f64,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub turns: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub inductance_h: Option<f64>,
+}
+
+#[derive(Serialize, Clone, Debug)]
+pub struct EnergyResult {
+    pub stored_j: f64,
+    pub coenergy_j: f64,
+}
+
+#[derive(Serialize, Clone, Debug)]
+pub struct PartResult {
+    pub material: String,
+    pub b_max: f64,
+    pub b_mean: f64,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub knee_t: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub saturated: Option<bool>,
+}
+
+#[derive(Serialize, Clone, Debug)]
+pub struct ExpectResult {
+    pub value: String,
+    pub bound: String,
+    pub actual: Option<f64>,
+    pub pass: bool,
+}
+
+/// The cautions every report carries.
+pub const CAUTIONS: &[&str] = &[
+    "Strong magnets pinch fingers and can shatter when they snap together; handle with care and keep them apart.",
+    "Static fields can affect implanted medical devices such as pacemakers; 0.5 mT is the level below which such devices are generally not affected (ICNIRP 2009). Follow local codes and the device maker's advice.",
+    "Magnetized goods have air-transport rules (IATA packing instruction 953); this tool screens, the current regulations and the carrier decide.",
+    "Results are estimates from a 2D model; confirm by measurement and qualified practice before relying on them.",
+];
+
+/// Everything about a solved study.
+pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
+    let mesh = sol.problem.mesh;
+    let depth = if model.symmetry == Symmetry::Planar { model.depth } else { 1.0 };
+    let mut values = BTreeMap::new();
+    let probes = probe_results(model, sol, &mut values);
+    let forces = force_results(model, sol, depth, &mut values);
+    let flux = flux_results(model, sol, depth, &mut values);
+    let e = energy::stored_energy(sol);
+    let energy = EnergyResult { stored_j: e.stored * depth, coenergy_j: e.coenergy * depth };
+    values.insert("energy".into(), energy.stored_j);
+    values.insert("coenergy".into(), energy.coenergy_j);
+    let parts = part_results(model, sol, &mut values);
+    let r = &sol.report;
+    Results {
+        format: "lodestone-results/1",
+        study: StudyInfo {
+            title: model.title.clone(),
+            geometry: if model.symmetry == Symmetry::Planar { "planar" } else { "axisymmetric" },
+            temperature_c: model.temperature,
+            depth_m: depth,
+            parameters: model.params.clone(),
+        },
+        variant: None,
+        mesh: MeshInfo { nodes: sol.elements.n_nodes, elements: mesh.triangles.len(), unknowns: r.n_dofs, element_order: model.mesh.order, min_angle_deg: mesh.quality().min_angle_deg },
+        solve: SolveInfo { converged: r.converged, iterations: r.iterations, residual: r.residual(), residual_history: r.residual_history.clone(), seconds },
+        expect: evaluate(model, &values),
+        probes,
+        forces,
+        flux,
+        energy,
+        parts,
+        values,
+        cautions: CAUTIONS.to_vec(),
+    }
+}
+
+/// Points of a probe, in SI.
+pub fn probe_points(shape: &ProbeShape) -> Vec<[f64; 2]> {
+    match *shape {
+        ProbeShape::Point(p) => vec![p],
+        ProbeShape::Line { from, to, points } => (0..points)
+            .map(|i| {
+                let t = i as f64 / (points - 1) as f64;
+                [from[0] + t * (to[0] - from[0]), from[1] + t * (to[1] - from[1])]
+            })
+            .collect(),
+    }
+}
+
+fn probe_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f64>) -> BTreeMap<String, ProbeResult> {
+    let mut out = BTreeMap::new();
+    let (c0, c1) = if model.symmetry == Symmetry::Planar { ("bx", "by") } else { ("br", "bz") };
+    for p in &model.probes {
+        let points = probe_points(&p.shape);
+        let fields: Vec<_> = points.iter().map(|&x| sol.field_at(x)).collect();
+        let b: Vec<[f64; 2]> = fields.iter().map(|f| f.map_or([f64::NAN; 2], |f| f.b)).collect();
+        let h: Vec<[f64; 2]> = fields.iter().map(|f| f.map_or([f64::NAN; 2], |f| f.h)).collect();
+        let bmag: Vec<f64> = b.iter().map(|v| v[0].hypot(v[1])).collect();
+        let key = |s: &str| format!("probe.{}.{s}", p.name);
+        match p.shape {
+            ProbeShape::Point(_) => {
+                values.insert(key("b"), bmag[0]);
+                values.insert(key(c0), b[0][0]);
+                values.insert(key(c1), b[0][1]);
+                values.insert(key("h"), h[0][0].hypot(h[0][1]));
+            }
+            ProbeShape::Line { .. } => {
+                let finite: Vec<f64> = bmag.iter().copied().filter(|v| v.is_finite()).collect();
+                values.insert(key("b.max"), finite.iter().copied().fold(f64::NAN, f64::max));
+                values.insert(key("b.min"), finite.iter().copied().fold(f64::NAN, f64::min));
+                values.insert(key("b.mean"), finite.iter().sum::<f64>() / finite.len().max(1) as f64);
+            }
+        }
+        out.insert(p.name.clone(), ProbeResult { points, b, bmag, h });
+    }
+    out
+}
+
+fn force_results(model: &Model, sol: &Solution, depth: f64, values: &mut BTreeMap<String, f64>) -> BTreeMap<String, ForceResult> {
+    let mut out = BTreeMap::new();
+    for f in &model.forces {
+        let r = force::force_on(sol, &f.parts, f.torque_about);
+        let v = [r.vector[0] * depth, r.vector[1] * depth];
+        let planar = model.symmetry == Symmetry::Planar;
+        let names = if planar { ["x", "y"] } else { ["r", "z"] };
+        values.insert(format!("force.{}.{}", f.name, names[0]), v[0]);
+        values.insert(format!("force.{}.{}", f.name, names[1]), v[1]);
+        values.insert(format!("force.{}.magnitude", f.name), v[0].hypot(v[1]));
+        let torque = planar.then_some(r.torque * depth);
+        if let Some(t) = torque {
+            values.insert(format!("force.{}.torque", f.name), t);
+        }
+        out.insert(f.name.clone(), ForceResult { vector: v, magnitude: v[0].hypot(v[1]), torque, contact: r.contact });
+    }
+    out
+}
+
+fn flux_results(model: &Model, sol: &Solution, depth: f64, values: &mut BTreeMap<String, f64>) -> BTreeMap<String, FluxResult> {
+    let mut out = BTreeMap::new();
+    let has_magnets = model.parts.iter().any(|p| matches!(p.material.material, Material::Magnet(_)));
+    for f in &model.fluxes {
+        let r = match f {
+            FluxSpec::Line { from, to, .. } => FluxResult { wb: flux::line_flux(sol, *from, *to).unwrap_or(f64::NAN) * depth, turns: None, inductance_h: None },
+            FluxSpec::Winding { parts, turns, .. } => {
+                let linkage = flux::winding_linkage(sol, parts, *turns) * depth;
+                let ampere_turns = model.parts[parts[0].0].current.unwrap_or(0.0).abs();
+                let current = ampere_turns / turns;
+                let inductance = (current > 0.0 && !has_magnets && sol.problem.applied_field == [0.0, 0.0]).then(|| linkage / current);
+                FluxResult { wb: linkage, turns: Some(*turns), inductance_h: inductance }
+            }
+        };
+        values.insert(format!("flux.{}", f.name()), r.wb);
+        if let Some(l) = r.inductance_h {
+            values.insert(format!("flux.{}.inductance", f.name()), l);
+        }
+        out.insert(f.name().to_string(), r);
+    }
+    out
+}
+
+fn part_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f64>) -> BTreeMap<String, PartResult> {
+    let n = model.parts.len();
+    let mut max = vec![0.0f64; n];
+    let mut sum = vec![0.0; n];
+    let mut vol = vec![0.0; n];
+    let els = &sol.elements;
+    for e in 0..els.n_physical {
+        let ElementKind::Part(i) = els.kinds[e] else { continue };
+        solver::element::for_each_point(&els.coords[e], els.order, sol.symmetry(), sol.placement(e), |op| {
+            let b = solver::element::flux_density(op, &els.gather(e, &sol.reduced), sol.background(e));
+            let bm = b[0].hypot(b[1]);
+            max[i] = max[i].max(bm);
+            sum[i] += bm * op.weight;
+            vol[i] += op.weight;
+        });
+    }
+    let mut out = BTreeMap::new();
+    for (i, p) in model.parts.iter().enumerate() {
+        let mean = if vol[i] > 0.0 { sum[i] / vol[i] } else { 0.0 };
+        let knee = match &p.material.material {
+            Material::Soft { curve } => solver::BhCurve::new(curve).ok().map(|c| c.knee_b()),
+            _ => None,
+        };
+        values.insert(format!("part.{}.b.max", p.name), max[i]);
+        values.insert(format!("part.{}.b.mean", p.name), mean);
+        out.insert(p.name.clone(), PartResult { material: p.material.name.clone(), b_max: max[i], b_mean: mean, knee_t: knee, saturated: knee.map(|k| max[i] > k) });
+    }
+    out
+}
+
+/// Evaluates every `[[expect]]` against the values.
+pub fn evaluate(model: &Model, values: &BTreeMap<String, f64>) -> Vec<ExpectResult> {
+    model
+        .expects
+        .iter()
+        .map(|e| {
+            let actual = values.get(&e.value).copied();
+            let pass = actual.is_some_and(|v| match e.bound {
+                Bound::Min(lo) => v >= lo,
+                Bound::Max(hi) => v <= hi,
+                Bound::Between(lo, hi) => v >= lo && v <= hi,
+                Bound::Near(t, tol) => (v - t).abs() <= tol,
+            });
+            ExpectResult { value: e.value.clone(), bound: e.text.clone(), actual, pass }
+        })
+        .collect()
+}

@@ -1,0 +1,119 @@
+//! From a resolved model to a mesh spec and a solver problem, and back from
+//! library errors to input diagnostics that point at the case file.
+
+use crate::case::model::{Model, ProbeShape};
+use crate::case::Diagnostic;
+use crate::materials::Material;
+use mesher::{MeshError, MeshSpec, OuterBoundary, PartSpec, Refinement, Symmetry};
+use solver::element::ElementOrder;
+use solver::{BhCurve, Law, Problem};
+use std::sync::Arc;
+
+/// The mesh spec of a model: every part, and every probe as a refinement.
+pub fn mesh_spec(model: &Model) -> MeshSpec {
+    let refinements = model
+        .probes
+        .iter()
+        .map(|p| match p.shape {
+            ProbeShape::Point(at) => Refinement::Point { at, size: model.mesh.size },
+            ProbeShape::Line { from, to, .. } => Refinement::Line { from, to, size: model.mesh.size },
+        })
+        .collect();
+    MeshSpec {
+        symmetry: model.symmetry,
+        parts: model.parts.iter().map(|p| PartSpec { shape: p.shape.clone(), mesh_size: p.mesh_size }).collect(),
+        refinements,
+        outer: model.boundary.clone(),
+        min_angle_deg: model.mesh.min_angle,
+        grading: model.mesh.grading,
+        max_triangles: model.mesh.max_elements,
+    }
+}
+
+/// Turns a mesher error into a diagnostic at the part it names.
+pub fn mesh_error(model: &Model, e: &MeshError) -> Diagnostic {
+    let part = match e {
+        MeshError::TooFewPoints { part, .. }
+        | MeshError::RepeatedPoint { part, .. }
+        | MeshError::SelfIntersection { part, .. }
+        | MeshError::ZeroArea { part }
+        | MeshError::AcrossAxis { part }
+        | MeshError::NotFinite { part }
+        | MeshError::BadSize { part, .. }
+        | MeshError::OutOfRange { part, .. } => Some(*part),
+        _ => None,
+    };
+    let mut msg = e.to_string();
+    if let Some(p) = part.and_then(|i| model.parts.get(i)) {
+        msg = msg.replacen(&format!("part {}", part.unwrap_or(0)), &format!("part '{}'", p.name), 1);
+    }
+    let span = part.and_then(|i| model.parts.get(i)).map(|p| p.span.start..p.span.start + 1);
+    let help = matches!(e, MeshError::TooManyTriangles { .. }).then(|| "or pass --max-elements N on the command line".to_string());
+    Diagnostic::new(msg, span).with_help(help)
+}
+
+/// The solver's law for each part at the study temperature.
+pub fn laws(model: &Model) -> Result<Vec<Law>, Diagnostic> {
+    model
+        .parts
+        .iter()
+        .map(|p| match &p.material.material {
+            Material::Air | Material::Conductor => Ok(Law::air()),
+            Material::Linear { relative_permeability } => Ok(Law::Linear { relative_permeability: *relative_permeability }),
+            Material::Soft { curve } => BhCurve::new(curve)
+                .map(|c| Law::Saturating(Arc::new(c)))
+                .map_err(|e| Diagnostic::new(format!("material '{}': {e}", p.material.name), Some(p.span.clone()))),
+            Material::Magnet(g) => {
+                let br = g.br_at(model.temperature);
+                let d = p.magnetization.unwrap_or([0.0, 1.0]);
+                Ok(Law::Magnet { recoil_permeability: g.recoil_permeability, br: [br * d[0], br * d[1]] })
+            }
+        })
+        .collect()
+}
+
+/// Current density of each part: ampere-turns over the meshed area.
+pub fn current_densities(model: &Model, mesh: &mesher::Mesh) -> Result<Vec<f64>, Diagnostic> {
+    let areas = mesh.part_areas(model.parts.len());
+    model
+        .parts
+        .iter()
+        .zip(areas)
+        .map(|(p, area)| match p.current {
+            None => Ok(0.0),
+            Some(_) if area <= 0.0 => Err(Diagnostic::new(format!("part '{}' carries a current but has no area left (later parts cover it)", p.name), Some(p.span.clone()))),
+            Some(i) => Ok(i / area),
+        })
+        .collect()
+}
+
+pub fn problem<'m>(model: &Model, mesh: &'m mesher::Mesh) -> Result<Problem<'m>, Diagnostic> {
+    let mut problem = Problem::new(mesh, laws(model)?, current_densities(model, mesh)?);
+    problem.applied_field = model.applied_field;
+    problem.order = if model.mesh.order == 1 { ElementOrder::Linear } else { ElementOrder::Quadratic };
+    Ok(problem)
+}
+
+/// Probes that the mesh cannot reach are input errors, found before solving.
+pub fn check_probes_inside(model: &Model) -> Result<(), Diagnostic> {
+    let box_bounds = match model.boundary {
+        OuterBoundary::FluxParallel { from_to: Some((a, b)) } => Some(([a[0].min(b[0]), a[1].min(b[1])], [a[0].max(b[0]), a[1].max(b[1])])),
+        _ => None,
+    };
+    for probe in &model.probes {
+        let pts = match probe.shape {
+            ProbeShape::Point(p) => vec![p],
+            ProbeShape::Line { from, to, .. } => vec![from, to],
+        };
+        let span = Some(probe.span.start..probe.span.start + 1);
+        if model.symmetry == Symmetry::Axisymmetric && pts.iter().any(|p| p[0] < 0.0) {
+            return Err(Diagnostic::new(format!("probe '{}' has r < 0; axisymmetric points lie in r >= 0", probe.name), span));
+        }
+        if let Some((lo, hi)) = box_bounds {
+            if pts.iter().any(|p| p[0] < lo[0] || p[1] < lo[1] || p[0] > hi[0] || p[1] > hi[1]) {
+                return Err(Diagnostic::new(format!("probe '{}' lies outside the flux-parallel box", probe.name), span));
+            }
+        }
+    }
+    Ok(())
+}

@@ -1,0 +1,136 @@
+//! Sweep bookkeeping: a stable hash that tells whether a variant's results
+//! are already whole, and the sweep table built from variant folders (so a
+//! sharded run and an unsharded one give the same table).
+
+use crate::run::Variant;
+use serde_json::Value;
+use std::collections::BTreeMap;
+use std::path::{Path, PathBuf};
+
+/// FNV-1a 64-bit hash (stable across builds and machines).
+fn fnv1a(bytes: &[u8], mut h: u64) -> u64 {
+    for b in bytes {
+        h ^= u64::from(*b);
+        h = h.wrapping_mul(0x0100_0000_01b3);
+    }
+    h
+}
+
+pub fn case_hash(text: &str) -> u64 {
+    fnv1a(text.as_bytes(), 0xcbf2_9ce4_8422_2325)
+}
+
+/// The hash of the case text and this variant's parameter values.
+pub fn variant_hash(case: u64, v: &Variant) -> String {
+    let mut h = case;
+    for (k, x) in &v.params {
+        h = fnv1a(k.as_bytes(), h);
+        h = fnv1a(&x.to_bits().to_le_bytes(), h);
+    }
+    format!("{h:016x}\n")
+}
+
+/// True when the variant folder holds results made from the same case and parameters.
+pub fn is_whole(out: &Path, v: &Variant, case: u64) -> bool {
+    let dir = out.join(&v.label);
+    dir.join("results.json").is_file() && std::fs::read_to_string(dir.join("variant.hash")).is_ok_and(|h| h == variant_hash(case, v))
+}
+
+/// One row of the sweep table.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Row {
+    pub index: usize,
+    pub swept: Vec<(String, f64)>,
+    pub values: BTreeMap<String, f64>,
+    pub converged: bool,
+}
+
+/// Reads every `variant-*/results.json` below the folders, ordered by variant index.
+pub fn rows_from_folders(folders: &[PathBuf]) -> Result<Vec<Row>, String> {
+    let mut rows = Vec::new();
+    for f in folders {
+        collect(f, &mut rows, 0)?;
+    }
+    rows.sort_by_key(|r| r.index);
+    rows.dedup_by_key(|r| r.index);
+    if rows.is_empty() {
+        return Err("no variant results (variant-*/results.json) found".into());
+    }
+    Ok(rows)
+}
+
+fn collect(dir: &Path, rows: &mut Vec<Row>, depth: usize) -> Result<(), String> {
+    let entries = std::fs::read_dir(dir).map_err(|e| format!("cannot read {}: {e}", dir.display()))?;
+    let mut paths: Vec<PathBuf> = entries.flatten().map(|e| e.path()).collect();
+    paths.sort();
+    for p in paths {
+        let name = p.file_name().map(|n| n.to_string_lossy().into_owned()).unwrap_or_default();
+        if p.is_dir() && name.starts_with("variant-") {
+            let file = p.join("results.json");
+            if file.is_file() {
+                rows.push(read_row(&file)?);
+            }
+        } else if p.is_dir() && depth < 2 {
+            collect(&p, rows, depth + 1)?;
+        }
+    }
+    Ok(())
+}
+
+fn read_row(file: &Path) -> Result<Row, String> {
+    let text = std::fs::read_to_string(file).map_err(|e| format!("cannot read {}: {e}", file.display()))?;
+    let v: Value = serde_json::from_str(&text).map_err(|e| format!("{} is not valid results JSON: {e}", file.display()))?;
+    let variant: crate::post::VariantInfo = serde_json::from_value(v["variant"].clone()).map_err(|e| format!("{}: no variant section: {e}", file.display()))?;
+    let values: BTreeMap<String, f64> = v["values"].as_object().map(|m| m.iter().map(|(k, x)| (k.clone(), x.as_f64().unwrap_or(f64::NAN))).collect()).unwrap_or_default();
+    Ok(Row { index: variant.index, swept: variant.swept, values, converged: v["solve"]["converged"].as_bool().unwrap_or(false) })
+}
+
+/// The SI unit of a value by its name.
+pub fn unit_of(name: &str) -> &'static str {
+    let last = name.rsplit('.').next().unwrap_or("");
+    match name.split('.').next().unwrap_or("") {
+        "force" if last == "torque" => "N m",
+        "force" => "N",
+        "probe" | "part" if last == "h" => "A/m",
+        "probe" | "part" => "T",
+        "flux" if last == "inductance" => "H",
+        "flux" => "Wb",
+        "energy" | "coenergy" => "J",
+        "stray" if last == "moment" => "A m2",
+        "stray" if name.contains("h_at") => "A/m",
+        "stray" | "reach" => "m",
+        "magnet" if last == "permeance" => "1",
+        "magnet" => "1",
+        _ => "",
+    }
+}
+
+/// The table: variant, swept parameters, converged, then every value (units in the header).
+pub fn table(rows: &[Row]) -> String {
+    let params: Vec<String> = rows.first().map(|r| r.swept.iter().map(|(k, _)| k.clone()).collect()).unwrap_or_default();
+    let mut names: Vec<String> = rows.iter().flat_map(|r| r.values.keys().cloned()).collect();
+    names.sort();
+    names.dedup();
+    let mut s = String::from("variant");
+    for p in &params {
+        s += &format!(",{p}");
+    }
+    s += ",converged";
+    for n in &names {
+        s += &format!(",{n} [{}]", unit_of(n));
+    }
+    s.push('\n');
+    for r in rows {
+        s += &format!("{}", r.index);
+        for p in &params {
+            let v = r.swept.iter().find(|(k, _)| k == p).map_or(f64::NAN, |x| x.1);
+            s += &format!(",{v}");
+        }
+        s += &format!(",{}", r.converged);
+        for n in &names {
+            s += &r.values.get(n).map_or_else(|| ",".to_string(), |v| format!(",{v:.9e}"));
+        }
+        s.push('\n');
+    }
+    s
+}
