@@ -2,14 +2,14 @@
 //! solver, writes results. The only crate that touches files and the terminal.
 
 pub mod case;
-pub mod materials;
-pub mod post;
-pub mod study;
-pub mod output;
-pub mod progress;
-pub mod run;
 pub mod commands;
 pub mod junit;
 pub mod library_text;
+pub mod materials;
+pub mod output;
+pub mod post;
+pub mod progress;
+pub mod run;
+pub mod study;
 pub mod summary;
 pub mod sweep;

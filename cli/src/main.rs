@@ -5,7 +5,11 @@ use lodestone::commands;
 use std::path::PathBuf;
 
 #[derive(Parser)]
-#[command(name = "lodestone", version, about = "Permanent-magnet assemblies by 2D finite elements (planar and axisymmetric), driven by a TOML case file.")]
+#[command(
+    name = "lodestone",
+    version,
+    about = "Permanent-magnet assemblies by 2D finite elements (planar and axisymmetric), driven by a TOML case file."
+)]
 struct Cli {
     #[command(subcommand)]
     command: Command,
@@ -87,9 +91,37 @@ enum Command {
 fn main() {
     let cli = Cli::parse();
     let code = match cli.command {
-        Command::Solve { case, output, set, max_elements, shard, force, common } => commands::solve(&case, output, &set, max_elements, shard.as_deref(), force, common.quiet),
-        Command::Check { cases, junit, set, max_elements, common } => commands::check(&cases, junit, &set, max_elements, common.quiet),
-        Command::Mesh { case, output, set, max_elements, common } => commands::mesh(&case, output, &set, max_elements, common.quiet),
+        Command::Solve {
+            case,
+            output,
+            set,
+            max_elements,
+            shard,
+            force,
+            common,
+        } => commands::solve(
+            &case,
+            output,
+            &set,
+            max_elements,
+            shard.as_deref(),
+            force,
+            common.quiet,
+        ),
+        Command::Check {
+            cases,
+            junit,
+            set,
+            max_elements,
+            common,
+        } => commands::check(&cases, junit, &set, max_elements, common.quiet),
+        Command::Mesh {
+            case,
+            output,
+            set,
+            max_elements,
+            common,
+        } => commands::mesh(&case, output, &set, max_elements, common.quiet),
         Command::Materials { name, plot } => commands::materials(name.as_deref(), plot),
         Command::Merge { folders, output } => commands::merge(&folders, &output),
     };

@@ -126,13 +126,20 @@ pub const CAUTIONS: &[&str] = &[
 /// Everything about a solved study.
 pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
     let mesh = sol.problem.mesh;
-    let depth = if model.symmetry == Symmetry::Planar { model.depth } else { 1.0 };
+    let depth = if model.symmetry == Symmetry::Planar {
+        model.depth
+    } else {
+        1.0
+    };
     let mut values = BTreeMap::new();
     let probes = probe_results(model, sol, &mut values);
     let forces = force_results(model, sol, depth, &mut values);
     let flux = flux_results(model, sol, depth, &mut values);
     let e = energy::stored_energy(sol);
-    let energy = EnergyResult { stored_j: e.stored * depth, coenergy_j: e.coenergy * depth };
+    let energy = EnergyResult {
+        stored_j: e.stored * depth,
+        coenergy_j: e.coenergy * depth,
+    };
     values.insert("energy".into(), energy.stored_j);
     values.insert("coenergy".into(), energy.coenergy_j);
     let parts = part_results(model, sol, &mut values);
@@ -141,14 +148,30 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
         format: "lodestone-results/1",
         study: StudyInfo {
             title: model.title.clone(),
-            geometry: if model.symmetry == Symmetry::Planar { "planar" } else { "axisymmetric" },
+            geometry: if model.symmetry == Symmetry::Planar {
+                "planar"
+            } else {
+                "axisymmetric"
+            },
             temperature_c: model.temperature,
             depth_m: depth,
             parameters: model.params.clone(),
         },
         variant: None,
-        mesh: MeshInfo { nodes: sol.elements.n_nodes, elements: mesh.triangles.len(), unknowns: r.n_dofs, element_order: model.mesh.order, min_angle_deg: mesh.quality().min_angle_deg },
-        solve: SolveInfo { converged: r.converged, iterations: r.iterations, residual: r.residual(), residual_history: r.residual_history.clone(), seconds },
+        mesh: MeshInfo {
+            nodes: sol.elements.n_nodes,
+            elements: mesh.triangles.len(),
+            unknowns: r.n_dofs,
+            element_order: model.mesh.order,
+            min_angle_deg: mesh.quality().min_angle_deg,
+        },
+        solve: SolveInfo {
+            converged: r.converged,
+            iterations: r.iterations,
+            residual: r.residual(),
+            residual_history: r.residual_history.clone(),
+            seconds,
+        },
         expect: evaluate(model, &values),
         probes,
         forces,
@@ -167,20 +190,37 @@ pub fn probe_points(shape: &ProbeShape) -> Vec<[f64; 2]> {
         ProbeShape::Line { from, to, points } => (0..points)
             .map(|i| {
                 let t = i as f64 / (points - 1) as f64;
-                [from[0] + t * (to[0] - from[0]), from[1] + t * (to[1] - from[1])]
+                [
+                    from[0] + t * (to[0] - from[0]),
+                    from[1] + t * (to[1] - from[1]),
+                ]
             })
             .collect(),
     }
 }
 
-fn probe_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f64>) -> BTreeMap<String, ProbeResult> {
+fn probe_results(
+    model: &Model,
+    sol: &Solution,
+    values: &mut BTreeMap<String, f64>,
+) -> BTreeMap<String, ProbeResult> {
     let mut out = BTreeMap::new();
-    let (c0, c1) = if model.symmetry == Symmetry::Planar { ("bx", "by") } else { ("br", "bz") };
+    let (c0, c1) = if model.symmetry == Symmetry::Planar {
+        ("bx", "by")
+    } else {
+        ("br", "bz")
+    };
     for p in &model.probes {
         let points = probe_points(&p.shape);
         let fields: Vec<_> = points.iter().map(|&x| sol.field_at(x)).collect();
-        let b: Vec<[f64; 2]> = fields.iter().map(|f| f.map_or([f64::NAN; 2], |f| f.b)).collect();
-        let h: Vec<[f64; 2]> = fields.iter().map(|f| f.map_or([f64::NAN; 2], |f| f.h)).collect();
+        let b: Vec<[f64; 2]> = fields
+            .iter()
+            .map(|f| f.map_or([f64::NAN; 2], |f| f.b))
+            .collect();
+        let h: Vec<[f64; 2]> = fields
+            .iter()
+            .map(|f| f.map_or([f64::NAN; 2], |f| f.h))
+            .collect();
         let bmag: Vec<f64> = b.iter().map(|v| v[0].hypot(v[1])).collect();
         let key = |s: &str| format!("probe.{}.{s}", p.name);
         match p.shape {
@@ -192,9 +232,18 @@ fn probe_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f6
             }
             ProbeShape::Line { .. } => {
                 let finite: Vec<f64> = bmag.iter().copied().filter(|v| v.is_finite()).collect();
-                values.insert(key("b.max"), finite.iter().copied().fold(f64::NAN, f64::max));
-                values.insert(key("b.min"), finite.iter().copied().fold(f64::NAN, f64::min));
-                values.insert(key("b.mean"), finite.iter().sum::<f64>() / finite.len().max(1) as f64);
+                values.insert(
+                    key("b.max"),
+                    finite.iter().copied().fold(f64::NAN, f64::max),
+                );
+                values.insert(
+                    key("b.min"),
+                    finite.iter().copied().fold(f64::NAN, f64::min),
+                );
+                values.insert(
+                    key("b.mean"),
+                    finite.iter().sum::<f64>() / finite.len().max(1) as f64,
+                );
             }
         }
         out.insert(p.name.clone(), ProbeResult { points, b, bmag, h });
@@ -202,7 +251,12 @@ fn probe_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f6
     out
 }
 
-fn force_results(model: &Model, sol: &Solution, depth: f64, values: &mut BTreeMap<String, f64>) -> BTreeMap<String, ForceResult> {
+fn force_results(
+    model: &Model,
+    sol: &Solution,
+    depth: f64,
+    values: &mut BTreeMap<String, f64>,
+) -> BTreeMap<String, ForceResult> {
     let mut out = BTreeMap::new();
     for f in &model.forces {
         let r = force::force_on(sol, &f.parts, f.torque_about);
@@ -216,23 +270,49 @@ fn force_results(model: &Model, sol: &Solution, depth: f64, values: &mut BTreeMa
         if let Some(t) = torque {
             values.insert(format!("force.{}.torque", f.name), t);
         }
-        out.insert(f.name.clone(), ForceResult { vector: v, magnitude: v[0].hypot(v[1]), torque, contact: r.contact });
+        out.insert(
+            f.name.clone(),
+            ForceResult {
+                vector: v,
+                magnitude: v[0].hypot(v[1]),
+                torque,
+                contact: r.contact,
+            },
+        );
     }
     out
 }
 
-fn flux_results(model: &Model, sol: &Solution, depth: f64, values: &mut BTreeMap<String, f64>) -> BTreeMap<String, FluxResult> {
+fn flux_results(
+    model: &Model,
+    sol: &Solution,
+    depth: f64,
+    values: &mut BTreeMap<String, f64>,
+) -> BTreeMap<String, FluxResult> {
     let mut out = BTreeMap::new();
-    let has_magnets = model.parts.iter().any(|p| matches!(p.material.material, Material::Magnet(_)));
+    let has_magnets = model
+        .parts
+        .iter()
+        .any(|p| matches!(p.material.material, Material::Magnet(_)));
     for f in &model.fluxes {
         let r = match f {
-            FluxSpec::Line { from, to, .. } => FluxResult { wb: flux::line_flux(sol, *from, *to).unwrap_or(f64::NAN) * depth, turns: None, inductance_h: None },
+            FluxSpec::Line { from, to, .. } => FluxResult {
+                wb: flux::line_flux(sol, *from, *to).unwrap_or(f64::NAN) * depth,
+                turns: None,
+                inductance_h: None,
+            },
             FluxSpec::Winding { parts, turns, .. } => {
                 let linkage = flux::winding_linkage(sol, parts, *turns) * depth;
                 let ampere_turns = model.parts[parts[0].0].current.unwrap_or(0.0).abs();
                 let current = ampere_turns / turns;
-                let inductance = (current > 0.0 && !has_magnets && sol.problem.applied_field == [0.0, 0.0]).then(|| linkage / current);
-                FluxResult { wb: linkage, turns: Some(*turns), inductance_h: inductance }
+                let inductance =
+                    (current > 0.0 && !has_magnets && sol.problem.applied_field == [0.0, 0.0])
+                        .then(|| linkage / current);
+                FluxResult {
+                    wb: linkage,
+                    turns: Some(*turns),
+                    inductance_h: inductance,
+                }
             }
         };
         values.insert(format!("flux.{}", f.name()), r.wb);
@@ -244,21 +324,37 @@ fn flux_results(model: &Model, sol: &Solution, depth: f64, values: &mut BTreeMap
     out
 }
 
-fn part_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f64>) -> BTreeMap<String, PartResult> {
+fn part_results(
+    model: &Model,
+    sol: &Solution,
+    values: &mut BTreeMap<String, f64>,
+) -> BTreeMap<String, PartResult> {
     let n = model.parts.len();
     let mut max = vec![0.0f64; n];
     let mut sum = vec![0.0; n];
     let mut vol = vec![0.0; n];
     let els = &sol.elements;
     for e in 0..els.n_physical {
-        let ElementKind::Part(i) = els.kinds[e] else { continue };
-        solver::element::for_each_point(&els.coords[e], els.order, sol.symmetry(), sol.placement(e), |op| {
-            let b = solver::element::flux_density(op, &els.gather(e, &sol.reduced), sol.background(e));
-            let bm = b[0].hypot(b[1]);
-            max[i] = max[i].max(bm);
-            sum[i] += bm * op.weight;
-            vol[i] += op.weight;
-        });
+        let ElementKind::Part(i) = els.kinds[e] else {
+            continue;
+        };
+        solver::element::for_each_point(
+            &els.coords[e],
+            els.order,
+            sol.symmetry(),
+            sol.placement(e),
+            |op| {
+                let b = solver::element::flux_density(
+                    op,
+                    &els.gather(e, &sol.reduced),
+                    sol.background(e),
+                );
+                let bm = b[0].hypot(b[1]);
+                max[i] = max[i].max(bm);
+                sum[i] += bm * op.weight;
+                vol[i] += op.weight;
+            },
+        );
     }
     let mut out = BTreeMap::new();
     for (i, p) in model.parts.iter().enumerate() {
@@ -269,7 +365,16 @@ fn part_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f64
         };
         values.insert(format!("part.{}.b.max", p.name), max[i]);
         values.insert(format!("part.{}.b.mean", p.name), mean);
-        out.insert(p.name.clone(), PartResult { material: p.material.name.clone(), b_max: max[i], b_mean: mean, knee_t: knee, saturated: knee.map(|k| max[i] > k) });
+        out.insert(
+            p.name.clone(),
+            PartResult {
+                material: p.material.name.clone(),
+                b_max: max[i],
+                b_mean: mean,
+                knee_t: knee,
+                saturated: knee.map(|k| max[i] > k),
+            },
+        );
     }
     out
 }
@@ -287,7 +392,12 @@ pub fn evaluate(model: &Model, values: &BTreeMap<String, f64>) -> Vec<ExpectResu
                 Bound::Between(lo, hi) => v >= lo && v <= hi,
                 Bound::Near(t, tol) => (v - t).abs() <= tol,
             });
-            ExpectResult { value: e.value.clone(), bound: e.text.clone(), actual, pass }
+            ExpectResult {
+                value: e.value.clone(),
+                bound: e.text.clone(),
+                actual,
+                pass,
+            }
         })
         .collect()
 }

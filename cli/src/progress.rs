@@ -12,7 +12,11 @@ pub struct Progress {
 
 impl Progress {
     pub fn new(quiet: bool) -> Progress {
-        Progress { quiet, terminal: std::io::stderr().is_terminal(), last_len: Mutex::new(0) }
+        Progress {
+            quiet,
+            terminal: std::io::stderr().is_terminal(),
+            last_len: Mutex::new(0),
+        }
     }
 
     pub fn note(&self, msg: &str) {

@@ -88,7 +88,11 @@ impl Mesh {
     }
 
     pub fn quality(&self) -> MeshQuality {
-        let mut q = MeshQuality { min_angle_deg: 180.0, min_area: f64::INFINITY, total_area: 0.0 };
+        let mut q = MeshQuality {
+            min_angle_deg: 180.0,
+            min_area: f64::INFINITY,
+            total_area: 0.0,
+        };
         for t in 0..self.triangles.len() {
             let p = self.triangle_points(t);
             let area = self.triangle_area(t);

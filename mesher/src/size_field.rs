@@ -21,13 +21,21 @@ pub fn sources(spec: &MeshSpec, polygons: &[Vec<[f64; 2]>]) -> Vec<SizeSource> {
     let mut out = Vec::new();
     for (poly, part) in polygons.iter().zip(&spec.parts) {
         for i in 0..poly.len() {
-            out.push(SizeSource { a: poly[i], b: poly[(i + 1) % poly.len()], size: part.mesh_size });
+            out.push(SizeSource {
+                a: poly[i],
+                b: poly[(i + 1) % poly.len()],
+                size: part.mesh_size,
+            });
         }
     }
     for r in &spec.refinements {
         match *r {
             Refinement::Point { at, size } => out.push(SizeSource { a: at, b: at, size }),
-            Refinement::Line { from, to, size } => out.push(SizeSource { a: from, b: to, size }),
+            Refinement::Line { from, to, size } => out.push(SizeSource {
+                a: from,
+                b: to,
+                size,
+            }),
         }
     }
     out
@@ -59,10 +67,17 @@ pub fn estimate(spec: &MeshSpec, polygons: &[Vec<[f64; 2]>], domain: &Domain) ->
     2.0 * n
 }
 
-pub fn check_estimate(spec: &MeshSpec, polygons: &[Vec<[f64; 2]>], domain: &Domain) -> Result<(), MeshError> {
+pub fn check_estimate(
+    spec: &MeshSpec,
+    polygons: &[Vec<[f64; 2]>],
+    domain: &Domain,
+) -> Result<(), MeshError> {
     let estimate = estimate(spec, polygons, domain);
     if !estimate.is_finite() || estimate > spec.max_triangles as f64 {
-        return Err(MeshError::TooManyTriangles { estimate, limit: spec.max_triangles });
+        return Err(MeshError::TooManyTriangles {
+            estimate,
+            limit: spec.max_triangles,
+        });
     }
     Ok(())
 }

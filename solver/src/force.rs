@@ -54,20 +54,33 @@ pub fn force_on(solution: &Solution, parts: &[usize], torque_center: [f64; 2]) -
         let (dn, _) = crate::element::barycentric_gradients(&els.coords[e]);
         let grad = [0, 1].map(|k| g[0] * dn[0][k] + g[1] * dn[1][k] + g[2] * dn[2][k]);
         let a = els.gather(e, &solution.reduced);
-        for_each_point(&els.coords[e], els.order, solution.symmetry(), solution.placement(e), |op| {
-            let b = crate::element::flux_density(op, &a, solution.problem.applied_field);
-            let half = 0.5 * (b[0] * b[0] + b[1] * b[1]);
-            let t = [[b[0] * b[0] - half, b[0] * b[1]], [b[0] * b[1], b[1] * b[1] - half]];
-            let tg = [0, 1].map(|i| -NU0 * (t[i][0] * grad[0] + t[i][1] * grad[1]) * op.weight);
-            f[0] += tg[0];
-            f[1] += tg[1];
-            let arm = [op.x[0] - torque_center[0], op.x[1] - torque_center[1]];
-            torque += arm[0] * tg[1] - arm[1] * tg[0];
-        });
+        for_each_point(
+            &els.coords[e],
+            els.order,
+            solution.symmetry(),
+            solution.placement(e),
+            |op| {
+                let b = crate::element::flux_density(op, &a, solution.problem.applied_field);
+                let half = 0.5 * (b[0] * b[0] + b[1] * b[1]);
+                let t = [
+                    [b[0] * b[0] - half, b[0] * b[1]],
+                    [b[0] * b[1], b[1] * b[1] - half],
+                ];
+                let tg = [0, 1].map(|i| -NU0 * (t[i][0] * grad[0] + t[i][1] * grad[1]) * op.weight);
+                f[0] += tg[0];
+                f[1] += tg[1];
+                let arm = [op.x[0] - torque_center[0], op.x[1] - torque_center[1]];
+                torque += arm[0] * tg[1] - arm[1] * tg[0];
+            },
+        );
     }
     if axisym {
         f[0] = 0.0;
         torque = 0.0;
     }
-    Force { vector: f, torque, contact }
+    Force {
+        vector: f,
+        torque,
+        contact,
+    }
 }

@@ -33,7 +33,9 @@ impl SolveReport {
 pub enum SolveError {
     Linear(LinearError),
     /// A NaN or infinity appeared in the iterate.
-    NotFinite { iteration: usize },
+    NotFinite {
+        iteration: usize,
+    },
 }
 
 impl std::fmt::Display for SolveError {
@@ -54,8 +56,15 @@ fn norm(v: &[f64]) -> f64 {
 
 /// Solves the problem; returns the potential at every node (reduced field:
 /// the applied field's potential is not included) and the report.
-pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(usize, f64)) -> Result<(Vec<f64>, SolveReport), SolveError> {
-    let mut report = SolveReport { n_dofs: system.n_dofs, ..Default::default() };
+pub fn newton_solve(
+    problem: &Problem,
+    system: &mut System,
+    progress: &dyn Fn(usize, f64),
+) -> Result<(Vec<f64>, SolveReport), SolveError> {
+    let mut report = SolveReport {
+        n_dofs: system.n_dofs,
+        ..Default::default()
+    };
     let mut a = vec![0.0; system.dof_of_node.len()];
     let t = Instant::now();
     let mut residual = system.assemble(problem, &a);
@@ -82,7 +91,8 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
         if step.iter().any(|v| !v.is_finite()) {
             return Err(SolveError::NotFinite { iteration: it });
         }
-        let (new_a, new_residual, seconds) = line_search(problem, system, &a, &step, norm(&residual));
+        let (new_a, new_residual, seconds) =
+            line_search(problem, system, &a, &step, norm(&residual));
         report.seconds_assembly += seconds;
         let update = norm(&step) / norm_of_dofs(system, &new_a).max(f64::MIN_POSITIVE);
         a = new_a;
@@ -95,7 +105,10 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
         if !rel.is_finite() {
             return Err(SolveError::NotFinite { iteration: it });
         }
-        if (linear && rel < 1e-6) || (rel < settings.residual_tolerance && update < settings.update_tolerance.max(1e-14)) || rel < 1e-14 {
+        if (linear && rel < 1e-6)
+            || (rel < settings.residual_tolerance && update < settings.update_tolerance.max(1e-14))
+            || rel < 1e-14
+        {
             report.converged = true;
             break;
         }
@@ -104,26 +117,81 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
 }
 
 fn norm_of_dofs(system: &System, a: &[f64]) -> f64 {
-    system.dof_of_node.iter().zip(a).filter(|(d, _)| **d != NONE).map(|(_, v)| v * v).sum::<f64>().sqrt()
+    system
+        .dof_of_node
+        .iter()
+        .zip(a)
+        .filter(|(d, _)| **d != NONE)
+        .map(|(_, v)| v * v)
+        .sum::<f64>()
+        .sqrt()
 }
 
-/// Tries the full step, then halves it while the residual does not fall.
-/// Leaves the system assembled at the accepted point.
-fn line_search(problem: &Problem, system: &mut System, a: &[f64], step: &[f64], r_old: f64) -> (Vec<f64>, Vec<f64>, f64) {
-    let t = Instant::now();
-    let mut alpha = 1.0;
-    loop {
-        let mut trial = a.to_vec();
-        for (n, &d) in system.dof_of_node.iter().enumerate() {
-            if d != NONE {
-                trial[n] += alpha * step[d];
-            }
+fn dot(a: &[f64], b: &[f64]) -> f64 {
+    a.iter().zip(b).map(|(x, y)| x * y).sum()
+}
+
+fn shifted(system: &System, a: &[f64], step: &[f64], alpha: f64) -> Vec<f64> {
+    let mut trial = a.to_vec();
+    for (n, &d) in system.dof_of_node.iter().enumerate() {
+        if d != NONE {
+            trial[n] += alpha * step[d];
         }
-        let residual = system.assemble(problem, &trial);
-        let r = norm(&residual);
-        if r <= (1.0 - 1e-4 * alpha) * r_old || alpha < 1.0 / 32.0 || !problem.is_nonlinear() {
-            return (trial, residual, t.elapsed().as_secs_f64());
-        }
-        alpha *= 0.5;
     }
+    trial
+}
+
+/// Line search on the field energy W(a + alpha step), whose derivative is
+/// residual . step: the full Newton step when the energy still falls at
+/// alpha = 1, else regula falsi for the zero of the derivative in (0, 1).
+/// The energy is convex (H(B) is monotone), so the zero is unique.
+/// Leaves the system assembled at the accepted point.
+fn line_search(
+    problem: &Problem,
+    system: &mut System,
+    a: &[f64],
+    step: &[f64],
+    _r_old: f64,
+) -> (Vec<f64>, Vec<f64>, f64) {
+    let t = Instant::now();
+    let full = shifted(system, a, step, 1.0);
+    let residual = system.assemble(problem, &full);
+    if !problem.is_nonlinear() {
+        return (full, residual, t.elapsed().as_secs_f64());
+    }
+    let g1 = dot(&residual, step);
+    if g1 <= 0.0 {
+        return (full, residual, t.elapsed().as_secs_f64());
+    }
+    // The slope at alpha = 0 is -step . K step < 0; use the residual there.
+    let (mut lo, mut glo) = (0.0, -g1.abs().max(f64::MIN_POSITIVE));
+    let (mut hi, mut ghi) = (1.0, g1);
+    let g0 = dot(&system_residual_at(problem, system, a), step);
+    glo = if g0 < 0.0 { g0 } else { glo };
+    let mut best = (1.0, full, residual);
+    for _ in 0..6 {
+        let alpha = (lo - glo * (hi - lo) / (ghi - glo))
+            .clamp(lo + 0.05 * (hi - lo), hi - 0.05 * (hi - lo));
+        let trial = shifted(system, a, step, alpha);
+        let r = system.assemble(problem, &trial);
+        let g = dot(&r, step);
+        best = (alpha, trial, r);
+        if g.abs() <= 0.1 * g0.abs() {
+            break;
+        }
+        if g > 0.0 {
+            hi = alpha;
+            ghi = g;
+        } else {
+            lo = alpha;
+            glo = g;
+        }
+    }
+    let _ = best.0;
+    (best.1, best.2, t.elapsed().as_secs_f64())
+}
+
+/// The residual at a point (assembles; the caller re-assembles where it continues).
+fn system_residual_at(problem: &Problem, system: &mut System, a: &[f64]) -> Vec<f64> {
+    system.assemble(problem, a)
 }

@@ -16,7 +16,11 @@ pub struct NewtonSettings {
 
 impl Default for NewtonSettings {
     fn default() -> Self {
-        NewtonSettings { residual_tolerance: 1e-8, update_tolerance: 1e-6, max_iterations: 40 }
+        NewtonSettings {
+            residual_tolerance: 1e-8,
+            update_tolerance: 1e-6,
+            max_iterations: 40,
+        }
     }
 }
 
@@ -37,7 +41,14 @@ pub struct Problem<'m> {
 impl<'m> Problem<'m> {
     /// A problem with no applied field, quadratic elements and default Newton settings.
     pub fn new(mesh: &'m Mesh, laws: Vec<Law>, current_density: Vec<f64>) -> Problem<'m> {
-        Problem { mesh, laws, current_density, applied_field: [0.0, 0.0], order: ElementOrder::Quadratic, newton: NewtonSettings::default() }
+        Problem {
+            mesh,
+            laws,
+            current_density,
+            applied_field: [0.0, 0.0],
+            order: ElementOrder::Quadratic,
+            newton: NewtonSettings::default(),
+        }
     }
 
     pub fn is_nonlinear(&self) -> bool {

@@ -7,7 +7,10 @@ pub struct Rule {
 }
 
 /// The centroid rule, exact for degree 1.
-pub const CENTROID: Rule = Rule { points: &[[1.0 / 3.0, 1.0 / 3.0, 1.0 / 3.0]], weights: &[1.0] };
+pub const CENTROID: Rule = Rule {
+    points: &[[1.0 / 3.0, 1.0 / 3.0, 1.0 / 3.0]],
+    weights: &[1.0],
+};
 
 const A1: f64 = 0.059_715_871_789_770;
 const B1: f64 = 0.470_142_064_105_115;

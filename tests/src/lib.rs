@@ -6,10 +6,18 @@ pub mod reference;
 use mesher::{build_mesh, Mesh, MeshSpec, OuterBoundary, PartSpec, Refinement, Shape, Symmetry};
 
 /// A mesh spec with the case-file defaults (min angle 28 degrees, grading 1.3).
-pub fn spec(symmetry: Symmetry, parts: Vec<(Shape, f64)>, refinements: Vec<Refinement>, outer: OuterBoundary) -> MeshSpec {
+pub fn spec(
+    symmetry: Symmetry,
+    parts: Vec<(Shape, f64)>,
+    refinements: Vec<Refinement>,
+    outer: OuterBoundary,
+) -> MeshSpec {
     MeshSpec {
         symmetry,
-        parts: parts.into_iter().map(|(shape, mesh_size)| PartSpec { shape, mesh_size }).collect(),
+        parts: parts
+            .into_iter()
+            .map(|(shape, mesh_size)| PartSpec { shape, mesh_size })
+            .collect(),
         refinements,
         outer,
         min_angle_deg: 28.0,
@@ -25,4 +33,92 @@ pub fn mesh(spec: &MeshSpec) -> Mesh {
 /// Relative error |a - b| / |b|.
 pub fn rel(a: f64, b: f64) -> f64 {
     (a - b).abs() / b.abs()
+}
+
+use solver::{Law, Problem, Solution};
+
+/// One part of a test problem: shape, mesh size, law and current density.
+pub struct TestPart {
+    pub shape: Shape,
+    pub size: f64,
+    pub law: Law,
+    pub current_density: f64,
+}
+
+pub fn magnet(shape: Shape, size: f64, br: [f64; 2]) -> TestPart {
+    TestPart {
+        shape,
+        size,
+        law: Law::Magnet {
+            recoil_permeability: 1.0,
+            br,
+        },
+        current_density: 0.0,
+    }
+}
+
+pub fn linear(shape: Shape, size: f64, mur: f64) -> TestPart {
+    TestPart {
+        shape,
+        size,
+        law: Law::Linear {
+            relative_permeability: mur,
+        },
+        current_density: 0.0,
+    }
+}
+
+pub fn coil(shape: Shape, size: f64, j: f64) -> TestPart {
+    TestPart {
+        shape,
+        size,
+        law: Law::air(),
+        current_density: j,
+    }
+}
+
+/// Meshes and solves, then hands the solution to `f`.
+pub fn solve_with<T>(
+    symmetry: Symmetry,
+    parts: Vec<TestPart>,
+    refinements: Vec<Refinement>,
+    outer: OuterBoundary,
+    applied: [f64; 2],
+    f: impl FnOnce(&Solution) -> T,
+) -> T {
+    let s = spec(
+        symmetry,
+        parts.iter().map(|p| (p.shape.clone(), p.size)).collect(),
+        refinements,
+        outer,
+    );
+    let m = mesh(&s);
+    let mut problem = Problem::new(
+        &m,
+        parts.iter().map(|p| p.law.clone()).collect(),
+        parts.iter().map(|p| p.current_density).collect(),
+    );
+    problem.applied_field = applied;
+    let sol = solver::solve(&problem, &|_, _| {}).expect("test problem solves");
+    assert!(sol.report.converged, "test problem converges");
+    f(&sol)
+}
+
+/// Axis-aligned rectangle.
+pub fn rect(x0: f64, y0: f64, x1: f64, y1: f64) -> Shape {
+    Shape::Rect {
+        from: [x0, y0],
+        to: [x1, y1],
+    }
+}
+
+/// Least-squares slope of log(y) against log(x).
+pub fn log_log_slope(x: &[f64], y: &[f64]) -> f64 {
+    let lx: Vec<f64> = x.iter().map(|v| v.ln()).collect();
+    let ly: Vec<f64> = y.iter().map(|v| v.ln()).collect();
+    let n = lx.len() as f64;
+    let (mx, my) = (lx.iter().sum::<f64>() / n, ly.iter().sum::<f64>() / n);
+    let sxy: f64 = lx.iter().zip(&ly).map(|(a, b)| (a - mx) * (b - my)).sum();
+    let sxx: f64 = lx.iter().map(|a| (a - mx).powi(2)).sum();
+    sxy / sxx
 }

@@ -36,24 +36,45 @@ pub fn parse(text: &str) -> Result<Item, Diagnostic> {
     match DeTable::parse(text) {
         Ok(t) => {
             let span = t.span();
-            Ok(Item { value: Value::Table(convert_table(t.get_ref())), span })
+            Ok(Item {
+                value: Value::Table(convert_table(t.get_ref())),
+                span,
+            })
         }
-        Err(e) => Err(Diagnostic::new(format!("this is not valid TOML: {}", e.message().trim()), e.span())),
+        Err(e) => Err(Diagnostic::new(
+            format!("this is not valid TOML: {}", e.message().trim()),
+            e.span(),
+        )),
     }
 }
 
 fn convert_table(t: &DeTable<'_>) -> Vec<(Key, Item)> {
-    t.iter().map(|(k, v)| (Key { name: k.get_ref().to_string(), span: k.span() }, convert(v.get_ref(), v.span()))).collect()
+    t.iter()
+        .map(|(k, v)| {
+            (
+                Key {
+                    name: k.get_ref().to_string(),
+                    span: k.span(),
+                },
+                convert(v.get_ref(), v.span()),
+            )
+        })
+        .collect()
 }
 
 fn convert(v: &DeValue<'_>, span: Range<usize>) -> Item {
     let value = match v {
         DeValue::String(s) => Value::Str(s.to_string()),
-        DeValue::Integer(i) => Value::Num(i64::from_str_radix(&i.as_str().replace('_', ""), i.radix()).map_or(f64::NAN, |x| x as f64)),
+        DeValue::Integer(i) => Value::Num(
+            i64::from_str_radix(&i.as_str().replace('_', ""), i.radix())
+                .map_or(f64::NAN, |x| x as f64),
+        ),
         DeValue::Float(f) => Value::Num(parse_float(f.as_str())),
         DeValue::Boolean(b) => Value::Bool(*b),
         DeValue::Datetime(_) => Value::Datetime,
-        DeValue::Array(a) => Value::Array(a.iter().map(|x| convert(x.get_ref(), x.span())).collect()),
+        DeValue::Array(a) => {
+            Value::Array(a.iter().map(|x| convert(x.get_ref(), x.span())).collect())
+        }
         DeValue::Table(t) => Value::Table(convert_table(t)),
     };
     Item { value, span }
@@ -84,7 +105,13 @@ impl Value {
 
 impl Item {
     fn wrong(&self, what: &str, expected: &str) -> Diagnostic {
-        Diagnostic::new(format!("{what}: expected {expected}, found {}", self.value.type_name()), Some(self.span.clone()))
+        Diagnostic::new(
+            format!(
+                "{what}: expected {expected}, found {}",
+                self.value.type_name()
+            ),
+            Some(self.span.clone()),
+        )
     }
 
     /// The entries of a table, after checking every key is one of `allowed`.
@@ -94,12 +121,23 @@ impl Item {
         };
         for (k, _) in entries {
             if !allowed.contains(&k.name.as_str()) {
-                let d = Diagnostic::new(format!("unknown key '{}' in {what}", k.name), Some(k.span.clone())).suggest(&k.name, allowed.iter().copied());
-                let help = d.help.clone().unwrap_or_else(|| format!("the keys of {what} are: {}", allowed.join(", ")));
+                let d = Diagnostic::new(
+                    format!("unknown key '{}' in {what}", k.name),
+                    Some(k.span.clone()),
+                )
+                .suggest(&k.name, allowed.iter().copied());
+                let help = d
+                    .help
+                    .clone()
+                    .unwrap_or_else(|| format!("the keys of {what} are: {}", allowed.join(", ")));
                 return Err(d.with_help(Some(help)));
             }
         }
-        Ok(Fields { entries, span: self.span.clone(), what: what.to_string() })
+        Ok(Fields {
+            entries,
+            span: self.span.clone(),
+            what: what.to_string(),
+        })
     }
 
     pub fn str(&self, what: &str) -> Result<&str, Diagnostic> {
@@ -120,7 +158,10 @@ impl Item {
     pub fn number(&self, what: &str) -> Result<f64, Diagnostic> {
         match &self.value {
             Value::Num(v) if v.is_finite() => Ok(*v),
-            Value::Num(_) => Err(Diagnostic::new(format!("{what}: the number is not finite (NaN or infinity)"), Some(self.span.clone()))),
+            Value::Num(_) => Err(Diagnostic::new(
+                format!("{what}: the number is not finite (NaN or infinity)"),
+                Some(self.span.clone()),
+            )),
             _ => Err(self.wrong(what, "a number")),
         }
     }
@@ -151,19 +192,33 @@ pub struct Fields<'a> {
 
 impl<'a> Fields<'a> {
     pub fn get(&self, key: &str) -> Option<&'a Item> {
-        self.entries.iter().find(|(k, _)| k.name == key).map(|(_, v)| v)
+        self.entries
+            .iter()
+            .find(|(k, _)| k.name == key)
+            .map(|(_, v)| v)
     }
 
     pub fn require(&self, key: &str) -> Result<&'a Item, Diagnostic> {
-        self.get(key).ok_or_else(|| Diagnostic::new(format!("{} needs the key '{key}'", self.what), Some(self.span.start..self.span.start + 1)))
+        self.get(key).ok_or_else(|| {
+            Diagnostic::new(
+                format!("{} needs the key '{key}'", self.what),
+                Some(self.span.start..self.span.start + 1),
+            )
+        })
     }
 
     /// Which of `keys` are present (for "exactly one of" rules).
     pub fn present(&self, keys: &[&'a str]) -> Vec<&'a str> {
-        keys.iter().copied().filter(|k| self.get(k).is_some()).collect()
+        keys.iter()
+            .copied()
+            .filter(|k| self.get(k).is_some())
+            .collect()
     }
 
     pub fn key_span(&self, key: &str) -> Option<Range<usize>> {
-        self.entries.iter().find(|(k, _)| k.name == key).map(|(k, _)| k.span.clone())
+        self.entries
+            .iter()
+            .find(|(k, _)| k.name == key)
+            .map(|(k, _)| k.span.clone())
     }
 }

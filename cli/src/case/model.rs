@@ -57,7 +57,11 @@ pub struct Part {
 #[derive(Clone, Debug)]
 pub enum ProbeShape {
     Point([f64; 2]),
-    Line { from: [f64; 2], to: [f64; 2], points: usize },
+    Line {
+        from: [f64; 2],
+        to: [f64; 2],
+        points: usize,
+    },
 }
 
 #[derive(Clone, Debug)]
@@ -76,9 +80,17 @@ pub struct ForceSpec {
 
 #[derive(Clone, Debug)]
 pub enum FluxSpec {
-    Line { name: String, from: [f64; 2], to: [f64; 2] },
+    Line {
+        name: String,
+        from: [f64; 2],
+        to: [f64; 2],
+    },
     /// Parts with the sign of their current, and the turn count.
-    Winding { name: String, parts: Vec<(usize, f64)>, turns: f64 },
+    Winding {
+        name: String,
+        parts: Vec<(usize, f64)>,
+        turns: f64,
+    },
 }
 
 impl FluxSpec {

@@ -17,16 +17,26 @@ impl Context<'_> {
     /// A quantity of `kind`, in SI. Bare numbers are in the study's length
     /// unit for lengths, degC for temperatures, % for percentages, SI otherwise.
     pub fn quantity(&self, item: &Item, kind: Kind, what: &str) -> Result<f64, Diagnostic> {
-        let bare = |v: f64| if kind == Kind::Length { v * self.length_unit } else { v };
+        let bare = |v: f64| {
+            if kind == Kind::Length {
+                v * self.length_unit
+            } else {
+                v
+            }
+        };
         match &item.value {
             Value::Num(v) if v.is_finite() => Ok(bare(*v)),
-            Value::Num(_) => Err(Diagnostic::new(format!("{what}: the number is not finite (NaN or infinity)"), Some(item.span.clone()))),
+            Value::Num(_) => Err(Diagnostic::new(
+                format!("{what}: the number is not finite (NaN or infinity)"),
+                Some(item.span.clone()),
+            )),
             Value::Str(s) => {
                 // The string's text starts one byte after the opening quote.
                 let base = item.span.start + 1;
                 let parsed = expr::parse(s, self.params).map_err(|e| {
                     let at = base + e.offset;
-                    Diagnostic::new(format!("{what}: {}", e.message), Some(at..at + 1)).with_help(e.suggestion.map(|c| format!("did you mean '{c}'?")))
+                    Diagnostic::new(format!("{what}: {}", e.message), Some(at..at + 1))
+                        .with_help(e.suggestion.map(|c| format!("did you mean '{c}'?")))
                 })?;
                 if parsed.unit.is_empty() {
                     return Ok(bare(parsed.value));
@@ -34,13 +44,38 @@ impl Context<'_> {
                 let at = base + parsed.unit_offset;
                 let span = Some(at..at + parsed.unit.len());
                 match units::unit(parsed.unit) {
-                    Some((k, factor)) if k == kind => Ok(parsed.value * factor + units::offset(parsed.unit)),
-                    Some((k, _)) => Err(Diagnostic::new(format!("{what}: '{}' is {}, but {} is needed", parsed.unit, k.describe(), kind.describe()), span)),
-                    None => Err(Diagnostic::new(format!("{what}: unknown unit '{}'; expected {}", parsed.unit, kind.describe()), span)
-                        .suggest(parsed.unit, units::symbols_of(kind))),
+                    Some((k, factor)) if k == kind => {
+                        Ok(parsed.value * factor + units::offset(parsed.unit))
+                    }
+                    Some((k, _)) => Err(Diagnostic::new(
+                        format!(
+                            "{what}: '{}' is {}, but {} is needed",
+                            parsed.unit,
+                            k.describe(),
+                            kind.describe()
+                        ),
+                        span,
+                    )),
+                    None => Err(Diagnostic::new(
+                        format!(
+                            "{what}: unknown unit '{}'; expected {}",
+                            parsed.unit,
+                            kind.describe()
+                        ),
+                        span,
+                    )
+                    .suggest(parsed.unit, units::symbols_of(kind))),
                 }
             }
-            other => Err(Diagnostic::new(format!("{what}: expected {} as a number or a string such as \"{}\", found {}", kind.describe(), example(kind), other.type_name()), Some(item.span.clone()))),
+            other => Err(Diagnostic::new(
+                format!(
+                    "{what}: expected {} as a number or a string such as \"{}\", found {}",
+                    kind.describe(),
+                    example(kind),
+                    other.type_name()
+                ),
+                Some(item.span.clone()),
+            )),
         }
     }
 
@@ -60,9 +95,18 @@ impl Context<'_> {
     pub fn point(&self, item: &Item, what: &str) -> Result<[f64; 2], Diagnostic> {
         let a = item.array(what)?;
         if a.len() != 2 {
-            return Err(Diagnostic::new(format!("{what}: a point is [x, y] (or [r, z]), found {} values", a.len()), Some(item.span.clone())));
+            return Err(Diagnostic::new(
+                format!(
+                    "{what}: a point is [x, y] (or [r, z]), found {} values",
+                    a.len()
+                ),
+                Some(item.span.clone()),
+            ));
         }
-        Ok([self.quantity(&a[0], Kind::Length, what)?, self.quantity(&a[1], Kind::Length, what)?])
+        Ok([
+            self.quantity(&a[0], Kind::Length, what)?,
+            self.quantity(&a[1], Kind::Length, what)?,
+        ])
     }
 
     /// A positive quantity.
@@ -71,7 +115,10 @@ impl Context<'_> {
         if v > 0.0 {
             Ok(v)
         } else {
-            Err(Diagnostic::new(format!("{what} must be greater than zero, got {v}"), Some(item.span.clone())))
+            Err(Diagnostic::new(
+                format!("{what} must be greater than zero, got {v}"),
+                Some(item.span.clone()),
+            ))
         }
     }
 }

@@ -8,7 +8,9 @@ pub fn distance(a: &str, b: &str) -> usize {
     for (i, ca) in a.iter().enumerate() {
         let mut cur = vec![i + 1; b.len() + 1];
         for (j, cb) in b.iter().enumerate() {
-            cur[j + 1] = (prev[j] + usize::from(ca != cb)).min(prev[j + 1] + 1).min(cur[j] + 1);
+            cur[j + 1] = (prev[j] + usize::from(ca != cb))
+                .min(prev[j + 1] + 1)
+                .min(cur[j] + 1);
         }
         prev = cur;
     }
@@ -18,14 +20,22 @@ pub fn distance(a: &str, b: &str) -> usize {
 /// The closest candidate within a third of the word's length (at least 2 edits).
 pub fn closest<'a>(word: &str, candidates: impl IntoIterator<Item = &'a str>) -> Option<String> {
     let limit = (word.chars().count() / 3).max(2);
-    candidates.into_iter().map(|c| (distance(word, c), c)).filter(|(d, _)| *d <= limit).min_by_key(|(d, _)| *d).map(|(_, c)| c.to_string())
+    candidates
+        .into_iter()
+        .map(|c| (distance(word, c), c))
+        .filter(|(d, _)| *d <= limit)
+        .min_by_key(|(d, _)| *d)
+        .map(|(_, c)| c.to_string())
 }
 
 #[cfg(test)]
 mod tests {
     #[test]
     fn finds_near_words() {
-        assert_eq!(super::closest("materail", ["material", "magnetization"]).as_deref(), Some("material"));
+        assert_eq!(
+            super::closest("materail", ["material", "magnetization"]).as_deref(),
+            Some("material")
+        );
         assert_eq!(super::closest("zzz", ["material"]), None);
     }
 }

@@ -93,7 +93,11 @@ pub fn lookup(name: &str) -> Option<Entry> {
 }
 
 fn ndfeb(name: &str) -> Option<Entry> {
-    let (base, class) = NDFEB.iter().find_map(|g| name.strip_prefix(g.0).and_then(|rest| CLASSES.iter().find(|c| c.0 == rest)).map(|c| (g, c)))?;
+    let (base, class) = NDFEB.iter().find_map(|g| {
+        name.strip_prefix(g.0)
+            .and_then(|rest| CLASSES.iter().find(|c| c.0 == rest))
+            .map(|c| (g, c))
+    })?;
     let number: u32 = base.0[1..].parse().ok()?;
     if number > class.4 {
         return None;
@@ -112,13 +116,31 @@ fn ndfeb(name: &str) -> Option<Entry> {
         "sintered NdFeB: Br {:.3} T = middle of the {}-{} T catalogue range for {} (S6; S1), recoil permeability 1.05 and alpha Br -0.12 %/K (S1; S12); {}; typical catalogue values, not a standard's minimum",
         br, base.1, base.2, base.0, class.5
     );
-    Some(Entry { name: name.into(), family: "sintered NdFeB".into(), material: Material::Magnet(grade), source })
+    Some(Entry {
+        name: name.into(),
+        family: "sintered NdFeB".into(),
+        material: Material::Magnet(grade),
+        source,
+    })
 }
 
 fn other(name: &str) -> Option<Entry> {
     let g = OTHERS.iter().find(|g| g.0 == name)?;
-    let grade = MagnetGrade { br: g.2, recoil_permeability: g.5, hcj: g.4 * 1e3, hcb: Some(g.3 * 1e3), br_coeff: g.6, hcj_coeff: g.7, max_temperature: Some(g.8) };
-    Some(Entry { name: g.0.into(), family: g.1.into(), material: Material::Magnet(grade), source: g.9.into() })
+    let grade = MagnetGrade {
+        br: g.2,
+        recoil_permeability: g.5,
+        hcj: g.4 * 1e3,
+        hcb: Some(g.3 * 1e3),
+        br_coeff: g.6,
+        hcj_coeff: g.7,
+        max_temperature: Some(g.8),
+    };
+    Some(Entry {
+        name: g.0.into(),
+        family: g.1.into(),
+        material: Material::Magnet(grade),
+        source: g.9.into(),
+    })
 }
 
 pub fn names() -> Vec<String> {

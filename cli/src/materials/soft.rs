@@ -62,7 +62,14 @@ const CURVES: &[Curve] = &[
 
 pub fn lookup(name: &str) -> Option<Entry> {
     let c = CURVES.iter().find(|c| c.name == name)?;
-    Some(Entry { name: c.name.into(), family: c.family.into(), material: Material::Soft { curve: c.points.to_vec() }, source: c.source.into() })
+    Some(Entry {
+        name: c.name.into(),
+        family: c.family.into(),
+        material: Material::Soft {
+            curve: c.points.to_vec(),
+        },
+        source: c.source.into(),
+    })
 }
 
 pub fn names() -> Vec<String> {
