@@ -122,3 +122,27 @@ pub fn log_log_slope(x: &[f64], y: &[f64]) -> f64 {
     let sxx: f64 = lx.iter().map(|a| (a - mx).powi(2)).sum();
     sxy / sxx
 }
+
+/// Solves a case given as text (written to a temporary file) through the
+/// command-line crate, returning the results of its first variant.
+pub fn solve_case_text(text: &str, overrides: &[(&str, f64)]) -> lodestone::post::Results {
+    let dir = std::env::temp_dir().join(format!(
+        "lodestone-test-{}-{}",
+        std::process::id(),
+        COUNTER.fetch_add(1, std::sync::atomic::Ordering::SeqCst)
+    ));
+    std::fs::create_dir_all(&dir).expect("temp dir");
+    let path = dir.join("case.toml");
+    std::fs::write(&path, text).expect("write case");
+    let loaded = lodestone::run::load(&path).unwrap_or_else(|f| panic!("{}", f.message()));
+    let over = overrides.iter().map(|(k, v)| (k.to_string(), *v)).collect();
+    let variants =
+        lodestone::run::variants(&loaded, &over).unwrap_or_else(|f| panic!("{}", f.message()));
+    let progress = lodestone::progress::Progress::new(true);
+    let out = lodestone::run::solve_variant(&loaded, &variants[0], &Default::default(), &progress)
+        .unwrap_or_else(|f| panic!("{}", f.message()));
+    let _ = std::fs::remove_dir_all(&dir);
+    out.results
+}
+
+static COUNTER: std::sync::atomic::AtomicUsize = std::sync::atomic::AtomicUsize::new(0);

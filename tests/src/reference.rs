@@ -227,3 +227,56 @@ mod tests {
         assert!((bessel_j1(5.0) + 0.327_579_137_6).abs() < 1e-9);
     }
 }
+
+/// Complete elliptic integrals K(k) and E(k) from Bulirsch's cel
+/// (K = cel(k', 1, 1, 1), E = cel(k', 1, 1, k'^2)).
+pub fn elliptic_ke(k: f64) -> (f64, f64) {
+    let kc = (1.0 - k * k).sqrt();
+    (cel(kc, 1.0, 1.0, 1.0), cel(kc, 1.0, 1.0, kc * kc))
+}
+
+/// Inductance of a single-layer solenoid (current sheet) of radius a, length
+/// l and n turns: L = K_N mu0 pi a^2 n^2 / l with Nagaoka's coefficient
+/// K_N = 4/(3 pi k') [ (k'^2/k^2)(K(k) - E(k)) + E(k) - k ], k = 2a/sqrt(4a^2 + l^2)
+/// (H. Nagaoka, J. Coll. Sci. Imp. Univ. Tokyo 27, 1909; F. W. Grover,
+/// Inductance Calculations, 1946).
+pub fn nagaoka_inductance(a: f64, l: f64, n: f64) -> f64 {
+    let k = 2.0 * a / (4.0 * a * a + l * l).sqrt();
+    let kp = (1.0 - k * k).sqrt();
+    let (kk, ee) = elliptic_ke(k);
+    let coefficient = 4.0 / (3.0 * PI * kp) * (kp * kp / (k * k) * (kk - ee) + ee - k);
+    coefficient * MU0 * PI * a * a * n * n / l
+}
+
+/// Inductance per unit length of a coaxial line: solid inner conductor of
+/// radius a, outer conductor b < r < c, uniform current in both:
+/// mu0/(2 pi) [ ln(b/a) + 1/4 + c^4 ln(c/b)/(c^2 - b^2)^2 - (3c^2 - b^2)/(4(c^2 - b^2)) ]
+/// (S. Ramo, J. R. Whinnery, T. Van Duzer, Fields and Waves in Communication
+/// Electronics, 3rd ed., 1994, internal inductance of round conductors).
+pub fn coax_inductance_per_length(a: f64, b: f64, c: f64) -> f64 {
+    let d = c * c - b * b;
+    MU0 / (2.0 * PI)
+        * ((b / a).ln() + 0.25 + c.powi(4) * (c / b).ln() / (d * d)
+            - (3.0 * c * c - b * b) / (4.0 * d))
+}
+
+/// Force per unit length (N/m) along +y on bar 2 from bar 1, both long bars
+/// of width 2w magnetized along +y (remanence br): bar 1 centred at the
+/// origin with height 2h1, bar 2 centred at (0, y2) with height 2h2. Charge
+/// model: F = (Br/mu0) integral over x of [B1y(x, top of 2) - B1y(x, bottom of 2)],
+/// integrated here by Gauss-Legendre (Furlani 2001 sec. 4.2 for B1).
+pub fn bar_pair_force_2d(br: f64, w: f64, h1: f64, h2: f64, y2: f64) -> f64 {
+    let (g, wt) = gauss_legendre_8();
+    let n = 400;
+    let mut f = 0.0;
+    for i in 0..n {
+        for k in 0..8 {
+            let x = -w + 2.0 * w * (i as f64 + 0.5 * (g[k] + 1.0)) / n as f64;
+            let dx = 2.0 * w / n as f64 * 0.5 * wt[k];
+            let top = bar_field_2d(br, w, h1, x, y2 + h2)[1];
+            let bottom = bar_field_2d(br, w, h1, x, y2 - h2)[1];
+            f += br / MU0 * (top - bottom) * dx;
+        }
+    }
+    f
+}

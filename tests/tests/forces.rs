@@ -1,0 +1,219 @@
+//! Forces, flux linkage, inductance and energy against closed forms.
+
+use mesher::{OuterBoundary, Refinement, Symmetry};
+use solver::force::force_on;
+use validation::reference::*;
+use validation::*;
+
+const BR: f64 = 1.2;
+
+/// Force on the upper of two coaxial magnets (radius a, length l) a gap apart; returns (F on upper, F on lower).
+fn coaxial_pair(a: f64, l: f64, gap: f64, size: f64) -> (f64, f64) {
+    let lower = magnet(rect(0.0, -l, a, 0.0), size, [0.0, BR]);
+    let upper = magnet(rect(0.0, gap, a, gap + l), size, [0.0, BR]);
+    let refine = vec![
+        Refinement::Line {
+            from: [0.0, 0.0],
+            to: [a, 0.0],
+            size: (gap / 3.0).min(size),
+        },
+        Refinement::Line {
+            from: [0.0, gap],
+            to: [a, gap],
+            size: (gap / 3.0).min(size),
+        },
+    ];
+    solve_with(
+        Symmetry::Axisymmetric,
+        vec![lower, upper],
+        refine,
+        OuterBoundary::Open,
+        [0.0; 2],
+        |sol| {
+            (
+                force_on(sol, &[1], [0.0; 2]).vector[1],
+                force_on(sol, &[0], [0.0; 2]).vector[1],
+            )
+        },
+    )
+}
+
+#[test]
+fn coaxial_magnets_attract_as_the_charge_model_says() {
+    // Source: J. Vokoun et al., J. Magn. Magn. Mater. 321 (2009) 3758 (Bessel-integral form of the
+    // charge model), evaluated in tests/src/reference.rs; within 2 % for gaps 0.5 to 20 mm, two sizes.
+    for (a, l) in [(0.005, 0.005), (0.01, 0.004)] {
+        for gap in [0.0005, 0.002, 0.005, 0.02] {
+            let (up, _) = coaxial_pair(a, l, gap, a / 8.0);
+            let exact = coaxial_cylinders_force(BR, BR, a, a, l, l, gap);
+            eprintln!(
+                "a {a} l {l} gap {gap}: fe {up} exact {exact} err {:.3}%",
+                100.0 * rel(-up, exact)
+            );
+            assert!(rel(-up, exact) < 0.02, "a {a}, gap {gap}: {up} vs {exact}");
+        }
+    }
+}
+
+#[test]
+fn forces_on_two_magnets_are_equal_and_opposite() {
+    // Source: Newton's third law (action and reaction); within 1 %.
+    let (up, down) = coaxial_pair(0.005, 0.005, 0.003, 0.0006);
+    assert!(rel(-down, up) < 0.01, "{up} vs {down}");
+}
+
+#[test]
+fn magnet_over_a_permeable_plate_matches_its_image() {
+    // Source: method of images for a highly permeable half space (e.g. Furlani 2001, sec. 3.6):
+    // the force equals that between the magnet and its mirror image at twice the gap; within 3 %.
+    let (a, l, gap, mu) = (0.005, 0.005, 0.002, 1e4);
+    let plate = linear(rect(0.0, -0.03, 0.06, 0.0), 0.004, mu);
+    let m = magnet(rect(0.0, gap, a, gap + l), 0.0006, [0.0, BR]);
+    let refine = vec![Refinement::Line {
+        from: [0.0, 0.0],
+        to: [a, 0.0],
+        size: gap / 3.0,
+    }];
+    let f = solve_with(
+        Symmetry::Axisymmetric,
+        vec![plate, m],
+        refine,
+        OuterBoundary::Open,
+        [0.0; 2],
+        |sol| force_on(sol, &[1], [0.0; 2]).vector[1],
+    );
+    let exact = coaxial_cylinders_force(BR, BR, a, a, l, l, 2.0 * gap);
+    assert!(rel(-f, exact) < 0.03, "{f} vs {exact}");
+}
+
+#[test]
+fn planar_bar_magnets_attract_as_charged_sheets() {
+    // Source: Furlani 2001 sec. 4.2 charged-sheet model, integrated numerically in the test; within 2 %.
+    let (w, h, gap) = (0.005, 0.0025, 0.003);
+    let y2 = 2.0 * h + gap;
+    let lower = magnet(rect(-w, -h, w, h), 0.0005, [0.0, BR]);
+    let upper = magnet(rect(-w, y2 - h, w, y2 + h), 0.0005, [0.0, BR]);
+    let f = solve_with(
+        Symmetry::Planar,
+        vec![lower, upper],
+        vec![],
+        OuterBoundary::Open,
+        [0.0; 2],
+        |sol| force_on(sol, &[1], [0.0; 2]).vector[1],
+    );
+    let exact = bar_pair_force_2d(BR, w, h, h, y2);
+    assert!(rel(f, exact) < 0.02, "{f} vs {exact}");
+}
+
+#[test]
+fn long_solenoid_inductance_and_energy() {
+    // Source: Nagaoka's coefficient (Nagaoka 1909; Grover 1946) for the inductance, within 1 %;
+    // stored energy W = L I^2 / 2 (energy of a linear inductor), within 0.5 %.
+    let (a, t, l, turns, current) = (0.02, 0.0002, 0.2, 500.0, 2.0);
+    let j = turns * current / (t * l);
+    let winding = coil(rect(a - t / 2.0, -l / 2.0, a + t / 2.0, l / 2.0), 0.0001, j);
+    let (lambda, energy) = solve_with(
+        Symmetry::Axisymmetric,
+        vec![winding],
+        vec![],
+        OuterBoundary::Open,
+        [0.0; 2],
+        |sol| {
+            (
+                solver::flux::winding_linkage(sol, &[(0, 1.0)], turns),
+                solver::energy::stored_energy(sol).stored,
+            )
+        },
+    );
+    let inductance = lambda / current;
+    let exact = nagaoka_inductance(a, l, turns);
+    assert!(rel(inductance, exact) < 0.01, "{inductance} vs {exact}");
+    assert!(
+        rel(energy, 0.5 * inductance * current * current) < 0.005,
+        "{energy}"
+    );
+}
+
+#[test]
+fn coaxial_line_inductance_per_length_and_energy() {
+    // Source: Ramo, Whinnery and Van Duzer, Fields and Waves, 3rd ed., 1994 (coax with internal
+    // inductance of both conductors), within 0.5 %; W = L' I^2 / 2 within 0.5 %.
+    let (a, b, c, current) = (0.002, 0.006, 0.007, 10.0);
+    let outer_j = -current / (std::f64::consts::PI * (c * c - b * b));
+    let outer = coil(
+        mesher::Shape::Circle {
+            center: [0.0, 0.0],
+            radius: c,
+        },
+        0.0003,
+        outer_j,
+    );
+    let gap = linear(
+        mesher::Shape::Circle {
+            center: [0.0, 0.0],
+            radius: b,
+        },
+        0.0004,
+        1.0,
+    );
+    // Later parts cover earlier ones: outer disk, then the gap, then the inner conductor.
+    let inner = coil(
+        mesher::Shape::Circle {
+            center: [0.0, 0.0],
+            radius: a,
+        },
+        0.0003,
+        current / (std::f64::consts::PI * a * a),
+    );
+    let (lambda, energy) = solve_with(
+        Symmetry::Planar,
+        vec![outer, gap, inner],
+        vec![],
+        OuterBoundary::Open,
+        [0.0; 2],
+        |sol| {
+            (
+                solver::flux::winding_linkage(sol, &[(2, 1.0), (0, -1.0)], 1.0),
+                solver::energy::stored_energy(sol).stored,
+            )
+        },
+    );
+    let inductance = lambda / current;
+    let exact = coax_inductance_per_length(a, b, c);
+    assert!(rel(inductance, exact) < 0.005, "{inductance} vs {exact}");
+    assert!(
+        rel(energy, 0.5 * inductance * current * current) < 0.005,
+        "{energy}"
+    );
+}
+
+const PLATE_CASE: &str = r#"
+[study]
+geometry = "axisymmetric"
+unit = "mm"
+[[part]]
+name = "magnet"
+material = "N42"
+magnetization = "+z"
+rect = { from = [0, 0], to = [10, 8] }
+[[part]]
+name = "plate"
+material = "low-carbon-steel"
+rect = { from = [0, 9], to = [30, 14] }
+[[force]]
+name = "pull"
+parts = ["plate"]
+"#;
+
+#[test]
+fn plate_force_is_mesh_independent() {
+    // Source: discretization convergence: halving every element size changes the force on a plate
+    // 1 mm from a magnet by less than 1 % (the Maxwell stress band method, Coulomb 1983).
+    let coarse = solve_case_text(PLATE_CASE, &[]).values["force.pull.z"];
+    let fine_case = PLATE_CASE.replace("[study]", "[mesh]\nsize = 0.75\n[study]");
+    let fine = solve_case_text(&fine_case, &[]).values["force.pull.z"];
+    assert!(
+        rel(fine, coarse) < 0.01,
+        "default {coarse} N, twice as fine {fine} N"
+    );
+}
