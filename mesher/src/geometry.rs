@@ -165,14 +165,14 @@ fn validate_polygon(part: usize, poly: &[[f64; 2]], symmetry: Symmetry) -> Resul
             return Err(MeshError::RepeatedPoint { part, index: j });
         }
     }
+    if let Some(edges) = first_self_intersection(poly) {
+        return Err(MeshError::SelfIntersection { part, edges });
+    }
     if signed_area(poly).abs() <= 1e-12 * extent * extent {
         return Err(MeshError::ZeroArea { part });
     }
     if symmetry == Symmetry::Axisymmetric && poly.iter().any(|p| p[0] < 0.0) {
         return Err(MeshError::AcrossAxis { part });
-    }
-    if let Some(edges) = first_self_intersection(poly) {
-        return Err(MeshError::SelfIntersection { part, edges });
     }
     Ok(())
 }
