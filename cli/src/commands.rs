@@ -135,7 +135,7 @@ fn solve_inner(
             }
         }
     }
-    let rows = sweep::rows_from_folders(&[out.clone()])
+    let rows = sweep::rows_from_folders(std::slice::from_ref(&out))
         .map_err(|e| Failure::Input(format!("error: {e}\n")))?;
     let table = sweep::table(&rows);
     output::write_all(&out, &vec![("sweep.csv".into(), table.into_bytes())])

@@ -175,6 +175,7 @@ pub fn barycentric(x: &[[f64; 2]; 3], p: [f64; 2]) -> [f64; 3] {
 }
 
 /// B at a point from the element's nodal potentials.
+#[allow(clippy::needless_range_loop)]
 pub fn flux_density(op: &PointOp, a: &[f64; MAX_NODES], background: [f64; 2]) -> [f64; 2] {
     let mut b = background;
     for i in 0..op.len {
@@ -203,7 +204,7 @@ pub struct ElementLoad<'a> {
 pub type LocalSystem = ([[f64; MAX_NODES]; MAX_NODES], [f64; MAX_NODES]);
 
 /// Element residual r_i = sum w (G^T (H - nu0 B_bg) - N_i J) and tangent K = sum w G^T dH/dB G.
-#[allow(non_snake_case)]
+#[allow(non_snake_case, clippy::needless_range_loop)]
 pub fn element_system(
     x: &[[f64; 2]; 3],
     a: &[f64; MAX_NODES],

@@ -82,7 +82,7 @@ impl Locator {
     pub fn containing(&self, els: &Elements, p: [f64; 2]) -> Vec<(usize, [f64; 3])> {
         let fx = (p[0] - self.origin[0]) / self.cell;
         let fy = (p[1] - self.origin[1]) / self.cell;
-        if !(fx >= -1e-9 && fy >= -1e-9) || !fx.is_finite() || !fy.is_finite() {
+        if !fx.is_finite() || !fy.is_finite() || fx < -1e-9 || fy < -1e-9 {
             return Vec::new();
         }
         let (ix, iy) = ((fx.max(0.0)) as usize, (fy.max(0.0)) as usize);

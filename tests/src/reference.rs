@@ -197,37 +197,6 @@ pub fn cylinder_field_by_quadrature(br: f64, a: f64, b: f64, rho: f64, z: f64) -
     out
 }
 
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn elliptic_form_agrees_with_direct_quadrature() {
-        for (rho, z) in [(0.3, 1.2), (1.5, 0.2), (2.0, 2.0), (0.0, 1.5)] {
-            let e = cylinder_field(1.0, 1.0, 0.5, rho, z);
-            let q = cylinder_field_by_quadrature(1.0, 1.0, 0.5, rho, z);
-            assert!(
-                (e[0] - q[0]).abs() < 1e-6 && (e[1] - q[1]).abs() < 1e-6,
-                "{rho} {z}: {e:?} vs {q:?}"
-            );
-        }
-    }
-
-    #[test]
-    fn axis_forms_agree() {
-        let z = 1.3;
-        let e = cylinder_field(1.0, 1.0, 0.5, 0.0, z);
-        assert!((e[1] - cylinder_axis_bz(1.0, 1.0, 1.0, z + 0.5)).abs() < 1e-12);
-    }
-
-    #[test]
-    fn bessel_j1_matches_tables() {
-        // Abramowitz and Stegun, table 9.1: J1(1) = 0.4400505857, J1(5) = -0.3275791376.
-        assert!((bessel_j1(1.0) - 0.440_050_585_7).abs() < 1e-9);
-        assert!((bessel_j1(5.0) + 0.327_579_137_6).abs() < 1e-9);
-    }
-}
-
 /// Complete elliptic integrals K(k) and E(k) from Bulirsch's cel
 /// (K = cel(k', 1, 1, 1), E = cel(k', 1, 1, k'^2)).
 pub fn elliptic_ke(k: f64) -> (f64, f64) {
@@ -279,4 +248,35 @@ pub fn bar_pair_force_2d(br: f64, w: f64, h1: f64, h2: f64, y2: f64) -> f64 {
         }
     }
     f
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn elliptic_form_agrees_with_direct_quadrature() {
+        for (rho, z) in [(0.3, 1.2), (1.5, 0.2), (2.0, 2.0), (0.0, 1.5)] {
+            let e = cylinder_field(1.0, 1.0, 0.5, rho, z);
+            let q = cylinder_field_by_quadrature(1.0, 1.0, 0.5, rho, z);
+            assert!(
+                (e[0] - q[0]).abs() < 1e-6 && (e[1] - q[1]).abs() < 1e-6,
+                "{rho} {z}: {e:?} vs {q:?}"
+            );
+        }
+    }
+
+    #[test]
+    fn axis_forms_agree() {
+        let z = 1.3;
+        let e = cylinder_field(1.0, 1.0, 0.5, 0.0, z);
+        assert!((e[1] - cylinder_axis_bz(1.0, 1.0, 1.0, z + 0.5)).abs() < 1e-12);
+    }
+
+    #[test]
+    fn bessel_j1_matches_tables() {
+        // Abramowitz and Stegun, table 9.1: J1(1) = 0.4400505857, J1(5) = -0.3275791376.
+        assert!((bessel_j1(1.0) - 0.440_050_585_7).abs() < 1e-9);
+        assert!((bessel_j1(5.0) + 0.327_579_137_6).abs() < 1e-9);
+    }
 }

@@ -613,8 +613,11 @@ fn check_curve(
     })
 }
 
+/// Curve points and the file line of each.
+type CsvCurve = (Vec<[f64; 2]>, Vec<usize>);
+
 /// Two columns H (A/m), B (T); a header line and # comments are skipped.
-fn parse_bh_csv(text: &str) -> Result<(Vec<[f64; 2]>, Vec<usize>), (usize, String)> {
+fn parse_bh_csv(text: &str) -> Result<CsvCurve, (usize, String)> {
     let mut pts = Vec::new();
     let mut lines = Vec::new();
     let mut header_allowed = true;
