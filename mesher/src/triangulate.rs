@@ -97,8 +97,17 @@ pub fn mesh_domain(
 }
 
 impl Work<'_> {
+    /// Size at a point: the graded field of every source, and the size of
+    /// every part whose outline holds the point (so that an edge between
+    /// two parts is split for the finer of the two).
     fn size_at(&self, p: [f64; 2]) -> f64 {
-        size_field::size_at(p, &self.sources, self.grading, self.max_size)
+        let graded = size_field::size_at(p, &self.sources, self.grading, self.max_size);
+        self.polygons
+            .iter()
+            .zip(&self.part_sizes)
+            .filter(|(poly, _)| point_in_polygon(poly, p))
+            .map(|(_, &h)| h)
+            .fold(graded, f64::min)
     }
 
     /// Size wanted by the probes alone (few sources, so brute force is cheap).

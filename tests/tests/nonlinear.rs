@@ -1,0 +1,203 @@
+//! Saturating steel: exact nonlinear solutions, Newton behaviour, saturation.
+
+use mesher::{OuterBoundary, Refinement, Shape, Symmetry};
+use solver::{BhCurve, Law};
+use std::sync::Arc;
+use validation::reference::{gauss_legendre_8, MU0};
+use validation::*;
+
+/// An analytic saturating law, B(H) = mu0 H + (2 Js / pi) atan(pi (mu_r - 1) mu0 H / (2 Js)):
+/// initial relative permeability mu_r, polarization saturating at Js (a smooth test law, not a
+/// material; in the arctangent family used e.g. by J. Fischer and H. Moser, 1956).
+fn analytic_b(h: f64) -> f64 {
+    let (js, mur) = (1.8, 2000.0);
+    MU0 * h
+        + 2.0 * js / std::f64::consts::PI
+            * (std::f64::consts::PI * (mur - 1.0) * MU0 * h / (2.0 * js)).atan()
+}
+
+fn analytic_table() -> Vec<[f64; 2]> {
+    let mut pts = vec![[0.0, 0.0]];
+    for k in 0..400 {
+        let h = 1e-1 * 10f64.powf(k as f64 * 7.0 / 399.0);
+        pts.push([h, analytic_b(h)]);
+    }
+    pts
+}
+
+#[test]
+fn toroidal_core_flux_matches_amperes_law() {
+    // Source: Ampere's law: around a straight conductor H = N I / (2 pi r) in any axially symmetric
+    // core, so the core flux per unit depth is the integral of B(H(r)) dr, whatever the material.
+    let (rc, r1, r2) = (0.003, 0.01, 0.02);
+    let law = Law::Saturating(Arc::new(BhCurve::new(&analytic_table()).unwrap()));
+    for ni in [1.0, 3.0, 10.0, 30.0, 100.0, 300.0, 1000.0, 3000.0, 10000.0] {
+        let core = TestPart {
+            shape: Shape::Circle {
+                center: [0.0, 0.0],
+                radius: r2,
+            },
+            size: 0.0008,
+            law: law.clone(),
+            current_density: 0.0,
+        };
+        let hole = linear(
+            Shape::Circle {
+                center: [0.0, 0.0],
+                radius: r1,
+            },
+            0.0015,
+            1.0,
+        );
+        let wire = coil(
+            Shape::Circle {
+                center: [0.0, 0.0],
+                radius: rc,
+            },
+            0.001,
+            ni / (std::f64::consts::PI * rc * rc),
+        );
+        let fe = solve_with(
+            Symmetry::Planar,
+            vec![core, hole, wire],
+            vec![],
+            OuterBoundary::Open,
+            [0.0; 2],
+            |sol| {
+                // The wire's polygon area differs from pi rc^2 by the chord error: scale to the meshed current.
+                let meshed = sol.problem.mesh.part_areas(3)[2] * sol.problem.current_density[2];
+                (
+                    solver::flux::line_flux(sol, [r1, 0.0], [r2, 0.0])
+                        .unwrap()
+                        .abs(),
+                    meshed,
+                )
+            },
+        );
+        let (g, w) = gauss_legendre_8();
+        let n = 200;
+        let exact: f64 = (0..n)
+            .flat_map(|i| (0..8).map(move |k| (i, k)))
+            .map(|(i, k)| {
+                let dr = (r2 - r1) / n as f64;
+                let r = r1 + dr * (i as f64 + 0.5 * (g[k] + 1.0));
+                0.5 * dr * w[k] * analytic_b(fe.1 / (2.0 * std::f64::consts::PI * r))
+            })
+            .sum();
+        assert!(
+            rel(fe.0, exact) < 0.003,
+            "NI {ni}: flux {} vs {exact}",
+            fe.0
+        );
+    }
+}
+
+#[test]
+fn straight_line_table_equals_the_linear_material() {
+    // Source: identity: a B-H table on a straight line through the origin is the linear law.
+    let mu = 500.0;
+    let table: Vec<[f64; 2]> = (0..20)
+        .map(|k| [k as f64 * 1000.0, k as f64 * 1000.0 * mu * MU0])
+        .collect();
+    let run = |law: Law| {
+        let steel = TestPart {
+            shape: rect(0.0, 0.012, 0.02, 0.016),
+            size: 0.001,
+            law,
+            current_density: 0.0,
+        };
+        solve_with(
+            Symmetry::Axisymmetric,
+            vec![
+                magnet(rect(0.0, 0.0, 0.006, 0.01), 0.001, [0.0, 1.2]),
+                steel,
+            ],
+            vec![],
+            OuterBoundary::Open,
+            [0.0; 2],
+            |sol| sol.field_at([0.003, 0.014]).unwrap().b,
+        )
+    };
+    let a = run(Law::Linear {
+        relative_permeability: mu,
+    });
+    let b = run(Law::Saturating(Arc::new(BhCurve::new(&table).unwrap())));
+    assert!(
+        (a[0] - b[0]).abs().max((a[1] - b[1]).abs()) <= 1e-9 * a[1].abs(),
+        "{a:?} vs {b:?}"
+    );
+}
+
+const POT: &str = include_str!("../../cases/pot-magnet.toml");
+
+#[test]
+fn newton_converges_quadratically_on_a_saturating_pot_magnet() {
+    // Source: Newton-Raphson converges quadratically near the solution when the tangent is exact
+    // (e.g. J. Nocedal, S. Wright, Numerical Optimization, 2nd ed., 2006, thm. 3.5).
+    let r = solve_case_text(POT, &[]);
+    let h = &r.solve.residual_history;
+    assert!(r.solve.converged, "{h:?}");
+    // Quadratic: r_{k+1} = C r_k^2 with C steady over the last three residuals above the
+    // rounding floor (linear convergence would make C grow like 1/r).
+    let tail: Vec<f64> = h.iter().copied().filter(|&r| r > 1e-11).collect();
+    let n = tail.len();
+    let c1 = tail[n - 2] / (tail[n - 3] * tail[n - 3]);
+    let c2 = tail[n - 1] / (tail[n - 2] * tail[n - 2]);
+    assert!(
+        c2 <= 10.0 * c1,
+        "not quadratic: C {c1:.3e} then {c2:.3e} in {h:?}"
+    );
+    assert!(
+        r.parts["cup"].saturated == Some(true),
+        "the case is meant to saturate the cup"
+    );
+}
+
+/// Flux density in the gap of a C-shaped yoke (planar) driven by `ni` ampere-turns.
+fn c_yoke_gap_field(ni: f64) -> f64 {
+    let steel = || Law::Saturating(Arc::new(BhCurve::new(&analytic_table()).unwrap()));
+    // Outer square 60 x 60 mm with a 20 x 20 window is the yoke; a 1 mm gap cuts the right leg.
+    let yoke = TestPart {
+        shape: rect(-0.03, -0.03, 0.03, 0.03),
+        size: 0.003,
+        law: steel(),
+        current_density: 0.0,
+    };
+    let window = linear(rect(-0.01, -0.01, 0.01, 0.01), 0.003, 1.0);
+    let gap = linear(rect(0.01, -0.0005, 0.03, 0.0005), 0.0005, 1.0);
+    let (t, a) = (0.004, 0.004 * 0.012);
+    let go = coil(rect(-0.01, -0.006, -0.01 + t, 0.006), 0.001, ni / a);
+    let back = coil(rect(-0.03 - t, -0.006, -0.03, 0.006), 0.001, -ni / a);
+    solve_with(
+        Symmetry::Planar,
+        vec![yoke, window, gap, go, back],
+        vec![Refinement::Point {
+            at: [0.02, 0.0],
+            size: 0.0005,
+        }],
+        OuterBoundary::Open,
+        [0.0; 2],
+        |sol| sol.field_at([0.02, 0.0]).unwrap().b[1].abs(),
+    )
+}
+
+#[test]
+fn c_yoke_gap_field_follows_the_circuit_then_saturates() {
+    // Source: magnetic-circuit estimate B_gap = mu0 N I / (g + l_iron / mu_r) when the gap is much
+    // smaller than the pole width (e.g. Furlani 2001, sec. 3.2), within 5 % in the linear range;
+    // in saturation the gap field grows far more slowly than N I.
+    let (g, l_iron, mur) = (0.001, 0.16 - 0.001, 2000.0);
+    let ni = 100.0;
+    let circuit = MU0 * ni / (g + l_iron / mur);
+    let fe = c_yoke_gap_field(ni);
+    assert!(
+        rel(fe, circuit) < 0.05,
+        "linear range: {fe} T vs circuit {circuit} T"
+    );
+    let (b1, b2) = (c_yoke_gap_field(20000.0), c_yoke_gap_field(40000.0));
+    assert!(
+        b2 / b1 < 1.3,
+        "saturated: doubling N I raised B from {b1} to {b2}"
+    );
+    assert!(b1 > 1.5, "the yoke should be driven past saturation: {b1}");
+}
