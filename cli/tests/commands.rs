@@ -1,0 +1,291 @@
+//! The command line end to end: sweeps, shards and merge, check with JUnit,
+//! results left intact by failed and interrupted runs.
+
+use std::path::{Path, PathBuf};
+use std::process::Command;
+
+fn exe() -> Command {
+    Command::new(env!("CARGO_BIN_EXE_lodestone"))
+}
+
+fn cases() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases")
+}
+
+fn temp(name: &str) -> PathBuf {
+    let d = std::env::temp_dir().join(format!("lodestone-cli-{}-{name}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&d);
+    std::fs::create_dir_all(&d).unwrap();
+    d
+}
+
+fn run(cmd: &mut Command) -> (i32, String) {
+    let out = cmd.output().expect("run");
+    (
+        out.status.code().unwrap_or(-1),
+        format!(
+            "{}{}",
+            String::from_utf8_lossy(&out.stdout),
+            String::from_utf8_lossy(&out.stderr)
+        ),
+    )
+}
+
+fn column(csv: &str, name: &str) -> Vec<f64> {
+    let mut lines = csv.lines();
+    let header: Vec<&str> = lines.next().unwrap().split(',').collect();
+    let k = header
+        .iter()
+        .position(|h| h.starts_with(name))
+        .unwrap_or_else(|| panic!("no column {name} in {header:?}"));
+    lines
+        .map(|l| l.split(',').nth(k).unwrap().parse().unwrap())
+        .collect()
+}
+
+#[test]
+fn gap_sweep_falls_monotonically_and_shards_merge_to_the_same_table() {
+    let case = cases().join("holding-magnet-gap-sweep.toml");
+    let dir = temp("sweep");
+    let full = dir.join("full");
+    let (code, text) = run(exe().args([
+        "solve",
+        "--quiet",
+        case.to_str().unwrap(),
+        "-o",
+        full.to_str().unwrap(),
+        "--set",
+        "plate=4",
+    ]));
+    assert_eq!(code, 0, "{text}");
+    let table = std::fs::read_to_string(full.join("sweep.csv")).unwrap();
+    assert_eq!(table.lines().count(), 1 + 5, "{table}");
+    let pull = column(&table, "force.pull.z");
+    let gaps = column(&table, "gap");
+    assert!(gaps.windows(2).all(|g| g[1] > g[0]));
+    // Attraction (negative z) weakens as the gap grows.
+    assert!(
+        pull.windows(2).all(|p| p[1] > p[0]),
+        "pull does not fall with the gap: {pull:?}"
+    );
+    let header = table.lines().next().unwrap();
+    assert!(
+        header.contains("force.pull.z [N]") && header.contains("part.plate.b.max [T]"),
+        "{header}"
+    );
+    let mut shards = Vec::new();
+    for k in 0..3 {
+        let out = dir.join(format!("shard-{k}"));
+        let (code, text) = run(exe().args([
+            "solve",
+            "--quiet",
+            case.to_str().unwrap(),
+            "-o",
+            out.to_str().unwrap(),
+            "--set",
+            "plate=4",
+            "--shard",
+            &format!("{k}/3"),
+        ]));
+        assert_eq!(code, 0, "{text}");
+        shards.push(out);
+    }
+    let merged = dir.join("merged");
+    let mut cmd = exe();
+    cmd.arg("merge");
+    for s in &shards {
+        cmd.arg(s);
+    }
+    let (code, text) = run(cmd.args(["-o", merged.to_str().unwrap()]));
+    assert_eq!(code, 0, "{text}");
+    assert_eq!(
+        std::fs::read_to_string(merged.join("sweep.csv")).unwrap(),
+        table
+    );
+    // A rerun skips whole variants.
+    let (code, text) = run(exe().args([
+        "solve",
+        case.to_str().unwrap(),
+        "-o",
+        full.to_str().unwrap(),
+        "--set",
+        "plate=4",
+    ]));
+    assert_eq!(code, 0);
+    assert!(
+        text.contains("0 variants solved (5 already whole)"),
+        "{text}"
+    );
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+const CHECKED: &str = r#"
+[study]
+geometry = "axisymmetric"
+unit = "mm"
+[[part]]
+name = "magnet"
+material = "N42"
+magnetization = "+z"
+rect = { from = [0, 0], to = [5, 5] }
+[[probe]]
+name = "above"
+point = [0, 10]
+[[expect]]
+value = "probe.above.bz"
+min = "BOUND"
+[[expect]]
+value = "probe.above.b"
+max = "1 T"
+"#;
+
+#[test]
+fn check_passes_fails_and_writes_junit() {
+    let dir = temp("check");
+    let case = dir.join("case.toml");
+    std::fs::write(&case, CHECKED.replace("BOUND", "1 mT")).unwrap();
+    let junit = dir.join("report.xml");
+    let (code, text) = run(exe().args([
+        "check",
+        "--quiet",
+        case.to_str().unwrap(),
+        "--junit",
+        junit.to_str().unwrap(),
+    ]));
+    assert_eq!(code, 0, "{text}");
+    assert!(std::fs::read_to_string(&junit)
+        .unwrap()
+        .contains("tests=\"2\" failures=\"0\""));
+    std::fs::write(&case, CHECKED.replace("BOUND", "10 T")).unwrap();
+    let (code, text) = run(exe().args([
+        "check",
+        "--quiet",
+        case.to_str().unwrap(),
+        "--junit",
+        junit.to_str().unwrap(),
+    ]));
+    assert_eq!(code, 1, "{text}");
+    assert!(text.contains("FAIL"), "{text}");
+    let xml = std::fs::read_to_string(&junit).unwrap();
+    assert!(
+        xml.starts_with("<?xml")
+            && xml.contains("tests=\"2\" failures=\"1\"")
+            && xml.matches("<failure").count() == 1,
+        "{xml}"
+    );
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
+fn a_failed_run_leaves_earlier_results_intact() {
+    let dir = temp("intact");
+    let case = dir.join("case.toml");
+    std::fs::write(&case, CHECKED.replace("BOUND", "1 mT")).unwrap();
+    let out = dir.join("out");
+    let (code, _) = run(exe().args([
+        "solve",
+        "--quiet",
+        case.to_str().unwrap(),
+        "-o",
+        out.to_str().unwrap(),
+    ]));
+    assert_eq!(code, 0);
+    let before = std::fs::read(out.join("results.json")).unwrap();
+    std::fs::write(&case, CHECKED.replace("BOUND", "1 mT").replace("N42", "N4")).unwrap();
+    let (code, _) = run(exe().args([
+        "solve",
+        "--quiet",
+        case.to_str().unwrap(),
+        "-o",
+        out.to_str().unwrap(),
+    ]));
+    assert_eq!(code, 2);
+    assert_eq!(std::fs::read(out.join("results.json")).unwrap(), before);
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
+fn an_interrupted_solve_leaves_earlier_results_byte_identical() {
+    let dir = temp("sigint");
+    let case = dir.join("case.toml");
+    std::fs::write(&case, CHECKED.replace("BOUND", "1 mT")).unwrap();
+    let out = dir.join("out");
+    let (code, _) = run(exe().args([
+        "solve",
+        "--quiet",
+        case.to_str().unwrap(),
+        "-o",
+        out.to_str().unwrap(),
+    ]));
+    assert_eq!(code, 0);
+    let before = std::fs::read(out.join("results.json")).unwrap();
+    // A much finer mesh makes the solve long enough to interrupt midway.
+    std::fs::write(
+        &case,
+        CHECKED.replace("BOUND", "1 mT").replace(
+            "[study]",
+            "[mesh]\nsize = 0.05\nmax_elements = 5000000\n[study]",
+        ),
+    )
+    .unwrap();
+    let mut child = exe()
+        .args([
+            "solve",
+            "--quiet",
+            case.to_str().unwrap(),
+            "-o",
+            out.to_str().unwrap(),
+        ])
+        .spawn()
+        .unwrap();
+    std::thread::sleep(std::time::Duration::from_millis(1500));
+    let _ = Command::new("kill")
+        .args(["-INT", &child.id().to_string()])
+        .status();
+    let status = child.wait().unwrap();
+    assert!(
+        status.code().is_none(),
+        "the solve was not interrupted midway: {status:?}"
+    );
+    assert_eq!(std::fs::read(out.join("results.json")).unwrap(), before);
+    let leftovers: Vec<_> = std::fs::read_dir(&out)
+        .unwrap()
+        .flatten()
+        .filter(|e| e.file_name().to_string_lossy().contains("tmp"))
+        .collect();
+    assert!(leftovers.is_empty(), "partial files left: {leftovers:?}");
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
+fn materials_lists_and_shows_entries() {
+    let (code, text) = run(exe().args(["materials"]));
+    assert_eq!(code, 0);
+    assert!(
+        text.contains("N42SH")
+            && text.contains("low-carbon-steel")
+            && text.contains("YXG28H")
+            && text.contains("Y30BH"),
+        "{text}"
+    );
+    let (code, text) = run(exe().args(["materials", "N42SH"]));
+    assert_eq!(code, 0);
+    assert!(
+        text.contains("HcJ 1592 kA/m") && text.contains("source:"),
+        "{text}"
+    );
+    let dir = temp("mat");
+    let svg = dir.join("curve.svg");
+    let (code, _) = run(exe().args([
+        "materials",
+        "low-carbon-steel",
+        "--plot",
+        svg.to_str().unwrap(),
+    ]));
+    assert_eq!(code, 0);
+    assert!(std::fs::read_to_string(&svg).unwrap().contains("<svg"));
+    let (code, text) = run(exe().args(["materials", "N42XH"]));
+    assert_eq!(code, 2);
+    assert!(text.contains("did you mean"), "{text}");
+    let _ = std::fs::remove_dir_all(&dir);
+}
