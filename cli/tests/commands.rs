@@ -224,7 +224,7 @@ fn an_interrupted_solve_leaves_earlier_results_byte_identical() {
         &case,
         CHECKED.replace("BOUND", "1 mT").replace(
             "[study]",
-            "[mesh]\nsize = 0.05\nmax_elements = 5000000\n[study]",
+            "[mesh]\nsize = 0.02\nmax_elements = 5000000\n[study]",
         ),
     )
     .unwrap();
@@ -238,7 +238,7 @@ fn an_interrupted_solve_leaves_earlier_results_byte_identical() {
         ])
         .spawn()
         .unwrap();
-    std::thread::sleep(std::time::Duration::from_millis(1500));
+    std::thread::sleep(std::time::Duration::from_millis(1000));
     let _ = Command::new("kill")
         .args(["-INT", &child.id().to_string()])
         .status();
