@@ -2,6 +2,7 @@
 //! solver, writes results. The only crate that touches files and the terminal.
 
 pub mod case;
+pub mod checks;
 pub mod commands;
 pub mod junit;
 pub mod library_text;

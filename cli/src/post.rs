@@ -23,7 +23,10 @@ pub struct Results {
     pub flux: BTreeMap<String, FluxResult>,
     pub energy: EnergyResult,
     pub parts: BTreeMap<String, PartResult>,
+    pub magnets: BTreeMap<String, MagnetResult>,
+    pub stray: StrayResult,
     pub expect: Vec<ExpectResult>,
+    pub warnings: Vec<String>,
     /// Every scalar by its `[[expect]]` name, SI units.
     pub values: BTreeMap<String, f64>,
     pub cautions: Vec<&'static str>,
@@ -103,8 +106,50 @@ pub struct PartResult {
     pub b_mean: f64,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub knee_t: Option<f64>,
+    /// Volume share above the knee.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub saturated_share: Option<f64>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub saturated: Option<bool>,
+}
+
+/// Volume share above the knee from which a steel part counts as saturated.
+pub const SATURATED_SHARE: f64 = 0.05;
+
+#[derive(Serialize, Clone, Debug)]
+pub struct MagnetResult {
+    pub grade: String,
+    pub temperature_c: f64,
+    pub br_t: f64,
+    pub hcj_a_per_m: f64,
+    /// Field strength of the knee along the magnetization (negative), A/m.
+    pub knee_h_a_per_m: f64,
+    pub margin: f64,
+    pub share_past_knee: f64,
+    pub permeance: f64,
+    pub mean_b_t: f64,
+    pub mean_h_a_per_m: f64,
+    /// Temperature at which the worst point reaches the knee (linear model estimate).
+    pub knee_onset_c: Option<f64>,
+    #[serde(skip)]
+    pub points: Vec<[f64; 2]>,
+}
+
+#[derive(Serialize, Clone, Debug, Default)]
+pub struct StrayResult {
+    /// Dipole moment of the assembly (axisymmetric), A m2.
+    pub moment_a_m2: Option<f64>,
+    /// Distances from the assembly's centre where |B| falls to 0.5 mT, m.
+    pub implant_distance_axis_m: Option<f64>,
+    pub implant_distance_plane_m: Option<f64>,
+    /// Distance along the axis where |B| falls to the reach level, m.
+    pub reach_axis_m: Option<f64>,
+    pub reach_level_t: f64,
+    /// |H| at 2.1 m and 4.6 m (the larger of axis and mid-plane), A/m.
+    pub h_at_2100mm_a_per_m: Option<f64>,
+    pub h_at_4600mm_a_per_m: Option<f64>,
+    /// Air-transport screen against the magnetized-material thresholds.
+    pub air_transport: Option<String>,
 }
 
 #[derive(Serialize, Clone, Debug)]
@@ -143,6 +188,20 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
     values.insert("energy".into(), energy.stored_j);
     values.insert("coenergy".into(), energy.coenergy_j);
     let parts = part_results(model, sol, &mut values);
+    let mut warnings = Vec::new();
+    let magnets = crate::checks::magnet_results(model, sol, &mut values, &mut warnings);
+    let stray = crate::checks::stray_results(model, sol, &mut values);
+    for (name, f) in &forces {
+        if f.contact {
+            warnings.push(format!("force '{name}': the parts touch other material, so the stress band cuts through it and the force is not reliable; leave an air gap"));
+        }
+    }
+    for (name, p) in &parts {
+        if p.saturated == Some(true) {
+            warnings.push(format!("part '{name}' ({}): {:.0} % of it runs above the knee of its B-H curve ({:.2} T): it saturates", p.material, 100.0 * p.saturated_share.unwrap_or(0.0), p.knee_t.unwrap_or(0.0)));
+        }
+    }
+    values.retain(|_, v| v.is_finite());
     let r = &sol.report;
     Results {
         format: "lodestone-results/1",
@@ -173,6 +232,9 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
             seconds,
         },
         expect: evaluate(model, &values),
+        magnets,
+        stray,
+        warnings,
         probes,
         forces,
         flux,
@@ -333,6 +395,15 @@ fn part_results(
     let mut max = vec![0.0f64; n];
     let mut sum = vec![0.0; n];
     let mut vol = vec![0.0; n];
+    let mut above = vec![0.0; n];
+    let knees: Vec<Option<f64>> = model
+        .parts
+        .iter()
+        .map(|p| match &p.material.material {
+            Material::Soft { curve } => solver::BhCurve::new(curve).ok().map(|c| c.knee_b()),
+            _ => None,
+        })
+        .collect();
     let els = &sol.elements;
     for e in 0..els.n_physical {
         let ElementKind::Part(i) = els.kinds[e] else {
@@ -353,18 +424,25 @@ fn part_results(
                 max[i] = max[i].max(bm);
                 sum[i] += bm * op.weight;
                 vol[i] += op.weight;
+                if knees[i].is_some_and(|k| bm > k) {
+                    above[i] += op.weight;
+                }
             },
         );
     }
     let mut out = BTreeMap::new();
     for (i, p) in model.parts.iter().enumerate() {
         let mean = if vol[i] > 0.0 { sum[i] / vol[i] } else { 0.0 };
-        let knee = match &p.material.material {
-            Material::Soft { curve } => solver::BhCurve::new(curve).ok().map(|c| c.knee_b()),
-            _ => None,
-        };
+        let knee = knees[i];
+        let share = if vol[i] > 0.0 { above[i] / vol[i] } else { 0.0 };
         values.insert(format!("part.{}.b.max", p.name), max[i]);
         values.insert(format!("part.{}.b.mean", p.name), mean);
+        if knee.is_some() {
+            values.insert(format!("part.{}.saturated_share", p.name), share);
+        }
+        // Saturated when more than SATURATED_SHARE of the part runs above its knee
+        // (the peak alone sits at a corner, where the field is singular).
+        let saturated = knee.map(|_| share > SATURATED_SHARE);
         out.insert(
             p.name.clone(),
             PartResult {
@@ -372,7 +450,8 @@ fn part_results(
                 b_max: max[i],
                 b_mean: mean,
                 knee_t: knee,
-                saturated: knee.map(|k| max[i] > k),
+                saturated_share: knee.map(|_| share),
+                saturated,
             },
         );
     }

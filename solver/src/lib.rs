@@ -38,11 +38,13 @@ pub mod flux;
 pub mod force;
 pub mod linear_system;
 mod locate;
+pub mod magnet_check;
 pub mod material;
 pub mod newton;
 pub mod problem;
 pub mod quadrature;
 pub mod solution;
+pub mod stray;
 
 pub use bh_curve::{BhCurve, CurveError};
 pub use material::Law;

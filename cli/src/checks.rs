@@ -1,0 +1,169 @@
+//! Design checks: magnet working points against the knee at the study
+//! temperature, and the stray field (dipole moment, implant and reach
+//! distances, air-transport screen).
+
+use crate::case::Model;
+use crate::materials::Material;
+use crate::post::{MagnetResult, StrayResult};
+use mesher::Symmetry;
+use solver::{magnet_check, stray, Solution};
+use std::collections::BTreeMap;
+
+/// The knee of a square-loop magnet lies where H reaches this fraction of
+/// -HcJ (common practice for sintered rare-earth and ferrite grades, from
+/// memory; the grade's full second-quadrant curve is not in the library).
+pub const KNEE_FRACTION: f64 = 0.9;
+
+/// 0.5 mT: implanted medical devices are generally not affected below it (ICNIRP 2009).
+pub const IMPLANT_LEVEL: f64 = 0.5e-3;
+
+/// Air-transport thresholds (A/m): the current wording of IATA PI 953
+/// (about 0.418 A/m, a 2 degree compass deflection, at 2.1 m and 4.6 m) and
+/// the older, still quoted 0.159 A/m at 2.1 m. Both SECONDARY transcriptions.
+pub const IATA_CURRENT: f64 = 0.418;
+pub const IATA_LEGACY: f64 = 0.159;
+
+pub fn magnet_results(
+    model: &Model,
+    sol: &Solution,
+    values: &mut BTreeMap<String, f64>,
+    warnings: &mut Vec<String>,
+) -> BTreeMap<String, MagnetResult> {
+    let mut out = BTreeMap::new();
+    for (i, p) in model.parts.iter().enumerate() {
+        let Material::Magnet(g) = &p.material.material else {
+            continue;
+        };
+        let dir = p.magnetization.unwrap_or([0.0, 1.0]);
+        let t = model.temperature;
+        let hcj = g.hcj_at(t);
+        let knee = -KNEE_FRACTION * hcj;
+        let wp = magnet_check::working_point(sol, i, dir, knee);
+        let onset = onset_temperature(
+            wp.worst_h,
+            t,
+            g.br_coeff,
+            g.hcj_coeff,
+            KNEE_FRACTION * g.hcj,
+        );
+        values.insert(format!("magnet.{}.margin", p.name), wp.margin);
+        values.insert(format!("magnet.{}.permeance", p.name), wp.permeance);
+        values.insert(
+            format!("magnet.{}.share_past_knee", p.name),
+            wp.share_past_knee,
+        );
+        if wp.margin < 0.0 {
+            let when = onset.map_or(String::new(), |c| {
+                format!("; by the linear model the knee is first reached near {c:.0} degC")
+            });
+            warnings.push(format!("magnet '{}' ({}) is driven past its knee at {t} degC over {:.1} % of its volume: it will lose magnetization{when}", p.name, p.material.name, 100.0 * wp.share_past_knee));
+        }
+        out.insert(
+            p.name.clone(),
+            MagnetResult {
+                grade: p.material.name.clone(),
+                temperature_c: t,
+                br_t: g.br_at(t),
+                hcj_a_per_m: hcj,
+                knee_h_a_per_m: knee,
+                margin: wp.margin,
+                share_past_knee: wp.share_past_knee,
+                permeance: wp.permeance,
+                mean_b_t: wp.mean_b,
+                mean_h_a_per_m: wp.mean_h,
+                knee_onset_c: onset,
+                points: wp.points,
+            },
+        );
+    }
+    out
+}
+
+/// Temperature at which the worst working point meets the knee, by the
+/// linear model: the demagnetizing field scales with Br(T) and the knee with
+/// HcJ(T), both by their reversible coefficients from 20 degC.
+fn onset_temperature(
+    worst_h: f64,
+    t0: f64,
+    br_coeff: f64,
+    hcj_coeff: f64,
+    knee20: f64,
+) -> Option<f64> {
+    if !(worst_h < 0.0) || !knee20.is_finite() {
+        return None;
+    }
+    let (ab, aj) = (br_coeff / 100.0, hcj_coeff / 100.0);
+    let s = 1.0 + ab * (t0 - 20.0);
+    let denominator = worst_h * ab / s + knee20 * aj;
+    if denominator == 0.0 {
+        return None;
+    }
+    let u = (-knee20 - worst_h / s) / denominator;
+    let t = 20.0 + u;
+    (-100.0..=400.0).contains(&t).then_some(t)
+}
+
+pub fn stray_results(
+    model: &Model,
+    sol: &Solution,
+    values: &mut BTreeMap<String, f64>,
+) -> StrayResult {
+    let mut r = StrayResult {
+        reach_level_t: model.reach_level,
+        ..Default::default()
+    };
+    let Some(disk) = &sol.problem.mesh.exterior else {
+        return r;
+    };
+    let (c, radius) = (disk.center, disk.radius);
+    let limit = 0.98 * radius;
+    let axisym = model.symmetry == Symmetry::Axisymmetric;
+    let power = if axisym { 3.0 } else { 2.0 };
+    let along = |dir: [f64; 2], level: f64| stray::fall_distance(sol, c, dir, limit, level, power);
+    let axis = |level: f64| {
+        [along([0.0, 1.0], level), along([0.0, -1.0], level)]
+            .into_iter()
+            .flatten()
+            .fold(None, |m: Option<f64>, d| Some(m.map_or(d, |x| x.max(d))))
+    };
+    r.reach_axis_m = axis(model.reach_level);
+    if let Some(d) = r.reach_axis_m {
+        values.insert("reach.axis".into(), d);
+    }
+    if !axisym {
+        return r;
+    }
+    r.moment_a_m2 = stray::dipole_moment(sol, c, 0.95 * radius);
+    r.implant_distance_axis_m = axis(IMPLANT_LEVEL);
+    r.implant_distance_plane_m = along([1.0, 0.0], IMPLANT_LEVEL);
+    if let Some(m) = r.moment_a_m2 {
+        values.insert("stray.moment".into(), m);
+        let h21 = stray::dipole_h(m.abs(), 2.1).0;
+        let h46 = stray::dipole_h(m.abs(), 4.6).0;
+        r.h_at_2100mm_a_per_m = Some(h21);
+        r.h_at_4600mm_a_per_m = Some(h46);
+        values.insert("stray.h_at_2100mm".into(), h21);
+        values.insert("stray.h_at_4600mm".into(), h46);
+        r.air_transport = Some(air_screen(h21, h46));
+    }
+    if let Some(d) = r.implant_distance_axis_m {
+        values.insert("stray.implant_distance.axis".into(), d);
+    }
+    if let Some(d) = r.implant_distance_plane_m {
+        values.insert("stray.implant_distance.plane".into(), d);
+    }
+    r
+}
+
+fn air_screen(h21: f64, h46: f64) -> String {
+    let verdict = if h46 > IATA_CURRENT {
+        "above the threshold even at 4.6 m: forbidden by air without prior approval under the current PI 953 wording"
+    } else if h21 > IATA_CURRENT {
+        "above the threshold at 2.1 m but not at 4.6 m: magnetized material (UN 2807) under the current PI 953 wording"
+    } else if h21 > IATA_LEGACY {
+        "below the current 0.418 A/m threshold at 2.1 m but above the older 0.159 A/m screen"
+    } else {
+        "below both the current and the older threshold at 2.1 m"
+    };
+    format!("{verdict}. Screening estimate for one bare assembly from its dipole moment, measured from its centre, not a packaging verdict: shielding, packing and several items change it; follow the current IATA Dangerous Goods Regulations and the carrier.")
+}
