@@ -1,0 +1,115 @@
+//! Design checks: dipole moment and far field, demagnetizing field, knee
+//! margin against temperature.
+
+use validation::reference::{cylinder_demag_factor, MU0};
+use validation::{rel, solve_case_text};
+
+fn bare_cylinder(radius_mm: f64, length_mm: f64, material: &str, extra: &str) -> String {
+    format!(
+        r#"
+[study]
+geometry = "axisymmetric"
+unit = "mm"
+{extra}
+[materials.ideal]
+br = "1.2 T"
+mur = 1.0
+[[part]]
+name = "magnet"
+material = "{material}"
+magnetization = "+z"
+rect = {{ from = [0, 0], to = [{radius_mm}, {length_mm}] }}
+"#
+    )
+}
+
+#[test]
+fn dipole_moment_and_far_field_of_a_bare_cylinder() {
+    // Source: a uniformly magnetized body has moment m = M V = Br V / mu0, and far away the
+    // point-dipole field H = m / (4 pi d^3) (x2 on the axis) (Jackson, 3rd ed., sec. 5.6); within 1 % / 2 %.
+    let (a, l) = (0.01, 0.02);
+    let r = solve_case_text(&bare_cylinder(10.0, 20.0, "ideal", ""), &[]);
+    let m = r.values["stray.moment"];
+    let exact = 1.2 * std::f64::consts::PI * a * a * l / MU0;
+    assert!(rel(m, exact) < 0.01, "{m} vs {exact}");
+    let h21 = r.values["stray.h_at_2100mm"];
+    let dipole = 2.0 * exact / (4.0 * std::f64::consts::PI * 2.1f64.powi(3));
+    assert!(rel(h21, dipole) < 0.02, "{h21} vs {dipole}");
+}
+
+#[test]
+fn mean_demagnetizing_field_matches_the_magnetometric_factor() {
+    // Source: Chen, Brug and Goldfarb, IEEE Trans. Magn. 27(4), 1991 (magnetometric factor of a
+    // cylinder), evaluated in tests/src/reference.rs; within 3 % for L/D from 0.1 to 4.
+    let a: f64 = 0.01;
+    for ratio in [0.1f64, 0.5, 1.0, 2.0, 4.0] {
+        let l = ratio * 2.0 * a;
+        let size = (l / 6.0).min(a / 6.0) * 1e3;
+        let r = solve_case_text(
+            &bare_cylinder(
+                10.0,
+                l * 1e3,
+                "ideal",
+                &format!("[mesh]\nsize = {size}\n[study.x]"),
+            )
+            .replace("[study.x]", ""),
+            &[],
+        );
+        let mean_h = r.magnets["magnet"].mean_h_a_per_m;
+        let n = -mean_h / (1.2 / MU0);
+        let exact = cylinder_demag_factor(a, l);
+        assert!(rel(n, exact) < 0.03, "L/D {ratio}: N {n} vs {exact}");
+    }
+}
+
+fn disk_margin(grade: &str, celsius: f64) -> (f64, bool) {
+    // A thin disk (L/D = 0.2) has a low permeance coefficient and a strong demagnetizing field.
+    let case = bare_cylinder(
+        10.0,
+        4.0,
+        grade,
+        &format!("temperature = \"{celsius} degC\""),
+    );
+    let r = solve_case_text(&case, &[]);
+    let warned = r.warnings.iter().any(|w| w.contains("past its knee"));
+    (r.values["magnet.magnet.margin"], warned)
+}
+
+#[test]
+fn thin_n42_disk_loses_margin_with_temperature_and_sh_keeps_it() {
+    // Source: reversible coefficients of the grade (HcJ falls about 0.75 %/K for N-class NdFeB,
+    // 0.50 %/K for SH; library sources S1, S5, S10): the margin falls as the temperature rises, the
+    // warning appears once the working point passes the knee, and the SH class holds out longer.
+    let temps = [20.0, 60.0, 100.0, 140.0];
+    let n42: Vec<(f64, bool)> = temps.iter().map(|&t| disk_margin("N42", t)).collect();
+    assert!(
+        n42.windows(2).all(|w| w[1].0 < w[0].0),
+        "margin does not fall: {n42:?}"
+    );
+    for (m, warned) in &n42 {
+        assert_eq!(*warned, *m < 0.0, "warning and margin disagree: {n42:?}");
+    }
+    assert!(
+        n42[0].0 > 0.0 && n42[3].0 < 0.0,
+        "the N42 disk should cross its knee between 20 and 140 degC: {n42:?}"
+    );
+    // Where the N42 disk is already past its knee, the SH disk still has margin.
+    let first_past = temps
+        .iter()
+        .zip(&n42)
+        .find(|(_, m)| m.0 < 0.0)
+        .map(|(t, _)| *t)
+        .unwrap();
+    let sh = disk_margin("N42SH", first_past);
+    assert!(sh.0 > 0.0 && !sh.1, "N42SH at {first_past} degC: {sh:?}");
+}
+
+#[test]
+fn hard_ferrite_is_most_at_risk_when_cold() {
+    // Source: hard ferrite's HcJ rises with temperature (+0.27 %/K, library source S23), so the
+    // smallest margin is at the cold end (S24).
+    let cold = disk_margin("Y30", -40.0).0;
+    let room = disk_margin("Y30", 20.0).0;
+    let hot = disk_margin("Y30", 80.0).0;
+    assert!(cold < room && room < hot, "{cold} {room} {hot}");
+}
