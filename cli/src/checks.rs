@@ -23,12 +23,7 @@ pub const IMPLANT_LEVEL: f64 = 0.5e-3;
 pub const IATA_CURRENT: f64 = 0.418;
 pub const IATA_LEGACY: f64 = 0.159;
 
-pub fn magnet_results(
-    model: &Model,
-    sol: &Solution,
-    values: &mut BTreeMap<String, f64>,
-    warnings: &mut Vec<String>,
-) -> BTreeMap<String, MagnetResult> {
+pub fn magnet_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f64>, warnings: &mut Vec<String>) -> BTreeMap<String, MagnetResult> {
     let mut out = BTreeMap::new();
     for (i, p) in model.parts.iter().enumerate() {
         let Material::Magnet(g) = &p.material.material else {
@@ -39,24 +34,18 @@ pub fn magnet_results(
         let hcj = g.hcj_at(t);
         let knee = -KNEE_FRACTION * hcj;
         let wp = magnet_check::working_point(sol, i, dir, knee);
-        let onset = onset_temperature(
-            wp.worst_h,
-            t,
-            g.br_coeff,
-            g.hcj_coeff,
-            KNEE_FRACTION * g.hcj,
-        );
+        let onset = onset_temperature(wp.worst_h, t, g.br_coeff, g.hcj_coeff, KNEE_FRACTION * g.hcj);
         values.insert(format!("magnet.{}.margin", p.name), wp.margin);
         values.insert(format!("magnet.{}.permeance", p.name), wp.permeance);
-        values.insert(
-            format!("magnet.{}.share_past_knee", p.name),
-            wp.share_past_knee,
-        );
+        values.insert(format!("magnet.{}.share_past_knee", p.name), wp.share_past_knee);
         if wp.margin < 0.0 {
-            let when = onset.map_or(String::new(), |c| {
-                format!("; by the linear model the knee is first reached near {c:.0} degC")
-            });
-            warnings.push(format!("magnet '{}' ({}) is driven past its knee at {t} degC over {:.1} % of its volume: it will lose magnetization{when}", p.name, p.material.name, 100.0 * wp.share_past_knee));
+            let when = onset.map_or(String::new(), |c| format!("; by the linear model the knee is first reached near {c:.0} degC"));
+            warnings.push(format!(
+                "magnet '{}' ({}) is driven past its knee at {t} degC over {:.1} % of its volume: it will lose magnetization{when}",
+                p.name,
+                p.material.name,
+                100.0 * wp.share_past_knee
+            ));
         }
         out.insert(
             p.name.clone(),
@@ -82,13 +71,7 @@ pub fn magnet_results(
 /// Temperature at which the worst working point meets the knee, by the
 /// linear model: the demagnetizing field scales with Br(T) and the knee with
 /// HcJ(T), both by their reversible coefficients from 20 degC.
-fn onset_temperature(
-    worst_h: f64,
-    t0: f64,
-    br_coeff: f64,
-    hcj_coeff: f64,
-    knee20: f64,
-) -> Option<f64> {
+fn onset_temperature(worst_h: f64, t0: f64, br_coeff: f64, hcj_coeff: f64, knee20: f64) -> Option<f64> {
     if !(worst_h < 0.0) || !knee20.is_finite() {
         return None;
     }
@@ -103,11 +86,7 @@ fn onset_temperature(
     (-100.0..=400.0).contains(&t).then_some(t)
 }
 
-pub fn stray_results(
-    model: &Model,
-    sol: &Solution,
-    values: &mut BTreeMap<String, f64>,
-) -> StrayResult {
+pub fn stray_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f64>) -> StrayResult {
     let mut r = StrayResult {
         reach_level_t: model.reach_level,
         ..Default::default()

@@ -21,18 +21,14 @@ fn overrides(set: &[String]) -> Result<BTreeMap<String, f64>, Failure> {
     let mut out = BTreeMap::new();
     for s in set {
         let Some((k, v)) = s.split_once('=') else {
-            return Err(Failure::Input(format!(
-                "error: --set {s}: expected NAME=VALUE, for example --set gap=2.5\n"
-            )));
+            return Err(Failure::Input(format!("error: --set {s}: expected NAME=VALUE, for example --set gap=2.5\n")));
         };
         let value: f64 = v
             .trim()
             .parse()
             .map_err(|_| Failure::Input(format!("error: --set {s}: '{v}' is not a number\n")))?;
         if !value.is_finite() {
-            return Err(Failure::Input(format!(
-                "error: --set {s}: the value must be finite\n"
-            )));
+            return Err(Failure::Input(format!("error: --set {s}: the value must be finite\n")));
         }
         out.insert(k.trim().to_string(), value);
     }
@@ -44,31 +40,16 @@ fn default_output(loaded: &Loaded, output: Option<PathBuf>) -> PathBuf {
 }
 
 fn parse_shard(s: &str) -> Result<(usize, usize), Failure> {
-    let bad = || {
-        Failure::Input(format!(
-            "error: --shard {s}: expected K/N with 0 <= K < N, for example --shard 0/3\n"
-        ))
-    };
+    let bad = || Failure::Input(format!("error: --shard {s}: expected K/N with 0 <= K < N, for example --shard 0/3\n"));
     let (k, n) = s.split_once('/').ok_or_else(bad)?;
-    let (k, n): (usize, usize) = (
-        k.trim().parse().map_err(|_| bad())?,
-        n.trim().parse().map_err(|_| bad())?,
-    );
+    let (k, n): (usize, usize) = (k.trim().parse().map_err(|_| bad())?, n.trim().parse().map_err(|_| bad())?);
     if n == 0 || k >= n {
         return Err(bad());
     }
     Ok((k, n))
 }
 
-pub fn solve(
-    case: &Path,
-    output: Option<PathBuf>,
-    set: &[String],
-    max_elements: Option<usize>,
-    shard: Option<&str>,
-    force: bool,
-    quiet: bool,
-) -> i32 {
+pub fn solve(case: &Path, output: Option<PathBuf>, set: &[String], max_elements: Option<usize>, shard: Option<&str>, force: bool, quiet: bool) -> i32 {
     match solve_inner(case, output, set, max_elements, shard, force, quiet) {
         Ok(code) => code,
         Err(f) => fail(&f),
@@ -98,14 +79,9 @@ fn solve_inner(
     if !swept {
         let outcome = run::solve_variant(&loaded, &variants[0], &limits, &progress)?;
         progress.finish();
-        output::write_all(&out, &outcome.files)
-            .map_err(|e| Failure::Input(format!("error: {e}\n")))?;
+        output::write_all(&out, &outcome.files).map_err(|e| Failure::Input(format!("error: {e}\n")))?;
         print!("{}", crate::summary::summary(&outcome, &out));
-        return Ok(if outcome.results.solve.converged {
-            0
-        } else {
-            not_converged(&outcome)
-        });
+        return Ok(if outcome.results.solve.converged { 0 } else { not_converged(&outcome) });
     }
     let hash = sweep::case_hash(&loaded.text);
     let results: Vec<Result<(Variant, Outcome), Failure>> = variants
@@ -114,10 +90,7 @@ fn solve_inner(
         .map(|v| {
             let o = run::solve_variant(&loaded, v, &limits, &progress)?;
             let mut files = o.files.clone();
-            files.push((
-                "variant.hash".into(),
-                sweep::variant_hash(hash, v).into_bytes(),
-            ));
+            files.push(("variant.hash".into(), sweep::variant_hash(hash, v).into_bytes()));
             let dir = out.join(&v.label);
             output::write_all(&dir, &files).map_err(|e| Failure::Input(format!("error: {e}\n")))?;
             Ok((v.clone(), o))
@@ -135,11 +108,9 @@ fn solve_inner(
             }
         }
     }
-    let rows = sweep::rows_from_folders(std::slice::from_ref(&out))
-        .map_err(|e| Failure::Input(format!("error: {e}\n")))?;
+    let rows = sweep::rows_from_folders(std::slice::from_ref(&out)).map_err(|e| Failure::Input(format!("error: {e}\n")))?;
     let table = sweep::table(&rows);
-    output::write_all(&out, &vec![("sweep.csv".into(), table.into_bytes())])
-        .map_err(|e| Failure::Input(format!("error: {e}\n")))?;
+    output::write_all(&out, &vec![("sweep.csv".into(), table.into_bytes())]).map_err(|e| Failure::Input(format!("error: {e}\n")))?;
     println!(
         "{}: {} variants solved ({} already whole), sweep table in {}",
         loaded.path.display(),
@@ -151,13 +122,7 @@ fn solve_inner(
 }
 
 fn not_converged(o: &Outcome) -> i32 {
-    let h: Vec<String> = o
-        .results
-        .solve
-        .residual_history
-        .iter()
-        .map(|r| format!("{r:.2e}"))
-        .collect();
+    let h: Vec<String> = o.results.solve.residual_history.iter().map(|r| format!("{r:.2e}")).collect();
     eprintln!(
         "error: {}: Newton-Raphson did not converge in {} iterations; residual history: {}",
         o.model.title,
@@ -168,13 +133,7 @@ fn not_converged(o: &Outcome) -> i32 {
     3
 }
 
-pub fn check(
-    cases: &[PathBuf],
-    junit: Option<PathBuf>,
-    set: &[String],
-    max_elements: Option<usize>,
-    quiet: bool,
-) -> i32 {
+pub fn check(cases: &[PathBuf], junit: Option<PathBuf>, set: &[String], max_elements: Option<usize>, quiet: bool) -> i32 {
     let progress = Progress::new(quiet);
     let limits = Limits { max_elements };
     let over = match overrides(set) {
@@ -199,9 +158,7 @@ pub fn check(
             .parent()
             .filter(|p| !p.as_os_str().is_empty())
             .map_or_else(|| PathBuf::from("."), Path::to_path_buf);
-        let name = path
-            .file_name()
-            .map_or_else(|| PathBuf::from("junit.xml"), PathBuf::from);
+        let name = path.file_name().map_or_else(|| PathBuf::from("junit.xml"), PathBuf::from);
         if let Err(e) = output::write_all(&dir, &vec![(name, xml.into_bytes())]) {
             eprintln!("error: {e}");
             return 2;
@@ -212,18 +169,10 @@ pub fn check(
 }
 
 /// One case's expectations: the exit code and the JUnit suite.
-fn check_case(
-    case: &Path,
-    over: &BTreeMap<String, f64>,
-    limits: &Limits,
-    progress: &Progress,
-) -> Result<(i32, crate::junit::Suite), Failure> {
+fn check_case(case: &Path, over: &BTreeMap<String, f64>, limits: &Limits, progress: &Progress) -> Result<(i32, crate::junit::Suite), Failure> {
     let loaded = run::load(case)?;
     let variants = run::variants(&loaded, over)?;
-    let outcomes: Vec<Result<Outcome, Failure>> = variants
-        .par_iter()
-        .map(|v| run::solve_variant(&loaded, v, limits, progress))
-        .collect();
+    let outcomes: Vec<Result<Outcome, Failure>> = variants.par_iter().map(|v| run::solve_variant(&loaded, v, limits, progress)).collect();
     progress.finish();
     let mut suite = crate::junit::Suite {
         name: loaded.path.display().to_string(),
@@ -239,35 +188,28 @@ fn check_case(
                     || format!("the values this case produces: {}", names.join(", ")),
                     |c| format!("did you mean '{c}'?"),
                 );
-                return Err(Failure::Input(format!("error: {}: [[expect]] names the value '{}', which this case does not produce\n      = help: {help}\n", loaded.path.display(), e.value)));
+                return Err(Failure::Input(format!(
+                    "error: {}: [[expect]] names the value '{}', which this case does not produce\n      = help: {help}\n",
+                    loaded.path.display(),
+                    e.value
+                )));
             }
         }
         if !o.results.solve.converged {
             code = code.max(not_converged(&o));
         }
-        let tag = if v.label.is_empty() {
-            String::new()
-        } else {
-            format!(" [{}]", v.label)
-        };
+        let tag = if v.label.is_empty() { String::new() } else { format!(" [{}]", v.label) };
         println!("{}{tag}", loaded.path.display());
         println!("  {:<36} {:<24} {:>14}  result", "value", "bound", "actual");
         for e in &o.results.expect {
             let actual = e.actual.map_or("-".into(), |a| format!("{a:.6e}"));
-            println!(
-                "  {:<36} {:<24} {:>14}  {}",
-                e.value,
-                e.bound,
-                actual,
-                if e.pass { "pass" } else { "FAIL" }
-            );
+            println!("  {:<36} {:<24} {:>14}  {}", e.value, e.bound, actual, if e.pass { "pass" } else { "FAIL" });
             if !e.pass {
                 code = code.max(1);
             }
             suite.cases.push(crate::junit::Case {
                 name: format!("{}{tag}", e.value),
-                message: (!e.pass)
-                    .then(|| format!("{} = {} is outside {}", e.value, actual, e.bound)),
+                message: (!e.pass).then(|| format!("{} = {} is outside {}", e.value, actual, e.bound)),
             });
         }
         if o.results.expect.is_empty() {
@@ -277,31 +219,19 @@ fn check_case(
     Ok((code, suite))
 }
 
-pub fn mesh(
-    case: &Path,
-    output: Option<PathBuf>,
-    set: &[String],
-    max_elements: Option<usize>,
-    quiet: bool,
-) -> i32 {
+pub fn mesh(case: &Path, output: Option<PathBuf>, set: &[String], max_elements: Option<usize>, quiet: bool) -> i32 {
     let progress = Progress::new(quiet);
     let go = || -> Result<(), Failure> {
         let loaded = run::load(case)?;
         let variants = run::variants(&loaded, &overrides(set)?)?;
         let model = run::resolve(&loaded, &variants[0].params, &Limits { max_elements })?;
         progress.note(&format!("{}: meshing", loaded.stem()));
-        let mesh = mesher::build_mesh(&crate::study::mesh_spec(&model))
-            .map_err(|e| loaded.input(&crate::study::mesh_error(&model, &e)))?;
+        let mesh = mesher::build_mesh(&crate::study::mesh_spec(&model)).map_err(|e| loaded.input(&crate::study::mesh_error(&model, &e)))?;
         progress.finish();
         let out = default_output(&loaded, output.clone());
-        let vtu = output::vtk::mesh_vtu(&model, &mesh)
-            .map_err(|e| Failure::Input(format!("error: {e}\n")))?;
+        let vtu = output::vtk::mesh_vtu(&model, &mesh).map_err(|e| Failure::Input(format!("error: {e}\n")))?;
         let svg = output::svg::mesh_svg(&model, &mesh).into_bytes();
-        output::write_all(
-            &out,
-            &vec![("mesh.vtu".into(), vtu), ("mesh.svg".into(), svg)],
-        )
-        .map_err(|e| Failure::Input(format!("error: {e}\n")))?;
+        output::write_all(&out, &vec![("mesh.vtu".into(), vtu), ("mesh.svg".into(), svg)]).map_err(|e| Failure::Input(format!("error: {e}\n")))?;
         let q = mesh.quality();
         let (air, per) = mesh.triangles_per_part(model.parts.len());
         println!(
@@ -315,11 +245,7 @@ pub fn mesh(
         for (p, n) in model.parts.iter().zip(per) {
             println!("  {:<24} {:>10}", p.name, n);
         }
-        println!(
-            "wrote {} and {}",
-            out.join("mesh.vtu").display(),
-            out.join("mesh.svg").display()
-        );
+        println!("wrote {} and {}", out.join("mesh.vtu").display(), out.join("mesh.svg").display());
         Ok(())
     };
     match go() {
@@ -335,10 +261,7 @@ pub fn materials(name: Option<&str>, plot: Option<PathBuf>) -> i32 {
     };
     let Some(entry) = materials::lookup(name) else {
         let names = materials::names();
-        let help = suggest::closest(name, names.iter().map(String::as_str))
-            .map_or_else(String::new, |c| {
-                format!("\n      = help: did you mean '{c}'?")
-            });
+        let help = suggest::closest(name, names.iter().map(String::as_str)).map_or_else(String::new, |c| format!("\n      = help: did you mean '{c}'?"));
         eprintln!("error: no built-in material named '{name}'{help}");
         return 2;
     };
@@ -349,9 +272,7 @@ pub fn materials(name: Option<&str>, plot: Option<PathBuf>) -> i32 {
             .parent()
             .filter(|p| !p.as_os_str().is_empty())
             .map_or_else(|| PathBuf::from("."), Path::to_path_buf);
-        let file = path
-            .file_name()
-            .map_or_else(|| PathBuf::from("material.svg"), PathBuf::from);
+        let file = path.file_name().map_or_else(|| PathBuf::from("material.svg"), PathBuf::from);
         if let Err(e) = output::write_all(&dir, &vec![(file, svg.into_bytes())]) {
             eprintln!("error: {e}");
             return 2;
@@ -363,18 +284,11 @@ pub fn materials(name: Option<&str>, plot: Option<PathBuf>) -> i32 {
 pub fn merge(folders: &[PathBuf], out: &Path) -> i32 {
     match sweep::rows_from_folders(folders) {
         Ok(rows) => {
-            if let Err(e) = output::write_all(
-                out,
-                &vec![("sweep.csv".into(), sweep::table(&rows).into_bytes())],
-            ) {
+            if let Err(e) = output::write_all(out, &vec![("sweep.csv".into(), sweep::table(&rows).into_bytes())]) {
                 eprintln!("error: {e}");
                 return 2;
             }
-            println!(
-                "merged {} variants into {}",
-                rows.len(),
-                out.join("sweep.csv").display()
-            );
+            println!("merged {} variants into {}", rows.len(), out.join("sweep.csv").display());
             0
         }
         Err(e) => {

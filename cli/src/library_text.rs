@@ -21,31 +21,19 @@ pub fn entry(e: &Entry) -> String {
     let mut s = format!("{} ({})\n", e.name, e.family);
     match &e.material {
         Material::Air => s += "  relative permeability 1\n",
-        Material::Conductor => {
-            s += "  conductor, relative permeability 1 (may carry a winding current)\n"
-        }
-        Material::Linear {
-            relative_permeability,
-        } => s += &format!("  linear, relative permeability {relative_permeability}\n"),
+        Material::Conductor => s += "  conductor, relative permeability 1 (may carry a winding current)\n",
+        Material::Linear { relative_permeability } => s += &format!("  linear, relative permeability {relative_permeability}\n"),
         Material::Soft { curve } => {
             s += "  B-H curve (H in A/m, B in T):\n";
             for p in curve {
                 s += &format!("    {:>10.1} {:>7.4}\n", p[0], p[1]);
             }
             if let Ok(c) = solver::BhCurve::new(curve) {
-                s += &format!(
-                    "  knee (differential permeability fallen to a tenth of its peak): {:.2} T\n",
-                    c.knee_b()
-                );
+                s += &format!("  knee (differential permeability fallen to a tenth of its peak): {:.2} T\n", c.knee_b());
             }
         }
         Material::Magnet(g) => {
-            s += &format!(
-                "  Br {:.3} T ({:.2} kG) at 20 degC, alpha Br {} %/K\n",
-                g.br,
-                g.br * 10.0,
-                g.br_coeff
-            );
+            s += &format!("  Br {:.3} T ({:.2} kG) at 20 degC, alpha Br {} %/K\n", g.br, g.br * 10.0, g.br_coeff);
             s += &format!(
                 "  HcJ {:.0} kA/m ({:.1} kOe), alpha HcJ {} %/K\n",
                 g.hcj / 1e3,

@@ -99,15 +99,7 @@ fn main() {
             shard,
             force,
             common,
-        } => commands::solve(
-            &case,
-            output,
-            &set,
-            max_elements,
-            shard.as_deref(),
-            force,
-            common.quiet,
-        ),
+        } => commands::solve(&case, output, &set, max_elements, shard.as_deref(), force, common.quiet),
         Command::Check {
             cases,
             junit,

@@ -171,11 +171,7 @@ pub const CAUTIONS: &[&str] = &[
 /// Everything about a solved study.
 pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
     let mesh = sol.problem.mesh;
-    let depth = if model.symmetry == Symmetry::Planar {
-        model.depth
-    } else {
-        1.0
-    };
+    let depth = if model.symmetry == Symmetry::Planar { model.depth } else { 1.0 };
     let mut values = BTreeMap::new();
     let probes = probe_results(model, sol, &mut values);
     let forces = force_results(model, sol, depth, &mut values);
@@ -193,12 +189,19 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
     let stray = crate::checks::stray_results(model, sol, &mut values);
     for (name, f) in &forces {
         if f.contact {
-            warnings.push(format!("force '{name}': the parts touch other material, so the stress band cuts through it and the force is not reliable; leave an air gap"));
+            warnings.push(format!(
+                "force '{name}': the parts touch other material, so the stress band cuts through it and the force is not reliable; leave an air gap"
+            ));
         }
     }
     for (name, p) in &parts {
         if p.saturated == Some(true) {
-            warnings.push(format!("part '{name}' ({}): {:.0} % of it runs above the knee of its B-H curve ({:.2} T): it saturates", p.material, 100.0 * p.saturated_share.unwrap_or(0.0), p.knee_t.unwrap_or(0.0)));
+            warnings.push(format!(
+                "part '{name}' ({}): {:.0} % of it runs above the knee of its B-H curve ({:.2} T): it saturates",
+                p.material,
+                100.0 * p.saturated_share.unwrap_or(0.0),
+                p.knee_t.unwrap_or(0.0)
+            ));
         }
     }
     values.retain(|_, v| v.is_finite());
@@ -207,11 +210,7 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
         format: "lodestone-results/1",
         study: StudyInfo {
             title: model.title.clone(),
-            geometry: if model.symmetry == Symmetry::Planar {
-                "planar"
-            } else {
-                "axisymmetric"
-            },
+            geometry: if model.symmetry == Symmetry::Planar { "planar" } else { "axisymmetric" },
             temperature_c: model.temperature,
             depth_m: depth,
             parameters: model.params.clone(),
@@ -252,37 +251,20 @@ pub fn probe_points(shape: &ProbeShape) -> Vec<[f64; 2]> {
         ProbeShape::Line { from, to, points } => (0..points)
             .map(|i| {
                 let t = i as f64 / (points - 1) as f64;
-                [
-                    from[0] + t * (to[0] - from[0]),
-                    from[1] + t * (to[1] - from[1]),
-                ]
+                [from[0] + t * (to[0] - from[0]), from[1] + t * (to[1] - from[1])]
             })
             .collect(),
     }
 }
 
-fn probe_results(
-    model: &Model,
-    sol: &Solution,
-    values: &mut BTreeMap<String, f64>,
-) -> BTreeMap<String, ProbeResult> {
+fn probe_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f64>) -> BTreeMap<String, ProbeResult> {
     let mut out = BTreeMap::new();
-    let (c0, c1) = if model.symmetry == Symmetry::Planar {
-        ("bx", "by")
-    } else {
-        ("br", "bz")
-    };
+    let (c0, c1) = if model.symmetry == Symmetry::Planar { ("bx", "by") } else { ("br", "bz") };
     for p in &model.probes {
         let points = probe_points(&p.shape);
         let fields: Vec<_> = points.iter().map(|&x| sol.field_at(x)).collect();
-        let b: Vec<[f64; 2]> = fields
-            .iter()
-            .map(|f| f.map_or([f64::NAN; 2], |f| f.b))
-            .collect();
-        let h: Vec<[f64; 2]> = fields
-            .iter()
-            .map(|f| f.map_or([f64::NAN; 2], |f| f.h))
-            .collect();
+        let b: Vec<[f64; 2]> = fields.iter().map(|f| f.map_or([f64::NAN; 2], |f| f.b)).collect();
+        let h: Vec<[f64; 2]> = fields.iter().map(|f| f.map_or([f64::NAN; 2], |f| f.h)).collect();
         let bmag: Vec<f64> = b.iter().map(|v| v[0].hypot(v[1])).collect();
         let key = |s: &str| format!("probe.{}.{s}", p.name);
         match p.shape {
@@ -294,18 +276,9 @@ fn probe_results(
             }
             ProbeShape::Line { .. } => {
                 let finite: Vec<f64> = bmag.iter().copied().filter(|v| v.is_finite()).collect();
-                values.insert(
-                    key("b.max"),
-                    finite.iter().copied().fold(f64::NAN, f64::max),
-                );
-                values.insert(
-                    key("b.min"),
-                    finite.iter().copied().fold(f64::NAN, f64::min),
-                );
-                values.insert(
-                    key("b.mean"),
-                    finite.iter().sum::<f64>() / finite.len().max(1) as f64,
-                );
+                values.insert(key("b.max"), finite.iter().copied().fold(f64::NAN, f64::max));
+                values.insert(key("b.min"), finite.iter().copied().fold(f64::NAN, f64::min));
+                values.insert(key("b.mean"), finite.iter().sum::<f64>() / finite.len().max(1) as f64);
             }
         }
         out.insert(p.name.clone(), ProbeResult { points, b, bmag, h });
@@ -313,12 +286,7 @@ fn probe_results(
     out
 }
 
-fn force_results(
-    model: &Model,
-    sol: &Solution,
-    depth: f64,
-    values: &mut BTreeMap<String, f64>,
-) -> BTreeMap<String, ForceResult> {
+fn force_results(model: &Model, sol: &Solution, depth: f64, values: &mut BTreeMap<String, f64>) -> BTreeMap<String, ForceResult> {
     let mut out = BTreeMap::new();
     for f in &model.forces {
         let r = force::force_on(sol, &f.parts, f.torque_about);
@@ -345,17 +313,9 @@ fn force_results(
     out
 }
 
-fn flux_results(
-    model: &Model,
-    sol: &Solution,
-    depth: f64,
-    values: &mut BTreeMap<String, f64>,
-) -> BTreeMap<String, FluxResult> {
+fn flux_results(model: &Model, sol: &Solution, depth: f64, values: &mut BTreeMap<String, f64>) -> BTreeMap<String, FluxResult> {
     let mut out = BTreeMap::new();
-    let has_magnets = model
-        .parts
-        .iter()
-        .any(|p| matches!(p.material.material, Material::Magnet(_)));
+    let has_magnets = model.parts.iter().any(|p| matches!(p.material.material, Material::Magnet(_)));
     for f in &model.fluxes {
         let r = match f {
             FluxSpec::Line { from, to, .. } => FluxResult {
@@ -367,9 +327,7 @@ fn flux_results(
                 let linkage = flux::winding_linkage(sol, parts, *turns) * depth;
                 let ampere_turns = model.parts[parts[0].0].current.unwrap_or(0.0).abs();
                 let current = ampere_turns / turns;
-                let inductance =
-                    (current > 0.0 && !has_magnets && sol.problem.applied_field == [0.0, 0.0])
-                        .then(|| linkage / current);
+                let inductance = (current > 0.0 && !has_magnets && sol.problem.applied_field == [0.0, 0.0]).then(|| linkage / current);
                 FluxResult {
                     wb: linkage,
                     turns: Some(*turns),
@@ -386,11 +344,7 @@ fn flux_results(
     out
 }
 
-fn part_results(
-    model: &Model,
-    sol: &Solution,
-    values: &mut BTreeMap<String, f64>,
-) -> BTreeMap<String, PartResult> {
+fn part_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f64>) -> BTreeMap<String, PartResult> {
     let n = model.parts.len();
     let mut max = vec![0.0f64; n];
     let mut sum = vec![0.0; n];
@@ -409,26 +363,16 @@ fn part_results(
         let ElementKind::Part(i) = els.kinds[e] else {
             continue;
         };
-        solver::element::for_each_point(
-            &els.coords[e],
-            els.order,
-            sol.symmetry(),
-            sol.placement(e),
-            |op| {
-                let b = solver::element::flux_density(
-                    op,
-                    &els.gather(e, &sol.reduced),
-                    sol.background(e),
-                );
-                let bm = b[0].hypot(b[1]);
-                max[i] = max[i].max(bm);
-                sum[i] += bm * op.weight;
-                vol[i] += op.weight;
-                if knees[i].is_some_and(|k| bm > k) {
-                    above[i] += op.weight;
-                }
-            },
-        );
+        solver::element::for_each_point(&els.coords[e], els.order, sol.symmetry(), sol.placement(e), |op| {
+            let b = solver::element::flux_density(op, &els.gather(e, &sol.reduced), sol.background(e));
+            let bm = b[0].hypot(b[1]);
+            max[i] = max[i].max(bm);
+            sum[i] += bm * op.weight;
+            vol[i] += op.weight;
+            if knees[i].is_some_and(|k| bm > k) {
+                above[i] += op.weight;
+            }
+        });
     }
     let mut out = BTreeMap::new();
     for (i, p) in model.parts.iter().enumerate() {

@@ -43,23 +43,15 @@ pub struct Loaded {
 
 impl Loaded {
     pub fn input(&self, d: &Diagnostic) -> Failure {
-        Failure::Input(case::render(
-            &self.path.display().to_string(),
-            &self.text,
-            d,
-        ))
+        Failure::Input(case::render(&self.path.display().to_string(), &self.text, d))
     }
 
     pub fn dir(&self) -> PathBuf {
-        self.path
-            .parent()
-            .map_or_else(|| PathBuf::from("."), Path::to_path_buf)
+        self.path.parent().map_or_else(|| PathBuf::from("."), Path::to_path_buf)
     }
 
     pub fn stem(&self) -> String {
-        self.path
-            .file_stem()
-            .map_or_else(|| "case".into(), |s| s.to_string_lossy().into_owned())
+        self.path.file_stem().map_or_else(|| "case".into(), |s| s.to_string_lossy().into_owned())
     }
 }
 
@@ -68,12 +60,9 @@ const MAX_CASE_BYTES: u64 = 16 << 20;
 
 pub fn load(path: &Path) -> Result<Loaded, Failure> {
     let shown = path.display();
-    let meta = std::fs::metadata(path)
-        .map_err(|e| Failure::Input(format!("error: cannot read the case file {shown}: {e}\n")))?;
+    let meta = std::fs::metadata(path).map_err(|e| Failure::Input(format!("error: cannot read the case file {shown}: {e}\n")))?;
     if meta.is_dir() {
-        return Err(Failure::Input(format!(
-            "error: {shown} is a directory, not a case file\n"
-        )));
+        return Err(Failure::Input(format!("error: {shown} is a directory, not a case file\n")));
     }
     if meta.len() > MAX_CASE_BYTES {
         return Err(Failure::Input(format!(
@@ -81,20 +70,12 @@ pub fn load(path: &Path) -> Result<Loaded, Failure> {
             meta.len()
         )));
     }
-    let bytes = std::fs::read(path)
-        .map_err(|e| Failure::Input(format!("error: cannot read the case file {shown}: {e}\n")))?;
-    let text = String::from_utf8(bytes).map_err(|_| {
-        Failure::Input(format!(
-            "error: {shown} is not UTF-8 text (is it a binary file?)\n"
-        ))
-    })?;
+    let bytes = std::fs::read(path).map_err(|e| Failure::Input(format!("error: cannot read the case file {shown}: {e}\n")))?;
+    let text = String::from_utf8(bytes).map_err(|_| Failure::Input(format!("error: {shown} is not UTF-8 text (is it a binary file?)\n")))?;
     if text.trim().is_empty() {
-        return Err(Failure::Input(format!(
-            "error: {shown} is empty; a case needs at least one [[part]]\n"
-        )));
+        return Err(Failure::Input(format!("error: {shown} is empty; a case needs at least one [[part]]\n")));
     }
-    let doc = case::document::parse(&text)
-        .map_err(|d| Failure::Input(case::render(&shown.to_string(), &text, &d)))?;
+    let doc = case::document::parse(&text).map_err(|d| Failure::Input(case::render(&shown.to_string(), &text, &d)))?;
     Ok(Loaded {
         path: path.to_path_buf(),
         text,
@@ -113,10 +94,7 @@ pub struct Variant {
 }
 
 /// Every variant of the case: one without a sweep, else every combination.
-pub fn variants(
-    loaded: &Loaded,
-    overrides: &BTreeMap<String, f64>,
-) -> Result<Vec<Variant>, Failure> {
+pub fn variants(loaded: &Loaded, overrides: &BTreeMap<String, f64>) -> Result<Vec<Variant>, Failure> {
     let base = case::resolve::params(&loaded.doc, overrides).map_err(|d| loaded.input(&d))?;
     let sweep: Vec<(String, Vec<f64>)> = case::resolve::sweep(&loaded.doc)
         .map_err(|d| loaded.input(&d))?
@@ -127,11 +105,7 @@ pub fn variants(
     for (name, values) in &sweep {
         combos = combos
             .into_iter()
-            .flat_map(|c| {
-                values
-                    .iter()
-                    .map(move |v| [c.clone(), vec![(name.clone(), *v)]].concat())
-            })
+            .flat_map(|c| values.iter().map(move |v| [c.clone(), vec![(name.clone(), *v)]].concat()))
             .collect();
     }
     if combos.len() > 100_000 {
@@ -146,17 +120,8 @@ pub fn variants(
         .map(|(index, swept)| {
             let mut params = base.clone();
             params.extend(swept.iter().cloned());
-            let label = if sweep.is_empty() {
-                String::new()
-            } else {
-                format!("variant-{index:04}")
-            };
-            Variant {
-                index,
-                label,
-                params,
-                swept,
-            }
+            let label = if sweep.is_empty() { String::new() } else { format!("variant-{index:04}") };
+            Variant { index, label, params, swept }
         })
         .collect())
 }
@@ -174,13 +139,8 @@ pub struct Limits {
     pub max_elements: Option<usize>,
 }
 
-pub fn resolve(
-    loaded: &Loaded,
-    params: &BTreeMap<String, f64>,
-    limits: &Limits,
-) -> Result<Model, Failure> {
-    let mut model =
-        case::resolve::resolve(&loaded.doc, params, &loaded.dir()).map_err(|d| loaded.input(&d))?;
+pub fn resolve(loaded: &Loaded, params: &BTreeMap<String, f64>, limits: &Limits) -> Result<Model, Failure> {
+    let mut model = case::resolve::resolve(&loaded.doc, params, &loaded.dir()).map_err(|d| loaded.input(&d))?;
     if let Some(m) = limits.max_elements {
         model.mesh.max_elements = m;
     }
@@ -189,12 +149,7 @@ pub fn resolve(
 }
 
 /// Meshes, solves and post-processes one variant.
-pub fn solve_variant(
-    loaded: &Loaded,
-    variant: &Variant,
-    limits: &Limits,
-    progress: &Progress,
-) -> Result<Outcome, Failure> {
+pub fn solve_variant(loaded: &Loaded, variant: &Variant, limits: &Limits, progress: &Progress) -> Result<Outcome, Failure> {
     let start = Instant::now();
     let model = resolve(loaded, &variant.params, limits)?;
     let tag = if variant.label.is_empty() {
@@ -203,18 +158,11 @@ pub fn solve_variant(
         format!("{} {}", loaded.stem(), variant.label)
     };
     progress.note(&format!("{tag}: meshing"));
-    let mesh = mesher::build_mesh(&study::mesh_spec(&model))
-        .map_err(|e| loaded.input(&study::mesh_error(&model, &e)))?;
-    progress.note(&format!(
-        "{tag}: {} nodes, {} triangles; solving",
-        mesh.n_nodes(),
-        mesh.triangles.len()
-    ));
+    let mesh = mesher::build_mesh(&study::mesh_spec(&model)).map_err(|e| loaded.input(&study::mesh_error(&model, &e)))?;
+    progress.note(&format!("{tag}: {} nodes, {} triangles; solving", mesh.n_nodes(), mesh.triangles.len()));
     let problem = study::problem(&model, &mesh).map_err(|d| loaded.input(&d))?;
     let sol = solver::solve(&problem, &|it, r| {
-        progress.note(&format!(
-            "{tag}: Newton iteration {it}, relative residual {r:.3e}"
-        ))
+        progress.note(&format!("{tag}: Newton iteration {it}, relative residual {r:.3e}"))
     })
     .map_err(|e| Failure::Input(format!("error: {}: {e}\n", loaded.path.display())))?;
     let results = post::results(&model, &sol, 0.0);
@@ -228,46 +176,38 @@ pub fn solve_variant(
         });
     }
     let files = collect_files(&model, &sol, &results)?;
-    Ok(Outcome {
-        model,
-        results,
-        files,
-    })
+    Ok(Outcome { model, results, files })
 }
 
-fn collect_files(
-    model: &Model,
-    sol: &solver::Solution,
-    results: &Results,
-) -> Result<FileSet, Failure> {
+fn collect_files(model: &Model, sol: &solver::Solution, results: &Results) -> Result<FileSet, Failure> {
     let mut files: FileSet = Vec::new();
-    let json = serde_json::to_vec_pretty(results)
-        .map_err(|e| Failure::Input(format!("error: cannot encode results: {e}\n")))?;
+    let json = serde_json::to_vec_pretty(results).map_err(|e| Failure::Input(format!("error: cannot encode results: {e}\n")))?;
     files.push(("results.json".into(), json));
     if model.output.vtk {
         files.push((
             "field.vtu".into(),
-            output::vtk::field_vtu(model, sol)
-                .map_err(|e| Failure::Input(format!("error: {e}\n")))?,
+            output::vtk::field_vtu(model, sol).map_err(|e| Failure::Input(format!("error: {e}\n")))?,
         ));
     }
     if model.output.csv {
         for p in &model.probes {
             if matches!(p.shape, case::model::ProbeShape::Line { .. }) {
                 if let Some(r) = results.probes.get(&p.name) {
-                    files.push((
-                        format!("probe-{}.csv", p.name).into(),
-                        output::csv::probe_csv(model, r).into_bytes(),
-                    ));
+                    files.push((format!("probe-{}.csv", p.name).into(), output::csv::probe_csv(model, r).into_bytes()));
                 }
             }
         }
     }
+    let mut shown = Vec::new();
     if model.output.plots {
-        files.push((
-            "mesh.svg".into(),
-            output::svg::mesh_svg(model, sol.problem.mesh).into_bytes(),
-        ));
+        files.push(("mesh.svg".into(), output::svg::mesh_svg(model, sol.problem.mesh).into_bytes()));
+        for (name, title, svg) in output::pictures::pictures(model, sol, results) {
+            shown.push((title, name.clone()));
+            files.push((name.into(), svg.into_bytes()));
+        }
+    }
+    if model.output.report {
+        files.push(("report.md".into(), output::report::report(model, results, &shown).into_bytes()));
     }
     Ok(files)
 }

@@ -15,10 +15,7 @@ pub fn mesh_spec(model: &Model) -> MeshSpec {
         .probes
         .iter()
         .map(|p| match p.shape {
-            ProbeShape::Point(at) => Refinement::Point {
-                at,
-                size: model.mesh.size,
-            },
+            ProbeShape::Point(at) => Refinement::Point { at, size: model.mesh.size },
             ProbeShape::Line { from, to, .. } => Refinement::Line {
                 from,
                 to,
@@ -59,17 +56,10 @@ pub fn mesh_error(model: &Model, e: &MeshError) -> Diagnostic {
     };
     let mut msg = e.to_string();
     if let Some(p) = part.and_then(|i| model.parts.get(i)) {
-        msg = msg.replacen(
-            &format!("part {}", part.unwrap_or(0)),
-            &format!("part '{}'", p.name),
-            1,
-        );
+        msg = msg.replacen(&format!("part {}", part.unwrap_or(0)), &format!("part '{}'", p.name), 1);
     }
-    let span = part
-        .and_then(|i| model.parts.get(i))
-        .map(|p| p.span.start..p.span.start + 1);
-    let help = matches!(e, MeshError::TooManyTriangles { .. })
-        .then(|| "or pass --max-elements N on the command line".to_string());
+    let span = part.and_then(|i| model.parts.get(i)).map(|p| p.span.start..p.span.start + 1);
+    let help = matches!(e, MeshError::TooManyTriangles { .. }).then(|| "or pass --max-elements N on the command line".to_string());
     Diagnostic::new(msg, span).with_help(help)
 }
 
@@ -80,19 +70,12 @@ pub fn laws(model: &Model) -> Result<Vec<Law>, Diagnostic> {
         .iter()
         .map(|p| match &p.material.material {
             Material::Air | Material::Conductor => Ok(Law::air()),
-            Material::Linear {
-                relative_permeability,
-            } => Ok(Law::Linear {
+            Material::Linear { relative_permeability } => Ok(Law::Linear {
                 relative_permeability: *relative_permeability,
             }),
             Material::Soft { curve } => BhCurve::new(curve)
                 .map(|c| Law::Saturating(Arc::new(c)))
-                .map_err(|e| {
-                    Diagnostic::new(
-                        format!("material '{}': {e}", p.material.name),
-                        Some(p.span.clone()),
-                    )
-                }),
+                .map_err(|e| Diagnostic::new(format!("material '{}': {e}", p.material.name), Some(p.span.clone()))),
             Material::Magnet(g) => {
                 let br = g.br_at(model.temperature);
                 let d = p.magnetization.unwrap_or([0.0, 1.0]);
@@ -115,10 +98,7 @@ pub fn current_densities(model: &Model, mesh: &mesher::Mesh) -> Result<Vec<f64>,
         .map(|(p, area)| match p.current {
             None => Ok(0.0),
             Some(_) if area <= 0.0 => Err(Diagnostic::new(
-                format!(
-                    "part '{}' carries a current but has no area left (later parts cover it)",
-                    p.name
-                ),
+                format!("part '{}' carries a current but has no area left (later parts cover it)", p.name),
                 Some(p.span.clone()),
             )),
             Some(i) => Ok(i / area),
@@ -140,12 +120,7 @@ pub fn problem<'m>(model: &Model, mesh: &'m mesher::Mesh) -> Result<Problem<'m>,
 /// Probes that the mesh cannot reach are input errors, found before solving.
 pub fn check_probes_inside(model: &Model) -> Result<(), Diagnostic> {
     let box_bounds = match model.boundary {
-        OuterBoundary::FluxParallel {
-            from_to: Some((a, b)),
-        } => Some((
-            [a[0].min(b[0]), a[1].min(b[1])],
-            [a[0].max(b[0]), a[1].max(b[1])],
-        )),
+        OuterBoundary::FluxParallel { from_to: Some((a, b)) } => Some(([a[0].min(b[0]), a[1].min(b[1])], [a[0].max(b[0]), a[1].max(b[1])])),
         _ => None,
     };
     for probe in &model.probes {
@@ -156,22 +131,13 @@ pub fn check_probes_inside(model: &Model) -> Result<(), Diagnostic> {
         let span = Some(probe.span.start..probe.span.start + 1);
         if model.symmetry == Symmetry::Axisymmetric && pts.iter().any(|p| p[0] < 0.0) {
             return Err(Diagnostic::new(
-                format!(
-                    "probe '{}' has r < 0; axisymmetric points lie in r >= 0",
-                    probe.name
-                ),
+                format!("probe '{}' has r < 0; axisymmetric points lie in r >= 0", probe.name),
                 span,
             ));
         }
         if let Some((lo, hi)) = box_bounds {
-            if pts
-                .iter()
-                .any(|p| p[0] < lo[0] || p[1] < lo[1] || p[0] > hi[0] || p[1] > hi[1])
-            {
-                return Err(Diagnostic::new(
-                    format!("probe '{}' lies outside the flux-parallel box", probe.name),
-                    span,
-                ));
+            if pts.iter().any(|p| p[0] < lo[0] || p[1] < lo[1] || p[0] > hi[0] || p[1] > hi[1]) {
+                return Err(Diagnostic::new(format!("probe '{}' lies outside the flux-parallel box", probe.name), span));
             }
         }
     }

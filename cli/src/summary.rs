@@ -14,21 +14,13 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
     );
     s += &format!(
         "  solve: {} in {} iteration(s), residual {:.2e}, {:.2} s\n",
-        if r.solve.converged {
-            "converged"
-        } else {
-            "NOT CONVERGED"
-        },
+        if r.solve.converged { "converged" } else { "NOT CONVERGED" },
         r.solve.iterations,
         r.solve.residual,
         r.solve.seconds
     );
     for (name, fr) in &r.forces {
-        let contact = if fr.contact {
-            "  (parts touch other material: value unreliable)"
-        } else {
-            ""
-        };
+        let contact = if fr.contact { "  (parts touch other material: value unreliable)" } else { "" };
         s += &format!(
             "  force {name}: [{:.4e}, {:.4e}] N, |F| = {:.4e} N{contact}\n",
             fr.vector[0], fr.vector[1], fr.magnitude
@@ -51,11 +43,7 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
             );
         } else {
             let max = p.bmag.iter().copied().fold(0.0, f64::max);
-            s += &format!(
-                "  probe {name}: {} points, |B| max {:.4e} T\n",
-                p.points.len(),
-                max
-            );
+            s += &format!("  probe {name}: {} points, |B| max {:.4e} T\n", p.points.len(), max);
         }
     }
     for (name, p) in &r.parts {
@@ -63,10 +51,7 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
             Some(true) => "  SATURATED (above the knee of its curve)",
             _ => "",
         };
-        s += &format!(
-            "  part {name} ({}): |B| max {:.3} T, mean {:.3} T{sat}\n",
-            p.material, p.b_max, p.b_mean
-        );
+        s += &format!("  part {name} ({}): |B| max {:.3} T, mean {:.3} T{sat}\n", p.material, p.b_max, p.b_mean);
     }
     s += &format!("  energy: {:.4e} J\n", r.energy.stored_j);
     for e in &r.expect {

@@ -33,9 +33,7 @@ pub fn variant_hash(case: u64, v: &Variant) -> String {
 /// True when the variant folder holds results made from the same case and parameters.
 pub fn is_whole(out: &Path, v: &Variant, case: u64) -> bool {
     let dir = out.join(&v.label);
-    dir.join("results.json").is_file()
-        && std::fs::read_to_string(dir.join("variant.hash"))
-            .is_ok_and(|h| h == variant_hash(case, v))
+    dir.join("results.json").is_file() && std::fs::read_to_string(dir.join("variant.hash")).is_ok_and(|h| h == variant_hash(case, v))
 }
 
 /// One row of the sweep table.
@@ -62,15 +60,11 @@ pub fn rows_from_folders(folders: &[PathBuf]) -> Result<Vec<Row>, String> {
 }
 
 fn collect(dir: &Path, rows: &mut Vec<Row>, depth: usize) -> Result<(), String> {
-    let entries =
-        std::fs::read_dir(dir).map_err(|e| format!("cannot read {}: {e}", dir.display()))?;
+    let entries = std::fs::read_dir(dir).map_err(|e| format!("cannot read {}: {e}", dir.display()))?;
     let mut paths: Vec<PathBuf> = entries.flatten().map(|e| e.path()).collect();
     paths.sort();
     for p in paths {
-        let name = p
-            .file_name()
-            .map(|n| n.to_string_lossy().into_owned())
-            .unwrap_or_default();
+        let name = p.file_name().map(|n| n.to_string_lossy().into_owned()).unwrap_or_default();
         if p.is_dir() && name.starts_with("variant-") {
             let file = p.join("results.json");
             if file.is_file() {
@@ -84,19 +78,12 @@ fn collect(dir: &Path, rows: &mut Vec<Row>, depth: usize) -> Result<(), String> 
 }
 
 fn read_row(file: &Path) -> Result<Row, String> {
-    let text = std::fs::read_to_string(file)
-        .map_err(|e| format!("cannot read {}: {e}", file.display()))?;
-    let v: Value = serde_json::from_str(&text)
-        .map_err(|e| format!("{} is not valid results JSON: {e}", file.display()))?;
-    let variant: crate::post::VariantInfo = serde_json::from_value(v["variant"].clone())
-        .map_err(|e| format!("{}: no variant section: {e}", file.display()))?;
+    let text = std::fs::read_to_string(file).map_err(|e| format!("cannot read {}: {e}", file.display()))?;
+    let v: Value = serde_json::from_str(&text).map_err(|e| format!("{} is not valid results JSON: {e}", file.display()))?;
+    let variant: crate::post::VariantInfo = serde_json::from_value(v["variant"].clone()).map_err(|e| format!("{}: no variant section: {e}", file.display()))?;
     let values: BTreeMap<String, f64> = v["values"]
         .as_object()
-        .map(|m| {
-            m.iter()
-                .map(|(k, x)| (k.clone(), x.as_f64().unwrap_or(f64::NAN)))
-                .collect()
-        })
+        .map(|m| m.iter().map(|(k, x)| (k.clone(), x.as_f64().unwrap_or(f64::NAN))).collect())
         .unwrap_or_default();
     Ok(Row {
         index: variant.index,
@@ -128,10 +115,7 @@ pub fn unit_of(name: &str) -> &'static str {
 
 /// The table: variant, swept parameters, converged, then every value (units in the header).
 pub fn table(rows: &[Row]) -> String {
-    let params: Vec<String> = rows
-        .first()
-        .map(|r| r.swept.iter().map(|(k, _)| k.clone()).collect())
-        .unwrap_or_default();
+    let params: Vec<String> = rows.first().map(|r| r.swept.iter().map(|(k, _)| k.clone()).collect()).unwrap_or_default();
     let mut names: Vec<String> = rows.iter().flat_map(|r| r.values.keys().cloned()).collect();
     names.sort();
     names.dedup();
@@ -147,19 +131,12 @@ pub fn table(rows: &[Row]) -> String {
     for r in rows {
         s += &format!("{}", r.index);
         for p in &params {
-            let v = r
-                .swept
-                .iter()
-                .find(|(k, _)| k == p)
-                .map_or(f64::NAN, |x| x.1);
+            let v = r.swept.iter().find(|(k, _)| k == p).map_or(f64::NAN, |x| x.1);
             s += &format!(",{v}");
         }
         s += &format!(",{}", r.converged);
         for n in &names {
-            s += &r
-                .values
-                .get(n)
-                .map_or_else(|| ",".to_string(), |v| format!(",{v:.9e}"));
+            s += &r.values.get(n).map_or_else(|| ",".to_string(), |v| format!(",{v:.9e}"));
         }
         s.push('\n');
     }

@@ -10,23 +10,14 @@ fn corpus() -> PathBuf {
 }
 
 fn run(args: &[&str]) -> (i32, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_lodestone"))
-        .args(args)
-        .output()
-        .expect("run lodestone");
-    let text = format!(
-        "{}{}",
-        String::from_utf8_lossy(&out.stdout),
-        String::from_utf8_lossy(&out.stderr)
-    );
+    let out = Command::new(env!("CARGO_BIN_EXE_lodestone")).args(args).output().expect("run lodestone");
+    let text = format!("{}{}", String::from_utf8_lossy(&out.stdout), String::from_utf8_lossy(&out.stderr));
     (out.status.code().unwrap_or(-1), text)
 }
 
 fn assert_clean(text: &str) {
     assert!(
-        !text.contains("panicked")
-            && !text.contains("RUST_BACKTRACE")
-            && !text.contains("stack backtrace"),
+        !text.contains("panicked") && !text.contains("RUST_BACKTRACE") && !text.contains("stack backtrace"),
         "panic text in:\n{text}"
     );
 }
@@ -45,18 +36,12 @@ fn every_bad_case_gets_its_exit_code_and_message() {
     for case in &cases {
         let expect = std::fs::read_to_string(case.with_extension("expect")).expect("expect file");
         let mut lines = expect.lines();
-        let code: i32 = lines
-            .next()
-            .and_then(|l| l.trim().parse().ok())
-            .expect("exit code line");
+        let code: i32 = lines.next().and_then(|l| l.trim().parse().ok()).expect("exit code line");
         let fragment = lines.next().unwrap_or("").trim();
         let (got, text) = run(&["check", "--quiet", case.to_str().unwrap()]);
         assert_clean(&text);
         if got != code || !text.contains(fragment) {
-            failures.push(format!(
-                "{}: exit {got} (want {code}), message:\n{text}\nwanted: {fragment}",
-                case.display()
-            ));
+            failures.push(format!("{}: exit {got} (want {code}), message:\n{text}\nwanted: {fragment}", case.display()));
         }
     }
     assert!(
@@ -70,11 +55,7 @@ fn every_bad_case_gets_its_exit_code_and_message() {
 
 #[test]
 fn errors_point_at_line_and_column() {
-    let (code, text) = run(&[
-        "check",
-        "--quiet",
-        corpus().join("misspelled-material.toml").to_str().unwrap(),
-    ]);
+    let (code, text) = run(&["check", "--quiet", corpus().join("misspelled-material.toml").to_str().unwrap()]);
     assert_eq!(code, 2);
     assert!(text.contains("misspelled-material.toml:7:12"), "{text}");
     assert!(text.contains("^^^^^"), "{text}");
@@ -98,13 +79,7 @@ fn a_missing_file_is_reported() {
 #[test]
 fn an_unwritable_output_folder_is_reported_before_solving() {
     let case = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/pot-magnet.toml");
-    let (code, text) = run(&[
-        "solve",
-        "--quiet",
-        case.to_str().unwrap(),
-        "-o",
-        "/dev/null/results",
-    ]);
+    let (code, text) = run(&["solve", "--quiet", case.to_str().unwrap(), "-o", "/dev/null/results"]);
     assert_clean(&text);
     assert_eq!(code, 2, "{text}");
     assert!(text.contains("cannot create the output folder"), "{text}");
@@ -113,15 +88,7 @@ fn an_unwritable_output_folder_is_reported_before_solving() {
 #[test]
 fn an_unknown_parameter_override_is_reported() {
     let case = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/pot-magnet.toml");
-    let (code, text) = run(&[
-        "solve",
-        "--quiet",
-        case.to_str().unwrap(),
-        "--set",
-        "gapp=2",
-        "-o",
-        "/tmp/lodestone-never",
-    ]);
+    let (code, text) = run(&["solve", "--quiet", case.to_str().unwrap(), "--set", "gapp=2", "-o", "/tmp/lodestone-never"]);
     assert_eq!(code, 2, "{text}");
     assert!(text.contains("did you mean 'gap'"), "{text}");
 }

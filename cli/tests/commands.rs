@@ -23,11 +23,7 @@ fn run(cmd: &mut Command) -> (i32, String) {
     let out = cmd.output().expect("run");
     (
         out.status.code().unwrap_or(-1),
-        format!(
-            "{}{}",
-            String::from_utf8_lossy(&out.stdout),
-            String::from_utf8_lossy(&out.stderr)
-        ),
+        format!("{}{}", String::from_utf8_lossy(&out.stdout), String::from_utf8_lossy(&out.stderr)),
     )
 }
 
@@ -38,9 +34,7 @@ fn column(csv: &str, name: &str) -> Vec<f64> {
         .iter()
         .position(|h| h.starts_with(name))
         .unwrap_or_else(|| panic!("no column {name} in {header:?}"));
-    lines
-        .map(|l| l.split(',').nth(k).unwrap().parse().unwrap())
-        .collect()
+    lines.map(|l| l.split(',').nth(k).unwrap().parse().unwrap()).collect()
 }
 
 #[test]
@@ -48,15 +42,7 @@ fn gap_sweep_falls_monotonically_and_shards_merge_to_the_same_table() {
     let case = cases().join("holding-magnet-gap-sweep.toml");
     let dir = temp("sweep");
     let full = dir.join("full");
-    let (code, text) = run(exe().args([
-        "solve",
-        "--quiet",
-        case.to_str().unwrap(),
-        "-o",
-        full.to_str().unwrap(),
-        "--set",
-        "plate=4",
-    ]));
+    let (code, text) = run(exe().args(["solve", "--quiet", case.to_str().unwrap(), "-o", full.to_str().unwrap(), "--set", "plate=4"]));
     assert_eq!(code, 0, "{text}");
     let table = std::fs::read_to_string(full.join("sweep.csv")).unwrap();
     assert_eq!(table.lines().count(), 1 + 5, "{table}");
@@ -64,15 +50,9 @@ fn gap_sweep_falls_monotonically_and_shards_merge_to_the_same_table() {
     let gaps = column(&table, "gap");
     assert!(gaps.windows(2).all(|g| g[1] > g[0]));
     // Attraction (negative z) weakens as the gap grows.
-    assert!(
-        pull.windows(2).all(|p| p[1] > p[0]),
-        "pull does not fall with the gap: {pull:?}"
-    );
+    assert!(pull.windows(2).all(|p| p[1] > p[0]), "pull does not fall with the gap: {pull:?}");
     let header = table.lines().next().unwrap();
-    assert!(
-        header.contains("force.pull.z [N]") && header.contains("part.plate.b.max [T]"),
-        "{header}"
-    );
+    assert!(header.contains("force.pull.z [N]") && header.contains("part.plate.b.max [T]"), "{header}");
     let mut shards = Vec::new();
     for k in 0..3 {
         let out = dir.join(format!("shard-{k}"));
@@ -98,24 +78,11 @@ fn gap_sweep_falls_monotonically_and_shards_merge_to_the_same_table() {
     }
     let (code, text) = run(cmd.args(["-o", merged.to_str().unwrap()]));
     assert_eq!(code, 0, "{text}");
-    assert_eq!(
-        std::fs::read_to_string(merged.join("sweep.csv")).unwrap(),
-        table
-    );
+    assert_eq!(std::fs::read_to_string(merged.join("sweep.csv")).unwrap(), table);
     // A rerun skips whole variants.
-    let (code, text) = run(exe().args([
-        "solve",
-        case.to_str().unwrap(),
-        "-o",
-        full.to_str().unwrap(),
-        "--set",
-        "plate=4",
-    ]));
+    let (code, text) = run(exe().args(["solve", case.to_str().unwrap(), "-o", full.to_str().unwrap(), "--set", "plate=4"]));
     assert_eq!(code, 0);
-    assert!(
-        text.contains("0 variants solved (5 already whole)"),
-        "{text}"
-    );
+    assert!(text.contains("0 variants solved (5 already whole)"), "{text}");
     let _ = std::fs::remove_dir_all(&dir);
 }
 
@@ -145,32 +112,16 @@ fn check_passes_fails_and_writes_junit() {
     let case = dir.join("case.toml");
     std::fs::write(&case, CHECKED.replace("BOUND", "1 mT")).unwrap();
     let junit = dir.join("report.xml");
-    let (code, text) = run(exe().args([
-        "check",
-        "--quiet",
-        case.to_str().unwrap(),
-        "--junit",
-        junit.to_str().unwrap(),
-    ]));
+    let (code, text) = run(exe().args(["check", "--quiet", case.to_str().unwrap(), "--junit", junit.to_str().unwrap()]));
     assert_eq!(code, 0, "{text}");
-    assert!(std::fs::read_to_string(&junit)
-        .unwrap()
-        .contains("tests=\"2\" failures=\"0\""));
+    assert!(std::fs::read_to_string(&junit).unwrap().contains("tests=\"2\" failures=\"0\""));
     std::fs::write(&case, CHECKED.replace("BOUND", "10 T")).unwrap();
-    let (code, text) = run(exe().args([
-        "check",
-        "--quiet",
-        case.to_str().unwrap(),
-        "--junit",
-        junit.to_str().unwrap(),
-    ]));
+    let (code, text) = run(exe().args(["check", "--quiet", case.to_str().unwrap(), "--junit", junit.to_str().unwrap()]));
     assert_eq!(code, 1, "{text}");
     assert!(text.contains("FAIL"), "{text}");
     let xml = std::fs::read_to_string(&junit).unwrap();
     assert!(
-        xml.starts_with("<?xml")
-            && xml.contains("tests=\"2\" failures=\"1\"")
-            && xml.matches("<failure").count() == 1,
+        xml.starts_with("<?xml") && xml.contains("tests=\"2\" failures=\"1\"") && xml.matches("<failure").count() == 1,
         "{xml}"
     );
     let _ = std::fs::remove_dir_all(&dir);
@@ -182,23 +133,11 @@ fn a_failed_run_leaves_earlier_results_intact() {
     let case = dir.join("case.toml");
     std::fs::write(&case, CHECKED.replace("BOUND", "1 mT")).unwrap();
     let out = dir.join("out");
-    let (code, _) = run(exe().args([
-        "solve",
-        "--quiet",
-        case.to_str().unwrap(),
-        "-o",
-        out.to_str().unwrap(),
-    ]));
+    let (code, _) = run(exe().args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()]));
     assert_eq!(code, 0);
     let before = std::fs::read(out.join("results.json")).unwrap();
     std::fs::write(&case, CHECKED.replace("BOUND", "1 mT").replace("N42", "N4")).unwrap();
-    let (code, _) = run(exe().args([
-        "solve",
-        "--quiet",
-        case.to_str().unwrap(),
-        "-o",
-        out.to_str().unwrap(),
-    ]));
+    let (code, _) = run(exe().args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()]));
     assert_eq!(code, 2);
     assert_eq!(std::fs::read(out.join("results.json")).unwrap(), before);
     let _ = std::fs::remove_dir_all(&dir);
@@ -210,43 +149,25 @@ fn an_interrupted_solve_leaves_earlier_results_byte_identical() {
     let case = dir.join("case.toml");
     std::fs::write(&case, CHECKED.replace("BOUND", "1 mT")).unwrap();
     let out = dir.join("out");
-    let (code, _) = run(exe().args([
-        "solve",
-        "--quiet",
-        case.to_str().unwrap(),
-        "-o",
-        out.to_str().unwrap(),
-    ]));
+    let (code, _) = run(exe().args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()]));
     assert_eq!(code, 0);
     let before = std::fs::read(out.join("results.json")).unwrap();
     // A much finer mesh makes the solve long enough to interrupt midway.
     std::fs::write(
         &case,
-        CHECKED.replace("BOUND", "1 mT").replace(
-            "[study]",
-            "[mesh]\nsize = 0.02\nmax_elements = 5000000\n[study]",
-        ),
+        CHECKED
+            .replace("BOUND", "1 mT")
+            .replace("[study]", "[mesh]\nsize = 0.02\nmax_elements = 5000000\n[study]"),
     )
     .unwrap();
     let mut child = exe()
-        .args([
-            "solve",
-            "--quiet",
-            case.to_str().unwrap(),
-            "-o",
-            out.to_str().unwrap(),
-        ])
+        .args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()])
         .spawn()
         .unwrap();
     std::thread::sleep(std::time::Duration::from_millis(1000));
-    let _ = Command::new("kill")
-        .args(["-INT", &child.id().to_string()])
-        .status();
+    let _ = Command::new("kill").args(["-INT", &child.id().to_string()]).status();
     let status = child.wait().unwrap();
-    assert!(
-        status.code().is_none(),
-        "the solve was not interrupted midway: {status:?}"
-    );
+    assert!(status.code().is_none(), "the solve was not interrupted midway: {status:?}");
     assert_eq!(std::fs::read(out.join("results.json")).unwrap(), before);
     let leftovers: Vec<_> = std::fs::read_dir(&out)
         .unwrap()
@@ -262,26 +183,15 @@ fn materials_lists_and_shows_entries() {
     let (code, text) = run(exe().args(["materials"]));
     assert_eq!(code, 0);
     assert!(
-        text.contains("N42SH")
-            && text.contains("low-carbon-steel")
-            && text.contains("YXG28H")
-            && text.contains("Y30BH"),
+        text.contains("N42SH") && text.contains("low-carbon-steel") && text.contains("YXG28H") && text.contains("Y30BH"),
         "{text}"
     );
     let (code, text) = run(exe().args(["materials", "N42SH"]));
     assert_eq!(code, 0);
-    assert!(
-        text.contains("HcJ 1592 kA/m") && text.contains("source:"),
-        "{text}"
-    );
+    assert!(text.contains("HcJ 1592 kA/m") && text.contains("source:"), "{text}");
     let dir = temp("mat");
     let svg = dir.join("curve.svg");
-    let (code, _) = run(exe().args([
-        "materials",
-        "low-carbon-steel",
-        "--plot",
-        svg.to_str().unwrap(),
-    ]));
+    let (code, _) = run(exe().args(["materials", "low-carbon-steel", "--plot", svg.to_str().unwrap()]));
     assert_eq!(code, 0);
     assert!(std::fs::read_to_string(&svg).unwrap().contains("<svg"));
     let (code, text) = run(exe().args(["materials", "N42XH"]));

@@ -10,9 +10,7 @@ pub enum OuterBoundary {
     /// mapped by the Kelvin transformation onto a second disk.
     Open,
     /// A = 0 on a box. `None` picks a box twice the size of the parts.
-    FluxParallel {
-        from_to: Option<([f64; 2], [f64; 2])>,
-    },
+    FluxParallel { from_to: Option<([f64; 2], [f64; 2])> },
 }
 
 /// The closed outline of the physical domain, counter-clockwise.
@@ -41,9 +39,7 @@ impl Domain {
                     [0.5 * (lo[0] + hi[0]), 0.5 * (lo[1] + hi[1])]
                 };
                 let r_parts = part_points.map(|p| dist(p, c)).fold(0.0, f64::max);
-                let r_all = refinement_points(&spec.refinements)
-                    .map(|p| dist(p, c))
-                    .fold(0.0, f64::max);
+                let r_all = refinement_points(&spec.refinements).map(|p| dist(p, c)).fold(0.0, f64::max);
                 let radius = (1.5 * r_parts).max(1.1 * r_all);
                 let outline = circle_outline(c, radius, axisym, f64::INFINITY);
                 Ok(Domain {
@@ -54,10 +50,7 @@ impl Domain {
             }
             OuterBoundary::FluxParallel { from_to } => {
                 let (b0, b1) = match from_to {
-                    Some((a, b)) => (
-                        [a[0].min(b[0]), a[1].min(b[1])],
-                        [a[0].max(b[0]), a[1].max(b[1])],
-                    ),
+                    Some((a, b)) => ([a[0].min(b[0]), a[1].min(b[1])], [a[0].max(b[0]), a[1].max(b[1])]),
                     None => {
                         let (rlo, rhi) = bbox(refinement_points(&spec.refinements).chain([lo, hi]));
                         let pad = (rhi[0] - rlo[0]).max(rhi[1] - rlo[1]) * 0.5;
@@ -65,9 +58,7 @@ impl Domain {
                         ([x0, rlo[1] - pad], [rhi[0] + pad, rhi[1] + pad])
                     }
                 };
-                if !(lo[0] >= b0[0] && lo[1] >= b0[1] && hi[0] <= b1[0] && hi[1] <= b1[1])
-                    || (axisym && b0[0] != 0.0)
-                {
+                if !(lo[0] >= b0[0] && lo[1] >= b0[1] && hi[0] <= b1[0] && hi[1] <= b1[1]) || (axisym && b0[0] != 0.0) {
                     return Err(MeshError::Triangulation(
                         "the flux-parallel box must contain every part (and start at r = 0 when axisymmetric)".into(),
                     ));
@@ -110,11 +101,7 @@ pub fn circle_outline(c: [f64; 2], radius: f64, half: bool, max_chord: f64) -> V
         return (0..=n)
             .map(|k| {
                 let t = -std::f64::consts::FRAC_PI_2 + std::f64::consts::PI * k as f64 / n as f64;
-                let r = if k == 0 || k == n {
-                    0.0
-                } else {
-                    radius * t.cos()
-                };
+                let r = if k == 0 || k == n { 0.0 } else { radius * t.cos() };
                 [r, c[1] + radius * t.sin()]
             })
             .collect();

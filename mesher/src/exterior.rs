@@ -34,21 +34,12 @@ const RING_GROWTH: f64 = 1.3;
 
 /// Builds the disk (half-disk when `half`) from the domain's rim nodes, given
 /// as (global id, position on the circle).
-pub fn build(
-    center: [f64; 2],
-    radius: f64,
-    rim: &[(usize, [f64; 2])],
-    half: bool,
-    first_free_id: usize,
-) -> Result<ExteriorDisk, MeshError> {
+pub fn build(center: [f64; 2], radius: f64, rim: &[(usize, [f64; 2])], half: bool, first_free_id: usize) -> Result<ExteriorDisk, MeshError> {
     let spacing = rim_spacing(rim, center, radius, half);
     // Rim points go onto the exact circle (same angle): split points of the
     // domain's rim chords lie a sagitta inside it, and nearly collinear hull
     // points would give the exterior zero-area slivers.
-    let mut points: Vec<[f64; 2]> = rim
-        .iter()
-        .map(|r| onto_circle(r.1, center, radius))
-        .collect();
+    let mut points: Vec<[f64; 2]> = rim.iter().map(|r| onto_circle(r.1, center, radius)).collect();
     let mut global: Vec<usize> = rim.iter().map(|r| r.0).collect();
     let (mut rho, mut delta) = (radius, spacing);
     loop {
@@ -70,14 +61,9 @@ pub fn build(
             .map_err(|e| MeshError::Triangulation(format!("exterior disk: {e:?}")))?;
     }
     if dt.num_vertices() != points.len() {
-        return Err(MeshError::Triangulation(
-            "exterior disk: coincident points".into(),
-        ));
+        return Err(MeshError::Triangulation("exterior disk: coincident points".into()));
     }
-    let triangles = dt
-        .inner_faces()
-        .map(|f| f.vertices().map(|v| v.fix().index()))
-        .collect();
+    let triangles = dt.inner_faces().map(|f| f.vertices().map(|v| v.fix().index())).collect();
     Ok(ExteriorDisk {
         center,
         radius,
@@ -93,20 +79,12 @@ fn onto_circle(p: [f64; 2], c: [f64; 2], radius: f64) -> [f64; 2] {
     if d == 0.0 {
         return p;
     }
-    let r = if p[0] == 0.0 {
-        0.0
-    } else {
-        c[0] + (p[0] - c[0]) * radius / d
-    };
+    let r = if p[0] == 0.0 { 0.0 } else { c[0] + (p[0] - c[0]) * radius / d };
     [r, c[1] + (p[1] - c[1]) * radius / d]
 }
 
 fn rim_spacing(rim: &[(usize, [f64; 2])], c: [f64; 2], radius: f64, half: bool) -> f64 {
-    let arc = if half {
-        std::f64::consts::PI
-    } else {
-        2.0 * std::f64::consts::PI
-    } * radius;
+    let arc = if half { std::f64::consts::PI } else { 2.0 * std::f64::consts::PI } * radius;
     let _ = c;
     arc / (rim.len().max(2) - usize::from(half)) as f64
 }

@@ -64,10 +64,7 @@ pub fn part_polygons(spec: &MeshSpec) -> Result<Vec<Vec<[f64; 2]>>, MeshError> {
         .enumerate()
         .map(|(i, part)| {
             if !(part.mesh_size.is_finite() && part.mesh_size > 0.0) {
-                return Err(MeshError::BadSize {
-                    part: i,
-                    size: part.mesh_size,
-                });
+                return Err(MeshError::BadSize { part: i, size: part.mesh_size });
             }
             let poly = shape_polygon(i, &part.shape, part.mesh_size, spec.symmetry)?;
             validate_polygon(i, &poly, spec.symmetry)?;
@@ -76,12 +73,7 @@ pub fn part_polygons(spec: &MeshSpec) -> Result<Vec<Vec<[f64; 2]>>, MeshError> {
         .collect()
 }
 
-fn shape_polygon(
-    part: usize,
-    shape: &Shape,
-    size: f64,
-    symmetry: Symmetry,
-) -> Result<Vec<[f64; 2]>, MeshError> {
+fn shape_polygon(part: usize, shape: &Shape, size: f64, symmetry: Symmetry) -> Result<Vec<[f64; 2]>, MeshError> {
     let mut poly = match shape {
         Shape::Polygon(p) => p.clone(),
         Shape::Rect { from, to } => {
@@ -100,13 +92,7 @@ fn shape_polygon(
     Ok(poly)
 }
 
-fn circle_polygon(
-    part: usize,
-    c: [f64; 2],
-    radius: f64,
-    size: f64,
-    symmetry: Symmetry,
-) -> Result<Vec<[f64; 2]>, MeshError> {
+fn circle_polygon(part: usize, c: [f64; 2], radius: f64, size: f64, symmetry: Symmetry) -> Result<Vec<[f64; 2]>, MeshError> {
     if !(radius.is_finite() && c[0].is_finite() && c[1].is_finite()) {
         return Err(MeshError::NotFinite { part });
     }
@@ -120,13 +106,8 @@ fn circle_polygon(
         let half = n.div_ceil(2).max(4);
         let pts = (0..=half)
             .map(|k| {
-                let t =
-                    -std::f64::consts::FRAC_PI_2 + std::f64::consts::PI * k as f64 / half as f64;
-                let r = if k == 0 || k == half {
-                    0.0
-                } else {
-                    radius * t.cos()
-                };
+                let t = -std::f64::consts::FRAC_PI_2 + std::f64::consts::PI * k as f64 / half as f64;
+                let r = if k == 0 || k == half { 0.0 } else { radius * t.cos() };
                 [r, c[1] + radius * t.sin()]
             })
             .collect();
@@ -150,10 +131,7 @@ pub fn circle_segments(radius: f64, size: f64) -> usize {
 
 fn validate_polygon(part: usize, poly: &[[f64; 2]], symmetry: Symmetry) -> Result<(), MeshError> {
     if poly.len() < 3 {
-        return Err(MeshError::TooFewPoints {
-            part,
-            count: poly.len(),
-        });
+        return Err(MeshError::TooFewPoints { part, count: poly.len() });
     }
     let extent = bbox_extent(poly);
     if !(1e-6..=1e4).contains(&extent) || poly.iter().flatten().any(|v| v.abs() > 1e4) {
@@ -203,17 +181,11 @@ pub fn segments_intersect(a: [f64; 2], b: [f64; 2], c: [f64; 2], d: [f64; 2]) ->
     let d2 = orient(c, d, b);
     let d3 = orient(a, b, c);
     let d4 = orient(a, b, d);
-    if ((d1 > 0.0 && d2 < 0.0) || (d1 < 0.0 && d2 > 0.0))
-        && ((d3 > 0.0 && d4 < 0.0) || (d3 < 0.0 && d4 > 0.0))
-    {
+    if ((d1 > 0.0 && d2 < 0.0) || (d1 < 0.0 && d2 > 0.0)) && ((d3 > 0.0 && d4 < 0.0) || (d3 < 0.0 && d4 > 0.0)) {
         return true;
     }
     let on = |p: [f64; 2], q: [f64; 2], r: [f64; 2], o: f64| {
-        o == 0.0
-            && r[0] >= p[0].min(q[0])
-            && r[0] <= p[0].max(q[0])
-            && r[1] >= p[1].min(q[1])
-            && r[1] <= p[1].max(q[1])
+        o == 0.0 && r[0] >= p[0].min(q[0]) && r[0] <= p[0].max(q[0]) && r[1] >= p[1].min(q[1]) && r[1] <= p[1].max(q[1])
     };
     on(c, d, a, d1) || on(c, d, b, d2) || on(a, b, c, d3) || on(a, b, d, d4)
 }

@@ -41,15 +41,8 @@ pub struct PartSpec {
 /// Something that is not a part but wants a fine mesh near it (a probe).
 #[derive(Clone, Debug)]
 pub enum Refinement {
-    Point {
-        at: [f64; 2],
-        size: f64,
-    },
-    Line {
-        from: [f64; 2],
-        to: [f64; 2],
-        size: f64,
-    },
+    Point { at: [f64; 2], size: f64 },
+    Line { from: [f64; 2], to: [f64; 2], size: f64 },
 }
 
 /// Everything the mesher needs, in consistent length units (metres in practice).

@@ -31,11 +31,7 @@ pub fn sources(spec: &MeshSpec, polygons: &[Vec<[f64; 2]>]) -> Vec<SizeSource> {
     for r in &spec.refinements {
         match *r {
             Refinement::Point { at, size } => out.push(SizeSource { a: at, b: at, size }),
-            Refinement::Line { from, to, size } => out.push(SizeSource {
-                a: from,
-                b: to,
-                size,
-            }),
+            Refinement::Line { from, to, size } => out.push(SizeSource { a: from, b: to, size }),
         }
     }
     out
@@ -67,11 +63,7 @@ pub fn estimate(spec: &MeshSpec, polygons: &[Vec<[f64; 2]>], domain: &Domain) ->
     2.0 * n
 }
 
-pub fn check_estimate(
-    spec: &MeshSpec,
-    polygons: &[Vec<[f64; 2]>],
-    domain: &Domain,
-) -> Result<(), MeshError> {
+pub fn check_estimate(spec: &MeshSpec, polygons: &[Vec<[f64; 2]>], domain: &Domain) -> Result<(), MeshError> {
     let estimate = estimate(spec, polygons, domain);
     if !estimate.is_finite() || estimate > spec.max_triangles as f64 {
         return Err(MeshError::TooManyTriangles {

@@ -8,9 +8,7 @@ use crate::mesh::{BoundaryTag, Mesh, Region};
 use crate::size_field::{self, SizeSource};
 use crate::{MeshError, MeshSpec};
 use spade::handles::FixedVertexHandle;
-use spade::{
-    AngleLimit, ConstrainedDelaunayTriangulation, Point2, RefinementParameters, Triangulation,
-};
+use spade::{AngleLimit, ConstrainedDelaunayTriangulation, Point2, RefinementParameters, Triangulation};
 
 type Cdt = ConstrainedDelaunayTriangulation<Point2<f64>>;
 
@@ -40,11 +38,7 @@ fn snap(v: f64) -> f64 {
     }
 }
 
-pub fn mesh_domain(
-    spec: &MeshSpec,
-    polygons: &[Vec<[f64; 2]>],
-    domain: &Domain,
-) -> Result<Mesh, MeshError> {
+pub fn mesh_domain(spec: &MeshSpec, polygons: &[Vec<[f64; 2]>], domain: &Domain) -> Result<Mesh, MeshError> {
     let mut work = Work {
         cdt: Cdt::new(),
         size: Vec::new(),
@@ -61,23 +55,10 @@ pub fn mesh_domain(
         // The rim is split on the circle itself: bisected chords would leave
         // points a rounding error inside the hull, and slivers with them.
         Some((c, radius)) => {
-            let samples = crate::domain::circle_outline(
-                c,
-                radius,
-                false,
-                2.0 * std::f64::consts::PI * radius / 4096.0,
-            );
-            let rim_size = samples
-                .iter()
-                .map(|&p| work.size_at(p))
-                .fold(f64::INFINITY, f64::min);
+            let samples = crate::domain::circle_outline(c, radius, false, 2.0 * std::f64::consts::PI * radius / 4096.0);
+            let rim_size = samples.iter().map(|&p| work.size_at(p)).fold(f64::INFINITY, f64::min);
             // 0.9: chords a little shorter than the size, so that no chord is bisected.
-            crate::domain::circle_outline(
-                c,
-                radius,
-                spec.symmetry == Symmetry::Axisymmetric,
-                0.9 * rim_size,
-            )
+            crate::domain::circle_outline(c, radius, spec.symmetry == Symmetry::Axisymmetric, 0.9 * rim_size)
         }
         None => domain.outline.clone(),
     };
@@ -112,36 +93,21 @@ impl Work<'_> {
 
     /// Size wanted by the probes alone (few sources, so brute force is cheap).
     fn probe_size_at(&self, p: [f64; 2]) -> f64 {
-        size_field::size_at(
-            p,
-            &self.sources[self.n_part_sources..],
-            self.grading,
-            self.max_size,
-        )
+        size_field::size_at(p, &self.sources[self.n_part_sources..], self.grading, self.max_size)
     }
 
     /// True for an edge on the axis r = 0 that the outline already constrains.
     fn on_axis(&self, a: FixedVertexHandle, b: FixedVertexHandle) -> bool {
-        self.axisymmetric
-            && self.cdt.vertex(a).position().x == 0.0
-            && self.cdt.vertex(b).position().x == 0.0
-            && self.constrained_axis
+        self.axisymmetric && self.cdt.vertex(a).position().x == 0.0 && self.cdt.vertex(b).position().x == 0.0 && self.constrained_axis
     }
 
-    fn insert(
-        &mut self,
-        p: [f64; 2],
-        size: f64,
-        hint: Option<FixedVertexHandle>,
-    ) -> Result<FixedVertexHandle, MeshError> {
+    fn insert(&mut self, p: [f64; 2], size: f64, hint: Option<FixedVertexHandle>) -> Result<FixedVertexHandle, MeshError> {
         let pt = Point2::new(snap(p[0]), snap(p[1]));
         let v = match hint {
             Some(h) => self.cdt.insert_with_hint(pt, h),
             None => self.cdt.insert(pt),
         }
-        .map_err(|e| {
-            MeshError::Triangulation(format!("point ({:.6e}, {:.6e}): {e:?}", p[0], p[1]))
-        })?;
+        .map_err(|e| MeshError::Triangulation(format!("point ({:.6e}, {:.6e}): {e:?}", p[0], p[1])))?;
         let i = v.index();
         if i >= self.size.len() {
             self.size.resize(i + 1, f64::INFINITY);
@@ -151,11 +117,7 @@ impl Work<'_> {
     }
 
     /// Inserts a polyline split so that no piece is longer than the local size.
-    fn add_points(
-        &mut self,
-        pts: &[[f64; 2]],
-        closed: bool,
-    ) -> Result<Vec<FixedVertexHandle>, MeshError> {
+    fn add_points(&mut self, pts: &[[f64; 2]], closed: bool) -> Result<Vec<FixedVertexHandle>, MeshError> {
         let n = pts.len();
         let segs = if closed { n } else { n - 1 };
         let mut handles = Vec::new();
@@ -229,8 +191,7 @@ impl Work<'_> {
         for i in 0..m {
             let (a, b) = (handles[i], handles[(i + 1) % m]);
             if a != b && !self.on_axis(a, b) {
-                self.cdt
-                    .add_constraint_and_split(a, b, |p| Point2::new(snap(p.x), snap(p.y)));
+                self.cdt.add_constraint_and_split(a, b, |p| Point2::new(snap(p.x), snap(p.y)));
             }
         }
         let n = self.cdt.num_vertices();
@@ -255,11 +216,7 @@ impl Work<'_> {
     }
 
     /// Inserts the centroid of every triangle longer than its target size, pass after pass.
-    fn refine_to_size(
-        &mut self,
-        max_vertices: usize,
-        max_triangles: usize,
-    ) -> Result<(), MeshError> {
+    fn refine_to_size(&mut self, max_vertices: usize, max_triangles: usize) -> Result<(), MeshError> {
         loop {
             let region_size = self.region_sizes();
             let mut pending = Vec::new();
@@ -268,10 +225,7 @@ impl Work<'_> {
                 let pos = vs.map(|v| [v.position().x, v.position().y]);
                 let hs = vs.map(|v| self.size[v.fix().index()]);
                 let rs = region_size[face.fix().index()];
-                let centroid = [
-                    (pos[0][0] + pos[1][0] + pos[2][0]) / 3.0,
-                    (pos[0][1] + pos[1][1] + pos[2][1]) / 3.0,
-                ];
+                let centroid = [(pos[0][0] + pos[1][0] + pos[2][0]) / 3.0, (pos[0][1] + pos[1][1] + pos[2][1]) / 3.0];
                 let probe = self.probe_size_at(centroid);
                 let target = hs.iter().copied().fold(rs.min(probe), f64::min);
                 let edges = face.adjacent_edges();
@@ -312,12 +266,7 @@ impl Work<'_> {
         }
     }
 
-    fn refine_angles(
-        &mut self,
-        min_angle: f64,
-        max_vertices: usize,
-        max_triangles: usize,
-    ) -> Result<(), MeshError> {
+    fn refine_angles(&mut self, min_angle: f64, max_vertices: usize, max_triangles: usize) -> Result<(), MeshError> {
         let angle = min_angle.clamp(20.0, 33.0);
         let extra = max_vertices.saturating_sub(self.cdt.num_vertices());
         let params = RefinementParameters::<f64>::new()
@@ -334,11 +283,7 @@ impl Work<'_> {
     }
 
     fn extract(&self, symmetry: Symmetry, domain: &Domain) -> Mesh {
-        let nodes: Vec<[f64; 2]> = self
-            .cdt
-            .vertices()
-            .map(|v| [v.position().x, v.position().y])
-            .collect();
+        let nodes: Vec<[f64; 2]> = self.cdt.vertices().map(|v| [v.position().x, v.position().y]).collect();
         let regions_by_face = face_regions(&self.cdt, self.polygons);
         let mut triangles = Vec::with_capacity(self.cdt.num_inner_faces());
         let mut regions = Vec::with_capacity(self.cdt.num_inner_faces());
@@ -349,9 +294,7 @@ impl Work<'_> {
         let mut boundary = Vec::new();
         for edge in self.cdt.convex_hull() {
             let [a, b] = edge.vertices().map(|v| v.fix().index());
-            let on_axis = symmetry == Symmetry::Axisymmetric
-                && nodes[a][0].abs() <= 0.0
-                && nodes[b][0].abs() <= 0.0;
+            let on_axis = symmetry == Symmetry::Axisymmetric && nodes[a][0].abs() <= 0.0 && nodes[b][0].abs() <= 0.0;
             let tag = if on_axis {
                 BoundaryTag::Axis
             } else if domain.kelvin.is_some() {
@@ -400,14 +343,8 @@ fn face_regions(cdt: &Cdt, polygons: &[Vec<[f64; 2]>]) -> Vec<Option<Region>> {
             continue;
         }
         let p = start.positions();
-        let c = [
-            (p[0].x + p[1].x + p[2].x) / 3.0,
-            (p[0].y + p[1].y + p[2].y) / 3.0,
-        ];
-        let r = polygons
-            .iter()
-            .rposition(|poly| point_in_polygon(poly, c))
-            .map_or(Region::Air, Region::Part);
+        let c = [(p[0].x + p[1].x + p[2].x) / 3.0, (p[0].y + p[1].y + p[2].y) / 3.0];
+        let r = polygons.iter().rposition(|poly| point_in_polygon(poly, c)).map_or(Region::Air, Region::Part);
         region[start.fix().index()] = Some(r);
         stack.push(start);
         while let Some(face) = stack.pop() {
@@ -429,12 +366,7 @@ fn face_regions(cdt: &Cdt, polygons: &[Vec<[f64; 2]>]) -> Vec<Option<Region>> {
 }
 
 fn attach_exterior(mesh: &mut Mesh, c: [f64; 2], radius: f64) -> Result<(), MeshError> {
-    let mut rim: Vec<usize> = mesh
-        .boundary
-        .iter()
-        .filter(|(_, t)| *t == BoundaryTag::Rim)
-        .flat_map(|(e, _)| *e)
-        .collect();
+    let mut rim: Vec<usize> = mesh.boundary.iter().filter(|(_, t)| *t == BoundaryTag::Rim).flat_map(|(e, _)| *e).collect();
     if mesh.symmetry == Symmetry::Axisymmetric {
         rim.extend(
             mesh.boundary

@@ -2,9 +2,7 @@
 //! scatter map that puts each element entry straight into its slot of the
 //! compressed lower triangle.
 
-use crate::element::{
-    element_system, ElementLoad, ElementOrder, LocalSystem, Placement, EDGES, MAX_NODES,
-};
+use crate::element::{element_system, ElementLoad, ElementOrder, LocalSystem, Placement, EDGES, MAX_NODES};
 use crate::material::Law;
 use crate::problem::Problem;
 use mesher::{BoundaryTag, Mesh, Region, Symmetry};
@@ -46,11 +44,7 @@ pub struct Elements {
 impl Elements {
     pub fn from_mesh(mesh: &Mesh, order: ElementOrder) -> Elements {
         let mut corners: Vec<[usize; 3]> = mesh.triangles.clone();
-        let mut coords: Vec<[[f64; 2]; 3]> = mesh
-            .triangles
-            .iter()
-            .map(|t| t.map(|n| mesh.nodes[n]))
-            .collect();
+        let mut coords: Vec<[[f64; 2]; 3]> = mesh.triangles.iter().map(|t| t.map(|n| mesh.nodes[n])).collect();
         let mut kinds: Vec<ElementKind> = mesh
             .regions
             .iter()
@@ -70,10 +64,7 @@ impl Elements {
         }
         let mut positions = mesh.nodes.clone();
         let nodes = match order {
-            ElementOrder::Linear => corners
-                .iter()
-                .map(|c| [c[0], c[1], c[2], NONE, NONE, NONE])
-                .collect(),
+            ElementOrder::Linear => corners.iter().map(|c| [c[0], c[1], c[2], NONE, NONE, NONE]).collect(),
             ElementOrder::Quadratic => add_midpoints(&corners, &coords, &mut positions),
         };
         Elements {
@@ -90,9 +81,7 @@ impl Elements {
 
     pub fn placement(&self, e: usize) -> Placement {
         match (self.kinds[e], self.exterior) {
-            (ElementKind::Exterior, Some((center, radius))) => {
-                Placement::Exterior { center, radius }
-            }
+            (ElementKind::Exterior, Some((center, radius))) => Placement::Exterior { center, radius },
             _ => Placement::Physical,
         }
     }
@@ -122,11 +111,7 @@ impl Elements {
 
 /// Numbers the edge midpoints: one node per distinct edge, shared by the
 /// triangles on both sides (rim edges join the domain and the exterior).
-fn add_midpoints(
-    corners: &[[usize; 3]],
-    coords: &[[[f64; 2]; 3]],
-    positions: &mut Vec<[f64; 2]>,
-) -> Vec<[usize; MAX_NODES]> {
+fn add_midpoints(corners: &[[usize; 3]], coords: &[[[f64; 2]; 3]], positions: &mut Vec<[f64; 2]>) -> Vec<[usize; MAX_NODES]> {
     let mut keys: Vec<(usize, usize, u32)> = Vec::with_capacity(3 * corners.len());
     for (e, c) in corners.iter().enumerate() {
         for (k, [a, b]) in EDGES.iter().enumerate() {
@@ -180,9 +165,7 @@ fn fixed_nodes(mesh: &Mesh, els: &Elements) -> Vec<bool> {
             for (k, [a, b]) in EDGES.iter().enumerate() {
                 let (na, nb) = (els.nodes[e][*a], els.nodes[e][*b]);
                 let on_axis = axisym && x[*a][0] <= 0.0 && x[*b][0] <= 0.0;
-                if on_axis
-                    || (e < els.n_physical && fixed_edges.contains(&(na.min(nb), na.max(nb))))
-                {
+                if on_axis || (e < els.n_physical && fixed_edges.contains(&(na.min(nb), na.max(nb)))) {
                     fixed[els.nodes[e][3 + k]] = true;
                 }
             }
@@ -221,8 +204,7 @@ impl System {
         }
         let (pattern, scatter) = build_pattern(&elements, &dof_of_node, n_dofs);
         let nnz = pattern.nnz();
-        let matrix = CscMatrix::try_from_pattern_and_values(pattern, vec![0.0; nnz])
-            .expect("pattern and values agree by construction");
+        let matrix = CscMatrix::try_from_pattern_and_values(pattern, vec![0.0; nnz]).expect("pattern and values agree by construction");
         System {
             elements,
             dof_of_node,
@@ -249,20 +231,12 @@ impl System {
                 .into_par_iter()
                 .map(|e| {
                     let load = element_load(els.kinds[e], problem, air);
-                    element_system(
-                        &els.coords[e],
-                        &els.gather(e, a),
-                        els.order,
-                        symmetry,
-                        els.placement(e),
-                        load,
-                    )
+                    element_system(&els.coords[e], &els.gather(e, a), els.order, symmetry, els.placement(e), load)
                 })
                 .collect_into_vec(&mut self.block);
             for (off, (k, r)) in self.block.iter().enumerate() {
                 let e = start + off;
-                let slots =
-                    &self.scatter[MAX_NODES * MAX_NODES * e..MAX_NODES * MAX_NODES * (e + 1)];
+                let slots = &self.scatter[MAX_NODES * MAX_NODES * e..MAX_NODES * MAX_NODES * (e + 1)];
                 for i in 0..m {
                     for j in 0..m {
                         let s = slots[MAX_NODES * i + j];
@@ -372,15 +346,13 @@ fn build_pattern(els: &Elements, dof_of_node: &[usize], n: usize) -> (SparsityPa
                 for j in 0..m {
                     if d[i] != NONE && d[j] != NONE && d[i] >= d[j] {
                         let col = &indices[offsets[d[j]]..offsets[d[j] + 1]];
-                        s[MAX_NODES * i + j] =
-                            (offsets[d[j]] + col.binary_search(&d[i]).unwrap_or(0)) as u32;
+                        s[MAX_NODES * i + j] = (offsets[d[j]] + col.binary_search(&d[i]).unwrap_or(0)) as u32;
                     }
                 }
             }
             s
         })
         .collect();
-    let pattern = SparsityPattern::try_from_offsets_and_indices(n, n, offsets, indices)
-        .expect("sorted unique indices by construction");
+    let pattern = SparsityPattern::try_from_offsets_and_indices(n, n, offsets, indices).expect("sorted unique indices by construction");
     (pattern, scatter)
 }

@@ -32,7 +32,10 @@ impl std::fmt::Display for CurveError {
             CurveError::NotFinite { row } => write!(f, "row {row}: not a finite number"),
             CurveError::DoesNotStartAtOrigin => write!(f, "row 0: a B-H table must start at H = 0, B = 0"),
             CurveError::NotIncreasing { row } => write!(f, "row {row}: H and B must both increase strictly from the row before"),
-            CurveError::SlopeBelowMu0 { row } => write!(f, "row {row}: the curve rises more slowly than mu0 (dB/dH below the permeability of free space), which no magnetic material does"),
+            CurveError::SlopeBelowMu0 { row } => write!(
+                f,
+                "row {row}: the curve rises more slowly than mu0 (dB/dH below the permeability of free space), which no magnetic material does"
+            ),
         }
     }
 }
@@ -43,10 +46,7 @@ impl BhCurve {
         if points.len() < 3 {
             return Err(CurveError::TooFewPoints(points.len()));
         }
-        if let Some(row) = points
-            .iter()
-            .position(|p| !p[0].is_finite() || !p[1].is_finite())
-        {
+        if let Some(row) = points.iter().position(|p| !p[0].is_finite() || !p[1].is_finite()) {
             return Err(CurveError::NotFinite { row });
         }
         if points[0] != [0.0, 0.0] {
@@ -74,20 +74,8 @@ impl BhCurve {
         if b >= self.b[n - 1] {
             return (self.h[n - 1] + (b - self.b[n - 1]) / MU0, 1.0 / MU0);
         }
-        let k = self
-            .b
-            .partition_point(|&x| x <= b)
-            .saturating_sub(1)
-            .min(n - 2);
-        hermite(
-            self.b[k],
-            self.b[k + 1],
-            self.h[k],
-            self.h[k + 1],
-            self.slope[k],
-            self.slope[k + 1],
-            b,
-        )
+        let k = self.b.partition_point(|&x| x <= b).saturating_sub(1).min(n - 2);
+        hermite(self.b[k], self.b[k + 1], self.h[k], self.h[k + 1], self.slope[k], self.slope[k + 1], b)
     }
 
     /// Reluctivity nu = H/B and the tangent factor: dH/dB = nu I + (dh - nu) n n^T.
@@ -126,19 +114,9 @@ impl BhCurve {
     /// The knee: the point of the curve where the differential relative
     /// permeability has fallen to a tenth of its largest value past the peak.
     pub fn knee_b(&self) -> f64 {
-        let mu: Vec<f64> = self
-            .slope
-            .iter()
-            .map(|s| 1.0 / (MU0 * s.max(1e-30)))
-            .collect();
-        let (peak, mu_max) =
-            mu.iter().enumerate().fold(
-                (0, 0.0),
-                |acc, (i, &m)| if m > acc.1 { (i, m) } else { acc },
-            );
-        (peak..mu.len())
-            .find(|&i| mu[i] < 0.1 * mu_max)
-            .map_or(self.b[self.b.len() - 1], |i| self.b[i])
+        let mu: Vec<f64> = self.slope.iter().map(|s| 1.0 / (MU0 * s.max(1e-30))).collect();
+        let (peak, mu_max) = mu.iter().enumerate().fold((0, 0.0), |acc, (i, &m)| if m > acc.1 { (i, m) } else { acc });
+        (peak..mu.len()).find(|&i| mu[i] < 0.1 * mu_max).map_or(self.b[self.b.len() - 1], |i| self.b[i])
     }
 }
 
@@ -149,9 +127,7 @@ fn simpson(f: impl Fn(f64) -> f64, a: f64, b: f64) -> f64 {
 /// Slopes of a monotone piecewise cubic through (x, y) by Fritsch and Carlson (1980).
 fn fritsch_carlson_slopes(x: &[f64], y: &[f64]) -> Vec<f64> {
     let n = x.len();
-    let delta: Vec<f64> = (0..n - 1)
-        .map(|k| (y[k + 1] - y[k]) / (x[k + 1] - x[k]))
-        .collect();
+    let delta: Vec<f64> = (0..n - 1).map(|k| (y[k + 1] - y[k]) / (x[k + 1] - x[k])).collect();
     let mut m = vec![0.0; n];
     m[0] = delta[0];
     m[n - 1] = delta[n - 2];
@@ -180,15 +156,8 @@ fn hermite(x0: f64, x1: f64, y0: f64, y1: f64, m0: f64, m1: f64, x: f64) -> (f64
     let h = x1 - x0;
     let t = (x - x0) / h;
     let (t2, t3) = (t * t, t * t * t);
-    let v = (2.0 * t3 - 3.0 * t2 + 1.0) * y0
-        + (t3 - 2.0 * t2 + t) * h * m0
-        + (-2.0 * t3 + 3.0 * t2) * y1
-        + (t3 - t2) * h * m1;
-    let d = ((6.0 * t2 - 6.0 * t) * y0
-        + (3.0 * t2 - 4.0 * t + 1.0) * h * m0
-        + (-6.0 * t2 + 6.0 * t) * y1
-        + (3.0 * t2 - 2.0 * t) * h * m1)
-        / h;
+    let v = (2.0 * t3 - 3.0 * t2 + 1.0) * y0 + (t3 - 2.0 * t2 + t) * h * m0 + (-2.0 * t3 + 3.0 * t2) * y1 + (t3 - t2) * h * m1;
+    let d = ((6.0 * t2 - 6.0 * t) * y0 + (3.0 * t2 - 4.0 * t + 1.0) * h * m0 + (-6.0 * t2 + 6.0 * t) * y1 + (3.0 * t2 - 2.0 * t) * h * m1) / h;
     (v, d)
 }
 

@@ -59,24 +59,14 @@ pub struct PointOp {
 }
 
 /// Calls `f` at every quadrature point of the triangle with corners `x`.
-pub fn for_each_point(
-    x: &[[f64; 2]; 3],
-    order: ElementOrder,
-    symmetry: Symmetry,
-    placement: Placement,
-    mut f: impl FnMut(&PointOp),
-) {
+pub fn for_each_point(x: &[[f64; 2]; 3], order: ElementOrder, symmetry: Symmetry, placement: Placement, mut f: impl FnMut(&PointOp)) {
     for (lam, w) in DEGREE5.points.iter().zip(DEGREE5.weights) {
         f(&point_op(x, order, symmetry, placement, *lam, *w));
     }
 }
 
 /// Shape functions and their gradients at barycentric point `lam`.
-fn shape(
-    order: ElementOrder,
-    lam: [f64; 3],
-    grad_lam: [[f64; 2]; 3],
-) -> ([f64; MAX_NODES], [[f64; 2]; MAX_NODES]) {
+fn shape(order: ElementOrder, lam: [f64; 3], grad_lam: [[f64; 2]; 3]) -> ([f64; MAX_NODES], [[f64; 2]; MAX_NODES]) {
     let mut n = [0.0; MAX_NODES];
     let mut dn = [[0.0; 2]; MAX_NODES];
     match order {
@@ -91,8 +81,7 @@ fn shape(
             }
             for (k, [a, b]) in EDGES.iter().enumerate() {
                 n[3 + k] = 4.0 * lam[*a] * lam[*b];
-                dn[3 + k] =
-                    [0, 1].map(|d| 4.0 * (lam[*a] * grad_lam[*b][d] + lam[*b] * grad_lam[*a][d]));
+                dn[3 + k] = [0, 1].map(|d| 4.0 * (lam[*a] * grad_lam[*b][d] + lam[*b] * grad_lam[*a][d]));
             }
         }
     }
@@ -111,14 +100,7 @@ pub fn barycentric_gradients(x: &[[f64; 2]; 3]) -> ([[f64; 2]; 3], f64) {
 
 /// The operator at barycentric point `lam`, with integration weight `w` (a
 /// fraction of the area; pass 1 to get the density per unit area).
-pub fn point_op(
-    x: &[[f64; 2]; 3],
-    order: ElementOrder,
-    symmetry: Symmetry,
-    placement: Placement,
-    lam: [f64; 3],
-    w: f64,
-) -> PointOp {
+pub fn point_op(x: &[[f64; 2]; 3], order: ElementOrder, symmetry: Symmetry, placement: Placement, lam: [f64; 3], w: f64) -> PointOp {
     let (grad_lam, area) = barycentric_gradients(x);
     let (n, dn) = shape(order, lam, grad_lam);
     let len = order.n_nodes();
@@ -142,18 +124,12 @@ pub fn point_op(
             let r = p[0];
             let kelvin = match placement {
                 Placement::Physical => 1.0,
-                Placement::Exterior { center, radius } => {
-                    ((p[0] - center[0]).powi(2) + (p[1] - center[1]).powi(2)) / (radius * radius)
-                }
+                Placement::Exterior { center, radius } => ((p[0] - center[0]).powi(2) + (p[1] - center[1]).powi(2)) / (radius * radius),
             };
             for i in 0..len {
                 g[0][i] = -dn[i][1];
                 // On the axis A vanishes, so A/r tends to dA/dr there.
-                g[1][i] = if r > 0.0 {
-                    dn[i][0] + n[i] / r
-                } else {
-                    2.0 * dn[i][0]
-                };
+                g[1][i] = if r > 0.0 { dn[i][0] + n[i] / r } else { 2.0 * dn[i][0] };
             }
             PointOp {
                 weight: w * area * 2.0 * std::f64::consts::PI * r * kelvin,
@@ -218,13 +194,9 @@ pub fn element_system(
     for_each_point(x, order, symmetry, placement, |op| {
         let B = flux_density(op, a, load.background);
         let resp = load.law.response(B);
-        let hr = [
-            resp.h[0] - NU0 * load.background[0],
-            resp.h[1] - NU0 * load.background[1],
-        ];
+        let hr = [resp.h[0] - NU0 * load.background[0], resp.h[1] - NU0 * load.background[1]];
         for i in 0..op.len {
-            r[i] += op.weight
-                * (op.g[0][i] * hr[0] + op.g[1][i] * hr[1] - op.n[i] * load.current_density);
+            r[i] += op.weight * (op.g[0][i] * hr[0] + op.g[1][i] * hr[1] - op.n[i] * load.current_density);
             let tg = [
                 resp.dh_db[0][0] * op.g[0][i] + resp.dh_db[0][1] * op.g[1][i],
                 resp.dh_db[1][0] * op.g[0][i] + resp.dh_db[1][1] * op.g[1][i],

@@ -34,21 +34,15 @@ pub fn winding_linkage(solution: &Solution, parts: &[(usize, f64)], turns: f64) 
             for (k, &n) in els.element_nodes(e).iter().enumerate() {
                 a[k] = solution.node_potential(n);
             }
-            for_each_point(
-                &els.coords[e],
-                els.order,
-                solution.symmetry(),
-                solution.placement(e),
-                |op| {
-                    integral += op.weight * crate::element::potential(op, &a);
-                    area += op.weight
-                        * if solution.symmetry() == Symmetry::Axisymmetric {
-                            1.0 / (2.0 * std::f64::consts::PI * op.x[0])
-                        } else {
-                            1.0
-                        };
-                },
-            );
+            for_each_point(&els.coords[e], els.order, solution.symmetry(), solution.placement(e), |op| {
+                integral += op.weight * crate::element::potential(op, &a);
+                area += op.weight
+                    * if solution.symmetry() == Symmetry::Axisymmetric {
+                        1.0 / (2.0 * std::f64::consts::PI * op.x[0])
+                    } else {
+                        1.0
+                    };
+            });
         }
         if area > 0.0 {
             linkage += sign * turns * integral / area;

@@ -58,35 +58,22 @@ pub fn force_on(solution: &Solution, parts: &[usize], torque_center: [f64; 2]) -
         let (dn, _) = crate::element::barycentric_gradients(&els.coords[e]);
         let grad = [0, 1].map(|k| g[0] * dn[0][k] + g[1] * dn[1][k] + g[2] * dn[2][k]);
         let a = els.gather(e, &solution.reduced);
-        for_each_point(
-            &els.coords[e],
-            els.order,
-            solution.symmetry(),
-            solution.placement(e),
-            |op| {
-                let b = crate::element::flux_density(op, &a, solution.problem.applied_field);
-                let half = 0.5 * (b[0] * b[0] + b[1] * b[1]);
-                let t = [
-                    [b[0] * b[0] - half, b[0] * b[1]],
-                    [b[0] * b[1], b[1] * b[1] - half],
-                ];
-                let tg = [0, 1].map(|i| -NU0 * (t[i][0] * grad[0] + t[i][1] * grad[1]) * op.weight);
-                f[0] += tg[0];
-                f[1] += tg[1];
-                let arm = [op.x[0] - torque_center[0], op.x[1] - torque_center[1]];
-                torque += arm[0] * tg[1] - arm[1] * tg[0];
-            },
-        );
+        for_each_point(&els.coords[e], els.order, solution.symmetry(), solution.placement(e), |op| {
+            let b = crate::element::flux_density(op, &a, solution.problem.applied_field);
+            let half = 0.5 * (b[0] * b[0] + b[1] * b[1]);
+            let t = [[b[0] * b[0] - half, b[0] * b[1]], [b[0] * b[1], b[1] * b[1] - half]];
+            let tg = [0, 1].map(|i| -NU0 * (t[i][0] * grad[0] + t[i][1] * grad[1]) * op.weight);
+            f[0] += tg[0];
+            f[1] += tg[1];
+            let arm = [op.x[0] - torque_center[0], op.x[1] - torque_center[1]];
+            torque += arm[0] * tg[1] - arm[1] * tg[0];
+        });
     }
     if axisym {
         f[0] = 0.0;
         torque = 0.0;
     }
-    Force {
-        vector: f,
-        torque,
-        contact,
-    }
+    Force { vector: f, torque, contact }
 }
 
 /// Element layers the band spans at least.
@@ -96,12 +83,7 @@ const BAND_LAYERS: f64 = 3.0;
 const BAND_FRACTION: f64 = 0.5;
 
 /// g at every node: 1 on the set, 1 - d/width in air within the band, 0 elsewhere.
-fn band_weight(
-    solution: &Solution,
-    in_set_node: &[bool],
-    other: &[bool],
-    in_set: &dyn Fn(ElementKind) -> bool,
-) -> Vec<f64> {
+fn band_weight(solution: &Solution, in_set_node: &[bool], other: &[bool], in_set: &dyn Fn(ElementKind) -> bool) -> Vec<f64> {
     let els = &solution.elements;
     let pos = &els.positions;
     // Boundary edges of the set: edges of set elements whose opposite side is not in the set.
@@ -127,19 +109,12 @@ fn band_weight(
         }
         i = j;
     }
-    let mut lengths: Vec<f64> = boundary
-        .iter()
-        .map(|&(a, b)| dist(pos[a], pos[b]))
-        .collect();
+    let mut lengths: Vec<f64> = boundary.iter().map(|&(a, b)| dist(pos[a], pos[b])).collect();
     lengths.sort_by(f64::total_cmp);
     let (blo, bhi) = mesher::geometry::bbox(boundary.iter().map(|&(a, _)| pos[a]));
     let extent = (bhi[0] - blo[0]).max(bhi[1] - blo[1]).max(0.0);
-    let width = (BAND_LAYERS * lengths.get(lengths.len() / 2).copied().unwrap_or(0.0))
-        .max(BAND_FRACTION * extent);
-    let mut weight: Vec<f64> = in_set_node
-        .iter()
-        .map(|&s| if s { 1.0 } else { 0.0 })
-        .collect();
+    let width = (BAND_LAYERS * lengths.get(lengths.len() / 2).copied().unwrap_or(0.0)).max(BAND_FRACTION * extent);
+    let mut weight: Vec<f64> = in_set_node.iter().map(|&s| if s { 1.0 } else { 0.0 }).collect();
     if width <= 0.0 {
         return weight;
     }
@@ -157,14 +132,7 @@ fn band_weight(
         for k in 0..3 {
             let n = els.nodes[e][k];
             let p = pos[n];
-            if in_set_node[n]
-                || other[n]
-                || weight[n] > 0.0
-                || p[0] < lo[0]
-                || p[1] < lo[1]
-                || p[0] > hi[0]
-                || p[1] > hi[1]
-            {
+            if in_set_node[n] || other[n] || weight[n] > 0.0 || p[0] < lo[0] || p[1] < lo[1] || p[0] > hi[0] || p[1] > hi[1] {
                 continue;
             }
             let d = boundary

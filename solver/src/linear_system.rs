@@ -31,15 +31,13 @@ impl CholeskySolver {
     /// Symbolic analysis (fill-reducing ordering and elimination tree) of the lower triangle.
     pub fn analyse(m: &CscMatrix<f64>) -> Result<CholeskySolver, LinearError> {
         faer::set_global_parallelism(faer::Par::Seq);
-        let symbolic = SymbolicLlt::try_new(view(m).symbolic(), Side::Lower)
-            .map_err(|_| LinearError::OutOfMemory)?;
+        let symbolic = SymbolicLlt::try_new(view(m).symbolic(), Side::Lower).map_err(|_| LinearError::OutOfMemory)?;
         Ok(CholeskySolver { symbolic })
     }
 
     /// Numeric factorization of the current values.
     pub fn factorize(&self, m: &CscMatrix<f64>) -> Result<Factor, LinearError> {
-        let llt = Llt::try_new_with_symbolic(self.symbolic.clone(), view(m), Side::Lower)
-            .map_err(|_| LinearError::NotPositiveDefinite)?;
+        let llt = Llt::try_new_with_symbolic(self.symbolic.clone(), view(m), Side::Lower).map_err(|_| LinearError::NotPositiveDefinite)?;
         Ok(Factor { llt })
     }
 }

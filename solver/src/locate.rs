@@ -29,20 +29,13 @@ impl Locator {
         let extent = (hi[0] - lo[0]).max(hi[1] - lo[1]).max(f64::MIN_POSITIVE);
         let area = (hi[0] - lo[0]).max(1e-300) * (hi[1] - lo[1]).max(1e-300);
         let cell = (area / n as f64).sqrt().max(extent / 2048.0) * 2.0;
-        let dims = [
-            ((hi[0] - lo[0]) / cell) as usize + 1,
-            ((hi[1] - lo[1]) / cell) as usize + 1,
-        ];
+        let dims = [((hi[0] - lo[0]) / cell) as usize + 1, ((hi[1] - lo[1]) / cell) as usize + 1];
         let mut count = vec![0usize; dims[0] * dims[1] + 1];
         let range = |x: &[[f64; 2]; 3]| {
-            let ix0 =
-                ((x.iter().map(|p| p[0]).fold(f64::INFINITY, f64::min) - lo[0]) / cell) as usize;
-            let ix1 = ((x.iter().map(|p| p[0]).fold(f64::NEG_INFINITY, f64::max) - lo[0]) / cell)
-                as usize;
-            let iy0 =
-                ((x.iter().map(|p| p[1]).fold(f64::INFINITY, f64::min) - lo[1]) / cell) as usize;
-            let iy1 = ((x.iter().map(|p| p[1]).fold(f64::NEG_INFINITY, f64::max) - lo[1]) / cell)
-                as usize;
+            let ix0 = ((x.iter().map(|p| p[0]).fold(f64::INFINITY, f64::min) - lo[0]) / cell) as usize;
+            let ix1 = ((x.iter().map(|p| p[0]).fold(f64::NEG_INFINITY, f64::max) - lo[0]) / cell) as usize;
+            let iy0 = ((x.iter().map(|p| p[1]).fold(f64::INFINITY, f64::min) - lo[1]) / cell) as usize;
+            let iy1 = ((x.iter().map(|p| p[1]).fold(f64::NEG_INFINITY, f64::max) - lo[1]) / cell) as usize;
             (ix0, ix1.min(dims[0] - 1), iy0, iy1.min(dims[1] - 1))
         };
         for x in &els.coords[..els.n_physical] {
@@ -94,9 +87,7 @@ impl Locator {
             .iter()
             .filter_map(|&e| {
                 let lam = barycentric(&els.coords[e], p);
-                lam.iter()
-                    .all(|&l| l >= -INSIDE_TOLERANCE)
-                    .then(|| (e, lam.map(|l| l.max(0.0))))
+                lam.iter().all(|&l| l >= -INSIDE_TOLERANCE).then(|| (e, lam.map(|l| l.max(0.0))))
             })
             .collect()
     }

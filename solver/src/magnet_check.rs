@@ -38,41 +38,27 @@ pub fn working_point(solution: &Solution, part: usize, dir: [f64; 2], knee_h: f6
             continue;
         }
         let a = els.gather(e, &solution.reduced);
-        for_each_point(
-            &els.coords[e],
-            els.order,
-            solution.symmetry(),
-            solution.placement(e),
-            |op| {
-                let b = flux_density(op, &a, solution.background(e));
-                let h = law.response(b).h;
-                let (bp, hp) = (b[0] * dir[0] + b[1] * dir[1], h[0] * dir[0] + h[1] * dir[1]);
-                vol += op.weight;
-                sb += bp * op.weight;
-                sh += hp * op.weight;
-                worst = worst.min(hp);
-                if hp < knee_h {
-                    past += op.weight;
-                }
-                points.push([hp, bp]);
-            },
-        );
+        for_each_point(&els.coords[e], els.order, solution.symmetry(), solution.placement(e), |op| {
+            let b = flux_density(op, &a, solution.background(e));
+            let h = law.response(b).h;
+            let (bp, hp) = (b[0] * dir[0] + b[1] * dir[1], h[0] * dir[0] + h[1] * dir[1]);
+            vol += op.weight;
+            sb += bp * op.weight;
+            sh += hp * op.weight;
+            worst = worst.min(hp);
+            if hp < knee_h {
+                past += op.weight;
+            }
+            points.push([hp, bp]);
+        });
     }
-    let (mean_b, mean_h) = if vol > 0.0 {
-        (sb / vol, sh / vol)
-    } else {
-        (0.0, 0.0)
-    };
+    let (mean_b, mean_h) = if vol > 0.0 { (sb / vol, sh / vol) } else { (0.0, 0.0) };
     let margin = if knee_h < 0.0 && worst.is_finite() {
         1.0 - worst / knee_h
     } else {
         f64::INFINITY
     };
-    let permeance = if mean_h < 0.0 {
-        -mean_b / (MU0 * mean_h)
-    } else {
-        f64::INFINITY
-    };
+    let permeance = if mean_h < 0.0 { -mean_b / (MU0 * mean_h) } else { f64::INFINITY };
     WorkingPoint {
         margin,
         share_past_knee: if vol > 0.0 { past / vol } else { 0.0 },

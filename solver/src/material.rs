@@ -12,10 +12,7 @@ pub enum Law {
     /// H = H(|B|) B/|B| from a B-H curve.
     Saturating(Arc<BhCurve>),
     /// Linear recoil line: H = (B - Br) / (mu0 mu_rec), remanence `br` in T.
-    Magnet {
-        recoil_permeability: f64,
-        br: [f64; 2],
-    },
+    Magnet { recoil_permeability: f64, br: [f64; 2] },
 }
 
 /// H at a point and the tangent dH/dB (symmetric 2x2).
@@ -29,9 +26,7 @@ pub struct FieldResponse {
 
 impl Law {
     pub fn air() -> Law {
-        Law::Linear {
-            relative_permeability: 1.0,
-        }
+        Law::Linear { relative_permeability: 1.0 }
     }
 
     pub fn is_nonlinear(&self) -> bool {
@@ -40,9 +35,7 @@ impl Law {
 
     pub fn response(&self, b: [f64; 2]) -> FieldResponse {
         match self {
-            Law::Linear {
-                relative_permeability,
-            } => {
+            Law::Linear { relative_permeability } => {
                 let nu = NU0 / relative_permeability;
                 FieldResponse {
                     h: [nu * b[0], nu * b[1]],
@@ -50,10 +43,7 @@ impl Law {
                     nu,
                 }
             }
-            Law::Magnet {
-                recoil_permeability,
-                br,
-            } => {
+            Law::Magnet { recoil_permeability, br } => {
                 let nu = NU0 / recoil_permeability;
                 FieldResponse {
                     h: [nu * (b[0] - br[0]), nu * (b[1] - br[1])],
@@ -64,15 +54,8 @@ impl Law {
             Law::Saturating(curve) => {
                 let bm = b[0].hypot(b[1]);
                 let (nu, dh) = curve.reluctivity(bm);
-                let extra = if bm > 1e-12 {
-                    (dh - nu) / (bm * bm)
-                } else {
-                    0.0
-                };
-                let t = [
-                    [nu + extra * b[0] * b[0], extra * b[0] * b[1]],
-                    [extra * b[0] * b[1], nu + extra * b[1] * b[1]],
-                ];
+                let extra = if bm > 1e-12 { (dh - nu) / (bm * bm) } else { 0.0 };
+                let t = [[nu + extra * b[0] * b[0], extra * b[0] * b[1]], [extra * b[0] * b[1], nu + extra * b[1] * b[1]]];
                 FieldResponse {
                     h: [nu * b[0], nu * b[1]],
                     dh_db: t,
@@ -86,13 +69,8 @@ impl Law {
     /// unloaded state (B = 0, or B = Br for a magnet).
     pub fn energy_density(&self, b: [f64; 2]) -> f64 {
         match self {
-            Law::Linear {
-                relative_permeability,
-            } => 0.5 * NU0 / relative_permeability * (b[0] * b[0] + b[1] * b[1]),
-            Law::Magnet {
-                recoil_permeability,
-                br,
-            } => {
+            Law::Linear { relative_permeability } => 0.5 * NU0 / relative_permeability * (b[0] * b[0] + b[1] * b[1]),
+            Law::Magnet { recoil_permeability, br } => {
                 let d = [b[0] - br[0], b[1] - br[1]];
                 0.5 * NU0 / recoil_permeability * (d[0] * d[0] + d[1] * d[1])
             }

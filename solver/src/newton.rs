@@ -41,9 +41,15 @@ pub enum SolveError {
 impl std::fmt::Display for SolveError {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         match self {
-            SolveError::Linear(LinearError::NotPositiveDefinite) => write!(f, "the system matrix is not positive definite: check for non-physical materials (permeability <= 0) or a region with no reference potential"),
+            SolveError::Linear(LinearError::NotPositiveDefinite) => write!(
+                f,
+                "the system matrix is not positive definite: check for non-physical materials (permeability <= 0) or a region with no reference potential"
+            ),
             SolveError::Linear(LinearError::OutOfMemory) => write!(f, "out of memory in the sparse factorization; coarsen the mesh"),
-            SolveError::NotFinite { iteration } => write!(f, "a non-finite value appeared in Newton iteration {iteration}; check material data for zeros or extreme values"),
+            SolveError::NotFinite { iteration } => write!(
+                f,
+                "a non-finite value appeared in Newton iteration {iteration}; check material data for zeros or extreme values"
+            ),
         }
     }
 }
@@ -56,11 +62,7 @@ fn norm(v: &[f64]) -> f64 {
 
 /// Solves the problem; returns the potential at every node (reduced field:
 /// the applied field's potential is not included) and the report.
-pub fn newton_solve(
-    problem: &Problem,
-    system: &mut System,
-    progress: &dyn Fn(usize, f64),
-) -> Result<(Vec<f64>, SolveReport), SolveError> {
+pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(usize, f64)) -> Result<(Vec<f64>, SolveReport), SolveError> {
     let mut report = SolveReport {
         n_dofs: system.n_dofs,
         ..Default::default()
@@ -91,8 +93,7 @@ pub fn newton_solve(
         if step.iter().any(|v| !v.is_finite()) {
             return Err(SolveError::NotFinite { iteration: it });
         }
-        let (new_a, new_residual, seconds) =
-            line_search(problem, system, &a, &step, norm(&residual));
+        let (new_a, new_residual, seconds) = line_search(problem, system, &a, &step, norm(&residual));
         report.seconds_assembly += seconds;
         let update = norm(&step) / norm_of_dofs(system, &new_a).max(f64::MIN_POSITIVE);
         a = new_a;
@@ -105,10 +106,7 @@ pub fn newton_solve(
         if !rel.is_finite() {
             return Err(SolveError::NotFinite { iteration: it });
         }
-        if (linear && rel < 1e-6)
-            || (rel < settings.residual_tolerance && update < settings.update_tolerance.max(1e-14))
-            || rel < 1e-14
-        {
+        if (linear && rel < 1e-6) || (rel < settings.residual_tolerance && update < settings.update_tolerance.max(1e-14)) || rel < 1e-14 {
             report.converged = true;
             break;
         }
@@ -146,13 +144,7 @@ fn shifted(system: &System, a: &[f64], step: &[f64], alpha: f64) -> Vec<f64> {
 /// alpha = 1, else regula falsi for the zero of the derivative in (0, 1).
 /// The energy is convex (H(B) is monotone), so the zero is unique.
 /// Leaves the system assembled at the accepted point.
-fn line_search(
-    problem: &Problem,
-    system: &mut System,
-    a: &[f64],
-    step: &[f64],
-    _r_old: f64,
-) -> (Vec<f64>, Vec<f64>, f64) {
+fn line_search(problem: &Problem, system: &mut System, a: &[f64], step: &[f64], _r_old: f64) -> (Vec<f64>, Vec<f64>, f64) {
     let t = Instant::now();
     let full = shifted(system, a, step, 1.0);
     let residual = system.assemble(problem, &full);
@@ -170,8 +162,7 @@ fn line_search(
     glo = if g0 < 0.0 { g0 } else { glo };
     let mut best = (1.0, full, residual);
     for _ in 0..6 {
-        let alpha = (lo - glo * (hi - lo) / (ghi - glo))
-            .clamp(lo + 0.05 * (hi - lo), hi - 0.05 * (hi - lo));
+        let alpha = (lo - glo * (hi - lo) / (ghi - glo)).clamp(lo + 0.05 * (hi - lo), hi - 0.05 * (hi - lo));
         let trial = shifted(system, a, step, alpha);
         let r = system.assemble(problem, &trial);
         let g = dot(&r, step);

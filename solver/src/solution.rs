@@ -34,10 +34,7 @@ pub struct PointField {
 }
 
 /// Solves the problem. `progress` hears (iteration, relative residual).
-pub fn solve<'m>(
-    problem: &Problem<'m>,
-    progress: &dyn Fn(usize, f64),
-) -> Result<Solution<'m>, SolveError> {
+pub fn solve<'m>(problem: &Problem<'m>, progress: &dyn Fn(usize, f64)) -> Result<Solution<'m>, SolveError> {
     let t = std::time::Instant::now();
     let mut system = System::new(problem.mesh, problem.order);
     let pattern_seconds = t.elapsed().as_secs_f64();
@@ -85,11 +82,7 @@ impl<'m> Solution<'m> {
             lam,
             1.0,
         );
-        flux_density(
-            &op,
-            &self.elements.gather(e, &self.reduced),
-            self.background(e),
-        )
+        flux_density(&op, &self.elements.gather(e, &self.reduced), self.background(e))
     }
 
     /// B at the centroid of element e.
@@ -113,14 +106,7 @@ impl<'m> Solution<'m> {
     /// The element holding p and p's barycentrics: on an interface the
     /// latest part wins; on the axis, an element with an edge on the axis.
     pub fn element_at(&self, p: [f64; 2]) -> Option<(usize, [f64; 3])> {
-        let axis_edge = |e: usize| {
-            self.symmetry() == Symmetry::Axisymmetric
-                && self.elements.coords[e]
-                    .iter()
-                    .filter(|x| x[0] <= 0.0)
-                    .count()
-                    >= 2
-        };
+        let axis_edge = |e: usize| self.symmetry() == Symmetry::Axisymmetric && self.elements.coords[e].iter().filter(|x| x[0] <= 0.0).count() >= 2;
         let rank = |e: usize| {
             let part = match self.elements.kinds[e] {
                 ElementKind::Part(i) => i as i64,
@@ -128,27 +114,14 @@ impl<'m> Solution<'m> {
             };
             (part, axis_edge(e), usize::MAX - e)
         };
-        self.locator
-            .containing(&self.elements, p)
-            .into_iter()
-            .max_by_key(|(e, _)| rank(*e))
+        self.locator.containing(&self.elements, p).into_iter().max_by_key(|(e, _)| rank(*e))
     }
 
     /// Total potential at a physical point (A_z or A_phi), or None outside.
     pub fn potential_at(&self, p: [f64; 2]) -> Option<f64> {
         let (e, lam) = self.element_at(p)?;
-        let op = point_op(
-            &self.elements.coords[e],
-            self.elements.order,
-            self.symmetry(),
-            Placement::Physical,
-            lam,
-            1.0,
-        );
-        Some(
-            potential(&op, &self.elements.gather(e, &self.reduced))
-                + self.problem.applied_potential(p),
-        )
+        let op = point_op(&self.elements.coords[e], self.elements.order, self.symmetry(), Placement::Physical, lam, 1.0);
+        Some(potential(&op, &self.elements.gather(e, &self.reduced)) + self.problem.applied_potential(p))
     }
 
     pub fn placement(&self, e: usize) -> Placement {

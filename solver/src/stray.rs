@@ -41,14 +41,7 @@ pub fn dipole_moment(solution: &Solution, center: [f64; 2], rho: f64) -> Option<
 /// exceeds `level`, from the solution up to `limit`, then (if still above)
 /// by extrapolating with the far-field decay d^-power. Returns None when the
 /// field never reaches the level at the origin side.
-pub fn fall_distance(
-    solution: &Solution,
-    origin: [f64; 2],
-    dir: [f64; 2],
-    limit: f64,
-    level: f64,
-    power: f64,
-) -> Option<f64> {
+pub fn fall_distance(solution: &Solution, origin: [f64; 2], dir: [f64; 2], limit: f64, level: f64, power: f64) -> Option<f64> {
     let n = 800;
     let mut last: Option<(f64, f64)> = None;
     let mut crossing = None;

@@ -6,18 +6,10 @@ pub mod reference;
 use mesher::{build_mesh, Mesh, MeshSpec, OuterBoundary, PartSpec, Refinement, Shape, Symmetry};
 
 /// A mesh spec with the case-file defaults (min angle 28 degrees, grading 1.3).
-pub fn spec(
-    symmetry: Symmetry,
-    parts: Vec<(Shape, f64)>,
-    refinements: Vec<Refinement>,
-    outer: OuterBoundary,
-) -> MeshSpec {
+pub fn spec(symmetry: Symmetry, parts: Vec<(Shape, f64)>, refinements: Vec<Refinement>, outer: OuterBoundary) -> MeshSpec {
     MeshSpec {
         symmetry,
-        parts: parts
-            .into_iter()
-            .map(|(shape, mesh_size)| PartSpec { shape, mesh_size })
-            .collect(),
+        parts: parts.into_iter().map(|(shape, mesh_size)| PartSpec { shape, mesh_size }).collect(),
         refinements,
         outer,
         min_angle_deg: 28.0,
@@ -49,10 +41,7 @@ pub fn magnet(shape: Shape, size: f64, br: [f64; 2]) -> TestPart {
     TestPart {
         shape,
         size,
-        law: Law::Magnet {
-            recoil_permeability: 1.0,
-            br,
-        },
+        law: Law::Magnet { recoil_permeability: 1.0, br },
         current_density: 0.0,
     }
 }
@@ -61,9 +50,7 @@ pub fn linear(shape: Shape, size: f64, mur: f64) -> TestPart {
     TestPart {
         shape,
         size,
-        law: Law::Linear {
-            relative_permeability: mur,
-        },
+        law: Law::Linear { relative_permeability: mur },
         current_density: 0.0,
     }
 }
@@ -86,12 +73,7 @@ pub fn solve_with<T>(
     applied: [f64; 2],
     f: impl FnOnce(&Solution) -> T,
 ) -> T {
-    let s = spec(
-        symmetry,
-        parts.iter().map(|p| (p.shape.clone(), p.size)).collect(),
-        refinements,
-        outer,
-    );
+    let s = spec(symmetry, parts.iter().map(|p| (p.shape.clone(), p.size)).collect(), refinements, outer);
     let m = mesh(&s);
     let mut problem = Problem::new(
         &m,
@@ -106,10 +88,7 @@ pub fn solve_with<T>(
 
 /// Axis-aligned rectangle.
 pub fn rect(x0: f64, y0: f64, x1: f64, y1: f64) -> Shape {
-    Shape::Rect {
-        from: [x0, y0],
-        to: [x1, y1],
-    }
+    Shape::Rect { from: [x0, y0], to: [x1, y1] }
 }
 
 /// Least-squares slope of log(y) against log(x).
@@ -136,11 +115,9 @@ pub fn solve_case_text(text: &str, overrides: &[(&str, f64)]) -> lodestone::post
     std::fs::write(&path, text).expect("write case");
     let loaded = lodestone::run::load(&path).unwrap_or_else(|f| panic!("{}", f.message()));
     let over = overrides.iter().map(|(k, v)| (k.to_string(), *v)).collect();
-    let variants =
-        lodestone::run::variants(&loaded, &over).unwrap_or_else(|f| panic!("{}", f.message()));
+    let variants = lodestone::run::variants(&loaded, &over).unwrap_or_else(|f| panic!("{}", f.message()));
     let progress = lodestone::progress::Progress::new(true);
-    let out = lodestone::run::solve_variant(&loaded, &variants[0], &Default::default(), &progress)
-        .unwrap_or_else(|f| panic!("{}", f.message()));
+    let out = lodestone::run::solve_variant(&loaded, &variants[0], &Default::default(), &progress).unwrap_or_else(|f| panic!("{}", f.message()));
     let _ = std::fs::remove_dir_all(&dir);
     out.results
 }

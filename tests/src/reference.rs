@@ -113,15 +113,7 @@ pub fn bessel_j1(x: f64) -> f64 {
 /// F = pi Br1 Br2 a1 a2 / mu0 * integral of J1(k a1) J1(k a2) e^{-k gap}
 /// (1 - e^{-k l1})(1 - e^{-k l2}) dk / k (J. Vokoun et al., J. Magn. Magn.
 /// Mater. 321, 2009, 3758; the disk-pair form summed over the four faces).
-pub fn coaxial_cylinders_force(
-    br1: f64,
-    br2: f64,
-    a1: f64,
-    a2: f64,
-    l1: f64,
-    l2: f64,
-    gap: f64,
-) -> f64 {
+pub fn coaxial_cylinders_force(br1: f64, br2: f64, a1: f64, a2: f64, l1: f64, l2: f64, gap: f64) -> f64 {
     let scale = a1.max(a2);
     let (g, w) = gauss_legendre_8();
     let kmax = 60.0 / gap.min(scale).max(1e-9) + 200.0 / scale;
@@ -132,12 +124,7 @@ pub fn coaxial_cylinders_force(
         let a = p as f64 * h;
         for k in 0..8 {
             let kk = a + 0.5 * h * (g[k] + 1.0);
-            let f = bessel_j1(kk * a1)
-                * bessel_j1(kk * a2)
-                * (-kk * gap).exp()
-                * (1.0 - (-kk * l1).exp())
-                * (1.0 - (-kk * l2).exp())
-                / kk;
+            let f = bessel_j1(kk * a1) * bessel_j1(kk * a2) * (-kk * gap).exp() * (1.0 - (-kk * l1).exp()) * (1.0 - (-kk * l2).exp()) / kk;
             s += 0.5 * h * w[k] * f;
         }
     }
@@ -224,9 +211,7 @@ pub fn nagaoka_inductance(a: f64, l: f64, n: f64) -> f64 {
 /// Electronics, 3rd ed., 1994, internal inductance of round conductors).
 pub fn coax_inductance_per_length(a: f64, b: f64, c: f64) -> f64 {
     let d = c * c - b * b;
-    MU0 / (2.0 * PI)
-        * ((b / a).ln() + 0.25 + c.powi(4) * (c / b).ln() / (d * d)
-            - (3.0 * c * c - b * b) / (4.0 * d))
+    MU0 / (2.0 * PI) * ((b / a).ln() + 0.25 + c.powi(4) * (c / b).ln() / (d * d) - (3.0 * c * c - b * b) / (4.0 * d))
 }
 
 /// Force per unit length (N/m) along +y on bar 2 from bar 1, both long bars
@@ -259,10 +244,7 @@ mod tests {
         for (rho, z) in [(0.3, 1.2), (1.5, 0.2), (2.0, 2.0), (0.0, 1.5)] {
             let e = cylinder_field(1.0, 1.0, 0.5, rho, z);
             let q = cylinder_field_by_quadrature(1.0, 1.0, 0.5, rho, z);
-            assert!(
-                (e[0] - q[0]).abs() < 1e-6 && (e[1] - q[1]).abs() < 1e-6,
-                "{rho} {z}: {e:?} vs {q:?}"
-            );
+            assert!((e[0] - q[0]).abs() < 1e-6 && (e[1] - q[1]).abs() < 1e-6, "{rho} {z}: {e:?} vs {q:?}");
         }
     }
 

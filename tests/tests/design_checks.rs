@@ -46,13 +46,7 @@ fn mean_demagnetizing_field_matches_the_magnetometric_factor() {
         let l = ratio * 2.0 * a;
         let size = (l / 6.0).min(a / 6.0) * 1e3;
         let r = solve_case_text(
-            &bare_cylinder(
-                10.0,
-                l * 1e3,
-                "ideal",
-                &format!("[mesh]\nsize = {size}\n[study.x]"),
-            )
-            .replace("[study.x]", ""),
+            &bare_cylinder(10.0, l * 1e3, "ideal", &format!("[mesh]\nsize = {size}\n[study.x]")).replace("[study.x]", ""),
             &[],
         );
         let mean_h = r.magnets["magnet"].mean_h_a_per_m;
@@ -64,12 +58,7 @@ fn mean_demagnetizing_field_matches_the_magnetometric_factor() {
 
 fn disk_margin(grade: &str, celsius: f64) -> (f64, bool) {
     // A thin disk (L/D = 0.2) has a low permeance coefficient and a strong demagnetizing field.
-    let case = bare_cylinder(
-        10.0,
-        4.0,
-        grade,
-        &format!("temperature = \"{celsius} degC\""),
-    );
+    let case = bare_cylinder(10.0, 4.0, grade, &format!("temperature = \"{celsius} degC\""));
     let r = solve_case_text(&case, &[]);
     let warned = r.warnings.iter().any(|w| w.contains("past its knee"));
     (r.values["magnet.magnet.margin"], warned)
@@ -82,10 +71,7 @@ fn thin_n42_disk_loses_margin_with_temperature_and_sh_keeps_it() {
     // warning appears once the working point passes the knee, and the SH class holds out longer.
     let temps = [20.0, 60.0, 100.0, 140.0];
     let n42: Vec<(f64, bool)> = temps.iter().map(|&t| disk_margin("N42", t)).collect();
-    assert!(
-        n42.windows(2).all(|w| w[1].0 < w[0].0),
-        "margin does not fall: {n42:?}"
-    );
+    assert!(n42.windows(2).all(|w| w[1].0 < w[0].0), "margin does not fall: {n42:?}");
     for (m, warned) in &n42 {
         assert_eq!(*warned, *m < 0.0, "warning and margin disagree: {n42:?}");
     }
@@ -94,12 +80,7 @@ fn thin_n42_disk_loses_margin_with_temperature_and_sh_keeps_it() {
         "the N42 disk should cross its knee between 20 and 140 degC: {n42:?}"
     );
     // Where the N42 disk is already past its knee, the SH disk still has margin.
-    let first_past = temps
-        .iter()
-        .zip(&n42)
-        .find(|(_, m)| m.0 < 0.0)
-        .map(|(t, _)| *t)
-        .unwrap();
+    let first_past = temps.iter().zip(&n42).find(|(_, m)| m.0 < 0.0).map(|(t, _)| *t).unwrap();
     let sh = disk_margin("N42SH", first_past);
     assert!(sh.0 > 0.0 && !sh.1, "N42SH at {first_past} degC: {sh:?}");
 }

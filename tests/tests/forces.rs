@@ -23,19 +23,9 @@ fn coaxial_pair(a: f64, l: f64, gap: f64, size: f64) -> (f64, f64) {
             size: (gap / 3.0).min(size),
         },
     ];
-    solve_with(
-        Symmetry::Axisymmetric,
-        vec![lower, upper],
-        refine,
-        OuterBoundary::Open,
-        [0.0; 2],
-        |sol| {
-            (
-                force_on(sol, &[1], [0.0; 2]).vector[1],
-                force_on(sol, &[0], [0.0; 2]).vector[1],
-            )
-        },
-    )
+    solve_with(Symmetry::Axisymmetric, vec![lower, upper], refine, OuterBoundary::Open, [0.0; 2], |sol| {
+        (force_on(sol, &[1], [0.0; 2]).vector[1], force_on(sol, &[0], [0.0; 2]).vector[1])
+    })
 }
 
 #[test]
@@ -46,10 +36,7 @@ fn coaxial_magnets_attract_as_the_charge_model_says() {
         for gap in [0.0005, 0.002, 0.005, 0.02] {
             let (up, _) = coaxial_pair(a, l, gap, a / 8.0);
             let exact = coaxial_cylinders_force(BR, BR, a, a, l, l, gap);
-            eprintln!(
-                "a {a} l {l} gap {gap}: fe {up} exact {exact} err {:.3}%",
-                100.0 * rel(-up, exact)
-            );
+            eprintln!("a {a} l {l} gap {gap}: fe {up} exact {exact} err {:.3}%", 100.0 * rel(-up, exact));
             assert!(rel(-up, exact) < 0.02, "a {a}, gap {gap}: {up} vs {exact}");
         }
     }
@@ -74,14 +61,9 @@ fn magnet_over_a_permeable_plate_matches_its_image() {
         to: [a, 0.0],
         size: gap / 3.0,
     }];
-    let f = solve_with(
-        Symmetry::Axisymmetric,
-        vec![plate, m],
-        refine,
-        OuterBoundary::Open,
-        [0.0; 2],
-        |sol| force_on(sol, &[1], [0.0; 2]).vector[1],
-    );
+    let f = solve_with(Symmetry::Axisymmetric, vec![plate, m], refine, OuterBoundary::Open, [0.0; 2], |sol| {
+        force_on(sol, &[1], [0.0; 2]).vector[1]
+    });
     let exact = coaxial_cylinders_force(BR, BR, a, a, l, l, 2.0 * gap);
     assert!(rel(-f, exact) < 0.03, "{f} vs {exact}");
 }
@@ -93,14 +75,9 @@ fn planar_bar_magnets_attract_as_charged_sheets() {
     let y2 = 2.0 * h + gap;
     let lower = magnet(rect(-w, -h, w, h), 0.0005, [0.0, BR]);
     let upper = magnet(rect(-w, y2 - h, w, y2 + h), 0.0005, [0.0, BR]);
-    let f = solve_with(
-        Symmetry::Planar,
-        vec![lower, upper],
-        vec![],
-        OuterBoundary::Open,
-        [0.0; 2],
-        |sol| force_on(sol, &[1], [0.0; 2]).vector[1],
-    );
+    let f = solve_with(Symmetry::Planar, vec![lower, upper], vec![], OuterBoundary::Open, [0.0; 2], |sol| {
+        force_on(sol, &[1], [0.0; 2]).vector[1]
+    });
     let exact = bar_pair_force_2d(BR, w, h, h, y2);
     assert!(rel(f, exact) < 0.02, "{f} vs {exact}");
 }
@@ -112,26 +89,16 @@ fn long_solenoid_inductance_and_energy() {
     let (a, t, l, turns, current) = (0.02, 0.0002, 0.2, 500.0, 2.0);
     let j = turns * current / (t * l);
     let winding = coil(rect(a - t / 2.0, -l / 2.0, a + t / 2.0, l / 2.0), 0.0001, j);
-    let (lambda, energy) = solve_with(
-        Symmetry::Axisymmetric,
-        vec![winding],
-        vec![],
-        OuterBoundary::Open,
-        [0.0; 2],
-        |sol| {
-            (
-                solver::flux::winding_linkage(sol, &[(0, 1.0)], turns),
-                solver::energy::stored_energy(sol).stored,
-            )
-        },
-    );
+    let (lambda, energy) = solve_with(Symmetry::Axisymmetric, vec![winding], vec![], OuterBoundary::Open, [0.0; 2], |sol| {
+        (
+            solver::flux::winding_linkage(sol, &[(0, 1.0)], turns),
+            solver::energy::stored_energy(sol).stored,
+        )
+    });
     let inductance = lambda / current;
     let exact = nagaoka_inductance(a, l, turns);
     assert!(rel(inductance, exact) < 0.01, "{inductance} vs {exact}");
-    assert!(
-        rel(energy, 0.5 * inductance * current * current) < 0.005,
-        "{energy}"
-    );
+    assert!(rel(energy, 0.5 * inductance * current * current) < 0.005, "{energy}");
 }
 
 #[test]
@@ -140,51 +107,24 @@ fn coaxial_line_inductance_per_length_and_energy() {
     // inductance of both conductors), within 0.5 %; W = L' I^2 / 2 within 0.5 %.
     let (a, b, c, current) = (0.002, 0.006, 0.007, 10.0);
     let outer_j = -current / (std::f64::consts::PI * (c * c - b * b));
-    let outer = coil(
-        mesher::Shape::Circle {
-            center: [0.0, 0.0],
-            radius: c,
-        },
-        0.0003,
-        outer_j,
-    );
-    let gap = linear(
-        mesher::Shape::Circle {
-            center: [0.0, 0.0],
-            radius: b,
-        },
-        0.0004,
-        1.0,
-    );
+    let outer = coil(mesher::Shape::Circle { center: [0.0, 0.0], radius: c }, 0.0003, outer_j);
+    let gap = linear(mesher::Shape::Circle { center: [0.0, 0.0], radius: b }, 0.0004, 1.0);
     // Later parts cover earlier ones: outer disk, then the gap, then the inner conductor.
     let inner = coil(
-        mesher::Shape::Circle {
-            center: [0.0, 0.0],
-            radius: a,
-        },
+        mesher::Shape::Circle { center: [0.0, 0.0], radius: a },
         0.0003,
         current / (std::f64::consts::PI * a * a),
     );
-    let (lambda, energy) = solve_with(
-        Symmetry::Planar,
-        vec![outer, gap, inner],
-        vec![],
-        OuterBoundary::Open,
-        [0.0; 2],
-        |sol| {
-            (
-                solver::flux::winding_linkage(sol, &[(2, 1.0), (0, -1.0)], 1.0),
-                solver::energy::stored_energy(sol).stored,
-            )
-        },
-    );
+    let (lambda, energy) = solve_with(Symmetry::Planar, vec![outer, gap, inner], vec![], OuterBoundary::Open, [0.0; 2], |sol| {
+        (
+            solver::flux::winding_linkage(sol, &[(2, 1.0), (0, -1.0)], 1.0),
+            solver::energy::stored_energy(sol).stored,
+        )
+    });
     let inductance = lambda / current;
     let exact = coax_inductance_per_length(a, b, c);
     assert!(rel(inductance, exact) < 0.005, "{inductance} vs {exact}");
-    assert!(
-        rel(energy, 0.5 * inductance * current * current) < 0.005,
-        "{energy}"
-    );
+    assert!(rel(energy, 0.5 * inductance * current * current) < 0.005, "{energy}");
 }
 
 const PLATE_CASE: &str = r#"
@@ -212,8 +152,5 @@ fn plate_force_is_mesh_independent() {
     let coarse = solve_case_text(PLATE_CASE, &[]).values["force.pull.z"];
     let fine_case = PLATE_CASE.replace("[study]", "[mesh]\nsize = 0.75\n[study]");
     let fine = solve_case_text(&fine_case, &[]).values["force.pull.z"];
-    assert!(
-        rel(fine, coarse) < 0.01,
-        "default {coarse} N, twice as fine {fine} N"
-    );
+    assert!(rel(fine, coarse) < 0.01, "default {coarse} N, twice as fine {fine} N");
 }

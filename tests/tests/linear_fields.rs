@@ -8,13 +8,7 @@ use validation::*;
 const BR: f64 = 1.2;
 
 /// A cylinder (radius a, length l, bottom face at z = 0) with a fine probe line on its axis.
-fn cylinder<T>(
-    a: f64,
-    l: f64,
-    size: f64,
-    extra: Vec<Refinement>,
-    f: impl FnOnce(&solver::Solution) -> T,
-) -> T {
+fn cylinder<T>(a: f64, l: f64, size: f64, extra: Vec<Refinement>, f: impl FnOnce(&solver::Solution) -> T) -> T {
     let mut refine = vec![Refinement::Line {
         from: [0.0, l],
         to: [0.0, l + 8.0 * a],
@@ -41,11 +35,7 @@ fn cylinder_axis_field_within_half_percent_for_three_aspect_ratios() {
                 let z = l + k as f64 * (8.0 * a) / 16.0;
                 let fe = sol.field_at([0.0, z]).expect("inside mesh").b[1];
                 let exact = cylinder_axis_bz(BR, a, l, z);
-                assert!(
-                    rel(fe, exact) < 0.005,
-                    "L/D {}: z {z}: {fe} vs {exact}",
-                    l / (2.0 * a)
-                );
+                assert!(rel(fe, exact) < 0.005, "L/D {}: z {z}: {fe} vs {exact}", l / (2.0 * a));
             }
         });
     }
@@ -57,28 +47,14 @@ fn cylinder_off_axis_field_within_one_percent() {
     // cross-checked in tests/src/reference.rs against direct quadrature of the charge model.
     let (a, l) = (0.005, 0.01);
     let h = 0.0006;
-    let pts = [
-        [0.002, 0.013],
-        [0.004, 0.016],
-        [0.008, 0.005],
-        [0.0075, 0.012],
-        [0.012, 0.02],
-        [0.01, -0.005],
-    ];
-    let refine = pts
-        .iter()
-        .map(|&at| Refinement::Point { at, size: h / 2.0 })
-        .collect();
+    let pts = [[0.002, 0.013], [0.004, 0.016], [0.008, 0.005], [0.0075, 0.012], [0.012, 0.02], [0.01, -0.005]];
+    let refine = pts.iter().map(|&at| Refinement::Point { at, size: h / 2.0 }).collect();
     cylinder(a, l, h, refine, |sol| {
         for p in pts {
             let fe = sol.field_at(p).expect("inside mesh").b;
             let exact = cylinder_field(BR, a, l / 2.0, p[0], p[1] - l / 2.0);
             let err = ((fe[0] - exact[0]).hypot(fe[1] - exact[1])) / exact[0].hypot(exact[1]);
-            assert!(
-                err < 0.01,
-                "at {p:?}: {fe:?} vs {exact:?} ({:.3} %)",
-                100.0 * err
-            );
+            assert!(err < 0.01, "at {p:?}: {fe:?} vs {exact:?} ({:.3} %)", 100.0 * err);
         }
     });
 }
@@ -87,17 +63,8 @@ fn cylinder_off_axis_field_within_one_percent() {
 fn planar_bar_magnet_field_within_one_percent() {
     // Source: Furlani 2001 sec. 4.2, field of two charged sheets (infinitely long bar, 2D).
     let (w, h) = (0.01, 0.005);
-    let pts = [
-        [0.0, 0.008],
-        [0.006, 0.01],
-        [0.015, 0.0],
-        [0.02, 0.012],
-        [-0.012, -0.009],
-    ];
-    let refine = pts
-        .iter()
-        .map(|&at| Refinement::Point { at, size: 0.0004 })
-        .collect();
+    let pts = [[0.0, 0.008], [0.006, 0.01], [0.015, 0.0], [0.02, 0.012], [-0.012, -0.009]];
+    let refine = pts.iter().map(|&at| Refinement::Point { at, size: 0.0004 }).collect();
     solve_with(
         Symmetry::Planar,
         vec![magnet(rect(-w, -h, w, h), 0.0008, [0.0, BR])],
@@ -119,10 +86,7 @@ fn planar_bar_magnet_field_within_one_percent() {
 fn permeable_sphere_in_uniform_field() {
     // Source: J. D. Jackson, Classical Electrodynamics, 3rd ed., sec. 5.11: B_in = 3 mu/(mu + 2) B0.
     let (mu, b0, r) = (1000.0, 0.01, 0.01);
-    let sphere = Shape::Circle {
-        center: [0.0, 0.0],
-        radius: r,
-    };
+    let sphere = Shape::Circle { center: [0.0, 0.0], radius: r };
     solve_with(
         Symmetry::Axisymmetric,
         vec![linear(sphere, r / 8.0, mu)],
@@ -133,10 +97,7 @@ fn permeable_sphere_in_uniform_field() {
             let exact = 3.0 * mu / (mu + 2.0) * b0;
             for p in [[0.0, 0.0], [0.003, 0.002], [0.0, -0.005]] {
                 let fe = sol.field_at(p).unwrap().b;
-                assert!(
-                    rel(fe[1], exact) < 0.005 && fe[0].abs() < 0.005 * exact,
-                    "at {p:?}: {fe:?} vs {exact}"
-                );
+                assert!(rel(fe[1], exact) < 0.005 && fe[0].abs() < 0.005 * exact, "at {p:?}: {fe:?} vs {exact}");
             }
         },
     );
@@ -146,10 +107,7 @@ fn permeable_sphere_in_uniform_field() {
 fn permeable_cylinder_in_uniform_field() {
     // Source: Jackson 3rd ed., sec. 5.11 (2D analogue): B_in = 2 mu/(mu + 1) B0 for a long cylinder across the field.
     let (mu, b0, r) = (1000.0, 0.01, 0.01);
-    let disk = Shape::Circle {
-        center: [0.0, 0.0],
-        radius: r,
-    };
+    let disk = Shape::Circle { center: [0.0, 0.0], radius: r };
     solve_with(
         Symmetry::Planar,
         vec![linear(disk, r / 8.0, mu)],
@@ -160,10 +118,7 @@ fn permeable_cylinder_in_uniform_field() {
             let exact = 2.0 * mu / (mu + 1.0) * b0;
             for p in [[0.0, 0.0], [0.004, -0.003]] {
                 let fe = sol.field_at(p).unwrap().b;
-                assert!(
-                    rel(fe[0], exact) < 0.005 && fe[1].abs() < 0.005 * exact,
-                    "at {p:?}: {fe:?} vs {exact}"
-                );
+                assert!(rel(fe[0], exact) < 0.005 && fe[1].abs() < 0.005 * exact, "at {p:?}: {fe:?} vs {exact}");
             }
         },
     );
@@ -199,39 +154,13 @@ fn superposition_of_two_coaxial_magnets() {
     // Source: linearity of magnetostatics with mu_rec = 1 (superposition principle).
     let (a, l, gap) = (0.005, 0.005, 0.01);
     let mid = l + gap / 2.0;
-    let refine = || {
-        vec![Refinement::Point {
-            at: [0.0, mid],
-            size: 0.0003,
-        }]
-    };
+    let refine = || vec![Refinement::Point { at: [0.0, mid], size: 0.0003 }];
     let lower = || magnet(rect(0.0, 0.0, a, l), 0.0006, [0.0, BR]);
     let upper = || magnet(rect(0.0, l + gap, a, 2.0 * l + gap), 0.0006, [0.0, BR]);
     let probe = |sol: &solver::Solution| sol.field_at([0.0, mid]).unwrap().b[1];
-    let both = solve_with(
-        Symmetry::Axisymmetric,
-        vec![lower(), upper()],
-        refine(),
-        OuterBoundary::Open,
-        [0.0; 2],
-        probe,
-    );
-    let one = solve_with(
-        Symmetry::Axisymmetric,
-        vec![lower()],
-        refine(),
-        OuterBoundary::Open,
-        [0.0; 2],
-        probe,
-    );
-    let other = solve_with(
-        Symmetry::Axisymmetric,
-        vec![upper()],
-        refine(),
-        OuterBoundary::Open,
-        [0.0; 2],
-        probe,
-    );
+    let both = solve_with(Symmetry::Axisymmetric, vec![lower(), upper()], refine(), OuterBoundary::Open, [0.0; 2], probe);
+    let one = solve_with(Symmetry::Axisymmetric, vec![lower()], refine(), OuterBoundary::Open, [0.0; 2], probe);
+    let other = solve_with(Symmetry::Axisymmetric, vec![upper()], refine(), OuterBoundary::Open, [0.0; 2], probe);
     assert!(rel(both, one + other) < 0.005, "{both} vs {one} + {other}");
 }
 
@@ -260,15 +189,8 @@ fn off_axis_error_falls_at_the_rate_of_quadratic_elements() {
         })
         .collect();
     let slope = log_log_slope(&sizes, &errors);
-    assert!(
-        slope > 1.5,
-        "error {errors:?} falls with slope {slope}, expected about 2"
-    );
-    assert!(
-        errors[2] < 0.005 * exact[0].hypot(exact[1]),
-        "finest error {}",
-        errors[2]
-    );
+    assert!(slope > 1.5, "error {errors:?} falls with slope {slope}, expected about 2");
+    assert!(errors[2] < 0.005 * exact[0].hypot(exact[1]), "finest error {}", errors[2]);
 }
 
 #[test]
@@ -289,10 +211,7 @@ fn n40_cylinder_reads_the_bench_values() {
             let scale = 1.26 / BR;
             let g1 = scale * sol.field_at([0.0, l + 0.0237]).unwrap().b[1] * 1e4;
             let g2 = scale * sol.field_at([0.0, l + 0.0474]).unwrap().b[1] * 1e4;
-            assert!(
-                rel(g1, 320.0) < 0.12 && rel(g2, 71.0) < 0.12,
-                "{g1} G, {g2} G"
-            );
+            assert!(rel(g1, 320.0) < 0.12 && rel(g2, 71.0) < 0.12, "{g1} G, {g2} G");
         },
     );
 }

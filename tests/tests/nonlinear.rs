@@ -11,9 +11,7 @@ use validation::*;
 /// material; in the arctangent family used e.g. by J. Fischer and H. Moser, 1956).
 fn analytic_b(h: f64) -> f64 {
     let (js, mur) = (1.8, 2000.0);
-    MU0 * h
-        + 2.0 * js / std::f64::consts::PI
-            * (std::f64::consts::PI * (mur - 1.0) * MU0 * h / (2.0 * js)).atan()
+    MU0 * h + 2.0 * js / std::f64::consts::PI * (std::f64::consts::PI * (mur - 1.0) * MU0 * h / (2.0 * js)).atan()
 }
 
 fn analytic_table() -> Vec<[f64; 2]> {
@@ -57,23 +55,11 @@ fn toroidal_core_flux_matches_amperes_law() {
             0.001,
             ni / (std::f64::consts::PI * rc * rc),
         );
-        let fe = solve_with(
-            Symmetry::Planar,
-            vec![core, hole, wire],
-            vec![],
-            OuterBoundary::Open,
-            [0.0; 2],
-            |sol| {
-                // The wire's polygon area differs from pi rc^2 by the chord error: scale to the meshed current.
-                let meshed = sol.problem.mesh.part_areas(3)[2] * sol.problem.current_density[2];
-                (
-                    solver::flux::line_flux(sol, [r1, 0.0], [r2, 0.0])
-                        .unwrap()
-                        .abs(),
-                    meshed,
-                )
-            },
-        );
+        let fe = solve_with(Symmetry::Planar, vec![core, hole, wire], vec![], OuterBoundary::Open, [0.0; 2], |sol| {
+            // The wire's polygon area differs from pi rc^2 by the chord error: scale to the meshed current.
+            let meshed = sol.problem.mesh.part_areas(3)[2] * sol.problem.current_density[2];
+            (solver::flux::line_flux(sol, [r1, 0.0], [r2, 0.0]).unwrap().abs(), meshed)
+        });
         let (g, w) = gauss_legendre_8();
         let n = 200;
         let exact: f64 = (0..n)
@@ -84,11 +70,7 @@ fn toroidal_core_flux_matches_amperes_law() {
                 0.5 * dr * w[k] * analytic_b(fe.1 / (2.0 * std::f64::consts::PI * r))
             })
             .sum();
-        assert!(
-            rel(fe.0, exact) < 0.003,
-            "NI {ni}: flux {} vs {exact}",
-            fe.0
-        );
+        assert!(rel(fe.0, exact) < 0.003, "NI {ni}: flux {} vs {exact}", fe.0);
     }
 }
 
@@ -96,9 +78,7 @@ fn toroidal_core_flux_matches_amperes_law() {
 fn straight_line_table_equals_the_linear_material() {
     // Source: identity: a B-H table on a straight line through the origin is the linear law.
     let mu = 500.0;
-    let table: Vec<[f64; 2]> = (0..20)
-        .map(|k| [k as f64 * 1000.0, k as f64 * 1000.0 * mu * MU0])
-        .collect();
+    let table: Vec<[f64; 2]> = (0..20).map(|k| [k as f64 * 1000.0, k as f64 * 1000.0 * mu * MU0]).collect();
     let run = |law: Law| {
         let steel = TestPart {
             shape: rect(0.0, 0.012, 0.02, 0.016),
@@ -108,24 +88,16 @@ fn straight_line_table_equals_the_linear_material() {
         };
         solve_with(
             Symmetry::Axisymmetric,
-            vec![
-                magnet(rect(0.0, 0.0, 0.006, 0.01), 0.001, [0.0, 1.2]),
-                steel,
-            ],
+            vec![magnet(rect(0.0, 0.0, 0.006, 0.01), 0.001, [0.0, 1.2]), steel],
             vec![],
             OuterBoundary::Open,
             [0.0; 2],
             |sol| sol.field_at([0.003, 0.014]).unwrap().b,
         )
     };
-    let a = run(Law::Linear {
-        relative_permeability: mu,
-    });
+    let a = run(Law::Linear { relative_permeability: mu });
     let b = run(Law::Saturating(Arc::new(BhCurve::new(&table).unwrap())));
-    assert!(
-        (a[0] - b[0]).abs().max((a[1] - b[1]).abs()) <= 1e-9 * a[1].abs(),
-        "{a:?} vs {b:?}"
-    );
+    assert!((a[0] - b[0]).abs().max((a[1] - b[1]).abs()) <= 1e-9 * a[1].abs(), "{a:?} vs {b:?}");
 }
 
 const POT: &str = include_str!("../../cases/pot-magnet.toml");
@@ -143,14 +115,8 @@ fn newton_converges_quadratically_on_a_saturating_pot_magnet() {
     let n = tail.len();
     let c1 = tail[n - 2] / (tail[n - 3] * tail[n - 3]);
     let c2 = tail[n - 1] / (tail[n - 2] * tail[n - 2]);
-    assert!(
-        c2 <= 10.0 * c1,
-        "not quadratic: C {c1:.3e} then {c2:.3e} in {h:?}"
-    );
-    assert!(
-        r.parts["cup"].saturated == Some(true),
-        "the case is meant to saturate the cup"
-    );
+    assert!(c2 <= 10.0 * c1, "not quadratic: C {c1:.3e} then {c2:.3e} in {h:?}");
+    assert!(r.parts["cup"].saturated == Some(true), "the case is meant to saturate the cup");
 }
 
 /// Flux density in the gap of a C-shaped yoke (planar) driven by `ni` ampere-turns.
@@ -171,10 +137,7 @@ fn c_yoke_gap_field(ni: f64) -> f64 {
     solve_with(
         Symmetry::Planar,
         vec![yoke, window, gap, go, back],
-        vec![Refinement::Point {
-            at: [0.02, 0.0],
-            size: 0.0005,
-        }],
+        vec![Refinement::Point { at: [0.02, 0.0], size: 0.0005 }],
         OuterBoundary::Open,
         [0.0; 2],
         |sol| sol.field_at([0.02, 0.0]).unwrap().b[1].abs(),
@@ -190,14 +153,8 @@ fn c_yoke_gap_field_follows_the_circuit_then_saturates() {
     let ni = 100.0;
     let circuit = MU0 * ni / (g + l_iron / mur);
     let fe = c_yoke_gap_field(ni);
-    assert!(
-        rel(fe, circuit) < 0.05,
-        "linear range: {fe} T vs circuit {circuit} T"
-    );
+    assert!(rel(fe, circuit) < 0.05, "linear range: {fe} T vs circuit {circuit} T");
     let (b1, b2) = (c_yoke_gap_field(20000.0), c_yoke_gap_field(40000.0));
-    assert!(
-        b2 / b1 < 1.3,
-        "saturated: doubling N I raised B from {b1} to {b2}"
-    );
+    assert!(b2 / b1 < 1.3, "saturated: doubling N I raised B from {b1} to {b2}");
     assert!(b1 > 1.5, "the yoke should be driven past saturation: {b1}");
 }

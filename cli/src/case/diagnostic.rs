@@ -26,13 +26,8 @@ impl Diagnostic {
     }
 
     /// "did you mean" help from the closest candidate.
-    pub fn suggest<'a>(
-        self,
-        word: &str,
-        candidates: impl IntoIterator<Item = &'a str>,
-    ) -> Diagnostic {
-        let help =
-            crate::case::suggest::closest(word, candidates).map(|c| format!("did you mean '{c}'?"));
+    pub fn suggest<'a>(self, word: &str, candidates: impl IntoIterator<Item = &'a str>) -> Diagnostic {
+        let help = crate::case::suggest::closest(word, candidates).map(|c| format!("did you mean '{c}'?"));
         self.with_help(help)
     }
 }
@@ -53,9 +48,7 @@ pub fn render(path: &str, text: &str, d: &Diagnostic) -> String {
         let (line, col) = line_col(text, span.start);
         out += &format!("  --> {path}:{line}:{col}\n");
         let line_text = text.lines().nth(line - 1).unwrap_or("");
-        let width = text
-            .get(span.clone())
-            .map_or(1, |s| s.lines().next().unwrap_or("").chars().count().max(1));
+        let width = text.get(span.clone()).map_or(1, |s| s.lines().next().unwrap_or("").chars().count().max(1));
         out += &format!("{:>5} | {}\n", line, line_text);
         out += &format!("      | {}{}\n", " ".repeat(col - 1), "^".repeat(width));
     } else {

@@ -41,10 +41,7 @@ pub fn parse(text: &str) -> Result<Item, Diagnostic> {
                 span,
             })
         }
-        Err(e) => Err(Diagnostic::new(
-            format!("this is not valid TOML: {}", e.message().trim()),
-            e.span(),
-        )),
+        Err(e) => Err(Diagnostic::new(format!("this is not valid TOML: {}", e.message().trim()), e.span())),
     }
 }
 
@@ -65,16 +62,11 @@ fn convert_table(t: &DeTable<'_>) -> Vec<(Key, Item)> {
 fn convert(v: &DeValue<'_>, span: Range<usize>) -> Item {
     let value = match v {
         DeValue::String(s) => Value::Str(s.to_string()),
-        DeValue::Integer(i) => Value::Num(
-            i64::from_str_radix(&i.as_str().replace('_', ""), i.radix())
-                .map_or(f64::NAN, |x| x as f64),
-        ),
+        DeValue::Integer(i) => Value::Num(i64::from_str_radix(&i.as_str().replace('_', ""), i.radix()).map_or(f64::NAN, |x| x as f64)),
         DeValue::Float(f) => Value::Num(parse_float(f.as_str())),
         DeValue::Boolean(b) => Value::Bool(*b),
         DeValue::Datetime(_) => Value::Datetime,
-        DeValue::Array(a) => {
-            Value::Array(a.iter().map(|x| convert(x.get_ref(), x.span())).collect())
-        }
+        DeValue::Array(a) => Value::Array(a.iter().map(|x| convert(x.get_ref(), x.span())).collect()),
         DeValue::Table(t) => Value::Table(convert_table(t)),
     };
     Item { value, span }
@@ -106,10 +98,7 @@ impl Value {
 impl Item {
     fn wrong(&self, what: &str, expected: &str) -> Diagnostic {
         Diagnostic::new(
-            format!(
-                "{what}: expected {expected}, found {}",
-                self.value.type_name()
-            ),
+            format!("{what}: expected {expected}, found {}", self.value.type_name()),
             Some(self.span.clone()),
         )
     }
@@ -121,15 +110,8 @@ impl Item {
         };
         for (k, _) in entries {
             if !allowed.contains(&k.name.as_str()) {
-                let d = Diagnostic::new(
-                    format!("unknown key '{}' in {what}", k.name),
-                    Some(k.span.clone()),
-                )
-                .suggest(&k.name, allowed.iter().copied());
-                let help = d
-                    .help
-                    .clone()
-                    .unwrap_or_else(|| format!("the keys of {what} are: {}", allowed.join(", ")));
+                let d = Diagnostic::new(format!("unknown key '{}' in {what}", k.name), Some(k.span.clone())).suggest(&k.name, allowed.iter().copied());
+                let help = d.help.clone().unwrap_or_else(|| format!("the keys of {what} are: {}", allowed.join(", ")));
                 return Err(d.with_help(Some(help)));
             }
         }
@@ -192,33 +174,20 @@ pub struct Fields<'a> {
 
 impl<'a> Fields<'a> {
     pub fn get(&self, key: &str) -> Option<&'a Item> {
-        self.entries
-            .iter()
-            .find(|(k, _)| k.name == key)
-            .map(|(_, v)| v)
+        self.entries.iter().find(|(k, _)| k.name == key).map(|(_, v)| v)
     }
 
     pub fn require(&self, key: &str) -> Result<&'a Item, Diagnostic> {
-        self.get(key).ok_or_else(|| {
-            Diagnostic::new(
-                format!("{} needs the key '{key}'", self.what),
-                Some(self.span.start..self.span.start + 1),
-            )
-        })
+        self.get(key)
+            .ok_or_else(|| Diagnostic::new(format!("{} needs the key '{key}'", self.what), Some(self.span.start..self.span.start + 1)))
     }
 
     /// Which of `keys` are present (for "exactly one of" rules).
     pub fn present(&self, keys: &[&'a str]) -> Vec<&'a str> {
-        keys.iter()
-            .copied()
-            .filter(|k| self.get(k).is_some())
-            .collect()
+        keys.iter().copied().filter(|k| self.get(k).is_some()).collect()
     }
 
     pub fn key_span(&self, key: &str) -> Option<Range<usize>> {
-        self.entries
-            .iter()
-            .find(|(k, _)| k.name == key)
-            .map(|(k, _)| k.span.clone())
+        self.entries.iter().find(|(k, _)| k.name == key).map(|(k, _)| k.span.clone())
     }
 }

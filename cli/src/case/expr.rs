@@ -28,11 +28,7 @@ struct Parser<'t, 'p> {
 
 /// Parses `expr [unit]` where the unit is whatever follows the expression.
 pub fn parse<'t>(text: &'t str, params: &BTreeMap<String, f64>) -> Result<Parsed<'t>, ExprError> {
-    let mut p = Parser {
-        text,
-        pos: 0,
-        params,
-    };
+    let mut p = Parser { text, pos: 0, params };
     let value = p.sum()?;
     p.skip_space();
     let unit = text[p.pos..].trim();
@@ -118,10 +114,7 @@ impl Parser<'_, '_> {
     }
 
     fn starts_with_param(&self) -> bool {
-        let name: String = self.text[self.pos..]
-            .chars()
-            .take_while(|c| c.is_alphanumeric() || *c == '_')
-            .collect();
+        let name: String = self.text[self.pos..].chars().take_while(|c| c.is_alphanumeric() || *c == '_').collect();
         self.params.contains_key(&name)
     }
 
@@ -148,9 +141,7 @@ impl Parser<'_, '_> {
             }
             Some(c) if c.is_ascii_digit() || c == '.' => self.number(),
             Some(c) if c.is_alphabetic() || c == '_' => self.name(),
-            Some(c) => self.err(format!(
-                "expected a number, a parameter name or '(', found '{c}'"
-            )),
+            Some(c) => self.err(format!("expected a number, a parameter name or '(', found '{c}'")),
             None => self.err("expected a number or a parameter name, found the end of the text"),
         }
     }
@@ -158,9 +149,7 @@ impl Parser<'_, '_> {
     fn number(&mut self) -> Result<f64, ExprError> {
         let start = self.pos;
         let bytes = self.text.as_bytes();
-        while self.pos < bytes.len()
-            && (bytes[self.pos].is_ascii_digit() || bytes[self.pos] == b'.')
-        {
+        while self.pos < bytes.len() && (bytes[self.pos].is_ascii_digit() || bytes[self.pos] == b'.') {
             self.pos += 1;
         }
         // An exponent, but not the start of a unit such as "e" alone.
@@ -191,12 +180,9 @@ impl Parser<'_, '_> {
         match self.params.get(name) {
             Some(v) => Ok(*v),
             None => {
-                let suggestion =
-                    crate::case::suggest::closest(name, self.params.keys().map(String::as_str));
+                let suggestion = crate::case::suggest::closest(name, self.params.keys().map(String::as_str));
                 Err(ExprError {
-                    message: format!(
-                        "unknown parameter '{name}' (parameters are defined in [params])"
-                    ),
+                    message: format!("unknown parameter '{name}' (parameters are defined in [params])"),
                     offset: start,
                     suggestion,
                 })
@@ -210,9 +196,7 @@ mod tests {
     use super::*;
 
     fn params() -> BTreeMap<String, f64> {
-        [("gap".to_string(), 1.5), ("plate".to_string(), 6.0)]
-            .into_iter()
-            .collect()
+        [("gap".to_string(), 1.5), ("plate".to_string(), 6.0)].into_iter().collect()
     }
 
     #[test]
@@ -238,10 +222,7 @@ mod tests {
         let p = params();
         let e = parse("10 + gapp", &p).unwrap_err();
         assert_eq!((e.offset, e.suggestion.as_deref()), (5, Some("gap")));
-        assert_eq!(
-            parse("1 / (gap - 1.5)", &p).unwrap_err().message,
-            "division by zero"
-        );
+        assert_eq!(parse("1 / (gap - 1.5)", &p).unwrap_err().message, "division by zero");
         assert!(parse("(1 + 2", &p).is_err());
     }
 }

@@ -57,11 +57,7 @@ pub struct Part {
 #[derive(Clone, Debug)]
 pub enum ProbeShape {
     Point([f64; 2]),
-    Line {
-        from: [f64; 2],
-        to: [f64; 2],
-        points: usize,
-    },
+    Line { from: [f64; 2], to: [f64; 2], points: usize },
 }
 
 #[derive(Clone, Debug)]

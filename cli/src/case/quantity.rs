@@ -35,8 +35,7 @@ impl Context<'_> {
                 let base = item.span.start + 1;
                 let parsed = expr::parse(s, self.params).map_err(|e| {
                     let at = base + e.offset;
-                    Diagnostic::new(format!("{what}: {}", e.message), Some(at..at + 1))
-                        .with_help(e.suggestion.map(|c| format!("did you mean '{c}'?")))
+                    Diagnostic::new(format!("{what}: {}", e.message), Some(at..at + 1)).with_help(e.suggestion.map(|c| format!("did you mean '{c}'?")))
                 })?;
                 if parsed.unit.is_empty() {
                     return Ok(bare(parsed.value));
@@ -44,27 +43,15 @@ impl Context<'_> {
                 let at = base + parsed.unit_offset;
                 let span = Some(at..at + parsed.unit.len());
                 match units::unit(parsed.unit) {
-                    Some((k, factor)) if k == kind => {
-                        Ok(parsed.value * factor + units::offset(parsed.unit))
-                    }
+                    Some((k, factor)) if k == kind => Ok(parsed.value * factor + units::offset(parsed.unit)),
                     Some((k, _)) => Err(Diagnostic::new(
-                        format!(
-                            "{what}: '{}' is {}, but {} is needed",
-                            parsed.unit,
-                            k.describe(),
-                            kind.describe()
-                        ),
+                        format!("{what}: '{}' is {}, but {} is needed", parsed.unit, k.describe(), kind.describe()),
                         span,
                     )),
-                    None => Err(Diagnostic::new(
-                        format!(
-                            "{what}: unknown unit '{}'; expected {}",
-                            parsed.unit,
-                            kind.describe()
-                        ),
-                        span,
-                    )
-                    .suggest(parsed.unit, units::symbols_of(kind))),
+                    None => Err(
+                        Diagnostic::new(format!("{what}: unknown unit '{}'; expected {}", parsed.unit, kind.describe()), span)
+                            .suggest(parsed.unit, units::symbols_of(kind)),
+                    ),
                 }
             }
             other => Err(Diagnostic::new(
@@ -96,17 +83,11 @@ impl Context<'_> {
         let a = item.array(what)?;
         if a.len() != 2 {
             return Err(Diagnostic::new(
-                format!(
-                    "{what}: a point is [x, y] (or [r, z]), found {} values",
-                    a.len()
-                ),
+                format!("{what}: a point is [x, y] (or [r, z]), found {} values", a.len()),
                 Some(item.span.clone()),
             ));
         }
-        Ok([
-            self.quantity(&a[0], Kind::Length, what)?,
-            self.quantity(&a[1], Kind::Length, what)?,
-        ])
+        Ok([self.quantity(&a[0], Kind::Length, what)?, self.quantity(&a[1], Kind::Length, what)?])
     }
 
     /// A positive quantity.
@@ -115,10 +96,7 @@ impl Context<'_> {
         if v > 0.0 {
             Ok(v)
         } else {
-            Err(Diagnostic::new(
-                format!("{what} must be greater than zero, got {v}"),
-                Some(item.span.clone()),
-            ))
+            Err(Diagnostic::new(format!("{what} must be greater than zero, got {v}"), Some(item.span.clone())))
         }
     }
 }

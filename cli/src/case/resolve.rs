@@ -48,17 +48,7 @@ const PART: &[&str] = &[
     "current_density",
 ];
 const SHAPES: &[&str] = &["polygon", "rect", "circle"];
-const MATERIAL: &[&str] = &[
-    "bh",
-    "bh_csv",
-    "mur",
-    "br",
-    "hcb",
-    "hcj",
-    "br_coeff",
-    "hcj_coeff",
-    "description",
-];
+const MATERIAL: &[&str] = &["bh", "bh_csv", "mur", "br", "hcb", "hcj", "br_coeff", "hcj_coeff", "description"];
 const PROBE: &[&str] = &["name", "point", "line"];
 const FORCE: &[&str] = &["name", "parts", "torque_about"];
 const FLUX: &[&str] = &["name", "line", "winding", "turns"];
@@ -69,18 +59,12 @@ const OUTPUT: &[&str] = &["vtk", "plots", "report", "csv"];
 pub const DEFAULT_MAX_ELEMENTS: usize = 3_000_000;
 
 /// The parameter values of the case, with command-line overrides applied.
-pub fn params(
-    doc: &Item,
-    overrides: &BTreeMap<String, f64>,
-) -> Result<BTreeMap<String, f64>, Diagnostic> {
+pub fn params(doc: &Item, overrides: &BTreeMap<String, f64>) -> Result<BTreeMap<String, f64>, Diagnostic> {
     let top = doc.table("the case file", TOP)?;
     let mut out = BTreeMap::new();
     if let Some(p) = top.get("params") {
         let Value::Table(entries) = &p.value else {
-            return Err(Diagnostic::new(
-                "[params]: expected a table of named numbers",
-                Some(p.span.clone()),
-            ));
+            return Err(Diagnostic::new("[params]: expected a table of named numbers", Some(p.span.clone())));
         };
         for (k, v) in entries {
             out.insert(k.name.clone(), v.number(&format!("params.{}", k.name))?);
@@ -88,8 +72,7 @@ pub fn params(
     }
     for (k, v) in overrides {
         if !out.contains_key(k) && !sweep_names(doc).contains(k) {
-            let d = Diagnostic::new(format!("--set {k}: the case has no parameter '{k}'"), None)
-                .suggest(k, out.keys().map(String::as_str));
+            let d = Diagnostic::new(format!("--set {k}: the case has no parameter '{k}'"), None).suggest(k, out.keys().map(String::as_str));
             return Err(d);
         }
         out.insert(k.clone(), *v);
@@ -98,9 +81,7 @@ pub fn params(
 }
 
 fn sweep_names(doc: &Item) -> Vec<String> {
-    sweep(doc)
-        .map(|s| s.into_iter().map(|(k, _)| k).collect())
-        .unwrap_or_default()
+    sweep(doc).map(|s| s.into_iter().map(|(k, _)| k).collect()).unwrap_or_default()
 }
 
 /// The swept parameters and their values, in the order written.
@@ -119,10 +100,7 @@ pub fn sweep(doc: &Item) -> Result<Vec<(String, Vec<f64>)>, Diagnostic> {
     for (k, v) in entries {
         let what = format!("sweep.{}", k.name);
         let values = match &v.value {
-            Value::Array(a) => a
-                .iter()
-                .map(|x| x.number(&what))
-                .collect::<Result<Vec<_>, _>>()?,
+            Value::Array(a) => a.iter().map(|x| x.number(&what)).collect::<Result<Vec<_>, _>>()?,
             Value::Table(_) => range(v, &what)?,
             _ => {
                 return Err(Diagnostic::new(
@@ -132,10 +110,7 @@ pub fn sweep(doc: &Item) -> Result<Vec<(String, Vec<f64>)>, Diagnostic> {
             }
         };
         if values.is_empty() {
-            return Err(Diagnostic::new(
-                format!("{what}: the sweep has no values"),
-                Some(v.span.clone()),
-            ));
+            return Err(Diagnostic::new(format!("{what}: the sweep has no values"), Some(v.span.clone())));
         }
         out.push((k.name.clone(), values));
     }
@@ -160,28 +135,15 @@ fn range(v: &Item, what: &str) -> Result<Vec<f64>, Diagnostic> {
         Some(s) => match s.str(what)? {
             "linear" => false,
             "log" => true,
-            other => {
-                return Err(Diagnostic::new(
-                    format!("{what}: unknown spacing '{other}'"),
-                    Some(s.span.clone()),
-                )
-                .suggest(other, ["linear", "log"]))
-            }
+            other => return Err(Diagnostic::new(format!("{what}: unknown spacing '{other}'"), Some(s.span.clone())).suggest(other, ["linear", "log"])),
         },
     };
     if log && (from <= 0.0 || to <= 0.0) {
-        return Err(Diagnostic::new(
-            format!("{what}: log spacing needs positive from and to"),
-            Some(v.span.clone()),
-        ));
+        return Err(Diagnostic::new(format!("{what}: log spacing needs positive from and to"), Some(v.span.clone())));
     }
     Ok((0..n)
         .map(|i| {
-            let t = if n == 1 {
-                0.0
-            } else {
-                i as f64 / (n - 1) as f64
-            };
+            let t = if n == 1 { 0.0 } else { i as f64 / (n - 1) as f64 };
             if log {
                 (from.ln() + t * (to.ln() - from.ln())).exp()
             } else {
@@ -192,11 +154,7 @@ fn range(v: &Item, what: &str) -> Result<Vec<f64>, Diagnostic> {
 }
 
 /// Builds the model for one set of parameter values.
-pub fn resolve(
-    doc: &Item,
-    params: &BTreeMap<String, f64>,
-    case_dir: &Path,
-) -> Result<Model, Diagnostic> {
+pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> Result<Model, Diagnostic> {
     let top = doc.table("the case file", TOP)?;
     let empty = Item {
         value: Value::Table(Vec::new()),
@@ -204,10 +162,7 @@ pub fn resolve(
     };
     let study = top.get("study").unwrap_or(&empty).table("[study]", STUDY)?;
     let (unit_name, unit) = length_unit(&study)?;
-    let ctx = Context {
-        params,
-        length_unit: unit,
-    };
+    let ctx = Context { params, length_unit: unit };
     let symmetry = geometry(&study)?;
     let user_materials = user_materials(&top, &ctx, case_dir)?;
     let temperature = match study.get("temperature") {
@@ -219,10 +174,7 @@ pub fn resolve(
         None => &[],
     };
     if parts_items.is_empty() {
-        return Err(Diagnostic::new(
-            "the case has no [[part]]: a study needs at least one part",
-            Some(0..1),
-        ));
+        return Err(Diagnostic::new("the case has no [[part]]: a study needs at least one part", Some(0..1)));
     }
     let mesh = mesh_settings(&top, &ctx, parts_items)?;
     let mut parts = Vec::new();
@@ -269,11 +221,10 @@ fn length_unit(study: &Fields) -> Result<(String, f64), Diagnostic> {
     let name = u.str("study.unit")?;
     match super::units::unit(name) {
         Some((Kind::Length, f)) => Ok((name.into(), f)),
-        _ => Err(Diagnostic::new(
-            format!("study.unit: '{name}' is not a length unit"),
-            Some(u.span.clone()),
-        )
-        .suggest(name, super::units::symbols_of(Kind::Length))),
+        _ => {
+            Err(Diagnostic::new(format!("study.unit: '{name}' is not a length unit"), Some(u.span.clone()))
+                .suggest(name, super::units::symbols_of(Kind::Length)))
+        }
     }
 }
 
@@ -284,27 +235,24 @@ fn geometry(study: &Fields) -> Result<Symmetry, Diagnostic> {
     match g.str("study.geometry")? {
         "axisymmetric" => Ok(Symmetry::Axisymmetric),
         "planar" => Ok(Symmetry::Planar),
-        other => Err(Diagnostic::new(format!("study.geometry: unknown geometry '{other}'; expected \"axisymmetric\" or \"planar\""), Some(g.span.clone())).suggest(other, ["axisymmetric", "planar"])),
+        other => Err(Diagnostic::new(
+            format!("study.geometry: unknown geometry '{other}'; expected \"axisymmetric\" or \"planar\""),
+            Some(g.span.clone()),
+        )
+        .suggest(other, ["axisymmetric", "planar"])),
     }
 }
 
 fn depth(study: &Fields, ctx: &Context, symmetry: Symmetry) -> Result<f64, Diagnostic> {
     match (study.get("depth"), symmetry) {
         (Some(d), Symmetry::Planar) => ctx.positive(d, Kind::Length, "study.depth"),
-        (Some(d), Symmetry::Axisymmetric) => Err(Diagnostic::new(
-            "study.depth applies to planar studies only",
-            Some(d.span.clone()),
-        )),
+        (Some(d), Symmetry::Axisymmetric) => Err(Diagnostic::new("study.depth applies to planar studies only", Some(d.span.clone()))),
         (None, Symmetry::Planar) => Ok(1.0),
         (None, Symmetry::Axisymmetric) => Ok(1.0),
     }
 }
 
-fn boundary(
-    study: &Fields,
-    ctx: &Context,
-    symmetry: Symmetry,
-) -> Result<OuterBoundary, Diagnostic> {
+fn boundary(study: &Fields, ctx: &Context, symmetry: Symmetry) -> Result<OuterBoundary, Diagnostic> {
     let kind = match study.get("boundary") {
         None => "open",
         Some(b) => b.str("study.boundary")?,
@@ -313,10 +261,7 @@ fn boundary(
     match kind {
         "open" => {
             if let Some(b) = box_item {
-                return Err(Diagnostic::new(
-                    "study.box applies to boundary = \"flux-parallel\" only",
-                    Some(b.span.clone()),
-                ));
+                return Err(Diagnostic::new("study.box applies to boundary = \"flux-parallel\" only", Some(b.span.clone())));
             }
             Ok(OuterBoundary::Open)
         }
@@ -325,10 +270,7 @@ fn boundary(
                 None => None,
                 Some(b) => {
                     let t = b.table("study.box", &["from", "to"])?;
-                    Some((
-                        ctx.point(t.require("from")?, "study.box.from")?,
-                        ctx.point(t.require("to")?, "study.box.to")?,
-                    ))
+                    Some((ctx.point(t.require("from")?, "study.box.from")?, ctx.point(t.require("to")?, "study.box.to")?))
                 }
             };
             let _ = symmetry;
@@ -336,26 +278,33 @@ fn boundary(
         }
         other => {
             let span = study.get("boundary").map(|b| b.span.clone());
-            Err(Diagnostic::new(format!("study.boundary: unknown boundary '{other}'; expected \"open\" or \"flux-parallel\""), span).suggest(other, ["open", "flux-parallel"]))
+            Err(Diagnostic::new(
+                format!("study.boundary: unknown boundary '{other}'; expected \"open\" or \"flux-parallel\""),
+                span,
+            )
+            .suggest(other, ["open", "flux-parallel"]))
         }
     }
 }
 
-fn applied_field(
-    study: &Fields,
-    ctx: &Context,
-    symmetry: Symmetry,
-) -> Result<[f64; 2], Diagnostic> {
+fn applied_field(study: &Fields, ctx: &Context, symmetry: Symmetry) -> Result<[f64; 2], Diagnostic> {
     let Some(a) = study.get("applied_field") else {
         return Ok([0.0, 0.0]);
     };
     match (&a.value, symmetry) {
-        (Value::Array(v), Symmetry::Planar) if v.len() == 2 => {
-            Ok([ctx.quantity(&v[0], Kind::FluxDensity, "study.applied_field")?, ctx.quantity(&v[1], Kind::FluxDensity, "study.applied_field")?])
-        }
-        (Value::Array(_), _) => Err(Diagnostic::new("study.applied_field: give [x, y] in a planar study, or one value along z in an axisymmetric study", Some(a.span.clone()))),
+        (Value::Array(v), Symmetry::Planar) if v.len() == 2 => Ok([
+            ctx.quantity(&v[0], Kind::FluxDensity, "study.applied_field")?,
+            ctx.quantity(&v[1], Kind::FluxDensity, "study.applied_field")?,
+        ]),
+        (Value::Array(_), _) => Err(Diagnostic::new(
+            "study.applied_field: give [x, y] in a planar study, or one value along z in an axisymmetric study",
+            Some(a.span.clone()),
+        )),
         (_, Symmetry::Axisymmetric) => Ok([0.0, ctx.quantity(a, Kind::FluxDensity, "study.applied_field")?]),
-        (_, Symmetry::Planar) => Err(Diagnostic::new("study.applied_field: a planar study needs [x, y], for example [\"0 T\", \"0.1 T\"]", Some(a.span.clone()))),
+        (_, Symmetry::Planar) => Err(Diagnostic::new(
+            "study.applied_field: a planar study needs [x, y], for example [\"0 T\", \"0.1 T\"]",
+            Some(a.span.clone()),
+        )),
     }
 }
 
@@ -402,14 +351,8 @@ fn default_size(parts: &[Item], ctx: &Context) -> f64 {
         };
         for (k, v) in entries {
             let pts: Vec<[f64; 2]> = match (k.name.as_str(), &v.value) {
-                ("rect", Value::Table(t)) => t
-                    .iter()
-                    .filter_map(|(_, x)| ctx.point(x, "rect").ok())
-                    .collect(),
-                ("polygon", Value::Array(a)) => a
-                    .iter()
-                    .filter_map(|x| ctx.point(x, "polygon").ok())
-                    .collect(),
+                ("rect", Value::Table(t)) => t.iter().filter_map(|(_, x)| ctx.point(x, "rect").ok()).collect(),
+                ("polygon", Value::Array(a)) => a.iter().filter_map(|x| ctx.point(x, "polygon").ok()).collect(),
                 ("circle", Value::Table(t)) => {
                     let r = t
                         .iter()
@@ -434,11 +377,7 @@ fn default_size(parts: &[Item], ctx: &Context) -> f64 {
     }
 }
 
-fn user_materials(
-    top: &Fields,
-    ctx: &Context,
-    dir: &Path,
-) -> Result<BTreeMap<String, (Entry, std::ops::Range<usize>)>, Diagnostic> {
+fn user_materials(top: &Fields, ctx: &Context, dir: &Path) -> Result<BTreeMap<String, (Entry, std::ops::Range<usize>)>, Diagnostic> {
     let mut out = BTreeMap::new();
     let Some(m) = top.get("materials") else {
         return Ok(out);
@@ -474,20 +413,12 @@ fn user_materials(
     Ok(out)
 }
 
-fn user_material(
-    t: &Fields,
-    ctx: &Context,
-    dir: &Path,
-    what: &str,
-) -> Result<Material, Diagnostic> {
+fn user_material(t: &Fields, ctx: &Context, dir: &Path, what: &str) -> Result<Material, Diagnostic> {
     if let Some(br) = t.get("br") {
         let br_v = ctx.quantity(br, Kind::FluxDensity, &format!("{what} br"))?;
         let mu = match (t.get("mur"), t.get("hcb")) {
             (Some(m), None) => positive_number(m, &format!("{what} mur"))?,
-            (None, Some(h)) => {
-                br_v / (solver::MU0
-                    * ctx.positive(h, Kind::FieldStrength, &format!("{what} hcb"))?)
-            }
+            (None, Some(h)) => br_v / (solver::MU0 * ctx.positive(h, Kind::FieldStrength, &format!("{what} hcb"))?),
             (None, None) => 1.05,
             (Some(m), Some(_)) => {
                 return Err(Diagnostic::new(
@@ -498,7 +429,10 @@ fn user_material(
         };
         if !(1.0..=10.0).contains(&mu) {
             let span = t.get("mur").or(t.get("hcb")).map(|i| i.span.clone());
-            return Err(Diagnostic::new(format!("{what}: the recoil permeability {mu:.3} lies outside 1 to 10; check mur or hcb"), span));
+            return Err(Diagnostic::new(
+                format!("{what}: the recoil permeability {mu:.3} lies outside 1 to 10; check mur or hcb"),
+                span,
+            ));
         }
         let hcj = match t.get("hcj") {
             Some(h) => ctx.positive(h, Kind::FieldStrength, &format!("{what} hcj"))?,
@@ -536,10 +470,7 @@ fn user_material(
             for row in item.array(&format!("{what} bh"))? {
                 let r = row.array(&format!("{what} bh row"))?;
                 if r.len() != 2 {
-                    return Err(Diagnostic::new(
-                        format!("{what} bh: each row is [H in A/m, B in T]"),
-                        Some(row.span.clone()),
-                    ));
+                    return Err(Diagnostic::new(format!("{what} bh: each row is [H in A/m, B in T]"), Some(row.span.clone())));
                 }
                 pts.push([r[0].number("H")?, r[1].number("B")?]);
             }
@@ -550,18 +481,10 @@ fn user_material(
             let item = t.require("bh_csv")?;
             let rel = item.str(&format!("{what} bh_csv"))?;
             let path = dir.join(rel);
-            let text = std::fs::read_to_string(&path).map_err(|e| {
-                Diagnostic::new(
-                    format!("{what} bh_csv: cannot read {}: {e}", path.display()),
-                    Some(item.span.clone()),
-                )
-            })?;
-            let (pts, lines) = parse_bh_csv(&text).map_err(|(line, msg)| {
-                Diagnostic::new(
-                    format!("{what} bh_csv: {}:{line}: {msg}", path.display()),
-                    Some(item.span.clone()),
-                )
-            })?;
+            let text = std::fs::read_to_string(&path)
+                .map_err(|e| Diagnostic::new(format!("{what} bh_csv: cannot read {}: {e}", path.display()), Some(item.span.clone())))?;
+            let (pts, lines) = parse_bh_csv(&text)
+                .map_err(|(line, msg)| Diagnostic::new(format!("{what} bh_csv: {}:{line}: {msg}", path.display()), Some(item.span.clone())))?;
             check_curve(&pts, item, what, Some((&path, &lines)))?;
             Ok(Material::Soft { curve: pts })
         }
@@ -573,40 +496,24 @@ fn positive_number(item: &Item, what: &str) -> Result<f64, Diagnostic> {
     if v > 0.0 {
         Ok(v)
     } else {
-        Err(Diagnostic::new(
-            format!("{what} must be greater than zero, got {v}"),
-            Some(item.span.clone()),
-        ))
+        Err(Diagnostic::new(format!("{what} must be greater than zero, got {v}"), Some(item.span.clone())))
     }
 }
 
 /// Validates a B-H table; `csv` maps rows to file lines for the message.
-fn check_curve(
-    pts: &[[f64; 2]],
-    item: &Item,
-    what: &str,
-    csv: Option<(&Path, &[usize])>,
-) -> Result<(), Diagnostic> {
+fn check_curve(pts: &[[f64; 2]], item: &Item, what: &str, csv: Option<(&Path, &[usize])>) -> Result<(), Diagnostic> {
     solver::BhCurve::new(pts).map(|_| ()).map_err(|e| {
         let row = match e {
-            solver::CurveError::NotFinite { row }
-            | solver::CurveError::NotIncreasing { row }
-            | solver::CurveError::SlopeBelowMu0 { row } => Some(row),
+            solver::CurveError::NotFinite { row } | solver::CurveError::NotIncreasing { row } | solver::CurveError::SlopeBelowMu0 { row } => Some(row),
             solver::CurveError::DoesNotStartAtOrigin => Some(0),
             solver::CurveError::TooFewPoints(_) => None,
         };
         let place = match (csv, row) {
-            (Some((path, lines)), Some(r)) => format!(
-                " ({}:{})",
-                path.display(),
-                lines.get(r).copied().unwrap_or(0)
-            ),
+            (Some((path, lines)), Some(r)) => format!(" ({}:{})", path.display(), lines.get(r).copied().unwrap_or(0)),
             _ => String::new(),
         };
         let span = match (&item.value, row, csv) {
-            (Value::Array(a), Some(r), None) => {
-                a.get(r).map_or(item.span.clone(), |x| x.span.clone())
-            }
+            (Value::Array(a), Some(r), None) => a.get(r).map_or(item.span.clone(), |x| x.span.clone()),
             _ => item.span.clone(),
         };
         Diagnostic::new(format!("{what} B-H table{place}: {e}"), Some(span))
@@ -641,10 +548,7 @@ fn parse_bh_csv(text: &str) -> Result<CsvCurve, (usize, String)> {
     Ok((pts, lines))
 }
 
-fn lookup_material(
-    item: &Item,
-    user: &BTreeMap<String, (Entry, std::ops::Range<usize>)>,
-) -> Result<Entry, Diagnostic> {
+fn lookup_material(item: &Item, user: &BTreeMap<String, (Entry, std::ops::Range<usize>)>) -> Result<Entry, Diagnostic> {
     let name = item.str("part.material")?;
     if let Some((e, _)) = user.get(name) {
         return Ok(e.clone());
@@ -683,11 +587,7 @@ fn part(
         let msg = if shapes.is_empty() {
             format!("{what} needs a shape: one of rect, polygon or circle")
         } else {
-            format!(
-                "{what} has {} shapes ({}); give exactly one",
-                shapes.len(),
-                shapes.join(", ")
-            )
+            format!("{what} has {} shapes ({}); give exactly one", shapes.len(), shapes.join(", "))
         };
         return Err(Diagnostic::new(msg, Some(t.span.start..t.span.start + 1)));
     }
@@ -699,16 +599,26 @@ fn part(
     let is_magnet = matches!(material.material, Material::Magnet(_));
     let magnetization = match (t.get("magnetization"), is_magnet) {
         (Some(m), true) => Some(direction(m, ctx, symmetry, &what)?),
-        (None, true) => return Err(Diagnostic::new(format!("{what} is a magnet ({}) and needs a magnetization direction, for example magnetization = \"+z\"", material.name), Some(t.span.start..t.span.start + 1))),
-        (Some(m), false) => return Err(Diagnostic::new(format!("{what}: magnetization applies to magnet materials only ('{}' is not one)", material.name), Some(m.span.clone()))),
+        (None, true) => {
+            return Err(Diagnostic::new(
+                format!(
+                    "{what} is a magnet ({}) and needs a magnetization direction, for example magnetization = \"+z\"",
+                    material.name
+                ),
+                Some(t.span.start..t.span.start + 1),
+            ))
+        }
+        (Some(m), false) => {
+            return Err(Diagnostic::new(
+                format!("{what}: magnetization applies to magnet materials only ('{}' is not one)", material.name),
+                Some(m.span.clone()),
+            ))
+        }
         (None, false) => None,
     };
     let current = match (t.get("current"), t.get("current_density")) {
         (Some(c), None) => Some(ctx.quantity(c, Kind::Current, &format!("{what} current"))?),
-        (None, Some(j)) => Some(
-            ctx.quantity(j, Kind::CurrentDensity, &format!("{what} current_density"))?
-                * shape.exact_area(symmetry),
-        ),
+        (None, Some(j)) => Some(ctx.quantity(j, Kind::CurrentDensity, &format!("{what} current_density"))? * shape.exact_area(symmetry)),
         (Some(c), Some(_)) => {
             return Err(Diagnostic::new(
                 format!("{what}: give current or current_density, not both"),
@@ -718,7 +628,10 @@ fn part(
         (None, None) => None,
     };
     if let (Some(_), true) = (current, is_magnet) {
-        return Err(Diagnostic::new(format!("{what}: a magnet cannot carry a winding current here; model the winding as its own part"), t.get("current").or(t.get("current_density")).map(|i| i.span.clone())));
+        return Err(Diagnostic::new(
+            format!("{what}: a magnet cannot carry a winding current here; model the winding as its own part"),
+            t.get("current").or(t.get("current_density")).map(|i| i.span.clone()),
+        ));
     }
     Ok(Part {
         name,
@@ -738,10 +651,7 @@ fn shape(kind: &str, item: &Item, ctx: &Context, what: &str) -> Result<Shape, Di
             let from = ctx.point(t.require("from")?, &format!("{what} rect.from"))?;
             let to = ctx.point(t.require("to")?, &format!("{what} rect.to"))?;
             if from[0] == to[0] || from[1] == to[1] {
-                return Err(Diagnostic::new(
-                    format!("{what}: the rectangle has zero area"),
-                    Some(item.span.clone()),
-                ));
+                return Err(Diagnostic::new(format!("{what}: the rectangle has zero area"), Some(item.span.clone())));
             }
             Ok(Shape::Rect { from, to })
         }
@@ -749,39 +659,25 @@ fn shape(kind: &str, item: &Item, ctx: &Context, what: &str) -> Result<Shape, Di
             let t = item.table(&format!("{what} circle"), &["center", "radius"])?;
             Ok(Shape::Circle {
                 center: ctx.point(t.require("center")?, &format!("{what} circle.center"))?,
-                radius: ctx.positive(
-                    t.require("radius")?,
-                    Kind::Length,
-                    &format!("{what} circle.radius"),
-                )?,
+                radius: ctx.positive(t.require("radius")?, Kind::Length, &format!("{what} circle.radius"))?,
             })
         }
         _ => {
             let pts = item.array(&format!("{what} polygon"))?;
             if pts.len() < 3 {
                 return Err(Diagnostic::new(
-                    format!(
-                        "{what}: a polygon needs at least 3 points, found {}",
-                        pts.len()
-                    ),
+                    format!("{what}: a polygon needs at least 3 points, found {}", pts.len()),
                     Some(item.span.clone()),
                 ));
             }
             Ok(Shape::Polygon(
-                pts.iter()
-                    .map(|p| ctx.point(p, &format!("{what} polygon")))
-                    .collect::<Result<_, _>>()?,
+                pts.iter().map(|p| ctx.point(p, &format!("{what} polygon"))).collect::<Result<_, _>>()?,
             ))
         }
     }
 }
 
-fn direction(
-    item: &Item,
-    ctx: &Context,
-    symmetry: Symmetry,
-    what: &str,
-) -> Result<[f64; 2], Diagnostic> {
+fn direction(item: &Item, ctx: &Context, symmetry: Symmetry, what: &str) -> Result<[f64; 2], Diagnostic> {
     let s = item.str(&format!("{what} magnetization"))?;
     let words: &[&str] = match symmetry {
         Symmetry::Axisymmetric => &["+z", "-z", "+r", "-r"],
@@ -799,10 +695,7 @@ fn direction(
             return Ok(d);
         }
         return Err(Diagnostic::new(
-            format!(
-                "{what}: magnetization '{s}' does not fit this geometry; use one of {}",
-                words.join(" ")
-            ),
+            format!("{what}: magnetization '{s}' does not fit this geometry; use one of {}", words.join(" ")),
             Some(item.span.clone()),
         ));
     }
@@ -817,10 +710,7 @@ fn direction(
         ""
     };
     Err(Diagnostic::new(
-        format!(
-            "{what}: unknown magnetization '{s}'; use one of {}{extra}",
-            words.join(" ")
-        ),
+        format!("{what}: unknown magnetization '{s}'; use one of {}{extra}", words.join(" ")),
         Some(item.span.clone()),
     )
     .suggest(s, words.iter().copied()))
@@ -881,11 +771,7 @@ fn probes(top: &Fields, ctx: &Context) -> Result<Vec<Probe>, Diagnostic> {
 fn part_ref(item: &Item, model: &Model, what: &str) -> Result<usize, Diagnostic> {
     let name = item.str(what)?;
     model.part_index(name).ok_or_else(|| {
-        Diagnostic::new(
-            format!("{what}: no part named '{name}'"),
-            Some(item.span.clone()),
-        )
-        .suggest(name, model.parts.iter().map(|p| p.name.as_str()))
+        Diagnostic::new(format!("{what}: no part named '{name}'"), Some(item.span.clone())).suggest(name, model.parts.iter().map(|p| p.name.as_str()))
     })
 }
 
@@ -910,11 +796,7 @@ fn forces(top: &Fields, ctx: &Context, model: &Model) -> Result<Vec<ForceSpec>, 
             Some(p) => ctx.point(p, "force.torque_about")?,
             None => [0.0, 0.0],
         };
-        out.push(ForceSpec {
-            name,
-            parts,
-            torque_about,
-        });
+        out.push(ForceSpec { name, parts, torque_about });
     }
     Ok(out)
 }
@@ -940,10 +822,7 @@ fn fluxes(top: &Fields, ctx: &Context, model: &Model) -> Result<Vec<FluxSpec>, D
                 for p in parts {
                     let Some(i) = model.parts[p].current else {
                         return Err(Diagnostic::new(
-                            format!(
-                                "{what}: part '{}' carries no current, so it is not a winding",
-                                model.parts[p].name
-                            ),
+                            format!("{what}: part '{}' carries no current, so it is not a winding", model.parts[p].name),
                             Some(w.span.clone()),
                         ));
                     };
@@ -953,11 +832,7 @@ fn fluxes(top: &Fields, ctx: &Context, model: &Model) -> Result<Vec<FluxSpec>, D
                     Some(n) => positive_number(n, &format!("{what} turns"))?,
                     None => 1.0,
                 };
-                out.push(FluxSpec::Winding {
-                    name,
-                    parts: signed,
-                    turns,
-                });
+                out.push(FluxSpec::Winding { name, parts: signed, turns });
             }
             _ => {
                 return Err(Diagnostic::new(
@@ -984,14 +859,8 @@ fn expects(top: &Fields, ctx: &Context) -> Result<Vec<Expect>, Diagnostic> {
         };
         let given = t.present(&["min", "max", "between", "near"]);
         let bound = match given.as_slice() {
-            ["min"] => (
-                Bound::Min(q(t.require("min")?)?),
-                format!(">= {}", text(t.require("min")?)),
-            ),
-            ["max"] => (
-                Bound::Max(q(t.require("max")?)?),
-                format!("<= {}", text(t.require("max")?)),
-            ),
+            ["min"] => (Bound::Min(q(t.require("min")?)?), format!(">= {}", text(t.require("min")?))),
+            ["max"] => (Bound::Max(q(t.require("max")?)?), format!("<= {}", text(t.require("max")?))),
             ["min", "max"] => (
                 Bound::Between(q(t.require("min")?)?, q(t.require("max")?)?),
                 format!("{} .. {}", text(t.require("min")?), text(t.require("max")?)),
@@ -1000,15 +869,9 @@ fn expects(top: &Fields, ctx: &Context) -> Result<Vec<Expect>, Diagnostic> {
                 let b = t.require("between")?;
                 let a = b.array(&what)?;
                 if a.len() != 2 {
-                    return Err(Diagnostic::new(
-                        format!("{what}: between takes [low, high]"),
-                        Some(b.span.clone()),
-                    ));
+                    return Err(Diagnostic::new(format!("{what}: between takes [low, high]"), Some(b.span.clone())));
                 }
-                (
-                    Bound::Between(q(&a[0])?, q(&a[1])?),
-                    format!("{} .. {}", text(&a[0]), text(&a[1])),
-                )
+                (Bound::Between(q(&a[0])?, q(&a[1])?), format!("{} .. {}", text(&a[0]), text(&a[1])))
             }
             ["near"] => {
                 let n = t.require("near")?;
@@ -1018,10 +881,7 @@ fn expects(top: &Fields, ctx: &Context) -> Result<Vec<Expect>, Diagnostic> {
                     (v, Some(Kind::Percent)) => v / 100.0 * target.abs(),
                     (v, _) => v,
                 };
-                (
-                    Bound::Near(target, abs.abs()),
-                    format!("{} +- {}", text(n), text(tol)),
-                )
+                (Bound::Near(target, abs.abs()), format!("{} +- {}", text(n), text(tol)))
             }
             _ => {
                 return Err(Diagnostic::new(
@@ -1053,16 +913,8 @@ fn output(top: &Fields) -> Result<OutputFlags, Diagnostic> {
         value: Value::Table(Vec::new()),
         span: 0..0,
     };
-    let o = top
-        .get("output")
-        .unwrap_or(&empty)
-        .table("[output]", OUTPUT)?;
-    let flag = |k: &str| {
-        o.get(k)
-            .map(|v| v.bool(&format!("output.{k}")))
-            .transpose()
-            .map(|v| v.unwrap_or(true))
-    };
+    let o = top.get("output").unwrap_or(&empty).table("[output]", OUTPUT)?;
+    let flag = |k: &str| o.get(k).map(|v| v.bool(&format!("output.{k}"))).transpose().map(|v| v.unwrap_or(true));
     Ok(OutputFlags {
         vtk: flag("vtk")?,
         plots: flag("plots")?,
@@ -1080,9 +932,7 @@ fn check_unique_names(top: &Fields) -> Result<(), Diagnostic> {
                     if let Value::Str(s) = &n.value {
                         if !seen.insert(s.clone()) {
                             return Err(Diagnostic::new(
-                                format!(
-                                    "two [[{key}]] entries are named '{s}'; names must be unique"
-                                ),
+                                format!("two [[{key}]] entries are named '{s}'; names must be unique"),
                                 Some(n.span.clone()),
                             ));
                         }

@@ -8,9 +8,7 @@ pub fn distance(a: &str, b: &str) -> usize {
     for (i, ca) in a.iter().enumerate() {
         let mut cur = vec![i + 1; b.len() + 1];
         for (j, cb) in b.iter().enumerate() {
-            cur[j + 1] = (prev[j] + usize::from(ca != cb))
-                .min(prev[j + 1] + 1)
-                .min(cur[j] + 1);
+            cur[j + 1] = (prev[j] + usize::from(ca != cb)).min(prev[j + 1] + 1).min(cur[j] + 1);
         }
         prev = cur;
     }
@@ -32,10 +30,7 @@ pub fn closest<'a>(word: &str, candidates: impl IntoIterator<Item = &'a str>) ->
 mod tests {
     #[test]
     fn finds_near_words() {
-        assert_eq!(
-            super::closest("materail", ["material", "magnetization"]).as_deref(),
-            Some("material")
-        );
+        assert_eq!(super::closest("materail", ["material", "magnetization"]).as_deref(), Some("material"));
         assert_eq!(super::closest("zzz", ["material"]), None);
     }
 }

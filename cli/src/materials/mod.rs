@@ -37,9 +37,7 @@ pub struct Entry {
 
 /// The entry with this name (case-sensitive, as the trade writes it).
 pub fn lookup(name: &str) -> Option<Entry> {
-    linear(name)
-        .or_else(|| soft::lookup(name))
-        .or_else(|| magnets::lookup(name))
+    linear(name).or_else(|| soft::lookup(name)).or_else(|| magnets::lookup(name))
 }
 
 /// Every name the library answers to (composite NdFeB grades included).
@@ -52,12 +50,7 @@ pub fn names() -> Vec<String> {
 
 const LINEAR: &[(&str, &str, f64, &str)] = &[
     ("air", "linear", 1.0, "definition: relative permeability 1"),
-    (
-        "vacuum",
-        "linear",
-        1.0,
-        "definition: relative permeability 1",
-    ),
+    ("vacuum", "linear", 1.0, "definition: relative permeability 1"),
     (
         "copper",
         "conductor",
@@ -76,12 +69,7 @@ const LINEAR: &[(&str, &str, f64, &str)] = &[
         1.004,
         "annealed austenitic stainless: mu_r 1.003 to 1.005 at 16 kA/m (S39); rises with cold work",
     ),
-    (
-        "plastic",
-        "linear",
-        1.0,
-        "non-magnetic: relative permeability 1",
-    ),
+    ("plastic", "linear", 1.0, "non-magnetic: relative permeability 1"),
 ];
 
 fn linear(name: &str) -> Option<Entry> {
@@ -89,9 +77,7 @@ fn linear(name: &str) -> Option<Entry> {
     let material = match (l.0, l.1) {
         ("air" | "vacuum" | "plastic", _) => Material::Air,
         (_, "conductor") => Material::Conductor,
-        _ => Material::Linear {
-            relative_permeability: l.2,
-        },
+        _ => Material::Linear { relative_permeability: l.2 },
     };
     Some(Entry {
         name: l.0.into(),

@@ -65,9 +65,7 @@ pub fn lookup(name: &str) -> Option<Entry> {
     Some(Entry {
         name: c.name.into(),
         family: c.family.into(),
-        material: Material::Soft {
-            curve: c.points.to_vec(),
-        },
+        material: Material::Soft { curve: c.points.to_vec() },
         source: c.source.into(),
     })
 }

@@ -7,13 +7,8 @@ use mesher::Symmetry;
 /// One line probe: distance and position in the case's length unit, fields in T and A/m.
 pub fn probe_csv(model: &Model, p: &ProbeResult) -> String {
     let (u, f) = (&model.length_unit.0, model.length_unit.1);
-    let (x, y) = if model.symmetry == Symmetry::Planar {
-        ("x", "y")
-    } else {
-        ("r", "z")
-    };
-    let mut s =
-        format!("distance_{u},{x}_{u},{y}_{u},b{x}_T,b{y}_T,b_T,h{x}_A_per_m,h{y}_A_per_m\n");
+    let (x, y) = if model.symmetry == Symmetry::Planar { ("x", "y") } else { ("r", "z") };
+    let mut s = format!("distance_{u},{x}_{u},{y}_{u},b{x}_T,b{y}_T,b_T,h{x}_A_per_m,h{y}_A_per_m\n");
     let start = p.points.first().copied().unwrap_or([0.0; 2]);
     for i in 0..p.points.len() {
         let q = p.points[i];

@@ -3,6 +3,9 @@
 //! run never leaves half a file and never spoils earlier results.
 
 pub mod csv;
+pub mod fieldmap;
+pub mod pictures;
+pub mod report;
 pub mod svg;
 pub mod vtk;
 
@@ -16,21 +19,18 @@ const TMP_MARK: &str = ".lodestone-tmp-";
 
 /// Writes every file of the set under `dir` (created if missing) atomically per file.
 pub fn write_all(dir: &Path, files: &FileSet) -> Result<(), String> {
-    std::fs::create_dir_all(dir)
-        .map_err(|e| format!("cannot create the output folder {}: {e}", dir.display()))?;
+    std::fs::create_dir_all(dir).map_err(|e| format!("cannot create the output folder {}: {e}", dir.display()))?;
     remove_stale(dir);
     let mut staged = Vec::new();
     for (name, bytes) in files {
         let target = dir.join(name);
         if let Some(parent) = target.parent() {
-            std::fs::create_dir_all(parent)
-                .map_err(|e| format!("cannot create {}: {e}", parent.display()))?;
+            std::fs::create_dir_all(parent).map_err(|e| format!("cannot create {}: {e}", parent.display()))?;
         }
         let tmp = target.with_file_name(format!(
             "{TMP_MARK}{}-{}",
             std::process::id(),
-            name.file_name()
-                .map_or_else(String::new, |n| n.to_string_lossy().into_owned())
+            name.file_name().map_or_else(String::new, |n| n.to_string_lossy().into_owned())
         ));
         let written = std::fs::File::create(&tmp).and_then(|mut f| {
             f.write_all(bytes)?;
@@ -46,8 +46,7 @@ pub fn write_all(dir: &Path, files: &FileSet) -> Result<(), String> {
         staged.push((tmp, target));
     }
     for (tmp, target) in &staged {
-        std::fs::rename(tmp, target)
-            .map_err(|e| format!("cannot move {} into place: {e}", target.display()))?;
+        std::fs::rename(tmp, target).map_err(|e| format!("cannot move {} into place: {e}", target.display()))?;
     }
     Ok(())
 }
@@ -65,11 +64,9 @@ fn remove_stale(dir: &Path) {
 
 /// Checks that a folder can be written before any long work starts.
 pub fn check_writable(dir: &Path) -> Result<(), String> {
-    std::fs::create_dir_all(dir)
-        .map_err(|e| format!("cannot create the output folder {}: {e}", dir.display()))?;
+    std::fs::create_dir_all(dir).map_err(|e| format!("cannot create the output folder {}: {e}", dir.display()))?;
     let probe = dir.join(format!("{TMP_MARK}probe-{}", std::process::id()));
-    std::fs::write(&probe, b"")
-        .map_err(|e| format!("cannot write in the output folder {}: {e}", dir.display()))?;
+    std::fs::write(&probe, b"").map_err(|e| format!("cannot write in the output folder {}: {e}", dir.display()))?;
     let _ = std::fs::remove_file(probe);
     Ok(())
 }

@@ -6,8 +6,7 @@ use mesher::{Mesh, Region};
 /// Colour of region `i` (air is light grey), from a qualitative palette.
 pub fn part_colour(i: Option<usize>) -> &'static str {
     const PALETTE: &[&str] = &[
-        "#4477aa", "#ee6677", "#228833", "#ccbb44", "#66ccee", "#aa3377", "#bbbbbb", "#ee8866",
-        "#44bb99", "#99ddff",
+        "#4477aa", "#ee6677", "#228833", "#ccbb44", "#66ccee", "#aa3377", "#bbbbbb", "#ee8866", "#44bb99", "#99ddff",
     ];
     match i {
         None => "#f2f2f2",
@@ -17,10 +16,7 @@ pub fn part_colour(i: Option<usize>) -> &'static str {
 
 /// Escapes text for XML.
 pub fn escape(s: &str) -> String {
-    s.replace('&', "&amp;")
-        .replace('<', "&lt;")
-        .replace('>', "&gt;")
-        .replace('"', "&quot;")
+    s.replace('&', "&amp;").replace('<', "&lt;").replace('>', "&gt;").replace('"', "&quot;")
 }
 
 pub fn mesh_svg(model: &Model, mesh: &Mesh) -> String {
@@ -35,10 +31,7 @@ pub fn mesh_svg(model: &Model, mesh: &Mesh) -> String {
         hgt + legend_h,
         hgt + legend_h
     );
-    s += &format!(
-        "<title>{}</title><g stroke=\"#555\" stroke-width=\"0.3\">",
-        escape(&model.title)
-    );
+    s += &format!("<title>{}</title><g stroke=\"#555\" stroke-width=\"0.3\">", escape(&model.title));
     for (t, tri) in mesh.triangles.iter().enumerate() {
         let pts: Vec<String> = tri
             .iter()
@@ -51,25 +44,21 @@ pub fn mesh_svg(model: &Model, mesh: &Mesh) -> String {
             Region::Part(i) => Some(i),
             Region::Air => None,
         };
-        s += &format!(
-            "<polygon points=\"{}\" fill=\"{}\"/>",
-            pts.join(" "),
-            part_colour(part)
-        );
+        s += &format!("<polygon points=\"{}\" fill=\"{}\"/>", pts.join(" "), part_colour(part));
     }
     s += "</g><g font-family=\"sans-serif\" font-size=\"13\">";
     let mut y = hgt + 18.0;
     for (i, name) in std::iter::once("air".to_string())
-        .chain(
-            model
-                .parts
-                .iter()
-                .map(|p| format!("{} ({})", p.name, p.material.name)),
-        )
+        .chain(model.parts.iter().map(|p| format!("{} ({})", p.name, p.material.name)))
         .enumerate()
     {
         let c = part_colour(i.checked_sub(1));
-        s += &format!("<rect x=\"10\" y=\"{:.0}\" width=\"14\" height=\"14\" fill=\"{c}\" stroke=\"#333\"/><text x=\"30\" y=\"{:.0}\">{}</text>", y - 12.0, y, escape(&name));
+        s += &format!(
+            "<rect x=\"10\" y=\"{:.0}\" width=\"14\" height=\"14\" fill=\"{c}\" stroke=\"#333\"/><text x=\"30\" y=\"{:.0}\">{}</text>",
+            y - 12.0,
+            y,
+            escape(&name)
+        );
         y += 20.0;
     }
     s += "</g></svg>\n";
@@ -82,6 +71,8 @@ pub struct Chart<'a> {
     pub x_label: &'a str,
     pub y_label: &'a str,
     pub series: Vec<(String, Vec<[f64; 2]>)>,
+    /// Series drawn as dots rather than lines.
+    pub scatter: Vec<(String, Vec<[f64; 2]>)>,
     /// Horizontal reference lines (value, label).
     pub marks: Vec<(f64, String)>,
 }
@@ -90,16 +81,9 @@ fn nice_ticks(lo: f64, hi: f64) -> Vec<f64> {
     let span = (hi - lo).abs().max(1e-300);
     let raw = span / 5.0;
     let mag = 10f64.powf(raw.log10().floor());
-    let step = [1.0, 2.0, 5.0, 10.0]
-        .iter()
-        .map(|m| m * mag)
-        .find(|s| span / s <= 6.0)
-        .unwrap_or(10.0 * mag);
+    let step = [1.0, 2.0, 5.0, 10.0].iter().map(|m| m * mag).find(|s| span / s <= 6.0).unwrap_or(10.0 * mag);
     let start = (lo / step).ceil() * step;
-    (0..=12)
-        .map(|i| start + i as f64 * step)
-        .take_while(|v| *v <= hi + 1e-9 * span)
-        .collect()
+    (0..=12).map(|i| start + i as f64 * step).take_while(|v| *v <= hi + 1e-9 * span).collect()
 }
 
 pub fn chart(c: &Chart) -> String {
@@ -109,14 +93,7 @@ pub fn chart(c: &Chart) -> String {
         .iter()
         .flat_map(|s| s.1.iter().copied())
         .filter(|p| p[0].is_finite() && p[1].is_finite());
-    let (mut lo, mut hi) = bbox(
-        pts.chain(
-            c.marks
-                .iter()
-                .map(|m| [f64::NAN, m.0])
-                .filter(|p| p[1].is_finite()),
-        ),
-    );
+    let (mut lo, mut hi) = bbox(pts.chain(c.marks.iter().map(|m| [f64::NAN, m.0]).filter(|p| p[1].is_finite())));
     if !lo[0].is_finite() {
         lo = [0.0, 0.0];
         hi = [1.0, 1.0];
@@ -129,17 +106,40 @@ pub fn chart(c: &Chart) -> String {
     }
     let sx = |x: f64| ml + (x - lo[0]) / (hi[0] - lo[0]) * (w - ml - mr);
     let sy = |y: f64| h - mb - (y - lo[1]) / (hi[1] - lo[1]) * (h - mt - mb);
-    let mut s = format!(
-        r#"<svg xmlns="http://www.w3.org/2000/svg" width="{w}" height="{h}" viewBox="0 0 {w} {h}" font-family="sans-serif" font-size="12">"#
+    let mut s = format!(r#"<svg xmlns="http://www.w3.org/2000/svg" width="{w}" height="{h}" viewBox="0 0 {w} {h}" font-family="sans-serif" font-size="12">"#);
+    s += &format!(
+        "<rect width=\"{w}\" height=\"{h}\" fill=\"white\"/><text x=\"{}\" y=\"22\" text-anchor=\"middle\" font-size=\"15\">{}</text>",
+        w / 2.0,
+        escape(c.title)
     );
-    s += &format!("<rect width=\"{w}\" height=\"{h}\" fill=\"white\"/><text x=\"{}\" y=\"22\" text-anchor=\"middle\" font-size=\"15\">{}</text>", w / 2.0, escape(c.title));
     s += "<g class=\"axes\" stroke=\"#222\">";
-    s += &format!("<line x1=\"{ml}\" y1=\"{}\" x2=\"{}\" y2=\"{}\"/><line x1=\"{ml}\" y1=\"{mt}\" x2=\"{ml}\" y2=\"{}\"/></g>", h - mb, w - mr, h - mb, h - mb);
+    s += &format!(
+        "<line x1=\"{ml}\" y1=\"{}\" x2=\"{}\" y2=\"{}\"/><line x1=\"{ml}\" y1=\"{mt}\" x2=\"{ml}\" y2=\"{}\"/></g>",
+        h - mb,
+        w - mr,
+        h - mb,
+        h - mb
+    );
     for t in nice_ticks(lo[0], hi[0]) {
-        s += &format!("<line x1=\"{0:.1}\" y1=\"{1}\" x2=\"{0:.1}\" y2=\"{2}\" stroke=\"#222\"/><text x=\"{0:.1}\" y=\"{3}\" text-anchor=\"middle\">{4}</text>", sx(t), h - mb, h - mb + 5.0, h - mb + 18.0, fmt_tick(t));
+        s += &format!(
+            "<line x1=\"{0:.1}\" y1=\"{1}\" x2=\"{0:.1}\" y2=\"{2}\" stroke=\"#222\"/><text x=\"{0:.1}\" y=\"{3}\" text-anchor=\"middle\">{4}</text>",
+            sx(t),
+            h - mb,
+            h - mb + 5.0,
+            h - mb + 18.0,
+            fmt_tick(t)
+        );
     }
     for t in nice_ticks(lo[1], hi[1]) {
-        s += &format!("<line x1=\"{0}\" y1=\"{1:.1}\" x2=\"{2}\" y2=\"{1:.1}\" stroke=\"#222\"/><text x=\"{3}\" y=\"{4:.1}\" text-anchor=\"end\">{5}</text>", ml - 5.0, sy(t), ml, ml - 8.0, sy(t) + 4.0, fmt_tick(t));
+        s += &format!(
+            "<line x1=\"{0}\" y1=\"{1:.1}\" x2=\"{2}\" y2=\"{1:.1}\" stroke=\"#222\"/><text x=\"{3}\" y=\"{4:.1}\" text-anchor=\"end\">{5}</text>",
+            ml - 5.0,
+            sy(t),
+            ml,
+            ml - 8.0,
+            sy(t) + 4.0,
+            fmt_tick(t)
+        );
     }
     s += &format!(
         "<text class=\"xlabel\" x=\"{}\" y=\"{}\" text-anchor=\"middle\">{}</text>",
@@ -147,7 +147,11 @@ pub fn chart(c: &Chart) -> String {
         h - 15.0,
         escape(c.x_label)
     );
-    s += &format!("<text class=\"ylabel\" transform=\"translate(18 {}) rotate(-90)\" text-anchor=\"middle\">{}</text>", (mt + h - mb) / 2.0, escape(c.y_label));
+    s += &format!(
+        "<text class=\"ylabel\" transform=\"translate(18 {}) rotate(-90)\" text-anchor=\"middle\">{}</text>",
+        (mt + h - mb) / 2.0,
+        escape(c.y_label)
+    );
     for (value, label) in &c.marks {
         s += &format!("<line x1=\"{ml}\" y1=\"{0:.1}\" x2=\"{1}\" y2=\"{0:.1}\" stroke=\"#aa3377\" stroke-dasharray=\"6 4\"/><text x=\"{2}\" y=\"{3:.1}\" text-anchor=\"end\" fill=\"#aa3377\">{4}</text>", sy(*value), w - mr, w - mr - 4.0, sy(*value) - 4.0, escape(label));
     }
@@ -158,11 +162,27 @@ pub fn chart(c: &Chart) -> String {
             .filter(|p| p[0].is_finite() && p[1].is_finite())
             .map(|p| format!("{:.1},{:.1}", sx(p[0]), sy(p[1])))
             .collect();
-        s += &format!("<polyline class=\"series\" fill=\"none\" stroke=\"{colour}\" stroke-width=\"2\" points=\"{}\"/>", path.join(" "));
+        s += &format!(
+            "<polyline class=\"series\" fill=\"none\" stroke=\"{colour}\" stroke-width=\"2\" points=\"{}\"/>",
+            path.join(" ")
+        );
         s += &format!(
             "<text x=\"{}\" y=\"{}\" fill=\"{colour}\">{}</text>",
             ml + 10.0,
             mt + 14.0 + 16.0 * k as f64,
+            escape(name)
+        );
+    }
+    for (k, (name, pts)) in c.scatter.iter().enumerate() {
+        let colour = part_colour(Some(c.series.len() + k));
+        s += "<g class=\"scatter\">";
+        for p in pts.iter().filter(|p| p[0].is_finite() && p[1].is_finite()) {
+            s += &format!("<circle cx=\"{:.1}\" cy=\"{:.1}\" r=\"2\" fill=\"{colour}\"/>", sx(p[0]), sy(p[1]));
+        }
+        s += &format!(
+            "</g><text x=\"{}\" y=\"{}\" fill=\"{colour}\">{}</text>",
+            ml + 10.0,
+            mt + 14.0 + 16.0 * (c.series.len() + k) as f64,
             escape(name)
         );
     }
@@ -202,10 +222,8 @@ pub fn material_plot(e: &crate::materials::Entry) -> String {
                 title: &format!("{}: B-H curve", e.name),
                 x_label: "H (kA/m)",
                 y_label: "B (T)",
-                series: vec![
-                    ("interpolated (Fritsch-Carlson)".into(), pts),
-                    ("table points".into(), table),
-                ],
+                series: vec![("interpolated (Fritsch-Carlson)".into(), pts)],
+                scatter: vec![("table points".into(), table)],
                 marks: Vec::new(),
             })
         }
@@ -219,13 +237,7 @@ pub fn material_plot(e: &crate::materials::Entry) -> String {
                     let h_end = hcb.min(g.hcj_at(t));
                     (
                         format!("{t} degC"),
-                        vec![
-                            [
-                                -h_end / 1e3,
-                                br - solver::MU0 * g.recoil_permeability * h_end,
-                            ],
-                            [0.0, br],
-                        ],
+                        vec![[-h_end / 1e3, br - solver::MU0 * g.recoil_permeability * h_end], [0.0, br]],
                     )
                 })
                 .collect();
@@ -234,6 +246,7 @@ pub fn material_plot(e: &crate::materials::Entry) -> String {
                 x_label: "H (kA/m)",
                 y_label: "B (T)",
                 series,
+                scatter: Vec::new(),
                 marks: Vec::new(),
             })
         }
@@ -242,6 +255,7 @@ pub fn material_plot(e: &crate::materials::Entry) -> String {
             x_label: "H (kA/m)",
             y_label: "B (T)",
             series: Vec::new(),
+            scatter: Vec::new(),
             marks: Vec::new(),
         }),
     }

@@ -4,34 +4,16 @@ use crate::case::Model;
 use mesher::{Mesh, Region};
 use solver::assembly::ElementKind;
 use solver::Solution;
-use vtkio::model::{
-    Attribute, Attributes, ByteOrder, CellType, Cells, DataSet, IOBuffer, UnstructuredGridPiece,
-    Version, VertexNumbers, Vtk,
-};
+use vtkio::model::{Attribute, Attributes, ByteOrder, CellType, Cells, DataSet, IOBuffer, UnstructuredGridPiece, Version, VertexNumbers, Vtk};
 
-fn grid(
-    mesh: &Mesh,
-    title: &str,
-    point: Vec<Attribute>,
-    cell: Vec<Attribute>,
-) -> Result<Vec<u8>, String> {
-    let points: Vec<f64> = mesh.nodes[..mesh.n_physical]
-        .iter()
-        .flat_map(|p| [p[0], p[1], 0.0])
-        .collect();
-    let connectivity: Vec<u64> = mesh
-        .triangles
-        .iter()
-        .flat_map(|t| t.map(|n| n as u64))
-        .collect();
+fn grid(mesh: &Mesh, title: &str, point: Vec<Attribute>, cell: Vec<Attribute>) -> Result<Vec<u8>, String> {
+    let points: Vec<f64> = mesh.nodes[..mesh.n_physical].iter().flat_map(|p| [p[0], p[1], 0.0]).collect();
+    let connectivity: Vec<u64> = mesh.triangles.iter().flat_map(|t| t.map(|n| n as u64)).collect();
     let offsets: Vec<u64> = (1..=mesh.triangles.len() as u64).map(|i| 3 * i).collect();
     let piece = UnstructuredGridPiece {
         points: IOBuffer::F64(points),
         cells: Cells {
-            cell_verts: VertexNumbers::XML {
-                connectivity,
-                offsets,
-            },
+            cell_verts: VertexNumbers::XML { connectivity, offsets },
             types: vec![CellType::Triangle; mesh.triangles.len()],
         },
         data: Attributes { point, cell },
@@ -44,8 +26,7 @@ fn grid(
         file_path: None,
     };
     let mut out = Vec::new();
-    vtk.write_xml(&mut out)
-        .map_err(|e| format!("cannot encode VTK: {e}"))?;
+    vtk.write_xml(&mut out).map_err(|e| format!("cannot encode VTK: {e}"))?;
     Ok(out)
 }
 
@@ -56,25 +37,12 @@ fn region_arrays(model: &Model, mesh: &Mesh) -> Vec<Attribute> {
             names.push(&p.material.name);
         }
     }
-    let part: Vec<i32> = mesh
-        .regions
-        .iter()
-        .map(|r| {
-            if let Region::Part(i) = r {
-                *i as i32
-            } else {
-                -1
-            }
-        })
-        .collect();
+    let part: Vec<i32> = mesh.regions.iter().map(|r| if let Region::Part(i) = r { *i as i32 } else { -1 }).collect();
     let material: Vec<i32> = mesh
         .regions
         .iter()
         .map(|r| match r {
-            Region::Part(i) => names
-                .iter()
-                .position(|n| *n == model.parts[*i].material.name)
-                .unwrap_or(0) as i32,
+            Region::Part(i) => names.iter().position(|n| *n == model.parts[*i].material.name).unwrap_or(0) as i32,
             Region::Air => 0,
         })
         .collect();
@@ -90,9 +58,7 @@ pub fn mesh_vtu(model: &Model, mesh: &Mesh) -> Result<Vec<u8>, String> {
 
 pub fn field_vtu(model: &Model, sol: &Solution) -> Result<Vec<u8>, String> {
     let mesh = sol.problem.mesh;
-    let potential: Vec<f64> = (0..mesh.n_physical)
-        .map(|n| sol.node_potential(n))
-        .collect();
+    let potential: Vec<f64> = (0..mesh.n_physical).map(|n| sol.node_potential(n)).collect();
     let n = mesh.triangles.len();
     let (mut b, mut h, mut bm, mut mu) = (
         Vec::with_capacity(3 * n),
@@ -107,26 +73,16 @@ pub fn field_vtu(model: &Model, sol: &Solution) -> Result<Vec<u8>, String> {
         b.extend([be[0], be[1], 0.0]);
         h.extend([he[0], he[1], 0.0]);
         bm.push(be[0].hypot(be[1]));
-        mu.push(
-            if matches!(
-                sol.elements.kinds[e],
-                ElementKind::Part(_) | ElementKind::Air
-            ) {
-                law.relative_permeability(be)
-            } else {
-                1.0
-            },
-        );
+        mu.push(if matches!(sol.elements.kinds[e], ElementKind::Part(_) | ElementKind::Air) {
+            law.relative_permeability(be)
+        } else {
+            1.0
+        });
     }
     let mut cell = region_arrays(model, mesh);
     cell.push(Attribute::vectors("B").with_data(b));
     cell.push(Attribute::scalars("B_magnitude", 1).with_data(bm));
     cell.push(Attribute::vectors("H").with_data(h));
     cell.push(Attribute::scalars("relative_permeability", 1).with_data(mu));
-    grid(
-        mesh,
-        &model.title,
-        vec![Attribute::scalars("potential", 1).with_data(potential)],
-        cell,
-    )
+    grid(mesh, &model.title, vec![Attribute::scalars("potential", 1).with_data(potential)], cell)
 }

@@ -1,0 +1,181 @@
+//! The field map: |B| per triangle in a perceptually uniform colour map,
+//! flux lines as contours of the flux function, part outlines, a colour bar
+//! with units, and the symmetry axis marked.
+
+use super::svg::escape;
+use crate::case::Model;
+use mesher::{BoundaryTag, Symmetry};
+use solver::Solution;
+
+/// Perceptually uniform sequential map (viridis, the CC0 colour map of
+/// S. van der Walt and N. Smith, 2015), sampled at nine stops.
+const STOPS: [[f64; 3]; 9] = [
+    [68.0, 1.0, 84.0],
+    [71.0, 44.0, 122.0],
+    [59.0, 81.0, 139.0],
+    [44.0, 113.0, 142.0],
+    [33.0, 144.0, 141.0],
+    [39.0, 173.0, 129.0],
+    [92.0, 200.0, 99.0],
+    [170.0, 220.0, 50.0],
+    [253.0, 231.0, 37.0],
+];
+
+pub fn colour(t: f64) -> String {
+    let t = t.clamp(0.0, 1.0) * (STOPS.len() - 1) as f64;
+    let k = (t.floor() as usize).min(STOPS.len() - 2);
+    let f = t - k as f64;
+    let c = [0, 1, 2].map(|i| (STOPS[k][i] + f * (STOPS[k + 1][i] - STOPS[k][i])).round() as u8);
+    format!("#{:02x}{:02x}{:02x}", c[0], c[1], c[2])
+}
+
+/// The field map of the region around the parts.
+pub fn field_map(model: &Model, sol: &Solution) -> String {
+    let mesh = sol.problem.mesh;
+    let part_pts = mesh
+        .triangles
+        .iter()
+        .zip(&mesh.regions)
+        .filter(|(_, r)| matches!(r, mesher::Region::Part(_)))
+        .flat_map(|(t, _)| t.map(|n| mesh.nodes[n]));
+    let (mut lo, mut hi) = mesher::geometry::bbox(part_pts);
+    let pad = 0.4 * (hi[0] - lo[0]).max(hi[1] - lo[1]);
+    lo = [lo[0] - pad, lo[1] - pad];
+    hi = [hi[0] + pad, hi[1] + pad];
+    if model.symmetry == Symmetry::Axisymmetric {
+        lo[0] = 0.0;
+    }
+    let (w, bar) = (760.0, 110.0);
+    let scale = w / (hi[0] - lo[0]).max(hi[1] - lo[1]);
+    let (pw, ph) = ((hi[0] - lo[0]) * scale, (hi[1] - lo[1]) * scale);
+    let tx = |p: [f64; 2]| ((p[0] - lo[0]) * scale, ph - (p[1] - lo[1]) * scale);
+    let inside = |x: &[[f64; 2]; 3]| x.iter().any(|p| p[0] >= lo[0] && p[0] <= hi[0] && p[1] >= lo[1] && p[1] <= hi[1]);
+    let shown: Vec<usize> = (0..mesh.triangles.len()).filter(|&t| inside(&mesh.triangle_points(t))).collect();
+    let bmag: Vec<f64> = shown
+        .iter()
+        .map(|&t| {
+            let b = sol.element_b(t);
+            b[0].hypot(b[1])
+        })
+        .collect();
+    let mut sorted = bmag.clone();
+    sorted.sort_by(f64::total_cmp);
+    let bmax = sorted.get(sorted.len() * 99 / 100).copied().unwrap_or(1.0).max(1e-12);
+    let mut s = format!(
+        r#"<svg xmlns="http://www.w3.org/2000/svg" width="{:.0}" height="{:.0}" viewBox="0 0 {:.0} {:.0}" font-family="sans-serif" font-size="12">"#,
+        pw + bar,
+        ph + 30.0,
+        pw + bar,
+        ph + 30.0
+    );
+    s += &format!("<title>{}: |B| and flux lines</title><g class=\"field\">", escape(&model.title));
+    for (k, &t) in shown.iter().enumerate() {
+        let pts: Vec<String> = mesh
+            .triangle_points(t)
+            .iter()
+            .map(|&p| {
+                let (x, y) = tx(p);
+                format!("{x:.1},{y:.1}")
+            })
+            .collect();
+        let c = colour(bmag[k] / bmax);
+        s += &format!("<polygon points=\"{}\" fill=\"{c}\" stroke=\"{c}\" stroke-width=\"0.4\"/>", pts.join(" "));
+    }
+    s += "</g>";
+    s += &flux_lines(model, sol, &shown, &tx);
+    s += "<g class=\"outlines\" stroke=\"white\" stroke-width=\"1.2\">";
+    for (e, tag) in &mesh.boundary {
+        if let BoundaryTag::Interface(..) = tag {
+            let (a, b) = (tx(mesh.nodes[e[0]]), tx(mesh.nodes[e[1]]));
+            if a.0.max(b.0) >= 0.0 && a.0.min(b.0) <= pw && a.1.max(b.1) >= 0.0 && a.1.min(b.1) <= ph {
+                s += &format!("<line x1=\"{:.1}\" y1=\"{:.1}\" x2=\"{:.1}\" y2=\"{:.1}\"/>", a.0, a.1, b.0, b.1);
+            }
+        }
+    }
+    s += "</g>";
+    // Mask what pokes out of the view (plain rectangles: renderers differ on clip paths).
+    s += &format!("<rect x=\"{pw:.1}\" y=\"-1\" width=\"{bar}\" height=\"{:.1}\" fill=\"white\"/><rect x=\"-1\" y=\"{ph:.1}\" width=\"{:.1}\" height=\"31\" fill=\"white\"/>", ph + 32.0, pw + bar + 2.0);
+    if model.symmetry == Symmetry::Axisymmetric {
+        s += &format!("<g class=\"axis\"><line x1=\"1\" y1=\"0\" x2=\"1\" y2=\"{ph:.1}\" stroke=\"#ff4040\" stroke-width=\"2\" stroke-dasharray=\"8 4\"/><text x=\"6\" y=\"{:.1}\" fill=\"#ff4040\">axis r = 0</text></g>", ph - 6.0);
+    }
+    s += &colour_bar(pw + 20.0, 10.0, ph - 20.0, bmax);
+    let (u, f) = (&model.length_unit.0, model.length_unit.1);
+    s += &format!(
+        "<text x=\"10\" y=\"{:.0}\">view {:.1} x {:.1} {u}; {} </text>",
+        ph + 20.0,
+        (hi[0] - lo[0]) / f,
+        (hi[1] - lo[1]) / f,
+        if model.symmetry == Symmetry::Axisymmetric {
+            "r to the right, z up"
+        } else {
+            "x to the right, y up"
+        }
+    );
+    s += "</svg>\n";
+    s
+}
+
+fn colour_bar(x: f64, y: f64, h: f64, bmax: f64) -> String {
+    let mut s = String::from("<g class=\"colourbar\">");
+    let n = 50;
+    for i in 0..n {
+        let t = 1.0 - i as f64 / n as f64;
+        s += &format!(
+            "<rect x=\"{x:.1}\" y=\"{:.1}\" width=\"20\" height=\"{:.2}\" fill=\"{}\"/>",
+            y + h * i as f64 / n as f64,
+            h / n as f64 + 0.5,
+            colour(t)
+        );
+    }
+    for k in 0..=4 {
+        let v = bmax * k as f64 / 4.0;
+        s += &format!("<text x=\"{:.1}\" y=\"{:.1}\">{:.3}</text>", x + 24.0, y + h * (1.0 - k as f64 / 4.0) + 4.0, v);
+    }
+    s += &format!("<text x=\"{x:.1}\" y=\"{:.1}\">|B| (T)</text></g>", y + h + 16.0);
+    s
+}
+
+/// Flux lines: contours of the flux function (A_z planar, r A_phi axisymmetric).
+fn flux_lines(model: &Model, sol: &Solution, shown: &[usize], tx: &dyn Fn([f64; 2]) -> (f64, f64)) -> String {
+    let mesh = sol.problem.mesh;
+    let axisym = model.symmetry == Symmetry::Axisymmetric;
+    let psi: Vec<f64> = (0..mesh.n_physical)
+        .map(|n| {
+            let a = sol.node_potential(n);
+            if axisym {
+                a * mesh.nodes[n][0]
+            } else {
+                a
+            }
+        })
+        .collect();
+    let vals = shown.iter().flat_map(|&t| mesh.triangles[t].map(|n| psi[n]));
+    let (lo, hi) = vals.fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), v| (a.min(v), b.max(v)));
+    let mut s = String::from("<g class=\"fluxlines\" stroke=\"black\" stroke-width=\"0.8\" fill=\"none\">");
+    if !(hi > lo) {
+        return s + "</g>";
+    }
+    let levels = 24;
+    for k in 1..levels {
+        let level = lo + (hi - lo) * k as f64 / levels as f64;
+        for &t in shown {
+            let tri = mesh.triangles[t];
+            let mut cut = Vec::new();
+            for (i, j) in [(0, 1), (1, 2), (2, 0)] {
+                let (va, vb) = (psi[tri[i]], psi[tri[j]]);
+                if (va - level) * (vb - level) < 0.0 {
+                    let f = (level - va) / (vb - va);
+                    let (pa, pb) = (mesh.nodes[tri[i]], mesh.nodes[tri[j]]);
+                    cut.push(tx([pa[0] + f * (pb[0] - pa[0]), pa[1] + f * (pb[1] - pa[1])]));
+                }
+            }
+            if cut.len() == 2 {
+                s += &format!(
+                    "<line x1=\"{:.1}\" y1=\"{:.1}\" x2=\"{:.1}\" y2=\"{:.1}\"/>",
+                    cut[0].0, cut[0].1, cut[1].0, cut[1].1
+                );
+            }
+        }
+    }
+    s + "</g>"
+}

@@ -1,0 +1,92 @@
+//! Every picture of a solved study, as (file name, title, SVG text).
+
+use super::svg::{chart, Chart};
+use crate::case::model::{Model, ProbeShape};
+use crate::materials::Material;
+use crate::post::Results;
+use solver::Solution;
+
+pub fn pictures(model: &Model, sol: &Solution, r: &Results) -> Vec<(String, String, String)> {
+    let mut out = vec![(
+        "field-map.svg".to_string(),
+        "field map: |B| and flux lines".to_string(),
+        super::fieldmap::field_map(model, sol),
+    )];
+    let (u, f) = (&model.length_unit.0, model.length_unit.1);
+    for p in &model.probes {
+        let ProbeShape::Line { .. } = p.shape else { continue };
+        let Some(pr) = r.probes.get(&p.name) else { continue };
+        let start = pr.points[0];
+        let pts: Vec<[f64; 2]> = pr
+            .points
+            .iter()
+            .zip(&pr.bmag)
+            .map(|(q, b)| [(q[0] - start[0]).hypot(q[1] - start[1]) / f, b * 1e3])
+            .collect();
+        let marks = if pr.bmag.iter().any(|&b| b < crate::checks::IMPLANT_LEVEL) && pr.bmag.iter().any(|&b| b > crate::checks::IMPLANT_LEVEL) {
+            vec![(0.5, "0.5 mT".to_string())]
+        } else {
+            Vec::new()
+        };
+        let title = format!("probe {}: |B| along the line", p.name);
+        let svg = chart(&Chart {
+            title: &title,
+            x_label: &format!("distance ({u})"),
+            y_label: "|B| (mT)",
+            series: vec![("|B|".into(), pts)],
+            scatter: Vec::new(),
+            marks,
+        });
+        out.push((format!("probe-{}.svg", p.name), title, svg));
+    }
+    for (i, p) in model.parts.iter().enumerate() {
+        match &p.material.material {
+            Material::Soft { curve } => {
+                let Ok(c) = solver::BhCurve::new(curve) else { continue };
+                let Some(pr) = r.parts.get(&p.name) else { continue };
+                let top = pr.b_max.max(curve.last().map_or(2.0, |q| q[1]));
+                let line: Vec<[f64; 2]> = (0..=200)
+                    .map(|k| {
+                        let b = top * k as f64 / 200.0;
+                        [c.h_of_b(b).0 / 1e3, b]
+                    })
+                    .collect();
+                let ops: Vec<[f64; 2]> = [pr.b_mean, pr.b_max].iter().map(|&b| [c.h_of_b(b).0 / 1e3, b]).collect();
+                let title = format!("part {} ({}): B-H curve and operating range (mean, peak)", p.name, p.material.name);
+                let svg = chart(&Chart {
+                    title: &title,
+                    x_label: "H (kA/m)",
+                    y_label: "B (T)",
+                    series: vec![("B-H curve".into(), line)],
+                    scatter: vec![("mean and peak |B|".into(), ops)],
+                    marks: Vec::new(),
+                });
+                out.push((format!("bh-{}.svg", p.name), title, svg));
+            }
+            Material::Magnet(g) => {
+                let Some(m) = r.magnets.get(&p.name) else { continue };
+                let br = g.br_at(model.temperature);
+                let knee = m.knee_h_a_per_m;
+                let line = vec![[knee / 1e3, br + solver::MU0 * g.recoil_permeability * knee], [0.0, br]];
+                let step = (m.points.len() / 400).max(1);
+                let pts: Vec<[f64; 2]> = m.points.iter().step_by(step).map(|q| [q[0] / 1e3, q[1]]).collect();
+                let title = format!(
+                    "magnet {} ({}) at {} degC: working points on the recoil line",
+                    p.name, p.material.name, model.temperature
+                );
+                let svg = chart(&Chart {
+                    title: &title,
+                    x_label: "H along the magnetization (kA/m)",
+                    y_label: "B along the magnetization (T)",
+                    series: vec![("recoil line to the knee".into(), line)],
+                    scatter: vec![("working points".into(), pts)],
+                    marks: Vec::new(),
+                });
+                out.push((format!("magnet-{}.svg", p.name), title, svg));
+                let _ = i;
+            }
+            _ => {}
+        }
+    }
+    out
+}

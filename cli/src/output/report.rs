@@ -1,0 +1,143 @@
+//! report.md: the study in tables and pictures, with the cautions.
+
+use crate::case::Model;
+use crate::post::Results;
+use std::fmt::Write;
+
+fn opt(v: Option<f64>, scale: f64, digits: usize) -> String {
+    v.map_or("-".into(), |x| format!("{:.*}", digits, x * scale))
+}
+
+pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> String {
+    let mut s = String::new();
+    let (u, f) = (&model.length_unit.0, model.length_unit.1);
+    let _ = writeln!(s, "# {}\n", model.title);
+    let _ = writeln!(
+        s,
+        "{} study at {} degC; {} nodes, {} triangles (order {}), {} unknowns, minimum angle {:.1} deg.",
+        r.study.geometry, r.study.temperature_c, r.mesh.nodes, r.mesh.elements, r.mesh.element_order, r.mesh.unknowns, r.mesh.min_angle_deg
+    );
+    let _ = writeln!(
+        s,
+        "Newton-Raphson: {} in {} iterations, relative residual {:.2e}, {:.2} s.\n",
+        if r.solve.converged { "converged" } else { "NOT CONVERGED" },
+        r.solve.iterations,
+        r.solve.residual,
+        r.solve.seconds
+    );
+    if !r.study.parameters.is_empty() {
+        let p: Vec<String> = r.study.parameters.iter().map(|(k, v)| format!("{k} = {v}")).collect();
+        let _ = writeln!(s, "Parameters: {}.\n", p.join(", "));
+    }
+    if !r.warnings.is_empty() {
+        let _ = writeln!(s, "## Warnings\n");
+        for w in &r.warnings {
+            let _ = writeln!(s, "- {w}");
+        }
+        s.push('\n');
+    }
+    for (title, file) in pictures {
+        let _ = writeln!(s, "![{title}]({file})\n");
+    }
+    if !r.forces.is_empty() {
+        let _ = writeln!(s, "## Forces\n\n| set | F1 (N) | F2 (N) | magnitude (N) | note |\n|---|---|---|---|---|");
+        for (n, fr) in &r.forces {
+            let _ = writeln!(
+                s,
+                "| {n} | {:.4} | {:.4} | {:.4} | {} |",
+                fr.vector[0],
+                fr.vector[1],
+                fr.magnitude,
+                if fr.contact { "touches other material: unreliable" } else { "" }
+            );
+        }
+        s.push('\n');
+    }
+    if !r.flux.is_empty() {
+        let _ = writeln!(s, "## Flux\n\n| name | flux or linkage (Wb) | inductance (H) |\n|---|---|---|");
+        for (n, fl) in &r.flux {
+            let _ = writeln!(s, "| {n} | {:.4e} | {} |", fl.wb, fl.inductance_h.map_or("-".into(), |l| format!("{l:.4e}")));
+        }
+        s.push('\n');
+    }
+    let _ = writeln!(s, "Stored energy {:.4e} J, co-energy {:.4e} J.\n", r.energy.stored_j, r.energy.coenergy_j);
+    let _ = writeln!(
+        s,
+        "## Parts\n\n| part | material | peak B (T) | mean B (T) | knee (T) | share above knee |\n|---|---|---|---|---|---|"
+    );
+    for (n, p) in &r.parts {
+        let _ = writeln!(
+            s,
+            "| {n} | {} | {:.3} | {:.3} | {} | {} |",
+            p.material,
+            p.b_max,
+            p.b_mean,
+            opt(p.knee_t, 1.0, 2),
+            p.saturated_share.map_or("-".into(), |x| format!("{:.1} %", 100.0 * x))
+        );
+    }
+    s.push('\n');
+    if !r.magnets.is_empty() {
+        let _ = writeln!(s, "## Magnets at {} degC\n\nThe knee is taken at {:.0} % of HcJ at the study temperature; the margin is 1 - H/H_knee at the worst point (0: at the knee). The onset temperature is a linear-model estimate (field scaled with Br, knee with HcJ).\n\n| magnet | grade | Br (T) | HcJ (kA/m) | margin | past knee | permeance | onset (degC) |\n|---|---|---|---|---|---|---|---|", model.temperature, 100.0 * crate::checks::KNEE_FRACTION);
+        for (n, m) in &r.magnets {
+            let _ = writeln!(
+                s,
+                "| {n} | {} | {:.3} | {:.0} | {:.3} | {:.1} % | {:.2} | {} |",
+                m.grade,
+                m.br_t,
+                m.hcj_a_per_m / 1e3,
+                m.margin,
+                100.0 * m.share_past_knee,
+                m.permeance,
+                opt(m.knee_onset_c, 1.0, 0)
+            );
+        }
+        s.push('\n');
+    }
+    let st = &r.stray;
+    let _ = writeln!(s, "## Stray field\n");
+    let _ = writeln!(
+        s,
+        "- reach along the axis to {:.1} mT (a common rule of thumb for picking up small steel items): {} {u}",
+        st.reach_level_t * 1e3,
+        opt(st.reach_axis_m, 1.0 / f, 1)
+    );
+    if let Some(m) = st.moment_a_m2 {
+        let _ = writeln!(s, "- dipole moment (multipole projection of the solution): {m:.4e} A m2");
+        let _ = writeln!(
+            s,
+            "- |B| falls to 0.5 mT (implanted devices, ICNIRP 2009) at {} {u} on the axis and {} {u} in the mid-plane, from the assembly's centre",
+            opt(st.implant_distance_axis_m, 1.0 / f, 1),
+            opt(st.implant_distance_plane_m, 1.0 / f, 1)
+        );
+        let _ = writeln!(
+            s,
+            "- |H| at 2.1 m: {} A/m; at 4.6 m: {} A/m",
+            opt(st.h_at_2100mm_a_per_m, 1.0, 4),
+            opt(st.h_at_4600mm_a_per_m, 1.0, 5)
+        );
+    }
+    if let Some(a) = &st.air_transport {
+        let _ = writeln!(s, "- air transport: {a}");
+    }
+    s.push('\n');
+    if !r.expect.is_empty() {
+        let _ = writeln!(s, "## Expectations\n\n| value | bound | actual | result |\n|---|---|---|---|");
+        for e in &r.expect {
+            let _ = writeln!(
+                s,
+                "| {} | {} | {} | {} |",
+                e.value,
+                e.bound,
+                e.actual.map_or("-".into(), |a| format!("{a:.4e}")),
+                if e.pass { "pass" } else { "FAIL" }
+            );
+        }
+        s.push('\n');
+    }
+    let _ = writeln!(s, "## Cautions\n");
+    for c in &r.cautions {
+        let _ = writeln!(s, "- {c}");
+    }
+    s
+}
