@@ -72,7 +72,7 @@ pub fn magnet_results(model: &Model, sol: &Solution, values: &mut BTreeMap<Strin
 /// linear model: the demagnetizing field scales with Br(T) and the knee with
 /// HcJ(T), both by their reversible coefficients from 20 degC.
 fn onset_temperature(worst_h: f64, t0: f64, br_coeff: f64, hcj_coeff: f64, knee20: f64) -> Option<f64> {
-    if !(worst_h < 0.0) || !knee20.is_finite() {
+    if worst_h.is_nan() || worst_h >= 0.0 || !knee20.is_finite() {
         return None;
     }
     let (ab, aj) = (br_coeff / 100.0, hcj_coeff / 100.0);

@@ -235,6 +235,29 @@ pub fn bar_pair_force_2d(br: f64, w: f64, h1: f64, h2: f64, y2: f64) -> f64 {
     f
 }
 
+/// Magnetometric demagnetizing factor of a cylinder (radius a, length l),
+/// the volume-mean demagnetizing field over the magnetization, as defined by
+/// D.-X. Chen, J. A. Brug and R. B. Goldfarb, IEEE Trans. Magn. 27(4), 1991;
+/// computed here from the charge-model self-energy of the two end faces:
+/// N = (2/l) integral of J1(k a)^2 (1 - e^{-k l}) / k^2 dk.
+pub fn cylinder_demag_factor(a: f64, l: f64) -> f64 {
+    let (g, w) = gauss_legendre_8();
+    let kmax = 400.0 / a;
+    let panels = 8000;
+    let h = kmax / panels as f64;
+    let mut s = 0.0;
+    for p in 0..panels {
+        for k in 0..8 {
+            let kk = p as f64 * h + 0.5 * h * (g[k] + 1.0);
+            let j = bessel_j1(kk * a);
+            s += 0.5 * h * w[k] * j * j * (1.0 - (-kk * l).exp()) / (kk * kk);
+        }
+    }
+    // Tail beyond kmax: J1^2 ~ 2/(pi k a) cos^2, mean 1/(pi k a); (1 - e^{-kl}) ~ 1.
+    s += 1.0 / (PI * a) / (2.0 * kmax * kmax);
+    2.0 / l * s
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -263,25 +286,3 @@ mod tests {
     }
 }
 
-/// Magnetometric demagnetizing factor of a cylinder (radius a, length l),
-/// the volume-mean demagnetizing field over the magnetization, as defined by
-/// D.-X. Chen, J. A. Brug and R. B. Goldfarb, IEEE Trans. Magn. 27(4), 1991;
-/// computed here from the charge-model self-energy of the two end faces:
-/// N = (2/l) integral of J1(k a)^2 (1 - e^{-k l}) / k^2 dk.
-pub fn cylinder_demag_factor(a: f64, l: f64) -> f64 {
-    let (g, w) = gauss_legendre_8();
-    let kmax = 400.0 / a;
-    let panels = 8000;
-    let h = kmax / panels as f64;
-    let mut s = 0.0;
-    for p in 0..panels {
-        for k in 0..8 {
-            let kk = p as f64 * h + 0.5 * h * (g[k] + 1.0);
-            let j = bessel_j1(kk * a);
-            s += 0.5 * h * w[k] * j * j * (1.0 - (-kk * l).exp()) / (kk * kk);
-        }
-    }
-    // Tail beyond kmax: J1^2 ~ 2/(pi k a) cos^2, mean 1/(pi k a); (1 - e^{-kl}) ~ 1.
-    s += 1.0 / (PI * a) / (2.0 * kmax * kmax);
-    2.0 / l * s
-}

@@ -152,7 +152,7 @@ fn flux_lines(model: &Model, sol: &Solution, shown: &[usize], tx: &dyn Fn([f64; 
     let vals = shown.iter().flat_map(|&t| mesh.triangles[t].map(|n| psi[n]));
     let (lo, hi) = vals.fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), v| (a.min(v), b.max(v)));
     let mut s = String::from("<g class=\"fluxlines\" stroke=\"black\" stroke-width=\"0.8\" fill=\"none\">");
-    if !(hi > lo) {
+    if hi.is_nan() || lo.is_nan() || hi <= lo {
         return s + "</g>";
     }
     let levels = 24;
