@@ -179,7 +179,7 @@ pub fn solve_variant(loaded: &Loaded, variant: &Variant, limits: &Limits, progre
     Ok(Outcome { model, results, files })
 }
 
-fn collect_files(model: &Model, sol: &solver::Solution, results: &Results) -> Result<FileSet, Failure> {
+pub fn collect_files(model: &Model, sol: &solver::Solution, results: &Results) -> Result<FileSet, Failure> {
     let mut files: FileSet = Vec::new();
     let json = serde_json::to_vec_pretty(results).map_err(|e| Failure::Input(format!("error: cannot encode results: {e}\n")))?;
     files.push(("results.json".into(), json));

@@ -1,0 +1,137 @@
+//! `cargo bench -p validation`: meshing speed, and end-to-end solves of
+//! axisymmetric and planar cases from about 1e4 to 1e6 unknowns, linear and
+//! saturating, with the time of each stage, peak memory and the fitted
+//! growth exponent. Figures are printed as a Markdown table.
+
+use std::time::Instant;
+
+fn peak_rss_mb() -> f64 {
+    std::fs::read_to_string("/proc/self/status")
+        .ok()
+        .and_then(|s| s.lines().find(|l| l.starts_with("VmHWM")).and_then(|l| l.split_whitespace().nth(1)?.parse::<f64>().ok()))
+        .map_or(f64::NAN, |kb| kb / 1024.0)
+}
+
+fn case(planar: bool, steel: &str, size: f64) -> String {
+    let (geometry, extra) = if planar { ("planar", "depth = \"50 mm\"") } else { ("axisymmetric", "") };
+    format!(
+        r#"
+[study]
+geometry = "{geometry}"
+unit = "mm"
+{extra}
+[mesh]
+size = {size}
+grading = 1.3
+max_elements = 20000000
+[materials.linear-steel]
+mur = 1000
+[[part]]
+name = "cup"
+material = "{steel}"
+polygon = [[0, -5], [20, -5], [20, 10], [16, 10], [16, 0], [0, 0]]
+[[part]]
+name = "magnet"
+material = "N42"
+magnetization = "+{dir}"
+rect = {{ from = [0, 0], to = [15, 10] }}
+[[part]]
+name = "plate"
+material = "{steel}"
+rect = {{ from = [0, 11], to = [40, 17] }}
+[[force]]
+name = "pull"
+parts = ["plate"]
+[output]
+plots = false
+report = false
+"#,
+        dir = if planar { "y" } else { "z" }
+    )
+}
+
+struct Row {
+    label: String,
+    unknowns: usize,
+    triangles: usize,
+    mesh: f64,
+    pattern: f64,
+    assembly: f64,
+    symbolic: f64,
+    numeric: f64,
+    solve: f64,
+    iterations: usize,
+    post: f64,
+    output: f64,
+    total: f64,
+    peak_mb: f64,
+}
+
+fn run(label: &str, planar: bool, steel: &str, size: f64) -> Row {
+    let dir = std::env::temp_dir().join(format!("lodestone-bench-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = dir.join("case.toml");
+    std::fs::write(&path, case(planar, steel, size)).unwrap();
+    let t0 = Instant::now();
+    let loaded = lodestone::run::load(&path).unwrap_or_else(|f| panic!("{}", f.message()));
+    let v = lodestone::run::variants(&loaded, &Default::default()).unwrap_or_else(|f| panic!("{}", f.message()));
+    let model = lodestone::run::resolve(&loaded, &v[0].params, &Default::default()).unwrap_or_else(|f| panic!("{}", f.message()));
+    let t = Instant::now();
+    let mesh = mesher::build_mesh(&lodestone::study::mesh_spec(&model)).unwrap();
+    let mesh_s = t.elapsed().as_secs_f64();
+    let problem = lodestone::study::problem(&model, &mesh).unwrap();
+    let sol = solver::solve(&problem, &|_, _| {}).unwrap();
+    let t = Instant::now();
+    let results = lodestone::post::results(&model, &sol, 0.0);
+    let post_s = t.elapsed().as_secs_f64();
+    let t = Instant::now();
+    let files = lodestone::run::collect_files(&model, &sol, &results).unwrap_or_else(|f| panic!("{}", f.message()));
+    lodestone::output::write_all(&dir.join("out"), &files).unwrap();
+    let output_s = t.elapsed().as_secs_f64();
+    let r = &sol.report;
+    let _ = std::fs::remove_dir_all(&dir);
+    Row {
+        label: label.into(),
+        unknowns: r.n_dofs,
+        triangles: mesh.triangles.len(),
+        mesh: mesh_s,
+        pattern: r.seconds_pattern,
+        assembly: r.seconds_assembly,
+        symbolic: r.seconds_symbolic,
+        numeric: r.seconds_numeric,
+        solve: r.seconds_solve,
+        iterations: r.iterations,
+        post: post_s,
+        output: output_s,
+        total: t0.elapsed().as_secs_f64(),
+        peak_mb: peak_rss_mb(),
+    }
+}
+
+fn main() {
+    let quick = std::env::args().any(|a| a == "--quick");
+    println!("Machine: {} cores; {}", std::thread::available_parallelism().map_or(0, |n| n.get()), std::fs::read_to_string("/proc/cpuinfo").ok().and_then(|s| s.lines().find(|l| l.starts_with("model name")).map(|l| l.split(':').nth(1).unwrap_or("").trim().to_string())).unwrap_or_default());
+    println!("\n| case | unknowns | triangles | mesh s | pattern s | assembly s | symbolic s | numeric s | solve s | Newton it. | post s | output s | total s | unknowns/s | peak MB |");
+    println!("|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|");
+    let sizes: &[(f64, &str)] = if quick { &[(2.0, "1e4"), (0.6, "1e5")] } else { &[(2.0, "1e4"), (0.6, "1e5"), (0.17, "1e6")] };
+    let mut fits: Vec<(String, Vec<(f64, f64)>)> = Vec::new();
+    for (planar, steel, name) in [(false, "linear-steel", "axisymmetric linear"), (false, "low-carbon-steel", "axisymmetric saturating"), (true, "linear-steel", "planar linear"), (true, "low-carbon-steel", "planar saturating")] {
+        let mut pts = Vec::new();
+        for (size, tag) in sizes {
+            let r = run(&format!("{name} {tag}"), planar, steel, *size);
+            println!(
+                "| {} | {} | {} | {:.2} | {:.2} | {:.2} | {:.2} | {:.2} | {:.2} | {} | {:.2} | {:.2} | {:.2} | {:.0} | {:.0} |",
+                r.label, r.unknowns, r.triangles, r.mesh, r.pattern, r.assembly, r.symbolic, r.numeric, r.solve, r.iterations, r.post, r.output, r.total, r.unknowns as f64 / r.total, r.peak_mb
+            );
+            pts.push((r.unknowns as f64, r.total));
+        }
+        fits.push((name.to_string(), pts));
+    }
+    println!();
+    for (name, pts) in fits {
+        if pts.len() >= 3 {
+            let (a, b) = (pts[1], pts[2]);
+            println!("{name}: time grows as unknowns^{:.2} between {:.0} and {:.0} unknowns", (b.1 / a.1).ln() / (b.0 / a.0).ln(), a.0, b.0);
+        }
+    }
+}
