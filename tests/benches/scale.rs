@@ -8,7 +8,11 @@ use std::time::Instant;
 fn peak_rss_mb() -> f64 {
     std::fs::read_to_string("/proc/self/status")
         .ok()
-        .and_then(|s| s.lines().find(|l| l.starts_with("VmHWM")).and_then(|l| l.split_whitespace().nth(1)?.parse::<f64>().ok()))
+        .and_then(|s| {
+            s.lines()
+                .find(|l| l.starts_with("VmHWM"))
+                .and_then(|l| l.split_whitespace().nth(1)?.parse::<f64>().ok())
+        })
         .map_or(f64::NAN, |kb| kb / 1024.0)
 }
 
@@ -110,18 +114,51 @@ fn run(label: &str, planar: bool, steel: &str, size: f64) -> Row {
 
 fn main() {
     let quick = std::env::args().any(|a| a == "--quick");
-    println!("Machine: {} cores; {}", std::thread::available_parallelism().map_or(0, |n| n.get()), std::fs::read_to_string("/proc/cpuinfo").ok().and_then(|s| s.lines().find(|l| l.starts_with("model name")).map(|l| l.split(':').nth(1).unwrap_or("").trim().to_string())).unwrap_or_default());
+    println!(
+        "Machine: {} cores; {}",
+        std::thread::available_parallelism().map_or(0, |n| n.get()),
+        std::fs::read_to_string("/proc/cpuinfo")
+            .ok()
+            .and_then(|s| s
+                .lines()
+                .find(|l| l.starts_with("model name"))
+                .map(|l| l.split(':').nth(1).unwrap_or("").trim().to_string()))
+            .unwrap_or_default()
+    );
     println!("\n| case | unknowns | triangles | mesh s | pattern s | assembly s | symbolic s | numeric s | solve s | Newton it. | post s | output s | total s | unknowns/s | peak MB |");
     println!("|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|");
-    let sizes: &[(f64, &str)] = if quick { &[(2.0, "1e4"), (0.6, "1e5")] } else { &[(2.0, "1e4"), (0.6, "1e5"), (0.17, "1e6")] };
+    let sizes: &[(f64, &str)] = if quick {
+        &[(2.0, "1e4"), (0.6, "1e5")]
+    } else {
+        &[(2.0, "1e4"), (0.6, "1e5"), (0.107, "1e6")]
+    };
     let mut fits: Vec<(String, Vec<(f64, f64)>)> = Vec::new();
-    for (planar, steel, name) in [(false, "linear-steel", "axisymmetric linear"), (false, "low-carbon-steel", "axisymmetric saturating"), (true, "linear-steel", "planar linear"), (true, "low-carbon-steel", "planar saturating")] {
+    for (planar, steel, name) in [
+        (false, "linear-steel", "axisymmetric linear"),
+        (false, "low-carbon-steel", "axisymmetric saturating"),
+        (true, "linear-steel", "planar linear"),
+        (true, "low-carbon-steel", "planar saturating"),
+    ] {
         let mut pts = Vec::new();
         for (size, tag) in sizes {
             let r = run(&format!("{name} {tag}"), planar, steel, *size);
             println!(
                 "| {} | {} | {} | {:.2} | {:.2} | {:.2} | {:.2} | {:.2} | {:.2} | {} | {:.2} | {:.2} | {:.2} | {:.0} | {:.0} |",
-                r.label, r.unknowns, r.triangles, r.mesh, r.pattern, r.assembly, r.symbolic, r.numeric, r.solve, r.iterations, r.post, r.output, r.total, r.unknowns as f64 / r.total, r.peak_mb
+                r.label,
+                r.unknowns,
+                r.triangles,
+                r.mesh,
+                r.pattern,
+                r.assembly,
+                r.symbolic,
+                r.numeric,
+                r.solve,
+                r.iterations,
+                r.post,
+                r.output,
+                r.total,
+                r.unknowns as f64 / r.total,
+                r.peak_mb
             );
             pts.push((r.unknowns as f64, r.total));
         }
@@ -131,7 +168,12 @@ fn main() {
     for (name, pts) in fits {
         if pts.len() >= 3 {
             let (a, b) = (pts[1], pts[2]);
-            println!("{name}: time grows as unknowns^{:.2} between {:.0} and {:.0} unknowns", (b.1 / a.1).ln() / (b.0 / a.0).ln(), a.0, b.0);
+            println!(
+                "{name}: time grows as unknowns^{:.2} between {:.0} and {:.0} unknowns",
+                (b.1 / a.1).ln() / (b.0 / a.0).ln(),
+                a.0,
+                b.0
+            );
         }
     }
 }

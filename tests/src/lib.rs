@@ -123,3 +123,15 @@ pub fn solve_case_text(text: &str, overrides: &[(&str, f64)]) -> lodestone::post
 }
 
 static COUNTER: std::sync::atomic::AtomicUsize = std::sync::atomic::AtomicUsize::new(0);
+
+/// Records a validation check for docs/validation.md: when the environment
+/// variable LODESTONE_VALIDATION_LOG names a file, appends one JSON line with
+/// the check, its source, the tolerance and the measured error (relative).
+pub fn record(check: &str, source: &str, tolerance: f64, measured: f64) {
+    let Ok(path) = std::env::var("LODESTONE_VALIDATION_LOG") else { return };
+    let line = serde_json::json!({ "check": check, "source": source, "tolerance": tolerance, "measured": measured });
+    use std::io::Write;
+    if let Ok(mut f) = std::fs::OpenOptions::new().create(true).append(true).open(path) {
+        let _ = writeln!(f, "{line}");
+    }
+}

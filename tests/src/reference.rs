@@ -285,4 +285,3 @@ mod tests {
         assert!((bessel_j1(5.0) + 0.327_579_137_6).abs() < 1e-9);
     }
 }
-

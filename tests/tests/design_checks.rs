@@ -2,7 +2,7 @@
 //! margin against temperature.
 
 use validation::reference::{cylinder_demag_factor, MU0};
-use validation::{rel, solve_case_text};
+use validation::{record, rel, solve_case_text};
 
 fn bare_cylinder(radius_mm: f64, length_mm: f64, material: &str, extra: &str) -> String {
     format!(
@@ -31,9 +31,11 @@ fn dipole_moment_and_far_field_of_a_bare_cylinder() {
     let r = solve_case_text(&bare_cylinder(10.0, 20.0, "ideal", ""), &[]);
     let m = r.values["stray.moment"];
     let exact = 1.2 * std::f64::consts::PI * a * a * l / MU0;
+    record("dipole moment of a bare cylinder", "m = Br V / mu0 (Jackson sec. 5.6)", 0.01, rel(m, exact));
     assert!(rel(m, exact) < 0.01, "{m} vs {exact}");
     let h21 = r.values["stray.h_at_2100mm"];
     let dipole = 2.0 * exact / (4.0 * std::f64::consts::PI * 2.1f64.powi(3));
+    record("field at 2.1 m vs dipole", "point dipole field", 0.02, rel(h21, dipole));
     assert!(rel(h21, dipole) < 0.02, "{h21} vs {dipole}");
 }
 
@@ -52,6 +54,7 @@ fn mean_demagnetizing_field_matches_the_magnetometric_factor() {
         let mean_h = r.magnets["magnet"].mean_h_a_per_m;
         let n = -mean_h / (1.2 / MU0);
         let exact = cylinder_demag_factor(a, l);
+        record("mean demagnetizing field, L/D 0.1 to 4", "Chen, Brug, Goldfarb 1991", 0.03, rel(n, exact));
         assert!(rel(n, exact) < 0.03, "L/D {ratio}: N {n} vs {exact}");
     }
 }

@@ -37,6 +37,12 @@ fn coaxial_magnets_attract_as_the_charge_model_says() {
             let (up, _) = coaxial_pair(a, l, gap, a / 8.0);
             let exact = coaxial_cylinders_force(BR, BR, a, a, l, l, gap);
             eprintln!("a {a} l {l} gap {gap}: fe {up} exact {exact} err {:.3}%", 100.0 * rel(-up, exact));
+            record(
+                "coaxial magnets attracting, gaps 0.5 to 20 mm",
+                "Vokoun et al. 2009 (charge model)",
+                0.02,
+                rel(-up, exact),
+            );
             assert!(rel(-up, exact) < 0.02, "a {a}, gap {gap}: {up} vs {exact}");
         }
     }
@@ -46,6 +52,7 @@ fn coaxial_magnets_attract_as_the_charge_model_says() {
 fn forces_on_two_magnets_are_equal_and_opposite() {
     // Source: Newton's third law (action and reaction); within 1 %.
     let (up, down) = coaxial_pair(0.005, 0.005, 0.003, 0.0006);
+    record("Newton's third law", "action and reaction", 0.01, rel(-down, up));
     assert!(rel(-down, up) < 0.01, "{up} vs {down}");
 }
 
@@ -65,6 +72,7 @@ fn magnet_over_a_permeable_plate_matches_its_image() {
         force_on(sol, &[1], [0.0; 2]).vector[1]
     });
     let exact = coaxial_cylinders_force(BR, BR, a, a, l, l, 2.0 * gap);
+    record("magnet over a permeable plate", "method of images", 0.03, rel(-f, exact));
     assert!(rel(-f, exact) < 0.03, "{f} vs {exact}");
 }
 
@@ -79,6 +87,7 @@ fn planar_bar_magnets_attract_as_charged_sheets() {
         force_on(sol, &[1], [0.0; 2]).vector[1]
     });
     let exact = bar_pair_force_2d(BR, w, h, h, y2);
+    record("planar bar magnets attracting", "Furlani 2001 charged sheets, integrated", 0.02, rel(f, exact));
     assert!(rel(f, exact) < 0.02, "{f} vs {exact}");
 }
 
@@ -97,6 +106,13 @@ fn long_solenoid_inductance_and_energy() {
     });
     let inductance = lambda / current;
     let exact = nagaoka_inductance(a, l, turns);
+    record("long solenoid inductance", "Nagaoka 1909", 0.01, rel(inductance, exact));
+    record(
+        "solenoid energy = L I^2 / 2",
+        "linear inductor energy",
+        0.005,
+        rel(energy, 0.5 * inductance * current * current),
+    );
     assert!(rel(inductance, exact) < 0.01, "{inductance} vs {exact}");
     assert!(rel(energy, 0.5 * inductance * current * current) < 0.005, "{energy}");
 }
@@ -123,6 +139,12 @@ fn coaxial_line_inductance_per_length_and_energy() {
     });
     let inductance = lambda / current;
     let exact = coax_inductance_per_length(a, b, c);
+    record(
+        "coaxial line inductance per length",
+        "Ramo, Whinnery, Van Duzer 1994",
+        0.005,
+        rel(inductance, exact),
+    );
     assert!(rel(inductance, exact) < 0.005, "{inductance} vs {exact}");
     assert!(rel(energy, 0.5 * inductance * current * current) < 0.005, "{energy}");
 }
@@ -152,5 +174,6 @@ fn plate_force_is_mesh_independent() {
     let coarse = solve_case_text(PLATE_CASE, &[]).values["force.pull.z"];
     let fine_case = PLATE_CASE.replace("[study]", "[mesh]\nsize = 0.75\n[study]");
     let fine = solve_case_text(&fine_case, &[]).values["force.pull.z"];
+    record("plate force, default vs twice finer mesh", "mesh convergence", 0.01, rel(fine, coarse));
     assert!(rel(fine, coarse) < 0.01, "default {coarse} N, twice as fine {fine} N");
 }

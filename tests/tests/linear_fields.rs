@@ -35,6 +35,7 @@ fn cylinder_axis_field_within_half_percent_for_three_aspect_ratios() {
                 let z = l + k as f64 * (8.0 * a) / 16.0;
                 let fe = sol.field_at([0.0, z]).expect("inside mesh").b[1];
                 let exact = cylinder_axis_bz(BR, a, l, z);
+                record("cylinder on-axis B_z, L/D 0.1 to 4", "Furlani 2001; Derby & Olbert 2010", 0.005, rel(fe, exact));
                 assert!(rel(fe, exact) < 0.005, "L/D {}: z {z}: {fe} vs {exact}", l / (2.0 * a));
             }
         });
@@ -54,6 +55,7 @@ fn cylinder_off_axis_field_within_one_percent() {
             let fe = sol.field_at(p).expect("inside mesh").b;
             let exact = cylinder_field(BR, a, l / 2.0, p[0], p[1] - l / 2.0);
             let err = ((fe[0] - exact[0]).hypot(fe[1] - exact[1])) / exact[0].hypot(exact[1]);
+            record("cylinder off-axis B", "Derby & Olbert 2010 (elliptic integral)", 0.01, err);
             assert!(err < 0.01, "at {p:?}: {fe:?} vs {exact:?} ({:.3} %)", 100.0 * err);
         }
     });
@@ -76,6 +78,7 @@ fn planar_bar_magnet_field_within_one_percent() {
                 let fe = sol.field_at(p).expect("inside").b;
                 let exact = bar_field_2d(BR, w, h, p[0], p[1]);
                 let err = (fe[0] - exact[0]).hypot(fe[1] - exact[1]) / exact[0].hypot(exact[1]);
+                record("planar bar magnet B", "Furlani 2001, charged sheets", 0.01, err);
                 assert!(err < 0.01, "at {p:?}: {fe:?} vs {exact:?}");
             }
         },
@@ -97,6 +100,7 @@ fn permeable_sphere_in_uniform_field() {
             let exact = 3.0 * mu / (mu + 2.0) * b0;
             for p in [[0.0, 0.0], [0.003, 0.002], [0.0, -0.005]] {
                 let fe = sol.field_at(p).unwrap().b;
+                record("permeable sphere in a uniform field", "Jackson 3rd ed. sec. 5.11", 0.005, rel(fe[1], exact));
                 assert!(rel(fe[1], exact) < 0.005 && fe[0].abs() < 0.005 * exact, "at {p:?}: {fe:?} vs {exact}");
             }
         },
@@ -118,6 +122,12 @@ fn permeable_cylinder_in_uniform_field() {
             let exact = 2.0 * mu / (mu + 1.0) * b0;
             for p in [[0.0, 0.0], [0.004, -0.003]] {
                 let fe = sol.field_at(p).unwrap().b;
+                record(
+                    "permeable cylinder in a uniform field (planar)",
+                    "Jackson 3rd ed. sec. 5.11",
+                    0.005,
+                    rel(fe[0], exact),
+                );
                 assert!(rel(fe[0], exact) < 0.005 && fe[1].abs() < 0.005 * exact, "at {p:?}: {fe:?} vs {exact}");
             }
         },
@@ -143,6 +153,7 @@ fn thick_solenoid_axis_field() {
             for z in [0.0, 0.01, 0.02, 0.03, 0.05] {
                 let fe = sol.field_at([0.0, z]).unwrap().b[1];
                 let exact = thick_solenoid_axis_bz(j, r1, r2, l, z);
+                record("thick solenoid on-axis B_z", "Montgomery 1969", 0.005, rel(fe, exact));
                 assert!(rel(fe, exact) < 0.005, "z {z}: {fe} vs {exact}");
             }
         },
@@ -161,6 +172,7 @@ fn superposition_of_two_coaxial_magnets() {
     let both = solve_with(Symmetry::Axisymmetric, vec![lower(), upper()], refine(), OuterBoundary::Open, [0.0; 2], probe);
     let one = solve_with(Symmetry::Axisymmetric, vec![lower()], refine(), OuterBoundary::Open, [0.0; 2], probe);
     let other = solve_with(Symmetry::Axisymmetric, vec![upper()], refine(), OuterBoundary::Open, [0.0; 2], probe);
+    record("superposition of two magnets", "linearity", 0.005, rel(both, one + other));
     assert!(rel(both, one + other) < 0.005, "{both} vs {one} + {other}");
 }
 
@@ -211,6 +223,7 @@ fn n40_cylinder_reads_the_bench_values() {
             let scale = 1.26 / BR;
             let g1 = scale * sol.field_at([0.0, l + 0.0237]).unwrap().b[1] * 1e4;
             let g2 = scale * sol.field_at([0.0, l + 0.0474]).unwrap().b[1] * 1e4;
+            record("N40 cylinder bench readings", "common practice", 0.12, rel(g1, 320.0).max(rel(g2, 71.0)));
             assert!(rel(g1, 320.0) < 0.12 && rel(g2, 71.0) < 0.12, "{g1} G, {g2} G");
         },
     );

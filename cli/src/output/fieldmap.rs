@@ -29,6 +29,11 @@ pub fn colour(t: f64) -> String {
     format!("#{:02x}{:02x}{:02x}", c[0], c[1], c[2])
 }
 
+/// Pixels per colour cell of the field map.
+const CELL: f64 = 3.0;
+/// Colour levels of the field map.
+const LEVELS: f64 = 48.0;
+
 /// The field map of the region around the parts.
 pub fn field_map(model: &Model, sol: &Solution) -> String {
     let mesh = sol.problem.mesh;
@@ -51,16 +56,28 @@ pub fn field_map(model: &Model, sol: &Solution) -> String {
     let tx = |p: [f64; 2]| ((p[0] - lo[0]) * scale, ph - (p[1] - lo[1]) * scale);
     let inside = |x: &[[f64; 2]; 3]| x.iter().any(|p| p[0] >= lo[0] && p[0] <= hi[0] && p[1] >= lo[1] && p[1] <= hi[1]);
     let shown: Vec<usize> = (0..mesh.triangles.len()).filter(|&t| inside(&mesh.triangle_points(t))).collect();
-    let bmag: Vec<f64> = shown
-        .iter()
-        .map(|&t| {
-            let b = sol.element_b(t);
-            b[0].hypot(b[1])
-        })
-        .collect();
-    let mut sorted = bmag.clone();
+    // |B| on a grid of CELL-pixel squares, runs of equal colour merged: far
+    // smaller than one polygon per triangle, and the same picture.
+    let (nx, ny) = ((pw / CELL).ceil() as usize, (ph / CELL).ceil() as usize);
+    let mut grid = vec![f64::NAN; nx * ny];
+    for j in 0..ny {
+        for i in 0..nx {
+            let p = [lo[0] + (i as f64 + 0.5) * CELL / scale, hi[1] - (j as f64 + 0.5) * CELL / scale];
+            if let Some(f) = sol.field_at(p) {
+                grid[j * nx + i] = f.b[0].hypot(f.b[1]);
+            }
+        }
+    }
+    let mut sorted: Vec<f64> = grid.iter().copied().filter(|v| v.is_finite()).collect();
     sorted.sort_by(f64::total_cmp);
     let bmax = sorted.get(sorted.len() * 99 / 100).copied().unwrap_or(1.0).max(1e-12);
+    let level = |v: f64| {
+        if v.is_finite() {
+            ((v / bmax).clamp(0.0, 1.0) * LEVELS).round() as i64
+        } else {
+            -1
+        }
+    };
     let mut s = format!(
         r#"<svg xmlns="http://www.w3.org/2000/svg" width="{:.0}" height="{:.0}" viewBox="0 0 {:.0} {:.0}" font-family="sans-serif" font-size="12">"#,
         pw + bar,
@@ -68,18 +85,30 @@ pub fn field_map(model: &Model, sol: &Solution) -> String {
         pw + bar,
         ph + 30.0
     );
-    s += &format!("<title>{}: |B| and flux lines</title><g class=\"field\">", escape(&model.title));
-    for (k, &t) in shown.iter().enumerate() {
-        let pts: Vec<String> = mesh
-            .triangle_points(t)
-            .iter()
-            .map(|&p| {
-                let (x, y) = tx(p);
-                format!("{x:.1},{y:.1}")
-            })
-            .collect();
-        let c = colour(bmag[k] / bmax);
-        s += &format!("<polygon points=\"{}\" fill=\"{c}\" stroke=\"{c}\" stroke-width=\"0.4\"/>", pts.join(" "));
+    s += &format!(
+        "<title>{}: |B| and flux lines</title><g class=\"field\" shape-rendering=\"crispEdges\">",
+        escape(&model.title)
+    );
+    for j in 0..ny {
+        let mut i = 0;
+        while i < nx {
+            let l = level(grid[j * nx + i]);
+            let mut k = i + 1;
+            while k < nx && level(grid[j * nx + k]) == l {
+                k += 1;
+            }
+            if l >= 0 {
+                let c = colour(l as f64 / LEVELS);
+                s += &format!(
+                    "<rect x=\"{:.0}\" y=\"{:.0}\" width=\"{:.0}\" height=\"{:.1}\" fill=\"{c}\"/>",
+                    i as f64 * CELL,
+                    j as f64 * CELL,
+                    (k - i) as f64 * CELL + 0.5,
+                    CELL + 0.5
+                );
+            }
+            i = k;
+        }
     }
     s += "</g>";
     s += &flux_lines(model, sol, &shown, &tx);
