@@ -166,7 +166,23 @@ fn an_interrupted_solve_leaves_earlier_results_byte_identical() {
         .unwrap();
     std::thread::sleep(std::time::Duration::from_millis(1000));
     let _ = Command::new("kill").args(["-INT", &child.id().to_string()]).status();
-    let status = child.wait().unwrap();
+    // A shell that starts jobs in the background makes them ignore SIGINT; there, interrupt
+    // with SIGKILL instead, which is harsher still.
+    let mut status = None;
+    for _ in 0..40 {
+        std::thread::sleep(std::time::Duration::from_millis(50));
+        if let Some(s) = child.try_wait().unwrap() {
+            status = Some(s);
+            break;
+        }
+    }
+    let status = match status {
+        Some(s) => s,
+        None => {
+            let _ = child.kill();
+            child.wait().unwrap()
+        }
+    };
     assert!(status.code().is_none(), "the solve was not interrupted midway: {status:?}");
     assert_eq!(std::fs::read(out.join("results.json")).unwrap(), before);
     let leftovers: Vec<_> = std::fs::read_dir(&out)

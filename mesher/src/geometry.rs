@@ -20,6 +20,9 @@ pub enum Shape {
 /// Largest sagitta of a circle's chords, as a fraction of the local size.
 pub const CHORD_FRACTION: f64 = 0.02;
 
+/// Fewest chords of any circle.
+pub const MIN_CIRCLE_SEGMENTS: f64 = 48.0;
+
 impl Shape {
     /// Exact area of the shape as the study sees it (the r >= 0 half of an
     /// axis-centred circle in an axisymmetric study).
@@ -121,12 +124,13 @@ fn circle_polygon(part: usize, c: [f64; 2], radius: f64, size: f64, symmetry: Sy
         .collect())
 }
 
-/// Number of chords for a circle: chord <= size and sagitta <= CHORD_FRACTION * size.
+/// Number of chords for a circle: chord <= size, sagitta <= CHORD_FRACTION * size,
+/// and at least MIN_CIRCLE_SEGMENTS (area within 0.3 % of the circle's).
 pub fn circle_segments(radius: f64, size: f64) -> usize {
     let by_length = (2.0 * std::f64::consts::PI * radius / size).ceil();
     let sag = (CHORD_FRACTION * size).min(radius);
     let by_sagitta = (std::f64::consts::PI / (1.0 - sag / radius).acos()).ceil();
-    (by_length.max(by_sagitta).max(16.0) as usize).min(1 << 16)
+    (by_length.max(by_sagitta).max(MIN_CIRCLE_SEGMENTS) as usize).min(1 << 16)
 }
 
 fn validate_polygon(part: usize, poly: &[[f64; 2]], symmetry: Symmetry) -> Result<(), MeshError> {

@@ -135,3 +135,4 @@ pub fn record(check: &str, source: &str, tolerance: f64, measured: f64) {
         let _ = writeln!(f, "{line}");
     }
 }
+pub mod random;

@@ -1,0 +1,82 @@
+//! A small deterministic random generator (SplitMix64, G. Steele et al.,
+//! OOPSLA 2014) for property tests and the fuzz harness: fixed seeds, no
+//! dependencies.
+
+pub struct Rng(u64);
+
+impl Rng {
+    pub fn new(seed: u64) -> Rng {
+        Rng(seed)
+    }
+
+    pub fn next_u64(&mut self) -> u64 {
+        self.0 = self.0.wrapping_add(0x9e37_79b9_7f4a_7c15);
+        let mut z = self.0;
+        z = (z ^ (z >> 30)).wrapping_mul(0xbf58_476d_1ce4_e5b9);
+        z = (z ^ (z >> 27)).wrapping_mul(0x94d0_49bb_1331_11eb);
+        z ^ (z >> 31)
+    }
+
+    /// Uniform in [0, 1).
+    pub fn unit(&mut self) -> f64 {
+        (self.next_u64() >> 11) as f64 / (1u64 << 53) as f64
+    }
+
+    pub fn range(&mut self, lo: f64, hi: f64) -> f64 {
+        lo + (hi - lo) * self.unit()
+    }
+
+    pub fn below(&mut self, n: usize) -> usize {
+        (self.next_u64() % n.max(1) as u64) as usize
+    }
+
+    pub fn pick<'a, T>(&mut self, items: &'a [T]) -> &'a T {
+        &items[self.below(items.len())]
+    }
+}
+
+/// A mutated copy of `text`: byte flips, deletions, duplications and
+/// insertions of TOML-ish tokens.
+pub fn mutate(text: &str, rng: &mut Rng) -> String {
+    const TOKENS: &[&str] = &["[", "]", "{", "}", "=", "\"", ",", "nan", "inf", "-1e308", "1e-300", "0", "[[part]]", "\n", "# ", "mm", "T", "+z", "\"10 / 0\"", "\"(\"", "1e400", "-", "polygon = [[0,0],[0,0],[0,0]]"];
+    let mut bytes = text.as_bytes().to_vec();
+    for _ in 0..1 + rng.below(4) {
+        if bytes.is_empty() {
+            break;
+        }
+        let at = rng.below(bytes.len());
+        match rng.below(5) {
+            0 => bytes[at] = (rng.next_u64() & 0x7f) as u8,
+            1 => {
+                let end = (at + rng.below(16)).min(bytes.len());
+                bytes.drain(at..end);
+            }
+            2 => {
+                let end = (at + rng.below(32)).min(bytes.len());
+                let piece = bytes[at..end].to_vec();
+                bytes.splice(at..at, piece);
+            }
+            _ => {
+                let t = rng.pick(TOKENS).as_bytes().to_vec();
+                bytes.splice(at..at, t);
+            }
+        }
+    }
+    String::from_utf8_lossy(&bytes).into_owned()
+}
+
+/// Reads a case text through every stage short of solving: parse,
+/// parameters, resolve, and the mesh estimate (meshing only when small).
+/// Returns whether it was accepted. Panics propagate to the caller.
+pub fn read_case(text: &str) -> bool {
+    let Ok(doc) = lodestone::case::document::parse(text) else { return false };
+    let Ok(params) = lodestone::case::resolve::params(&doc, &Default::default()) else { return false };
+    let _ = lodestone::case::resolve::sweep(&doc);
+    let Ok(model) = lodestone::case::resolve::resolve(&doc, &params, std::path::Path::new(".")) else { return false };
+    let mut spec = lodestone::study::mesh_spec(&model);
+    spec.max_triangles = 20_000;
+    match mesher::estimate_triangles(&spec) {
+        Ok(n) if n < 20_000.0 => mesher::build_mesh(&spec).is_ok(),
+        _ => false,
+    }
+}
