@@ -359,20 +359,32 @@ fn part_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f64
         })
         .collect();
     let els = &sol.elements;
-    for e in 0..els.n_physical {
-        let ElementKind::Part(i) = els.kinds[e] else {
-            continue;
-        };
-        solver::element::for_each_point(&els.coords[e], els.order, sol.symmetry(), sol.placement(e), |op| {
-            let b = solver::element::flux_density(op, &els.gather(e, &sol.reduced), sol.background(e));
-            let bm = b[0].hypot(b[1]);
-            max[i] = max[i].max(bm);
-            sum[i] += bm * op.weight;
-            vol[i] += op.weight;
-            if knees[i].is_some_and(|k| bm > k) {
-                above[i] += op.weight;
-            }
-        });
+    // Per element (in parallel): part, peak |B|, integral of |B|, volume, volume above the knee.
+    use rayon::prelude::*;
+    let stats: Vec<(usize, f64, f64, f64, f64)> = (0..els.n_physical)
+        .into_par_iter()
+        .filter_map(|e| {
+            let ElementKind::Part(i) = els.kinds[e] else { return None };
+            let a = els.gather(e, &sol.reduced);
+            let mut st = (i, 0.0f64, 0.0, 0.0, 0.0);
+            solver::element::for_each_point(&els.coords[e], els.order, sol.symmetry(), sol.placement(e), |op| {
+                let b = solver::element::flux_density(op, &a, sol.background(e));
+                let bm = b[0].hypot(b[1]);
+                st.1 = st.1.max(bm);
+                st.2 += bm * op.weight;
+                st.3 += op.weight;
+                if knees[i].is_some_and(|k| bm > k) {
+                    st.4 += op.weight;
+                }
+            });
+            Some(st)
+        })
+        .collect();
+    for (i, m, s_, v, ab) in stats {
+        max[i] = max[i].max(m);
+        sum[i] += s_;
+        vol[i] += v;
+        above[i] += ab;
     }
     let mut out = BTreeMap::new();
     for (i, p) in model.parts.iter().enumerate() {

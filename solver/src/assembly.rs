@@ -2,7 +2,7 @@
 //! scatter map that puts each element entry straight into its slot of the
 //! compressed lower triangle.
 
-use crate::element::{element_system, ElementLoad, ElementOrder, LocalSystem, Placement, EDGES, MAX_NODES};
+use crate::element::{element_residual, element_system, ElementLoad, ElementOrder, LocalSystem, Placement, EDGES, MAX_NODES};
 use crate::material::Law;
 use crate::problem::Problem;
 use mesher::{BoundaryTag, Mesh, Region, Symmetry};
@@ -248,6 +248,37 @@ impl System {
                     if d != NONE {
                         residual[d] += r[i];
                     }
+                }
+            }
+        }
+        residual
+    }
+}
+
+impl System {
+    /// The residual alone at nodal potentials `a`, leaving the tangent as it was.
+    pub fn residual(&self, problem: &Problem, a: &[f64]) -> Vec<f64> {
+        let els = &self.elements;
+        let m = els.order.n_nodes();
+        let local: Vec<[f64; MAX_NODES]> = (0..els.len())
+            .into_par_iter()
+            .map(|e| {
+                element_residual(
+                    &els.coords[e],
+                    &els.gather(e, a),
+                    els.order,
+                    problem.mesh.symmetry,
+                    els.placement(e),
+                    element_load(els.kinds[e], problem, &self.air),
+                )
+            })
+            .collect();
+        let mut residual = vec![0.0; self.n_dofs];
+        for (e, r) in local.iter().enumerate() {
+            for i in 0..m {
+                let d = self.dof_of_node[els.nodes[e][i]];
+                if d != NONE {
+                    residual[d] += r[i];
                 }
             }
         }

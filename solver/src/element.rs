@@ -8,7 +8,7 @@
 //! Node order: the three corners, then the midpoints of edges 0-1, 1-2, 2-0.
 
 use crate::material::Law;
-use crate::quadrature::DEGREE5;
+use crate::quadrature::{DEGREE2, DEGREE5};
 use crate::NU0;
 use mesher::Symmetry;
 
@@ -60,7 +60,12 @@ pub struct PointOp {
 
 /// Calls `f` at every quadrature point of the triangle with corners `x`.
 pub fn for_each_point(x: &[[f64; 2]; 3], order: ElementOrder, symmetry: Symmetry, placement: Placement, mut f: impl FnMut(&PointOp)) {
-    for (lam, w) in DEGREE5.points.iter().zip(DEGREE5.weights) {
+    // Axisymmetric integrands carry 1/r and r and need the higher rule.
+    let rule = match symmetry {
+        Symmetry::Planar => &DEGREE2,
+        Symmetry::Axisymmetric => &DEGREE5,
+    };
+    for (lam, w) in rule.points.iter().zip(rule.weights) {
         f(&point_op(x, order, symmetry, placement, *lam, *w));
     }
 }
@@ -207,4 +212,26 @@ pub fn element_system(
         }
     });
     (K, r)
+}
+
+/// The element residual alone (line-search trials need no tangent).
+#[allow(clippy::needless_range_loop)]
+pub fn element_residual(
+    x: &[[f64; 2]; 3],
+    a: &[f64; MAX_NODES],
+    order: ElementOrder,
+    symmetry: Symmetry,
+    placement: Placement,
+    load: ElementLoad,
+) -> [f64; MAX_NODES] {
+    let mut r = [0.0; MAX_NODES];
+    for_each_point(x, order, symmetry, placement, |op| {
+        let b = flux_density(op, a, load.background);
+        let h = load.law.response(b).h;
+        let hr = [h[0] - NU0 * load.background[0], h[1] - NU0 * load.background[1]];
+        for i in 0..op.len {
+            r[i] += op.weight * (op.g[0][i] * hr[0] + op.g[1][i] * hr[1] - op.n[i] * load.current_density);
+        }
+    });
+    r
 }

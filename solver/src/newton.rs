@@ -155,18 +155,14 @@ fn line_search(problem: &Problem, system: &mut System, a: &[f64], step: &[f64], 
     if g1 <= 0.0 {
         return (full, residual, t.elapsed().as_secs_f64());
     }
-    // The slope at alpha = 0 is -step . K step < 0; use the residual there.
-    let (mut lo, mut glo) = (0.0, -g1.abs().max(f64::MIN_POSITIVE));
+    // The slope at alpha = 0: residual . step (negative for a descent step).
+    let g0 = dot(&system.residual(problem, a), step);
+    let (mut lo, mut glo) = (0.0, if g0 < 0.0 { g0 } else { -g1.abs().max(f64::MIN_POSITIVE) });
     let (mut hi, mut ghi) = (1.0, g1);
-    let g0 = dot(&system_residual_at(problem, system, a), step);
-    glo = if g0 < 0.0 { g0 } else { glo };
-    let mut best = (1.0, full, residual);
+    let mut alpha = 1.0;
     for _ in 0..6 {
-        let alpha = (lo - glo * (hi - lo) / (ghi - glo)).clamp(lo + 0.05 * (hi - lo), hi - 0.05 * (hi - lo));
-        let trial = shifted(system, a, step, alpha);
-        let r = system.assemble(problem, &trial);
-        let g = dot(&r, step);
-        best = (alpha, trial, r);
+        alpha = (lo - glo * (hi - lo) / (ghi - glo)).clamp(lo + 0.05 * (hi - lo), hi - 0.05 * (hi - lo));
+        let g = dot(&system.residual(problem, &shifted(system, a, step, alpha)), step);
         if g.abs() <= 0.1 * g0.abs() {
             break;
         }
@@ -178,11 +174,8 @@ fn line_search(problem: &Problem, system: &mut System, a: &[f64], step: &[f64], 
             glo = g;
         }
     }
-    let _ = best.0;
-    (best.1, best.2, t.elapsed().as_secs_f64())
-}
-
-/// The residual at a point (assembles; the caller re-assembles where it continues).
-fn system_residual_at(problem: &Problem, system: &mut System, a: &[f64]) -> Vec<f64> {
-    system.assemble(problem, a)
+    // One full assembly at the accepted point, for the next Newton step.
+    let trial = shifted(system, a, step, alpha);
+    let residual = system.assemble(problem, &trial);
+    (trial, residual, t.elapsed().as_secs_f64())
 }

@@ -6,12 +6,6 @@ pub struct Rule {
     pub weights: &'static [f64],
 }
 
-/// The centroid rule, exact for degree 1.
-pub const CENTROID: Rule = Rule {
-    points: &[[1.0 / 3.0, 1.0 / 3.0, 1.0 / 3.0]],
-    weights: &[1.0],
-};
-
 const A1: f64 = 0.059_715_871_789_770;
 const B1: f64 = 0.470_142_064_105_115;
 const A2: f64 = 0.797_426_985_353_087;
@@ -33,4 +27,16 @@ pub const DEGREE5: Rule = Rule {
         [B2, B2, A2],
     ],
     weights: &[W0, W1, W1, W1, W2, W2, W2],
+};
+
+/// Three-point rule exact for degree 2 (G. Strang, G. Fix, An Analysis of the
+/// Finite Element Method, 1973, table 4.1): enough for planar quadratic
+/// elements, where B is linear and the linear-material integrand quadratic.
+pub const DEGREE2: Rule = Rule {
+    points: &[
+        [2.0 / 3.0, 1.0 / 6.0, 1.0 / 6.0],
+        [1.0 / 6.0, 2.0 / 3.0, 1.0 / 6.0],
+        [1.0 / 6.0, 1.0 / 6.0, 2.0 / 3.0],
+    ],
+    weights: &[1.0 / 3.0, 1.0 / 3.0, 1.0 / 3.0],
 };

@@ -38,7 +38,31 @@ impl Rng {
 /// A mutated copy of `text`: byte flips, deletions, duplications and
 /// insertions of TOML-ish tokens.
 pub fn mutate(text: &str, rng: &mut Rng) -> String {
-    const TOKENS: &[&str] = &["[", "]", "{", "}", "=", "\"", ",", "nan", "inf", "-1e308", "1e-300", "0", "[[part]]", "\n", "# ", "mm", "T", "+z", "\"10 / 0\"", "\"(\"", "1e400", "-", "polygon = [[0,0],[0,0],[0,0]]"];
+    const TOKENS: &[&str] = &[
+        "[",
+        "]",
+        "{",
+        "}",
+        "=",
+        "\"",
+        ",",
+        "nan",
+        "inf",
+        "-1e308",
+        "1e-300",
+        "0",
+        "[[part]]",
+        "\n",
+        "# ",
+        "mm",
+        "T",
+        "+z",
+        "\"10 / 0\"",
+        "\"(\"",
+        "1e400",
+        "-",
+        "polygon = [[0,0],[0,0],[0,0]]",
+    ];
     let mut bytes = text.as_bytes().to_vec();
     for _ in 0..1 + rng.below(4) {
         if bytes.is_empty() {
@@ -70,9 +94,13 @@ pub fn mutate(text: &str, rng: &mut Rng) -> String {
 /// Returns whether it was accepted. Panics propagate to the caller.
 pub fn read_case(text: &str) -> bool {
     let Ok(doc) = lodestone::case::document::parse(text) else { return false };
-    let Ok(params) = lodestone::case::resolve::params(&doc, &Default::default()) else { return false };
+    let Ok(params) = lodestone::case::resolve::params(&doc, &Default::default()) else {
+        return false;
+    };
     let _ = lodestone::case::resolve::sweep(&doc);
-    let Ok(model) = lodestone::case::resolve::resolve(&doc, &params, std::path::Path::new(".")) else { return false };
+    let Ok(model) = lodestone::case::resolve::resolve(&doc, &params, std::path::Path::new(".")) else {
+        return false;
+    };
     let mut spec = lodestone::study::mesh_spec(&model);
     spec.max_triangles = 20_000;
     match mesher::estimate_triangles(&spec) {

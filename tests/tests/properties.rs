@@ -79,7 +79,13 @@ fn valid_random_geometry_meshes_with_the_invariants() {
             parts.push((rect(x0, y0, x0 + w, y0 + h), rng.range(0.0008, 0.004)));
         }
         if rng.below(2) == 0 {
-            parts.push((Shape::Circle { center: [0.09, 0.0], radius: rng.range(0.002, 0.008) }, rng.range(0.0008, 0.003)));
+            parts.push((
+                Shape::Circle {
+                    center: [0.09, 0.0],
+                    radius: rng.range(0.002, 0.008),
+                },
+                rng.range(0.0008, 0.003),
+            ));
         }
         let s = spec(Symmetry::Planar, parts, vec![], OuterBoundary::Open);
         let m = build_mesh(&s).expect("valid geometry meshes");
@@ -103,7 +109,11 @@ fn valid_random_geometry_meshes_with_the_invariants() {
 
 #[test]
 fn mutated_cases_never_panic_the_reader() {
-    let seeds: Vec<String> = std::fs::read_dir(concat!(env!("CARGO_MANIFEST_DIR"), "/../cases")).unwrap().flatten().map(|e| std::fs::read_to_string(e.path()).unwrap()).collect();
+    let seeds: Vec<String> = std::fs::read_dir(concat!(env!("CARGO_MANIFEST_DIR"), "/../cases"))
+        .unwrap()
+        .flatten()
+        .map(|e| std::fs::read_to_string(e.path()).unwrap())
+        .collect();
     let mut rng = Rng::new(5);
     let mut accepted = 0;
     for i in 0..CASES {

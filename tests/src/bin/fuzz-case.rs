@@ -11,7 +11,11 @@ fn main() {
     let seconds: f64 = args.get(1).and_then(|s| s.parse().ok()).unwrap_or(60.0);
     let seed: u64 = args.get(2).and_then(|s| s.parse().ok()).unwrap_or(7);
     let dir = concat!(env!("CARGO_MANIFEST_DIR"), "/../cases");
-    let seeds: Vec<String> = std::fs::read_dir(dir).expect("cases folder").flatten().filter_map(|e| std::fs::read_to_string(e.path()).ok()).collect();
+    let seeds: Vec<String> = std::fs::read_dir(dir)
+        .expect("cases folder")
+        .flatten()
+        .filter_map(|e| std::fs::read_to_string(e.path()).ok())
+        .collect();
     std::panic::set_hook(Box::new(|_| {}));
     let mut rng = Rng::new(seed);
     let start = Instant::now();
@@ -33,7 +37,10 @@ fn main() {
             }
         }
     }
-    println!("fuzz-case: {runs} inputs in {:.0} s, {accepted} accepted, {crashes} panics (seed {seed})", start.elapsed().as_secs_f64());
+    println!(
+        "fuzz-case: {runs} inputs in {:.0} s, {accepted} accepted, {crashes} panics (seed {seed})",
+        start.elapsed().as_secs_f64()
+    );
     if crashes > 0 {
         std::process::exit(1);
     }
