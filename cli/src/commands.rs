@@ -109,8 +109,7 @@ fn solve_inner(
         }
     }
     let rows = sweep::rows_from_folders(std::slice::from_ref(&out)).map_err(|e| Failure::Input(format!("error: {e}\n")))?;
-    let table = sweep::table(&rows);
-    output::write_all(&out, &vec![("sweep.csv".into(), table.into_bytes())]).map_err(|e| Failure::Input(format!("error: {e}\n")))?;
+    output::write_all(&out, &sweep::summary_files(&rows)).map_err(|e| Failure::Input(format!("error: {e}\n")))?;
     println!(
         "{}: {} variants solved ({} already whole), sweep table in {}",
         loaded.path.display(),
@@ -284,7 +283,7 @@ pub fn materials(name: Option<&str>, plot: Option<PathBuf>) -> i32 {
 pub fn merge(folders: &[PathBuf], out: &Path) -> i32 {
     match sweep::rows_from_folders(folders) {
         Ok(rows) => {
-            if let Err(e) = output::write_all(out, &vec![("sweep.csv".into(), sweep::table(&rows).into_bytes())]) {
+            if let Err(e) = output::write_all(out, &sweep::summary_files(&rows)) {
                 eprintln!("error: {e}");
                 return 2;
             }

@@ -142,3 +142,74 @@ pub fn table(rows: &[Row]) -> String {
     }
     s
 }
+
+/// Charts of each value against the first swept parameter, one line per
+/// value of the second (if any): (file name, value name, SVG).
+pub fn charts(rows: &[Row]) -> Vec<(String, String, String)> {
+    let Some(first) = rows.first() else { return Vec::new() };
+    let Some((x_name, _)) = first.swept.first() else { return Vec::new() };
+    let second = first.swept.get(1).map(|s| s.0.clone());
+    let mut names: Vec<String> = rows.iter().flat_map(|r| r.values.keys().cloned()).collect();
+    names.sort();
+    names.dedup();
+    names.retain(|n| !n.ends_with(".b.min") && !n.ends_with(".r") && n != "coenergy");
+    let mut out = Vec::new();
+    for name in names.iter().take(MAX_CHARTS) {
+        let mut groups: Vec<(f64, Vec<[f64; 2]>)> = Vec::new();
+        for r in rows {
+            let x = r.swept[0].1;
+            let key = second.as_ref().and_then(|s| r.swept.iter().find(|(k, _)| k == s)).map_or(0.0, |p| p.1);
+            let Some(&y) = r.values.get(name) else { continue };
+            match groups.iter_mut().find(|g| g.0 == key) {
+                Some(g) => g.1.push([x, y]),
+                None => groups.push((key, vec![[x, y]])),
+            }
+        }
+        let series = groups
+            .into_iter()
+            .map(|(k, mut pts)| {
+                pts.sort_by(|a, b| a[0].total_cmp(&b[0]));
+                (second.as_ref().map_or_else(|| name.clone(), |s| format!("{s} = {k}")), pts)
+            })
+            .collect();
+        let y_label = format!("{name} ({})", unit_of(name));
+        let title = format!("{name} against {x_name}");
+        let svg = crate::output::svg::chart(&crate::output::svg::Chart { title: &title, x_label: x_name, y_label: &y_label, series, scatter: Vec::new(), marks: Vec::new() });
+        out.push((format!("sweep-{}.svg", name.replace('.', "-")), name.clone(), svg));
+    }
+    out
+}
+
+/// Most charts a sweep draws.
+const MAX_CHARTS: usize = 40;
+
+/// sweep-report.md: the table of every variant and the charts.
+pub fn report(rows: &[Row], charts: &[(String, String, String)]) -> String {
+    let mut s = String::from("# Sweep\n\n");
+    s += &format!("{} variants. The full table with every value is sweep.csv; each variant's own report is in its folder.\n\n", rows.len());
+    let params: Vec<String> = rows.first().map(|r| r.swept.iter().map(|(k, _)| k.clone()).collect()).unwrap_or_default();
+    let shown: Vec<&str> = ["force.", "flux.", "magnet.", "probe."].iter().flat_map(|p| rows.first().into_iter().flat_map(move |r| r.values.keys().filter(move |k| k.starts_with(p)).map(String::as_str))).take(6).collect();
+    s += &format!("| variant | {} | converged | {} |\n", params.join(" | "), shown.iter().map(|n| format!("{n} ({})", unit_of(n))).collect::<Vec<_>>().join(" | "));
+    s += &format!("|---|{}---|{}\n", "---|".repeat(params.len()), "---|".repeat(shown.len()));
+    for r in rows {
+        let p: Vec<String> = r.swept.iter().map(|(_, v)| format!("{v}")).collect();
+        let v: Vec<String> = shown.iter().map(|n| r.values.get(*n).map_or("-".into(), |x| format!("{x:.4e}"))).collect();
+        s += &format!("| {} | {} | {} | {} |\n", r.index, p.join(" | "), r.converged, v.join(" | "));
+    }
+    s.push('\n');
+    for (file, name, _) in charts {
+        s += &format!("![{name}]({file})\n\n");
+    }
+    s += "Results are estimates from a 2D model; confirm them by measurement and qualified practice.\n";
+    s
+}
+
+/// Every file that summarizes a sweep: the table, the charts and the report.
+pub fn summary_files(rows: &[Row]) -> crate::output::FileSet {
+    let charts = charts(rows);
+    let mut files: crate::output::FileSet = vec![("sweep.csv".into(), table(rows).into_bytes()), ("sweep-report.md".into(), report(rows, &charts).into_bytes())];
+    for (file, _, svg) in charts {
+        files.push((file.into(), svg.into_bytes()));
+    }
+    files
+}
