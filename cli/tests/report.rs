@@ -1,0 +1,51 @@
+//! The report renders: every SVG parses as XML and has its expected parts.
+
+use quick_xml::events::Event;
+use quick_xml::Reader;
+use std::collections::BTreeMap;
+use std::path::Path;
+use std::process::Command;
+
+/// Element names and class attributes of an SVG, with counts; panics on malformed XML.
+fn inventory(svg: &str) -> BTreeMap<String, usize> {
+    let mut reader = Reader::from_str(svg);
+    let mut seen = BTreeMap::new();
+    loop {
+        match reader.read_event() {
+            Ok(Event::Start(e)) | Ok(Event::Empty(e)) => {
+                *seen.entry(String::from_utf8_lossy(e.name().as_ref()).into_owned()).or_insert(0) += 1;
+                for a in e.attributes().flatten() {
+                    if a.key.as_ref() == b"class" {
+                        *seen.entry(format!(".{}", String::from_utf8_lossy(&a.value))).or_insert(0) += 1;
+                    }
+                }
+            }
+            Ok(Event::Eof) => return seen,
+            Ok(_) => {}
+            Err(e) => panic!("malformed SVG: {e}"),
+        }
+    }
+}
+
+#[test]
+fn report_pictures_parse_and_have_their_parts() {
+    let case = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/pot-magnet.toml");
+    let out = std::env::temp_dir().join(format!("lodestone-report-{}", std::process::id()));
+    let status = Command::new(env!("CARGO_BIN_EXE_lodestone")).args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()]).status().unwrap();
+    assert!(status.success());
+    let map = inventory(&std::fs::read_to_string(out.join("field-map.svg")).unwrap());
+    for part in [".field", ".fluxlines", ".outlines", ".colourbar", ".axis", "text", "rect", "line"] {
+        assert!(map.contains_key(part), "field map lacks {part}: {map:?}");
+    }
+    for chart in ["probe-axis.svg", "bh-cup.svg", "magnet-magnet.svg"] {
+        let map = inventory(&std::fs::read_to_string(out.join(chart)).unwrap());
+        for part in [".axes", ".xlabel", ".ylabel", "polyline", "text"] {
+            assert!(map.contains_key(part), "{chart} lacks {part}: {map:?}");
+        }
+    }
+    let report = std::fs::read_to_string(out.join("report.md")).unwrap();
+    for section in ["## Forces", "## Parts", "## Magnets", "## Stray field", "## Cautions", "field-map.svg", "implanted", "IATA"] {
+        assert!(report.contains(section), "report lacks {section}");
+    }
+    let _ = std::fs::remove_dir_all(&out);
+}
