@@ -89,8 +89,12 @@ pub struct FluxResult {
     pub wb: f64,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub turns: Option<f64>,
+    /// Apparent inductance: linkage over current (no magnets, no applied field).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub inductance_h: Option<f64>,
+    /// Incremental inductance d(linkage)/dI, by a perturbation solve.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub incremental_inductance_h: Option<f64>,
 }
 
 #[derive(Serialize, Clone, Debug)]
@@ -322,26 +326,46 @@ fn flux_results(model: &Model, sol: &Solution, depth: f64, values: &mut BTreeMap
                 wb: flux::line_flux(sol, *from, *to).unwrap_or(f64::NAN) * depth,
                 turns: None,
                 inductance_h: None,
+                incremental_inductance_h: None,
             },
             FluxSpec::Winding { parts, turns, .. } => {
                 let linkage = flux::winding_linkage(sol, parts, *turns) * depth;
                 let ampere_turns = model.parts[parts[0].0].current.unwrap_or(0.0).abs();
                 let current = ampere_turns / turns;
                 let inductance = (current > 0.0 && !has_magnets && sol.problem.applied_field == [0.0, 0.0]).then(|| linkage / current);
-                FluxResult {
-                    wb: linkage,
-                    turns: Some(*turns),
-                    inductance_h: inductance,
-                }
+                let incremental = (current > 0.0).then(|| incremental_inductance(sol, parts, *turns, linkage / depth, current)).flatten().map(|l| l * depth);
+                FluxResult { wb: linkage, turns: Some(*turns), inductance_h: inductance, incremental_inductance_h: incremental }
             }
         };
         values.insert(format!("flux.{}", f.name()), r.wb);
         if let Some(l) = r.inductance_h {
             values.insert(format!("flux.{}.inductance", f.name()), l);
         }
+        if let Some(l) = r.incremental_inductance_h {
+            values.insert(format!("flux.{}.incremental_inductance", f.name()), l);
+        }
         out.insert(f.name().to_string(), r);
     }
     out
+}
+
+/// Relative current step of the perturbation solve.
+const CURRENT_STEP: f64 = 1e-3;
+
+/// d(linkage)/dI per metre of depth: re-solve with the winding's currents
+/// raised by CURRENT_STEP (for a linear study without magnets this equals
+/// the apparent inductance).
+fn incremental_inductance(sol: &Solution, parts: &[(usize, f64)], turns: f64, linkage: f64, current: f64) -> Option<f64> {
+    if !sol.problem.is_nonlinear() && !sol.problem.laws.iter().any(|l| matches!(l, solver::Law::Magnet { .. })) {
+        return Some(linkage / current);
+    }
+    let mut p = sol.problem.clone();
+    for &(i, _) in parts {
+        p.current_density[i] *= 1.0 + CURRENT_STEP;
+    }
+    let perturbed = solver::solve(&p, &|_, _| {}).ok()?;
+    let l2 = flux::winding_linkage(&perturbed, parts, turns);
+    Some((l2 - linkage) / (CURRENT_STEP * current))
 }
 
 fn part_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f64>) -> BTreeMap<String, PartResult> {

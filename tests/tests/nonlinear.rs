@@ -165,3 +165,19 @@ fn c_yoke_gap_field_follows_the_circuit_then_saturates() {
     assert!(b2 / b1 < 1.3, "saturated: doubling N I raised B from {b1} to {b2}");
     assert!(b1 > 1.5, "the yoke should be driven past saturation: {b1}");
 }
+
+const PLUNGER: &str = include_str!("../../cases/plunger-solenoid.toml");
+
+#[test]
+fn saturation_lowers_the_incremental_inductance_below_the_apparent() {
+    // Source: definitions: apparent L = linkage / I, incremental L = d(linkage)/dI; on a
+    // saturating curve the differential permeability falls below the secant one, so the
+    // incremental inductance falls below the apparent (e.g. Silvester & Ferrari 1996, ch. on
+    // nonlinear problems). At a long stroke (air-dominated circuit) the two nearly agree.
+    let short = solve_case_text(PLUNGER, &[("stroke", 0.5)]);
+    let (app, inc) = (short.values["flux.linkage.inductance"], short.values["flux.linkage.incremental_inductance"]);
+    assert!(inc < 0.7 * app, "saturated: apparent {app} H, incremental {inc} H");
+    let long = solve_case_text(PLUNGER, &[("stroke", 8.0)]);
+    let (app, inc) = (long.values["flux.linkage.inductance"], long.values["flux.linkage.incremental_inductance"]);
+    assert!(rel(inc, app) < 0.05, "unsaturated: apparent {app} H, incremental {inc} H");
+}
