@@ -208,6 +208,7 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
             ));
         }
     }
+    warnings.extend(thin_parts(model));
     values.retain(|_, v| v.is_finite());
     let r = &sol.report;
     Results {
@@ -333,8 +334,16 @@ fn flux_results(model: &Model, sol: &Solution, depth: f64, values: &mut BTreeMap
                 let ampere_turns = model.parts[parts[0].0].current.unwrap_or(0.0).abs();
                 let current = ampere_turns / turns;
                 let inductance = (current > 0.0 && !has_magnets && sol.problem.applied_field == [0.0, 0.0]).then(|| linkage / current);
-                let incremental = (current > 0.0).then(|| incremental_inductance(sol, parts, *turns, linkage / depth, current)).flatten().map(|l| l * depth);
-                FluxResult { wb: linkage, turns: Some(*turns), inductance_h: inductance, incremental_inductance_h: incremental }
+                let incremental = (current > 0.0)
+                    .then(|| incremental_inductance(sol, parts, *turns, linkage / depth, current))
+                    .flatten()
+                    .map(|l| l * depth);
+                FluxResult {
+                    wb: linkage,
+                    turns: Some(*turns),
+                    inductance_h: inductance,
+                    incremental_inductance_h: incremental,
+                }
             }
         };
         values.insert(format!("flux.{}", f.name()), r.wb);
@@ -347,6 +356,37 @@ fn flux_results(model: &Model, sol: &Solution, depth: f64, values: &mut BTreeMap
         out.insert(f.name().to_string(), r);
     }
     out
+}
+
+/// Parts whose thinnest extent spans fewer than MIN_ELEMENTS_ACROSS elements:
+/// the mesh follows their outline, but the field inside is poorly resolved.
+fn thin_parts(model: &Model) -> Vec<String> {
+    const MIN_ELEMENTS_ACROSS: f64 = 2.0;
+    model
+        .parts
+        .iter()
+        .filter_map(|p| {
+            let thickness = match &p.shape {
+                mesher::Shape::Rect { from, to } => (to[0] - from[0]).abs().min((to[1] - from[1]).abs()),
+                mesher::Shape::Circle { radius, .. } => 2.0 * radius,
+                mesher::Shape::Polygon(pts) => {
+                    let (lo, hi) = mesher::geometry::bbox(pts.iter().copied());
+                    (hi[0] - lo[0]).min(hi[1] - lo[1])
+                }
+            };
+            (thickness < MIN_ELEMENTS_ACROSS * p.mesh_size).then(|| {
+                let f = model.length_unit.1;
+                format!(
+                    "part '{}' is {:.3} {u} thick but its mesh size is {:.3} {u}: fewer than {MIN_ELEMENTS_ACROSS} elements across; set mesh_size = {:.3} or less for accuracy inside it",
+                    p.name,
+                    thickness / f,
+                    p.mesh_size / f,
+                    thickness / f / 3.0,
+                    u = model.length_unit.0
+                )
+            })
+        })
+        .collect()
 }
 
 /// Relative current step of the perturbation solve.

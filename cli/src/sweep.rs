@@ -174,7 +174,14 @@ pub fn charts(rows: &[Row]) -> Vec<(String, String, String)> {
             .collect();
         let y_label = format!("{name} ({})", unit_of(name));
         let title = format!("{name} against {x_name}");
-        let svg = crate::output::svg::chart(&crate::output::svg::Chart { title: &title, x_label: x_name, y_label: &y_label, series, scatter: Vec::new(), marks: Vec::new() });
+        let svg = crate::output::svg::chart(&crate::output::svg::Chart {
+            title: &title,
+            x_label: x_name,
+            y_label: &y_label,
+            series,
+            scatter: Vec::new(),
+            marks: Vec::new(),
+        });
         out.push((format!("sweep-{}.svg", name.replace('.', "-")), name.clone(), svg));
     }
     out
@@ -186,10 +193,25 @@ const MAX_CHARTS: usize = 40;
 /// sweep-report.md: the table of every variant and the charts.
 pub fn report(rows: &[Row], charts: &[(String, String, String)]) -> String {
     let mut s = String::from("# Sweep\n\n");
-    s += &format!("{} variants. The full table with every value is sweep.csv; each variant's own report is in its folder.\n\n", rows.len());
+    s += &format!(
+        "{} variants. The full table with every value is sweep.csv; each variant's own report is in its folder.\n\n",
+        rows.len()
+    );
     let params: Vec<String> = rows.first().map(|r| r.swept.iter().map(|(k, _)| k.clone()).collect()).unwrap_or_default();
-    let shown: Vec<&str> = ["force.", "flux.", "magnet.", "probe."].iter().flat_map(|p| rows.first().into_iter().flat_map(move |r| r.values.keys().filter(move |k| k.starts_with(p)).map(String::as_str))).take(6).collect();
-    s += &format!("| variant | {} | converged | {} |\n", params.join(" | "), shown.iter().map(|n| format!("{n} ({})", unit_of(n))).collect::<Vec<_>>().join(" | "));
+    let shown: Vec<&str> = ["force.", "flux.", "magnet.", "probe."]
+        .iter()
+        .flat_map(|p| {
+            rows.first()
+                .into_iter()
+                .flat_map(move |r| r.values.keys().filter(move |k| k.starts_with(p)).map(String::as_str))
+        })
+        .take(6)
+        .collect();
+    s += &format!(
+        "| variant | {} | converged | {} |\n",
+        params.join(" | "),
+        shown.iter().map(|n| format!("{n} ({})", unit_of(n))).collect::<Vec<_>>().join(" | ")
+    );
     s += &format!("|---|{}---|{}\n", "---|".repeat(params.len()), "---|".repeat(shown.len()));
     for r in rows {
         let p: Vec<String> = r.swept.iter().map(|(_, v)| format!("{v}")).collect();
@@ -207,7 +229,10 @@ pub fn report(rows: &[Row], charts: &[(String, String, String)]) -> String {
 /// Every file that summarizes a sweep: the table, the charts and the report.
 pub fn summary_files(rows: &[Row]) -> crate::output::FileSet {
     let charts = charts(rows);
-    let mut files: crate::output::FileSet = vec![("sweep.csv".into(), table(rows).into_bytes()), ("sweep-report.md".into(), report(rows, &charts).into_bytes())];
+    let mut files: crate::output::FileSet = vec![
+        ("sweep.csv".into(), table(rows).into_bytes()),
+        ("sweep-report.md".into(), report(rows, &charts).into_bytes()),
+    ];
     for (file, _, svg) in charts {
         files.push((file.into(), svg.into_bytes()));
     }

@@ -31,7 +31,10 @@ fn inventory(svg: &str) -> BTreeMap<String, usize> {
 fn report_pictures_parse_and_have_their_parts() {
     let case = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/pot-magnet.toml");
     let out = std::env::temp_dir().join(format!("lodestone-report-{}", std::process::id()));
-    let status = Command::new(env!("CARGO_BIN_EXE_lodestone")).args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()]).status().unwrap();
+    let status = Command::new(env!("CARGO_BIN_EXE_lodestone"))
+        .args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()])
+        .status()
+        .unwrap();
     assert!(status.success());
     let map = inventory(&std::fs::read_to_string(out.join("field-map.svg")).unwrap());
     for part in [".field", ".fluxlines", ".outlines", ".colourbar", ".axis", "text", "rect", "line"] {
@@ -44,7 +47,16 @@ fn report_pictures_parse_and_have_their_parts() {
         }
     }
     let report = std::fs::read_to_string(out.join("report.md")).unwrap();
-    for section in ["## Forces", "## Parts", "## Magnets", "## Stray field", "## Cautions", "field-map.svg", "implanted", "IATA"] {
+    for section in [
+        "## Forces",
+        "## Parts",
+        "## Magnets",
+        "## Stray field",
+        "## Cautions",
+        "field-map.svg",
+        "implanted",
+        "IATA",
+    ] {
         assert!(report.contains(section), "report lacks {section}");
     }
     let _ = std::fs::remove_dir_all(&out);

@@ -115,26 +115,51 @@ fn run(label: &str, planar: bool, steel: &str, size: f64) -> Row {
 /// 16 variants of a case of about 20 000 triangles: in one parallel sweep, and
 /// one after another in separate processes.
 fn sweep_benchmark() {
-    let exe = std::env::current_exe().ok().and_then(|p| p.parent()?.parent().map(|d| d.join("lodestone"))).filter(|p| p.exists());
+    let exe = std::env::current_exe()
+        .ok()
+        .and_then(|p| p.parent()?.parent().map(|d| d.join("lodestone")))
+        .filter(|p| p.exists());
     let Some(exe) = exe else {
         println!("sweep benchmark skipped: build the lodestone binary first (cargo build --release)");
         return;
     };
     let dir = std::env::temp_dir().join(format!("lodestone-sweep-bench-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
-    let text = case(false, "low-carbon-steel", 0.75).replace("[mesh]", "[params]\ngap = 1.0\n[sweep]\ngap = { from = 0.5, to = 4, steps = 16 }\n[mesh]").replace("rect = { from = [0, 11], to = [40, 17] }", "rect = { from = [0, \"10 + gap\"], to = [40, \"16 + gap\"] }");
+    let text = case(false, "low-carbon-steel", 0.75)
+        .replace("[mesh]", "[params]\ngap = 1.0\n[sweep]\ngap = { from = 0.5, to = 4, steps = 16 }\n[mesh]")
+        .replace(
+            "rect = { from = [0, 11], to = [40, 17] }",
+            "rect = { from = [0, \"10 + gap\"], to = [40, \"16 + gap\"] }",
+        );
     let path = dir.join("sweep.toml");
     std::fs::write(&path, &text).unwrap();
     let t = Instant::now();
-    let ok = std::process::Command::new(&exe).args(["solve", "--quiet", path.to_str().unwrap(), "-o", dir.join("parallel").to_str().unwrap()]).status().map(|s| s.success()).unwrap_or(false);
+    let ok = std::process::Command::new(&exe)
+        .args(["solve", "--quiet", path.to_str().unwrap(), "-o", dir.join("parallel").to_str().unwrap()])
+        .status()
+        .map(|s| s.success())
+        .unwrap_or(false);
     let parallel = t.elapsed().as_secs_f64();
     let t = Instant::now();
     for k in 0..16 {
         let gap = 0.5 + 3.5 * k as f64 / 15.0;
-        let _ = std::process::Command::new(&exe).args(["solve", "--quiet", path.to_str().unwrap(), "-o", dir.join(format!("seq-{k}")).to_str().unwrap(), "--set", &format!("gap={gap}")]).status();
+        let _ = std::process::Command::new(&exe)
+            .args([
+                "solve",
+                "--quiet",
+                path.to_str().unwrap(),
+                "-o",
+                dir.join(format!("seq-{k}")).to_str().unwrap(),
+                "--set",
+                &format!("gap={gap}"),
+            ])
+            .status();
     }
     let sequential = t.elapsed().as_secs_f64();
-    let triangles = std::fs::read_to_string(dir.join("parallel/variant-0000/results.json")).ok().and_then(|s| s.split("\"elements\": ").nth(1).and_then(|r| r.split(',').next().map(str::to_string))).unwrap_or_default();
+    let triangles = std::fs::read_to_string(dir.join("parallel/variant-0000/results.json"))
+        .ok()
+        .and_then(|s| s.split("\"elements\": ").nth(1).and_then(|r| r.split(',').next().map(str::to_string)))
+        .unwrap_or_default();
     println!("\nsweep of 16 variants ({triangles} triangles each): parallel {parallel:.2} s, one after another in separate processes {sequential:.2} s, ratio {:.2}{}", parallel / sequential, if ok { "" } else { " (the sweep failed)" });
     let _ = std::fs::remove_dir_all(&dir);
 }
