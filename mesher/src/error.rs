@@ -18,6 +18,10 @@ pub enum MeshError {
     NoParts,
 }
 
+/// Peak memory per triangle of a quadratic solve, measured by the project's
+/// benchmark (1.25 GB at 527 000 triangles): a rough guide for refusals.
+pub const BYTES_PER_TRIANGLE: f64 = 2400.0;
+
 impl fmt::Display for MeshError {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         use MeshError::*;
@@ -30,7 +34,11 @@ impl fmt::Display for MeshError {
             NotFinite { part } => write!(f, "part {part}: a coordinate is not a finite number"),
             BadSize { part, size } => write!(f, "part {part}: mesh size must be a positive finite length, got {size}"),
             OutOfRange { part, extent } => write!(f, "part {part}: the shape spans {extent:.3e} m, outside the sensible range 1e-6 m to 1e4 m"),
-            TooManyTriangles { estimate, limit } => write!(f, "the mesh would need about {estimate:.3e} triangles, more than the limit of {limit}; coarsen mesh.size or mesh_size, or raise the limit with [mesh] max_elements"),
+            TooManyTriangles { estimate, limit } => write!(
+                f,
+                "the mesh would need about {estimate:.3e} triangles (about {:.1} GB of memory to solve), more than the limit of {limit}; coarsen mesh.size or mesh_size, or raise the limit with [mesh] max_elements",
+                estimate * BYTES_PER_TRIANGLE / 1e9
+            ),
             Triangulation(msg) => write!(f, "triangulation failed: {msg}"),
             NoParts => write!(f, "the study has no parts"),
         }

@@ -319,19 +319,17 @@ fn element_dofs(els: &Elements, dof_of_node: &[usize], e: usize) -> [usize; MAX_
 /// Column lists of the lower triangle, then the slot of each element entry.
 fn build_pattern(els: &Elements, dof_of_node: &[usize], n: usize) -> (SparsityPattern, Vec<u32>) {
     let m = els.order.n_nodes();
-    let pairs = |e: usize, mut f: Box<dyn FnMut(usize, usize) + '_>| {
-        let d = element_dofs(els, dof_of_node, e);
+    // Free dofs of every element, computed once for both passes.
+    let dofs: Vec<[usize; MAX_NODES]> = (0..els.len()).into_par_iter().map(|e| element_dofs(els, dof_of_node, e)).collect();
+    let mut count = vec![1usize; n];
+    for d in &dofs {
         for i in 0..m {
             for j in 0..m {
                 if d[i] != NONE && d[j] != NONE && d[i] > d[j] {
-                    f(d[i], d[j]);
+                    count[d[j]] += 1;
                 }
             }
         }
-    };
-    let mut count = vec![1usize; n];
-    for e in 0..els.len() {
-        pairs(e, Box::new(|_, c| count[c] += 1));
     }
     let mut start = vec![0usize; n + 1];
     for c in 0..n {
@@ -343,14 +341,15 @@ fn build_pattern(els: &Elements, dof_of_node: &[usize], n: usize) -> (SparsityPa
         rows[fill[c]] = c;
         fill[c] += 1;
     }
-    for e in 0..els.len() {
-        pairs(
-            e,
-            Box::new(|r, c| {
-                rows[fill[c]] = r;
-                fill[c] += 1;
-            }),
-        );
+    for d in &dofs {
+        for i in 0..m {
+            for j in 0..m {
+                if d[i] != NONE && d[j] != NONE && d[i] > d[j] {
+                    rows[fill[d[j]]] = d[i];
+                    fill[d[j]] += 1;
+                }
+            }
+        }
     }
     let mut offsets = Vec::with_capacity(n + 1);
     let mut indices = Vec::with_capacity(rows.len() / 2);
@@ -368,10 +367,9 @@ fn build_pattern(els: &Elements, dof_of_node: &[usize], n: usize) -> (SparsityPa
         offsets.push(indices.len());
     }
     drop(rows);
-    let scatter = (0..els.len())
-        .into_par_iter()
-        .flat_map_iter(|e| {
-            let d = element_dofs(els, dof_of_node, e);
+    let scatter = dofs
+        .par_iter()
+        .flat_map_iter(|d| {
             let mut s = [NO_SLOT; MAX_NODES * MAX_NODES];
             for i in 0..m {
                 for j in 0..m {
