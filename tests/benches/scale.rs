@@ -153,6 +153,7 @@ fn sweep_benchmark() {
                 "--set",
                 &format!("gap={gap}"),
             ])
+            .stdout(std::process::Stdio::null())
             .status();
     }
     let sequential = t.elapsed().as_secs_f64();
