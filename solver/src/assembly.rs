@@ -188,6 +188,9 @@ pub struct System {
     scatter: Vec<u32>,
     block: Vec<LocalSystem>,
     air: Law,
+    affine: Option<AffinePart>,
+    /// Elements with a saturating law, evaluated at every assembly.
+    nonlinear: Vec<usize>,
 }
 
 impl System {
@@ -213,29 +216,118 @@ impl System {
             scatter,
             block: Vec::new(),
             air: Law::air(),
+            affine: None,
+            nonlinear: Vec::new(),
         }
     }
 
     /// Fills the tangent and returns the residual at nodal potentials `a` (all nodes).
+    ///
+    /// Elements whose law is affine in B (air, magnets, linear materials) are
+    /// assembled once, at the first call; later calls add their tangent as
+    /// stored and their residual as K_aff a + r_aff(0), and evaluate only the
+    /// saturating elements.
     pub fn assemble(&mut self, problem: &Problem, a: &[f64]) -> Vec<f64> {
+        self.prepare_affine(problem);
+        let mut residual = self.affine_residual(a);
+        let mut values = self.affine.as_ref().map(|f| f.values.clone()).unwrap_or_default();
+        let nonlinear = std::mem::take(&mut self.nonlinear);
+        self.accumulate(problem, a, &nonlinear, &mut values, &mut residual);
+        self.nonlinear = nonlinear;
+        self.matrix.values_mut().copy_from_slice(&values);
+        residual
+    }
+
+    /// The residual alone at nodal potentials `a`, leaving the tangent as it was.
+    #[allow(clippy::needless_range_loop)]
+    pub fn residual(&mut self, problem: &Problem, a: &[f64]) -> Vec<f64> {
+        self.prepare_affine(problem);
+        let mut residual = self.affine_residual(a);
+        let els = &self.elements;
+        let m = els.order.n_nodes();
+        let local: Vec<[f64; MAX_NODES]> = self
+            .nonlinear
+            .par_iter()
+            .map(|&e| {
+                element_residual(
+                    &els.coords[e],
+                    &els.gather(e, a),
+                    els.order,
+                    problem.mesh.symmetry,
+                    els.placement(e),
+                    element_load(els.kinds[e], problem, &self.air),
+                )
+            })
+            .collect();
+        for (&e, r) in self.nonlinear.iter().zip(&local) {
+            for i in 0..m {
+                let d = self.dof_of_node[els.nodes[e][i]];
+                if d != NONE {
+                    residual[d] += r[i];
+                }
+            }
+        }
+        residual
+    }
+
+    /// Assembles the affine elements once (at zero potential) and lists the others.
+    fn prepare_affine(&mut self, problem: &Problem) {
+        if self.affine.is_some() {
+            return;
+        }
+        let (mut affine_list, mut nonlinear) = (Vec::new(), Vec::new());
+        for e in 0..self.elements.len() {
+            if element_load(self.elements.kinds[e], problem, &self.air).law.is_nonlinear() {
+                nonlinear.push(e);
+            } else {
+                affine_list.push(e);
+            }
+        }
+        let mut values = vec![0.0; self.matrix.nnz()];
+        let mut rhs = vec![0.0; self.n_dofs];
+        let zero = vec![0.0; self.dof_of_node.len()];
+        self.accumulate(problem, &zero, &affine_list, &mut values, &mut rhs);
+        self.affine = Some(AffinePart { values, rhs });
+        self.nonlinear = nonlinear;
+    }
+
+    /// r_aff(0) + K_aff a, with K_aff held as a lower triangle.
+    fn affine_residual(&self, a: &[f64]) -> Vec<f64> {
+        let Some(affine) = self.affine.as_ref() else { return vec![0.0; self.n_dofs] };
+        let mut x = vec![0.0; self.n_dofs];
+        for (n, &d) in self.dof_of_node.iter().enumerate() {
+            if d != NONE {
+                x[d] = a[n];
+            }
+        }
+        let mut y = affine.rhs.clone();
+        let (offsets, rows) = (self.matrix.col_offsets(), self.matrix.row_indices());
+        for c in 0..self.n_dofs {
+            for (&r, &v) in rows[offsets[c]..offsets[c + 1]].iter().zip(&affine.values[offsets[c]..offsets[c + 1]]) {
+                y[r] += v * x[c];
+                if r != c {
+                    y[c] += v * x[r];
+                }
+            }
+        }
+        y
+    }
+
+    /// Adds the tangent and residual of the listed elements.
+    fn accumulate(&mut self, problem: &Problem, a: &[f64], which: &[usize], values: &mut [f64], residual: &mut [f64]) {
         let symmetry = problem.mesh.symmetry;
         let els = &self.elements;
         let m = els.order.n_nodes();
-        let values = self.matrix.values_mut();
-        values.iter_mut().for_each(|v| *v = 0.0);
-        let mut residual = vec![0.0; self.n_dofs];
         let air = &self.air;
-        for start in (0..els.len()).step_by(BLOCK) {
-            let end = (start + BLOCK).min(els.len());
-            (start..end)
-                .into_par_iter()
-                .map(|e| {
+        for chunk in which.chunks(BLOCK) {
+            chunk
+                .par_iter()
+                .map(|&e| {
                     let load = element_load(els.kinds[e], problem, air);
                     element_system(&els.coords[e], &els.gather(e, a), els.order, symmetry, els.placement(e), load)
                 })
                 .collect_into_vec(&mut self.block);
-            for (off, (k, r)) in self.block.iter().enumerate() {
-                let e = start + off;
+            for (&e, (k, r)) in chunk.iter().zip(&self.block) {
                 let slots = &self.scatter[MAX_NODES * MAX_NODES * e..MAX_NODES * MAX_NODES * (e + 1)];
                 for i in 0..m {
                     for j in 0..m {
@@ -251,39 +343,13 @@ impl System {
                 }
             }
         }
-        residual
     }
 }
 
-impl System {
-    /// The residual alone at nodal potentials `a`, leaving the tangent as it was.
-    pub fn residual(&self, problem: &Problem, a: &[f64]) -> Vec<f64> {
-        let els = &self.elements;
-        let m = els.order.n_nodes();
-        let local: Vec<[f64; MAX_NODES]> = (0..els.len())
-            .into_par_iter()
-            .map(|e| {
-                element_residual(
-                    &els.coords[e],
-                    &els.gather(e, a),
-                    els.order,
-                    problem.mesh.symmetry,
-                    els.placement(e),
-                    element_load(els.kinds[e], problem, &self.air),
-                )
-            })
-            .collect();
-        let mut residual = vec![0.0; self.n_dofs];
-        for (e, r) in local.iter().enumerate() {
-            for i in 0..m {
-                let d = self.dof_of_node[els.nodes[e][i]];
-                if d != NONE {
-                    residual[d] += r[i];
-                }
-            }
-        }
-        residual
-    }
+/// The tangent values and zero-potential residual of the affine elements.
+struct AffinePart {
+    values: Vec<f64>,
+    rhs: Vec<f64>,
 }
 
 /// Law, current and background field of an element.

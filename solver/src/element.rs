@@ -65,8 +65,9 @@ pub fn for_each_point(x: &[[f64; 2]; 3], order: ElementOrder, symmetry: Symmetry
         Symmetry::Planar => &DEGREE2,
         Symmetry::Axisymmetric => &DEGREE5,
     };
+    let geometry = barycentric_gradients(x);
     for (lam, w) in rule.points.iter().zip(rule.weights) {
-        f(&point_op(x, order, symmetry, placement, *lam, *w));
+        f(&point_op_in(x, geometry, order, symmetry, placement, *lam, *w));
     }
 }
 
@@ -106,7 +107,19 @@ pub fn barycentric_gradients(x: &[[f64; 2]; 3]) -> ([[f64; 2]; 3], f64) {
 /// The operator at barycentric point `lam`, with integration weight `w` (a
 /// fraction of the area; pass 1 to get the density per unit area).
 pub fn point_op(x: &[[f64; 2]; 3], order: ElementOrder, symmetry: Symmetry, placement: Placement, lam: [f64; 3], w: f64) -> PointOp {
-    let (grad_lam, area) = barycentric_gradients(x);
+    point_op_in(x, barycentric_gradients(x), order, symmetry, placement, lam, w)
+}
+
+/// `point_op` with the element's barycentric gradients and area already known.
+fn point_op_in(
+    x: &[[f64; 2]; 3],
+    (grad_lam, area): ([[f64; 2]; 3], f64),
+    order: ElementOrder,
+    symmetry: Symmetry,
+    placement: Placement,
+    lam: [f64; 3],
+    w: f64,
+) -> PointOp {
     let (n, dn) = shape(order, lam, grad_lam);
     let len = order.n_nodes();
     let p = [0, 1].map(|k| lam[0] * x[0][k] + lam[1] * x[1][k] + lam[2] * x[2][k]);
