@@ -22,6 +22,17 @@ struct Common {
     quiet: bool,
 }
 
+/// Inputs shared by the commands that read a case.
+#[derive(Args, Clone)]
+struct CaseInputs {
+    /// Override a parameter: --set gap=2.5 (repeatable).
+    #[arg(long = "set", value_name = "NAME=VALUE")]
+    set: Vec<String>,
+    /// Refuse meshes with more triangles than this.
+    #[arg(long)]
+    max_elements: Option<usize>,
+}
+
 #[derive(Subcommand)]
 enum Command {
     /// Mesh, solve and write results (every sweep variant).
@@ -30,12 +41,8 @@ enum Command {
         /// Output folder (default: <case name>-results in the current folder).
         #[arg(short, long)]
         output: Option<PathBuf>,
-        /// Override a parameter: --set gap=2.5 (repeatable).
-        #[arg(long = "set", value_name = "NAME=VALUE")]
-        set: Vec<String>,
-        /// Refuse meshes with more triangles than this.
-        #[arg(long)]
-        max_elements: Option<usize>,
+        #[command(flatten)]
+        inputs: CaseInputs,
         /// Solve only every N-th sweep variant starting at K (K/N, from 0).
         #[arg(long, value_name = "K/N")]
         shard: Option<String>,
@@ -52,10 +59,8 @@ enum Command {
         /// Write a JUnit XML report of the expectations.
         #[arg(long)]
         junit: Option<PathBuf>,
-        #[arg(long = "set", value_name = "NAME=VALUE")]
-        set: Vec<String>,
-        #[arg(long)]
-        max_elements: Option<usize>,
+        #[command(flatten)]
+        inputs: CaseInputs,
         #[command(flatten)]
         common: Common,
     },
@@ -64,10 +69,8 @@ enum Command {
         case: PathBuf,
         #[arg(short, long)]
         output: Option<PathBuf>,
-        #[arg(long = "set", value_name = "NAME=VALUE")]
-        set: Vec<String>,
-        #[arg(long)]
-        max_elements: Option<usize>,
+        #[command(flatten)]
+        inputs: CaseInputs,
         #[command(flatten)]
         common: Common,
     },
@@ -94,26 +97,13 @@ fn main() {
         Command::Solve {
             case,
             output,
-            set,
-            max_elements,
+            inputs,
             shard,
             force,
             common,
-        } => commands::solve(&case, output, &set, max_elements, shard.as_deref(), force, common.quiet),
-        Command::Check {
-            cases,
-            junit,
-            set,
-            max_elements,
-            common,
-        } => commands::check(&cases, junit, &set, max_elements, common.quiet),
-        Command::Mesh {
-            case,
-            output,
-            set,
-            max_elements,
-            common,
-        } => commands::mesh(&case, output, &set, max_elements, common.quiet),
+        } => commands::solve(&case, output, &inputs.set, inputs.max_elements, shard.as_deref(), force, common.quiet),
+        Command::Check { cases, junit, inputs, common } => commands::check(&cases, junit, &inputs.set, inputs.max_elements, common.quiet),
+        Command::Mesh { case, output, inputs, common } => commands::mesh(&case, output, &inputs.set, inputs.max_elements, common.quiet),
         Command::Materials { name, plot } => commands::materials(name.as_deref(), plot),
         Command::Merge { folders, output } => commands::merge(&folders, &output),
     };

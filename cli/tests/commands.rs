@@ -131,15 +131,21 @@ fn check_passes_fails_and_writes_junit() {
     let _ = std::fs::remove_dir_all(&dir);
 }
 
-#[test]
-fn a_failed_run_leaves_earlier_results_intact() {
-    let dir = temp("intact");
+/// A small case solved once into `out`: (folder, case file, output folder, results.json bytes).
+fn solved_once(name: &str) -> (PathBuf, PathBuf, PathBuf, Vec<u8>) {
+    let dir = temp(name);
     let case = dir.join("case.toml");
     std::fs::write(&case, CHECKED.replace("BOUND", "1 mT")).unwrap();
     let out = dir.join("out");
-    let (code, _) = run(exe().args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()]));
-    assert_eq!(code, 0);
+    let (code, text) = run(exe().args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()]));
+    assert_eq!(code, 0, "{text}");
     let before = std::fs::read(out.join("results.json")).unwrap();
+    (dir, case, out, before)
+}
+
+#[test]
+fn a_failed_run_leaves_earlier_results_intact() {
+    let (dir, case, out, before) = solved_once("intact");
     std::fs::write(&case, CHECKED.replace("BOUND", "1 mT").replace("N42", "N4")).unwrap();
     let (code, _) = run(exe().args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()]));
     assert_eq!(code, 2);
@@ -149,13 +155,7 @@ fn a_failed_run_leaves_earlier_results_intact() {
 
 #[test]
 fn an_interrupted_solve_leaves_earlier_results_byte_identical() {
-    let dir = temp("sigint");
-    let case = dir.join("case.toml");
-    std::fs::write(&case, CHECKED.replace("BOUND", "1 mT")).unwrap();
-    let out = dir.join("out");
-    let (code, _) = run(exe().args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()]));
-    assert_eq!(code, 0);
-    let before = std::fs::read(out.join("results.json")).unwrap();
+    let (dir, case, out, before) = solved_once("sigint");
     // A much finer mesh makes the solve long enough to interrupt midway.
     std::fs::write(
         &case,

@@ -197,6 +197,20 @@ pub struct ElementLoad<'a> {
 /// Local tangent matrix and residual of one element.
 pub type LocalSystem = ([[f64; MAX_NODES]; MAX_NODES], [f64; MAX_NODES]);
 
+/// H at a quadrature point, less the background's nu0 B_bg, with the law's response.
+fn point_field(op: &PointOp, a: &[f64; MAX_NODES], load: &ElementLoad) -> ([f64; 2], crate::material::FieldResponse) {
+    let b = flux_density(op, a, load.background);
+    let resp = load.law.response(b);
+    ([resp.h[0] - NU0 * load.background[0], resp.h[1] - NU0 * load.background[1]], resp)
+}
+
+/// Adds w (G^T h - N J) at one point to the element residual.
+fn add_residual(r: &mut [f64; MAX_NODES], op: &PointOp, h: [f64; 2], load: &ElementLoad) {
+    for i in 0..op.len {
+        r[i] += op.weight * (op.g[0][i] * h[0] + op.g[1][i] * h[1] - op.n[i] * load.current_density);
+    }
+}
+
 /// Element residual r_i = sum w (G^T (H - nu0 B_bg) - N_i J) and tangent K = sum w G^T dH/dB G.
 #[allow(non_snake_case, clippy::needless_range_loop)]
 pub fn element_system(
@@ -210,11 +224,9 @@ pub fn element_system(
     let mut K = [[0.0; MAX_NODES]; MAX_NODES];
     let mut r = [0.0; MAX_NODES];
     for_each_point(x, order, symmetry, placement, |op| {
-        let B = flux_density(op, a, load.background);
-        let resp = load.law.response(B);
-        let hr = [resp.h[0] - NU0 * load.background[0], resp.h[1] - NU0 * load.background[1]];
+        let (h, resp) = point_field(op, a, &load);
+        add_residual(&mut r, op, h, &load);
         for i in 0..op.len {
-            r[i] += op.weight * (op.g[0][i] * hr[0] + op.g[1][i] * hr[1] - op.n[i] * load.current_density);
             let tg = [
                 resp.dh_db[0][0] * op.g[0][i] + resp.dh_db[0][1] * op.g[1][i],
                 resp.dh_db[1][0] * op.g[0][i] + resp.dh_db[1][1] * op.g[1][i],
@@ -228,7 +240,6 @@ pub fn element_system(
 }
 
 /// The element residual alone (line-search trials need no tangent).
-#[allow(clippy::needless_range_loop)]
 pub fn element_residual(
     x: &[[f64; 2]; 3],
     a: &[f64; MAX_NODES],
@@ -238,13 +249,6 @@ pub fn element_residual(
     load: ElementLoad,
 ) -> [f64; MAX_NODES] {
     let mut r = [0.0; MAX_NODES];
-    for_each_point(x, order, symmetry, placement, |op| {
-        let b = flux_density(op, a, load.background);
-        let h = load.law.response(b).h;
-        let hr = [h[0] - NU0 * load.background[0], h[1] - NU0 * load.background[1]];
-        for i in 0..op.len {
-            r[i] += op.weight * (op.g[0][i] * hr[0] + op.g[1][i] * hr[1] - op.n[i] * load.current_density);
-        }
-    });
+    for_each_point(x, order, symmetry, placement, |op| add_residual(&mut r, op, point_field(op, a, &load).0, &load));
     r
 }
