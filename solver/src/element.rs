@@ -205,6 +205,7 @@ fn point_field(op: &PointOp, a: &[f64; MAX_NODES], load: &ElementLoad) -> ([f64;
 }
 
 /// Adds w (G^T h - N J) at one point to the element residual.
+#[allow(clippy::needless_range_loop)]
 fn add_residual(r: &mut [f64; MAX_NODES], op: &PointOp, h: [f64; 2], load: &ElementLoad) {
     for i in 0..op.len {
         r[i] += op.weight * (op.g[0][i] * h[0] + op.g[1][i] * h[1] - op.n[i] * load.current_density);
