@@ -61,3 +61,40 @@ fn report_pictures_parse_and_have_their_parts() {
     }
     let _ = std::fs::remove_dir_all(&out);
 }
+
+#[test]
+fn the_field_map_rasterises_to_png_with_the_field_drawn() {
+    let case = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/speaker-motor.toml");
+    let out = std::env::temp_dir().join(format!("lodestone-raster-{}", std::process::id()));
+    let status = Command::new(env!("CARGO_BIN_EXE_lodestone"))
+        .args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()])
+        .status()
+        .unwrap();
+    assert!(status.success());
+    let svg = std::fs::read(out.join("field-map.svg")).unwrap();
+    let tree = resvg::usvg::Tree::from_data(&svg, &resvg::usvg::Options::default()).expect("the SVG parses for rendering");
+    let size = tree.size().to_int_size();
+    let mut pixmap = resvg::tiny_skia::Pixmap::new(size.width(), size.height()).unwrap();
+    resvg::render(&tree, resvg::tiny_skia::Transform::identity(), &mut pixmap.as_mut());
+    let png = pixmap.encode_png().expect("PNG encoding");
+    assert!(png.starts_with(&[0x89, b'P', b'N', b'G']));
+    // The plot area is painted (white only along the part outlines), and its colours vary.
+    let (w, h) = (pixmap.width() as usize, pixmap.height() as usize);
+    let px = |x: usize, y: usize| pixmap.pixels()[y * w + x];
+    let mut colours = std::collections::BTreeSet::new();
+    let (mut white, mut total) = (0, 0);
+    for y in (10..h - 60).step_by(7) {
+        for x in (10..w - 140).step_by(7) {
+            let p = px(x, y);
+            total += 1;
+            if p.red() > 250 && p.green() > 250 && p.blue() > 250 {
+                white += 1;
+            }
+            colours.insert((p.red() / 16, p.green() / 16, p.blue() / 16));
+        }
+    }
+    assert!(white * 50 < total, "{white} of {total} samples white");
+    assert!(colours.len() >= 5, "only {} colours in the map", colours.len());
+    std::fs::write(out.join("field-map.png"), &png).unwrap();
+    let _ = std::fs::remove_dir_all(&out);
+}

@@ -125,7 +125,7 @@ fn sweep_benchmark() {
     };
     let dir = std::env::temp_dir().join(format!("lodestone-sweep-bench-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
-    let text = case(false, "low-carbon-steel", 0.75)
+    let text = case(false, "low-carbon-steel", 0.68)
         .replace("[mesh]", "[params]\ngap = 1.0\n[sweep]\ngap = { from = 0.5, to = 4, steps = 16 }\n[mesh]")
         .replace(
             "rect = { from = [0, 11], to = [40, 17] }",
@@ -165,7 +165,33 @@ fn sweep_benchmark() {
     let _ = std::fs::remove_dir_all(&dir);
 }
 
+/// Meshing alone (one thread: the mesher is sequential), at about 1e5 and
+/// 1e6 triangles; the process's peak memory is read after each.
+fn mesh_benchmark() {
+    println!("\n| mesh | triangles | seconds | triangles/s | peak MB |\n|---|---|---|---|---|");
+    for size in [0.45, 0.14] {
+        let dir = std::env::temp_dir().join(format!("lodestone-mesh-bench-{}", std::process::id()));
+        std::fs::create_dir_all(&dir).unwrap();
+        let path = dir.join("case.toml");
+        std::fs::write(&path, case(false, "low-carbon-steel", size)).unwrap();
+        let loaded = lodestone::run::load(&path).unwrap_or_else(|f| panic!("{}", f.message()));
+        let v = lodestone::run::variants(&loaded, &Default::default()).unwrap_or_else(|f| panic!("{}", f.message()));
+        let model = lodestone::run::resolve(&loaded, &v[0].params, &Default::default()).unwrap_or_else(|f| panic!("{}", f.message()));
+        let spec = lodestone::study::mesh_spec(&model);
+        let t = Instant::now();
+        let mesh = mesher::build_mesh(&spec).unwrap();
+        let s = t.elapsed().as_secs_f64();
+        let n = mesh.triangles.len() + mesh.exterior.as_ref().map_or(0, |d| d.triangles.len());
+        println!("| size {size} mm | {n} | {s:.2} | {:.0} | {:.0} |", n as f64 / s, peak_rss_mb());
+        let _ = std::fs::remove_dir_all(&dir);
+    }
+}
+
 fn main() {
+    if std::env::args().any(|a| a == "--mesh-only") {
+        mesh_benchmark();
+        return;
+    }
     if std::env::args().any(|a| a == "--sweep-only") {
         sweep_benchmark();
         return;
