@@ -28,6 +28,10 @@ struct Work<'a> {
     constrained_axis: bool,
 }
 
+/// A pass inserting fewer than one point per this many vertices is followed
+/// by a local pass around the new points instead of a whole-mesh pass.
+const LOCAL_PASS_SHARE: usize = 100;
+
 /// Rounds coordinates below any sensible geometry scale to zero, so that
 /// points meant to be on the axis are exactly on it.
 fn snap(v: f64) -> f64 {
@@ -216,37 +220,69 @@ impl Work<'_> {
     }
 
     /// Inserts the centroid of every triangle longer than its target size, pass after pass.
+    /// The centroid to insert in a face that is longer than its target size
+    /// (and not held by a long constraint edge), with the new point's size.
+    fn oversize(
+        &self,
+        face: spade::handles::FaceHandle<'_, spade::handles::InnerTag, Point2<f64>, (), spade::CdtEdge<()>, ()>,
+        region_size: f64,
+    ) -> Option<([f64; 2], f64, FixedVertexHandle)> {
+        let vs = face.vertices();
+        let pos = vs.map(|v| [v.position().x, v.position().y]);
+        let hs = vs.map(|v| self.size[v.fix().index()]);
+        let centroid = [(pos[0][0] + pos[1][0] + pos[2][0]) / 3.0, (pos[0][1] + pos[1][1] + pos[2][1]) / 3.0];
+        let rs = region_size.min(self.probe_size_at(centroid));
+        let target = hs.iter().copied().fold(rs, f64::min);
+        let edges = face.adjacent_edges();
+        let lens = edges.map(|e| {
+            let [p, q] = e.positions();
+            (p.x - q.x).hypot(p.y - q.y)
+        });
+        let k = (0..3).fold(0, |m, i| if lens[i] > lens[m] { i } else { m });
+        // A long constraint edge (only where the pre-split missed a size) is
+        // left as it is: a centroid would not shorten it.
+        if lens[k] <= target || edges[k].is_constraint_edge() {
+            return None;
+        }
+        let grown = (0..3).map(|k| hs[k] + (self.grading - 1.0) * dist(centroid, pos[k])).fold(rs, f64::min);
+        Some((centroid, grown, vs[0].fix()))
+    }
+
+    /// Inserts the centroid of every triangle longer than its target size,
+    /// pass after pass: whole-mesh passes while many triangles are oversize,
+    /// then passes over the faces around the points just inserted.
     fn refine_to_size(&mut self, max_vertices: usize, max_triangles: usize) -> Result<(), MeshError> {
+        let mut recent: Option<Vec<FixedVertexHandle>> = None;
         loop {
-            let region_size = self.region_sizes();
-            let mut pending = Vec::new();
-            for face in self.cdt.inner_faces() {
-                let vs = face.vertices();
-                let pos = vs.map(|v| [v.position().x, v.position().y]);
-                let hs = vs.map(|v| self.size[v.fix().index()]);
-                let rs = region_size[face.fix().index()];
-                let centroid = [(pos[0][0] + pos[1][0] + pos[2][0]) / 3.0, (pos[0][1] + pos[1][1] + pos[2][1]) / 3.0];
-                let probe = self.probe_size_at(centroid);
-                let target = hs.iter().copied().fold(rs.min(probe), f64::min);
-                let edges = face.adjacent_edges();
-                let lens = edges.map(|e| {
-                    let [p, q] = e.positions();
-                    (p.x - q.x).hypot(p.y - q.y)
-                });
-                let k = (0..3).fold(0, |m, i| if lens[i] > lens[m] { i } else { m });
-                if lens[k] > target {
-                    // A long constraint edge (only where the pre-split missed a
-                    // size) is left as it is: a centroid would not shorten it.
-                    if edges[k].is_constraint_edge() {
-                        continue;
-                    }
-                    let c = centroid;
-                    let grown = (0..3)
-                        .map(|k| hs[k] + (self.grading - 1.0) * dist(c, pos[k]))
-                        .fold(rs.min(self.probe_size_at(c)), f64::min);
-                    pending.push((c, grown, vs[0].fix()));
+            let pending: Vec<([f64; 2], f64, FixedVertexHandle)> = match &recent {
+                None => {
+                    let region_size = self.region_sizes();
+                    self.cdt.inner_faces().filter_map(|f| self.oversize(f, region_size[f.fix().index()])).collect()
                 }
-            }
+                Some(vertices) => {
+                    let mut faces: Vec<_> = vertices
+                        .iter()
+                        .flat_map(|&v| {
+                            self.cdt
+                                .vertex(v)
+                                .out_edges()
+                                .filter_map(|e| e.face().as_inner())
+                                .map(|f| f.fix())
+                                .collect::<Vec<_>>()
+                        })
+                        .collect();
+                    faces.sort_unstable();
+                    faces.dedup();
+                    faces
+                        .into_iter()
+                        .filter_map(|f| {
+                            let face = self.cdt.face(f);
+                            let size = self.region_size_at(face.positions());
+                            self.oversize(face, size)
+                        })
+                        .collect()
+                }
+            };
             if pending.is_empty() {
                 return Ok(());
             }
@@ -257,13 +293,25 @@ impl Work<'_> {
                 });
             }
             let before = self.cdt.num_vertices();
-            for (c, s, hint) in pending {
-                self.insert(c, s, Some(hint))?;
+            let mut inserted = Vec::with_capacity(pending.len());
+            for (c, s, hint) in &pending {
+                inserted.push(self.insert(*c, *s, Some(*hint))?);
             }
             if self.cdt.num_vertices() == before {
                 return Ok(());
             }
+            // Few insertions: the next pass need only look around them.
+            recent = (inserted.len() * LOCAL_PASS_SHARE < self.cdt.num_vertices()).then_some(inserted);
         }
+    }
+
+    /// Target size of the region holding a triangle (the last part holding its centroid).
+    fn region_size_at(&self, p: [Point2<f64>; 3]) -> f64 {
+        let c = [(p[0].x + p[1].x + p[2].x) / 3.0, (p[0].y + p[1].y + p[2].y) / 3.0];
+        self.polygons
+            .iter()
+            .rposition(|poly| point_in_polygon(poly, c))
+            .map_or(f64::INFINITY, |i| self.part_sizes[i])
     }
 
     fn refine_angles(&mut self, min_angle: f64, max_vertices: usize, max_triangles: usize) -> Result<(), MeshError> {

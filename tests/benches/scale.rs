@@ -169,7 +169,7 @@ fn sweep_benchmark() {
 /// 1e6 triangles; the process's peak memory is read after each.
 fn mesh_benchmark() {
     println!("\n| mesh | triangles | seconds | triangles/s | peak MB |\n|---|---|---|---|---|");
-    for size in [0.45, 0.14] {
+    for size in [0.3, 0.07] {
         let dir = std::env::temp_dir().join(format!("lodestone-mesh-bench-{}", std::process::id()));
         std::fs::create_dir_all(&dir).unwrap();
         let path = dir.join("case.toml");
