@@ -125,24 +125,38 @@ fn band_weight(solution: &Solution, in_set_node: &[bool], other: &[bool], in_set
             hi[k] = hi[k].max(pos[a][k] + width);
         }
     }
-    for e in 0..els.n_physical {
-        if els.kinds[e] != ElementKind::Air {
-            continue;
-        }
-        for k in 0..3 {
-            let n = els.nodes[e][k];
+    // Air corner nodes inside the band's box, then their distance to the set (in parallel).
+    let mut candidates: Vec<usize> = (0..els.n_physical)
+        .filter(|&e| els.kinds[e] == ElementKind::Air)
+        .flat_map(|e| [els.nodes[e][0], els.nodes[e][1], els.nodes[e][2]])
+        .filter(|&n| {
             let p = pos[n];
-            if in_set_node[n] || other[n] || weight[n] > 0.0 || p[0] < lo[0] || p[1] < lo[1] || p[0] > hi[0] || p[1] > hi[1] {
-                continue;
-            }
-            let d = boundary
-                .iter()
-                .map(|&(a, b)| mesher::geometry::point_segment_distance(p, pos[a], pos[b]))
-                .fold(f64::INFINITY, f64::min);
-            weight[n] = (1.0 - d / width).max(0.0);
-        }
+            !in_set_node[n] && !other[n] && p[0] >= lo[0] && p[1] >= lo[1] && p[0] <= hi[0] && p[1] <= hi[1]
+        })
+        .collect();
+    candidates.sort_unstable();
+    candidates.dedup();
+    use rayon::prelude::*;
+    let values: Vec<f64> = candidates
+        .par_iter()
+        .map(|&n| {
+            let d2 = boundary.iter().map(|&(a, b)| segment_distance_squared(pos[n], pos[a], pos[b])).fold(f64::INFINITY, f64::min);
+            (1.0 - d2.sqrt() / width).max(0.0)
+        })
+        .collect();
+    for (n, v) in candidates.into_iter().zip(values) {
+        weight[n] = v;
     }
     weight
+}
+
+/// Squared distance from p to the segment ab.
+fn segment_distance_squared(p: [f64; 2], a: [f64; 2], b: [f64; 2]) -> f64 {
+    let ab = [b[0] - a[0], b[1] - a[1]];
+    let len2 = ab[0] * ab[0] + ab[1] * ab[1];
+    let t = if len2 > 0.0 { (((p[0] - a[0]) * ab[0] + (p[1] - a[1]) * ab[1]) / len2).clamp(0.0, 1.0) } else { 0.0 };
+    let d = [p[0] - a[0] - t * ab[0], p[1] - a[1] - t * ab[1]];
+    d[0] * d[0] + d[1] * d[1]
 }
 
 fn dist(a: [f64; 2], b: [f64; 2]) -> f64 {
