@@ -145,12 +145,12 @@ fn add_midpoints(corners: &[[usize; 3]], coords: &[[[f64; 2]; 3]], positions: &m
 /// Nodes held at zero reduced potential: the axis, a flux-parallel box, infinity.
 fn fixed_nodes(mesh: &Mesh, els: &Elements) -> Vec<bool> {
     let mut fixed = vec![false; els.n_nodes];
-    let mut fixed_edges: Vec<(usize, usize)> = Vec::new();
+    let mut fixed_edges: std::collections::HashSet<(usize, usize)> = std::collections::HashSet::new();
     for (edge, tag) in &mesh.boundary {
         if matches!(tag, BoundaryTag::Axis | BoundaryTag::Outer) {
             fixed[edge[0]] = true;
             fixed[edge[1]] = true;
-            fixed_edges.push((edge[0].min(edge[1]), edge[0].max(edge[1])));
+            fixed_edges.insert((edge[0].min(edge[1]), edge[0].max(edge[1])));
         }
     }
     let axisym = mesh.symmetry == Symmetry::Axisymmetric;
@@ -165,7 +165,7 @@ fn fixed_nodes(mesh: &Mesh, els: &Elements) -> Vec<bool> {
             for (k, [a, b]) in EDGES.iter().enumerate() {
                 let (na, nb) = (els.nodes[e][*a], els.nodes[e][*b]);
                 let on_axis = axisym && x[*a][0] <= 0.0 && x[*b][0] <= 0.0;
-                if on_axis || (e < els.n_physical && fixed_edges.contains(&(na.min(nb), na.max(nb)))) {
+                if on_axis || (e < els.n_physical && fixed[na] && fixed[nb] && fixed_edges.contains(&(na.min(nb), na.max(nb)))) {
                     fixed[els.nodes[e][3 + k]] = true;
                 }
             }
@@ -417,14 +417,23 @@ fn build_pattern(els: &Elements, dof_of_node: &[usize], n: usize) -> (SparsityPa
             }
         }
     }
+    // Sort each column's rows (in parallel), then drop duplicates.
+    {
+        let mut slices: Vec<&mut [usize]> = Vec::with_capacity(n);
+        let mut rest = &mut rows[..];
+        for c in 0..n {
+            let (head, tail) = rest.split_at_mut(start[c + 1] - start[c]);
+            slices.push(head);
+            rest = tail;
+        }
+        slices.par_iter_mut().for_each(|col| col.sort_unstable());
+    }
     let mut offsets = Vec::with_capacity(n + 1);
     let mut indices = Vec::with_capacity(rows.len() / 2);
     offsets.push(0);
     for c in 0..n {
-        let col = &mut rows[start[c]..start[c + 1]];
-        col.sort_unstable();
         let mut last = NONE;
-        for &r in col.iter() {
+        for &r in &rows[start[c]..start[c + 1]] {
             if r != last {
                 indices.push(r);
                 last = r;

@@ -188,6 +188,11 @@ fn mesh_benchmark() {
 }
 
 fn main() {
+    if std::env::args().any(|a| a == "--linear-1e6") {
+        let r = run("axisymmetric linear 1e6", false, "linear-steel", 0.107);
+        println!("{} unknowns: total {:.2} s; symbolic {:.2} + numeric {:.2} = {:.2} s; the rest {:.2} s (mesh {:.2}, pattern {:.2}, assembly {:.2}, solve {:.2}, post {:.2}, output {:.2})", r.unknowns, r.total, r.symbolic, r.numeric, r.symbolic + r.numeric, r.total - r.symbolic - r.numeric, r.mesh, r.pattern, r.assembly, r.solve, r.post, r.output);
+        return;
+    }
     if std::env::args().any(|a| a == "--mesh-only") {
         mesh_benchmark();
         return;

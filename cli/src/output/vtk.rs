@@ -2,7 +2,6 @@
 
 use crate::case::Model;
 use mesher::{Mesh, Region};
-use solver::assembly::ElementKind;
 use solver::Solution;
 use vtkio::model::{Attribute, Attributes, ByteOrder, CellType, Cells, DataSet, IOBuffer, UnstructuredGridPiece, Version, VertexNumbers, Vtk};
 
@@ -60,25 +59,19 @@ pub fn field_vtu(model: &Model, sol: &Solution) -> Result<Vec<u8>, String> {
     let mesh = sol.problem.mesh;
     let potential: Vec<f64> = (0..mesh.n_physical).map(|n| sol.node_potential(n)).collect();
     let n = mesh.triangles.len();
-    let (mut b, mut h, mut bm, mut mu) = (
-        Vec::with_capacity(3 * n),
-        Vec::with_capacity(3 * n),
-        Vec::with_capacity(n),
-        Vec::with_capacity(n),
-    );
-    for e in 0..n {
-        let be = sol.element_b(e);
-        let law = sol.law(sol.elements.kinds[e]);
-        let he = law.response(be).h;
-        b.extend([be[0], be[1], 0.0]);
-        h.extend([he[0], he[1], 0.0]);
-        bm.push(be[0].hypot(be[1]));
-        mu.push(if matches!(sol.elements.kinds[e], ElementKind::Part(_) | ElementKind::Air) {
-            law.relative_permeability(be)
-        } else {
-            1.0
-        });
-    }
+    use rayon::prelude::*;
+    let per: Vec<([f64; 2], [f64; 2], f64)> = (0..n)
+        .into_par_iter()
+        .map(|e| {
+            let be = sol.element_b(e);
+            let law = sol.law(sol.elements.kinds[e]);
+            (be, law.response(be).h, law.relative_permeability(be))
+        })
+        .collect();
+    let b: Vec<f64> = per.iter().flat_map(|p| [p.0[0], p.0[1], 0.0]).collect();
+    let h: Vec<f64> = per.iter().flat_map(|p| [p.1[0], p.1[1], 0.0]).collect();
+    let bm: Vec<f64> = per.iter().map(|p| p.0[0].hypot(p.0[1])).collect();
+    let mu: Vec<f64> = per.iter().map(|p| p.2).collect();
     let mut cell = region_arrays(model, mesh);
     cell.push(Attribute::vectors("B").with_data(b));
     cell.push(Attribute::scalars("B_magnitude", 1).with_data(bm));
