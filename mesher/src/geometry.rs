@@ -241,6 +241,11 @@ fn point_on_segment(a: [f64; 2], b: [f64; 2], p: [f64; 2]) -> bool {
 
 /// Distance from p to the segment ab.
 pub fn point_segment_distance(p: [f64; 2], a: [f64; 2], b: [f64; 2]) -> f64 {
+    point_segment_distance_squared(p, a, b).sqrt()
+}
+
+/// Squared distance from p to the segment ab (no square root, for hot loops).
+pub fn point_segment_distance_squared(p: [f64; 2], a: [f64; 2], b: [f64; 2]) -> f64 {
     let ab = [b[0] - a[0], b[1] - a[1]];
     let len2 = ab[0] * ab[0] + ab[1] * ab[1];
     let t = if len2 > 0.0 {
@@ -248,7 +253,8 @@ pub fn point_segment_distance(p: [f64; 2], a: [f64; 2], b: [f64; 2]) -> f64 {
     } else {
         0.0
     };
-    dist(p, [a[0] + t * ab[0], a[1] + t * ab[1]])
+    let d = [p[0] - a[0] - t * ab[0], p[1] - a[1] - t * ab[1]];
+    d[0] * d[0] + d[1] * d[1]
 }
 
 pub fn dist(a: [f64; 2], b: [f64; 2]) -> f64 {

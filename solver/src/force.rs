@@ -142,7 +142,7 @@ fn band_weight(solution: &Solution, in_set_node: &[bool], other: &[bool], in_set
         .map(|&n| {
             let d2 = boundary
                 .iter()
-                .map(|&(a, b)| segment_distance_squared(pos[n], pos[a], pos[b]))
+                .map(|&(a, b)| mesher::geometry::point_segment_distance_squared(pos[n], pos[a], pos[b]))
                 .fold(f64::INFINITY, f64::min);
             (1.0 - d2.sqrt() / width).max(0.0)
         })
@@ -151,19 +151,6 @@ fn band_weight(solution: &Solution, in_set_node: &[bool], other: &[bool], in_set
         weight[n] = v;
     }
     weight
-}
-
-/// Squared distance from p to the segment ab.
-fn segment_distance_squared(p: [f64; 2], a: [f64; 2], b: [f64; 2]) -> f64 {
-    let ab = [b[0] - a[0], b[1] - a[1]];
-    let len2 = ab[0] * ab[0] + ab[1] * ab[1];
-    let t = if len2 > 0.0 {
-        (((p[0] - a[0]) * ab[0] + (p[1] - a[1]) * ab[1]) / len2).clamp(0.0, 1.0)
-    } else {
-        0.0
-    };
-    let d = [p[0] - a[0] - t * ab[0], p[1] - a[1] - t * ab[1]];
-    d[0] * d[0] + d[1] * d[1]
 }
 
 fn dist(a: [f64; 2], b: [f64; 2]) -> f64 {
