@@ -27,15 +27,21 @@ fn inventory(svg: &str) -> BTreeMap<String, usize> {
     }
 }
 
+/// Solves an example case into a fresh temporary folder and returns the folder.
+fn solved(example: &str, tag: &str) -> std::path::PathBuf {
+    let case = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases").join(example);
+    let out = std::env::temp_dir().join(format!("lodestone-{tag}-{}", std::process::id()));
+    let run = Command::new(env!("CARGO_BIN_EXE_lodestone"))
+        .args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()])
+        .output()
+        .unwrap();
+    assert!(run.status.success(), "{}", String::from_utf8_lossy(&run.stderr));
+    out
+}
+
 #[test]
 fn report_pictures_parse_and_have_their_parts() {
-    let case = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/pot-magnet.toml");
-    let out = std::env::temp_dir().join(format!("lodestone-report-{}", std::process::id()));
-    let status = Command::new(env!("CARGO_BIN_EXE_lodestone"))
-        .args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()])
-        .status()
-        .unwrap();
-    assert!(status.success());
+    let out = solved("pot-magnet.toml", "report");
     let map = inventory(&std::fs::read_to_string(out.join("field-map.svg")).unwrap());
     for part in [".field", ".fluxlines", ".outlines", ".colourbar", ".axis", "text", "rect", "line"] {
         assert!(map.contains_key(part), "field map lacks {part}: {map:?}");
@@ -64,13 +70,7 @@ fn report_pictures_parse_and_have_their_parts() {
 
 #[test]
 fn the_field_map_rasterises_to_png_with_the_field_drawn() {
-    let case = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/speaker-motor.toml");
-    let out = std::env::temp_dir().join(format!("lodestone-raster-{}", std::process::id()));
-    let status = Command::new(env!("CARGO_BIN_EXE_lodestone"))
-        .args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()])
-        .status()
-        .unwrap();
-    assert!(status.success());
+    let out = solved("speaker-motor.toml", "raster");
     let svg = std::fs::read(out.join("field-map.svg")).unwrap();
     let tree = resvg::usvg::Tree::from_data(&svg, &resvg::usvg::Options::default()).expect("the SVG parses for rendering");
     let size = tree.size().to_int_size();
@@ -96,5 +96,42 @@ fn the_field_map_rasterises_to_png_with_the_field_drawn() {
     assert!(white * 50 < total, "{white} of {total} samples white");
     assert!(colours.len() >= 5, "only {} colours in the map", colours.len());
     std::fs::write(out.join("field-map.png"), &png).unwrap();
+    let _ = std::fs::remove_dir_all(&out);
+}
+
+#[test]
+fn field_vtu_reads_back_with_its_arrays() {
+    let out = solved("magnet-bare.toml", "vtu");
+    let vtk = vtkio::Vtk::import(out.join("field.vtu")).expect("field.vtu reads back");
+    let vtkio::model::DataSet::UnstructuredGrid { pieces, .. } = vtk.data else {
+        panic!("not an unstructured grid")
+    };
+    let vtkio::model::Piece::Inline(piece) = &pieces[0] else {
+        panic!("piece not inline")
+    };
+    let n_cells = piece.cells.types.len();
+    let names = |attrs: &[vtkio::model::Attribute]| -> Vec<(String, usize)> {
+        attrs
+            .iter()
+            .filter_map(|a| match a {
+                vtkio::model::Attribute::DataArray(d) => Some((d.name.clone(), d.data.len())),
+                _ => None,
+            })
+            .collect()
+    };
+    let cell = names(&piece.data.cell);
+    for (name, per_cell) in [
+        ("part", 1),
+        ("material", 1),
+        ("B", 3),
+        ("B_magnitude", 1),
+        ("H", 3),
+        ("relative_permeability", 1),
+    ] {
+        let found = cell.iter().find(|(n, _)| n == name).unwrap_or_else(|| panic!("no cell array {name}: {cell:?}"));
+        assert_eq!(found.1, per_cell * n_cells, "{name}");
+    }
+    let point = names(&piece.data.point);
+    assert!(point.iter().any(|(n, len)| n == "potential" && *len == piece.num_points()), "{point:?}");
     let _ = std::fs::remove_dir_all(&out);
 }
