@@ -63,16 +63,61 @@ fn norm(v: &[f64]) -> f64 {
 /// Solves the problem; returns the potential at every node (reduced field:
 /// the applied field's potential is not included) and the report.
 pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(usize, f64)) -> Result<(Vec<f64>, SolveReport), SolveError> {
+    let zero = vec![0.0; system.dof_of_node.len()];
+    let Some(surrogate) = toe_free(problem) else {
+        return newton_from(problem, system, zero, progress);
+    };
+    // Continuation over the low-field toe of the B-H curves: converge (loosely)
+    // with each toe replaced by its chord from the origin, then go on with
+    // the true curves from there.
+    let mut loose = surrogate.clone();
+    loose.newton.residual_tolerance = TOE_STAGE_TOLERANCE;
+    loose.newton.update_tolerance = 1.0;
+    let (start, first) = newton_from(&loose, system, zero, progress)?;
+    let (a, mut report) = newton_from(problem, system, start, &|it, r| progress(it + first.iterations, r))?;
+    report.iterations += first.iterations;
+    let mut history = first.residual_history.clone();
+    history.extend(report.residual_history.iter().skip(1));
+    report.residual_history = history;
+    report.seconds_assembly += first.seconds_assembly;
+    report.seconds_numeric += first.seconds_numeric;
+    report.seconds_solve += first.seconds_solve;
+    report.seconds_symbolic += first.seconds_symbolic;
+    Ok((a, report))
+}
+
+/// Relative residual at which the toe-free stage hands over.
+const TOE_STAGE_TOLERANCE: f64 = 1e-2;
+
+/// The problem with every curve's low-field toe replaced by the chord from
+/// the origin to the point of largest secant permeability; None when no
+/// curve has a toe.
+fn toe_free<'m>(problem: &Problem<'m>) -> Option<Problem<'m>> {
+    let mut p = problem.clone();
+    let mut changed = false;
+    for law in &mut p.laws {
+        if let crate::material::Law::Saturating(c) = law {
+            if let Some(t) = c.without_toe() {
+                *law = crate::material::Law::Saturating(std::sync::Arc::new(t));
+                changed = true;
+            }
+        }
+    }
+    changed.then_some(p)
+}
+
+/// Newton-Raphson from the potential `a` (reduced, every node).
+fn newton_from(problem: &Problem, system: &mut System, mut a: Vec<f64>, progress: &dyn Fn(usize, f64)) -> Result<(Vec<f64>, SolveReport), SolveError> {
     let mut report = SolveReport {
         n_dofs: system.n_dofs,
         ..Default::default()
     };
-    let mut a = vec![0.0; system.dof_of_node.len()];
     let t = Instant::now();
     let mut residual = system.assemble(problem, &a);
     report.seconds_assembly += t.elapsed().as_secs_f64();
-    let r0 = norm(&residual).max(f64::MIN_POSITIVE);
-    report.residual_history.push(1.0);
+    let zero = vec![0.0; a.len()];
+    let r0 = norm(&system.residual(problem, &zero)).max(f64::MIN_POSITIVE);
+    report.residual_history.push(norm(&residual) / r0);
     if system.n_dofs == 0 || norm(&residual) == 0.0 {
         report.converged = true;
         return Ok((a, report));

@@ -118,6 +118,11 @@ fn newton_converges_quadratically_on_a_saturating_pot_magnet() {
     let c2 = tail[n - 1] / (tail[n - 2] * tail[n - 2]);
     assert!(c2 <= 10.0 * c1, "not quadratic: C {c1:.3e} then {c2:.3e} in {h:?}");
     assert!(r.parts["cup"].saturated == Some(true), "the case is meant to saturate the cup");
+    assert!(
+        r.solve.iterations <= 15,
+        "{} Newton iterations from the linear start: {h:?}",
+        r.solve.iterations
+    );
 }
 
 /// Flux density in the gap of a C-shaped yoke (planar) driven by `ni` ampere-turns.
