@@ -65,7 +65,7 @@ fn norm(v: &[f64]) -> f64 {
 pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(usize, f64)) -> Result<(Vec<f64>, SolveReport), SolveError> {
     let zero = vec![0.0; system.dof_of_node.len()];
     let Some(surrogate) = toe_free(problem) else {
-        return newton_from(problem, system, zero, progress);
+        return newton_from(problem, system, zero, &mut None, progress);
     };
     // Continuation over the low-field toe of the B-H curves: converge (loosely)
     // with each toe replaced by its chord from the origin, then go on with
@@ -73,8 +73,9 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
     let mut loose = surrogate.clone();
     loose.newton.residual_tolerance = TOE_STAGE_TOLERANCE;
     loose.newton.update_tolerance = 1.0;
-    let (start, first) = newton_from(&loose, system, zero, progress)?;
-    let (a, mut report) = newton_from(problem, system, start, &|it, r| progress(it + first.iterations, r))?;
+    let mut analysis = None;
+    let (start, first) = newton_from(&loose, system, zero, &mut analysis, progress)?;
+    let (a, mut report) = newton_from(problem, system, start, &mut analysis, &|it, r| progress(it + first.iterations, r))?;
     report.iterations += first.iterations;
     let mut history = first.residual_history.clone();
     history.extend(report.residual_history.iter().skip(1));
@@ -107,7 +108,14 @@ fn toe_free<'m>(problem: &Problem<'m>) -> Option<Problem<'m>> {
 }
 
 /// Newton-Raphson from the potential `a` (reduced, every node).
-fn newton_from(problem: &Problem, system: &mut System, mut a: Vec<f64>, progress: &dyn Fn(usize, f64)) -> Result<(Vec<f64>, SolveReport), SolveError> {
+/// `analysis` keeps the symbolic factorization for a later stage on the same pattern.
+fn newton_from(
+    problem: &Problem,
+    system: &mut System,
+    mut a: Vec<f64>,
+    analysis: &mut Option<CholeskySolver>,
+    progress: &dyn Fn(usize, f64),
+) -> Result<(Vec<f64>, SolveReport), SolveError> {
     let mut report = SolveReport {
         n_dofs: system.n_dofs,
         ..Default::default()
@@ -123,7 +131,10 @@ fn newton_from(problem: &Problem, system: &mut System, mut a: Vec<f64>, progress
         return Ok((a, report));
     }
     let t = Instant::now();
-    let chol = CholeskySolver::analyse(&system.matrix).map_err(SolveError::Linear)?;
+    if analysis.is_none() {
+        *analysis = Some(CholeskySolver::analyse(&system.matrix).map_err(SolveError::Linear)?);
+    }
+    let chol = analysis.as_ref().expect("analysed above");
     report.seconds_symbolic = t.elapsed().as_secs_f64();
     let linear = !problem.is_nonlinear();
     let settings = problem.newton;
