@@ -152,13 +152,7 @@ pub fn check(cases: &[PathBuf], junit: Option<PathBuf>, set: &[String], max_elem
     }
     progress.finish();
     if let Some(path) = junit {
-        let xml = crate::junit::report(&suites);
-        let dir = path
-            .parent()
-            .filter(|p| !p.as_os_str().is_empty())
-            .map_or_else(|| PathBuf::from("."), Path::to_path_buf);
-        let name = path.file_name().map_or_else(|| PathBuf::from("junit.xml"), PathBuf::from);
-        if let Err(e) = output::write_all(&dir, &vec![(name, xml.into_bytes())]) {
+        if let Err(e) = output::write_file(&path, crate::junit::report(&suites).into_bytes()) {
             eprintln!("error: {e}");
             return 2;
         }
@@ -266,13 +260,7 @@ pub fn materials(name: Option<&str>, plot: Option<PathBuf>) -> i32 {
     };
     print!("{}", crate::library_text::entry(&entry));
     if let Some(path) = plot {
-        let svg = crate::output::svg::material_plot(&entry);
-        let dir = path
-            .parent()
-            .filter(|p| !p.as_os_str().is_empty())
-            .map_or_else(|| PathBuf::from("."), Path::to_path_buf);
-        let file = path.file_name().map_or_else(|| PathBuf::from("material.svg"), PathBuf::from);
-        if let Err(e) = output::write_all(&dir, &vec![(file, svg.into_bytes())]) {
+        if let Err(e) = output::write_file(&path, crate::output::svg::material_plot(&entry).into_bytes()) {
             eprintln!("error: {e}");
             return 2;
         }

@@ -165,8 +165,7 @@ pub fn solve_variant(loaded: &Loaded, variant: &Variant, limits: &Limits, progre
         progress.note(&format!("{tag}: Newton iteration {it}, relative residual {r:.3e}"))
     })
     .map_err(|e| Failure::Input(format!("error: {}: {e}\n", loaded.path.display())))?;
-    let results = post::results(&model, &sol, 0.0);
-    let mut results = results;
+    let mut results = post::results(&model, &sol, 0.0);
     results.solve.seconds = start.elapsed().as_secs_f64();
     if !variant.label.is_empty() {
         results.variant = Some(post::VariantInfo {

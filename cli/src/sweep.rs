@@ -107,7 +107,6 @@ pub fn unit_of(name: &str) -> &'static str {
         "stray" if last == "moment" => "A m2",
         "stray" if name.contains("h_at") => "A/m",
         "stray" | "reach" => "m",
-        "magnet" if last == "permeance" => "1",
         "magnet" => "1",
         _ => "",
     }

@@ -35,7 +35,7 @@ const RING_GROWTH: f64 = 1.3;
 /// Builds the disk (half-disk when `half`) from the domain's rim nodes, given
 /// as (global id, position on the circle).
 pub fn build(center: [f64; 2], radius: f64, rim: &[(usize, [f64; 2])], half: bool, first_free_id: usize) -> Result<ExteriorDisk, MeshError> {
-    let spacing = rim_spacing(rim, center, radius, half);
+    let spacing = rim_spacing(rim, radius, half);
     // Rim points go onto the exact circle (same angle): split points of the
     // domain's rim chords lie a sagitta inside it, and nearly collinear hull
     // points would give the exterior zero-area slivers.
@@ -83,9 +83,8 @@ fn onto_circle(p: [f64; 2], c: [f64; 2], radius: f64) -> [f64; 2] {
     [r, c[1] + (p[1] - c[1]) * radius / d]
 }
 
-fn rim_spacing(rim: &[(usize, [f64; 2])], c: [f64; 2], radius: f64, half: bool) -> f64 {
+fn rim_spacing(rim: &[(usize, [f64; 2])], radius: f64, half: bool) -> f64 {
     let arc = if half { std::f64::consts::PI } else { 2.0 * std::f64::consts::PI } * radius;
-    let _ = c;
     arc / (rim.len().max(2) - usize::from(half)) as f64
 }
 

@@ -40,19 +40,6 @@ impl Shape {
             }
         }
     }
-
-    /// True when the point lies inside or on the shape.
-    pub fn contains(&self, p: [f64; 2]) -> bool {
-        match self {
-            Shape::Polygon(poly) => point_in_polygon(poly, p),
-            Shape::Rect { from, to } => {
-                let (x0, x1) = (from[0].min(to[0]), from[0].max(to[0]));
-                let (y0, y1) = (from[1].min(to[1]), from[1].max(to[1]));
-                p[0] >= x0 && p[0] <= x1 && p[1] >= y0 && p[1] <= y1
-            }
-            Shape::Circle { center, radius } => dist(p, *center) <= *radius,
-        }
-    }
 }
 
 /// Closed counter-clockwise polygons of every part, validated, with circles

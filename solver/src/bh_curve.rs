@@ -118,11 +118,6 @@ impl BhCurve {
         BhCurve::new(&pts).ok()
     }
 
-    /// The sample points as (H, B).
-    pub fn points(&self) -> impl Iterator<Item = [f64; 2]> + '_ {
-        self.h.iter().zip(&self.b).map(|(&h, &b)| [h, b])
-    }
-
     /// The knee: the point of the curve where the differential relative
     /// permeability has fallen to a tenth of its largest value past the peak.
     pub fn knee_b(&self) -> f64 {

@@ -64,8 +64,10 @@ fn norm(v: &[f64]) -> f64 {
 /// the applied field's potential is not included) and the report.
 pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(usize, f64)) -> Result<(Vec<f64>, SolveReport), SolveError> {
     let zero = vec![0.0; system.dof_of_node.len()];
+    // Residuals are reported relative to the true problem's residual at zero potential.
+    let r0 = norm(&system.residual(problem, &zero)).max(f64::MIN_POSITIVE);
     let Some(surrogate) = toe_free(problem) else {
-        return newton_from(problem, system, zero, &mut None, progress);
+        return newton_from(problem, system, zero, r0, &mut None, progress);
     };
     // Continuation over the low-field toe of the B-H curves: converge (loosely)
     // with each toe replaced by its chord from the origin, then go on with
@@ -74,8 +76,8 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
     loose.newton.residual_tolerance = TOE_STAGE_TOLERANCE;
     loose.newton.update_tolerance = 1.0;
     let mut analysis = None;
-    let (start, first) = newton_from(&loose, system, zero, &mut analysis, progress)?;
-    let (a, mut report) = newton_from(problem, system, start, &mut analysis, &|it, r| progress(it + first.iterations, r))?;
+    let (start, first) = newton_from(&loose, system, zero, r0, &mut analysis, progress)?;
+    let (a, mut report) = newton_from(problem, system, start, r0, &mut analysis, &|it, r| progress(it + first.iterations, r))?;
     report.iterations += first.iterations;
     let mut history = first.residual_history.clone();
     history.extend(report.residual_history.iter().skip(1));
@@ -107,12 +109,14 @@ fn toe_free<'m>(problem: &Problem<'m>) -> Option<Problem<'m>> {
     changed.then_some(p)
 }
 
-/// Newton-Raphson from the potential `a` (reduced, every node).
-/// `analysis` keeps the symbolic factorization for a later stage on the same pattern.
+/// Newton-Raphson from the potential `a` (reduced, every node); residuals
+/// are reported relative to `r0`. `analysis` keeps the symbolic
+/// factorization for a later stage on the same pattern.
 fn newton_from(
     problem: &Problem,
     system: &mut System,
     mut a: Vec<f64>,
+    r0: f64,
     analysis: &mut Option<CholeskySolver>,
     progress: &dyn Fn(usize, f64),
 ) -> Result<(Vec<f64>, SolveReport), SolveError> {
@@ -123,8 +127,6 @@ fn newton_from(
     let t = Instant::now();
     let mut residual = system.assemble(problem, &a);
     report.seconds_assembly += t.elapsed().as_secs_f64();
-    let zero = vec![0.0; a.len()];
-    let r0 = norm(&system.residual(problem, &zero)).max(f64::MIN_POSITIVE);
     report.residual_history.push(norm(&residual) / r0);
     if system.n_dofs == 0 || norm(&residual) == 0.0 {
         report.converged = true;
@@ -149,7 +151,7 @@ fn newton_from(
         if step.iter().any(|v| !v.is_finite()) {
             return Err(SolveError::NotFinite { iteration: it });
         }
-        let (new_a, new_residual, seconds) = line_search(problem, system, &a, &step, norm(&residual));
+        let (new_a, new_residual, seconds) = line_search(problem, system, &a, &step);
         report.seconds_assembly += seconds;
         let update = norm(&step) / norm_of_dofs(system, &new_a).max(f64::MIN_POSITIVE);
         a = new_a;
@@ -200,7 +202,7 @@ fn shifted(system: &System, a: &[f64], step: &[f64], alpha: f64) -> Vec<f64> {
 /// alpha = 1, else regula falsi for the zero of the derivative in (0, 1).
 /// The energy is convex (H(B) is monotone), so the zero is unique.
 /// Leaves the system assembled at the accepted point.
-fn line_search(problem: &Problem, system: &mut System, a: &[f64], step: &[f64], _r_old: f64) -> (Vec<f64>, Vec<f64>, f64) {
+fn line_search(problem: &Problem, system: &mut System, a: &[f64], step: &[f64]) -> (Vec<f64>, Vec<f64>, f64) {
     let t = Instant::now();
     let full = shifted(system, a, step, 1.0);
     let residual = system.assemble(problem, &full);

@@ -186,8 +186,4 @@ impl<'a> Fields<'a> {
     pub fn present(&self, keys: &[&'a str]) -> Vec<&'a str> {
         keys.iter().copied().filter(|k| self.get(k).is_some()).collect()
     }
-
-    pub fn key_span(&self, key: &str) -> Option<Range<usize>> {
-        self.entries.iter().find(|(k, _)| k.name == key).map(|(k, _)| k.span.clone())
-    }
 }

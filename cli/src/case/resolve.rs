@@ -191,7 +191,7 @@ pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> R
         length_unit: (unit_name, unit),
         depth: depth(&study, &ctx, symmetry)?,
         temperature,
-        boundary: boundary(&study, &ctx, symmetry)?,
+        boundary: boundary(&study, &ctx)?,
         applied_field: applied_field(&study, &ctx, symmetry)?,
         mesh,
         parts,
@@ -252,7 +252,7 @@ fn depth(study: &Fields, ctx: &Context, symmetry: Symmetry) -> Result<f64, Diagn
     }
 }
 
-fn boundary(study: &Fields, ctx: &Context, symmetry: Symmetry) -> Result<OuterBoundary, Diagnostic> {
+fn boundary(study: &Fields, ctx: &Context) -> Result<OuterBoundary, Diagnostic> {
     let kind = match study.get("boundary") {
         None => "open",
         Some(b) => b.str("study.boundary")?,
@@ -273,7 +273,6 @@ fn boundary(study: &Fields, ctx: &Context, symmetry: Symmetry) -> Result<OuterBo
                     Some((ctx.point(t.require("from")?, "study.box.from")?, ctx.point(t.require("to")?, "study.box.to")?))
                 }
             };
-            let _ = symmetry;
             Ok(OuterBoundary::FluxParallel { from_to })
         }
         other => {

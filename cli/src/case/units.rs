@@ -49,28 +49,6 @@ impl Kind {
             Kind::Dimensionless => "a plain number",
         }
     }
-
-    /// The SI unit name used in output headers.
-    pub fn si_name(self) -> &'static str {
-        match self {
-            Kind::Length => "m",
-            Kind::FluxDensity => "T",
-            Kind::FieldStrength => "A/m",
-            Kind::EnergyProduct => "J/m3",
-            Kind::Temperature => "degC",
-            Kind::Current => "A",
-            Kind::CurrentDensity => "A/m2",
-            Kind::Force => "N",
-            Kind::Percent => "%",
-            Kind::PercentPerKelvin => "%/K",
-            Kind::Angle => "rad",
-            Kind::MagneticFlux => "Wb",
-            Kind::Inductance => "H",
-            Kind::Energy => "J",
-            Kind::Moment => "A m2",
-            Kind::Dimensionless => "1",
-        }
-    }
 }
 
 /// (symbol, kind, factor to SI). Temperatures convert to degrees Celsius.

@@ -51,6 +51,16 @@ pub fn write_all(dir: &Path, files: &FileSet) -> Result<(), String> {
     Ok(())
 }
 
+/// Writes one file atomically at `path` (its folder is created if missing).
+pub fn write_file(path: &Path, bytes: Vec<u8>) -> Result<(), String> {
+    let dir = path
+        .parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .map_or_else(|| PathBuf::from("."), Path::to_path_buf);
+    let name = path.file_name().map(PathBuf::from).ok_or_else(|| format!("{} names no file", path.display()))?;
+    write_all(&dir, &vec![(name, bytes)])
+}
+
 /// Removes temporary files left by an interrupted run.
 fn remove_stale(dir: &Path) {
     if let Ok(entries) = std::fs::read_dir(dir) {

@@ -39,7 +39,7 @@ pub fn pictures(model: &Model, sol: &Solution, r: &Results) -> Vec<(String, Stri
         });
         out.push((format!("probe-{}.svg", p.name), title, svg));
     }
-    for (i, p) in model.parts.iter().enumerate() {
+    for p in &model.parts {
         match &p.material.material {
             Material::Soft { curve } => {
                 let Ok(c) = solver::BhCurve::new(curve) else { continue };
@@ -83,7 +83,6 @@ pub fn pictures(model: &Model, sol: &Solution, r: &Results) -> Vec<(String, Stri
                     marks: Vec::new(),
                 });
                 out.push((format!("magnet-{}.svg", p.name), title, svg));
-                let _ = i;
             }
             _ => {}
         }
