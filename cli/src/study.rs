@@ -109,6 +109,7 @@ pub fn current_densities(model: &Model, mesh: &mesher::Mesh) -> Result<Vec<f64>,
 pub fn problem<'m>(model: &Model, mesh: &'m mesher::Mesh) -> Result<Problem<'m>, Diagnostic> {
     let mut problem = Problem::new(mesh, laws(model)?, current_densities(model, mesh)?);
     problem.applied_field = model.applied_field;
+    problem.newton = model.newton;
     problem.order = if model.mesh.order == 1 {
         ElementOrder::Linear
     } else {

@@ -3,7 +3,8 @@
 //! compressed lower triangle.
 
 use crate::element::{element_residual, element_system, ElementLoad, ElementOrder, LocalSystem, Placement, EDGES, MAX_NODES};
-use crate::material::Law;
+use crate::linear_system::symmetric_product;
+use crate::material::{Law, Tangent};
 use crate::problem::Problem;
 use mesher::{BoundaryTag, Mesh, Region, Symmetry};
 use nalgebra_sparse::{pattern::SparsityPattern, CscMatrix};
@@ -227,14 +228,21 @@ impl System {
     /// assembled once, at the first call; later calls add their tangent as
     /// stored and their residual as K_aff a + r_aff(0), and evaluate only the
     /// saturating elements.
-    pub fn assemble(&mut self, problem: &Problem, a: &[f64]) -> Vec<f64> {
+    pub fn assemble(&mut self, problem: &Problem, a: &[f64], tangent: Tangent) -> Vec<f64> {
         self.prepare_affine(problem);
         let mut residual = self.affine_residual(a);
-        let mut values = self.affine.as_ref().map(|f| f.values.clone()).unwrap_or_default();
-        let nonlinear = std::mem::take(&mut self.nonlinear);
-        self.accumulate(problem, a, &nonlinear, &mut values, &mut residual);
-        self.nonlinear = nonlinear;
-        self.matrix.values_mut().copy_from_slice(&values);
+        let values = self.matrix.values_mut();
+        match &self.affine {
+            Some(f) => values.copy_from_slice(&f.values),
+            None => values.fill(0.0),
+        }
+        let target = Target {
+            els: &self.elements,
+            scatter: &self.scatter,
+            dof_of_node: &self.dof_of_node,
+        };
+        let how = Kernel { air: &self.air, tangent };
+        target.accumulate(problem, a, &self.nonlinear, how, &mut self.block, values, &mut residual);
         residual
     }
 
@@ -286,7 +294,16 @@ impl System {
         let mut values = vec![0.0; self.matrix.nnz()];
         let mut rhs = vec![0.0; self.n_dofs];
         let zero = vec![0.0; self.dof_of_node.len()];
-        self.accumulate(problem, &zero, &affine_list, &mut values, &mut rhs);
+        let target = Target {
+            els: &self.elements,
+            scatter: &self.scatter,
+            dof_of_node: &self.dof_of_node,
+        };
+        let how = Kernel {
+            air: &self.air,
+            tangent: Tangent::Exact,
+        };
+        target.accumulate(problem, &zero, &affine_list, how, &mut self.block, &mut values, &mut rhs);
         self.affine = Some(AffinePart { values, rhs });
         self.nonlinear = nonlinear;
     }
@@ -300,34 +317,47 @@ impl System {
                 x[d] = a[n];
             }
         }
-        let mut y = affine.rhs.clone();
-        let (offsets, rows) = (self.matrix.col_offsets(), self.matrix.row_indices());
-        for c in 0..self.n_dofs {
-            for (&r, &v) in rows[offsets[c]..offsets[c + 1]].iter().zip(&affine.values[offsets[c]..offsets[c + 1]]) {
-                y[r] += v * x[c];
-                if r != c {
-                    y[c] += v * x[r];
-                }
-            }
-        }
+        let mut y = symmetric_product(&self.matrix, &affine.values, &x);
+        y.iter_mut().zip(&affine.rhs).for_each(|(y, r)| *y += r);
         y
     }
 
-    /// Adds the tangent and residual of the listed elements.
-    fn accumulate(&mut self, problem: &Problem, a: &[f64], which: &[usize], values: &mut [f64], residual: &mut [f64]) {
+}
+
+/// The air law and the tangent kind of one assembly.
+#[derive(Clone, Copy)]
+struct Kernel<'l> {
+    air: &'l Law,
+    tangent: Tangent,
+}
+
+/// Where element entries go: the element table, its scatter map and dofs.
+struct Target<'s> {
+    els: &'s Elements,
+    scatter: &'s [u32],
+    dof_of_node: &'s [usize],
+}
+
+impl Target<'_> {
+    /// Adds the tangent and residual of the listed elements, computed in
+    /// parallel blocks and scattered in order (so sums are reproducible).
+    #[allow(clippy::too_many_arguments)]
+    fn accumulate(&self, problem: &Problem, a: &[f64], which: &[usize], how: Kernel, block: &mut Vec<LocalSystem>, values: &mut [f64], residual: &mut [f64]) {
         let symmetry = problem.mesh.symmetry;
-        let els = &self.elements;
+        let els = self.els;
         let m = els.order.n_nodes();
-        let air = &self.air;
         for chunk in which.chunks(BLOCK) {
             chunk
                 .par_iter()
                 .map(|&e| {
-                    let load = element_load(els.kinds[e], problem, air);
+                    let load = ElementLoad {
+                        tangent: how.tangent,
+                        ..element_load(els.kinds[e], problem, how.air)
+                    };
                     element_system(&els.coords[e], &els.gather(e, a), els.order, symmetry, els.placement(e), load)
                 })
-                .collect_into_vec(&mut self.block);
-            for (&e, (k, r)) in chunk.iter().zip(&self.block) {
+                .collect_into_vec(block);
+            for (&e, (k, r)) in chunk.iter().zip(block.iter()) {
                 let slots = &self.scatter[MAX_NODES * MAX_NODES * e..MAX_NODES * MAX_NODES * (e + 1)];
                 for i in 0..m {
                     for j in 0..m {
@@ -359,16 +389,19 @@ pub fn element_load<'a>(kind: ElementKind, problem: &'a Problem, air: &'a Law) -
             law: air,
             current_density: 0.0,
             background: problem.applied_field,
+            tangent: Tangent::Exact,
         },
         ElementKind::Part(i) => ElementLoad {
             law: &problem.laws[i],
             current_density: problem.current_density[i],
             background: problem.applied_field,
+            tangent: Tangent::Exact,
         },
         ElementKind::Exterior => ElementLoad {
             law: air,
             current_density: 0.0,
             background: [0.0, 0.0],
+            tangent: Tangent::Exact,
         },
     }
 }

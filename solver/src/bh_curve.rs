@@ -106,18 +106,6 @@ impl BhCurve {
         w + hl * (b - bl) + 0.5 * (b - bl) * (b - bl) / MU0
     }
 
-    /// The curve with its low-field toe (the points below the one of largest
-    /// secant permeability B/H) replaced by the chord from the origin; None
-    /// when there is no toe.
-    pub fn without_toe(&self) -> Option<BhCurve> {
-        let k = (1..self.b.len()).max_by(|&i, &j| (self.b[i] / self.h[i]).total_cmp(&(self.b[j] / self.h[j])))?;
-        if k <= 1 {
-            return None;
-        }
-        let pts: Vec<[f64; 2]> = std::iter::once([0.0, 0.0]).chain((k..self.b.len()).map(|i| [self.h[i], self.b[i]])).collect();
-        BhCurve::new(&pts).ok()
-    }
-
     /// The knee: the point of the curve where the differential relative
     /// permeability has fallen to a tenth of its largest value past the peak.
     pub fn knee_b(&self) -> f64 {

@@ -7,7 +7,7 @@
 //!
 //! Node order: the three corners, then the midpoints of edges 0-1, 1-2, 2-0.
 
-use crate::material::Law;
+use crate::material::{Law, Tangent};
 use crate::quadrature::{DEGREE2, DEGREE5};
 use crate::NU0;
 use mesher::Symmetry;
@@ -192,6 +192,8 @@ pub struct ElementLoad<'a> {
     pub current_density: f64,
     /// Uniform applied field (zero in the exterior, where the potential is the reaction only).
     pub background: [f64; 2],
+    /// The linearization used for the tangent (the residual is always exact).
+    pub tangent: Tangent,
 }
 
 /// Local tangent matrix and residual of one element.
@@ -200,7 +202,7 @@ pub type LocalSystem = ([[f64; MAX_NODES]; MAX_NODES], [f64; MAX_NODES]);
 /// H at a quadrature point, less the background's nu0 B_bg, with the law's response.
 fn point_field(op: &PointOp, a: &[f64; MAX_NODES], load: &ElementLoad) -> ([f64; 2], crate::material::FieldResponse) {
     let b = flux_density(op, a, load.background);
-    let resp = load.law.response(b);
+    let resp = load.law.response_with(b, load.tangent);
     ([resp.h[0] - NU0 * load.background[0], resp.h[1] - NU0 * load.background[1]], resp)
 }
 

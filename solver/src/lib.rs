@@ -41,6 +41,7 @@ mod locate;
 pub mod magnet_check;
 pub mod material;
 pub mod newton;
+pub mod newton_step;
 pub mod problem;
 pub mod quadrature;
 pub mod solution;

@@ -55,3 +55,41 @@ impl Factor {
         self.llt.solve_in_place(mat);
     }
 }
+
+/// y = M x for a symmetric matrix held as its lower triangle by columns:
+/// the pattern of `m` with entries `values` (the matrix's own, or another
+/// set on the same pattern). Columns are split between threads, each adding
+/// into its own copy of y.
+pub fn symmetric_product(m: &CscMatrix<f64>, values: &[f64], x: &[f64]) -> Vec<f64> {
+    use rayon::prelude::*;
+    let n = m.ncols();
+    let (offsets, rows) = (m.col_offsets(), m.row_indices());
+    let parts = rayon::current_num_threads().clamp(1, 8);
+    let columns = |range: std::ops::Range<usize>| {
+        let mut y = vec![0.0; n];
+        for c in range {
+            let mut sum = 0.0;
+            for (&r, &v) in rows[offsets[c]..offsets[c + 1]].iter().zip(&values[offsets[c]..offsets[c + 1]]) {
+                if r == c {
+                    sum += v * x[c];
+                } else {
+                    y[r] += v * x[c];
+                    sum += v * x[r];
+                }
+            }
+            y[c] += sum;
+        }
+        y
+    };
+    if parts == 1 || n < 20_000 {
+        return columns(0..n);
+    }
+    (0..parts)
+        .into_par_iter()
+        .map(|p| columns(p * n / parts..(p + 1) * n / parts))
+        .reduce_with(|mut a, b| {
+            a.iter_mut().zip(&b).for_each(|(x, y)| *x += y);
+            a
+        })
+        .unwrap_or_else(|| vec![0.0; n])
+}

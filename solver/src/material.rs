@@ -15,6 +15,19 @@ pub enum Law {
     Magnet { recoil_permeability: f64, br: [f64; 2] },
 }
 
+/// Which linearization of H(B) the Newton tangent uses.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Default)]
+pub enum Tangent {
+    /// dH/dB exactly: quadratic convergence near the solution.
+    #[default]
+    Exact,
+    /// Along B, the larger of the differential dH/dB and the secant H/B.
+    /// On a curve's low-field toe the differential slope is the smaller, and
+    /// the exact step overshoots there again and again (the line search
+    /// then cuts it to a third or half); the stiffer slope does not.
+    NoSofterThanSecant,
+}
+
 /// H at a point and the tangent dH/dB (symmetric 2x2).
 #[derive(Clone, Copy, Debug)]
 pub struct FieldResponse {
@@ -33,7 +46,13 @@ impl Law {
         matches!(self, Law::Saturating(_))
     }
 
+    /// H and the exact tangent dH/dB at flux density `b`.
     pub fn response(&self, b: [f64; 2]) -> FieldResponse {
+        self.response_with(b, Tangent::Exact)
+    }
+
+    /// H at `b` and the tangent of the given kind (H itself never changes).
+    pub fn response_with(&self, b: [f64; 2], tangent: Tangent) -> FieldResponse {
         match self {
             Law::Linear { relative_permeability } => {
                 let nu = NU0 / relative_permeability;
@@ -52,8 +71,13 @@ impl Law {
                 }
             }
             Law::Saturating(curve) => {
-                let bm = b[0].hypot(b[1]);
+                // sqrt, not hypot: |B| never comes near overflow, and hypot costs more.
+                let bm = (b[0] * b[0] + b[1] * b[1]).sqrt();
                 let (nu, dh) = curve.reluctivity(bm);
+                let dh = match tangent {
+                    Tangent::Exact => dh,
+                    Tangent::NoSofterThanSecant => dh.max(nu),
+                };
                 let extra = if bm > 1e-12 { (dh - nu) / (bm * bm) } else { 0.0 };
                 let t = [[nu + extra * b[0] * b[0], extra * b[0] * b[1]], [extra * b[0] * b[1], nu + extra * b[1] * b[1]]];
                 FieldResponse {

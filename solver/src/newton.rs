@@ -3,6 +3,8 @@
 
 use crate::assembly::{System, NONE};
 use crate::linear_system::{CholeskySolver, LinearError};
+use crate::newton_step::TangentSolver;
+use crate::material::Tangent;
 use crate::problem::Problem;
 use std::time::Instant;
 
@@ -20,6 +22,10 @@ pub struct SolveReport {
     pub seconds_symbolic: f64,
     pub seconds_numeric: f64,
     pub seconds_solve: f64,
+    /// Numeric factorizations done (the rest of the steps reused one as a preconditioner).
+    pub factorizations: usize,
+    /// Preconditioned conjugate-gradient iterations over all steps.
+    pub cg_iterations: usize,
 }
 
 impl SolveReport {
@@ -64,94 +70,52 @@ fn norm(v: &[f64]) -> f64 {
 /// the applied field's potential is not included) and the report.
 pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(usize, f64)) -> Result<(Vec<f64>, SolveReport), SolveError> {
     let zero = vec![0.0; system.dof_of_node.len()];
-    // Residuals are reported relative to the true problem's residual at zero potential.
-    let r0 = norm(&system.residual(problem, &zero)).max(f64::MIN_POSITIVE);
-    let Some(surrogate) = toe_free(problem) else {
-        return newton_from(problem, system, zero, r0, &mut None, progress);
-    };
-    // Continuation over the low-field toe of the B-H curves: converge (loosely)
-    // with each toe replaced by its chord from the origin, then go on with
-    // the true curves from there.
-    let mut loose = surrogate.clone();
-    loose.newton.residual_tolerance = TOE_STAGE_TOLERANCE;
-    loose.newton.update_tolerance = 1.0;
-    let mut analysis = None;
-    let (start, first) = newton_from(&loose, system, zero, r0, &mut analysis, progress)?;
-    let (a, mut report) = newton_from(problem, system, start, r0, &mut analysis, &|it, r| progress(it + first.iterations, r))?;
-    report.iterations += first.iterations;
-    let mut history = first.residual_history.clone();
-    history.extend(report.residual_history.iter().skip(1));
-    report.residual_history = history;
-    report.seconds_assembly += first.seconds_assembly;
-    report.seconds_numeric += first.seconds_numeric;
-    report.seconds_solve += first.seconds_solve;
-    report.seconds_symbolic += first.seconds_symbolic;
-    Ok((a, report))
+    newton_from(problem, system, zero, progress)
 }
 
-/// Relative residual at which the toe-free stage hands over.
-const TOE_STAGE_TOLERANCE: f64 = 1e-2;
-
-/// The problem with every curve's low-field toe replaced by the chord from
-/// the origin to the point of largest secant permeability; None when no
-/// curve has a toe.
-fn toe_free<'m>(problem: &Problem<'m>) -> Option<Problem<'m>> {
-    let mut p = problem.clone();
-    let mut changed = false;
-    for law in &mut p.laws {
-        if let crate::material::Law::Saturating(c) = law {
-            if let Some(t) = c.without_toe() {
-                *law = crate::material::Law::Saturating(std::sync::Arc::new(t));
-                changed = true;
-            }
-        }
-    }
-    changed.then_some(p)
-}
+/// Relative residual above which the tangent is kept no softer than the
+/// secant (Tangent::NoSofterThanSecant); below it the exact tangent gives
+/// quadratic convergence.
+const STIFFENED_UNTIL: f64 = 1e-3;
 
 /// Newton-Raphson from the potential `a` (reduced, every node); residuals
-/// are reported relative to `r0`. `analysis` keeps the symbolic
-/// factorization for a later stage on the same pattern.
-fn newton_from(
-    problem: &Problem,
-    system: &mut System,
-    mut a: Vec<f64>,
-    r0: f64,
-    analysis: &mut Option<CholeskySolver>,
-    progress: &dyn Fn(usize, f64),
-) -> Result<(Vec<f64>, SolveReport), SolveError> {
+/// are reported relative to the residual at `a`.
+fn newton_from(problem: &Problem, system: &mut System, mut a: Vec<f64>, progress: &dyn Fn(usize, f64)) -> Result<(Vec<f64>, SolveReport), SolveError> {
     let mut report = SolveReport {
         n_dofs: system.n_dofs,
         ..Default::default()
     };
     let t = Instant::now();
-    let mut residual = system.assemble(problem, &a);
+    let linear = !problem.is_nonlinear();
+    let kind = |rel: f64| if linear || rel <= STIFFENED_UNTIL { Tangent::Exact } else { Tangent::NoSofterThanSecant };
+    let mut residual = system.assemble(problem, &a, kind(1.0));
     report.seconds_assembly += t.elapsed().as_secs_f64();
-    report.residual_history.push(norm(&residual) / r0);
+    let r0 = norm(&residual).max(f64::MIN_POSITIVE);
+    report.residual_history.push(1.0);
     if system.n_dofs == 0 || norm(&residual) == 0.0 {
         report.converged = true;
         return Ok((a, report));
     }
     let t = Instant::now();
-    if analysis.is_none() {
-        *analysis = Some(CholeskySolver::analyse(&system.matrix).map_err(SolveError::Linear)?);
-    }
-    let chol = analysis.as_ref().expect("analysed above");
+    let mut solver = TangentSolver::new(CholeskySolver::analyse(&system.matrix).map_err(SolveError::Linear)?);
     report.seconds_symbolic = t.elapsed().as_secs_f64();
-    let linear = !problem.is_nonlinear();
     let settings = problem.newton;
+    let mut forcing = Forcing::new(settings.residual_tolerance);
     for it in 1..=settings.max_iterations {
-        let t = Instant::now();
-        let factor = chol.factorize(&system.matrix).map_err(SolveError::Linear)?;
-        report.seconds_numeric += t.elapsed().as_secs_f64();
-        let t = Instant::now();
-        let mut step: Vec<f64> = residual.iter().map(|r| -r).collect();
-        factor.solve(&mut step);
-        report.seconds_solve += t.elapsed().as_secs_f64();
+        let rel_now = report.residual_history.last().copied().unwrap_or(1.0);
+        let eta = if linear || !settings.reuse_factorization { 0.0 } else { forcing.next(rel_now) };
+        let (step, cost) = solver.step(&system.matrix, &residual, eta).map_err(SolveError::Linear)?;
+        report.seconds_numeric += cost.seconds_numeric;
+        report.seconds_solve += cost.seconds_solve;
+        report.factorizations += usize::from(cost.factorized);
+        report.cg_iterations += cost.cg_iterations;
+        if std::env::var_os("LODESTONE_DEBUG").is_some() {
+            eprintln!("it {it} rel {rel_now:.3e} eta {eta:.2e} cg {} factorized {}", cost.cg_iterations, cost.factorized);
+        }
         if step.iter().any(|v| !v.is_finite()) {
             return Err(SolveError::NotFinite { iteration: it });
         }
-        let (new_a, new_residual, seconds) = line_search(problem, system, &a, &step);
+        let (new_a, new_residual, seconds) = line_search(problem, system, &a, &residual, &step, kind(rel_now));
         report.seconds_assembly += seconds;
         let update = norm(&step) / norm_of_dofs(system, &new_a).max(f64::MIN_POSITIVE);
         a = new_a;
@@ -170,6 +134,44 @@ fn newton_from(
         }
     }
     Ok((a, report))
+}
+
+/// Forcing terms of the inexact Newton method: choice 2 of S. C. Eisenstat
+/// and H. F. Walker (Choosing the forcing terms in an inexact Newton method,
+/// SIAM J. Sci. Comput. 17(1), 1996), eta = 0.9 (|r_k| / |r_k-1|)^2 with
+/// their safeguard, capped at 0.1 and kept above half the distance to the
+/// stopping tolerance (C. T. Kelley, Iterative Methods for Linear and
+/// Nonlinear Equations, SIAM, 1995, section 6.3), so the last linear solve
+/// is not asked for more than the Newton stop needs.
+struct Forcing {
+    tolerance: f64,
+    last: Option<(f64, f64)>,
+}
+
+const FORCING_MAX: f64 = 0.1;
+
+impl Forcing {
+    fn new(tolerance: f64) -> Forcing {
+        Forcing { tolerance, last: None }
+    }
+
+    /// The forcing term for the step from relative residual `rel`.
+    fn next(&mut self, rel: f64) -> f64 {
+        let eta = match self.last {
+            None => FORCING_MAX,
+            Some((rel_before, eta_before)) => {
+                let eta = 0.9 * (rel / rel_before).powi(2);
+                let safeguard = 0.9 * eta_before * eta_before;
+                if safeguard > 0.1 { eta.max(safeguard) } else { eta }
+            }
+        };
+        // Kelley's floor only while the residual test is unmet: once it is
+        // met and the update test is not, the step should be close to exact.
+        let floor = if rel > self.tolerance { (0.5 * self.tolerance / rel).min(FORCING_MAX) } else { 0.0 };
+        let eta = eta.min(FORCING_MAX).max(floor);
+        self.last = Some((rel, eta));
+        eta
+    }
 }
 
 fn norm_of_dofs(system: &System, a: &[f64]) -> f64 {
@@ -202,10 +204,11 @@ fn shifted(system: &System, a: &[f64], step: &[f64], alpha: f64) -> Vec<f64> {
 /// alpha = 1, else regula falsi for the zero of the derivative in (0, 1).
 /// The energy is convex (H(B) is monotone), so the zero is unique.
 /// Leaves the system assembled at the accepted point.
-fn line_search(problem: &Problem, system: &mut System, a: &[f64], step: &[f64]) -> (Vec<f64>, Vec<f64>, f64) {
+/// The tangent assembled there is of kind `tangent`.
+fn line_search(problem: &Problem, system: &mut System, a: &[f64], residual_at_a: &[f64], step: &[f64], tangent: Tangent) -> (Vec<f64>, Vec<f64>, f64) {
     let t = Instant::now();
     let full = shifted(system, a, step, 1.0);
-    let residual = system.assemble(problem, &full);
+    let residual = system.assemble(problem, &full, tangent);
     if !problem.is_nonlinear() {
         return (full, residual, t.elapsed().as_secs_f64());
     }
@@ -214,7 +217,7 @@ fn line_search(problem: &Problem, system: &mut System, a: &[f64], step: &[f64]) 
         return (full, residual, t.elapsed().as_secs_f64());
     }
     // The slope at alpha = 0: residual . step (negative for a descent step).
-    let g0 = dot(&system.residual(problem, a), step);
+    let g0 = dot(residual_at_a, step);
     let (mut lo, mut glo) = (0.0, if g0 < 0.0 { g0 } else { -g1.abs().max(f64::MIN_POSITIVE) });
     let (mut hi, mut ghi) = (1.0, g1);
     let mut alpha = 1.0;
@@ -234,6 +237,6 @@ fn line_search(problem: &Problem, system: &mut System, a: &[f64], step: &[f64]) 
     }
     // One full assembly at the accepted point, for the next Newton step.
     let trial = shifted(system, a, step, alpha);
-    let residual = system.assemble(problem, &trial);
+    let residual = system.assemble(problem, &trial, tangent);
     (trial, residual, t.elapsed().as_secs_f64())
 }

@@ -12,6 +12,10 @@ pub struct NewtonSettings {
     /// ... and |update| / |potential| falls below this.
     pub update_tolerance: f64,
     pub max_iterations: usize,
+    /// Solve later Newton steps by conjugate gradients preconditioned with
+    /// an earlier factorization (an inexact Newton method), refactorizing
+    /// only when that converges slowly; false factorizes every step.
+    pub reuse_factorization: bool,
 }
 
 impl Default for NewtonSettings {
@@ -20,6 +24,7 @@ impl Default for NewtonSettings {
             residual_tolerance: 1e-8,
             update_tolerance: 1e-6,
             max_iterations: 40,
+            reuse_factorization: true,
         }
     }
 }

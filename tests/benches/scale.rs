@@ -65,6 +65,8 @@ struct Row {
     numeric: f64,
     solve: f64,
     iterations: usize,
+    factorizations: usize,
+    cg: usize,
     post: f64,
     output: f64,
     total: f64,
@@ -105,6 +107,8 @@ fn run(label: &str, planar: bool, steel: &str, size: f64) -> Row {
         numeric: r.seconds_numeric,
         solve: r.seconds_solve,
         iterations: r.iterations,
+        factorizations: r.factorizations,
+        cg: r.cg_iterations,
         post: post_s,
         output: output_s,
         total: t0.elapsed().as_secs_f64(),
@@ -191,6 +195,16 @@ fn main() {
     if std::env::args().any(|a| a == "--linear-1e6") {
         let r = run("axisymmetric linear 1e6", false, "linear-steel", 0.107);
         println!("{} unknowns: total {:.2} s; symbolic {:.2} + numeric {:.2} = {:.2} s; the rest {:.2} s (mesh {:.2}, pattern {:.2}, assembly {:.2}, solve {:.2}, post {:.2}, output {:.2})", r.unknowns, r.total, r.symbolic, r.numeric, r.symbolic + r.numeric, r.total - r.symbolic - r.numeric, r.mesh, r.pattern, r.assembly, r.solve, r.post, r.output);
+        return;
+    }
+    // `--one NAME SIZE`: a single run, e.g. `--one "axisymmetric saturating" 0.6`.
+    let args: Vec<String> = std::env::args().collect();
+    if let Some(k) = args.iter().position(|a| a == "--one") {
+        let name = args.get(k + 1).map_or("axisymmetric saturating", String::as_str);
+        let size: f64 = args.get(k + 2).and_then(|s| s.parse().ok()).unwrap_or(0.6);
+        let steel = if name.contains("saturating") { "low-carbon-steel" } else { "linear-steel" };
+        let r = run(name, name.contains("planar"), steel, size);
+        println!("{} unknowns, {} triangles: total {:.3} s; mesh {:.3}, pattern {:.3}, assembly {:.3}, symbolic {:.3}, numeric {:.3}, solve {:.3}, {} iterations ({} factorizations, {} CG iterations), post {:.3}, output {:.3}; peak {:.0} MB", r.unknowns, r.triangles, r.total, r.mesh, r.pattern, r.assembly, r.symbolic, r.numeric, r.solve, r.iterations, r.factorizations, r.cg, r.post, r.output, r.peak_mb);
         return;
     }
     if std::env::args().any(|a| a == "--mesh-only") {

@@ -25,6 +25,8 @@ pub struct Model {
     pub fluxes: Vec<FluxSpec>,
     pub expects: Vec<Expect>,
     pub output: OutputFlags,
+    /// Newton-Raphson stopping rules and step method (`[solver]`).
+    pub newton: solver::NewtonSettings,
     /// Flux density below which the axis "reach" ends, T.
     pub reach_level: f64,
     pub params: BTreeMap<String, f64>,

@@ -23,7 +23,9 @@ const TOP: &[&str] = &[
     "flux",
     "expect",
     "output",
+    "solver",
 ];
+const SOLVER: &[&str] = &["residual_tolerance", "update_tolerance", "max_iterations", "reuse_factorization"];
 const STUDY: &[&str] = &[
     "title",
     "geometry",
@@ -200,6 +202,7 @@ pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> R
         fluxes: Vec::new(),
         expects: Vec::new(),
         output: output(&top)?,
+        newton: solver_settings(&top)?,
         reach_level: match study.get("reach_level") {
             Some(r) => ctx.positive(r, Kind::FluxDensity, "study.reach_level")?,
             None => 5e-3,
@@ -317,27 +320,40 @@ fn mesh_settings(top: &Fields, ctx: &Context, parts: &[Item]) -> Result<MeshSett
         Some(s) => ctx.positive(s, Kind::Length, "mesh.size")?,
         None => default_size(parts, ctx),
     };
-    let number = |key: &str, default: f64, lo: f64, hi: f64| -> Result<f64, Diagnostic> {
-        match m.get(key) {
-            None => Ok(default),
-            Some(v) => {
-                let x = v.number(&format!("mesh.{key}"))?;
-                if x < lo || x > hi {
-                    return Err(Diagnostic::new(
-                        format!("mesh.{key} must lie between {lo} and {hi}, got {x}"),
-                        Some(v.span.clone()),
-                    ));
-                }
-                Ok(x)
-            }
-        }
-    };
+    let number = |key: &str, default: f64, lo: f64, hi: f64| bounded_number(&m, "mesh", key, default, lo, hi);
     Ok(MeshSettings {
         size,
         min_angle: number("min_angle", 28.0, 20.0, 33.0)?,
         grading: number("grading", 1.3, 1.05, 3.0)?,
         max_elements: number("max_elements", DEFAULT_MAX_ELEMENTS as f64, 100.0, 1e9)? as usize,
         order: number("order", 2.0, 1.0, 2.0)?.round() as u32,
+    })
+}
+
+/// An optional number of a table, `default` when absent, else within [lo, hi].
+fn bounded_number(table: &Fields, section: &str, key: &str, default: f64, lo: f64, hi: f64) -> Result<f64, Diagnostic> {
+    let Some(v) = table.get(key) else { return Ok(default) };
+    let x = v.number(&format!("{section}.{key}"))?;
+    if !(lo..=hi).contains(&x) {
+        return Err(Diagnostic::new(format!("{section}.{key} must lie between {lo} and {hi}, got {x}"), Some(v.span.clone())));
+    }
+    Ok(x)
+}
+
+/// The `[solver]` table: Newton-Raphson stopping rules and the step method.
+fn solver_settings(top: &Fields) -> Result<solver::NewtonSettings, Diagnostic> {
+    let empty = Item {
+        value: Value::Table(Vec::new()),
+        span: 0..0,
+    };
+    let t = top.get("solver").unwrap_or(&empty).table("[solver]", SOLVER)?;
+    let d = solver::NewtonSettings::default();
+    let number = |key: &str, default: f64, lo: f64, hi: f64| bounded_number(&t, "solver", key, default, lo, hi);
+    Ok(solver::NewtonSettings {
+        residual_tolerance: number("residual_tolerance", d.residual_tolerance, 1e-14, 1e-2)?,
+        update_tolerance: number("update_tolerance", d.update_tolerance, 1e-14, 1.0)?,
+        max_iterations: number("max_iterations", d.max_iterations as f64, 1.0, 1000.0)?.round() as usize,
+        reuse_factorization: t.get("reuse_factorization").map(|v| v.bool("solver.reuse_factorization")).transpose()?.unwrap_or(d.reuse_factorization),
     })
 }
 
