@@ -64,6 +64,10 @@ pub struct SolveInfo {
     pub iterations: usize,
     pub residual: f64,
     pub residual_history: Vec<f64>,
+    /// Numeric factorizations of the tangent (fewer than iterations when
+    /// later steps reuse one as a conjugate-gradient preconditioner).
+    pub factorizations: usize,
+    pub cg_iterations: usize,
     pub seconds: f64,
 }
 
@@ -233,6 +237,8 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
             iterations: r.iterations,
             residual: r.residual(),
             residual_history: r.residual_history.clone(),
+            factorizations: r.factorizations,
+            cg_iterations: r.cg_iterations,
             seconds,
         },
         expect: evaluate(model, &values),

@@ -321,7 +321,6 @@ impl System {
         y.iter_mut().zip(&affine.rhs).for_each(|(y, r)| *y += r);
         y
     }
-
 }
 
 /// The air law and the tangent kind of one assembly.

@@ -59,7 +59,8 @@ impl TangentSolver {
         let rhs: Vec<f64> = residual.iter().map(|r| -r).collect();
         if let (Some(factor), true) = (&self.factor, forcing > 0.0) {
             let t = Instant::now();
-            let outcome = preconditioned_cg(j, factor, &rhs, forcing);
+            let analysis = &self.analysis;
+            let outcome = preconditioned_cg(j, &|z: &mut [f64]| analysis.solve(factor, z), &rhs, forcing);
             cost.seconds_solve += t.elapsed().as_secs_f64();
             cost.cg_iterations = outcome.iterations;
             if let Some(d) = outcome.solution {
@@ -67,12 +68,11 @@ impl TangentSolver {
             }
         }
         let t = Instant::now();
-        self.factor = None;
-        let factor = self.analysis.factorize(j)?;
+        let factor = self.analysis.factorize(j, self.factor.take())?;
         cost.seconds_numeric = t.elapsed().as_secs_f64();
         let t = Instant::now();
         let mut d = rhs;
-        factor.solve(&mut d);
+        self.analysis.solve(&factor, &mut d);
         cost.seconds_solve += t.elapsed().as_secs_f64();
         cost.factorized = true;
         self.factor = Some(factor);
@@ -94,12 +94,12 @@ fn dot(a: &[f64], b: &[f64]) -> f64 {
 /// Methods for Sparse Linear Systems, 2nd ed., 2003, algorithm 9.1). Gives
 /// up (None) at max_cg_iterations, or earlier when the rate so far shows the
 /// tolerance is out of reach within them.
-fn preconditioned_cg(j: &CscMatrix<f64>, factor: &Factor, b: &[f64], tolerance: f64) -> CgOutcome {
+fn preconditioned_cg(j: &CscMatrix<f64>, precondition: &dyn Fn(&mut [f64]), b: &[f64], tolerance: f64) -> CgOutcome {
     let target = tolerance * dot(b, b).sqrt();
     let mut x = vec![0.0; b.len()];
     let mut r = b.to_vec();
     let mut z = r.clone();
-    factor.solve(&mut z);
+    precondition(&mut z);
     let mut p = z.clone();
     let mut rz = dot(&r, &z);
     let start = dot(&r, &r).sqrt();
@@ -108,28 +108,44 @@ fn preconditioned_cg(j: &CscMatrix<f64>, factor: &Factor, b: &[f64], tolerance: 
         let q = symmetric_product(j, j.values(), &p);
         let pq = dot(&p, &q);
         if !(pq > 0.0) || !rz.is_finite() {
-            return CgOutcome { solution: None, iterations: it };
+            return CgOutcome {
+                solution: None,
+                iterations: it,
+            };
         }
         let alpha = rz / pq;
         x.iter_mut().zip(&p).for_each(|(x, p)| *x += alpha * p);
         r.iter_mut().zip(&q).for_each(|(r, q)| *r -= alpha * q);
         let norm = dot(&r, &r).sqrt();
         if norm <= target {
-            return CgOutcome { solution: Some(x), iterations: it };
+            return CgOutcome {
+                solution: Some(x),
+                iterations: it,
+            };
         }
         // Residual reduction per iteration so far: give up if the rest would not fit.
         let rate = (norm / start).powf(1.0 / it as f64);
         let needed = (target / norm).ln() / rate.ln();
-        let hopeless = if it == 1 { norm > HOPELESS_FIRST_STEP * start } else { rate >= 1.0 || it as f64 + needed > most as f64 + 0.5 };
+        let hopeless = if it == 1 {
+            norm > HOPELESS_FIRST_STEP * start
+        } else {
+            rate >= 1.0 || it as f64 + needed > most as f64 + 0.5
+        };
         if hopeless {
-            return CgOutcome { solution: None, iterations: it };
+            return CgOutcome {
+                solution: None,
+                iterations: it,
+            };
         }
         z.copy_from_slice(&r);
-        factor.solve(&mut z);
+        precondition(&mut z);
         let rz_new = dot(&r, &z);
         let beta = rz_new / rz;
         rz = rz_new;
         p.iter_mut().zip(&z).for_each(|(p, z)| *p = z + beta * *p);
     }
-    CgOutcome { solution: None, iterations: most }
+    CgOutcome {
+        solution: None,
+        iterations: most,
+    }
 }

@@ -335,7 +335,10 @@ fn bounded_number(table: &Fields, section: &str, key: &str, default: f64, lo: f6
     let Some(v) = table.get(key) else { return Ok(default) };
     let x = v.number(&format!("{section}.{key}"))?;
     if !(lo..=hi).contains(&x) {
-        return Err(Diagnostic::new(format!("{section}.{key} must lie between {lo} and {hi}, got {x}"), Some(v.span.clone())));
+        return Err(Diagnostic::new(
+            format!("{section}.{key} must lie between {lo} and {hi}, got {x}"),
+            Some(v.span.clone()),
+        ));
     }
     Ok(x)
 }
@@ -353,7 +356,11 @@ fn solver_settings(top: &Fields) -> Result<solver::NewtonSettings, Diagnostic> {
         residual_tolerance: number("residual_tolerance", d.residual_tolerance, 1e-14, 1e-2)?,
         update_tolerance: number("update_tolerance", d.update_tolerance, 1e-14, 1.0)?,
         max_iterations: number("max_iterations", d.max_iterations as f64, 1.0, 1000.0)?.round() as usize,
-        reuse_factorization: t.get("reuse_factorization").map(|v| v.bool("solver.reuse_factorization")).transpose()?.unwrap_or(d.reuse_factorization),
+        reuse_factorization: t
+            .get("reuse_factorization")
+            .map(|v| v.bool("solver.reuse_factorization"))
+            .transpose()?
+            .unwrap_or(d.reuse_factorization),
     })
 }
 
