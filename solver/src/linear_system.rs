@@ -6,7 +6,7 @@ use faer::dyn_stack::{MemBuffer, MemStack};
 use faer::sparse::linalg::cholesky::{factorize_symbolic_cholesky, LltRef, SymbolicCholesky, SymmetricOrdering};
 use faer::sparse::{SparseColMatRef, SymbolicSparseColMatRef};
 use faer::{Conj, MatMut, Par, Side};
-use nalgebra_sparse::CscMatrix;
+use nalgebra_sparse::{pattern::SparsityPattern, CscMatrix};
 
 /// Why a linear solve failed.
 #[derive(Clone, Debug, PartialEq)]
@@ -35,12 +35,14 @@ const PAR: Par = Par::Seq;
 impl CholeskySolver {
     /// Symbolic analysis of the lower triangle, with the approximate minimum
     /// degree ordering (P. R. Amestoy, T. A. Davis, I. S. Duff, SIAM J.
-    /// Matrix Anal. Appl. 17(4), 1996). A geometric nested dissection was
-    /// tried and gave 2.6 times the factorization time at 1e6 unknowns on
-    /// these graded meshes: a median cut runs through the finest region.
-    pub fn analyse(m: &CscMatrix<f64>) -> Result<CholeskySolver, LinearError> {
-        let symbolic =
-            factorize_symbolic_cholesky(view(m).symbolic(), Side::Lower, SymmetricOrdering::Amd, Default::default()).map_err(|_| LinearError::OutOfMemory)?;
+    /// Matrix Anal. Appl. 17(4), 1996). Geometric nested dissection (the
+    /// straight cut with the smallest separator between 30 and 70 % of each
+    /// set) was tried: at 1e6 unknowns it factorized no faster (2.32 s
+    /// against 2.34 s) and took longer to order (3.4 s against 2.1 s).
+    pub fn analyse(pattern: &SparsityPattern) -> Result<CholeskySolver, LinearError> {
+        let n = pattern.major_dim();
+        let view = SymbolicSparseColMatRef::new_checked(n, n, pattern.major_offsets(), None, pattern.minor_indices());
+        let symbolic = factorize_symbolic_cholesky(view, Side::Lower, SymmetricOrdering::Amd, Default::default()).map_err(|_| LinearError::OutOfMemory)?;
         Ok(CholeskySolver { symbolic })
     }
 

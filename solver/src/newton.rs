@@ -85,7 +85,6 @@ fn newton_from(problem: &Problem, system: &mut System, mut a: Vec<f64>, progress
         n_dofs: system.n_dofs,
         ..Default::default()
     };
-    let t = Instant::now();
     let linear = !problem.is_nonlinear();
     let kind = |rel: f64| {
         if linear || rel <= STIFFENED_UNTIL {
@@ -94,17 +93,33 @@ fn newton_from(problem: &Problem, system: &mut System, mut a: Vec<f64>, progress
             Tangent::NoSofterThanSecant
         }
     };
-    let mut residual = system.assemble(problem, &a, kind(1.0));
-    report.seconds_assembly += t.elapsed().as_secs_f64();
-    let r0 = norm(&residual).max(f64::MIN_POSITIVE);
     report.residual_history.push(1.0);
-    if system.n_dofs == 0 || norm(&residual) == 0.0 {
+    if system.n_dofs == 0 {
         report.converged = true;
         return Ok((a, report));
     }
-    let t = Instant::now();
-    let mut solver = TangentSolver::new(CholeskySolver::analyse(&system.matrix).map_err(SolveError::Linear)?);
-    report.seconds_symbolic = t.elapsed().as_secs_f64();
+    // The symbolic analysis needs only the pattern: it runs on one core
+    // while the first assembly runs on the other.
+    let pattern = system.matrix.pattern().clone();
+    let ((analysis, seconds_symbolic), (mut residual, seconds_assembly)) = rayon::join(
+        || {
+            let t = Instant::now();
+            (CholeskySolver::analyse(&pattern), t.elapsed().as_secs_f64())
+        },
+        || {
+            let t = Instant::now();
+            (system.assemble(problem, &a, kind(1.0)), t.elapsed().as_secs_f64())
+        },
+    );
+    drop(pattern);
+    report.seconds_symbolic = seconds_symbolic;
+    report.seconds_assembly += seconds_assembly;
+    let r0 = norm(&residual).max(f64::MIN_POSITIVE);
+    if norm(&residual) == 0.0 {
+        report.converged = true;
+        return Ok((a, report));
+    }
+    let mut solver = TangentSolver::new(analysis.map_err(SolveError::Linear)?);
     let settings = problem.newton;
     let mut forcing = Forcing::new(settings.residual_tolerance);
     for it in 1..=settings.max_iterations {

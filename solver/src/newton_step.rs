@@ -107,7 +107,7 @@ fn preconditioned_cg(j: &CscMatrix<f64>, precondition: &dyn Fn(&mut [f64]), b: &
     for it in 1..=most {
         let q = symmetric_product(j, j.values(), &p);
         let pq = dot(&p, &q);
-        if !(pq > 0.0) || !rz.is_finite() {
+        if pq.is_nan() || pq <= 0.0 || !rz.is_finite() {
             return CgOutcome {
                 solution: None,
                 iterations: it,

@@ -74,10 +74,19 @@ struct Row {
 }
 
 fn run(label: &str, planar: bool, steel: &str, size: f64) -> Row {
+    run_text(label, &case(planar, steel, size))
+}
+
+/// The case with every Newton step solved by a fresh factorization.
+fn exact_newton(planar: bool, size: f64) -> String {
+    format!("{}\n[solver]\nreuse_factorization = false\n", case(planar, "low-carbon-steel", size))
+}
+
+fn run_text(label: &str, text: &str) -> Row {
     let dir = std::env::temp_dir().join(format!("lodestone-bench-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
     let path = dir.join("case.toml");
-    std::fs::write(&path, case(planar, steel, size)).unwrap();
+    std::fs::write(&path, text).unwrap();
     let t0 = Instant::now();
     let loaded = lodestone::run::load(&path).unwrap_or_else(|f| panic!("{}", f.message()));
     let v = lodestone::run::variants(&loaded, &Default::default()).unwrap_or_else(|f| panic!("{}", f.message()));
@@ -87,11 +96,13 @@ fn run(label: &str, planar: bool, steel: &str, size: f64) -> Row {
     let mesh_s = t.elapsed().as_secs_f64();
     let problem = lodestone::study::problem(&model, &mesh).unwrap();
     let sol = solver::solve(&problem, &|_, _| {}).unwrap();
+    // Post-processing and the field file's encoding run side by side, as in `lodestone solve`.
     let t = Instant::now();
-    let results = lodestone::post::results(&model, &sol, 0.0);
+    let (results, field) = lodestone::run::results_and_field(&model, &sol);
     let post_s = t.elapsed().as_secs_f64();
     let t = Instant::now();
-    let files = lodestone::run::collect_files(&model, &sol, &results).unwrap_or_else(|f| panic!("{}", f.message()));
+    let field = field.unwrap_or_else(|f| panic!("{}", f.message()));
+    let files = lodestone::run::collect_files(&model, &sol, &results, field).unwrap_or_else(|f| panic!("{}", f.message()));
     lodestone::output::write_all(&dir.join("out"), &files).unwrap();
     let output_s = t.elapsed().as_secs_f64();
     let r = &sol.report;
@@ -169,6 +180,31 @@ fn sweep_benchmark() {
     let _ = std::fs::remove_dir_all(&dir);
 }
 
+/// Exact Newton (a factorization every step): the cost of an iteration
+/// against the factorization and solve it contains.
+fn newton_cost_benchmark(sizes: &[f64]) {
+    println!("\n| exact Newton | unknowns | iterations | assembly s | numeric s | solve s | per iteration s | factorization + solve s | ratio |\n|---|---|---|---|---|---|---|---|---|");
+    for planar in [false, true] {
+        for &size in sizes {
+            let name = if planar { "planar" } else { "axisymmetric" };
+            let r = run_text(name, &exact_newton(planar, size));
+            let per_factor = (r.numeric + r.solve) / r.factorizations.max(1) as f64;
+            let per_iteration = (r.assembly + r.numeric + r.solve) / r.iterations.max(1) as f64;
+            println!(
+                "| {name} | {} | {} | {:.2} | {:.2} | {:.2} | {:.3} | {:.3} | {:.2} |",
+                r.unknowns,
+                r.iterations,
+                r.assembly,
+                r.numeric,
+                r.solve,
+                per_iteration,
+                per_factor,
+                per_iteration / per_factor
+            );
+        }
+    }
+}
+
 /// Meshing alone (one thread: the mesher is sequential), at about 1e5 and
 /// 1e6 triangles; the process's peak memory is read after each.
 fn mesh_benchmark() {
@@ -205,6 +241,10 @@ fn main() {
         let steel = if name.contains("saturating") { "low-carbon-steel" } else { "linear-steel" };
         let r = run(name, name.contains("planar"), steel, size);
         println!("{} unknowns, {} triangles: total {:.3} s; mesh {:.3}, pattern {:.3}, assembly {:.3}, symbolic {:.3}, numeric {:.3}, solve {:.3}, {} iterations ({} factorizations, {} CG iterations), post {:.3}, output {:.3}; peak {:.0} MB", r.unknowns, r.triangles, r.total, r.mesh, r.pattern, r.assembly, r.symbolic, r.numeric, r.solve, r.iterations, r.factorizations, r.cg, r.post, r.output, r.peak_mb);
+        return;
+    }
+    if std::env::args().any(|a| a == "--exact-only") {
+        newton_cost_benchmark(&[0.6, 0.107]);
         return;
     }
     if std::env::args().any(|a| a == "--mesh-only") {
