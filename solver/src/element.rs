@@ -229,16 +229,22 @@ pub fn element_system(
     for_each_point(x, order, symmetry, placement, |op| {
         let (h, resp) = point_field(op, a, &load);
         add_residual(&mut r, op, h, &load);
+        // K is symmetric (dH/dB is): accumulate the lower triangle, mirror once.
         for i in 0..op.len {
             let tg = [
-                resp.dh_db[0][0] * op.g[0][i] + resp.dh_db[0][1] * op.g[1][i],
-                resp.dh_db[1][0] * op.g[0][i] + resp.dh_db[1][1] * op.g[1][i],
+                op.weight * (resp.dh_db[0][0] * op.g[0][i] + resp.dh_db[0][1] * op.g[1][i]),
+                op.weight * (resp.dh_db[1][0] * op.g[0][i] + resp.dh_db[1][1] * op.g[1][i]),
             ];
-            for j in 0..op.len {
-                K[i][j] += op.weight * (tg[0] * op.g[0][j] + tg[1] * op.g[1][j]);
+            for j in 0..=i {
+                K[i][j] += tg[0] * op.g[0][j] + tg[1] * op.g[1][j];
             }
         }
     });
+    for i in 0..MAX_NODES {
+        for j in 0..i {
+            K[j][i] = K[i][j];
+        }
+    }
     (K, r)
 }
 

@@ -124,11 +124,12 @@ fn newton_from(problem: &Problem, system: &mut System, mut a: Vec<f64>, progress
     let mut forcing = Forcing::new(settings.residual_tolerance);
     for it in 1..=settings.max_iterations {
         let rel_now = report.residual_history.last().copied().unwrap_or(1.0);
-        let eta = if linear || !settings.reuse_factorization {
-            0.0
-        } else {
-            forcing.next(rel_now)
-        };
+        // Far from the solution the tangent moves too much between steps for an
+        // old factor to precondition it (measured: most such attempts gave up),
+        // so steps are exact until the exact tangent is in use.
+        let eta = forcing.next(rel_now);
+        let reuse = settings.reuse_factorization && !linear && kind(rel_now) == Tangent::Exact;
+        let eta = if reuse { eta } else { 0.0 };
         let (step, cost) = solver.step(&system.matrix, &residual, eta).map_err(SolveError::Linear)?;
         report.seconds_numeric += cost.seconds_numeric;
         report.seconds_solve += cost.seconds_solve;
