@@ -229,8 +229,15 @@ impl System {
     /// stored and their residual as K_aff a + r_aff(0), and evaluate only the
     /// saturating elements.
     pub fn assemble(&mut self, problem: &Problem, a: &[f64], tangent: Tangent) -> Vec<f64> {
+        let affine = self.affine_residual(problem, a);
+        self.assemble_with(problem, a, tangent, affine)
+    }
+
+    /// `assemble` with the affine elements' residual at `a` already known
+    /// (from `affine_residual`, or a line search's combination of two).
+    pub fn assemble_with(&mut self, problem: &Problem, a: &[f64], tangent: Tangent, affine_residual: Vec<f64>) -> Vec<f64> {
         self.prepare_affine(problem);
-        let mut residual = self.affine_residual(a);
+        let mut residual = affine_residual;
         let values = self.matrix.values_mut();
         match &self.affine {
             Some(f) => values.copy_from_slice(&f.values),
@@ -247,10 +254,16 @@ impl System {
     }
 
     /// The residual alone at nodal potentials `a`, leaving the tangent as it was.
-    #[allow(clippy::needless_range_loop)]
     pub fn residual(&mut self, problem: &Problem, a: &[f64]) -> Vec<f64> {
+        let affine = self.affine_residual(problem, a);
+        self.residual_with(problem, a, affine)
+    }
+
+    /// `residual` with the affine elements' residual at `a` already known.
+    #[allow(clippy::needless_range_loop)]
+    pub fn residual_with(&mut self, problem: &Problem, a: &[f64], affine_residual: Vec<f64>) -> Vec<f64> {
         self.prepare_affine(problem);
-        let mut residual = self.affine_residual(a);
+        let mut residual = affine_residual;
         let els = &self.elements;
         let m = els.order.n_nodes();
         let local: Vec<[f64; MAX_NODES]> = self
@@ -308,18 +321,29 @@ impl System {
         self.nonlinear = nonlinear;
     }
 
-    /// r_aff(0) + K_aff a, with K_aff held as a lower triangle.
-    fn affine_residual(&self, a: &[f64]) -> Vec<f64> {
-        let Some(affine) = self.affine.as_ref() else { return vec![0.0; self.n_dofs] };
+    /// The affine elements' residual r_aff(0) + K_aff a at nodal potentials
+    /// `a` (K_aff held as a lower triangle on the tangent's pattern).
+    pub fn affine_residual(&mut self, problem: &Problem, a: &[f64]) -> Vec<f64> {
+        self.prepare_affine(problem);
         let mut x = vec![0.0; self.n_dofs];
         for (n, &d) in self.dof_of_node.iter().enumerate() {
             if d != NONE {
                 x[d] = a[n];
             }
         }
-        let mut y = symmetric_product(&self.matrix, &affine.values, &x);
-        y.iter_mut().zip(&affine.rhs).for_each(|(y, r)| *y += r);
+        let mut y = self.affine_product(&x);
+        if let Some(affine) = &self.affine {
+            y.iter_mut().zip(&affine.rhs).for_each(|(y, r)| *y += r);
+        }
         y
+    }
+
+    /// K_aff x for x given per unknown: how the affine residual changes along a step.
+    pub fn affine_product(&self, x: &[f64]) -> Vec<f64> {
+        match &self.affine {
+            Some(affine) => symmetric_product(&self.matrix, &affine.values, x),
+            None => vec![0.0; self.n_dofs],
+        }
     }
 }
 

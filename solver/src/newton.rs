@@ -80,7 +80,7 @@ const STIFFENED_UNTIL: f64 = 1e-3;
 
 /// Newton-Raphson from the potential `a` (reduced, every node); residuals
 /// are reported relative to the residual at `a`.
-fn newton_from(problem: &Problem, system: &mut System, mut a: Vec<f64>, progress: &dyn Fn(usize, f64)) -> Result<(Vec<f64>, SolveReport), SolveError> {
+fn newton_from(problem: &Problem, system: &mut System, a: Vec<f64>, progress: &dyn Fn(usize, f64)) -> Result<(Vec<f64>, SolveReport), SolveError> {
     let mut report = SolveReport {
         n_dofs: system.n_dofs,
         ..Default::default()
@@ -101,23 +101,25 @@ fn newton_from(problem: &Problem, system: &mut System, mut a: Vec<f64>, progress
     // The symbolic analysis needs only the pattern: it runs on one core
     // while the first assembly runs on the other.
     let pattern = system.matrix.pattern().clone();
-    let ((analysis, seconds_symbolic), (mut residual, seconds_assembly)) = rayon::join(
+    let ((analysis, seconds_symbolic), (mut now, seconds_assembly)) = rayon::join(
         || {
             let t = Instant::now();
             (CholeskySolver::analyse(&pattern), t.elapsed().as_secs_f64())
         },
         || {
             let t = Instant::now();
-            (system.assemble(problem, &a, kind(1.0)), t.elapsed().as_secs_f64())
+            let affine = system.affine_residual(problem, &a);
+            let residual = system.assemble_with(problem, &a, kind(1.0), affine.clone());
+            (Iterate { a, residual, affine }, t.elapsed().as_secs_f64())
         },
     );
     drop(pattern);
     report.seconds_symbolic = seconds_symbolic;
     report.seconds_assembly += seconds_assembly;
-    let r0 = norm(&residual).max(f64::MIN_POSITIVE);
-    if norm(&residual) == 0.0 {
+    let r0 = norm(&now.residual).max(f64::MIN_POSITIVE);
+    if norm(&now.residual) == 0.0 {
         report.converged = true;
-        return Ok((a, report));
+        return Ok((now.a, report));
     }
     let mut solver = TangentSolver::new(analysis.map_err(SolveError::Linear)?);
     let settings = problem.newton;
@@ -130,7 +132,7 @@ fn newton_from(problem: &Problem, system: &mut System, mut a: Vec<f64>, progress
         let eta = forcing.next(rel_now);
         let reuse = settings.reuse_factorization && !linear && kind(rel_now) == Tangent::Exact;
         let eta = if reuse { eta } else { 0.0 };
-        let (step, cost) = solver.step(&system.matrix, &residual, eta).map_err(SolveError::Linear)?;
+        let (step, cost) = solver.step(&system.matrix, &now.residual, eta).map_err(SolveError::Linear)?;
         report.seconds_numeric += cost.seconds_numeric;
         report.seconds_solve += cost.seconds_solve;
         report.factorizations += usize::from(cost.factorized);
@@ -138,12 +140,11 @@ fn newton_from(problem: &Problem, system: &mut System, mut a: Vec<f64>, progress
         if step.iter().any(|v| !v.is_finite()) {
             return Err(SolveError::NotFinite { iteration: it });
         }
-        let (new_a, new_residual, seconds) = line_search(problem, system, &a, &residual, &step, kind(rel_now));
+        let (next, seconds) = line_search(problem, system, &now, &step, kind(rel_now));
         report.seconds_assembly += seconds;
-        let update = norm(&step) / norm_of_dofs(system, &new_a).max(f64::MIN_POSITIVE);
-        a = new_a;
-        residual = new_residual;
-        let rel = norm(&residual) / r0;
+        let update = norm(&step) / norm_of_dofs(system, &next.a).max(f64::MIN_POSITIVE);
+        now = next;
+        let rel = norm(&now.residual) / r0;
         report.iterations = it;
         report.residual_history.push(rel);
         report.update_history.push(update);
@@ -156,7 +157,7 @@ fn newton_from(problem: &Problem, system: &mut System, mut a: Vec<f64>, progress
             break;
         }
     }
-    Ok((a, report))
+    Ok((now.a, report))
 }
 
 /// Forcing terms of the inexact Newton method: choice 2 of S. C. Eisenstat
@@ -232,30 +233,38 @@ fn shifted(system: &System, a: &[f64], step: &[f64], alpha: f64) -> Vec<f64> {
 /// The energy is convex (H(B) is monotone), so the zero is unique.
 /// Leaves the system assembled at the accepted point.
 /// The tangent assembled there is of kind `tangent`.
-fn line_search(problem: &Problem, system: &mut System, a: &[f64], residual_at_a: &[f64], step: &[f64], tangent: Tangent) -> (Vec<f64>, Vec<f64>, f64) {
+fn line_search(problem: &Problem, system: &mut System, at: &Iterate, step: &[f64], tangent: Tangent) -> (Iterate, f64) {
     let t = Instant::now();
-    let full = shifted(system, a, step, 1.0);
-    let residual = system.assemble(problem, &full, tangent);
+    // The affine residual is linear in the potential: r_aff(a + alpha s) = r_aff(a) + alpha K_aff s.
+    let along = system.affine_product(step);
+    let affine_at = |alpha: f64| -> Vec<f64> { at.affine.iter().zip(&along).map(|(r, k)| r + alpha * k).collect() };
+    let accept = |system: &mut System, alpha: f64, affine: Vec<f64>| {
+        let a = shifted(system, &at.a, step, alpha);
+        let residual = system.assemble_with(problem, &a, tangent, affine.clone());
+        Iterate { a, residual, affine }
+    };
+    let full = accept(system, 1.0, affine_at(1.0));
     if !problem.is_nonlinear() {
-        return (full, residual, t.elapsed().as_secs_f64());
+        return (full, t.elapsed().as_secs_f64());
     }
     // The slopes at alpha = 0 and 1: residual . step (negative for a descent step).
-    let g0 = dot(residual_at_a, step);
-    let g1 = dot(&residual, step);
+    let g0 = dot(&at.residual, step);
+    let g1 = dot(&full.residual, step);
     // The full step is kept when the energy still falls there, or when its
     // slope has dropped to a tenth of the start's (the strong Wolfe
     // curvature condition, Nocedal and Wright, Numerical Optimization, 2006,
     // eq. 3.7): near the solution a full Newton step overshoots the line's
     // minimum by O(|r|^2), and cutting it would spoil the quadratic rate.
     if g1 <= 0.1 * g0.abs() {
-        return (full, residual, t.elapsed().as_secs_f64());
+        return (full, t.elapsed().as_secs_f64());
     }
     let (mut lo, mut glo) = (0.0, if g0 < 0.0 { g0 } else { -g1.abs().max(f64::MIN_POSITIVE) });
     let (mut hi, mut ghi) = (1.0, g1);
     let mut alpha = 1.0;
     for _ in 0..6 {
         alpha = (lo - glo * (hi - lo) / (ghi - glo)).clamp(lo + 0.05 * (hi - lo), hi - 0.05 * (hi - lo));
-        let g = dot(&system.residual(problem, &shifted(system, a, step, alpha)), step);
+        let trial = shifted(system, &at.a, step, alpha);
+        let g = dot(&system.residual_with(problem, &trial, affine_at(alpha)), step);
         if g.abs() <= 0.1 * g0.abs() {
             break;
         }
@@ -268,7 +277,13 @@ fn line_search(problem: &Problem, system: &mut System, a: &[f64], residual_at_a:
         }
     }
     // One full assembly at the accepted point, for the next Newton step.
-    let trial = shifted(system, a, step, alpha);
-    let residual = system.assemble(problem, &trial, tangent);
-    (trial, residual, t.elapsed().as_secs_f64())
+    let accepted = accept(system, alpha, affine_at(alpha));
+    (accepted, t.elapsed().as_secs_f64())
+}
+
+/// A Newton iterate: nodal potentials, the residual there and its affine part.
+struct Iterate {
+    a: Vec<f64>,
+    residual: Vec<f64>,
+    affine: Vec<f64>,
 }
