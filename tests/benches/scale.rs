@@ -1,7 +1,15 @@
-//! `cargo bench -p validation`: meshing speed, and end-to-end solves of
+//! `cargo bench -p validation --bench scale`: end-to-end solves of
 //! axisymmetric and planar cases from about 1e4 to 1e6 unknowns, linear and
 //! saturating, with the time of each stage, peak memory and the fitted
-//! growth exponent. Figures are printed as a Markdown table.
+//! growth exponent; the cost of an exact Newton iteration; sweeps; meshing.
+//! Figures are printed as Markdown tables.
+//!
+//! Every measured run is a child process of this one (`--row`), so its peak
+//! memory is its own and no run warms the next one's caches; each figure is
+//! the median of `--runs N` runs (default 5).
+//!
+//! Options: `--quick` (sizes to 1e5 only), `--runs N`, `--one NAME SIZE`
+//! (one run, printed), `--exact-only`, `--sweep-only`, `--mesh-only`.
 
 use std::time::Instant;
 
@@ -54,35 +62,94 @@ report = false
     )
 }
 
+#[derive(Clone, Debug, Default)]
 struct Row {
-    label: String,
-    unknowns: usize,
-    triangles: usize,
+    unknowns: f64,
+    triangles: f64,
     mesh: f64,
     pattern: f64,
     assembly: f64,
     symbolic: f64,
     numeric: f64,
     solve: f64,
-    iterations: usize,
-    factorizations: usize,
-    cg: usize,
+    iterations: f64,
+    factorizations: f64,
+    cg: f64,
     post: f64,
     output: f64,
     total: f64,
     peak_mb: f64,
 }
 
-fn run(label: &str, planar: bool, steel: &str, size: f64) -> Row {
-    run_text(label, &case(planar, steel, size))
+impl Row {
+    fn fields(&self) -> [f64; 15] {
+        [
+            self.unknowns,
+            self.triangles,
+            self.mesh,
+            self.pattern,
+            self.assembly,
+            self.symbolic,
+            self.numeric,
+            self.solve,
+            self.iterations,
+            self.factorizations,
+            self.cg,
+            self.post,
+            self.output,
+            self.total,
+            self.peak_mb,
+        ]
+    }
+
+    fn from_fields(f: &[f64]) -> Option<Row> {
+        let g = |k: usize| f.get(k).copied();
+        Some(Row {
+            unknowns: g(0)?,
+            triangles: g(1)?,
+            mesh: g(2)?,
+            pattern: g(3)?,
+            assembly: g(4)?,
+            symbolic: g(5)?,
+            numeric: g(6)?,
+            solve: g(7)?,
+            iterations: g(8)?,
+            factorizations: g(9)?,
+            cg: g(10)?,
+            post: g(11)?,
+            output: g(12)?,
+            total: g(13)?,
+            peak_mb: g(14)?,
+        })
+    }
+
+    /// The median of each column over the runs.
+    fn median(rows: &[Row]) -> Row {
+        let cols: Vec<f64> = (0..15)
+            .map(|k| {
+                let mut v: Vec<f64> = rows.iter().map(|r| r.fields()[k]).collect();
+                v.sort_by(f64::total_cmp);
+                v.get(v.len() / 2).copied().unwrap_or(f64::NAN)
+            })
+            .collect();
+        Row::from_fields(&cols).unwrap_or_default()
+    }
 }
 
-/// The case with every Newton step solved by a fresh factorization.
-fn exact_newton(planar: bool, size: f64) -> String {
-    format!("{}\n[solver]\nreuse_factorization = false\n", case(planar, "low-carbon-steel", size))
+/// The case text for a benchmark name ("axisymmetric saturating", "planar
+/// linear", with " exact" for a factorization every Newton step).
+fn case_for(name: &str, size: f64) -> String {
+    let steel = if name.contains("saturating") { "low-carbon-steel" } else { "linear-steel" };
+    let text = case(name.contains("planar"), steel, size);
+    if name.contains("exact") {
+        format!("{text}\n[solver]\nreuse_factorization = false\n")
+    } else {
+        text
+    }
 }
 
-fn run_text(label: &str, text: &str) -> Row {
+/// Reads, meshes, solves, post-processes and writes one case, timing each stage.
+fn run_text(text: &str) -> Row {
     let dir = std::env::temp_dir().join(format!("lodestone-bench-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
     let path = dir.join("case.toml");
@@ -108,18 +175,17 @@ fn run_text(label: &str, text: &str) -> Row {
     let r = &sol.report;
     let _ = std::fs::remove_dir_all(&dir);
     Row {
-        label: label.into(),
-        unknowns: r.n_dofs,
-        triangles: mesh.triangles.len(),
+        unknowns: r.n_dofs as f64,
+        triangles: mesh.triangles.len() as f64,
         mesh: mesh_s,
         pattern: r.seconds_pattern,
         assembly: r.seconds_assembly,
         symbolic: r.seconds_symbolic,
         numeric: r.seconds_numeric,
         solve: r.seconds_solve,
-        iterations: r.iterations,
-        factorizations: r.factorizations,
-        cg: r.cg_iterations,
+        iterations: r.iterations as f64,
+        factorizations: r.factorizations as f64,
+        cg: r.cg_iterations as f64,
         post: post_s,
         output: output_s,
         total: t0.elapsed().as_secs_f64(),
@@ -127,30 +193,58 @@ fn run_text(label: &str, text: &str) -> Row {
     }
 }
 
+/// The median row of `runs` child processes each running `name` at `size`.
+fn measured(name: &str, size: f64, runs: usize) -> Row {
+    let exe = std::env::current_exe().expect("own path");
+    let rows: Vec<Row> = (0..runs)
+        .filter_map(|_| {
+            let out = std::process::Command::new(&exe).args(["--row", name, &size.to_string()]).output().ok()?;
+            let text = String::from_utf8_lossy(&out.stdout);
+            let line = text.lines().find_map(|l| l.strip_prefix("ROW "))?;
+            Row::from_fields(&line.split_whitespace().filter_map(|x| x.parse().ok()).collect::<Vec<f64>>())
+        })
+        .collect();
+    Row::median(&rows)
+}
+
+fn print_row(label: &str, r: &Row) {
+    println!(
+        "| {label} | {:.0} | {:.0} | {:.2} | {:.2} | {:.2} | {:.2} | {:.2} | {:.2} | {:.0} ({:.0}, {:.0}) | {:.2} | {:.2} | {:.2} | {:.0} | {:.0} |",
+        r.unknowns,
+        r.triangles,
+        r.mesh,
+        r.pattern,
+        r.assembly,
+        r.symbolic,
+        r.numeric,
+        r.solve,
+        r.iterations,
+        r.factorizations,
+        r.cg,
+        r.post,
+        r.output,
+        r.total,
+        r.unknowns / r.total,
+        r.peak_mb
+    );
+}
+
 /// 16 variants of a case of about 20 000 triangles: in one parallel sweep, and
 /// one after another in separate processes.
 fn sweep_benchmark() {
-    let exe = std::env::current_exe()
-        .ok()
-        .and_then(|p| p.parent()?.parent().map(|d| d.join("lodestone")))
-        .filter(|p| p.exists());
-    let Some(exe) = exe else {
+    let Some(exe) = lodestone_binary() else {
         println!("sweep benchmark skipped: build the lodestone binary first (cargo build --release)");
         return;
     };
     let dir = std::env::temp_dir().join(format!("lodestone-sweep-bench-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
-    let text = case(false, "low-carbon-steel", 0.68)
-        .replace("[mesh]", "[params]\ngap = 1.0\n[sweep]\ngap = { from = 0.5, to = 4, steps = 16 }\n[mesh]")
-        .replace(
-            "rect = { from = [0, 11], to = [40, 17] }",
-            "rect = { from = [0, \"10 + gap\"], to = [40, \"16 + gap\"] }",
-        );
+    let text = gap_sweep(0.68, 16);
     let path = dir.join("sweep.toml");
     std::fs::write(&path, &text).unwrap();
     let t = Instant::now();
     let ok = std::process::Command::new(&exe)
         .args(["solve", "--quiet", path.to_str().unwrap(), "-o", dir.join("parallel").to_str().unwrap()])
+        .stdout(std::process::Stdio::null())
         .status()
         .map(|s| s.success())
         .unwrap_or(false);
@@ -182,16 +276,16 @@ fn sweep_benchmark() {
 
 /// Exact Newton (a factorization every step): the cost of an iteration
 /// against the factorization and solve it contains.
-fn newton_cost_benchmark(sizes: &[f64]) {
+fn newton_cost_benchmark(sizes: &[f64], runs: usize) {
     println!("\n| exact Newton | unknowns | iterations | assembly s | numeric s | solve s | per iteration s | factorization + solve s | ratio |\n|---|---|---|---|---|---|---|---|---|");
-    for planar in [false, true] {
+    for name in ["axisymmetric saturating exact", "planar saturating exact"] {
         for &size in sizes {
-            let name = if planar { "planar" } else { "axisymmetric" };
-            let r = run_text(name, &exact_newton(planar, size));
-            let per_factor = (r.numeric + r.solve) / r.factorizations.max(1) as f64;
-            let per_iteration = (r.assembly + r.numeric + r.solve) / r.iterations.max(1) as f64;
+            let r = measured(name, size, runs);
+            let per_factor = (r.numeric + r.solve) / r.factorizations.max(1.0);
+            let per_iteration = (r.assembly + r.numeric + r.solve) / r.iterations.max(1.0);
             println!(
-                "| {name} | {} | {} | {:.2} | {:.2} | {:.2} | {:.3} | {:.3} | {:.2} |",
+                "| {} | {:.0} | {:.0} | {:.2} | {:.2} | {:.2} | {:.3} | {:.3} | {:.2} |",
+                name.trim_end_matches(" saturating exact"),
                 r.unknowns,
                 r.iterations,
                 r.assembly,
@@ -203,6 +297,54 @@ fn newton_cost_benchmark(sizes: &[f64]) {
             );
         }
     }
+}
+
+/// A 100-variant sweep of the design-sized saturating case (about 3e4
+/// unknowns a variant) in one `lodestone solve`, both cores.
+fn design_sweep_benchmark() {
+    let Some(exe) = lodestone_binary() else {
+        println!("design sweep skipped: build the lodestone binary first (cargo build --release)");
+        return;
+    };
+    let dir = std::env::temp_dir().join(format!("lodestone-design-sweep-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let text = gap_sweep(0.85, 100);
+    let path = dir.join("sweep.toml");
+    std::fs::write(&path, &text).unwrap();
+    let t = Instant::now();
+    let ok = std::process::Command::new(&exe)
+        .args(["solve", "--quiet", path.to_str().unwrap(), "-o", dir.join("out").to_str().unwrap()])
+        .stdout(std::process::Stdio::null())
+        .status()
+        .map(|s| s.success())
+        .unwrap_or(false);
+    let seconds = t.elapsed().as_secs_f64();
+    println!(
+        "\nsweep of 100 design-sized saturating variants (about 2.8e4 unknowns each): {seconds:.1} s{}",
+        if ok { "" } else { " (the sweep failed)" }
+    );
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+/// The benchmark case with the plate's gap swept over `steps` values.
+fn gap_sweep(size: f64, steps: usize) -> String {
+    case(false, "low-carbon-steel", size)
+        .replace(
+            "[mesh]",
+            &format!("[params]\ngap = 1.0\n[sweep]\ngap = {{ from = 0.5, to = 4, steps = {steps} }}\n[mesh]"),
+        )
+        .replace(
+            "rect = { from = [0, 11], to = [40, 17] }",
+            "rect = { from = [0, \"10 + gap\"], to = [40, \"16 + gap\"] }",
+        )
+}
+
+/// The release `lodestone` binary beside this benchmark, if built.
+fn lodestone_binary() -> Option<std::path::PathBuf> {
+    std::env::current_exe()
+        .ok()
+        .and_then(|p| p.parent()?.parent().map(|d| d.join("lodestone")))
+        .filter(|p| p.exists())
 }
 
 /// Meshing alone (one thread: the mesher is sequential), at about 1e5 and
@@ -228,36 +370,42 @@ fn mesh_benchmark() {
 }
 
 fn main() {
-    if std::env::args().any(|a| a == "--linear-1e6") {
-        let r = run("axisymmetric linear 1e6", false, "linear-steel", 0.107);
-        println!("{} unknowns: total {:.2} s; symbolic {:.2} + numeric {:.2} = {:.2} s; the rest {:.2} s (mesh {:.2}, pattern {:.2}, assembly {:.2}, solve {:.2}, post {:.2}, output {:.2})", r.unknowns, r.total, r.symbolic, r.numeric, r.symbolic + r.numeric, r.total - r.symbolic - r.numeric, r.mesh, r.pattern, r.assembly, r.solve, r.post, r.output);
-        return;
-    }
-    // `--one NAME SIZE`: a single run, e.g. `--one "axisymmetric saturating" 0.6`.
     let args: Vec<String> = std::env::args().collect();
-    if let Some(k) = args.iter().position(|a| a == "--one") {
-        let name = args.get(k + 1).map_or("axisymmetric saturating", String::as_str);
-        let size: f64 = args.get(k + 2).and_then(|s| s.parse().ok()).unwrap_or(0.6);
-        let steel = if name.contains("saturating") { "low-carbon-steel" } else { "linear-steel" };
-        let r = run(name, name.contains("planar"), steel, size);
-        println!("{} unknowns, {} triangles: total {:.3} s; mesh {:.3}, pattern {:.3}, assembly {:.3}, symbolic {:.3}, numeric {:.3}, solve {:.3}, {} iterations ({} factorizations, {} CG iterations), post {:.3}, output {:.3}; peak {:.0} MB", r.unknowns, r.triangles, r.total, r.mesh, r.pattern, r.assembly, r.symbolic, r.numeric, r.solve, r.iterations, r.factorizations, r.cg, r.post, r.output, r.peak_mb);
+    let arg = |flag: &str| {
+        args.iter()
+            .position(|a| a == flag)
+            .map(|k| (args.get(k + 1).cloned(), args.get(k + 2).cloned()))
+    };
+    if let Some((name, size)) = arg("--row") {
+        let r = run_text(&case_for(name.as_deref().unwrap_or(""), size.and_then(|s| s.parse().ok()).unwrap_or(0.6)));
+        println!("ROW {}", r.fields().map(|x| x.to_string()).join(" "));
         return;
     }
-    if std::env::args().any(|a| a == "--exact-only") {
-        newton_cost_benchmark(&[0.6, 0.107]);
+    if let Some((name, size)) = arg("--one") {
+        let r = run_text(&case_for(
+            name.as_deref().unwrap_or("axisymmetric saturating"),
+            size.and_then(|s| s.parse().ok()).unwrap_or(0.6),
+        ));
+        println!("{:.0} unknowns, {:.0} triangles: total {:.3} s; mesh {:.3}, pattern {:.3}, assembly {:.3}, symbolic {:.3}, numeric {:.3}, solve {:.3}, {:.0} iterations ({:.0} factorizations, {:.0} CG iterations), post {:.3}, output {:.3}; peak {:.0} MB", r.unknowns, r.triangles, r.total, r.mesh, r.pattern, r.assembly, r.symbolic, r.numeric, r.solve, r.iterations, r.factorizations, r.cg, r.post, r.output, r.peak_mb);
         return;
     }
-    if std::env::args().any(|a| a == "--mesh-only") {
+    let runs: usize = arg("--runs").and_then(|(n, _)| n?.parse().ok()).unwrap_or(5).max(1);
+    if arg("--exact-only").is_some() {
+        newton_cost_benchmark(&[0.6, 0.107], runs);
+        return;
+    }
+    if arg("--mesh-only").is_some() {
         mesh_benchmark();
         return;
     }
-    if std::env::args().any(|a| a == "--sweep-only") {
+    if arg("--sweep-only").is_some() {
         sweep_benchmark();
+        design_sweep_benchmark();
         return;
     }
-    let quick = std::env::args().any(|a| a == "--quick");
+    let quick = arg("--quick").is_some();
     println!(
-        "Machine: {} cores; {}",
+        "Machine: {} cores; {}; medians of {runs} runs",
         std::thread::available_parallelism().map_or(0, |n| n.get()),
         std::fs::read_to_string("/proc/cpuinfo")
             .ok()
@@ -267,50 +415,28 @@ fn main() {
                 .map(|l| l.split(':').nth(1).unwrap_or("").trim().to_string()))
             .unwrap_or_default()
     );
-    println!("\n| case | unknowns | triangles | mesh s | pattern s | assembly s | symbolic s | numeric s | solve s | Newton it. | post s | output s | total s | unknowns/s | peak MB |");
+    println!("\n| case | unknowns | triangles | mesh s | pattern s | assembly s | symbolic s | numeric s | solve s | Newton it. (factorizations, CG it.) | post s | output s | total s | unknowns/s | peak MB |");
     println!("|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|");
     let sizes: &[(f64, &str)] = if quick {
-        &[(2.0, "1e4"), (0.6, "1e5")]
+        &[(2.0, "1e4"), (0.85, "3e4"), (0.6, "1e5")]
     } else {
-        &[(2.0, "1e4"), (0.6, "1e5"), (0.107, "1e6")]
+        &[(2.0, "1e4"), (0.85, "3e4"), (0.6, "1e5"), (0.107, "1e6")]
     };
     let mut fits: Vec<(String, Vec<(f64, f64)>)> = Vec::new();
-    for (planar, steel, name) in [
-        (false, "linear-steel", "axisymmetric linear"),
-        (false, "low-carbon-steel", "axisymmetric saturating"),
-        (true, "linear-steel", "planar linear"),
-        (true, "low-carbon-steel", "planar saturating"),
-    ] {
+    for name in ["axisymmetric linear", "axisymmetric saturating", "planar linear", "planar saturating"] {
         let mut pts = Vec::new();
         for (size, tag) in sizes {
-            let r = run(&format!("{name} {tag}"), planar, steel, *size);
-            println!(
-                "| {} | {} | {} | {:.2} | {:.2} | {:.2} | {:.2} | {:.2} | {:.2} | {} | {:.2} | {:.2} | {:.2} | {:.0} | {:.0} |",
-                r.label,
-                r.unknowns,
-                r.triangles,
-                r.mesh,
-                r.pattern,
-                r.assembly,
-                r.symbolic,
-                r.numeric,
-                r.solve,
-                r.iterations,
-                r.post,
-                r.output,
-                r.total,
-                r.unknowns as f64 / r.total,
-                r.peak_mb
-            );
-            pts.push((r.unknowns as f64, r.total));
+            let r = measured(name, *size, runs);
+            print_row(&format!("{name} {tag}"), &r);
+            if *tag == "1e5" || *tag == "1e6" {
+                pts.push((r.unknowns, r.total));
+            }
         }
         fits.push((name.to_string(), pts));
     }
-    sweep_benchmark();
     println!();
     for (name, pts) in fits {
-        if pts.len() >= 3 {
-            let (a, b) = (pts[1], pts[2]);
+        if let [a, b] = pts[..] {
             println!(
                 "{name}: time grows as unknowns^{:.2} between {:.0} and {:.0} unknowns",
                 (b.1 / a.1).ln() / (b.0 / a.0).ln(),
@@ -319,4 +445,7 @@ fn main() {
             );
         }
     }
+    newton_cost_benchmark(if quick { &[0.6] } else { &[0.6, 0.107] }, runs.min(3));
+    sweep_benchmark();
+    design_sweep_benchmark();
 }
