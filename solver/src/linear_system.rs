@@ -20,6 +20,9 @@ pub enum LinearError {
 /// A reusable factorization of one sparsity pattern.
 pub struct CholeskySolver {
     symbolic: SymbolicCholesky<usize>,
+    /// Workspace of the numeric factorization, kept for the next one (its
+    /// pages are then already mapped).
+    scratch: Option<MemBuffer>,
 }
 
 fn view(m: &CscMatrix<f64>) -> SparseColMatRef<'_, usize, f64> {
@@ -43,30 +46,29 @@ impl CholeskySolver {
         let n = pattern.major_dim();
         let view = SymbolicSparseColMatRef::new_checked(n, n, pattern.major_offsets(), None, pattern.minor_indices());
         let symbolic = factorize_symbolic_cholesky(view, Side::Lower, SymmetricOrdering::Amd, Default::default()).map_err(|_| LinearError::OutOfMemory)?;
-        Ok(CholeskySolver { symbolic })
+        Ok(CholeskySolver { symbolic, scratch: None })
     }
 
     /// Numeric factorization of the current values; `reuse` hands back an
     /// earlier factor whose memory is taken over.
-    pub fn factorize(&self, m: &CscMatrix<f64>, reuse: Option<Factor>) -> Result<Factor, LinearError> {
+    pub fn factorize(&mut self, m: &CscMatrix<f64>, reuse: Option<Factor>) -> Result<Factor, LinearError> {
         let len = self.symbolic.len_val();
-        let mut values = reuse.map(|f| f.values).unwrap_or_default();
-        values.clear();
-        values.try_reserve_exact(len).map_err(|_| LinearError::OutOfMemory)?;
-        values.resize(len, 0.0);
-        let scratch = self.symbolic.factorize_numeric_llt_scratch::<f64>(PAR, Default::default());
-        let mut buffer = MemBuffer::try_new(scratch).map_err(|_| LinearError::OutOfMemory)?;
-        self.symbolic
-            .factorize_numeric_llt::<f64>(
-                &mut values,
-                view(m),
-                Side::Lower,
-                Default::default(),
-                PAR,
-                MemStack::new(&mut buffer),
-                Default::default(),
-            )
-            .map_err(|_| LinearError::NotPositiveDefinite)?;
+        // faer zero-fills the values itself: a reused buffer of the right length is taken as it is.
+        let mut values = reuse.map(|f| f.values).filter(|v| v.len() == len).unwrap_or_default();
+        if values.len() != len {
+            values.try_reserve_exact(len).map_err(|_| LinearError::OutOfMemory)?;
+            values.resize(len, 0.0);
+        }
+        let mut buffer = match self.scratch.take() {
+            Some(b) => b,
+            None => MemBuffer::try_new(self.symbolic.factorize_numeric_llt_scratch::<f64>(PAR, Default::default())).map_err(|_| LinearError::OutOfMemory)?,
+        };
+        let outcome = self
+            .symbolic
+            .factorize_numeric_llt::<f64>(&mut values, view(m), Side::Lower, Default::default(), PAR, MemStack::new(&mut buffer), Default::default())
+            .map(|_| ());
+        self.scratch = Some(buffer);
+        outcome.map_err(|_| LinearError::NotPositiveDefinite)?;
         Ok(Factor { values })
     }
 
