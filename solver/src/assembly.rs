@@ -187,7 +187,8 @@ pub struct System {
     pub matrix: CscMatrix<f64>,
     /// For element e, entry (i, j): the slot in `matrix` values, or NO_SLOT.
     scatter: Vec<u32>,
-    block: Vec<LocalSystem>,
+    /// Two buffers of element systems: one filled while the other is scattered.
+    blocks: [Vec<LocalSystem>; 2],
     air: Law,
     affine: Option<AffinePart>,
     /// Elements with a saturating law, evaluated at every assembly.
@@ -215,7 +216,7 @@ impl System {
             n_dofs,
             matrix,
             scatter,
-            block: Vec::new(),
+            blocks: [Vec::new(), Vec::new()],
             air: Law::air(),
             affine: None,
             nonlinear: Vec::new(),
@@ -249,7 +250,7 @@ impl System {
             dof_of_node: &self.dof_of_node,
         };
         let how = Kernel { air: &self.air, tangent };
-        target.accumulate(problem, a, &self.nonlinear, how, &mut self.block, values, &mut residual);
+        target.accumulate(problem, a, &self.nonlinear, how, &mut self.blocks, values, &mut residual);
         residual
     }
 
@@ -316,7 +317,7 @@ impl System {
             air: &self.air,
             tangent: Tangent::Exact,
         };
-        target.accumulate(problem, &zero, &affine_list, how, &mut self.block, &mut values, &mut rhs);
+        target.accumulate(problem, &zero, &affine_list, how, &mut self.blocks, &mut values, &mut rhs);
         self.affine = Some(AffinePart { values, rhs });
         self.nonlinear = nonlinear;
     }
@@ -362,14 +363,23 @@ struct Target<'s> {
 }
 
 impl Target<'_> {
-    /// Adds the tangent and residual of the listed elements, computed in
-    /// parallel blocks and scattered in order (so sums are reproducible).
+    /// Adds the tangent and residual of the listed elements: computed in
+    /// parallel blocks, each block scattered (in order, so sums are
+    /// reproducible) on one core while the next is computed on the other.
     #[allow(clippy::too_many_arguments)]
-    fn accumulate(&self, problem: &Problem, a: &[f64], which: &[usize], how: Kernel, block: &mut Vec<LocalSystem>, values: &mut [f64], residual: &mut [f64]) {
+    fn accumulate(
+        &self,
+        problem: &Problem,
+        a: &[f64],
+        which: &[usize],
+        how: Kernel,
+        blocks: &mut [Vec<LocalSystem>; 2],
+        values: &mut [f64],
+        residual: &mut [f64],
+    ) {
         let symmetry = problem.mesh.symmetry;
         let els = self.els;
-        let m = els.order.n_nodes();
-        for chunk in which.chunks(BLOCK) {
+        let compute = |chunk: &[usize], out: &mut Vec<LocalSystem>| {
             chunk
                 .par_iter()
                 .map(|&e| {
@@ -379,20 +389,41 @@ impl Target<'_> {
                     };
                     element_system(&els.coords[e], &els.gather(e, a), els.order, symmetry, els.placement(e), load)
                 })
-                .collect_into_vec(block);
-            for (&e, (k, r)) in chunk.iter().zip(block.iter()) {
-                let slots = &self.scatter[MAX_NODES * MAX_NODES * e..MAX_NODES * MAX_NODES * (e + 1)];
-                for i in 0..m {
-                    for j in 0..m {
-                        let s = slots[MAX_NODES * i + j];
-                        if s != NO_SLOT {
-                            values[s as usize] += k[i][j];
-                        }
+                .collect_into_vec(out)
+        };
+        let chunks: Vec<&[usize]> = which.chunks(BLOCK).collect();
+        let [current, spare] = blocks;
+        if let Some(first) = chunks.first() {
+            compute(first, current);
+        }
+        for (k, chunk) in chunks.iter().enumerate() {
+            rayon::join(
+                || self.scatter_block(chunk, current, values, residual),
+                || {
+                    if let Some(next) = chunks.get(k + 1) {
+                        compute(next, spare)
                     }
-                    let d = self.dof_of_node[els.nodes[e][i]];
-                    if d != NONE {
-                        residual[d] += r[i];
+                },
+            );
+            std::mem::swap(current, spare);
+        }
+    }
+
+    /// Adds computed element systems into the matrix values and the residual.
+    fn scatter_block(&self, chunk: &[usize], locals: &[LocalSystem], values: &mut [f64], residual: &mut [f64]) {
+        let m = self.els.order.n_nodes();
+        for (&e, (k, r)) in chunk.iter().zip(locals) {
+            let slots = &self.scatter[MAX_NODES * MAX_NODES * e..MAX_NODES * MAX_NODES * (e + 1)];
+            for i in 0..m {
+                for j in 0..m {
+                    let s = slots[MAX_NODES * i + j];
+                    if s != NO_SLOT {
+                        values[s as usize] += k[i][j];
                     }
+                }
+                let d = self.dof_of_node[self.els.nodes[e][i]];
+                if d != NONE {
+                    residual[d] += r[i];
                 }
             }
         }

@@ -240,12 +240,24 @@ mod tests {
     #[test]
     fn energy_density_is_the_integral_of_h_db() {
         // Reference: the composite trapezoid rule on 200 000 steps (error O(h^2), far below the tolerance).
-        let pts = [[0.0, 0.0], [16.0, 0.0025], [54.0, 0.0125], [143.0, 0.05], [210.0, 0.2], [342.0, 1.0], [933.0, 1.5], [4993.0, 1.7], [48866.0, 2.22]];
+        let pts = [
+            [0.0, 0.0],
+            [16.0, 0.0025],
+            [54.0, 0.0125],
+            [143.0, 0.05],
+            [210.0, 0.2],
+            [342.0, 1.0],
+            [933.0, 1.5],
+            [4993.0, 1.7],
+            [48866.0, 2.22],
+        ];
         let c = BhCurve::new(&pts).unwrap();
         for b in [0.001, 0.2, 0.73, 1.5, 1.99, 2.22, 2.5] {
             let steps = 200_000;
             let dx = b / steps as f64;
-            let trapezoid: f64 = (0..steps).map(|i| 0.5 * dx * (c.h_of_b(i as f64 * dx).0 + c.h_of_b((i + 1) as f64 * dx).0)).sum();
+            let trapezoid: f64 = (0..steps)
+                .map(|i| 0.5 * dx * (c.h_of_b(i as f64 * dx).0 + c.h_of_b((i + 1) as f64 * dx).0))
+                .sum();
             let w = c.energy_density(b);
             assert!((w - trapezoid).abs() <= 1e-6 * trapezoid, "W({b}) = {w} against {trapezoid}");
         }

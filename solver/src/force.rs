@@ -137,15 +137,10 @@ fn band_weight(solution: &Solution, in_set_node: &[bool], other: &[bool], in_set
     candidates.sort_unstable();
     candidates.dedup();
     use rayon::prelude::*;
+    let grid = crate::segment_grid::SegmentGrid::new(boundary.iter().map(|&(a, b)| [pos[a], pos[b]]).collect());
     let values: Vec<f64> = candidates
         .par_iter()
-        .map(|&n| {
-            let d2 = boundary
-                .iter()
-                .map(|&(a, b)| mesher::geometry::point_segment_distance_squared(pos[n], pos[a], pos[b]))
-                .fold(f64::INFINITY, f64::min);
-            (1.0 - d2.sqrt() / width).max(0.0)
-        })
+        .map(|&n| grid.nearest(pos[n], width).map_or(0.0, |d| (1.0 - d / width).max(0.0)))
         .collect();
     for (n, v) in candidates.into_iter().zip(values) {
         weight[n] = v;

@@ -44,6 +44,7 @@ pub mod newton;
 pub mod newton_step;
 pub mod problem;
 pub mod quadrature;
+mod segment_grid;
 pub mod solution;
 pub mod stray;
 

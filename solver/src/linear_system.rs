@@ -65,7 +65,15 @@ impl CholeskySolver {
         };
         let outcome = self
             .symbolic
-            .factorize_numeric_llt::<f64>(&mut values, view(m), Side::Lower, Default::default(), PAR, MemStack::new(&mut buffer), Default::default())
+            .factorize_numeric_llt::<f64>(
+                &mut values,
+                view(m),
+                Side::Lower,
+                Default::default(),
+                PAR,
+                MemStack::new(&mut buffer),
+                Default::default(),
+            )
             .map(|_| ());
         self.scratch = Some(buffer);
         outcome.map_err(|_| LinearError::NotPositiveDefinite)?;
