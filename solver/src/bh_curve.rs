@@ -209,20 +209,22 @@ mod tests {
         assert!((h - 150.0).abs() < 1e-9 && (dh - 1.0 / mu).abs() < 1e-6 / mu);
     }
 
+    /// A steel-like curve with a toe and a knee (points taken from the TEAM 13 table).
+    const STEEL_LIKE: [[f64; 2]; 9] = [
+        [0.0, 0.0],
+        [16.0, 0.0025],
+        [54.0, 0.0125],
+        [143.0, 0.05],
+        [210.0, 0.2],
+        [342.0, 1.0],
+        [933.0, 1.5],
+        [4993.0, 1.7],
+        [48866.0, 2.22],
+    ];
+
     #[test]
     fn expanded_cubic_equals_the_hermite_form() {
-        let pts = [
-            [0.0, 0.0],
-            [16.0, 0.0025],
-            [54.0, 0.0125],
-            [143.0, 0.05],
-            [210.0, 0.2],
-            [342.0, 1.0],
-            [933.0, 1.5],
-            [4993.0, 1.7],
-            [48866.0, 2.22],
-        ];
-        let c = BhCurve::new(&pts).unwrap();
+        let c = BhCurve::new(&STEEL_LIKE).unwrap();
         for i in 0..=2000 {
             let b = 2.3 * i as f64 / 2000.0;
             let (h, dh) = c.h_of_b(b);
@@ -240,18 +242,7 @@ mod tests {
     #[test]
     fn energy_density_is_the_integral_of_h_db() {
         // Reference: the composite trapezoid rule on 200 000 steps (error O(h^2), far below the tolerance).
-        let pts = [
-            [0.0, 0.0],
-            [16.0, 0.0025],
-            [54.0, 0.0125],
-            [143.0, 0.05],
-            [210.0, 0.2],
-            [342.0, 1.0],
-            [933.0, 1.5],
-            [4993.0, 1.7],
-            [48866.0, 2.22],
-        ];
-        let c = BhCurve::new(&pts).unwrap();
+        let c = BhCurve::new(&STEEL_LIKE).unwrap();
         for b in [0.001, 0.2, 0.73, 1.5, 1.99, 2.22, 2.5] {
             let steps = 200_000;
             let dx = b / steps as f64;

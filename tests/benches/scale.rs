@@ -237,18 +237,7 @@ fn sweep_benchmark() {
         return;
     };
     let dir = std::env::temp_dir().join(format!("lodestone-sweep-bench-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
-    let text = gap_sweep(0.68, 16);
-    let path = dir.join("sweep.toml");
-    std::fs::write(&path, &text).unwrap();
-    let t = Instant::now();
-    let ok = std::process::Command::new(&exe)
-        .args(["solve", "--quiet", path.to_str().unwrap(), "-o", dir.join("parallel").to_str().unwrap()])
-        .stdout(std::process::Stdio::null())
-        .status()
-        .map(|s| s.success())
-        .unwrap_or(false);
-    let parallel = t.elapsed().as_secs_f64();
+    let (path, parallel, ok) = timed_sweep(&exe, &dir, &gap_sweep(0.68, 16));
     let t = Instant::now();
     for k in 0..16 {
         let gap = 0.5 + 3.5 * k as f64 / 15.0;
@@ -266,7 +255,7 @@ fn sweep_benchmark() {
             .status();
     }
     let sequential = t.elapsed().as_secs_f64();
-    let triangles = std::fs::read_to_string(dir.join("parallel/variant-0000/results.json"))
+    let triangles = std::fs::read_to_string(dir.join("out/variant-0000/results.json"))
         .ok()
         .and_then(|s| s.split("\"elements\": ").nth(1).and_then(|r| r.split(',').next().map(str::to_string)))
         .unwrap_or_default();
@@ -307,23 +296,28 @@ fn design_sweep_benchmark() {
         return;
     };
     let dir = std::env::temp_dir().join(format!("lodestone-design-sweep-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
-    let text = gap_sweep(0.85, 100);
-    let path = dir.join("sweep.toml");
-    std::fs::write(&path, &text).unwrap();
-    let t = Instant::now();
-    let ok = std::process::Command::new(&exe)
-        .args(["solve", "--quiet", path.to_str().unwrap(), "-o", dir.join("out").to_str().unwrap()])
-        .stdout(std::process::Stdio::null())
-        .status()
-        .map(|s| s.success())
-        .unwrap_or(false);
-    let seconds = t.elapsed().as_secs_f64();
+    let (_, seconds, ok) = timed_sweep(&exe, &dir, &gap_sweep(0.85, 100));
     println!(
         "\nsweep of 100 design-sized saturating variants (about 2.8e4 unknowns each): {seconds:.1} s{}",
         if ok { "" } else { " (the sweep failed)" }
     );
     let _ = std::fs::remove_dir_all(&dir);
+}
+
+/// Writes `text` to DIR/sweep.toml and times one `lodestone solve` of it into
+/// DIR/out: (the case's path, seconds, whether it succeeded).
+fn timed_sweep(exe: &std::path::Path, dir: &std::path::Path, text: &str) -> (std::path::PathBuf, f64, bool) {
+    std::fs::create_dir_all(dir).unwrap();
+    let path = dir.join("sweep.toml");
+    std::fs::write(&path, text).unwrap();
+    let t = Instant::now();
+    let ok = std::process::Command::new(exe)
+        .args(["solve", "--quiet", path.to_str().unwrap(), "-o", dir.join("out").to_str().unwrap()])
+        .stdout(std::process::Stdio::null())
+        .status()
+        .map(|s| s.success())
+        .unwrap_or(false);
+    (path, t.elapsed().as_secs_f64(), ok)
 }
 
 /// The benchmark case with the plate's gap swept over `steps` values.
