@@ -19,8 +19,11 @@
 //!
 //! # Newton-Raphson
 //! The tangent is the exact derivative dH/dB = nu I + (dH/dB|_curve - nu) n n^T
-//! (n = B/|B|), assembled per quadrature point; a backtracking line search
-//! on the residual norm keeps the iteration monotone.
+//! (n = B/|B|), assembled per quadrature point, with its slope along B kept
+//! no softer than the secant while far from the solution; steps are solved
+//! by sparse Cholesky, or near the solution by conjugate gradients
+//! preconditioned with an earlier factorization (an inexact Newton method);
+//! a line search on the field energy keeps the iteration monotone.
 //!
 //! # Open boundary
 //! The exterior of the domain's circle is mapped by the Kelvin

@@ -1,5 +1,7 @@
-//! Newton-Raphson on the whole system with the exact tangent and a
-//! backtracking line search on the residual norm.
+//! Newton-Raphson on the whole system: a tangent kept no softer than the
+//! secant far from the solution and exact near it, each step solved by a
+//! fresh Cholesky factorization or by conjugate gradients preconditioned
+//! with an earlier one (newton_step), then a line search on the field energy.
 
 use crate::assembly::{System, NONE};
 use crate::linear_system::{CholeskySolver, LinearError};
@@ -66,21 +68,16 @@ fn norm(v: &[f64]) -> f64 {
     v.iter().map(|x| x * x).sum::<f64>().sqrt()
 }
 
-/// Solves the problem; returns the potential at every node (reduced field:
-/// the applied field's potential is not included) and the report.
-pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(usize, f64)) -> Result<(Vec<f64>, SolveReport), SolveError> {
-    let zero = vec![0.0; system.dof_of_node.len()];
-    newton_from(problem, system, zero, progress)
-}
-
 /// Relative residual above which the tangent is kept no softer than the
 /// secant (Tangent::NoSofterThanSecant); below it the exact tangent gives
 /// quadratic convergence.
 const STIFFENED_UNTIL: f64 = 1e-3;
 
-/// Newton-Raphson from the potential `a` (reduced, every node); residuals
-/// are reported relative to the residual at `a`.
-fn newton_from(problem: &Problem, system: &mut System, a: Vec<f64>, progress: &dyn Fn(usize, f64)) -> Result<(Vec<f64>, SolveReport), SolveError> {
+/// Solves the problem from zero potential; returns the potential at every
+/// node (reduced field: the applied field's potential is not included) and
+/// the report. Residuals are reported relative to the one at zero potential.
+pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(usize, f64)) -> Result<(Vec<f64>, SolveReport), SolveError> {
+    let a = vec![0.0; system.dof_of_node.len()];
     let mut report = SolveReport {
         n_dofs: system.n_dofs,
         ..Default::default()

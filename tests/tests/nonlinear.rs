@@ -146,7 +146,12 @@ fn inexact_newton_reaches_the_same_answer_with_fewer_factorizations() {
         inexact.solve.iterations
     );
     let (a, b) = (exact.forces["pull"].magnitude, inexact.forces["pull"].magnitude);
-    record("pull by inexact Newton against exact Newton", "Dembo, Eisenstat, Steihaug, SIAM J. Numer. Anal. 1982", 1e-6, rel(b, a));
+    record(
+        "pull by inexact Newton against exact Newton",
+        "Dembo, Eisenstat, Steihaug, SIAM J. Numer. Anal. 1982",
+        1e-6,
+        rel(b, a),
+    );
     assert!((a - b).abs() <= 1e-6 * a, "pull {a} N exact, {b} N inexact");
 }
 
