@@ -13,9 +13,10 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
         r.mesh.nodes, r.mesh.elements, r.mesh.element_order, r.mesh.unknowns, r.mesh.min_angle_deg
     );
     s += &format!(
-        "  solve: {} in {} iteration(s), residual {:.2e}, {:.2} s\n",
+        "  solve: {} in {} iteration(s), {} factorization(s), residual {:.2e}, {:.2} s\n",
         if r.solve.converged { "converged" } else { "NOT CONVERGED" },
         r.solve.iterations,
+        r.solve.factorizations,
         r.solve.residual,
         r.solve.seconds
     );

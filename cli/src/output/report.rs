@@ -19,9 +19,10 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
     );
     let _ = writeln!(
         s,
-        "Newton-Raphson: {} in {} iterations, relative residual {:.2e}, {:.2} s.\n",
+        "Newton-Raphson: {} in {} iterations ({} factorizations of the tangent), relative residual {:.2e}, {:.2} s.\n",
         if r.solve.converged { "converged" } else { "NOT CONVERGED" },
         r.solve.iterations,
+        r.solve.factorizations,
         r.solve.residual,
         r.solve.seconds
     );
