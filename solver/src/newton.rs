@@ -68,11 +68,6 @@ fn norm(v: &[f64]) -> f64 {
     v.iter().map(|x| x * x).sum::<f64>().sqrt()
 }
 
-/// Relative residual above which the tangent is kept no softer than the
-/// secant (Tangent::NoSofterThanSecant); below it the exact tangent gives
-/// quadratic convergence.
-const STIFFENED_UNTIL: f64 = 1e-3;
-
 /// Solves the problem from zero potential; returns the potential at every
 /// node (reduced field: the applied field's potential is not included) and
 /// the report. Residuals are reported relative to the one at zero potential.
@@ -84,7 +79,7 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
     };
     let linear = !problem.is_nonlinear();
     let kind = |rel: f64| {
-        if linear || rel <= STIFFENED_UNTIL {
+        if linear || rel <= problem.newton.stiffen_tangent_above {
             Tangent::Exact
         } else {
             Tangent::NoSofterThanSecant

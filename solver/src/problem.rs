@@ -16,6 +16,11 @@ pub struct NewtonSettings {
     /// an earlier factorization (an inexact Newton method), refactorizing
     /// only when that converges slowly; false factorizes every step.
     pub reuse_factorization: bool,
+    /// Relative residual above which the tangent's slope along B is kept no
+    /// softer than the secant (Tangent::NoSofterThanSecant); at or below it
+    /// the tangent is exact, for quadratic convergence. 1 or more: exact
+    /// from the start.
+    pub stiffen_tangent_above: f64,
 }
 
 impl Default for NewtonSettings {
@@ -25,6 +30,7 @@ impl Default for NewtonSettings {
             update_tolerance: 1e-6,
             max_iterations: 40,
             reuse_factorization: true,
+            stiffen_tangent_above: 1e-3,
         }
     }
 }

@@ -25,7 +25,13 @@ const TOP: &[&str] = &[
     "output",
     "solver",
 ];
-const SOLVER: &[&str] = &["residual_tolerance", "update_tolerance", "max_iterations", "reuse_factorization"];
+const SOLVER: &[&str] = &[
+    "residual_tolerance",
+    "update_tolerance",
+    "max_iterations",
+    "reuse_factorization",
+    "stiffen_tangent_above",
+];
 const STUDY: &[&str] = &[
     "title",
     "geometry",
@@ -356,6 +362,7 @@ fn solver_settings(top: &Fields) -> Result<solver::NewtonSettings, Diagnostic> {
         residual_tolerance: number("residual_tolerance", d.residual_tolerance, 1e-14, 1e-2)?,
         update_tolerance: number("update_tolerance", d.update_tolerance, 1e-14, 1.0)?,
         max_iterations: number("max_iterations", d.max_iterations as f64, 1.0, 1000.0)?.round() as usize,
+        stiffen_tangent_above: number("stiffen_tangent_above", d.stiffen_tangent_above, 1e-12, 10.0)?,
         reuse_factorization: t
             .get("reuse_factorization")
             .map(|v| v.bool("solver.reuse_factorization"))
