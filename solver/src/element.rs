@@ -71,7 +71,9 @@ pub fn for_each_point(x: &[[f64; 2]; 3], order: ElementOrder, symmetry: Symmetry
     }
 }
 
-/// Shape functions and their gradients at barycentric point `lam`.
+/// Shape functions and their gradients at barycentric point `lam`
+/// (written out without array maps: this runs at every quadrature point of
+/// every assembly).
 fn shape(order: ElementOrder, lam: [f64; 3], grad_lam: [[f64; 2]; 3]) -> ([f64; MAX_NODES], [[f64; 2]; MAX_NODES]) {
     let mut n = [0.0; MAX_NODES];
     let mut dn = [[0.0; 2]; MAX_NODES];
@@ -82,12 +84,16 @@ fn shape(order: ElementOrder, lam: [f64; 3], grad_lam: [[f64; 2]; 3]) -> ([f64; 
         }
         ElementOrder::Quadratic => {
             for i in 0..3 {
+                let c = 4.0 * lam[i] - 1.0;
                 n[i] = lam[i] * (2.0 * lam[i] - 1.0);
-                dn[i] = grad_lam[i].map(|g| (4.0 * lam[i] - 1.0) * g);
+                dn[i] = [c * grad_lam[i][0], c * grad_lam[i][1]];
             }
-            for (k, [a, b]) in EDGES.iter().enumerate() {
-                n[3 + k] = 4.0 * lam[*a] * lam[*b];
-                dn[3 + k] = [0, 1].map(|d| 4.0 * (lam[*a] * grad_lam[*b][d] + lam[*b] * grad_lam[*a][d]));
+            for (k, &[a, b]) in EDGES.iter().enumerate() {
+                n[3 + k] = 4.0 * lam[a] * lam[b];
+                dn[3 + k] = [
+                    4.0 * (lam[a] * grad_lam[b][0] + lam[b] * grad_lam[a][0]),
+                    4.0 * (lam[a] * grad_lam[b][1] + lam[b] * grad_lam[a][1]),
+                ];
             }
         }
     }
@@ -122,7 +128,10 @@ fn point_op_in(
 ) -> PointOp {
     let (n, dn) = shape(order, lam, grad_lam);
     let len = order.n_nodes();
-    let p = [0, 1].map(|k| lam[0] * x[0][k] + lam[1] * x[1][k] + lam[2] * x[2][k]);
+    let p = [
+        lam[0] * x[0][0] + lam[1] * x[1][0] + lam[2] * x[2][0],
+        lam[0] * x[0][1] + lam[1] * x[1][1] + lam[2] * x[2][1],
+    ];
     let mut g = [[0.0; MAX_NODES]; 2];
     match symmetry {
         Symmetry::Planar => {
@@ -172,7 +181,8 @@ pub fn barycentric(x: &[[f64; 2]; 3], p: [f64; 2]) -> [f64; 3] {
 #[allow(clippy::needless_range_loop)]
 pub fn flux_density(op: &PointOp, a: &[f64; MAX_NODES], background: [f64; 2]) -> [f64; 2] {
     let mut b = background;
-    for i in 0..op.len {
+    // Fixed bounds: G is zero past op.len.
+    for i in 0..MAX_NODES {
         b[0] += op.g[0][i] * a[i];
         b[1] += op.g[1][i] * a[i];
     }
@@ -209,7 +219,8 @@ fn point_field(op: &PointOp, a: &[f64; MAX_NODES], load: &ElementLoad) -> ([f64;
 /// Adds w (G^T h - N J) at one point to the element residual.
 #[allow(clippy::needless_range_loop)]
 fn add_residual(r: &mut [f64; MAX_NODES], op: &PointOp, h: [f64; 2], load: &ElementLoad) {
-    for i in 0..op.len {
+    // Fixed bounds: G and N are zero past op.len.
+    for i in 0..MAX_NODES {
         r[i] += op.weight * (op.g[0][i] * h[0] + op.g[1][i] * h[1] - op.n[i] * load.current_density);
     }
 }
@@ -230,7 +241,8 @@ pub fn element_system(
         let (h, resp) = point_field(op, a, &load);
         add_residual(&mut r, op, h, &load);
         // K is symmetric (dH/dB is): accumulate the lower triangle, mirror once.
-        for i in 0..op.len {
+        // Fixed bounds (G is zero past op.len), so the loops unroll.
+        for i in 0..MAX_NODES {
             let tg = [
                 op.weight * (resp.dh_db[0][0] * op.g[0][i] + resp.dh_db[0][1] * op.g[1][i]),
                 op.weight * (resp.dh_db[1][0] * op.g[0][i] + resp.dh_db[1][1] * op.g[1][i]),

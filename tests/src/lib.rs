@@ -73,6 +73,19 @@ pub fn solve_with<T>(
     applied: [f64; 2],
     f: impl FnOnce(&Solution) -> T,
 ) -> T {
+    solve_with_order(solver::element::ElementOrder::Quadratic, symmetry, parts, refinements, outer, applied, f)
+}
+
+/// `solve_with` on elements of the given order.
+pub fn solve_with_order<T>(
+    order: solver::element::ElementOrder,
+    symmetry: Symmetry,
+    parts: Vec<TestPart>,
+    refinements: Vec<Refinement>,
+    outer: OuterBoundary,
+    applied: [f64; 2],
+    f: impl FnOnce(&Solution) -> T,
+) -> T {
     let s = spec(symmetry, parts.iter().map(|p| (p.shape.clone(), p.size)).collect(), refinements, outer);
     let m = mesh(&s);
     let mut problem = Problem::new(
@@ -81,6 +94,7 @@ pub fn solve_with<T>(
         parts.iter().map(|p| p.current_density).collect(),
     );
     problem.applied_field = applied;
+    problem.order = order;
     let sol = solver::solve(&problem, &|_, _| {}).expect("test problem solves");
     assert!(sol.report.converged, "test problem converges");
     f(&sol)

@@ -176,18 +176,16 @@ fn superposition_of_two_coaxial_magnets() {
     assert!(rel(both, one + other) < 0.005, "{both} vs {one} + {other}");
 }
 
-#[test]
-fn off_axis_error_falls_at_the_rate_of_quadratic_elements() {
-    // Source: a priori estimate for P2 elements: the error of B (a first derivative) falls as h^2
-    // (e.g. S. C. Brenner, L. R. Scott, The Mathematical Theory of Finite Element Methods, 3rd ed., 2008, ch. 4).
+/// Error of B at one point off the axis of a cylinder magnet, at three element sizes.
+fn off_axis_errors(order: solver::element::ElementOrder, sizes: &[f64]) -> (Vec<f64>, f64) {
     let (a, l) = (0.005, 0.01);
     let p = [0.006, 0.013];
     let exact = cylinder_field(BR, a, l / 2.0, p[0], p[1] - l / 2.0);
-    let sizes = [0.0016, 0.0008, 0.0004];
-    let errors: Vec<f64> = sizes
+    let errors = sizes
         .iter()
         .map(|&h| {
-            solve_with(
+            solve_with_order(
+                order,
                 Symmetry::Axisymmetric,
                 vec![magnet(rect(0.0, 0.0, a, l), h, [0.0, BR])],
                 vec![Refinement::Point { at: p, size: h }],
@@ -200,9 +198,29 @@ fn off_axis_error_falls_at_the_rate_of_quadratic_elements() {
             )
         })
         .collect();
+    (errors, exact[0].hypot(exact[1]))
+}
+
+#[test]
+fn off_axis_error_falls_at_the_rate_of_quadratic_elements() {
+    // Source: a priori estimate for P2 elements: the error of B (a first derivative) falls as h^2
+    // (e.g. S. C. Brenner, L. R. Scott, The Mathematical Theory of Finite Element Methods, 3rd ed., 2008, ch. 4).
+    let sizes = [0.0016, 0.0008, 0.0004];
+    let (errors, b) = off_axis_errors(solver::element::ElementOrder::Quadratic, &sizes);
     let slope = log_log_slope(&sizes, &errors);
     assert!(slope > 1.5, "error {errors:?} falls with slope {slope}, expected about 2");
-    assert!(errors[2] < 0.005 * exact[0].hypot(exact[1]), "finest error {}", errors[2]);
+    assert!(errors[2] < 0.005 * b, "finest error {}", errors[2]);
+}
+
+#[test]
+fn off_axis_error_falls_at_the_rate_of_linear_elements() {
+    // Source: the same estimate for P1 elements: B is constant in each triangle and its error
+    // falls as h (Brenner and Scott 2008, ch. 4); `[mesh] order = 1` selects them.
+    let sizes = [0.0016, 0.0008, 0.0004];
+    let (errors, b) = off_axis_errors(solver::element::ElementOrder::Linear, &sizes);
+    let slope = log_log_slope(&sizes, &errors);
+    assert!((0.7..1.6).contains(&slope), "error {errors:?} falls with slope {slope}, expected about 1");
+    assert!(errors[2] < 0.05 * b, "finest error {} against |B| {b}", errors[2]);
 }
 
 #[test]
