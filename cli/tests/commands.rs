@@ -267,3 +267,20 @@ point = [0, "length"]
     assert!(bz[5] / bz[3] < 1.06, "{bz:?}");
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+#[test]
+fn non_convergence_exits_3_with_the_history_and_writes_the_last_iterate() {
+    // Two Newton steps cannot bring the saturating pot magnet to 1e-8.
+    let dir = temp("unconverged");
+    let text = std::fs::read_to_string(cases().join("pot-magnet.toml")).unwrap();
+    let case = dir.join("short.toml");
+    std::fs::write(&case, format!("{text}\n[solver]\nmax_iterations = 2\n")).unwrap();
+    let out = dir.join("out");
+    let (code, text) = run(exe().args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()]));
+    assert_eq!(code, 3, "{text}");
+    assert!(text.contains("did not converge in 2 iterations; residual history: 1.00e0 "), "{text}");
+    let json = std::fs::read_to_string(out.join("results.json")).expect("the last iterate is written");
+    assert!(json.contains("\"converged\": false"), "{json}");
+    assert!(out.join("field.vtu").exists());
+    let _ = std::fs::remove_dir_all(&dir);
+}
