@@ -196,7 +196,9 @@ pub struct System {
 }
 
 impl System {
-    pub fn new(mesh: &Mesh, order: ElementOrder) -> System {
+    /// The structure for `mesh`; refused when the matrix would have more
+    /// entries than the scatter map's 32-bit slots can address.
+    pub fn new(mesh: &Mesh, order: ElementOrder) -> Result<System, SystemTooLarge> {
         let elements = Elements::from_mesh(mesh, order);
         let fixed = fixed_nodes(mesh, &elements);
         let mut dof_of_node = vec![NONE; elements.n_nodes];
@@ -207,10 +209,10 @@ impl System {
                 n_dofs += 1;
             }
         }
-        let (pattern, scatter) = build_pattern(&elements, &dof_of_node, n_dofs);
+        let (pattern, scatter) = build_pattern(&elements, &dof_of_node, n_dofs)?;
         let nnz = pattern.nnz();
-        let matrix = CscMatrix::try_from_pattern_and_values(pattern, vec![0.0; nnz]).expect("pattern and values agree by construction");
-        System {
+        let matrix = CscMatrix::try_from_pattern_and_values(pattern, vec![0.0; nnz]).map_err(|_| SystemTooLarge { entries: nnz })?;
+        Ok(System {
             elements,
             dof_of_node,
             n_dofs,
@@ -220,7 +222,7 @@ impl System {
             air: Law::air(),
             affine: None,
             nonlinear: Vec::new(),
-        }
+        })
     }
 
     /// Fills the tangent and returns the residual at nodal potentials `a` (all nodes).
@@ -470,7 +472,7 @@ fn element_dofs(els: &Elements, dof_of_node: &[usize], e: usize) -> [usize; MAX_
 }
 
 /// Column lists of the lower triangle, then the slot of each element entry.
-fn build_pattern(els: &Elements, dof_of_node: &[usize], n: usize) -> (SparsityPattern, Vec<u32>) {
+fn build_pattern(els: &Elements, dof_of_node: &[usize], n: usize) -> Result<(SparsityPattern, Vec<u32>), SystemTooLarge> {
     let m = els.order.n_nodes();
     // Free dofs of every element, computed once for both passes.
     let dofs: Vec<[usize; MAX_NODES]> = (0..els.len()).into_par_iter().map(|e| element_dofs(els, dof_of_node, e)).collect();
@@ -529,6 +531,9 @@ fn build_pattern(els: &Elements, dof_of_node: &[usize], n: usize) -> (SparsityPa
         offsets.push(indices.len());
     }
     drop(rows);
+    if indices.len() >= NO_SLOT as usize {
+        return Err(SystemTooLarge { entries: indices.len() });
+    }
     let scatter = dofs
         .par_iter()
         .flat_map_iter(|d| {
@@ -544,6 +549,14 @@ fn build_pattern(els: &Elements, dof_of_node: &[usize], n: usize) -> (SparsityPa
             s
         })
         .collect();
-    let pattern = SparsityPattern::try_from_offsets_and_indices(n, n, offsets, indices).expect("sorted unique indices by construction");
-    (pattern, scatter)
+    let entries = indices.len();
+    let pattern = SparsityPattern::try_from_offsets_and_indices(n, n, offsets, indices).map_err(|_| SystemTooLarge { entries })?;
+    Ok((pattern, scatter))
+}
+
+/// The matrix would need more entries than a 32-bit slot addresses (or its
+/// pattern could not be formed): the mesh is far too fine.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct SystemTooLarge {
+    pub entries: usize,
 }

@@ -17,7 +17,6 @@ pub struct SolveReport {
     pub iterations: usize,
     /// |residual| / |residual at zero potential| after each iteration (first entry: 1).
     pub residual_history: Vec<f64>,
-    pub update_history: Vec<f64>,
     pub n_dofs: usize,
     pub seconds_pattern: f64,
     pub seconds_assembly: f64,
@@ -40,6 +39,10 @@ impl SolveReport {
 #[derive(Clone, Debug, PartialEq)]
 pub enum SolveError {
     Linear(LinearError),
+    /// The matrix is too large for this solver's indexing.
+    TooLarge {
+        entries: usize,
+    },
     /// A NaN or infinity appeared in the iterate.
     NotFinite {
         iteration: usize,
@@ -54,6 +57,10 @@ impl std::fmt::Display for SolveError {
                 "the system matrix is not positive definite: check for non-physical materials (permeability <= 0) or a region with no reference potential"
             ),
             SolveError::Linear(LinearError::OutOfMemory) => write!(f, "out of memory in the sparse factorization; coarsen the mesh"),
+            SolveError::TooLarge { entries } => write!(
+                f,
+                "the system matrix would have {entries} entries, more than this solver addresses; coarsen the mesh"
+            ),
             SolveError::NotFinite { iteration } => write!(
                 f,
                 "a non-finite value appeared in Newton iteration {iteration}; check material data for zeros or extreme values"
@@ -63,6 +70,12 @@ impl std::fmt::Display for SolveError {
 }
 
 impl std::error::Error for SolveError {}
+
+impl From<crate::assembly::SystemTooLarge> for SolveError {
+    fn from(e: crate::assembly::SystemTooLarge) -> Self {
+        SolveError::TooLarge { entries: e.entries }
+    }
+}
 
 fn norm(v: &[f64]) -> f64 {
     v.iter().map(|x| x * x).sum::<f64>().sqrt()
@@ -139,7 +152,6 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
         let rel = norm(&now.residual) / r0;
         report.iterations = it;
         report.residual_history.push(rel);
-        report.update_history.push(update);
         progress(it, rel);
         if !rel.is_finite() {
             return Err(SolveError::NotFinite { iteration: it });

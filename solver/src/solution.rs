@@ -36,7 +36,7 @@ pub struct PointField {
 /// Solves the problem. `progress` hears (iteration, relative residual).
 pub fn solve<'m>(problem: &Problem<'m>, progress: &dyn Fn(usize, f64)) -> Result<Solution<'m>, SolveError> {
     let t = std::time::Instant::now();
-    let mut system = System::new(problem.mesh, problem.order);
+    let mut system = System::new(problem.mesh, problem.order)?;
     let pattern_seconds = t.elapsed().as_secs_f64();
     let (reduced, mut report) = newton_solve(problem, &mut system, progress)?;
     report.seconds_pattern = pattern_seconds;
