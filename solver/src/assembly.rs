@@ -193,6 +193,8 @@ pub struct System {
     affine: Option<AffinePart>,
     /// Elements with a saturating law, evaluated at every assembly.
     nonlinear: Vec<usize>,
+    /// Fill-reducing elimination order of the unknowns, from the mesh.
+    pub ordering: Option<Vec<usize>>,
 }
 
 impl System {
@@ -209,7 +211,13 @@ impl System {
                 n_dofs += 1;
             }
         }
-        let (pattern, scatter) = build_pattern(&elements, &dof_of_node, n_dofs)?;
+        // The elimination order needs only the elements: it is made on one
+        // core while the pattern is built on the other.
+        let (built, ordering) = rayon::join(
+            || build_pattern(&elements, &dof_of_node, n_dofs),
+            || crate::ordering::fill_reducing_order(&elements, &dof_of_node, n_dofs),
+        );
+        let (pattern, scatter) = built?;
         let nnz = pattern.nnz();
         let matrix = CscMatrix::try_from_pattern_and_values(pattern, vec![0.0; nnz]).map_err(|_| SystemTooLarge { entries: nnz })?;
         Ok(System {
@@ -222,6 +230,7 @@ impl System {
             air: Law::air(),
             affine: None,
             nonlinear: Vec::new(),
+            ordering,
         })
     }
 

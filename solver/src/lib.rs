@@ -45,6 +45,7 @@ pub mod magnet_check;
 pub mod material;
 pub mod newton;
 pub mod newton_step;
+mod ordering;
 pub mod problem;
 pub mod quadrature;
 mod segment_grid;

@@ -1,0 +1,52 @@
+//! The fill-reducing ordering built from the mesh's corner graph against the
+//! approximate minimum degree ordering of the assembled matrix (P. R.
+//! Amestoy, T. A. Davis, I. S. Duff, An approximate minimum degree ordering
+//! algorithm, SIAM J. Matrix Anal. Appl. 17(4), 1996, as implemented by the
+//! faer library): for quadratic elements, a permutation of the unknowns
+//! whose Cholesky factor is no larger.
+
+use mesher::{OuterBoundary, Symmetry};
+use solver::assembly::System;
+use solver::element::ElementOrder;
+use solver::linear_system::CholeskySolver;
+use validation::{mesh, rect, spec};
+
+/// Factor entries with the mesh ordering and with AMD of the matrix.
+fn factor_sizes(symmetry: Symmetry, size: f64) -> (usize, usize) {
+    let parts = vec![
+        (rect(0.0, -5e-3, 20e-3, 0.0), size),
+        (rect(0.0, 0.0, 15e-3, 10e-3), size),
+        (rect(0.0, 11e-3, 40e-3, 17e-3), size),
+    ];
+    let m = mesh(&spec(symmetry, parts, vec![], OuterBoundary::Open));
+    let system = System::new(&m, ElementOrder::Quadratic).expect("small system");
+    let ordering = system.ordering.as_deref().expect("an ordering is made");
+    let mut sorted = ordering.to_vec();
+    sorted.sort_unstable();
+    assert!(sorted.iter().enumerate().all(|(k, &d)| k == d), "the ordering is a permutation of the unknowns");
+    let pattern = system.matrix.pattern();
+    let with_mesh = CholeskySolver::analyse(pattern, Some(ordering)).expect("analysis").factor_entries();
+    let with_amd = CholeskySolver::analyse(pattern, None).expect("analysis").factor_entries();
+    (with_mesh, with_amd)
+}
+
+#[test]
+fn mesh_ordering_fills_no_more_than_amd_of_the_matrix() {
+    for symmetry in [Symmetry::Axisymmetric, Symmetry::Planar] {
+        for size in [2e-3, 0.7e-3, 0.3e-3] {
+            let (with_mesh, with_amd) = factor_sizes(symmetry, size);
+            eprintln!(
+                "{symmetry:?} size {size}: mesh ordering {with_mesh}, AMD {with_amd}, ratio {:.3}",
+                with_mesh as f64 / with_amd as f64
+            );
+            assert!(with_mesh <= with_amd, "{symmetry:?} {size}: {with_mesh} entries against {with_amd}");
+        }
+    }
+}
+
+#[test]
+fn linear_elements_keep_amd_of_the_matrix() {
+    let parts = vec![(rect(0.0, 0.0, 15e-3, 10e-3), 2e-3)];
+    let m = mesh(&spec(Symmetry::Planar, parts, vec![], OuterBoundary::Open));
+    assert!(System::new(&m, ElementOrder::Linear).expect("small system").ordering.is_none());
+}
