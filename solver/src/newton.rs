@@ -130,6 +130,7 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
     let mut solver = TangentSolver::new(analysis.map_err(SolveError::Linear)?);
     let settings = problem.newton;
     let mut forcing = Forcing::new(settings.residual_tolerance);
+    let mut previous_update = None;
     for it in 1..=settings.max_iterations {
         let rel_now = report.residual_history.last().copied().unwrap_or(1.0);
         // Far from the solution the tangent moves too much between steps for an
@@ -146,9 +147,11 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
         if step.iter().any(|v| !v.is_finite()) {
             return Err(SolveError::NotFinite { iteration: it });
         }
-        let (next, seconds) = line_search(problem, system, &now, &step, kind(rel_now));
+        let (next, alpha, seconds) = line_search(problem, system, &now, &step, kind(rel_now));
         report.seconds_assembly += seconds;
         let update = norm(&step) / norm_of_dofs(system, &next.a).max(f64::MIN_POSITIVE);
+        let error = error_estimate(update, previous_update, alpha);
+        previous_update = Some(update);
         now = next;
         let rel = norm(&now.residual) / r0;
         report.iterations = it;
@@ -157,12 +160,31 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
         if !rel.is_finite() {
             return Err(SolveError::NotFinite { iteration: it });
         }
-        if (linear && rel < 1e-6) || (rel < settings.residual_tolerance && update < settings.update_tolerance.max(1e-14)) || rel < 1e-14 {
+        if (linear && rel < 1e-6) || (rel < settings.residual_tolerance && error < settings.update_tolerance.max(1e-14)) || rel < 1e-14 {
             report.converged = true;
             break;
         }
     }
     Ok((now.a, report))
+}
+
+/// The error of the new iterate relative to the potential, estimated from
+/// the step `update` that made it (relative, full length) and the step
+/// before it. The step measures the error of the iterate it started from;
+/// a full step that contracted by theta = |d_k| / |d_k-1| <= 1/2 leaves at
+/// most theta / (1 - theta) |d_k| to go while the contraction lasts (a
+/// geometric series; near the solution Newton's contraction only improves).
+/// This is the contraction monitor of P. Deuflhard (Newton Methods for
+/// Nonlinear Problems, Springer, 2004, chapter 2). A damped step, or one that
+/// did not contract, is its own estimate.
+fn error_estimate(update: f64, previous: Option<f64>, alpha: f64) -> f64 {
+    match previous {
+        Some(before) if alpha == 1.0 && update <= 0.5 * before => {
+            let theta = update / before;
+            update * theta / (1.0 - theta)
+        }
+        _ => update,
+    }
 }
 
 /// Forcing terms of the inexact Newton method: choice 2 of S. C. Eisenstat
@@ -238,7 +260,8 @@ fn shifted(system: &System, a: &[f64], step: &[f64], alpha: f64) -> Vec<f64> {
 /// The energy is convex (H(B) is monotone), so the zero is unique.
 /// Leaves the system assembled at the accepted point.
 /// The tangent assembled there is of kind `tangent`.
-fn line_search(problem: &Problem, system: &mut System, at: &Iterate, step: &[f64], tangent: Tangent) -> (Iterate, f64) {
+/// Returns the accepted point, its step length alpha and the seconds spent.
+fn line_search(problem: &Problem, system: &mut System, at: &Iterate, step: &[f64], tangent: Tangent) -> (Iterate, f64, f64) {
     let t = Instant::now();
     // The affine residual is linear in the potential: r_aff(a + alpha s) = r_aff(a) + alpha K_aff s.
     let along = system.affine_product(step);
@@ -250,7 +273,7 @@ fn line_search(problem: &Problem, system: &mut System, at: &Iterate, step: &[f64
     };
     let full = accept(system, 1.0, affine_at(1.0));
     if !problem.is_nonlinear() {
-        return (full, t.elapsed().as_secs_f64());
+        return (full, 1.0, t.elapsed().as_secs_f64());
     }
     // The slopes at alpha = 0 and 1: residual . step (negative for a descent step).
     let g0 = dot(&at.residual, step);
@@ -261,7 +284,7 @@ fn line_search(problem: &Problem, system: &mut System, at: &Iterate, step: &[f64
     // eq. 3.7): near the solution a full Newton step overshoots the line's
     // minimum by O(|r|^2), and cutting it would spoil the quadratic rate.
     if g1 <= 0.1 * g0.abs() {
-        return (full, t.elapsed().as_secs_f64());
+        return (full, 1.0, t.elapsed().as_secs_f64());
     }
     let (mut lo, mut glo) = (0.0, if g0 < 0.0 { g0 } else { -g1.abs().max(f64::MIN_POSITIVE) });
     let (mut hi, mut ghi) = (1.0, g1);
@@ -283,7 +306,7 @@ fn line_search(problem: &Problem, system: &mut System, at: &Iterate, step: &[f64
     }
     // One full assembly at the accepted point, for the next Newton step.
     let accepted = accept(system, alpha, affine_at(alpha));
-    (accepted, t.elapsed().as_secs_f64())
+    (accepted, alpha, t.elapsed().as_secs_f64())
 }
 
 /// A Newton iterate: nodal potentials, the residual there and its affine part.
@@ -291,4 +314,24 @@ struct Iterate {
     a: Vec<f64>,
     residual: Vec<f64>,
     affine: Vec<f64>,
+}
+
+#[cfg(test)]
+mod tests {
+    use super::error_estimate;
+
+    #[test]
+    fn a_contracting_full_step_estimates_the_error_left_by_the_geometric_series() {
+        // theta = 1e-6 / 1e-4 = 0.01: the error left is 1e-6 * 0.01 / 0.99.
+        assert!((error_estimate(1e-6, Some(1e-4), 1.0) - 1e-8 / 0.99).abs() < 1e-20);
+        // theta = 1/2 is the largest contraction trusted: estimate = the step.
+        assert_eq!(error_estimate(1e-6, Some(2e-6), 1.0), 1e-6);
+    }
+
+    #[test]
+    fn a_first_damped_or_growing_step_is_its_own_estimate() {
+        assert_eq!(error_estimate(1e-6, None, 1.0), 1e-6);
+        assert_eq!(error_estimate(1e-6, Some(1e-4), 0.8), 1e-6);
+        assert_eq!(error_estimate(1e-6, Some(1.5e-6), 1.0), 1e-6);
+    }
 }
