@@ -17,6 +17,17 @@ pub enum LinearError {
     OutOfMemory,
 }
 
+/// How the symbolic analysis orders the elimination.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Elimination {
+    /// The unknowns are already numbered in a fill-reducing order (made
+    /// from the mesh by `ordering`): no permutation, so none is applied to
+    /// the matrix at each numeric factorization.
+    AsNumbered,
+    /// The approximate minimum degree ordering of the matrix pattern.
+    MinimumDegree,
+}
+
 /// A reusable factorization of one sparsity pattern.
 pub struct CholeskySolver {
     symbolic: SymbolicCholesky<usize>,
@@ -36,28 +47,32 @@ fn view(m: &CscMatrix<f64>) -> SparseColMatRef<'_, usize, f64> {
 const PAR: Par = Par::Seq;
 
 impl CholeskySolver {
-    /// Symbolic analysis of the lower triangle with the given elimination
-    /// order (`ordering[k]`: the unknown eliminated k-th, made from the mesh
-    /// by `ordering`), or else with the approximate minimum degree ordering
-    /// of this pattern (P. R. Amestoy, T. A. Davis, I. S. Duff, SIAM J.
-    /// Matrix Anal. Appl. 17(4), 1996). At 1e6 quadratic unknowns the mesh's
-    /// ordering took 0.6 s of analysis against 2.5 s and its factor was 12 to
-    /// 20 % smaller. Geometric nested dissection (the straight cut with the
-    /// smallest separator between 30 and 70 % of each set) was tried: it
-    /// factorized no faster than AMD and took longer to order.
-    pub fn analyse(pattern: &SparsityPattern, ordering: Option<&[usize]>) -> Result<CholeskySolver, LinearError> {
+    /// Symbolic analysis of the lower triangle: elimination in the order
+    /// the unknowns are numbered, or by the approximate minimum degree
+    /// ordering of this pattern (P. R. Amestoy, T. A. Davis, I. S. Duff,
+    /// SIAM J. Matrix Anal. Appl. 17(4), 1996). At 1e6 quadratic unknowns
+    /// the mesh's ordering took 0.6 s of analysis against 2.5 s for AMD of
+    /// the matrix, and its factor was 12 to 20 % smaller. Geometric nested
+    /// dissection (the straight cut with the smallest separator between 30
+    /// and 70 % of each set) was tried: it factorized no faster than AMD and
+    /// took longer to order.
+    pub fn analyse(pattern: &SparsityPattern, elimination: Elimination) -> Result<CholeskySolver, LinearError> {
         let n = pattern.major_dim();
-        let view = SymbolicSparseColMatRef::new_checked(n, n, pattern.major_offsets(), None, pattern.minor_indices());
-        let inverse: Option<Vec<usize>> = ordering.filter(|p| p.len() == n).map(|p| {
-            let mut inv = vec![0; n];
-            p.iter().enumerate().for_each(|(k, &d)| inv[d] = k);
-            inv
-        });
-        let ord = match (ordering, &inverse) {
-            (Some(p), Some(inv)) => SymmetricOrdering::Custom(faer::perm::PermRef::new_checked(p, inv, n)),
-            _ => SymmetricOrdering::Amd,
-        };
-        let symbolic = factorize_symbolic_cholesky(view, Side::Lower, ord, Default::default()).map_err(|_| LinearError::OutOfMemory)?;
+        let symbolic = match elimination {
+            Elimination::AsNumbered => {
+                // Without a permutation faer reads the pattern as the upper
+                // triangle whatever side it is told (faer 0.24), so it is
+                // handed the transpose.
+                let (offsets, rows) = transposed(pattern);
+                let view = SymbolicSparseColMatRef::new_checked(n, n, &offsets, None, &rows);
+                factorize_symbolic_cholesky(view, Side::Upper, SymmetricOrdering::Identity, Default::default())
+            }
+            Elimination::MinimumDegree => {
+                let view = SymbolicSparseColMatRef::new_checked(n, n, pattern.major_offsets(), None, pattern.minor_indices());
+                factorize_symbolic_cholesky(view, Side::Lower, SymmetricOrdering::Amd, Default::default())
+            }
+        }
+        .map_err(|_| LinearError::OutOfMemory)?;
         Ok(CholeskySolver { symbolic, scratch: None })
     }
 
@@ -109,6 +124,27 @@ impl CholeskySolver {
         };
         LltRef::new(&self.symbolic, &factor.values).solve_in_place_with_conj(Conj::No, mat, PAR, MemStack::new(&mut buffer));
     }
+}
+
+/// The pattern of the transpose (upper triangle by columns), rows sorted.
+fn transposed(pattern: &SparsityPattern) -> (Vec<usize>, Vec<usize>) {
+    let n = pattern.major_dim();
+    let mut offsets = vec![0usize; n + 1];
+    for &r in pattern.minor_indices() {
+        offsets[r + 1] += 1;
+    }
+    for c in 0..n {
+        offsets[c + 1] += offsets[c];
+    }
+    let mut fill = offsets.clone();
+    let mut rows = vec![0usize; pattern.nnz()];
+    for c in 0..n {
+        for &r in pattern.lane(c) {
+            rows[fill[r]] = c;
+            fill[r] += 1;
+        }
+    }
+    (offsets, rows)
 }
 
 /// The numeric values of a factorization, used with the solver that made them.

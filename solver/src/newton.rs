@@ -106,11 +106,11 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
     // The symbolic analysis needs only the pattern: it runs on one core
     // while the first assembly runs on the other.
     let pattern = system.matrix.pattern().clone();
-    let ordering = system.ordering.take();
+    let elimination = system.elimination;
     let ((analysis, seconds_symbolic), (mut now, seconds_assembly)) = rayon::join(
         || {
             let t = Instant::now();
-            (CholeskySolver::analyse(&pattern, ordering.as_deref()), t.elapsed().as_secs_f64())
+            (CholeskySolver::analyse(&pattern, elimination), t.elapsed().as_secs_f64())
         },
         || {
             let t = Instant::now();

@@ -185,7 +185,7 @@ mod tests {
         let (n, tolerance) = (200, 1e-6);
         let old = laplacian(n, 0.0, &[]);
         let new = laplacian(n, 0.0, &[20, 90, 150]);
-        let mut solver = TangentSolver::new(CholeskySolver::analyse(old.pattern(), None).unwrap());
+        let mut solver = TangentSolver::new(CholeskySolver::analyse(old.pattern(), crate::linear_system::Elimination::MinimumDegree).unwrap());
         let b: Vec<f64> = (0..n).map(|i| ((i * 7919) % 13) as f64 - 6.0).collect();
         let (_, first) = solver.step(&old, &b, tolerance).unwrap();
         assert!(first.factorized, "the first step has no factor to reuse");
@@ -199,7 +199,8 @@ mod tests {
     #[test]
     fn a_far_tangent_is_factorized_afresh_and_solved_exactly() {
         let n = 200;
-        let mut solver = TangentSolver::new(CholeskySolver::analyse(laplacian(n, 0.0, &[]).pattern(), None).unwrap());
+        let mut solver =
+            TangentSolver::new(CholeskySolver::analyse(laplacian(n, 0.0, &[]).pattern(), crate::linear_system::Elimination::MinimumDegree).unwrap());
         let b: Vec<f64> = (0..n).map(|i| (i % 5) as f64).collect();
         solver.step(&laplacian(n, 0.0, &[]), &b, 1e-8).unwrap();
         // A diagonal shift of 50 (against 2) everywhere leaves the old factor useless as a preconditioner.

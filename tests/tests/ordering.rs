@@ -2,13 +2,13 @@
 //! approximate minimum degree ordering of the assembled matrix (P. R.
 //! Amestoy, T. A. Davis, I. S. Duff, An approximate minimum degree ordering
 //! algorithm, SIAM J. Matrix Anal. Appl. 17(4), 1996, as implemented by the
-//! faer library): for quadratic elements, a permutation of the unknowns
-//! whose Cholesky factor is no larger.
+//! faer library): for quadratic elements, a numbering of the unknowns whose
+//! Cholesky factor is no larger.
 
 use mesher::{OuterBoundary, Symmetry};
 use solver::assembly::System;
 use solver::element::ElementOrder;
-use solver::linear_system::CholeskySolver;
+use solver::linear_system::{CholeskySolver, Elimination};
 use validation::{mesh, rect, spec};
 
 /// Factor entries with the mesh ordering and with AMD of the matrix.
@@ -20,13 +20,13 @@ fn factor_sizes(symmetry: Symmetry, size: f64) -> (usize, usize) {
     ];
     let m = mesh(&spec(symmetry, parts, vec![], OuterBoundary::Open));
     let system = System::new(&m, ElementOrder::Quadratic).expect("small system");
-    let ordering = system.ordering.as_deref().expect("an ordering is made");
-    let mut sorted = ordering.to_vec();
-    sorted.sort_unstable();
-    assert!(sorted.iter().enumerate().all(|(k, &d)| k == d), "the ordering is a permutation of the unknowns");
+    assert_eq!(system.elimination, Elimination::AsNumbered);
+    let mut dofs: Vec<usize> = system.dof_of_node.iter().copied().filter(|&d| d != usize::MAX).collect();
+    dofs.sort_unstable();
+    assert!(dofs.iter().enumerate().all(|(k, &d)| k == d), "the numbering is a permutation of the unknowns");
     let pattern = system.matrix.pattern();
-    let with_mesh = CholeskySolver::analyse(pattern, Some(ordering)).expect("analysis").factor_entries();
-    let with_amd = CholeskySolver::analyse(pattern, None).expect("analysis").factor_entries();
+    let with_mesh = CholeskySolver::analyse(pattern, Elimination::AsNumbered).expect("analysis").factor_entries();
+    let with_amd = CholeskySolver::analyse(pattern, Elimination::MinimumDegree).expect("analysis").factor_entries();
     (with_mesh, with_amd)
 }
 
@@ -48,5 +48,8 @@ fn mesh_ordering_fills_no_more_than_amd_of_the_matrix() {
 fn linear_elements_keep_amd_of_the_matrix() {
     let parts = vec![(rect(0.0, 0.0, 15e-3, 10e-3), 2e-3)];
     let m = mesh(&spec(Symmetry::Planar, parts, vec![], OuterBoundary::Open));
-    assert!(System::new(&m, ElementOrder::Linear).expect("small system").ordering.is_none());
+    assert_eq!(
+        System::new(&m, ElementOrder::Linear).expect("small system").elimination,
+        Elimination::MinimumDegree
+    );
 }
