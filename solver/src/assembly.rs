@@ -7,15 +7,16 @@ use crate::linear_system::symmetric_product;
 use crate::linear_system::Elimination;
 use crate::material::{Law, Tangent};
 use crate::ordering;
+use crate::pattern::build_pattern;
 use crate::problem::Problem;
 use mesher::{BoundaryTag, Mesh, Region, Symmetry};
-use nalgebra_sparse::{pattern::SparsityPattern, CscMatrix};
+use nalgebra_sparse::CscMatrix;
 use rayon::prelude::*;
 
 /// Marks a fixed node.
 pub const NONE: usize = usize::MAX;
 /// Marks an element entry that has no slot.
-const NO_SLOT: u32 = u32::MAX;
+pub(crate) const NO_SLOT: u32 = u32::MAX;
 /// Elements computed in parallel before their entries are scattered.
 const BLOCK: usize = 1 << 14;
 
@@ -478,98 +479,6 @@ pub fn element_load<'a>(kind: ElementKind, problem: &'a Problem, air: &'a Law) -
             tangent: Tangent::Exact,
         },
     }
-}
-
-/// Free dofs of element e's nodes, NONE where fixed.
-fn element_dofs(els: &Elements, dof_of_node: &[usize], e: usize) -> [usize; MAX_NODES] {
-    let mut d = [NONE; MAX_NODES];
-    for (k, &n) in els.element_nodes(e).iter().enumerate() {
-        d[k] = dof_of_node[n];
-    }
-    d
-}
-
-/// Column lists of the lower triangle, then the slot of each element entry.
-fn build_pattern(els: &Elements, dof_of_node: &[usize], n: usize) -> Result<(SparsityPattern, Vec<u32>), SystemTooLarge> {
-    let m = els.order.n_nodes();
-    // Free dofs of every element, computed once for both passes.
-    let dofs: Vec<[usize; MAX_NODES]> = (0..els.len()).into_par_iter().map(|e| element_dofs(els, dof_of_node, e)).collect();
-    let mut count = vec![1usize; n];
-    for d in &dofs {
-        for i in 0..m {
-            for j in 0..m {
-                if d[i] != NONE && d[j] != NONE && d[i] > d[j] {
-                    count[d[j]] += 1;
-                }
-            }
-        }
-    }
-    let mut start = vec![0usize; n + 1];
-    for c in 0..n {
-        start[c + 1] = start[c] + count[c];
-    }
-    let mut rows = vec![0usize; start[n]];
-    let mut fill = start.clone();
-    for c in 0..n {
-        rows[fill[c]] = c;
-        fill[c] += 1;
-    }
-    for d in &dofs {
-        for i in 0..m {
-            for j in 0..m {
-                if d[i] != NONE && d[j] != NONE && d[i] > d[j] {
-                    rows[fill[d[j]]] = d[i];
-                    fill[d[j]] += 1;
-                }
-            }
-        }
-    }
-    // Sort each column's rows (in parallel), then drop duplicates.
-    {
-        let mut slices: Vec<&mut [usize]> = Vec::with_capacity(n);
-        let mut rest = &mut rows[..];
-        for c in 0..n {
-            let (head, tail) = rest.split_at_mut(start[c + 1] - start[c]);
-            slices.push(head);
-            rest = tail;
-        }
-        slices.par_iter_mut().for_each(|col| col.sort_unstable());
-    }
-    let mut offsets = Vec::with_capacity(n + 1);
-    let mut indices = Vec::with_capacity(rows.len() / 2);
-    offsets.push(0);
-    for c in 0..n {
-        let mut last = NONE;
-        for &r in &rows[start[c]..start[c + 1]] {
-            if r != last {
-                indices.push(r);
-                last = r;
-            }
-        }
-        offsets.push(indices.len());
-    }
-    drop(rows);
-    if indices.len() >= NO_SLOT as usize {
-        return Err(SystemTooLarge { entries: indices.len() });
-    }
-    let scatter = dofs
-        .par_iter()
-        .flat_map_iter(|d| {
-            let mut s = [NO_SLOT; MAX_NODES * MAX_NODES];
-            for i in 0..m {
-                for j in 0..m {
-                    if d[i] != NONE && d[j] != NONE && d[i] >= d[j] {
-                        let col = &indices[offsets[d[j]]..offsets[d[j] + 1]];
-                        s[MAX_NODES * i + j] = (offsets[d[j]] + col.binary_search(&d[i]).unwrap_or(0)) as u32;
-                    }
-                }
-            }
-            s
-        })
-        .collect();
-    let entries = indices.len();
-    let pattern = SparsityPattern::try_from_offsets_and_indices(n, n, offsets, indices).map_err(|_| SystemTooLarge { entries })?;
-    Ok((pattern, scatter))
 }
 
 /// The matrix would need more entries than a 32-bit slot addresses (or its

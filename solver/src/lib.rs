@@ -46,6 +46,7 @@ pub mod material;
 pub mod newton;
 pub mod newton_step;
 mod ordering;
+mod pattern;
 pub mod problem;
 pub mod quadrature;
 mod segment_grid;
