@@ -30,7 +30,7 @@ struct Work<'a> {
 
 /// A pass inserting fewer than one point per this many vertices is followed
 /// by a local pass around the new points instead of a whole-mesh pass.
-const LOCAL_PASS_SHARE: usize = 100;
+const LOCAL_PASS_SHARE: usize = 10;
 
 /// Rounds coordinates below any sensible geometry scale to zero, so that
 /// points meant to be on the axis are exactly on it.
