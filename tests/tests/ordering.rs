@@ -3,7 +3,8 @@
 //! Amestoy, T. A. Davis, I. S. Duff, An approximate minimum degree ordering
 //! algorithm, SIAM J. Matrix Anal. Appl. 17(4), 1996, as implemented by the
 //! faer library): for quadratic elements, a numbering of the unknowns whose
-//! Cholesky factor is no larger.
+//! Cholesky factor is no larger. Also the matrix pattern those unknowns
+//! give, against the element pairs it must hold.
 
 use mesher::{OuterBoundary, Symmetry};
 use solver::assembly::System;
@@ -52,4 +53,42 @@ fn linear_elements_keep_amd_of_the_matrix() {
         System::new(&m, ElementOrder::Linear).expect("small system").elimination,
         Elimination::MinimumDegree
     );
+}
+
+/// The matrix pattern holds exactly the pairs of free unknowns that share an
+/// element (lower triangle, diagonal included), each column sorted: checked
+/// against the pairs listed element by element.
+#[test]
+fn the_pattern_is_the_element_pairs() {
+    use std::collections::BTreeSet;
+    for order in [ElementOrder::Quadratic, ElementOrder::Linear] {
+        let parts = vec![(rect(0.0, 0.0, 15e-3, 10e-3), 2e-3), (rect(0.0, 11e-3, 40e-3, 17e-3), 3e-3)];
+        let m = mesh(&spec(Symmetry::Axisymmetric, parts, vec![], OuterBoundary::Open));
+        let system = System::new(&m, order).expect("small system");
+        let mut expected = BTreeSet::new();
+        for e in 0..system.elements.len() {
+            let dofs: Vec<usize> = system
+                .elements
+                .element_nodes(e)
+                .iter()
+                .map(|&n| system.dof_of_node[n])
+                .filter(|&d| d != usize::MAX)
+                .collect();
+            for &i in &dofs {
+                for &j in &dofs {
+                    if i >= j {
+                        expected.insert((j, i));
+                    }
+                }
+            }
+        }
+        let pattern = system.matrix.pattern();
+        let mut found = BTreeSet::new();
+        for c in 0..pattern.major_dim() {
+            let rows = pattern.lane(c);
+            assert!(rows.windows(2).all(|w| w[0] < w[1]), "column {c} sorted and without repeats");
+            found.extend(rows.iter().map(|&r| (c, r)));
+        }
+        assert_eq!(found, expected, "{order:?}");
+    }
 }
