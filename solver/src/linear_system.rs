@@ -32,7 +32,8 @@ pub enum Elimination {
 pub struct CholeskySolver {
     symbolic: SymbolicCholesky<usize>,
     /// Workspace of the numeric factorization, kept for the next one (its
-    /// pages are then already mapped).
+    /// pages are then already mapped); sized for double precision, which
+    /// needs more than single.
     scratch: Option<MemBuffer>,
 }
 
@@ -81,15 +82,41 @@ impl CholeskySolver {
         self.symbolic.len_val()
     }
 
-    /// Numeric factorization of the current values; `reuse` hands back an
-    /// earlier factor whose memory is taken over.
+    /// Numeric factorization of the current values in double precision;
+    /// `reuse` hands back an earlier factor whose memory is taken over.
     pub fn factorize(&mut self, m: &CscMatrix<f64>, reuse: Option<Factor>) -> Result<Factor, LinearError> {
+        let reused = match reuse {
+            Some(Factor::Double(v)) => v,
+            _ => Vec::new(),
+        };
+        let values = self.numeric(view(m), reused)?;
+        Ok(Factor::Double(values))
+    }
+
+    /// Numeric factorization of the current values rounded to single
+    /// precision: a preconditioner (for conjugate gradients in double
+    /// precision), with half the memory traffic and faster dense kernels.
+    /// Fails like `factorize` when the rounded matrix is not positive definite.
+    pub fn factorize_single(&mut self, m: &CscMatrix<f64>, reuse: Option<Factor>) -> Result<Factor, LinearError> {
+        let reused = match reuse {
+            Some(Factor::Single(v)) => v,
+            _ => Vec::new(),
+        };
+        let rounded: Vec<f32> = m.values().iter().map(|&v| v as f32).collect();
+        let n = m.nrows();
+        let sym = SymbolicSparseColMatRef::new_checked(n, n, m.col_offsets(), None, m.row_indices());
+        let values = self.numeric(SparseColMatRef::new(sym, &rounded), reused)?;
+        Ok(Factor::Single(values))
+    }
+
+    /// The numeric factorization into `values` (reused when of the right length).
+    fn numeric<T: faer::traits::ComplexField + Copy + Default>(&mut self, a: SparseColMatRef<'_, usize, T>, mut values: Vec<T>) -> Result<Vec<T>, LinearError> {
         let len = self.symbolic.len_val();
         // faer zero-fills the values itself: a reused buffer of the right length is taken as it is.
-        let mut values = reuse.map(|f| f.values).filter(|v| v.len() == len).unwrap_or_default();
         if values.len() != len {
+            values = Vec::new();
             values.try_reserve_exact(len).map_err(|_| LinearError::OutOfMemory)?;
-            values.resize(len, 0.0);
+            values.resize(len, T::default());
         }
         let mut buffer = match self.scratch.take() {
             Some(b) => b,
@@ -97,9 +124,9 @@ impl CholeskySolver {
         };
         let outcome = self
             .symbolic
-            .factorize_numeric_llt::<f64>(
+            .factorize_numeric_llt::<T>(
                 &mut values,
-                view(m),
+                a,
                 Side::Lower,
                 Default::default(),
                 PAR,
@@ -109,20 +136,33 @@ impl CholeskySolver {
             .map(|_| ());
         self.scratch = Some(buffer);
         outcome.map_err(|_| LinearError::NotPositiveDefinite)?;
-        Ok(Factor { values })
+        Ok(values)
     }
 
-    /// Solves in place with `factor` (made by this solver): `rhs` becomes the solution.
+    /// Solves in place with `factor` (made by this solver): `rhs` becomes the
+    /// solution (in double precision; a single-precision factor's solve is
+    /// done on a rounded copy).
     pub fn solve(&self, factor: &Factor, rhs: &mut [f64]) {
+        match factor {
+            Factor::Double(values) => self.solve_with(values, rhs),
+            Factor::Single(values) => {
+                let mut rounded: Vec<f32> = rhs.iter().map(|&v| v as f32).collect();
+                self.solve_with(values, &mut rounded);
+                rhs.iter_mut().zip(&rounded).for_each(|(x, &y)| *x = f64::from(y));
+            }
+        }
+    }
+
+    fn solve_with<T: faer::traits::ComplexField + Copy>(&self, values: &[T], rhs: &mut [T]) {
         let n = rhs.len();
         let mat = MatMut::from_column_major_slice_mut(rhs, n, 1);
-        let scratch = self.symbolic.solve_in_place_scratch::<f64>(1, PAR);
+        let scratch = self.symbolic.solve_in_place_scratch::<T>(1, PAR);
         let Ok(mut buffer) = MemBuffer::try_new(scratch) else {
             // The solve needs one column of workspace; without it the answer stays unknown.
-            mat.col_mut(0).iter_mut().for_each(|v| *v = f64::NAN);
+            mat.col_mut(0).iter_mut().for_each(|v| *v = T::nan_impl());
             return;
         };
-        LltRef::new(&self.symbolic, &factor.values).solve_in_place_with_conj(Conj::No, mat, PAR, MemStack::new(&mut buffer));
+        LltRef::new(&self.symbolic, values).solve_in_place_with_conj(Conj::No, mat, PAR, MemStack::new(&mut buffer));
     }
 }
 
@@ -148,8 +188,16 @@ fn transposed(pattern: &SparsityPattern) -> (Vec<usize>, Vec<usize>) {
 }
 
 /// The numeric values of a factorization, used with the solver that made them.
-pub struct Factor {
-    values: Vec<f64>,
+pub enum Factor {
+    Double(Vec<f64>),
+    /// Rounded to single precision: a preconditioner only.
+    Single(Vec<f32>),
+}
+
+impl Factor {
+    pub fn is_single(&self) -> bool {
+        matches!(self, Factor::Single(_))
+    }
 }
 
 /// y = M x for a symmetric matrix held as its lower triangle by columns:

@@ -127,19 +127,23 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
         report.converged = true;
         return Ok((now.a, report));
     }
-    let mut solver = TangentSolver::new(analysis.map_err(SolveError::Linear)?);
     let settings = problem.newton;
+    // Exact Newton (no reuse of factorizations) keeps every factor in double precision.
+    let mut solver = TangentSolver::new(analysis.map_err(SolveError::Linear)?, settings.reuse_factorization);
     let mut forcing = Forcing::new(settings.residual_tolerance);
     let mut previous_update = None;
     for it in 1..=settings.max_iterations {
         let rel_now = report.residual_history.last().copied().unwrap_or(1.0);
         // Far from the solution the tangent moves too much between steps for an
         // old factor to precondition it (measured: most such attempts gave up),
-        // so steps are exact until the exact tangent is in use.
+        // so each step there has a factor of its own; it may still be inexact
+        // (a single-precision factor and conjugate gradients to the forcing
+        // term). Linear studies and exact Newton take exact steps.
         let eta = forcing.next(rel_now);
-        let reuse = settings.reuse_factorization && !linear && kind(rel_now) == Tangent::Exact;
-        let eta = if reuse { eta } else { 0.0 };
-        let (step, cost) = solver.step(&system.matrix, &now.residual, eta).map_err(SolveError::Linear)?;
+        let inexact = settings.reuse_factorization && !linear;
+        let reuse = inexact && kind(rel_now) == Tangent::Exact;
+        let eta = if inexact { eta } else { 0.0 };
+        let (step, cost) = solver.step(&system.matrix, &now.residual, eta, reuse).map_err(SolveError::Linear)?;
         report.seconds_numeric += cost.seconds_numeric;
         report.seconds_solve += cost.seconds_solve;
         report.factorizations += usize::from(cost.factorized);
