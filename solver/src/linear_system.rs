@@ -32,8 +32,7 @@ pub enum Elimination {
 pub struct CholeskySolver {
     symbolic: SymbolicCholesky<usize>,
     /// Workspace of the numeric factorization, kept for the next one (its
-    /// pages are then already mapped); sized for double precision, which
-    /// needs more than single.
+    /// pages are then already mapped); sized for either precision.
     scratch: Option<MemBuffer>,
 }
 
@@ -120,7 +119,13 @@ impl CholeskySolver {
         }
         let mut buffer = match self.scratch.take() {
             Some(b) => b,
-            None => MemBuffer::try_new(self.symbolic.factorize_numeric_llt_scratch::<f64>(PAR, Default::default())).map_err(|_| LinearError::OutOfMemory)?,
+            // Enough for either precision, so that one buffer serves both.
+            None => MemBuffer::try_new(
+                self.symbolic
+                    .factorize_numeric_llt_scratch::<f64>(PAR, Default::default())
+                    .or(self.symbolic.factorize_numeric_llt_scratch::<f32>(PAR, Default::default())),
+            )
+            .map_err(|_| LinearError::OutOfMemory)?,
         };
         let outcome = self
             .symbolic

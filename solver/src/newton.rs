@@ -146,7 +146,7 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
         let (step, cost) = solver.step(&system.matrix, &now.residual, eta, reuse).map_err(SolveError::Linear)?;
         report.seconds_numeric += cost.seconds_numeric;
         report.seconds_solve += cost.seconds_solve;
-        report.factorizations += usize::from(cost.factorized);
+        report.factorizations += cost.factorizations;
         report.cg_iterations += cost.cg_iterations;
         if step.iter().any(|v| !v.is_finite()) {
             return Err(SolveError::NotFinite { iteration: it });

@@ -39,7 +39,9 @@ const SLOW_RATE: f64 = 0.5;
 pub struct StepCost {
     pub seconds_numeric: f64,
     pub seconds_solve: f64,
-    pub factorized: bool,
+    /// Numeric factorizations made (two when a single-precision factor was made but its
+    /// iterations stalled, so that the step fell back to double precision).
+    pub factorizations: usize,
     pub cg_iterations: usize,
 }
 
@@ -109,7 +111,7 @@ impl TangentSolver {
         let mut d = rhs;
         self.analysis.solve(&factor, &mut d);
         cost.seconds_solve += t.elapsed().as_secs_f64();
-        cost.factorized = true;
+        cost.factorizations += 1;
         self.factor = Some(factor);
         Ok((d, cost))
     }
@@ -125,7 +127,7 @@ impl TangentSolver {
         let factor = self.analysis.factorize_single(j, self.factor.take());
         cost.seconds_numeric += t.elapsed().as_secs_f64();
         let factor = factor.ok()?;
-        cost.factorized = true;
+        cost.factorizations += 1;
         let t = Instant::now();
         let analysis = &self.analysis;
         let outcome = preconditioned_cg(
@@ -249,9 +251,9 @@ mod tests {
         );
         let b: Vec<f64> = (0..n).map(|i| ((i * 7919) % 13) as f64 - 6.0).collect();
         let (_, first) = solver.step(&old, &b, tolerance, true).unwrap();
-        assert!(first.factorized, "the first step has no factor to reuse");
+        assert!(first.factorizations == 1, "the first step has no factor to reuse");
         let (d, cost) = solver.step(&new, &b, tolerance, true).unwrap();
-        assert!(!cost.factorized && (1..=4).contains(&cost.cg_iterations), "{cost:?}");
+        assert!(cost.factorizations == 0 && (1..=4).contains(&cost.cg_iterations), "{cost:?}");
         // d solves J d = -r: check |J d + r| <= tolerance |r| independently.
         let minus_b: Vec<f64> = b.iter().map(|v| -v).collect();
         assert!(residual_share(&new, &d, &minus_b) <= tolerance, "{}", residual_share(&new, &d, &minus_b));
@@ -267,7 +269,7 @@ mod tests {
         );
         let b: Vec<f64> = (0..n).map(|i| ((i * 31) % 17) as f64 - 8.0).collect();
         let (d, cost) = solver.step(&j, &b, 1e-3, false).unwrap();
-        assert!(cost.factorized && cost.cg_iterations >= 1, "{cost:?}");
+        assert!(cost.factorizations == 1 && cost.cg_iterations >= 1, "{cost:?}");
         assert!(solver.factor.as_ref().is_some_and(Factor::is_single));
         let minus_b: Vec<f64> = b.iter().map(|v| -v).collect();
         assert!(residual_share(&j, &d, &minus_b) <= 1e-3);
@@ -284,7 +286,7 @@ mod tests {
             true,
         );
         let (d, cost) = single.step(&j, &b, 0.0, false).unwrap();
-        assert!(cost.factorized && cost.cg_iterations >= 1, "{cost:?}");
+        assert!(cost.factorizations == 1 && cost.cg_iterations >= 1, "{cost:?}");
         assert!(residual_share(&j, &d, &minus_b) <= EXACT_STEP);
         // Without single precision the same step is one double-precision solve.
         let mut double = TangentSolver::new(
@@ -292,8 +294,29 @@ mod tests {
             false,
         );
         let (d, cost) = double.step(&j, &b, 0.0, false).unwrap();
-        assert!(cost.factorized && cost.cg_iterations == 0, "{cost:?}");
+        assert!(cost.factorizations == 1 && cost.cg_iterations == 0, "{cost:?}");
         assert!(residual_share(&j, &d, &minus_b) <= 1e-12);
+    }
+
+    #[test]
+    fn a_matrix_that_rounding_makes_singular_falls_back_to_double_precision() {
+        // [[1, 1 - 1e-9], [1 - 1e-9, 1]] is positive definite; rounded to single
+        // precision its off-diagonal becomes 1 and the matrix singular.
+        let mut coo = CooMatrix::new(2, 2);
+        coo.push(0, 0, 1.0);
+        coo.push(1, 0, 1.0 - 1e-9);
+        coo.push(1, 1, 1.0);
+        let j = CscMatrix::from(&coo);
+        let mut solver = TangentSolver::new(
+            CholeskySolver::analyse(j.pattern(), crate::linear_system::Elimination::MinimumDegree).unwrap(),
+            true,
+        );
+        let b = [1.0, -1.0];
+        let (d, cost) = solver.step(&j, &b, 1e-3, false).unwrap();
+        // The failed single-precision attempt made no factor: one factorization, no iterations.
+        assert!(cost.factorizations == 1 && cost.cg_iterations == 0, "{cost:?}");
+        assert!(solver.factor.as_ref().is_some_and(|f| !f.is_single()));
+        assert!(residual_share(&j, &d, &[-1.0, 1.0]) <= 1e-6);
     }
 
     #[test]
@@ -308,7 +331,7 @@ mod tests {
         // A diagonal shift of 50 (against 2) everywhere leaves the old factor useless as a preconditioner.
         let far = laplacian(n, 50.0, &[]);
         let (d, cost) = solver.step(&far, &b, 1e-8, true).unwrap();
-        assert!(cost.factorized, "{cost:?}");
+        assert!(cost.factorizations == 1, "{cost:?}");
         let minus_b: Vec<f64> = b.iter().map(|v| -v).collect();
         assert!(residual_share(&far, &d, &minus_b) <= 1e-12);
     }
