@@ -148,12 +148,20 @@ impl CholeskySolver {
     /// solution (in double precision; a single-precision factor's solve is
     /// done on a rounded copy).
     pub fn solve(&self, factor: &Factor, rhs: &mut [f64]) {
+        self.solve_in(factor, rhs, &mut Vec::new());
+    }
+
+    /// `solve`, with `rounded` holding a single-precision factor's rounded
+    /// right-hand side, kept by the caller from one solve to the next (the
+    /// conjugate-gradient iterations solve once each).
+    pub fn solve_in(&self, factor: &Factor, rhs: &mut [f64], rounded: &mut Vec<f32>) {
         match factor {
             Factor::Double(values) => self.solve_with(values, rhs),
             Factor::Single(values) => {
-                let mut rounded: Vec<f32> = rhs.iter().map(|&v| v as f32).collect();
-                self.solve_with(values, &mut rounded);
-                rhs.iter_mut().zip(&rounded).for_each(|(x, &y)| *x = f64::from(y));
+                rounded.clear();
+                rounded.extend(rhs.iter().map(|&v| v as f32));
+                self.solve_with(values, rounded);
+                rhs.iter_mut().zip(rounded.iter()).for_each(|(x, &y)| *x = f64::from(y));
             }
         }
     }
@@ -197,12 +205,6 @@ pub enum Factor {
     Double(Vec<f64>),
     /// Rounded to single precision: a preconditioner only.
     Single(Vec<f32>),
-}
-
-impl Factor {
-    pub fn is_single(&self) -> bool {
-        matches!(self, Factor::Single(_))
-    }
 }
 
 /// y = M x for a symmetric matrix held as its lower triangle by columns:

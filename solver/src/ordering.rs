@@ -22,12 +22,10 @@ use mesher::Mesh;
 /// not be had. Needs only the mesh, so it can run beside the element table's
 /// construction.
 pub fn corner_ranks(mesh: &Mesh) -> Option<Vec<u32>> {
-    let mut corners: Vec<[usize; 3]> = mesh.triangles.clone();
-    if let Some(disk) = &mesh.exterior {
-        corners.extend(disk.triangles.iter().map(|t| t.map(|l| disk.global[l])));
-    }
-    let n = corners.iter().flatten().max().map_or(0, |&m| m + 1);
-    corner_order(&corners, n)
+    let exterior = mesh.exterior.iter().flat_map(|disk| disk.triangles.iter().map(|t| t.map(|l| disk.global[l])));
+    let corners = || mesh.triangles.iter().copied().chain(exterior.clone());
+    let n = corners().flatten().max().map_or(0, |m| m + 1);
+    corner_order(corners(), n)
 }
 
 /// Renumbers the unknowns (`dof_of_node`, free nodes only) so that the k-th
@@ -70,7 +68,7 @@ pub fn number_for_elimination(els: &Elements, corner_rank: &[u32], dof_of_node: 
 }
 
 /// Rank of every corner node in the AMD ordering of the corner graph.
-fn corner_order(corners: &[[usize; 3]], n: usize) -> Option<Vec<u32>> {
+fn corner_order(corners: impl Iterator<Item = [usize; 3]>, n: usize) -> Option<Vec<u32>> {
     let (offsets, rows) = corner_graph(corners, n);
     let graph = SymbolicSparseColMatRef::new_checked(n, n, &offsets, None, &rows);
     let mut perm = vec![0u32; n];
@@ -81,8 +79,8 @@ fn corner_order(corners: &[[usize; 3]], n: usize) -> Option<Vec<u32>> {
 }
 
 /// The strictly lower triangle of the corner adjacency, by columns, sorted.
-fn corner_graph(corners: &[[usize; 3]], n: usize) -> (Vec<u32>, Vec<u32>) {
-    let mut pairs: Vec<(u32, u32)> = Vec::with_capacity(3 * corners.len());
+fn corner_graph(corners: impl Iterator<Item = [usize; 3]>, n: usize) -> (Vec<u32>, Vec<u32>) {
+    let mut pairs: Vec<(u32, u32)> = Vec::with_capacity(3 * corners.size_hint().0);
     for t in corners {
         for [a, b] in EDGES {
             let (lo, hi) = (t[a].min(t[b]), t[a].max(t[b]));
