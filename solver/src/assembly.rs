@@ -229,7 +229,8 @@ impl System {
         };
         let (pattern, scatter) = build_pattern(&elements, &dof_of_node, n_dofs)?;
         let nnz = pattern.nnz();
-        let matrix = CscMatrix::try_from_pattern_and_values(pattern, vec![0.0; nnz]).map_err(|_| SystemTooLarge { entries: nnz })?;
+        let values = crate::buffer::zeroed(nnz).ok_or(SystemTooLarge { entries: nnz })?;
+        let matrix = CscMatrix::try_from_pattern_and_values(pattern, values).map_err(|_| SystemTooLarge { entries: nnz })?;
         Ok(System {
             elements,
             dof_of_node,
@@ -262,7 +263,9 @@ impl System {
         let mut residual = affine_residual;
         let values = self.matrix.values_mut();
         match &self.affine {
-            Some(f) => values.copy_from_slice(&f.values),
+            Some(AffinePart { values: Some(f), .. }) => crate::buffer::copy(values, f),
+            // The matrix holds the affine tangent, and nothing else adds to it.
+            Some(AffinePart { values: None, .. }) => {}
             None => values.fill(0.0),
         }
         let target = Target {
@@ -326,7 +329,13 @@ impl System {
                 affine_list.push(e);
             }
         }
-        let mut values = vec![0.0; self.matrix.nnz()];
+        // Without saturating elements the tangent never changes: it is assembled
+        // straight into the matrix (still zero), which then stands for K_aff.
+        let mut own = match nonlinear.is_empty() {
+            true => None,
+            // (Failing the parallel fill, the plain allocation aborts as any other would.)
+            false => Some(crate::buffer::zeroed(self.matrix.nnz()).unwrap_or_else(|| vec![0.0; self.matrix.nnz()])),
+        };
         let mut rhs = vec![0.0; self.n_dofs];
         let zero = vec![0.0; self.dof_of_node.len()];
         let target = Target {
@@ -338,8 +347,12 @@ impl System {
             air: &self.air,
             tangent: Tangent::Exact,
         };
-        target.accumulate(problem, &zero, &affine_list, how, &mut self.blocks, &mut values, &mut rhs);
-        self.affine = Some(AffinePart { values, rhs });
+        let values = match &mut own {
+            Some(v) => v.as_mut_slice(),
+            None => self.matrix.values_mut(),
+        };
+        target.accumulate(problem, &zero, &affine_list, how, &mut self.blocks, values, &mut rhs);
+        self.affine = Some(AffinePart { values: own, rhs });
         self.nonlinear = nonlinear;
     }
 
@@ -363,7 +376,7 @@ impl System {
     /// K_aff x for x given per unknown: how the affine residual changes along a step.
     pub fn affine_product(&self, x: &[f64]) -> Vec<f64> {
         match &self.affine {
-            Some(affine) => symmetric_product(&self.matrix, &affine.values, x),
+            Some(affine) => symmetric_product(&self.matrix, affine.values.as_deref().unwrap_or(self.matrix.values()), x),
             None => vec![0.0; self.n_dofs],
         }
     }
@@ -453,7 +466,8 @@ impl Target<'_> {
 
 /// The tangent values and zero-potential residual of the affine elements.
 struct AffinePart {
-    values: Vec<f64>,
+    /// None when every element is affine: the matrix holds them.
+    values: Option<Vec<f64>>,
     rhs: Vec<f64>,
 }
 

@@ -35,6 +35,7 @@
 
 pub mod assembly;
 pub mod bh_curve;
+mod buffer;
 pub mod element;
 pub mod energy;
 pub mod flux;

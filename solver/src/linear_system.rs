@@ -7,7 +7,7 @@ use faer::sparse::linalg::cholesky::{factorize_symbolic_cholesky, LltRef, Symbol
 use faer::sparse::{SparseColMatRef, SymbolicSparseColMatRef};
 use faer::{Conj, MatMut, Par, Side};
 use nalgebra_sparse::{pattern::SparsityPattern, CscMatrix};
-use rayon::iter::{IntoParallelRefIterator, ParallelExtend, ParallelIterator};
+use rayon::iter::{IntoParallelRefIterator, ParallelIterator};
 
 /// Why a linear solve failed.
 #[derive(Clone, Debug, PartialEq)]
@@ -118,11 +118,9 @@ impl CholeskySolver {
         let len = self.symbolic.len_val();
         // faer zero-fills the values itself: a reused buffer of the right length is taken as it is.
         // A fresh one is filled on every core: at 1e6 unknowns the first touch of its pages
-        // (the kernel clearing each) took 40 % of a sequential factorization.
+        // took 40 % of a sequential factorization.
         if values.len() != len {
-            values = Vec::new();
-            values.try_reserve_exact(len).map_err(|_| LinearError::OutOfMemory)?;
-            values.par_extend(rayon::iter::repeat_n(T::default(), len));
+            values = crate::buffer::zeroed(len).ok_or(LinearError::OutOfMemory)?;
         }
         let mut buffer = match self.scratch.take() {
             Some(b) => b,
