@@ -7,7 +7,7 @@ use crate::linear_system::symmetric_product;
 use crate::linear_system::Elimination;
 use crate::material::{Law, Tangent};
 use crate::ordering;
-use crate::pattern::build_pattern;
+use crate::pattern::{build_pattern, PAIRS};
 use crate::problem::Problem;
 use mesher::{BoundaryTag, Mesh, Region, Symmetry};
 use nalgebra_sparse::CscMatrix;
@@ -188,7 +188,7 @@ pub struct System {
     pub n_dofs: usize,
     /// Lower triangle of the tangent, compressed by columns.
     pub matrix: CscMatrix<f64>,
-    /// For element e, entry (i, j): the slot in `matrix` values, or NO_SLOT.
+    /// For element e, node pair i <= j: the slot in `matrix` values, or NO_SLOT.
     scatter: Vec<u32>,
     /// Two buffers of element systems: one filled while the other is scattered.
     blocks: [Vec<LocalSystem>; 2],
@@ -447,10 +447,9 @@ impl Target<'_> {
     fn scatter_block(&self, chunk: &[usize], locals: &[LocalSystem], values: &mut [f64], residual: &mut [f64]) {
         let m = self.els.order.n_nodes();
         for (&e, (k, r)) in chunk.iter().zip(locals) {
-            let slots = &self.scatter[MAX_NODES * MAX_NODES * e..MAX_NODES * MAX_NODES * (e + 1)];
+            let mut slots = self.scatter[PAIRS * e..PAIRS * (e + 1)].iter();
             for i in 0..m {
-                for j in 0..m {
-                    let s = slots[MAX_NODES * i + j];
+                for (j, &s) in (i..m).zip(&mut slots) {
                     if s != NO_SLOT {
                         values[s as usize] += k[i][j];
                     }
