@@ -93,26 +93,62 @@ impl Mesh {
             min_area: f64::INFINITY,
             total_area: 0.0,
         };
+        // The smallest angle has the largest cosine: one arccosine for the
+        // whole mesh (three a triangle were most of this loop's time).
+        let mut cos_max = f64::NEG_INFINITY;
         for t in 0..self.triangles.len() {
-            let p = self.triangle_points(t);
             let area = self.triangle_area(t);
             q.min_area = q.min_area.min(area);
             q.total_area += area;
-            q.min_angle_deg = q.min_angle_deg.min(min_angle_deg(p));
+            cos_max = cos_max.max(max_cosine(self.triangle_points(t)));
         }
+        q.min_angle_deg = angle_deg(cos_max);
         q
     }
 }
 
-/// Smallest interior angle of a triangle, degrees.
-pub fn min_angle_deg(p: [[f64; 2]; 3]) -> f64 {
+/// The angle of a cosine, degrees (180 for none: an empty mesh).
+fn angle_deg(cos: f64) -> f64 {
+    cos.clamp(-1.0, 1.0).acos().to_degrees()
+}
+
+/// Largest cosine of a triangle's three interior angles; an angle at a
+/// repeated corner has none (NaN) and is left out, as `f64::max` does.
+fn max_cosine(p: [[f64; 2]; 3]) -> f64 {
     (0..3)
         .map(|k| {
             let (a, b, c) = (p[k], p[(k + 1) % 3], p[(k + 2) % 3]);
             let u = [b[0] - a[0], b[1] - a[1]];
             let v = [c[0] - a[0], c[1] - a[1]];
-            let cos = (u[0] * v[0] + u[1] * v[1]) / (u[0].hypot(u[1]) * v[0].hypot(v[1]));
-            cos.clamp(-1.0, 1.0).acos().to_degrees()
+            (u[0] * v[0] + u[1] * v[1]) / ((u[0] * u[0] + u[1] * u[1]) * (v[0] * v[0] + v[1] * v[1])).sqrt()
         })
-        .fold(180.0, f64::min)
+        .fold(f64::NEG_INFINITY, f64::max)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn one_triangle(p: [[f64; 2]; 3]) -> Mesh {
+        Mesh {
+            symmetry: Symmetry::Planar,
+            nodes: p.to_vec(),
+            n_physical: 3,
+            triangles: vec![[0, 1, 2]],
+            regions: vec![Region::Air],
+            boundary: Vec::new(),
+            exterior: None,
+        }
+    }
+
+    /// Elementary geometry: a right isosceles triangle's angles are 45, 45
+    /// and 90 degrees; a 30-60-90 triangle's smallest is 30.
+    #[test]
+    fn smallest_angle_of_known_triangles() {
+        let q = one_triangle([[0.0, 0.0], [1.0, 0.0], [0.0, 1.0]]).quality();
+        assert!((q.min_angle_deg - 45.0).abs() < 1e-12, "{q:?}");
+        assert!((q.total_area - 0.5).abs() < 1e-15, "{q:?}");
+        let q = one_triangle([[0.0, 0.0], [3f64.sqrt(), 0.0], [0.0, 1.0]]).quality();
+        assert!((q.min_angle_deg - 30.0).abs() < 1e-12, "{q:?}");
+    }
 }
