@@ -14,24 +14,20 @@ pub struct Energy {
 }
 
 pub fn stored_energy(solution: &Solution) -> Energy {
-    use rayon::prelude::*;
     let els = &solution.elements;
     let air = Law::air();
-    let (stored, coenergy) = (0..els.len())
-        .into_par_iter()
-        .map(|e| {
-            let load = element_load(els.kinds[e], &solution.problem, &air);
-            let a = els.gather(e, &solution.reduced);
-            let (mut w_sum, mut c_sum) = (0.0, 0.0);
-            for_each_point(&els.coords[e], els.order, solution.symmetry(), solution.placement(e), |op| {
-                let b = flux_density(op, &a, load.background);
-                let w = load.law.energy_density(b);
-                let h = load.law.response(b).h;
-                w_sum += op.weight * w;
-                c_sum += op.weight * (h[0] * b[0] + h[1] * b[1] - w);
-            });
-            (w_sum, c_sum)
-        })
-        .reduce(|| (0.0, 0.0), |x, y| (x.0 + y.0, x.1 + y.1));
+    let [stored, coenergy] = crate::reduction::ordered_sum(els.len(), |e| {
+        let load = element_load(els.kinds[e], &solution.problem, &air);
+        let a = els.gather(e, &solution.reduced);
+        let (mut w_sum, mut c_sum) = (0.0, 0.0);
+        for_each_point(&els.coords[e], els.order, solution.symmetry(), solution.placement(e), |op| {
+            let b = flux_density(op, &a, load.background);
+            let w = load.law.energy_density(b);
+            let h = load.law.response(b).h;
+            w_sum += op.weight * w;
+            c_sum += op.weight * (h[0] * b[0] + h[1] * b[1] - w);
+        });
+        [w_sum, c_sum]
+    });
     Energy { stored, coenergy }
 }

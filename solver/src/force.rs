@@ -45,15 +45,11 @@ pub fn force_on(solution: &Solution, parts: &[usize], torque_center: [f64; 2]) -
     let weight = band_weight(solution, &in_set_node, &other, &in_set);
     let contact = (0..n_nodes).any(|n| in_set_node[n] && other[n]);
     let axisym = solution.symmetry() == Symmetry::Axisymmetric;
-    let mut f = [0.0; 2];
-    let mut torque = 0.0;
-    for e in 0..els.n_physical {
-        if els.kinds[e] != ElementKind::Air {
-            continue;
-        }
+    let [fx, fy, mut torque] = crate::reduction::ordered_sum(els.n_physical, |e| {
+        let mut sum = [0.0; 3];
         let g = corners(e).map(|n| weight[n]);
-        if g.iter().all(|&v| v == 0.0) {
-            continue;
+        if els.kinds[e] != ElementKind::Air || g.iter().all(|&v| v == 0.0) {
+            return sum;
         }
         let (dn, _) = crate::element::barycentric_gradients(&els.coords[e]);
         let grad = [0, 1].map(|k| g[0] * dn[0][k] + g[1] * dn[1][k] + g[2] * dn[2][k]);
@@ -63,12 +59,14 @@ pub fn force_on(solution: &Solution, parts: &[usize], torque_center: [f64; 2]) -
             let half = 0.5 * (b[0] * b[0] + b[1] * b[1]);
             let t = [[b[0] * b[0] - half, b[0] * b[1]], [b[0] * b[1], b[1] * b[1] - half]];
             let tg = [0, 1].map(|i| -NU0 * (t[i][0] * grad[0] + t[i][1] * grad[1]) * op.weight);
-            f[0] += tg[0];
-            f[1] += tg[1];
             let arm = [op.x[0] - torque_center[0], op.x[1] - torque_center[1]];
-            torque += arm[0] * tg[1] - arm[1] * tg[0];
+            sum[0] += tg[0];
+            sum[1] += tg[1];
+            sum[2] += arm[0] * tg[1] - arm[1] * tg[0];
         });
-    }
+        sum
+    });
+    let mut f = [fx, fy];
     if axisym {
         f[0] = 0.0;
         torque = 0.0;
@@ -126,16 +124,16 @@ fn band_weight(solution: &Solution, in_set_node: &[bool], other: &[bool], in_set
         }
     }
     // Air corner nodes inside the band's box, then their distance to the set (in parallel).
-    let mut candidates: Vec<usize> = (0..els.n_physical)
-        .filter(|&e| els.kinds[e] == ElementKind::Air)
-        .flat_map(|e| [els.nodes[e][0], els.nodes[e][1], els.nodes[e][2]])
+    let mut air_corner = vec![false; pos.len()];
+    for e in (0..els.n_physical).filter(|&e| els.kinds[e] == ElementKind::Air) {
+        els.nodes[e][..3].iter().for_each(|&n| air_corner[n] = true);
+    }
+    let candidates: Vec<usize> = (0..pos.len())
         .filter(|&n| {
             let p = pos[n];
-            !in_set_node[n] && !other[n] && p[0] >= lo[0] && p[1] >= lo[1] && p[0] <= hi[0] && p[1] <= hi[1]
+            air_corner[n] && !in_set_node[n] && !other[n] && p[0] >= lo[0] && p[1] >= lo[1] && p[0] <= hi[0] && p[1] <= hi[1]
         })
         .collect();
-    candidates.sort_unstable();
-    candidates.dedup();
     use rayon::prelude::*;
     let grid = crate::segment_grid::SegmentGrid::new(boundary.iter().map(|&(a, b)| [pos[a], pos[b]]).collect());
     let values: Vec<f64> = candidates

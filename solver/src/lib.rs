@@ -50,6 +50,7 @@ mod ordering;
 mod pattern;
 pub mod problem;
 pub mod quadrature;
+mod reduction;
 mod segment_grid;
 pub mod solution;
 pub mod stray;
