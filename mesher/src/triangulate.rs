@@ -7,7 +7,8 @@ use crate::geometry::{dist, point_in_polygon, Symmetry};
 use crate::mesh::{BoundaryTag, Mesh, Region};
 use crate::size_field::{self, SizeSource};
 use crate::{MeshError, MeshSpec};
-use spade::handles::FixedVertexHandle;
+use rayon::prelude::*;
+use spade::handles::{FixedFaceHandle, FixedVertexHandle, InnerTag};
 use spade::{AngleLimit, ConstrainedDelaunayTriangulation, Point2, RefinementParameters, Triangulation};
 
 type Cdt = ConstrainedDelaunayTriangulation<Point2<f64>>;
@@ -255,9 +256,14 @@ impl Work<'_> {
         let mut recent: Option<Vec<FixedVertexHandle>> = None;
         loop {
             let pending: Vec<([f64; 2], f64, FixedVertexHandle)> = match &recent {
+                // Whole-mesh passes look at every face on every core (in face order).
                 None => {
                     let region_size = self.region_sizes();
-                    self.cdt.inner_faces().filter_map(|f| self.oversize(f, region_size[f.fix().index()])).collect()
+                    let faces: Vec<FixedFaceHandle<InnerTag>> = self.cdt.fixed_inner_faces().collect();
+                    faces
+                        .par_iter()
+                        .filter_map(|&f| self.oversize(self.cdt.face(f), region_size[f.index()]))
+                        .collect()
                 }
                 Some(vertices) => {
                     let mut faces: Vec<_> = vertices
