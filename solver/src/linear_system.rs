@@ -224,14 +224,17 @@ pub fn symmetric_product(m: &CscMatrix<f64>, values: &[f64], x: &[f64]) -> Vec<f
     let columns = |range: std::ops::Range<usize>| {
         let mut y = vec![0.0; n];
         for c in range {
+            // Rows are sorted and unique (a CSC invariant), so the diagonal,
+            // if held, comes first and every later row is below it.
+            let (mut start, end, xc) = (offsets[c], offsets[c + 1], x[c]);
             let mut sum = 0.0;
-            for (&r, &v) in rows[offsets[c]..offsets[c + 1]].iter().zip(&values[offsets[c]..offsets[c + 1]]) {
-                if r == c {
-                    sum += v * x[c];
-                } else {
-                    y[r] += v * x[c];
-                    sum += v * x[r];
-                }
+            if start < end && rows[start] == c {
+                sum = values[start] * xc;
+                start += 1;
+            }
+            for (&r, &v) in rows[start..end].iter().zip(&values[start..end]) {
+                y[r] += v * xc;
+                sum += v * x[r];
             }
             y[c] += sum;
         }
@@ -248,4 +251,52 @@ pub fn symmetric_product(m: &CscMatrix<f64>, values: &[f64], x: &[f64]) -> Vec<f
             a
         })
         .unwrap_or_else(|| vec![0.0; n])
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use nalgebra_sparse::CooMatrix;
+
+    fn lower_csc(n: usize, entries: &[(usize, usize, f64)]) -> CscMatrix<f64> {
+        let mut coo = CooMatrix::new(n, n);
+        entries.iter().for_each(|&(r, c, v)| coo.push(r, c, v));
+        CscMatrix::from(&coo)
+    }
+
+    /// Against the product with the full symmetric matrix written out, on a
+    /// small matrix with one column lacking its diagonal, and on a
+    /// tridiagonal one large enough to be split between threads.
+    #[test]
+    fn symmetric_product_matches_the_full_matrix() {
+        let entries = [(0, 0, 4.0), (2, 0, -1.5), (1, 1, 3.0), (3, 1, 0.5), (3, 2, 2.0), (3, 3, 5.0)];
+        let m = lower_csc(4, &entries);
+        let x = [1.0, -2.0, 0.5, 3.0];
+        let mut full = [[0.0; 4]; 4];
+        for &(r, c, v) in &entries {
+            full[r][c] = v;
+            full[c][r] = v;
+        }
+        let want: Vec<f64> = full.iter().map(|row| row.iter().zip(&x).map(|(a, b)| a * b).sum()).collect();
+        assert_eq!(symmetric_product(&m, m.values(), &x), want);
+
+        let n = 25_000;
+        let diag = |i: usize| 2.0 + 1e-3 * i as f64;
+        let mut tri = Vec::new();
+        for i in 0..n {
+            tri.push((i, i, diag(i)));
+            if i + 1 < n {
+                tri.push((i + 1, i, -1.0));
+            }
+        }
+        let m = lower_csc(n, &tri);
+        let x: Vec<f64> = (0..n).map(|i| (i as f64).sin()).collect();
+        let y = symmetric_product(&m, m.values(), &x);
+        for i in 0..n {
+            let left = if i > 0 { x[i - 1] } else { 0.0 };
+            let right = if i + 1 < n { x[i + 1] } else { 0.0 };
+            let want = diag(i) * x[i] - left - right;
+            assert!((y[i] - want).abs() <= 1e-12 * (1.0 + want.abs()), "row {i}: {} against {want}", y[i]);
+        }
+    }
 }
