@@ -19,7 +19,9 @@ pub struct NewtonSettings {
     /// Relative residual above which the tangent's slope along B is kept no
     /// softer than the secant (Tangent::NoSofterThanSecant); at or below it
     /// the tangent is exact, for quadratic convergence. 1 or more: exact
-    /// from the start.
+    /// from the start. The default, 3e-2, took no more steps or
+    /// factorizations than 1e-3 on any example case or benchmark size tried
+    /// (docs/methods.md), and fewer on most.
     pub stiffen_tangent_above: f64,
 }
 
@@ -30,7 +32,7 @@ impl Default for NewtonSettings {
             update_tolerance: 1e-6,
             max_iterations: 40,
             reuse_factorization: true,
-            stiffen_tangent_above: 1e-3,
+            stiffen_tangent_above: 3e-2,
         }
     }
 }
