@@ -208,19 +208,21 @@ impl Work<'_> {
         Ok(())
     }
 
-    /// The centroid to insert in a face that is longer than its target size
-    /// (and not held by a long constraint edge), with the new point's size.
-    fn oversize(
-        &self,
-        face: spade::handles::FaceHandle<'_, spade::handles::InnerTag, Point2<f64>, (), spade::CdtEdge<()>, ()>,
-        region_size: f64,
-    ) -> Option<([f64; 2], f64, FixedVertexHandle)> {
+    /// The centroid to insert in face `f` if it is longer than its target
+    /// size (and not held by a long constraint edge), with the new point's
+    /// size. A face's corners already carry its part's size (the outline's
+    /// points were sized with it, and every point inside was inserted no
+    /// larger), so the part is looked up only for a face found too long, for
+    /// the new point's size: a flood fill of every face's region on every
+    /// whole-mesh pass was a sixth of the mesher's time.
+    fn split(&self, f: FixedFaceHandle<InnerTag>) -> Option<([f64; 2], f64, FixedVertexHandle)> {
+        let face = self.cdt.face(f);
         let vs = face.vertices();
         let pos = vs.map(|v| [v.position().x, v.position().y]);
         let hs = vs.map(|v| self.size[v.fix().index()]);
         let centroid = [(pos[0][0] + pos[1][0] + pos[2][0]) / 3.0, (pos[0][1] + pos[1][1] + pos[2][1]) / 3.0];
-        let rs = region_size.min(self.probe_size_at(centroid));
-        let target = hs.iter().copied().fold(rs, f64::min);
+        let probe = self.probe_size_at(centroid);
+        let target = hs.iter().copied().fold(probe, f64::min);
         let edges = face.adjacent_edges();
         let lens = edges.map(|e| {
             let [p, q] = e.positions();
@@ -232,6 +234,7 @@ impl Work<'_> {
         if lens[k] <= target || edges[k].is_constraint_edge() {
             return None;
         }
+        let rs = self.region_size_at(face.positions()).min(probe);
         let grown = (0..3).map(|k| hs[k] + (self.grading - 1.0) * dist(centroid, pos[k])).fold(rs, f64::min);
         Some((centroid, grown, vs[0].fix()))
     }
@@ -285,18 +288,6 @@ impl Work<'_> {
             // Few insertions: the next pass need only look around them.
             recent = (inserted.len() * LOCAL_PASS_SHARE < self.cdt.num_vertices()).then_some(inserted);
         }
-    }
-
-    /// The point splitting face `f`, if it is longer than its target size.
-    /// A face's corners already carry its part's size (the outline's points
-    /// were sized with it, and every point inside was inserted no larger),
-    /// so the part is looked up only for a face that is too long without
-    /// it, for the new point's size: a flood fill of every face's region
-    /// on every whole-mesh pass was a sixth of the mesher's time.
-    fn split(&self, f: FixedFaceHandle<InnerTag>) -> Option<([f64; 2], f64, FixedVertexHandle)> {
-        let face = self.cdt.face(f);
-        self.oversize(face, f64::INFINITY)?;
-        self.oversize(face, self.region_size_at(face.positions()))
     }
 
     /// Target size of the region holding a triangle (the last part holding its centroid).
