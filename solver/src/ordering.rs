@@ -16,6 +16,7 @@ use faer::dyn_stack::{MemBuffer, MemStack};
 use faer::sparse::linalg::amd;
 use faer::sparse::SymbolicSparseColMatRef;
 use mesher::Mesh;
+use rayon::slice::ParallelSliceMut;
 
 /// Rank of every corner node (mesh node) in the AMD ordering of the corner
 /// graph of the mesh and its exterior disk; `None` when the workspace could
@@ -60,7 +61,8 @@ pub fn number_for_elimination(els: &Elements, corner_rank: &[u32], dof_of_node: 
     if keyed.len() != dof_of_node.iter().filter(|&&d| d != NONE).count() {
         return false;
     }
-    keyed.sort_unstable();
+    // Keys are unique (each holds its node), so the parallel sort gives the one order.
+    keyed.par_sort_unstable();
     for (d, (_, n)) in keyed.into_iter().enumerate() {
         dof_of_node[n] = d;
     }
