@@ -68,6 +68,9 @@ fn pair_index(i: usize, j: usize, m: usize) -> usize {
     i * m - i * (i.saturating_sub(1)) / 2 + (j - i)
 }
 
+/// Column offsets, row indices and the scatter map.
+type ColumnsAndSlots = (Vec<usize>, Vec<usize>, Vec<u32>);
+
 /// Each column's rows (the diagonal and the unknowns below it that share an
 /// element), sorted, as offsets and row indices; and the scatter map: for
 /// element e, node pair i <= j (in the order `for i, for j in i..m`), the
@@ -82,8 +85,6 @@ fn pair_index(i: usize, j: usize, m: usize) -> usize {
 /// building the columns. Every pair belongs to exactly one column (that of
 /// its smaller unknown), so the threads never write the same slot; the
 /// slots are first counted from their chunk's start, then shifted by it.
-type ColumnsAndSlots = (Vec<usize>, Vec<usize>, Vec<u32>);
-
 fn columns_and_slots(dofs: &[[usize; MAX_NODES]], m: usize, first: &[usize], incident: &[u32]) -> Result<ColumnsAndSlots, SystemTooLarge> {
     let n = first.len() - 1;
     let local: Vec<AtomicU32> = (0..dofs.len() * PAIRS).into_par_iter().map(|_| AtomicU32::new(NO_SLOT)).collect();
