@@ -31,16 +31,22 @@ pub enum Elimination {
 
 /// A reusable factorization of one sparsity pattern.
 pub struct CholeskySolver {
-    symbolic: SymbolicCholesky<usize>,
+    /// With 32-bit indices: the factor's row indices are read at every
+    /// substitution, and half their width is less memory traffic.
+    symbolic: SymbolicCholesky<u32>,
+    /// The matrix pattern's column offsets and row indices in 32 bits, as
+    /// the numeric factorization reads them with the symbolic structure's index type.
+    offsets: Vec<u32>,
+    rows: Vec<u32>,
     /// Workspace of the numeric factorization, kept for the next one (its
     /// pages are then already mapped); sized for either precision.
     scratch: Option<MemBuffer>,
 }
 
-fn view(m: &CscMatrix<f64>) -> SparseColMatRef<'_, usize, f64> {
-    let n = m.nrows();
-    let sym = SymbolicSparseColMatRef::new_checked(n, n, m.col_offsets(), None, m.row_indices());
-    SparseColMatRef::new(sym, m.values())
+/// A pattern's column offsets and row indices in 32 bits; None when they do not fit.
+fn narrowed(offsets: &[usize], rows: &[usize]) -> Option<(Vec<u32>, Vec<u32>)> {
+    let narrow = |v: &[usize]| v.par_iter().map(|&x| u32::try_from(x).ok()).collect::<Option<Vec<u32>>>();
+    Some((narrow(offsets)?, narrow(rows)?))
 }
 
 /// The factorization runs on one thread: on two cores faer's parallel
@@ -59,22 +65,28 @@ impl CholeskySolver {
     /// took longer to order.
     pub fn analyse(pattern: &SparsityPattern, elimination: Elimination) -> Result<CholeskySolver, LinearError> {
         let n = pattern.major_dim();
+        let (offsets, rows) = narrowed(pattern.major_offsets(), pattern.minor_indices()).ok_or(LinearError::OutOfMemory)?;
         let symbolic = match elimination {
             Elimination::AsNumbered => {
                 // Without a permutation faer reads the pattern as the upper
                 // triangle whatever side it is told (faer 0.24), so it is
                 // handed the transpose.
-                let (offsets, rows) = transposed(pattern);
-                let view = SymbolicSparseColMatRef::new_checked(n, n, &offsets, None, &rows);
+                let (t_offsets, t_rows) = transposed(n, &offsets, &rows);
+                let view = SymbolicSparseColMatRef::new_checked(n, n, &t_offsets, None, &t_rows);
                 factorize_symbolic_cholesky(view, Side::Upper, SymmetricOrdering::Identity, Default::default())
             }
             Elimination::MinimumDegree => {
-                let view = SymbolicSparseColMatRef::new_checked(n, n, pattern.major_offsets(), None, pattern.minor_indices());
+                let view = SymbolicSparseColMatRef::new_checked(n, n, &offsets, None, &rows);
                 factorize_symbolic_cholesky(view, Side::Lower, SymmetricOrdering::Amd, Default::default())
             }
         }
         .map_err(|_| LinearError::OutOfMemory)?;
-        Ok(CholeskySolver { symbolic, scratch: None })
+        Ok(CholeskySolver {
+            symbolic,
+            offsets,
+            rows,
+            scratch: None,
+        })
     }
 
     /// Entries the Cholesky factor stores (its fill, padding of the supernodes included).
@@ -89,7 +101,7 @@ impl CholeskySolver {
             Some(Factor::Double(v)) => v,
             _ => Vec::new(),
         };
-        let values = self.numeric(view(m), reused)?;
+        let values = self.numeric(m.values(), reused)?;
         Ok(Factor::Double(values))
     }
 
@@ -103,18 +115,16 @@ impl CholeskySolver {
             _ => Vec::new(),
         };
         let rounded: Vec<f32> = m.values().par_iter().map(|&v| v as f32).collect();
-        let n = m.nrows();
-        let sym = SymbolicSparseColMatRef::new_checked(n, n, m.col_offsets(), None, m.row_indices());
-        let values = self.numeric(SparseColMatRef::new(sym, &rounded), reused)?;
+        let values = self.numeric(&rounded, reused)?;
         Ok(Factor::Single(values))
     }
 
-    /// The numeric factorization into `values` (reused when of the right length).
-    fn numeric<T: faer::traits::ComplexField + Copy + Default + Send + Sync>(
-        &mut self,
-        a: SparseColMatRef<'_, usize, T>,
-        mut values: Vec<T>,
-    ) -> Result<Vec<T>, LinearError> {
+    /// The numeric factorization of the matrix with entries `entries` (on
+    /// the analysed pattern) into `values` (reused when of the right length).
+    fn numeric<T: faer::traits::ComplexField + Copy + Default + Send + Sync>(&mut self, entries: &[T], mut values: Vec<T>) -> Result<Vec<T>, LinearError> {
+        let n = self.offsets.len() - 1;
+        debug_assert_eq!(entries.len(), self.rows.len(), "values for another pattern than the analysed one");
+        let a = SparseColMatRef::new(SymbolicSparseColMatRef::new_checked(n, n, &self.offsets, None, &self.rows), entries);
         let len = self.symbolic.len_val();
         // faer zero-fills the values itself: a reused buffer of the right length is taken as it is.
         // A fresh one is filled on every core: at 1e6 unknowns the first touch of its pages
@@ -185,21 +195,20 @@ impl CholeskySolver {
 }
 
 /// The pattern of the transpose (upper triangle by columns), rows sorted.
-fn transposed(pattern: &SparsityPattern) -> (Vec<usize>, Vec<usize>) {
-    let n = pattern.major_dim();
-    let mut offsets = vec![0usize; n + 1];
-    for &r in pattern.minor_indices() {
-        offsets[r + 1] += 1;
+fn transposed(n: usize, col_offsets: &[u32], row_indices: &[u32]) -> (Vec<u32>, Vec<u32>) {
+    let mut offsets = vec![0u32; n + 1];
+    for &r in row_indices {
+        offsets[r as usize + 1] += 1;
     }
     for c in 0..n {
         offsets[c + 1] += offsets[c];
     }
     let mut fill = offsets.clone();
-    let mut rows = vec![0usize; pattern.nnz()];
+    let mut rows = vec![0u32; row_indices.len()];
     for c in 0..n {
-        for &r in pattern.lane(c) {
-            rows[fill[r]] = c;
-            fill[r] += 1;
+        for &r in &row_indices[col_offsets[c] as usize..col_offsets[c + 1] as usize] {
+            rows[fill[r as usize] as usize] = c as u32;
+            fill[r as usize] += 1;
         }
     }
     (offsets, rows)
