@@ -193,6 +193,17 @@ fn run_text(text: &str) -> Row {
     }
 }
 
+/// The time of everything but symbolic analysis and numeric factorization
+/// (the total less those two) against theirs, for the share target.
+fn share_line(name: &str, r: &Row) -> String {
+    let factorization = r.symbolic + r.numeric;
+    let rest = r.total - factorization;
+    format!(
+        "{name} 1e6: everything but symbolic analysis and numeric factorization {rest:.2} s against their {factorization:.2} s (share {:.2})",
+        rest / factorization
+    )
+}
+
 /// The median row of `runs` child processes each running `name` at `size`.
 fn measured(name: &str, size: f64, runs: usize) -> Row {
     let exe = std::env::current_exe().expect("own path");
@@ -417,6 +428,7 @@ fn main() {
         &[(2.0, "1e4"), (0.85, "3e4"), (0.6, "1e5"), (0.107, "1e6")]
     };
     let mut fits: Vec<(String, Vec<(f64, f64)>)> = Vec::new();
+    let mut shares: Vec<String> = Vec::new();
     for name in ["axisymmetric linear", "axisymmetric saturating", "planar linear", "planar saturating"] {
         let mut pts = Vec::new();
         for (size, tag) in sizes {
@@ -424,6 +436,9 @@ fn main() {
             print_row(&format!("{name} {tag}"), &r);
             if *tag == "1e5" || *tag == "1e6" {
                 pts.push((r.unknowns, r.total));
+            }
+            if *tag == "1e6" {
+                shares.push(share_line(name, &r));
             }
         }
         fits.push((name.to_string(), pts));
@@ -439,6 +454,7 @@ fn main() {
             );
         }
     }
+    shares.iter().for_each(|l| println!("{l}"));
     newton_cost_benchmark(if quick { &[0.6] } else { &[0.6, 0.107] }, runs.min(3));
     sweep_benchmark();
     design_sweep_benchmark();
