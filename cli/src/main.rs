@@ -37,6 +37,7 @@ struct CaseInputs {
 enum Command {
     /// Mesh, solve and write results (every sweep variant).
     Solve {
+        /// The case file (TOML).
         case: PathBuf,
         /// Output folder (default: <case name>-results in the current folder).
         #[arg(short, long)]
@@ -54,6 +55,7 @@ enum Command {
     },
     /// Solve and evaluate every [[expect]]; exit 1 if any fails.
     Check {
+        /// The case files (TOML); every one is solved and checked.
         #[arg(required = true)]
         cases: Vec<PathBuf>,
         /// Write a JUnit XML report of the expectations.
@@ -66,7 +68,9 @@ enum Command {
     },
     /// Mesh only, for inspection: mesh.vtu, mesh.svg and a summary.
     Mesh {
+        /// The case file (TOML).
         case: PathBuf,
+        /// Output folder (default: <case name>-results in the current folder).
         #[arg(short, long)]
         output: Option<PathBuf>,
         #[command(flatten)]
@@ -76,6 +80,7 @@ enum Command {
     },
     /// List the built-in material library, or show one entry.
     Materials {
+        /// An entry's name (a grade such as N42, or a steel); without it, the whole list.
         name: Option<String>,
         /// Draw the entry's B-H curve (soft materials) or demagnetization line (magnets) to an SVG file.
         #[arg(long, value_name = "FILE.svg")]
@@ -86,6 +91,7 @@ enum Command {
         /// The output folders of the shards (or one folder holding them all).
         #[arg(required = true)]
         folders: Vec<PathBuf>,
+        /// Folder for the merged sweep.csv.
         #[arg(short, long)]
         output: PathBuf,
     },
