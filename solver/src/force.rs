@@ -11,7 +11,7 @@ use crate::assembly::ElementKind;
 use crate::element::for_each_point;
 use crate::solution::Solution;
 use crate::NU0;
-use mesher::Symmetry;
+use mesher::{BoundaryTag, Symmetry};
 
 /// Force on a set of parts.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -111,7 +111,9 @@ fn band_weight(solution: &Solution, in_set_node: &[bool], other: &[bool], in_set
     lengths.sort_by(f64::total_cmp);
     let (blo, bhi) = mesher::geometry::bbox(boundary.iter().map(|&(a, _)| pos[a]));
     let extent = (bhi[0] - blo[0]).max(bhi[1] - blo[1]).max(0.0);
-    let width = (BAND_LAYERS * lengths.get(lengths.len() / 2).copied().unwrap_or(0.0)).max(BAND_FRACTION * extent);
+    let wanted = (BAND_LAYERS * lengths.get(lengths.len() / 2).copied().unwrap_or(0.0)).max(BAND_FRACTION * extent);
+    let grid = crate::segment_grid::SegmentGrid::new(boundary.iter().map(|&(a, b)| [pos[a], pos[b]]).collect());
+    let width = within_domain(solution, &grid, wanted);
     let mut weight: Vec<f64> = in_set_node.iter().map(|&s| if s { 1.0 } else { 0.0 }).collect();
     if width <= 0.0 {
         return weight;
@@ -135,7 +137,6 @@ fn band_weight(solution: &Solution, in_set_node: &[bool], other: &[bool], in_set
         })
         .collect();
     use rayon::prelude::*;
-    let grid = crate::segment_grid::SegmentGrid::new(boundary.iter().map(|&(a, b)| [pos[a], pos[b]]).collect());
     let values: Vec<f64> = candidates
         .par_iter()
         .map(|&n| grid.nearest(pos[n], width).map_or(0.0, |d| (1.0 - d / width).max(0.0)))
@@ -144,6 +145,22 @@ fn band_weight(solution: &Solution, in_set_node: &[bool], other: &[bool], in_set
         weight[n] = v;
     }
     weight
+}
+
+/// The band's width, no wider than the distance from the set to the outer
+/// boundary (the rim of an open study, the box of a flux-parallel one). The
+/// integral covers the physical domain only, so g must fall to 0 before the
+/// rim: a band cut off there left the stress on the cut surface out (a
+/// magnet's torque in a uniform field came out 11 % low when its band
+/// reached the rim).
+fn within_domain(solution: &Solution, set_boundary: &crate::segment_grid::SegmentGrid, wanted: f64) -> f64 {
+    let mesh = solution.problem.mesh;
+    mesh.boundary
+        .iter()
+        .filter(|(_, tag)| matches!(tag, BoundaryTag::Rim | BoundaryTag::Outer))
+        .flat_map(|(edge, _)| *edge)
+        .filter_map(|n| set_boundary.nearest(mesh.nodes[n], wanted))
+        .fold(wanted, f64::min)
 }
 
 fn dist(a: [f64; 2], b: [f64; 2]) -> f64 {

@@ -177,3 +177,85 @@ fn plate_force_is_mesh_independent() {
     record("plate force, default vs twice finer mesh", "mesh convergence", 0.01, rel(fine, coarse));
     assert!(rel(fine, coarse) < 0.01, "default {coarse} N, twice as fine {fine} N");
 }
+
+/// Torque about the origin (N m per metre) and force on a magnet of
+/// remanence `br` (T, along `angle_deg` from x) in a uniform applied field
+/// `b0` (T, along y), planar.
+fn magnet_in_uniform_field(shape: mesher::Shape, size: f64, recoil: f64, angle_deg: f64, b0: f64) -> (f64, [f64; 2], f64) {
+    let (s, c) = angle_deg.to_radians().sin_cos();
+    let mut part = magnet(shape, size, [BR * c, BR * s]);
+    part.law = solver::Law::Magnet {
+        recoil_permeability: recoil,
+        br: [BR * c, BR * s],
+    };
+    solve_with(Symmetry::Planar, vec![part], vec![], OuterBoundary::Open, [0.0, b0], |sol| {
+        let r = force_on(sol, &[0], [0.0; 2]);
+        (r.torque, r.vector, part_area(sol, 0))
+    })
+}
+
+/// Area of part `i` as meshed (a circle is meshed as a polygon of chords).
+fn part_area(sol: &solver::Solution, i: usize) -> f64 {
+    let mesh = sol.problem.mesh;
+    mesh.triangles
+        .iter()
+        .zip(&mesh.regions)
+        .filter(|(_, r)| **r == mesher::Region::Part(i))
+        .map(|(t, _)| {
+            let [a, b, c] = t.map(|n| mesh.nodes[n]);
+            0.5 * ((b[0] - a[0]) * (c[1] - a[1]) - (c[0] - a[0]) * (b[1] - a[1])).abs()
+        })
+        .sum()
+}
+
+#[test]
+fn magnet_in_a_uniform_field_feels_the_dipole_torque() {
+    // Source: the torque on a magnetic moment in a uniform field, N = m x B (J. D. Jackson,
+    // Classical Electrodynamics, 3rd ed., 1999, sec. 5.7), with m = Br A / mu0 per metre of depth
+    // for a rigid magnet (mu_rec = 1), whatever its shape; the net force of a uniform field is
+    // zero. For a round magnet with mu_rec > 1 the moment is that of M = (Br/mu0 + chi H0) /
+    // (1 + chi/2) (transverse demagnetizing factor 1/2 of a circular cylinder, Jackson sec.
+    // 5.11), whose induced part is along H0 and adds no torque. Within 1 % for the torque.
+    let b0 = 0.05;
+    let square = rect(-0.005, -0.005, 0.005, 0.005);
+    for angle in [0.0f64, 30.0, 60.0, 150.0] {
+        let (torque, force, area) = magnet_in_uniform_field(square.clone(), 0.0006, 1.0, angle, b0);
+        let exact = BR * area / MU0 * b0 * angle.to_radians().cos();
+        eprintln!(
+            "square at {angle} deg: torque {torque} exact {exact} err {:.3}%; force {force:?}",
+            100.0 * rel(torque, exact)
+        );
+        record(
+            "magnet torque in a uniform field",
+            "N = m x B (Jackson 1999 sec. 5.7)",
+            0.01,
+            rel(torque, exact),
+        );
+        assert!(rel(torque, exact) < 0.01, "{angle} deg: {torque} vs {exact}");
+        // The net force of a uniform field vanishes: under 0.1 % of the torque over the half-width.
+        let scale = BR * area / MU0 * b0 / 0.005;
+        assert!(force[0].hypot(force[1]) < 1e-3 * scale, "{angle} deg: force {force:?}");
+    }
+    // Magnetized along the field: no torque (under 0.1 % of the perpendicular one).
+    let (torque, _, area) = magnet_in_uniform_field(square, 0.0006, 1.0, 90.0, b0);
+    assert!(torque.abs() < 1e-3 * BR * area / MU0 * b0, "parallel: {torque}");
+    let chi = 0.05;
+    let disk = mesher::Shape::Circle {
+        center: [0.0, 0.0],
+        radius: 0.005,
+    };
+    let (torque, _, area) = magnet_in_uniform_field(disk, 0.0006, 1.0 + chi, 0.0, b0);
+    let exact = BR * area / MU0 * b0 / (1.0 + chi / 2.0);
+    eprintln!(
+        "disk, mu_rec {}: torque {torque} exact {exact} err {:.3}%",
+        1.0 + chi,
+        100.0 * rel(torque, exact)
+    );
+    record(
+        "magnet torque in a uniform field",
+        "N = m x B (Jackson 1999 sec. 5.7)",
+        0.01,
+        rel(torque, exact),
+    );
+    assert!(rel(torque, exact) < 0.01, "{torque} vs {exact}");
+}
