@@ -259,3 +259,27 @@ fn magnet_in_a_uniform_field_feels_the_dipole_torque() {
     );
     assert!(rel(torque, exact) < 0.01, "{torque} vs {exact}");
 }
+
+#[test]
+fn torques_on_two_magnets_cancel_about_any_point() {
+    // Source: the Maxwell stress tensor is symmetric, so the torque of everything inside a closed
+    // surface about a point is the flux of r x T through it, which falls to zero at infinity for
+    // magnets' fields (conservation of angular momentum in statics): the torques of two magnets on
+    // each other about any common point are equal and opposite. Within 1 %.
+    let at = |deg: f64| {
+        let (s, c) = deg.to_radians().sin_cos();
+        [BR * c, BR * s]
+    };
+    let left = magnet(rect(-0.013, -0.005, -0.003, 0.005), 0.0006, at(0.0));
+    let right = magnet(rect(0.003, -0.002, 0.013, 0.008), 0.0006, at(70.0));
+    let points = [[0.0, 0.0], [-0.008, 0.0], [0.02, -0.01]];
+    let torques = solve_with(Symmetry::Planar, vec![left, right], vec![], OuterBoundary::Open, [0.0; 2], |sol| {
+        points.map(|p| (force_on(sol, &[0], p).torque, force_on(sol, &[1], p).torque))
+    });
+    for (point, (t_left, t_right)) in points.iter().zip(torques) {
+        let err = (t_left + t_right).abs() / t_left.abs().max(t_right.abs());
+        eprintln!("about {point:?}: {t_left} and {t_right} ({:.3} %)", 100.0 * err);
+        record("torques of two magnets cancel", "symmetric Maxwell stress (angular momentum)", 0.01, err);
+        assert!(err < 0.01, "about {point:?}: {t_left} and {t_right}");
+    }
+}
