@@ -283,3 +283,27 @@ fn torques_on_two_magnets_cancel_about_any_point() {
         assert!(err < 0.01, "about {point:?}: {t_left} and {t_right}");
     }
 }
+
+#[test]
+fn planar_bar_magnet_over_a_permeable_plate_matches_its_image() {
+    // Source: method of images for a highly permeable half space (e.g. Furlani 2001, sec. 3.6):
+    // a long bar magnetized across the surface is pulled as by its mirror image, a bar the same
+    // way magnetized at twice its centre's height (Furlani 2001 sec. 4.2 charged sheets,
+    // integrated in tests/src/reference.rs); within 3 %, as the axisymmetric check.
+    let (w, h, gap, mu) = (0.005, 0.0025, 0.002, 1e4);
+    let plate = linear(rect(-0.12, -0.06, 0.12, 0.0), 0.004, mu);
+    let bar = magnet(rect(-w, gap, w, gap + 2.0 * h), 0.0005, [0.0, BR]);
+    let refine = vec![Refinement::Line {
+        from: [-w, 0.0],
+        to: [w, 0.0],
+        size: gap / 3.0,
+    }];
+    let f = solve_with(Symmetry::Planar, vec![plate, bar], refine, OuterBoundary::Open, [0.0; 2], |sol| {
+        force_on(sol, &[1], [0.0; 2]).vector[1]
+    });
+    let exact = bar_pair_force_2d(BR, w, h, h, 2.0 * (gap + h));
+    // Both are the pull on the upper bar along +y: negative, towards the plate.
+    eprintln!("planar image: fe {f} exact {exact} err {:.3} %", 100.0 * rel(f, exact));
+    record("planar bar magnet over a permeable plate", "method of images", 0.03, rel(f, exact));
+    assert!(f < 0.0 && rel(f, exact) < 0.03, "{f} vs {exact}");
+}
