@@ -307,3 +307,34 @@ fn planar_bar_magnet_over_a_permeable_plate_matches_its_image() {
     record("planar bar magnet over a permeable plate", "method of images", 0.03, rel(f, exact));
     assert!(f < 0.0 && rel(f, exact) < 0.03, "{f} vs {exact}");
 }
+
+#[test]
+fn conductors_feel_the_lorentz_and_ampere_forces() {
+    // Source: the force on a current in a field, F = I L x B, per metre of a straight conductor
+    // in a uniform field (its own field gives no net force), and Ampere's force law between two
+    // long parallel round conductors, F = mu0 I1 I2 / (2 pi d) per metre (e.g. Jackson 1999,
+    // sec. 5.2); the current is J times the conductor's meshed area. Within 1 %.
+    let (radius, j, b0) = (0.002, 5e6, 0.1);
+    let wire = |x: f64| coil(mesher::Shape::Circle { center: [x, 0.0], radius }, 0.0003, j);
+    let (force, area) = solve_with(Symmetry::Planar, vec![wire(0.0)], vec![], OuterBoundary::Open, [0.0, b0], |sol| {
+        (force_on(sol, &[0], [0.0; 2]).vector, part_area(sol, 0))
+    });
+    // Current along +z, field along +y: F = I z x B0 y = -I B0 along x.
+    let exact = -j * area * b0;
+    eprintln!("wire in a field: {force:?} against {exact}");
+    record("conductor in a uniform field", "F = I L x B", 0.01, rel(force[0], exact));
+    assert!(rel(force[0], exact) < 0.01 && force[1].abs() < 0.01 * exact.abs(), "{force:?} vs {exact}");
+    let d = 0.01;
+    let (f_left, f_right, areas) = solve_with(Symmetry::Planar, vec![wire(0.0), wire(d)], vec![], OuterBoundary::Open, [0.0; 2], |sol| {
+        (
+            force_on(sol, &[0], [0.0; 2]).vector[0],
+            force_on(sol, &[1], [0.0; 2]).vector[0],
+            [part_area(sol, 0), part_area(sol, 1)],
+        )
+    });
+    // Currents the same way attract: the right conductor is pulled towards -x.
+    let exact = -MU0 * (j * areas[0]) * (j * areas[1]) / (2.0 * std::f64::consts::PI * d);
+    eprintln!("parallel wires: {f_left} and {f_right} against {exact}");
+    record("parallel conductors attracting", "Ampere's force law", 0.01, rel(f_right, exact));
+    assert!(rel(f_right, exact) < 0.01 && rel(-f_left, exact) < 0.01, "{f_left}, {f_right} vs {exact}");
+}
