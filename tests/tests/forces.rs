@@ -338,3 +338,29 @@ fn conductors_feel_the_lorentz_and_ampere_forces() {
     record("parallel conductors attracting", "Ampere's force law", 0.01, rel(f_right, exact));
     assert!(rel(f_right, exact) < 0.01 && rel(-f_left, exact) < 0.01, "{f_left}, {f_right} vs {exact}");
 }
+
+#[test]
+fn bar_magnet_is_pushed_off_a_flux_parallel_wall_by_its_image() {
+    // Source: method of images: a wall where the normal flux density vanishes (A = 0 on it)
+    // mirrors magnetic surface charge with its own sign, so a bar magnetized across the wall
+    // meets a reversed image at twice its centre's distance and is pushed off with the pull of
+    // two like bars (Furlani 2001 sec. 4.2 charged sheets, integrated in tests/src/reference.rs);
+    // the box's other walls are 40 bar widths away. Within 2 %, as the attracting pair.
+    let (w, h, gap) = (0.005, 0.0025, 0.002);
+    let bar = magnet(rect(-w, gap, w, gap + 2.0 * h), 0.0005, [0.0, BR]);
+    let outer = OuterBoundary::FluxParallel {
+        from_to: Some(([-0.2, 0.0], [0.2, 0.2])),
+    };
+    let refine = vec![Refinement::Line {
+        from: [-w, 0.0],
+        to: [w, 0.0],
+        size: gap / 3.0,
+    }];
+    let f = solve_with(Symmetry::Planar, vec![bar], refine, outer, [0.0; 2], |sol| {
+        force_on(sol, &[0], [0.0; 2]).vector[1]
+    });
+    let exact = -bar_pair_force_2d(BR, w, h, h, 2.0 * (gap + h));
+    eprintln!("flux-parallel wall: fe {f} exact {exact} err {:.3} %", 100.0 * rel(f, exact));
+    record("bar magnet by a flux-parallel wall", "method of images", 0.02, rel(f, exact));
+    assert!(f > 0.0 && rel(f, exact) < 0.02, "{f} vs {exact}");
+}
