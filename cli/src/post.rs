@@ -198,7 +198,7 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
     for (name, f) in &forces {
         if f.contact {
             warnings.push(format!(
-                "force '{name}': the parts touch other material, so the stress band cuts through it and the force is not reliable; leave an air gap"
+                "force '{name}': the parts touch other material or the outer boundary, so the stress band cannot close around them in air and the force is not reliable; leave an air gap"
             ));
         }
     }

@@ -21,7 +21,11 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
         r.solve.seconds
     );
     for (name, fr) in &r.forces {
-        let contact = if fr.contact { "  (parts touch other material: value unreliable)" } else { "" };
+        let contact = if fr.contact {
+            "  (parts touch other material or the boundary: value unreliable)"
+        } else {
+            ""
+        };
         s += &format!(
             "  force {name}: [{:.4e}, {:.4e}] N, |F| = {:.4e} N{contact}\n",
             fr.vector[0], fr.vector[1], fr.magnitude

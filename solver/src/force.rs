@@ -20,8 +20,9 @@ pub struct Force {
     pub vector: [f64; 2],
     /// Planar only: torque about the given point, N m per metre of depth.
     pub torque: f64,
-    /// True when the set touches another non-air part: the stress layer then
-    /// cuts through material and the value is not reliable.
+    /// True when the set touches another non-air part or the outer boundary:
+    /// the stress layer then cuts through material or ends at the boundary,
+    /// and the value is not reliable.
     pub contact: bool,
 }
 
@@ -43,7 +44,7 @@ pub fn force_on(solution: &Solution, parts: &[usize], torque_center: [f64; 2]) -
         }
     }
     let weight = band_weight(solution, &in_set_node, &other, &in_set);
-    let contact = (0..n_nodes).any(|n| in_set_node[n] && other[n]);
+    let contact = (0..n_nodes).any(|n| in_set_node[n] && other[n]) || touches_outer_boundary(solution, &in_set_node);
     let axisym = solution.symmetry() == Symmetry::Axisymmetric;
     let [fx, fy, mut torque] = crate::reduction::ordered_sum(els.n_physical, |e| {
         let mut sum = [0.0; 3];
@@ -145,6 +146,19 @@ fn band_weight(solution: &Solution, in_set_node: &[bool], other: &[bool], in_set
         weight[n] = v;
     }
     weight
+}
+
+/// True when a node of the set lies on the outer boundary (a flux-parallel
+/// box drawn against a part): g cannot fall to 0 there, so no band closes
+/// around the set in air.
+fn touches_outer_boundary(solution: &Solution, in_set_node: &[bool]) -> bool {
+    solution
+        .problem
+        .mesh
+        .boundary
+        .iter()
+        .filter(|(_, tag)| matches!(tag, BoundaryTag::Rim | BoundaryTag::Outer))
+        .any(|(edge, _)| edge.iter().any(|&n| in_set_node[n]))
 }
 
 /// The band's width, no wider than the distance from the set to the outer

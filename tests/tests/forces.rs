@@ -364,3 +364,20 @@ fn bar_magnet_is_pushed_off_a_flux_parallel_wall_by_its_image() {
     record("bar magnet by a flux-parallel wall", "method of images", 0.02, rel(f, exact));
     assert!(f > 0.0 && rel(f, exact) < 0.02, "{f} vs {exact}");
 }
+
+#[test]
+fn a_magnet_against_the_box_is_flagged_as_in_contact() {
+    // The stress band cannot close in air around a part drawn against a flux-parallel wall;
+    // the force is flagged, as for parts touching other material. A gap clears the flag.
+    let outer = || OuterBoundary::FluxParallel {
+        from_to: Some(([-0.05, 0.0], [0.05, 0.05])),
+    };
+    let contact = |gap: f64| {
+        let bar = magnet(rect(-0.005, gap, 0.005, gap + 0.005), 0.0008, [0.0, BR]);
+        solve_with(Symmetry::Planar, vec![bar], vec![], outer(), [0.0; 2], |sol| {
+            force_on(sol, &[0], [0.0; 2]).contact
+        })
+    };
+    assert!(contact(0.0), "against the wall");
+    assert!(!contact(0.002), "2 mm off the wall");
+}
