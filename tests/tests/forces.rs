@@ -381,3 +381,29 @@ fn a_magnet_against_the_box_is_flagged_as_in_contact() {
     assert!(contact(0.0), "against the wall");
     assert!(!contact(0.002), "2 mm off the wall");
 }
+
+#[test]
+fn disk_magnet_is_pushed_off_a_flux_parallel_wall_by_its_image() {
+    // Source: method of images as for the planar bar: the wall mirrors magnetic charge with its
+    // own sign, so a disk magnetized along the axis meets a reversed image at twice its centre's
+    // distance and is pushed off with the pull of two like coaxial disks (Vokoun et al. 2009,
+    // charge model, tests/src/reference.rs); the box's other walls are 40 radii away. Within 2 %.
+    let (a, l, gap) = (0.005, 0.005, 0.002);
+    let disk = magnet(rect(0.0, -gap - l, a, -gap), 0.0005, [0.0, BR]);
+    let outer = OuterBoundary::FluxParallel {
+        from_to: Some(([0.0, -0.2], [0.2, 0.0])),
+    };
+    let refine = vec![Refinement::Line {
+        from: [0.0, 0.0],
+        to: [a, 0.0],
+        size: gap / 3.0,
+    }];
+    let f = solve_with(Symmetry::Axisymmetric, vec![disk], refine, outer, [0.0; 2], |sol| {
+        force_on(sol, &[0], [0.0; 2]).vector[1]
+    });
+    // The wall is above the disk: pushed off means pushed down, -z.
+    let exact = -coaxial_cylinders_force(BR, BR, a, a, l, l, 2.0 * gap);
+    eprintln!("axisymmetric wall: fe {f} exact {exact} err {:.3} %", 100.0 * rel(f, exact));
+    record("disk magnet by a flux-parallel wall", "method of images", 0.02, rel(f, exact));
+    assert!(f < 0.0 && rel(f, exact) < 0.02, "{f} vs {exact}");
+}
