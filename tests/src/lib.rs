@@ -145,8 +145,10 @@ pub fn record(check: &str, source: &str, tolerance: f64, measured: f64) {
     let Ok(path) = std::env::var("LODESTONE_VALIDATION_LOG") else { return };
     let line = serde_json::json!({ "check": check, "source": source, "tolerance": tolerance, "measured": measured });
     use std::io::Write;
+    // One write of the whole line: tests record from several threads at once, and a line
+    // written in pieces could interleave with another's (lines went missing from the table).
     if let Ok(mut f) = std::fs::OpenOptions::new().create(true).append(true).open(path) {
-        let _ = writeln!(f, "{line}");
+        let _ = f.write_all(format!("{line}\n").as_bytes());
     }
 }
 pub mod random;

@@ -22,8 +22,12 @@ fn main() {
     };
     // One row per check: the worst measured error over its sub-cases.
     let mut rows: BTreeMap<String, (String, f64, f64, usize)> = BTreeMap::new();
-    for line in text.lines() {
-        let Ok(v) = serde_json::from_str::<serde_json::Value>(line) else { continue };
+    for (k, line) in text.lines().enumerate() {
+        // A line that does not parse is a record lost: the table would silently miss it.
+        let Ok(v) = serde_json::from_str::<serde_json::Value>(line) else {
+            eprintln!("error: {path}:{}: not a JSON record: {line}", k + 1);
+            std::process::exit(1);
+        };
         let check = v["check"].as_str().unwrap_or("").to_string();
         let source = v["source"].as_str().unwrap_or("").to_string();
         let tol = v["tolerance"].as_f64().unwrap_or(f64::NAN);
