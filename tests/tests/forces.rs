@@ -407,3 +407,38 @@ fn disk_magnet_is_pushed_off_a_flux_parallel_wall_by_its_image() {
     record("disk magnet by a flux-parallel wall", "method of images", 0.02, rel(f, exact));
     assert!(f < 0.0 && rel(f, exact) < 0.02, "{f} vs {exact}");
 }
+
+#[test]
+fn ring_coil_over_a_magnet_feels_the_lorentz_force() {
+    // Source: the force on a current in a field, F = integral of J x B dV: on a ring winding about
+    // the axis F_z = - integral of J B_r 2 pi r dA, B_r the magnet's own field (the winding's
+    // self-field gives no net force), from Derby and Olbert 2010 (tests/src/reference.rs) by
+    // Gauss-Legendre over the winding's section. Within 1 %.
+    let (a, l, j) = (0.005, 0.005, 2e6);
+    let (r0, r1, z0, z1) = (0.007, 0.009, 0.004, 0.006);
+    let disk = magnet(rect(0.0, -l / 2.0, a, l / 2.0), 0.0005, [0.0, BR]);
+    let ring = coil(rect(r0, z0, r1, z1), 0.0003, j);
+    let f = solve_with(Symmetry::Axisymmetric, vec![disk, ring], vec![], OuterBoundary::Open, [0.0; 2], |sol| {
+        force_on(sol, &[1], [0.0; 2]).vector[1]
+    });
+    let (g, w) = gauss_legendre_8();
+    let (nr, nz) = (8, 8);
+    let mut exact = 0.0;
+    for ir in 0..nr {
+        for iz in 0..nz {
+            for (&gr, &wr) in g.iter().zip(&w) {
+                for (&gz, &wz) in g.iter().zip(&w) {
+                    let dr = (r1 - r0) / nr as f64;
+                    let dz = (z1 - z0) / nz as f64;
+                    let r = r0 + dr * (ir as f64 + 0.5 * (gr + 1.0));
+                    let z = z0 + dz * (iz as f64 + 0.5 * (gz + 1.0));
+                    let b_r = cylinder_field(BR, a, l / 2.0, r, z)[0];
+                    exact -= j * b_r * 2.0 * std::f64::consts::PI * r * 0.25 * dr * dz * wr * wz;
+                }
+            }
+        }
+    }
+    eprintln!("ring coil: fe {f} exact {exact} err {:.3} %", 100.0 * rel(f, exact));
+    record("ring winding over a magnet", "F = J x B (Derby and Olbert 2010 field)", 0.01, rel(f, exact));
+    assert!(rel(f, exact) < 0.01, "{f} vs {exact}");
+}
