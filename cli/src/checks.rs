@@ -97,8 +97,8 @@ pub fn stray_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String
     let (c, radius) = (disk.center, disk.radius);
     let limit = 0.98 * radius;
     let axisym = model.symmetry == Symmetry::Axisymmetric;
-    let power = if axisym { 3.0 } else { 2.0 };
-    let along = |dir: [f64; 2], level: f64| stray::fall_distance(sol, c, dir, limit, level, power);
+    let series = stray::exterior_series(sol, c, 0.95 * radius);
+    let along = |dir: [f64; 2], level: f64| stray::fall_distance(sol, c, dir, limit, level, series.as_ref());
     let axis = |level: f64| {
         [along([0.0, 1.0], level), along([0.0, -1.0], level)]
             .into_iter()
@@ -112,7 +112,7 @@ pub fn stray_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String
     if !axisym {
         return r;
     }
-    r.moment_a_m2 = stray::dipole_moment(sol, c, 0.95 * radius);
+    r.moment_a_m2 = series.as_ref().map(|s| s.dipole_moment());
     r.implant_distance_axis_m = axis(IMPLANT_LEVEL);
     r.implant_distance_plane_m = along([1.0, 0.0], IMPLANT_LEVEL);
     if let Some(m) = r.moment_a_m2 {

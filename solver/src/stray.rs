@@ -1,4 +1,4 @@
-//! The stray field far from the assembly: the dipole moment (axisymmetric)
+//! The stray field far from the assembly: its exterior multipole series, the dipole moment
 //! and the distances at which |B| falls to a given level.
 
 use crate::solution::Solution;
@@ -6,42 +6,169 @@ use crate::MU0;
 use mesher::Symmetry;
 use std::f64::consts::PI;
 
-/// Magnetic dipole moment (A m2) of an axisymmetric assembly, by projecting
-/// the reaction potential on a circle of radius `rho` about `center` (all
-/// sources inside it) onto the dipole term of the exterior expansion
-/// A_phi = sum c_n P_n^1(cos t) / rho^(n+1): the associated Legendre
-/// functions are orthogonal on [0, pi] with weight sin t, so
-/// m = (4 pi rho^2 / mu0) (3/4) integral of A sin^2 t dt exactly, whatever
-/// the higher multipoles. None outside axisymmetric studies.
-pub fn dipole_moment(solution: &Solution, center: [f64; 2], rho: f64) -> Option<f64> {
-    if solution.symmetry() != Symmetry::Axisymmetric {
-        return None;
+/// Terms of the exterior multipole series fitted by `exterior_series`.
+const TERMS: usize = 16;
+
+/// Samples of the potential on the fitting circle.
+const SAMPLES: usize = 720;
+
+/// The field outside every source as its multipole series about a centre,
+/// fitted to the reaction potential on a circle that holds every source.
+/// Outside that circle the air is source-free, so the series is the exact
+/// solution there and can be evaluated at any distance: walking the mesh
+/// stops at the domain's rim, and extrapolating from the rim with the
+/// dipole's decay put a bare magnet's 0.5 mT distance 6 % too close in its
+/// mid-plane (the higher multipoles still count at the rim).
+///
+/// Axisymmetric: A_phi = sum over n >= 1 of c_n P_n^1(cos t) / rho^(n+1),
+/// t from +z; the P_n^1 are orthogonal on [0, pi] with weight sin t and
+/// norm 2 n (n + 1) / (2 n + 1). Planar: A_z = c_0 ln rho + sum over
+/// n >= 1 of (a_n cos n t + b_n sin n t) / rho^n, with c_0 = -mu0 I / (2 pi)
+/// from the net current I (the constant term carries no field).
+#[derive(Clone, Debug)]
+pub struct ExteriorSeries {
+    center: [f64; 2],
+    symmetry: Symmetry,
+    /// Axisymmetric: [c_n, 0]; planar: [a_n, b_n]; index n - 1.
+    terms: Vec<[f64; 2]>,
+    log_term: f64,
+}
+
+/// The series from the potential on the circle of radius `rho` about
+/// `center` (the upper and lower half-circle's points on the axis side when
+/// axisymmetric). None when a sample falls outside the mesh.
+pub fn exterior_series(solution: &Solution, center: [f64; 2], rho: f64) -> Option<ExteriorSeries> {
+    let symmetry = solution.symmetry();
+    let mut terms = vec![[0.0; 2]; TERMS];
+    let mut log_term = 0.0;
+    match symmetry {
+        Symmetry::Axisymmetric => {
+            for k in 0..SAMPLES {
+                let t = PI * (k as f64 + 0.5) / SAMPLES as f64;
+                let a = reduced_potential_at(solution, [rho * t.sin(), center[1] + rho * t.cos()])?;
+                for (n, p) in associated_legendre(t.cos()).iter().enumerate() {
+                    terms[n][0] += a * p.1 * t.sin() * PI / SAMPLES as f64;
+                }
+            }
+            for (n, c) in terms.iter_mut().enumerate() {
+                let n = (n + 1) as f64;
+                c[0] *= rho.powf(n + 1.0) * (2.0 * n + 1.0) / (2.0 * n * (n + 1.0));
+            }
+        }
+        Symmetry::Planar => {
+            for k in 0..SAMPLES {
+                let t = 2.0 * PI * (k as f64 + 0.5) / SAMPLES as f64;
+                let a = reduced_potential_at(solution, [center[0] + rho * t.cos(), center[1] + rho * t.sin()])?;
+                for (n, c) in terms.iter_mut().enumerate() {
+                    let m = (n + 1) as f64;
+                    c[0] += a * (m * t).cos() * 2.0 / SAMPLES as f64;
+                    c[1] += a * (m * t).sin() * 2.0 / SAMPLES as f64;
+                }
+            }
+            for (n, c) in terms.iter_mut().enumerate() {
+                let scale = rho.powi(n as i32 + 1);
+                c[0] *= scale;
+                c[1] *= scale;
+            }
+            log_term = -MU0 * net_current(solution) / (2.0 * PI);
+        }
     }
-    let n = 400;
-    let mut s = 0.0;
-    for k in 0..n {
-        let t = PI * (k as f64 + 0.5) / n as f64;
-        let p = [rho * t.sin(), center[1] - rho * t.cos()];
-        let (e, lam) = solution.element_at(p)?;
-        let op = crate::element::point_op(
-            &solution.elements.coords[e],
-            solution.elements.order,
-            Symmetry::Axisymmetric,
-            solution.placement(e),
-            lam,
-            1.0,
-        );
-        let a = crate::element::potential(&op, &solution.elements.gather(e, &solution.reduced));
-        s += a * t.sin().powi(2) * PI / n as f64;
+    Some(ExteriorSeries {
+        center,
+        symmetry,
+        terms,
+        log_term,
+    })
+}
+
+impl ExteriorSeries {
+    /// Dipole moment, A m2 (axisymmetric, along +z; planar, per metre: |m|).
+    pub fn dipole_moment(&self) -> f64 {
+        match self.symmetry {
+            Symmetry::Axisymmetric => 4.0 * PI * self.terms[0][0] / MU0,
+            Symmetry::Planar => 2.0 * PI * self.terms[0][0].hypot(self.terms[0][1]) / MU0,
+        }
     }
-    Some(4.0 * PI * rho * rho / MU0 * 0.75 * s)
+
+    /// B ([x, y] planar, [r, z] axisymmetric) at a point outside the fitting circle.
+    pub fn b_at(&self, p: [f64; 2]) -> [f64; 2] {
+        let (dx, dy) = (p[0] - self.center[0], p[1] - self.center[1]);
+        let rho = dx.hypot(dy).max(f64::MIN_POSITIVE);
+        match self.symmetry {
+            Symmetry::Axisymmetric => {
+                // t from +z: (sin t, cos t) = (r, z - zc) / rho.
+                let (st, ct) = (dx / rho, dy / rho);
+                let (mut b_rho, mut b_t) = (0.0, 0.0);
+                for (n, (pn, pn1)) in associated_legendre(ct).iter().enumerate() {
+                    let m = (n + 1) as f64;
+                    let c = self.terms[n][0] / rho.powf(m + 2.0);
+                    b_rho += c * m * (m + 1.0) * pn;
+                    b_t += c * m * pn1;
+                }
+                // Unit vectors: rho = (sin t, cos t), t = (cos t, -sin t) in (r, z).
+                [b_rho * st + b_t * ct, b_rho * ct - b_t * st]
+            }
+            Symmetry::Planar => {
+                let t = dy.atan2(dx);
+                // B_rho = (1/rho) dA/dt, B_t = -dA/drho.
+                let (mut b_rho, mut b_t) = (0.0, -self.log_term / rho);
+                for (n, c) in self.terms.iter().enumerate() {
+                    let m = (n + 1) as f64;
+                    let (s, co) = (m * t).sin_cos();
+                    let r = rho.powf(-m - 1.0);
+                    b_rho += m * (-c[0] * s + c[1] * co) * r;
+                    b_t += m * (c[0] * co + c[1] * s) * r;
+                }
+                let (s, co) = t.sin_cos();
+                [b_rho * co - b_t * s, b_rho * s + b_t * co]
+            }
+        }
+    }
+}
+
+/// (P_n(x), P_n^1(x)) for n = 1..=TERMS, P_n^1 without the Condon-Shortley
+/// phase (P_1^1 = sqrt(1 - x^2)), by the three-term recurrences.
+fn associated_legendre(x: f64) -> [(f64, f64); TERMS] {
+    let s = (1.0 - x * x).max(0.0).sqrt();
+    let mut out = [(0.0, 0.0); TERMS];
+    let (mut p_prev, mut p) = (1.0, x);
+    let (mut q_prev, mut q) = (0.0, s);
+    out[0] = (p, q);
+    for (k, slot) in out.iter_mut().enumerate().skip(1) {
+        let n = (k + 1) as f64;
+        let p_next = ((2.0 * n - 1.0) * x * p - (n - 1.0) * p_prev) / n;
+        let q_next = ((2.0 * n - 1.0) * x * q - n * q_prev) / (n - 1.0);
+        (p_prev, p, q_prev, q) = (p, p_next, q, q_next);
+        *slot = (p, q);
+    }
+    out
+}
+
+/// The reaction potential (applied field left out) at a point of the mesh.
+fn reduced_potential_at(solution: &Solution, p: [f64; 2]) -> Option<f64> {
+    let (e, lam) = solution.element_at(p)?;
+    let els = &solution.elements;
+    let op = crate::element::point_op(&els.coords[e], els.order, solution.symmetry(), solution.placement(e), lam, 1.0);
+    Some(crate::element::potential(&op, &els.gather(e, &solution.reduced)))
+}
+
+/// Net current out of the plane (planar), A: each part's current density
+/// times its meshed area.
+fn net_current(solution: &Solution) -> f64 {
+    let mesh = solution.problem.mesh;
+    (0..mesh.triangles.len())
+        .filter_map(|t| match mesh.regions[t] {
+            mesher::Region::Part(i) => Some(solution.problem.current_density.get(i).copied().unwrap_or(0.0) * mesh.triangle_area(t)),
+            mesher::Region::Air => None,
+        })
+        .sum()
 }
 
 /// Distance from `origin` along the unit vector `dir` at which |B| last
-/// exceeds `level`, from the solution up to `limit`, then (if still above)
-/// by extrapolating with the far-field decay d^-power. Returns None when the
-/// field never reaches the level at the origin side.
-pub fn fall_distance(solution: &Solution, origin: [f64; 2], dir: [f64; 2], limit: f64, level: f64, power: f64) -> Option<f64> {
+/// exceeds `level`: from the solution up to `limit`, then (if still above)
+/// from the exterior series `far` beyond it. None when the field never
+/// reaches the level at the origin side, or the series is missing.
+pub fn fall_distance(solution: &Solution, origin: [f64; 2], dir: [f64; 2], limit: f64, level: f64, far: Option<&ExteriorSeries>) -> Option<f64> {
     let n = 800;
     let mut last: Option<(f64, f64)> = None;
     let mut crossing = None;
@@ -59,9 +186,39 @@ pub fn fall_distance(solution: &Solution, origin: [f64; 2], dir: [f64; 2], limit
     }
     match (crossing, last) {
         (Some(c), _) => Some(c),
-        (None, Some((d, b))) if b > 0.0 => Some(d * (b / level).powf(1.0 / power)),
+        (None, Some((d, b))) if b > 0.0 => beyond(far?, origin, dir, d, level),
         _ => None,
     }
+}
+
+/// The last distance past `from` where the series' |B| along `dir` falls
+/// to `level`: geometric steps out to where it is below the level for good
+/// (a million times `from`), then bisection on the last step.
+fn beyond(series: &ExteriorSeries, origin: [f64; 2], dir: [f64; 2], from: f64, level: f64) -> Option<f64> {
+    let b = |d: f64| {
+        let v = series.b_at([origin[0] + d * dir[0], origin[1] + d * dir[1]]);
+        v[0].hypot(v[1])
+    };
+    let mut last_above = None;
+    let mut d = from;
+    while d < 1e6 * from {
+        if b(d) >= level {
+            last_above = Some(d);
+        }
+        d *= 1.02;
+    }
+    // Above at the rim by the mesh but below by the series: the crossing is at the rim.
+    let Some(above) = last_above else { return Some(from) };
+    let (mut lo, mut hi) = (above, above * 1.02);
+    for _ in 0..100 {
+        let mid = 0.5 * (lo + hi);
+        if b(mid) >= level {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+    }
+    Some(0.5 * (lo + hi))
 }
 
 fn interpolate(prev: Option<(f64, f64)>, cur: (f64, f64), level: f64) -> f64 {

@@ -97,3 +97,79 @@ fn hard_ferrite_is_most_at_risk_when_cold() {
     let hot = disk_margin("Y30", 80.0).0;
     assert!(cold < room && room < hot, "{cold} {room} {hot}");
 }
+
+/// The distance at which `field(d)` (falling with d) comes down to `level`, by bisection.
+fn fall_to(level: f64, field: impl Fn(f64) -> f64, mut near: f64, mut far: f64) -> f64 {
+    for _ in 0..200 {
+        let mid = 0.5 * (near + far);
+        if field(mid) > level {
+            near = mid;
+        } else {
+            far = mid;
+        }
+    }
+    0.5 * (near + far)
+}
+
+#[test]
+fn implant_distances_of_a_bare_cylinder_match_its_exact_field() {
+    // Source: the exact field of a uniformly magnetized cylinder on its axis (Furlani 2001 sec.
+    // 4.3) and in its mid-plane (Derby and Olbert 2010), tests/src/reference.rs: the distances
+    // from the magnet's centre where |B| falls to the 0.5 mT implant level; within 2 %.
+    use validation::reference::{cylinder_axis_bz, cylinder_field};
+    let (a, l) = (0.01, 0.02);
+    let r = solve_case_text(&bare_cylinder(10.0, 20.0, "ideal", ""), &[]);
+    let level = 0.5e-3;
+    let axis = fall_to(level, |d| cylinder_axis_bz(1.2, a, l, 0.5 * l + d), 0.5 * l, 100.0);
+    let plane = fall_to(level, |d| cylinder_field(1.2, a, 0.5 * l, d, 0.0)[1].abs(), a, 100.0);
+    let (fe_axis, fe_plane) = (r.values["stray.implant_distance.axis"], r.values["stray.implant_distance.plane"]);
+    eprintln!(
+        "implant distance: axis {fe_axis} against {axis} ({:.3} %), plane {fe_plane} against {plane} ({:.3} %)",
+        100.0 * rel(fe_axis, axis),
+        100.0 * rel(fe_plane, plane)
+    );
+    record(
+        "implant distances of a bare cylinder",
+        "exact cylinder field (Furlani 2001; Derby & Olbert 2010)",
+        0.02,
+        rel(fe_axis, axis).max(rel(fe_plane, plane)),
+    );
+    assert!(
+        rel(fe_axis, axis) < 0.02 && rel(fe_plane, plane) < 0.02,
+        "axis {fe_axis} vs {axis}, plane {fe_plane} vs {plane}"
+    );
+}
+
+#[test]
+fn reach_of_a_planar_bar_matches_its_exact_field() {
+    // Source: the exact 2D field of a long bar magnetized across its width, two charged sheets
+    // (Furlani 2001 sec. 4.2), tests/src/reference.rs: the distance from the bar's centre along
+    // its magnetization where |B| falls to the reach level (5 mT), well beyond the domain's rim
+    // (read from the exterior series there); within 2 %.
+    use validation::reference::bar_field_2d;
+    let case = r#"
+[study]
+geometry = "planar"
+unit = "mm"
+depth = "100 mm"
+[materials.ideal]
+br = "1.2 T"
+mur = 1.0
+[[part]]
+name = "bar"
+material = "ideal"
+magnetization = "+y"
+rect = { from = [-5, -2.5], to = [5, 2.5] }
+[output]
+vtk = false
+plots = false
+report = false
+"#;
+    let r = solve_case_text(case, &[]);
+    let (w, h) = (0.005, 0.0025);
+    let exact = fall_to(5e-3, |d| bar_field_2d(1.2, w, h, 0.0, d)[1].abs(), h, 100.0);
+    let fe = r.values["reach.axis"];
+    eprintln!("planar reach: {fe} against {exact} ({:.3} %)", 100.0 * rel(fe, exact));
+    record("reach of a planar bar", "exact bar field (Furlani 2001)", 0.02, rel(fe, exact));
+    assert!(rel(fe, exact) < 0.02, "{fe} vs {exact}");
+}
