@@ -173,3 +173,32 @@ report = false
     record("reach of a planar bar", "exact bar field (Furlani 2001)", 0.02, rel(fe, exact));
     assert!(rel(fe, exact) < 0.02, "{fe} vs {exact}");
 }
+
+#[test]
+fn reach_of_a_long_conductor_matches_amperes_law() {
+    // Source: Ampere's law: outside a long round conductor |B| = mu0 I / (2 pi d), so |B| falls
+    // to the reach level at d = mu0 I / (2 pi level) from its axis, here far beyond the domain's
+    // rim (the exterior series' logarithmic term); within 1 %.
+    let case = r#"
+[study]
+geometry = "planar"
+unit = "mm"
+depth = "1 m"
+reach_level = "1 mT"
+[[part]]
+name = "conductor"
+material = "copper"
+current = "2000 A"
+circle = { center = [0, 0], radius = 5 }
+[output]
+vtk = false
+plots = false
+report = false
+"#;
+    let r = solve_case_text(case, &[]);
+    let exact = MU0 * 2000.0 / (2.0 * std::f64::consts::PI * 1e-3);
+    let fe = r.values["reach.axis"];
+    eprintln!("conductor reach: {fe} against {exact} ({:.3} %)", 100.0 * rel(fe, exact));
+    record("reach of a long conductor", "Ampere's law", 0.01, rel(fe, exact));
+    assert!(rel(fe, exact) < 0.01, "{fe} vs {exact}");
+}
