@@ -147,25 +147,18 @@ fn reach_of_a_planar_bar_matches_its_exact_field() {
     // its magnetization where |B| falls to the reach level (5 mT), well beyond the domain's rim
     // (read from the exterior series there); within 2 %.
     use validation::reference::bar_field_2d;
-    let case = r#"
-[study]
-geometry = "planar"
-unit = "mm"
-depth = "100 mm"
-[materials.ideal]
+    let case = planar_case(
+        "",
+        r#"[materials.ideal]
 br = "1.2 T"
 mur = 1.0
 [[part]]
 name = "bar"
 material = "ideal"
 magnetization = "+y"
-rect = { from = [-5, -2.5], to = [5, 2.5] }
-[output]
-vtk = false
-plots = false
-report = false
-"#;
-    let r = solve_case_text(case, &[]);
+rect = { from = [-5, -2.5], to = [5, 2.5] }"#,
+    );
+    let r = solve_case_text(&case, &[]);
     let (w, h) = (0.005, 0.0025);
     let exact = fall_to(5e-3, |d| bar_field_2d(1.2, w, h, 0.0, d)[1].abs(), h, 100.0);
     let fe = r.values["reach.axis"];
@@ -179,26 +172,24 @@ fn reach_of_a_long_conductor_matches_amperes_law() {
     // Source: Ampere's law: outside a long round conductor |B| = mu0 I / (2 pi d), so |B| falls
     // to the reach level at d = mu0 I / (2 pi level) from its axis, here far beyond the domain's
     // rim (the exterior series' logarithmic term); within 1 %.
-    let case = r#"
-[study]
-geometry = "planar"
-unit = "mm"
-depth = "1 m"
-reach_level = "1 mT"
-[[part]]
+    let case = planar_case(
+        "reach_level = \"1 mT\"",
+        r#"[[part]]
 name = "conductor"
 material = "copper"
 current = "2000 A"
-circle = { center = [0, 0], radius = 5 }
-[output]
-vtk = false
-plots = false
-report = false
-"#;
-    let r = solve_case_text(case, &[]);
+circle = { center = [0, 0], radius = 5 }"#,
+    );
+    let r = solve_case_text(&case, &[]);
     let exact = MU0 * 2000.0 / (2.0 * std::f64::consts::PI * 1e-3);
     let fe = r.values["reach.axis"];
     eprintln!("conductor reach: {fe} against {exact} ({:.3} %)", 100.0 * rel(fe, exact));
     record("reach of a long conductor", "Ampere's law", 0.01, rel(fe, exact));
     assert!(rel(fe, exact) < 0.01, "{fe} vs {exact}");
+}
+
+/// A planar case (mm, 1 m deep) with `study` added to its [study] table and
+/// `parts` after it, writing results only.
+fn planar_case(study: &str, parts: &str) -> String {
+    format!("[study]\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = \"1 m\"\n{study}\n{parts}\n[output]\nvtk = false\nplots = false\nreport = false\n")
 }
