@@ -152,13 +152,15 @@ fn band_weight(solution: &Solution, in_set_node: &[bool], other: &[bool], in_set
 /// box drawn against a part): g cannot fall to 0 there, so no band closes
 /// around the set in air.
 fn touches_outer_boundary(solution: &Solution, in_set_node: &[bool]) -> bool {
-    solution
-        .problem
-        .mesh
-        .boundary
+    outer_boundary_nodes(solution.problem.mesh).any(|n| in_set_node[n])
+}
+
+/// Nodes of the outer boundary's edges: the rim of an open study, a flux-parallel box.
+fn outer_boundary_nodes(mesh: &mesher::Mesh) -> impl Iterator<Item = usize> + '_ {
+    mesh.boundary
         .iter()
         .filter(|(_, tag)| matches!(tag, BoundaryTag::Rim | BoundaryTag::Outer))
-        .any(|(edge, _)| edge.iter().any(|&n| in_set_node[n]))
+        .flat_map(|(edge, _)| *edge)
 }
 
 /// The band's width, no wider than the distance from the set to the outer
@@ -169,10 +171,7 @@ fn touches_outer_boundary(solution: &Solution, in_set_node: &[bool]) -> bool {
 /// reached the rim).
 fn within_domain(solution: &Solution, set_boundary: &crate::segment_grid::SegmentGrid, wanted: f64) -> f64 {
     let mesh = solution.problem.mesh;
-    mesh.boundary
-        .iter()
-        .filter(|(_, tag)| matches!(tag, BoundaryTag::Rim | BoundaryTag::Outer))
-        .flat_map(|(edge, _)| *edge)
+    outer_boundary_nodes(mesh)
         .filter_map(|n| set_boundary.nearest(mesh.nodes[n], wanted))
         .fold(wanted, f64::min)
 }

@@ -119,9 +119,14 @@ impl<'m> Solution<'m> {
 
     /// Total potential at a physical point (A_z or A_phi), or None outside.
     pub fn potential_at(&self, p: [f64; 2]) -> Option<f64> {
+        Some(self.reduced_potential_at(p)? + self.problem.applied_potential(p))
+    }
+
+    /// The reaction potential alone (applied field left out) at a physical point, or None outside.
+    pub fn reduced_potential_at(&self, p: [f64; 2]) -> Option<f64> {
         let (e, lam) = self.element_at(p)?;
         let op = point_op(&self.elements.coords[e], self.elements.order, self.symmetry(), Placement::Physical, lam, 1.0);
-        Some(potential(&op, &self.elements.gather(e, &self.reduced)) + self.problem.applied_potential(p))
+        Some(potential(&op, &self.elements.gather(e, &self.reduced)))
     }
 
     pub fn placement(&self, e: usize) -> Placement {

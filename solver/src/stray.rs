@@ -35,8 +35,8 @@ pub struct ExteriorSeries {
 }
 
 /// The series from the potential on the circle of radius `rho` about
-/// `center` (the upper and lower half-circle's points on the axis side when
-/// axisymmetric). None when a sample falls outside the mesh.
+/// `center` (its half in r >= 0 when axisymmetric). None when a sample
+/// falls outside the mesh.
 pub fn exterior_series(solution: &Solution, center: [f64; 2], rho: f64) -> Option<ExteriorSeries> {
     let symmetry = solution.symmetry();
     let mut terms = vec![[0.0; 2]; TERMS];
@@ -45,7 +45,7 @@ pub fn exterior_series(solution: &Solution, center: [f64; 2], rho: f64) -> Optio
         Symmetry::Axisymmetric => {
             for k in 0..SAMPLES {
                 let t = PI * (k as f64 + 0.5) / SAMPLES as f64;
-                let a = reduced_potential_at(solution, [rho * t.sin(), center[1] + rho * t.cos()])?;
+                let a = solution.reduced_potential_at([rho * t.sin(), center[1] + rho * t.cos()])?;
                 for (n, p) in associated_legendre(t.cos()).iter().enumerate() {
                     terms[n][0] += a * p.1 * t.sin() * PI / SAMPLES as f64;
                 }
@@ -58,7 +58,7 @@ pub fn exterior_series(solution: &Solution, center: [f64; 2], rho: f64) -> Optio
         Symmetry::Planar => {
             for k in 0..SAMPLES {
                 let t = 2.0 * PI * (k as f64 + 0.5) / SAMPLES as f64;
-                let a = reduced_potential_at(solution, [center[0] + rho * t.cos(), center[1] + rho * t.sin()])?;
+                let a = solution.reduced_potential_at([center[0] + rho * t.cos(), center[1] + rho * t.sin()])?;
                 for (n, c) in terms.iter_mut().enumerate() {
                     let m = (n + 1) as f64;
                     c[0] += a * (m * t).cos() * 2.0 / SAMPLES as f64;
@@ -144,24 +144,12 @@ fn associated_legendre(x: f64) -> [(f64, f64); TERMS] {
     out
 }
 
-/// The reaction potential (applied field left out) at a point of the mesh.
-fn reduced_potential_at(solution: &Solution, p: [f64; 2]) -> Option<f64> {
-    let (e, lam) = solution.element_at(p)?;
-    let els = &solution.elements;
-    let op = crate::element::point_op(&els.coords[e], els.order, solution.symmetry(), solution.placement(e), lam, 1.0);
-    Some(crate::element::potential(&op, &els.gather(e, &solution.reduced)))
-}
-
 /// Net current out of the plane (planar), A: each part's current density
 /// times its meshed area.
 fn net_current(solution: &Solution) -> f64 {
-    let mesh = solution.problem.mesh;
-    (0..mesh.triangles.len())
-        .filter_map(|t| match mesh.regions[t] {
-            mesher::Region::Part(i) => Some(solution.problem.current_density.get(i).copied().unwrap_or(0.0) * mesh.triangle_area(t)),
-            mesher::Region::Air => None,
-        })
-        .sum()
+    let densities = &solution.problem.current_density;
+    let areas = solution.problem.mesh.part_areas(densities.len());
+    densities.iter().zip(&areas).map(|(j, a)| j * a).sum()
 }
 
 /// Distance from `origin` along the unit vector `dir` at which |B| last

@@ -190,22 +190,8 @@ fn magnet_in_uniform_field(shape: mesher::Shape, size: f64, recoil: f64, angle_d
     };
     solve_with(Symmetry::Planar, vec![part], vec![], OuterBoundary::Open, [0.0, b0], |sol| {
         let r = force_on(sol, &[0], [0.0; 2]);
-        (r.torque, r.vector, part_area(sol, 0))
+        (r.torque, r.vector, sol.problem.mesh.part_areas(1)[0])
     })
-}
-
-/// Area of part `i` as meshed (a circle is meshed as a polygon of chords).
-fn part_area(sol: &solver::Solution, i: usize) -> f64 {
-    let mesh = sol.problem.mesh;
-    mesh.triangles
-        .iter()
-        .zip(&mesh.regions)
-        .filter(|(_, r)| **r == mesher::Region::Part(i))
-        .map(|(t, _)| {
-            let [a, b, c] = t.map(|n| mesh.nodes[n]);
-            0.5 * ((b[0] - a[0]) * (c[1] - a[1]) - (c[0] - a[0]) * (b[1] - a[1])).abs()
-        })
-        .sum()
 }
 
 #[test]
@@ -294,7 +280,7 @@ fn conductors_feel_the_lorentz_and_ampere_forces() {
     let (radius, j, b0) = (0.002, 5e6, 0.1);
     let wire = |x: f64| coil(mesher::Shape::Circle { center: [x, 0.0], radius }, 0.0003, j);
     let (force, area) = solve_with(Symmetry::Planar, vec![wire(0.0)], vec![], OuterBoundary::Open, [0.0, b0], |sol| {
-        (force_on(sol, &[0], [0.0; 2]).vector, part_area(sol, 0))
+        (force_on(sol, &[0], [0.0; 2]).vector, sol.problem.mesh.part_areas(1)[0])
     });
     // Current along +z, field along +y: F = I z x B0 y = -I B0 along x.
     let exact = -j * area * b0;
@@ -306,7 +292,7 @@ fn conductors_feel_the_lorentz_and_ampere_forces() {
         (
             force_on(sol, &[0], [0.0; 2]).vector[0],
             force_on(sol, &[1], [0.0; 2]).vector[0],
-            [part_area(sol, 0), part_area(sol, 1)],
+            sol.problem.mesh.part_areas(2),
         )
     });
     // Currents the same way attract: the right conductor is pulled towards -x.
