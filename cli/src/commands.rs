@@ -2,7 +2,6 @@
 //! (0 success, 1 an expectation failed, 2 bad input, 3 not converged).
 
 use crate::case::suggest;
-use crate::materials;
 use crate::output;
 use crate::progress::Progress;
 use crate::run::{self, Failure, Limits, Loaded, Outcome, Variant};
@@ -10,6 +9,7 @@ use crate::sweep;
 use rayon::prelude::*;
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
+use study::materials;
 
 fn fail(f: &Failure) -> i32 {
     eprint!("{}", f.message());
@@ -217,9 +217,10 @@ pub fn mesh(case: &Path, output: Option<PathBuf>, set: &[String], max_elements: 
     let go = || -> Result<(), Failure> {
         let loaded = run::load(case)?;
         let variants = run::variants(&loaded, &overrides(set)?)?;
-        let model = run::resolve(&loaded, &variants[0].params, &Limits { max_elements })?;
+        let resolved = run::resolve(&loaded, &variants[0].params, &Limits { max_elements })?;
         progress.note(&format!("{}: meshing", loaded.stem()));
-        let mesh = mesher::build_mesh(&crate::study::mesh_spec(&model)).map_err(|e| loaded.input(&crate::study::mesh_error(&model, &e)))?;
+        let mesh = run::mesh(&loaded, &resolved)?;
+        let model = resolved.model;
         progress.finish();
         let out = default_output(&loaded, output.clone());
         let vtu = output::vtk::mesh_vtu(&model, &mesh).map_err(|e| Failure::Input(format!("error: {e}\n")))?;

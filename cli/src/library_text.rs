@@ -1,7 +1,7 @@
 //! Text of `lodestone materials`: the library listing and one entry.
 
-use crate::materials::{self, Entry, Material};
 use std::collections::BTreeMap;
+use study::materials::{self, Entry, Material};
 
 pub fn listing() -> String {
     let mut by_family: BTreeMap<String, Vec<String>> = BTreeMap::new();

@@ -1,14 +1,16 @@
 //! The work behind each command: load a case, expand its sweep, mesh,
 //! solve, post-process and collect the files to write.
 
+use crate::case::resolve::Spans;
 use crate::case::{self, document::Item, Diagnostic, Model};
 use crate::output::{self, FileSet};
-use crate::post::{self, Results};
 use crate::progress::Progress;
-use crate::study;
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 use std::time::Instant;
+use study::results::{self, Results};
+use study::run::Stage;
+use study::StudyError;
 
 /// How a run failed, which fixes the exit code.
 #[derive(Debug)]
@@ -139,36 +141,60 @@ pub struct Limits {
     pub max_elements: Option<usize>,
 }
 
-pub fn resolve(loaded: &Loaded, params: &BTreeMap<String, f64>, limits: &Limits) -> Result<Model, Failure> {
-    let mut model = case::resolve::resolve(&loaded.doc, params, &loaded.dir()).map_err(|d| loaded.input(&d))?;
+/// A variant's model, with the spans its errors point at.
+pub struct Resolved {
+    /// The model in SI units.
+    pub model: Model,
+    /// Where its parts, probes and expectations were written.
+    pub spans: Spans,
+}
+
+impl Loaded {
+    /// A study error as a rendered input failure at its item.
+    pub fn study_error(&self, spans: &Spans, e: &StudyError) -> Failure {
+        self.input(&spans.diagnostic(e))
+    }
+}
+
+/// Resolves the case for one set of parameter values.
+pub fn resolve(loaded: &Loaded, params: &BTreeMap<String, f64>, limits: &Limits) -> Result<Resolved, Failure> {
+    let (mut model, spans) = case::resolve::resolve(&loaded.doc, params, &loaded.dir()).map_err(|d| loaded.input(&d))?;
     if let Some(m) = limits.max_elements {
         model.mesh.max_elements = m;
     }
-    study::check_probes_inside(&model).map_err(|d| loaded.input(&d))?;
-    Ok(model)
+    Ok(Resolved { model, spans })
+}
+
+/// Meshes a resolved model, errors pointing at the case.
+pub fn mesh(loaded: &Loaded, r: &Resolved) -> Result<mesher::Mesh, Failure> {
+    study::run::mesh(&r.model).map_err(|e| loaded.study_error(&r.spans, &e))
 }
 
 /// Meshes, solves and post-processes one variant.
 pub fn solve_variant(loaded: &Loaded, variant: &Variant, limits: &Limits, progress: &Progress) -> Result<Outcome, Failure> {
     let start = Instant::now();
-    let model = resolve(loaded, &variant.params, limits)?;
+    let resolved = resolve(loaded, &variant.params, limits)?;
     let tag = if variant.label.is_empty() {
         loaded.stem()
     } else {
         format!("{} {}", loaded.stem(), variant.label)
     };
     progress.note(&format!("{tag}: meshing"));
-    let mesh = mesher::build_mesh(&study::mesh_spec(&model)).map_err(|e| loaded.input(&study::mesh_error(&model, &e)))?;
-    progress.note(&format!("{tag}: {} nodes, {} triangles; solving", mesh.n_nodes(), mesh.triangles.len()));
-    let problem = study::problem(&model, &mesh).map_err(|d| loaded.input(&d))?;
-    let sol = solver::solve(&problem, &|it, r| {
-        progress.note(&format!("{tag}: Newton iteration {it}, relative residual {r:.3e}"))
-    })
-    .map_err(|e| Failure::Input(format!("error: {}: {e}\n", loaded.path.display())))?;
+    let mesh = mesh(loaded, &resolved)?;
+    let Resolved { model, spans } = resolved;
+    let report = |stage: Stage| match stage {
+        Stage::Meshing => progress.note(&format!("{tag}: meshing")),
+        Stage::Meshed { corners, triangles } => progress.note(&format!("{tag}: {corners} nodes, {triangles} triangles; solving")),
+        Stage::Newton { iteration, residual } => progress.note(&format!("{tag}: Newton iteration {iteration}, relative residual {residual:.3e}")),
+    };
+    let sol = study::run::solve(&model, &mesh, &report).map_err(|e| match e.origin {
+        Some(_) => loaded.study_error(&spans, &e),
+        None => Failure::Input(format!("error: {}: {e}\n", loaded.path.display())),
+    })?;
     let (mut results, field) = results_and_field(&model, &sol);
     results.solve.seconds = start.elapsed().as_secs_f64();
     if !variant.label.is_empty() {
-        results.variant = Some(post::VariantInfo {
+        results.variant = Some(results::VariantInfo {
             index: variant.index,
             label: variant.label.clone(),
             swept: variant.swept.clone(),
@@ -183,7 +209,7 @@ pub fn solve_variant(loaded: &Loaded, variant: &Variant, limits: &Limits, progre
 /// 1e6 unknowns.
 pub fn results_and_field(model: &Model, sol: &solver::Solution) -> (Results, Result<Option<Vec<u8>>, Failure>) {
     rayon::join(
-        || post::results(model, sol, 0.0),
+        || study::post::results(model, sol, 0.0),
         || {
             model
                 .output
@@ -204,7 +230,7 @@ pub fn collect_files(model: &Model, sol: &solver::Solution, results: &Results, f
     }
     if model.output.csv {
         for p in &model.probes {
-            if matches!(p.shape, case::model::ProbeShape::Line { .. }) {
+            if matches!(p.shape, study::model::ProbeShape::Line { .. }) {
                 if let Some(r) = results.probes.get(&p.name) {
                     files.push((format!("probe-{}.csv", p.name).into(), output::csv::probe_csv(model, r).into_bytes()));
                 }

@@ -80,7 +80,8 @@ fn collect(dir: &Path, rows: &mut Vec<Row>, depth: usize) -> Result<(), String> 
 fn read_row(file: &Path) -> Result<Row, String> {
     let text = std::fs::read_to_string(file).map_err(|e| format!("cannot read {}: {e}", file.display()))?;
     let v: Value = serde_json::from_str(&text).map_err(|e| format!("{} is not valid results JSON: {e}", file.display()))?;
-    let variant: crate::post::VariantInfo = serde_json::from_value(v["variant"].clone()).map_err(|e| format!("{}: no variant section: {e}", file.display()))?;
+    let variant: study::results::VariantInfo =
+        serde_json::from_value(v["variant"].clone()).map_err(|e| format!("{}: no variant section: {e}", file.display()))?;
     let values: BTreeMap<String, f64> = v["values"]
         .as_object()
         .map(|m| m.iter().map(|(k, x)| (k.clone(), x.as_f64().unwrap_or(f64::NAN))).collect())

@@ -1,17 +1,8 @@
 //! The meshed domain: the region around the parts that the outer boundary closes.
 
+use crate::error::MeshError;
 use crate::geometry::{bbox, dist, Symmetry};
-use crate::{MeshError, MeshSpec, Refinement};
-
-/// How the outside of the model is closed.
-#[derive(Clone, Debug, PartialEq)]
-pub enum OuterBoundary {
-    /// Unbounded space: a disk (half-disk when axisymmetric) whose exterior is
-    /// mapped by the Kelvin transformation onto a second disk.
-    Open,
-    /// A = 0 on a box. `None` picks a box twice the size of the parts.
-    FluxParallel { from_to: Option<([f64; 2], [f64; 2])> },
-}
+use crate::spec::{MeshSpec, OuterBoundary, Refinement};
 
 /// The closed outline of the physical domain, counter-clockwise.
 #[derive(Clone, Debug)]

@@ -11,7 +11,7 @@
 //! on the domain's rim chords lie within a chord sagitta inside it, so the
 //! map is the identity there to that order).
 
-use crate::MeshError;
+use crate::error::MeshError;
 use spade::{DelaunayTriangulation, Point2, Triangulation};
 
 /// The exterior disk, in its own (mapped) coordinates.

@@ -1,21 +1,8 @@
 //! Part shapes, their conversion to closed polygons, and plane geometry helpers.
 
-use crate::{MeshError, MeshSpec};
-
-/// Planar studies use (x, y); axisymmetric studies use (r, z) with r >= 0.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub enum Symmetry {
-    Planar,
-    Axisymmetric,
-}
-
-/// A part's outline as the case file gives it.
-#[derive(Clone, Debug, PartialEq)]
-pub enum Shape {
-    Polygon(Vec<[f64; 2]>),
-    Rect { from: [f64; 2], to: [f64; 2] },
-    Circle { center: [f64; 2], radius: f64 },
-}
+use crate::error::MeshError;
+use crate::spec::MeshSpec;
+pub use crate::spec::{Shape, Symmetry};
 
 /// Largest sagitta of a circle's chords, as a fraction of the local size.
 pub const CHORD_FRACTION: f64 = 0.02;

@@ -23,42 +23,14 @@ mod exterior;
 pub mod geometry;
 mod mesh;
 mod size_field;
+mod spec;
 mod triangulate;
 
-pub use domain::{Domain, OuterBoundary};
+pub use domain::Domain;
 pub use error::MeshError;
 pub use exterior::ExteriorDisk;
-pub use geometry::{Shape, Symmetry};
 pub use mesh::{BoundaryTag, Mesh, MeshQuality, Region};
-
-/// One part to be meshed: a shape and the target edge length in and near it.
-#[derive(Clone, Debug)]
-pub struct PartSpec {
-    pub shape: Shape,
-    pub mesh_size: f64,
-}
-
-/// Something that is not a part but wants a fine mesh near it (a probe).
-#[derive(Clone, Debug)]
-pub enum Refinement {
-    Point { at: [f64; 2], size: f64 },
-    Line { from: [f64; 2], to: [f64; 2], size: f64 },
-}
-
-/// Everything the mesher needs, in consistent length units (metres in practice).
-#[derive(Clone, Debug)]
-pub struct MeshSpec {
-    pub symmetry: Symmetry,
-    pub parts: Vec<PartSpec>,
-    pub refinements: Vec<Refinement>,
-    pub outer: OuterBoundary,
-    /// Minimum angle of every triangle, degrees (clamped to 20..=33).
-    pub min_angle_deg: f64,
-    /// Ratio by which element size may grow per element away from parts.
-    pub grading: f64,
-    /// Refuse (before or during meshing) to make more triangles than this.
-    pub max_triangles: usize,
-}
+pub use spec::{MeshSpec, OuterBoundary, PartSpec, Refinement, Shape, Symmetry, DEFAULT_GRADING, DEFAULT_MIN_ANGLE, GRADING_RANGE, MIN_ANGLE_RANGE};
 
 /// Builds the mesh of a study: validate shapes, triangulate, refine, tag.
 pub fn build_mesh(spec: &MeshSpec) -> Result<Mesh, MeshError> {

@@ -2,8 +2,9 @@
 //! (a geometric progression of element sizes, ratio `grading`) away from it.
 
 use crate::domain::Domain;
+use crate::error::MeshError;
 use crate::geometry::{dist, point_segment_distance, signed_area};
-use crate::{MeshError, MeshSpec, Refinement};
+use crate::spec::{MeshSpec, Refinement};
 
 /// Area of an equilateral triangle of unit edge.
 const EQUILATERAL: f64 = 0.433_012_701_892_219_3;

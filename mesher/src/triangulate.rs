@@ -2,11 +2,12 @@
 //! refined to the graded size field, then to the minimum angle.
 
 use crate::domain::Domain;
+use crate::error::MeshError;
 use crate::exterior;
 use crate::geometry::{dist, point_in_polygon, Symmetry};
 use crate::mesh::{BoundaryTag, Mesh, Region};
 use crate::size_field::{self, SizeSource};
-use crate::{MeshError, MeshSpec};
+use crate::spec::{MeshSpec, GRADING_RANGE, MIN_ANGLE_RANGE};
 use rayon::prelude::*;
 use spade::handles::{FixedFaceHandle, FixedVertexHandle, InnerTag};
 use spade::{AngleLimit, ConstrainedDelaunayTriangulation, Point2, RefinementParameters, Triangulation};
@@ -49,7 +50,7 @@ pub fn mesh_domain(spec: &MeshSpec, polygons: &[Vec<[f64; 2]>], domain: &Domain)
         size: Vec::new(),
         sources: size_field::sources(spec, polygons),
         n_part_sources: polygons.iter().map(Vec::len).sum(),
-        grading: spec.grading.clamp(1.05, 4.0),
+        grading: spec.grading.clamp(GRADING_RANGE.0, GRADING_RANGE.1),
         max_size: domain.max_size,
         polygons,
         part_sizes: spec.parts.iter().map(|p| p.mesh_size).collect(),
@@ -300,7 +301,7 @@ impl Work<'_> {
     }
 
     fn refine_angles(&mut self, min_angle: f64, max_vertices: usize, max_triangles: usize) -> Result<(), MeshError> {
-        let angle = min_angle.clamp(20.0, 33.0);
+        let angle = min_angle.clamp(MIN_ANGLE_RANGE.0, MIN_ANGLE_RANGE.1);
         let extra = max_vertices.saturating_sub(self.cdt.num_vertices());
         let params = RefinementParameters::<f64>::new()
             .with_angle_limit(AngleLimit::from_deg(angle))

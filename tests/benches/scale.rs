@@ -157,11 +157,13 @@ fn run_text(text: &str) -> Row {
     let t0 = Instant::now();
     let loaded = lodestone::run::load(&path).unwrap_or_else(|f| panic!("{}", f.message()));
     let v = lodestone::run::variants(&loaded, &Default::default()).unwrap_or_else(|f| panic!("{}", f.message()));
-    let model = lodestone::run::resolve(&loaded, &v[0].params, &Default::default()).unwrap_or_else(|f| panic!("{}", f.message()));
+    let model = lodestone::run::resolve(&loaded, &v[0].params, &Default::default())
+        .unwrap_or_else(|f| panic!("{}", f.message()))
+        .model;
     let t = Instant::now();
-    let mesh = mesher::build_mesh(&lodestone::study::mesh_spec(&model)).unwrap();
+    let mesh = mesher::build_mesh(&study::lower::mesh_spec(&model)).unwrap();
     let mesh_s = t.elapsed().as_secs_f64();
-    let problem = lodestone::study::problem(&model, &mesh).unwrap();
+    let problem = study::lower::problem(&model, &mesh).unwrap();
     let sol = solver::solve(&problem, &|_, _| {}).unwrap();
     // Post-processing and the field file's encoding run side by side, as in `lodestone solve`.
     let t = Instant::now();
@@ -363,8 +365,10 @@ fn mesh_benchmark() {
         std::fs::write(&path, case(false, "low-carbon-steel", size)).unwrap();
         let loaded = lodestone::run::load(&path).unwrap_or_else(|f| panic!("{}", f.message()));
         let v = lodestone::run::variants(&loaded, &Default::default()).unwrap_or_else(|f| panic!("{}", f.message()));
-        let model = lodestone::run::resolve(&loaded, &v[0].params, &Default::default()).unwrap_or_else(|f| panic!("{}", f.message()));
-        let spec = lodestone::study::mesh_spec(&model);
+        let model = lodestone::run::resolve(&loaded, &v[0].params, &Default::default())
+            .unwrap_or_else(|f| panic!("{}", f.message()))
+            .model;
+        let spec = study::lower::mesh_spec(&model);
         let t = Instant::now();
         let mesh = mesher::build_mesh(&spec).unwrap();
         let s = t.elapsed().as_secs_f64();

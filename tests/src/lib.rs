@@ -1,6 +1,7 @@
 //! Shared helpers of the validation tests: building problems in code and
 //! closed-form reference fields with their sources.
 
+pub mod module_graph;
 pub mod reference;
 
 use mesher::{build_mesh, Mesh, MeshSpec, OuterBoundary, PartSpec, Refinement, Shape, Symmetry};
@@ -12,8 +13,8 @@ pub fn spec(symmetry: Symmetry, parts: Vec<(Shape, f64)>, refinements: Vec<Refin
         parts: parts.into_iter().map(|(shape, mesh_size)| PartSpec { shape, mesh_size }).collect(),
         refinements,
         outer,
-        min_angle_deg: 28.0,
-        grading: 1.3,
+        min_angle_deg: mesher::DEFAULT_MIN_ANGLE,
+        grading: mesher::DEFAULT_GRADING,
         max_triangles: 4_000_000,
     }
 }
@@ -118,7 +119,7 @@ pub fn log_log_slope(x: &[f64], y: &[f64]) -> f64 {
 
 /// Solves a case given as text (written to a temporary file) through the
 /// command-line crate, returning the results of its first variant.
-pub fn solve_case_text(text: &str, overrides: &[(&str, f64)]) -> lodestone::post::Results {
+pub fn solve_case_text(text: &str, overrides: &[(&str, f64)]) -> study::Results {
     let dir = std::env::temp_dir().join(format!(
         "lodestone-test-{}-{}",
         std::process::id(),

@@ -98,10 +98,10 @@ pub fn read_case(text: &str) -> bool {
         return false;
     };
     let _ = lodestone::case::resolve::sweep(&doc);
-    let Ok(model) = lodestone::case::resolve::resolve(&doc, &params, std::path::Path::new(".")) else {
+    let Ok((model, _spans)) = lodestone::case::resolve::resolve(&doc, &params, std::path::Path::new(".")) else {
         return false;
     };
-    let mut spec = lodestone::study::mesh_spec(&model);
+    let mut spec = study::lower::mesh_spec(&model);
     spec.max_triangles = 20_000;
     match mesher::estimate_triangles(&spec) {
         Ok(n) if n < 20_000.0 => mesher::build_mesh(&spec).is_ok(),

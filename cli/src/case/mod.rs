@@ -8,11 +8,10 @@
 pub mod diagnostic;
 pub mod document;
 pub mod expr;
-pub mod model;
 mod quantity;
 pub mod resolve;
 pub mod suggest;
 pub mod units;
 
 pub use diagnostic::{render, Diagnostic};
-pub use model::Model;
+pub use study::model::Model;

@@ -1,8 +1,8 @@
 //! CSV tables: line probes and sweeps. Headers name the units.
 
 use crate::case::Model;
-use crate::post::ProbeResult;
 use mesher::Symmetry;
+use study::results::ProbeResult;
 
 /// One line probe: distance and position in the case's length unit, fields in T and A/m.
 pub fn probe_csv(model: &Model, p: &ProbeResult) -> String {

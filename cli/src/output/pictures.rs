@@ -1,10 +1,10 @@
 //! Every picture of a solved study, as (file name, title, SVG text).
 
 use super::svg::{chart, Chart};
-use crate::case::model::{Model, ProbeShape};
-use crate::materials::Material;
-use crate::post::Results;
 use solver::Solution;
+use study::materials::Material;
+use study::model::{Model, ProbeShape};
+use study::results::Results;
 
 pub fn pictures(model: &Model, sol: &Solution, r: &Results) -> Vec<(String, String, String)> {
     let mut out = vec![(
@@ -23,7 +23,7 @@ pub fn pictures(model: &Model, sol: &Solution, r: &Results) -> Vec<(String, Stri
             .zip(&pr.bmag)
             .map(|(q, b)| [(q[0] - start[0]).hypot(q[1] - start[1]) / f, b * 1e3])
             .collect();
-        let marks = if pr.bmag.iter().any(|&b| b < crate::checks::IMPLANT_LEVEL) && pr.bmag.iter().any(|&b| b > crate::checks::IMPLANT_LEVEL) {
+        let marks = if pr.bmag.iter().any(|&b| b < study::checks::IMPLANT_LEVEL) && pr.bmag.iter().any(|&b| b > study::checks::IMPLANT_LEVEL) {
             vec![(0.5, "0.5 mT".to_string())]
         } else {
             Vec::new()

@@ -1,8 +1,8 @@
 //! report.md: the study in tables and pictures, with the cautions.
 
 use crate::case::Model;
-use crate::post::Results;
 use std::fmt::Write;
+use study::results::Results;
 
 fn opt(v: Option<f64>, scale: f64, digits: usize) -> String {
     v.map_or("-".into(), |x| format!("{:.*}", digits, x * scale))
@@ -79,7 +79,7 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
     }
     s.push('\n');
     if !r.magnets.is_empty() {
-        let _ = writeln!(s, "## Magnets at {} degC\n\nThe knee is taken at {:.0} % of HcJ at the study temperature; the margin is 1 - H/H_knee at the worst point (0: at the knee). The onset temperature is a linear-model estimate (field scaled with Br, knee with HcJ).\n\n| magnet | grade | Br (T) | HcJ (kA/m) | margin | past knee | permeance | onset (degC) |\n|---|---|---|---|---|---|---|---|", model.temperature, 100.0 * crate::checks::KNEE_FRACTION);
+        let _ = writeln!(s, "## Magnets at {} degC\n\nThe knee is taken at {:.0} % of HcJ at the study temperature; the margin is 1 - H/H_knee at the worst point (0: at the knee). The onset temperature is a linear-model estimate (field scaled with Br, knee with HcJ).\n\n| magnet | grade | Br (T) | HcJ (kA/m) | margin | past knee | permeance | onset (degC) |\n|---|---|---|---|---|---|---|---|", model.temperature, 100.0 * study::checks::KNEE_FRACTION);
         for (n, m) in &r.magnets {
             let _ = writeln!(
                 s,

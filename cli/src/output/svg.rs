@@ -203,8 +203,8 @@ fn fmt_tick(v: f64) -> String {
 use mesher::geometry::bbox;
 
 /// The B-H curve of a soft material, or the normal demagnetization line of a magnet.
-pub fn material_plot(e: &crate::materials::Entry) -> String {
-    use crate::materials::Material;
+pub fn material_plot(e: &study::materials::Entry) -> String {
+    use study::materials::Material;
     match &e.material {
         Material::Soft { curve } => {
             let mut pts: Vec<[f64; 2]> = Vec::new();

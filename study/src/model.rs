@@ -1,9 +1,9 @@
 //! The resolved study: names turned into indices, quantities in SI units.
 
 use crate::materials::Entry;
+use crate::quantity::ValueName;
 use mesher::{OuterBoundary, Shape, Symmetry};
 use std::collections::BTreeMap;
-use std::ops::Range;
 
 /// One study, ready to mesh and solve.
 #[derive(Clone, Debug)]
@@ -53,7 +53,6 @@ pub struct Part {
     pub magnetization: Option<[f64; 2]>,
     /// Ampere-turns through the cross-section, A.
     pub current: Option<f64>,
-    pub span: Range<usize>,
 }
 
 #[derive(Clone, Debug)]
@@ -66,7 +65,6 @@ pub enum ProbeShape {
 pub struct Probe {
     pub name: String,
     pub shape: ProbeShape,
-    pub span: Range<usize>,
 }
 
 #[derive(Clone, Debug)]
@@ -110,11 +108,11 @@ pub enum Bound {
 
 #[derive(Clone, Debug)]
 pub struct Expect {
-    pub value: String,
+    /// The value's name and unit, checked against the model when the case is read.
+    pub value: ValueName,
     pub bound: Bound,
     /// The bound as the case wrote it, for reports.
     pub text: String,
-    pub span: Range<usize>,
 }
 
 #[derive(Clone, Debug)]

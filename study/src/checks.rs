@@ -2,9 +2,9 @@
 //! temperature, and the stray field (dipole moment, implant and reach
 //! distances, air-transport screen).
 
-use crate::case::Model;
 use crate::materials::Material;
-use crate::post::{MagnetResult, StrayResult};
+use crate::model::Model;
+use crate::results::{MagnetResult, StrayResult};
 use mesher::Symmetry;
 use solver::{magnet_check, stray, Solution};
 use std::collections::BTreeMap;

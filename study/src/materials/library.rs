@@ -1,39 +1,8 @@
-//! The built-in material library: magnet grades, soft-magnetic curves and
-//! linear materials, each entry with its source.
-//!
-//! Grade values are typical catalogue values (the standards that define
-//! minimum values, IEC 60404-8-1 and MMPA 0100, are not freely readable);
-//! source ids refer to the project's docs/materials.md.
+//! The library's lookup by name across linear materials, soft-magnetic
+//! curves and magnet grades.
 
-mod magnets;
-mod soft;
-
-pub use magnets::MagnetGrade;
-
-/// What a material is, physically.
-#[derive(Clone, Debug, PartialEq)]
-pub enum Material {
-    /// Non-magnetic and non-conducting (mu_r = 1).
-    Air,
-    /// Non-magnetic conductor that may carry a winding current (mu_r = 1).
-    Conductor,
-    /// Linear permeable material.
-    Linear { relative_permeability: f64 },
-    /// Soft magnetic material with a B-H curve (H in A/m, B in T).
-    Soft { curve: Vec<[f64; 2]> },
-    /// Permanent magnet, linear recoil line.
-    Magnet(MagnetGrade),
-}
-
-/// A library or user entry.
-#[derive(Clone, Debug, PartialEq)]
-pub struct Entry {
-    pub name: String,
-    pub family: String,
-    pub material: Material,
-    /// Where the numbers come from, with the labels of docs/materials.md.
-    pub source: String,
-}
+use super::entry::{Entry, Material};
+use super::{magnets, soft};
 
 /// The entry with this name (case-sensitive, as the trade writes it).
 pub fn lookup(name: &str) -> Option<Entry> {

@@ -1,6 +1,6 @@
 //! Soft-magnetic B-H curves (H in A/m, B in T).
 
-use super::{Entry, Material};
+use super::entry::{Entry, Material};
 
 struct Curve {
     name: &'static str,

@@ -1,9 +1,9 @@
-//! From a resolved model to a mesh spec and a solver problem, and back from
-//! library errors to input diagnostics that point at the case file.
+//! From a model to a mesh spec and a solver problem. Errors name the model
+//! item they come from ([`Origin`]), so the reader of the case can point at
+//! its line.
 
-use crate::case::model::{Model, ProbeShape};
-use crate::case::Diagnostic;
 use crate::materials::Material;
+use crate::model::{Model, ProbeShape};
 use mesher::{MeshError, MeshSpec, OuterBoundary, PartSpec, Refinement, Symmetry};
 use solver::element::ElementOrder;
 use solver::{BhCurve, Law, Problem};
@@ -41,8 +41,40 @@ pub fn mesh_spec(model: &Model) -> MeshSpec {
     }
 }
 
-/// Turns a mesher error into a diagnostic at the part it names.
-pub fn mesh_error(model: &Model, e: &MeshError) -> Diagnostic {
+/// The model item an error is about.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Origin {
+    /// The part with this index.
+    Part(usize),
+    /// The probe with this index.
+    Probe(usize),
+}
+
+/// Why a model cannot be meshed or solved as written: an input error.
+#[derive(Clone, Debug, PartialEq)]
+pub struct StudyError {
+    /// What is wrong, naming the item.
+    pub message: String,
+    /// The item it is about, if one.
+    pub origin: Option<Origin>,
+    /// What to do about it, if there is advice.
+    pub help: Option<String>,
+}
+
+impl StudyError {
+    fn new(message: String, origin: Option<Origin>) -> StudyError {
+        StudyError { message, origin, help: None }
+    }
+}
+
+impl std::fmt::Display for StudyError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(&self.message)
+    }
+}
+
+/// A mesher error, with the part it names.
+pub fn mesh_error(model: &Model, e: &MeshError) -> StudyError {
     let part = match e {
         MeshError::TooFewPoints { part, .. }
         | MeshError::RepeatedPoint { part, .. }
@@ -55,27 +87,28 @@ pub fn mesh_error(model: &Model, e: &MeshError) -> Diagnostic {
         _ => None,
     };
     let mut msg = e.to_string();
-    if let Some(p) = part.and_then(|i| model.parts.get(i)) {
-        msg = msg.replacen(&format!("part {}", part.unwrap_or(0)), &format!("part '{}'", p.name), 1);
+    if let Some((i, p)) = part.and_then(|i| model.parts.get(i).map(|p| (i, p))) {
+        msg = msg.replacen(&format!("part {i}"), &format!("part '{}'", p.name), 1);
     }
-    let span = part.and_then(|i| model.parts.get(i)).map(|p| p.span.start..p.span.start + 1);
-    let help = matches!(e, MeshError::TooManyTriangles { .. }).then(|| "or pass --max-elements N on the command line".to_string());
-    Diagnostic::new(msg, span).with_help(help)
+    let mut err = StudyError::new(msg, part.map(Origin::Part));
+    err.help = matches!(e, MeshError::TooManyTriangles { .. }).then(|| "or pass --max-elements N on the command line".to_string());
+    err
 }
 
 /// The solver's law for each part at the study temperature.
-pub fn laws(model: &Model) -> Result<Vec<Law>, Diagnostic> {
+pub fn laws(model: &Model) -> Result<Vec<Law>, StudyError> {
     model
         .parts
         .iter()
-        .map(|p| match &p.material.material {
+        .enumerate()
+        .map(|(i, p)| match &p.material.material {
             Material::Air | Material::Conductor => Ok(Law::air()),
             Material::Linear { relative_permeability } => Ok(Law::Linear {
                 relative_permeability: *relative_permeability,
             }),
             Material::Soft { curve } => BhCurve::new(curve)
                 .map(|c| Law::Saturating(Arc::new(c)))
-                .map_err(|e| Diagnostic::new(format!("material '{}': {e}", p.material.name), Some(p.span.clone()))),
+                .map_err(|e| StudyError::new(format!("material '{}': {e}", p.material.name), Some(Origin::Part(i)))),
             Material::Magnet(g) => {
                 let br = g.br_at(model.temperature);
                 let d = p.magnetization.unwrap_or([0.0, 1.0]);
@@ -89,24 +122,26 @@ pub fn laws(model: &Model) -> Result<Vec<Law>, Diagnostic> {
 }
 
 /// Current density of each part: ampere-turns over the meshed area.
-pub fn current_densities(model: &Model, mesh: &mesher::Mesh) -> Result<Vec<f64>, Diagnostic> {
+pub fn current_densities(model: &Model, mesh: &mesher::Mesh) -> Result<Vec<f64>, StudyError> {
     let areas = mesh.part_areas(model.parts.len());
     model
         .parts
         .iter()
         .zip(areas)
-        .map(|(p, area)| match p.current {
+        .enumerate()
+        .map(|(i, (p, area))| match p.current {
             None => Ok(0.0),
-            Some(_) if area <= 0.0 => Err(Diagnostic::new(
+            Some(_) if area <= 0.0 => Err(StudyError::new(
                 format!("part '{}' carries a current but has no area left (later parts cover it)", p.name),
-                Some(p.span.clone()),
+                Some(Origin::Part(i)),
             )),
             Some(i) => Ok(i / area),
         })
         .collect()
 }
 
-pub fn problem<'m>(model: &Model, mesh: &'m mesher::Mesh) -> Result<Problem<'m>, Diagnostic> {
+/// The solver's problem for a model on its mesh.
+pub fn problem<'m>(model: &Model, mesh: &'m mesher::Mesh) -> Result<Problem<'m>, StudyError> {
     let mut problem = Problem::new(mesh, laws(model)?, current_densities(model, mesh)?);
     problem.applied_field = model.applied_field;
     problem.newton = model.newton;
@@ -119,26 +154,26 @@ pub fn problem<'m>(model: &Model, mesh: &'m mesher::Mesh) -> Result<Problem<'m>,
 }
 
 /// Probes that the mesh cannot reach are input errors, found before solving.
-pub fn check_probes_inside(model: &Model) -> Result<(), Diagnostic> {
+pub fn check_probes_inside(model: &Model) -> Result<(), StudyError> {
     let box_bounds = match model.boundary {
         OuterBoundary::FluxParallel { from_to: Some((a, b)) } => Some(([a[0].min(b[0]), a[1].min(b[1])], [a[0].max(b[0]), a[1].max(b[1])])),
         _ => None,
     };
-    for probe in &model.probes {
+    for (i, probe) in model.probes.iter().enumerate() {
         let pts = match probe.shape {
             ProbeShape::Point(p) => vec![p],
             ProbeShape::Line { from, to, .. } => vec![from, to],
         };
-        let span = Some(probe.span.start..probe.span.start + 1);
+        let at = Some(Origin::Probe(i));
         if model.symmetry == Symmetry::Axisymmetric && pts.iter().any(|p| p[0] < 0.0) {
-            return Err(Diagnostic::new(
+            return Err(StudyError::new(
                 format!("probe '{}' has r < 0; axisymmetric points lie in r >= 0", probe.name),
-                span,
+                at,
             ));
         }
         if let Some((lo, hi)) = box_bounds {
             if pts.iter().any(|p| p[0] < lo[0] || p[1] < lo[1] || p[0] > hi[0] || p[1] > hi[1]) {
-                return Err(Diagnostic::new(format!("probe '{}' lies outside the flux-parallel box", probe.name), span));
+                return Err(StudyError::new(format!("probe '{}' lies outside the flux-parallel box", probe.name), at));
             }
         }
     }

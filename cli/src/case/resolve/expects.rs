@@ -1,0 +1,144 @@
+//! `[[expect]]` and `[output]`: bounds on typed values, checked against the
+//! model's value names as the case is read, and the output switches.
+
+use super::names::named_tables;
+use crate::case::diagnostic::Diagnostic;
+use crate::case::document::{Fields, Item, Value};
+use crate::case::quantity::Context;
+use crate::case::units::Kind;
+use std::ops::Range;
+use study::model::*;
+use study::quantity::{Unit, ValueName};
+
+/// Keys of `[[expect]]`.
+const EXPECT: &[&str] = &["value", "min", "max", "between", "near", "tolerance"];
+/// Keys of `[output]`.
+const OUTPUT: &[&str] = &["vtk", "plots", "report", "csv"];
+
+/// The unit kind a bound on a value of this unit may be written in.
+fn bound_kind(unit: Unit) -> Option<Kind> {
+    match unit {
+        Unit::Tesla => Some(Kind::FluxDensity),
+        Unit::AmperePerMetre => Some(Kind::FieldStrength),
+        Unit::Newton => Some(Kind::Force),
+        Unit::Weber => Some(Kind::MagneticFlux),
+        Unit::Henry => Some(Kind::Inductance),
+        Unit::Joule => Some(Kind::Energy),
+        Unit::Metre => Some(Kind::Length),
+        Unit::AmpereSquareMetre => Some(Kind::Moment),
+        Unit::Ratio => Some(Kind::Dimensionless),
+        Unit::NewtonMetre => None,
+    }
+}
+
+/// The value's typed name, or a located error listing the nearest names.
+fn value_name(item: &Item, model: &Model) -> Result<ValueName, Diagnostic> {
+    let written = item.str("expect.value")?;
+    study::quantity::value_name(model, written).ok_or_else(|| {
+        let names = study::quantity::value_names(model);
+        Diagnostic::new(format!("expect: this study reports no value named '{written}'"), Some(item.span.clone()))
+            .suggest(written, names.iter().map(|n| n.name.as_str()))
+    })
+}
+
+/// `[[expect]]` tables with their spans, their values checked against the model.
+pub(super) fn expects(top: &Fields, ctx: &Context, model: &Model) -> Result<Vec<(Expect, Range<usize>)>, Diagnostic> {
+    let mut out = Vec::new();
+    for item in named_tables(top, "expect")? {
+        let t = item.table("[[expect]]", EXPECT)?;
+        let value = value_name(t.require("value")?, model)?;
+        let what = format!("expect '{}'", value.name);
+        let q = |i: &Item| -> Result<f64, Diagnostic> {
+            let (v, kind) = ctx.any_quantity(i, &what)?;
+            match (kind, bound_kind(value.unit)) {
+                (None, _) => Ok(v),
+                (Some(Kind::Percent), Some(Kind::Dimensionless)) => Ok(v / 100.0),
+                (Some(k), Some(want)) if k == want => Ok(v),
+                (Some(k), _) => Err(Diagnostic::new(
+                    format!(
+                        "{what}: the bound is {} but '{}' is {} ({})",
+                        k.describe(),
+                        value.name,
+                        value.unit.quantity(),
+                        if value.unit.symbol().is_empty() {
+                            "a plain number"
+                        } else {
+                            value.unit.symbol()
+                        }
+                    ),
+                    Some(i.span.clone()),
+                )),
+            }
+        };
+        let text = |i: &Item| match &i.value {
+            Value::Str(s) => s.clone(),
+            Value::Num(n) => format!("{n}"),
+            _ => String::new(),
+        };
+        let given = t.present(&["min", "max", "between", "near"]);
+        let bound = match given.as_slice() {
+            ["min"] => (Bound::Min(q(t.require("min")?)?), format!(">= {}", text(t.require("min")?))),
+            ["max"] => (Bound::Max(q(t.require("max")?)?), format!("<= {}", text(t.require("max")?))),
+            ["min", "max"] => (
+                Bound::Between(q(t.require("min")?)?, q(t.require("max")?)?),
+                format!("{} .. {}", text(t.require("min")?), text(t.require("max")?)),
+            ),
+            ["between"] => {
+                let b = t.require("between")?;
+                let a = b.array(&what)?;
+                if a.len() != 2 {
+                    return Err(Diagnostic::new(format!("{what}: between takes [low, high]"), Some(b.span.clone())));
+                }
+                (Bound::Between(q(&a[0])?, q(&a[1])?), format!("{} .. {}", text(&a[0]), text(&a[1])))
+            }
+            ["near"] => {
+                let n = t.require("near")?;
+                let target = q(n)?;
+                let tol = t.require("tolerance")?;
+                let abs = match ctx.any_quantity(tol, &what)? {
+                    (v, Some(Kind::Percent)) => v / 100.0 * target.abs(),
+                    (v, _) => v,
+                };
+                (Bound::Near(target, abs.abs()), format!("{} +- {}", text(n), text(tol)))
+            }
+            _ => {
+                return Err(Diagnostic::new(
+                    format!("{what} needs min, max, min and max, between, or near with tolerance"),
+                    Some(item.span.start..item.span.start + 1),
+                ))
+            }
+        };
+        if let Bound::Between(lo, hi) = bound.0 {
+            if lo > hi {
+                return Err(Diagnostic::new(
+                    format!("{what}: the low bound is above the high bound"),
+                    Some(item.span.clone()),
+                ));
+            }
+        }
+        out.push((
+            Expect {
+                value,
+                bound: bound.0,
+                text: bound.1,
+            },
+            item.span.clone(),
+        ));
+    }
+    Ok(out)
+}
+
+pub(super) fn output(top: &Fields) -> Result<OutputFlags, Diagnostic> {
+    let empty = Item {
+        value: Value::Table(Vec::new()),
+        span: 0..0,
+    };
+    let o = top.get("output").unwrap_or(&empty).table("[output]", OUTPUT)?;
+    let flag = |k: &str| o.get(k).map(|v| v.bool(&format!("output.{k}"))).transpose().map(|v| v.unwrap_or(true));
+    Ok(OutputFlags {
+        vtk: flag("vtk")?,
+        plots: flag("plots")?,
+        report: flag("report")?,
+        csv: flag("csv")?,
+    })
+}

@@ -1,0 +1,199 @@
+//! `[materials]`: user magnet grades, B-H tables and CSV curves, and the
+//! lookup of a part's material in them and the built-in library.
+
+use crate::case::diagnostic::Diagnostic;
+use crate::case::document::{Fields, Item, Value};
+use crate::case::quantity::Context;
+use crate::case::units::Kind;
+use std::collections::BTreeMap;
+use std::path::Path;
+use study::materials::{self, Entry, MagnetGrade, Material};
+
+const MATERIAL: &[&str] = &["bh", "bh_csv", "mur", "br", "hcb", "hcj", "br_coeff", "hcj_coeff", "description"];
+
+pub(super) fn user_materials(top: &Fields, ctx: &Context, dir: &Path) -> Result<BTreeMap<String, (Entry, std::ops::Range<usize>)>, Diagnostic> {
+    let mut out = BTreeMap::new();
+    let Some(m) = top.get("materials") else {
+        return Ok(out);
+    };
+    let Value::Table(entries) = &m.value else {
+        return Err(Diagnostic::new(
+            "[materials]: expected tables such as [materials.my-steel]",
+            Some(m.span.clone()),
+        ));
+    };
+    for (k, v) in entries {
+        let what = format!("[materials.{}]", k.name);
+        let t = v.table(&what, MATERIAL)?;
+        let material = user_material(&t, ctx, dir, &what)?;
+        let source = t
+            .get("description")
+            .map(|d| d.str(&what).map(str::to_string))
+            .transpose()?
+            .unwrap_or_else(|| "user data in the case file".into());
+        out.insert(
+            k.name.clone(),
+            (
+                Entry {
+                    name: k.name.clone(),
+                    family: "user".into(),
+                    material,
+                    source,
+                },
+                k.span.clone(),
+            ),
+        );
+    }
+    Ok(out)
+}
+
+fn user_material(t: &Fields, ctx: &Context, dir: &Path, what: &str) -> Result<Material, Diagnostic> {
+    if let Some(br) = t.get("br") {
+        let br_v = ctx.quantity(br, Kind::FluxDensity, &format!("{what} br"))?;
+        let mu = match (t.get("mur"), t.get("hcb")) {
+            (Some(m), None) => positive_number(m, &format!("{what} mur"))?,
+            (None, Some(h)) => br_v / (solver::MU0 * ctx.positive(h, Kind::FieldStrength, &format!("{what} hcb"))?),
+            (None, None) => 1.05,
+            (Some(m), Some(_)) => {
+                return Err(Diagnostic::new(
+                    format!("{what}: give either mur or hcb for a magnet, not both"),
+                    Some(m.span.clone()),
+                ))
+            }
+        };
+        if !(1.0..=10.0).contains(&mu) {
+            let span = t.get("mur").or(t.get("hcb")).map(|i| i.span.clone());
+            return Err(Diagnostic::new(
+                format!("{what}: the recoil permeability {mu:.3} lies outside 1 to 10; check mur or hcb"),
+                span,
+            ));
+        }
+        let hcj = match t.get("hcj") {
+            Some(h) => ctx.positive(h, Kind::FieldStrength, &format!("{what} hcj"))?,
+            None => f64::INFINITY,
+        };
+        let coeff = |key: &str| {
+            t.get(key)
+                .map(|c| ctx.quantity(c, Kind::PercentPerKelvin, &format!("{what} {key}")))
+                .transpose()
+        };
+        return Ok(Material::Magnet(MagnetGrade {
+            br: br_v,
+            recoil_permeability: mu,
+            hcj,
+            hcb: None,
+            br_coeff: coeff("br_coeff")?.unwrap_or(0.0),
+            hcj_coeff: coeff("hcj_coeff")?.unwrap_or(0.0),
+            max_temperature: None,
+        }));
+    }
+    let given = t.present(&["bh", "bh_csv", "mur"]);
+    if given.len() != 1 {
+        return Err(Diagnostic::new(
+            format!("{what}: give exactly one of bh, bh_csv or mur (or br for a magnet)"),
+            Some(t.span.start..t.span.start + 1),
+        ));
+    }
+    match given[0] {
+        "mur" => Ok(Material::Linear {
+            relative_permeability: positive_number(t.require("mur")?, &format!("{what} mur"))?,
+        }),
+        "bh" => {
+            let item = t.require("bh")?;
+            let mut pts = Vec::new();
+            for row in item.array(&format!("{what} bh"))? {
+                let r = row.array(&format!("{what} bh row"))?;
+                if r.len() != 2 {
+                    return Err(Diagnostic::new(format!("{what} bh: each row is [H in A/m, B in T]"), Some(row.span.clone())));
+                }
+                pts.push([r[0].number("H")?, r[1].number("B")?]);
+            }
+            check_curve(&pts, item, what, None)?;
+            Ok(Material::Soft { curve: pts })
+        }
+        _ => {
+            let item = t.require("bh_csv")?;
+            let rel = item.str(&format!("{what} bh_csv"))?;
+            let path = dir.join(rel);
+            let text = std::fs::read_to_string(&path)
+                .map_err(|e| Diagnostic::new(format!("{what} bh_csv: cannot read {}: {e}", path.display()), Some(item.span.clone())))?;
+            let (pts, lines) = parse_bh_csv(&text)
+                .map_err(|(line, msg)| Diagnostic::new(format!("{what} bh_csv: {}:{line}: {msg}", path.display()), Some(item.span.clone())))?;
+            check_curve(&pts, item, what, Some((&path, &lines)))?;
+            Ok(Material::Soft { curve: pts })
+        }
+    }
+}
+
+pub(super) fn positive_number(item: &Item, what: &str) -> Result<f64, Diagnostic> {
+    let v = item.number(what)?;
+    if v > 0.0 {
+        Ok(v)
+    } else {
+        Err(Diagnostic::new(format!("{what} must be greater than zero, got {v}"), Some(item.span.clone())))
+    }
+}
+
+/// Validates a B-H table; `csv` maps rows to file lines for the message.
+fn check_curve(pts: &[[f64; 2]], item: &Item, what: &str, csv: Option<(&Path, &[usize])>) -> Result<(), Diagnostic> {
+    solver::BhCurve::new(pts).map(|_| ()).map_err(|e| {
+        let row = match e {
+            solver::CurveError::NotFinite { row } | solver::CurveError::NotIncreasing { row } | solver::CurveError::SlopeBelowMu0 { row } => Some(row),
+            solver::CurveError::DoesNotStartAtOrigin => Some(0),
+            solver::CurveError::TooFewPoints(_) => None,
+        };
+        let place = match (csv, row) {
+            (Some((path, lines)), Some(r)) => format!(" ({}:{})", path.display(), lines.get(r).copied().unwrap_or(0)),
+            _ => String::new(),
+        };
+        let span = match (&item.value, row, csv) {
+            (Value::Array(a), Some(r), None) => a.get(r).map_or(item.span.clone(), |x| x.span.clone()),
+            _ => item.span.clone(),
+        };
+        Diagnostic::new(format!("{what} B-H table{place}: {e}"), Some(span))
+    })
+}
+
+/// Curve points and the file line of each.
+type CsvCurve = (Vec<[f64; 2]>, Vec<usize>);
+
+/// Two columns H (A/m), B (T); a header line and # comments are skipped.
+fn parse_bh_csv(text: &str) -> Result<CsvCurve, (usize, String)> {
+    let mut pts = Vec::new();
+    let mut lines = Vec::new();
+    let mut header_allowed = true;
+    for (i, line) in text.lines().enumerate() {
+        let l = line.trim();
+        if l.is_empty() || l.starts_with('#') {
+            continue;
+        }
+        let cols: Vec<&str> = l.split([',', ';', '\t']).map(str::trim).collect();
+        let nums: Result<Vec<f64>, _> = cols.iter().take(2).map(|c| c.parse::<f64>()).collect();
+        match nums {
+            Ok(n) if n.len() == 2 => {
+                pts.push([n[0], n[1]]);
+                lines.push(i + 1);
+            }
+            _ if header_allowed => {}
+            _ => return Err((i + 1, format!("expected two numbers H, B; found '{l}'"))),
+        }
+        header_allowed = false;
+    }
+    Ok((pts, lines))
+}
+
+pub(super) fn lookup_material(item: &Item, user: &BTreeMap<String, (Entry, std::ops::Range<usize>)>) -> Result<Entry, Diagnostic> {
+    let name = item.str("part.material")?;
+    if let Some((e, _)) = user.get(name) {
+        return Ok(e.clone());
+    }
+    materials::lookup(name).ok_or_else(|| {
+        let mut names = materials::names();
+        names.extend(user.keys().cloned());
+        Diagnostic::new(
+            format!("unknown material '{name}' (not in the built-in library nor in [materials])"),
+            Some(item.span.clone()),
+        )
+        .suggest(name, names.iter().map(String::as_str))
+    })
+}

@@ -1,0 +1,114 @@
+//! `[[probe]]`, `[[force]]` and `[[flux]]`: what the study measures.
+
+use super::materials_table::positive_number;
+use super::names::{named_tables, part_list};
+use crate::case::diagnostic::Diagnostic;
+use crate::case::document::Fields;
+use crate::case::quantity::Context;
+use std::ops::Range;
+use study::model::*;
+
+const PROBE: &[&str] = &["name", "point", "line"];
+const FORCE: &[&str] = &["name", "parts", "torque_about"];
+const FLUX: &[&str] = &["name", "line", "winding", "turns"];
+
+/// `[[probe]]` tables with their spans.
+pub(super) fn probes(top: &Fields, ctx: &Context) -> Result<Vec<(Probe, Range<usize>)>, Diagnostic> {
+    let mut out = Vec::new();
+    for item in named_tables(top, "probe")? {
+        let t = item.table("[[probe]]", PROBE)?;
+        let name = t.require("name")?.str("probe.name")?.to_string();
+        let what = format!("probe '{name}'");
+        let shape = match (t.get("point"), t.get("line")) {
+            (Some(p), None) => ProbeShape::Point(ctx.point(p, &what)?),
+            (None, Some(l)) => {
+                let lt = l.table(&format!("{what} line"), &["from", "to", "points"])?;
+                let points = match lt.get("points") {
+                    None => 101,
+                    Some(n) => {
+                        let v = n.number("points")?;
+                        if !(2.0..=100_000.0).contains(&v) || v.fract() != 0.0 {
+                            return Err(Diagnostic::new(
+                                format!("{what}: points must be a whole number from 2 to 100000"),
+                                Some(n.span.clone()),
+                            ));
+                        }
+                        v as usize
+                    }
+                };
+                ProbeShape::Line {
+                    from: ctx.point(lt.require("from")?, &what)?,
+                    to: ctx.point(lt.require("to")?, &what)?,
+                    points,
+                }
+            }
+            _ => {
+                return Err(Diagnostic::new(
+                    format!("{what} needs exactly one of point or line"),
+                    Some(item.span.start..item.span.start + 1),
+                ))
+            }
+        };
+        out.push((Probe { name, shape }, item.span.clone()));
+    }
+    Ok(out)
+}
+
+pub(super) fn forces(top: &Fields, ctx: &Context, model: &Model) -> Result<Vec<ForceSpec>, Diagnostic> {
+    let mut out = Vec::new();
+    for item in named_tables(top, "force")? {
+        let t = item.table("[[force]]", FORCE)?;
+        let name = t.require("name")?.str("force.name")?.to_string();
+        let parts = part_list(t.require("parts")?, model, &format!("force '{name}' parts"))?;
+        let torque_about = match t.get("torque_about") {
+            Some(p) => ctx.point(p, "force.torque_about")?,
+            None => [0.0, 0.0],
+        };
+        out.push(ForceSpec { name, parts, torque_about });
+    }
+    Ok(out)
+}
+
+pub(super) fn fluxes(top: &Fields, ctx: &Context, model: &Model) -> Result<Vec<FluxSpec>, Diagnostic> {
+    let mut out = Vec::new();
+    for item in named_tables(top, "flux")? {
+        let t = item.table("[[flux]]", FLUX)?;
+        let name = t.require("name")?.str("flux.name")?.to_string();
+        let what = format!("flux '{name}'");
+        match (t.get("line"), t.get("winding")) {
+            (Some(l), None) => {
+                let lt = l.table(&format!("{what} line"), &["from", "to"])?;
+                out.push(FluxSpec::Line {
+                    name,
+                    from: ctx.point(lt.require("from")?, &what)?,
+                    to: ctx.point(lt.require("to")?, &what)?,
+                });
+            }
+            (None, Some(w)) => {
+                let parts = part_list(w, model, &format!("{what} winding"))?;
+                let mut signed = Vec::new();
+                for p in parts {
+                    let Some(i) = model.parts[p].current else {
+                        return Err(Diagnostic::new(
+                            format!("{what}: part '{}' carries no current, so it is not a winding", model.parts[p].name),
+                            Some(w.span.clone()),
+                        ));
+                    };
+                    signed.push((p, if i < 0.0 { -1.0 } else { 1.0 }));
+                }
+                let turns = match t.get("turns") {
+                    Some(n) => positive_number(n, &format!("{what} turns"))?,
+                    None => 1.0,
+                };
+                out.push(FluxSpec::Winding { name, parts: signed, turns });
+            }
+            _ => {
+                return Err(Diagnostic::new(
+                    format!("{what} needs exactly one of line or winding"),
+                    Some(item.span.start..item.span.start + 1),
+                ))
+            }
+        }
+    }
+    Ok(out)
+}

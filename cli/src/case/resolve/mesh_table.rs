@@ -1,0 +1,113 @@
+//! `[mesh]` and `[solver]`: mesh settings (defaults defined once, in
+//! in the mesher's `spec` module) and the Newton-Raphson stopping rules.
+
+use crate::case::diagnostic::Diagnostic;
+use crate::case::document::{Fields, Item, Value};
+use crate::case::quantity::Context;
+use crate::case::units::Kind;
+use mesher::{DEFAULT_GRADING, DEFAULT_MIN_ANGLE, GRADING_RANGE, MIN_ANGLE_RANGE};
+use study::model::MeshSettings;
+
+/// Default largest number of triangles before the mesher refuses.
+pub const DEFAULT_MAX_ELEMENTS: usize = 3_000_000;
+
+/// Keys of `[mesh]`.
+pub const MESH: &[&str] = &["size", "min_angle", "grading", "max_elements", "order"];
+/// Keys of `[solver]`.
+pub const SOLVER: &[&str] = &[
+    "residual_tolerance",
+    "update_tolerance",
+    "max_iterations",
+    "reuse_factorization",
+    "stiffen_tangent_above",
+];
+
+pub(super) fn mesh_settings(top: &Fields, ctx: &Context, parts: &[Item]) -> Result<MeshSettings, Diagnostic> {
+    let empty = Item {
+        value: Value::Table(Vec::new()),
+        span: 0..0,
+    };
+    let m = top.get("mesh").unwrap_or(&empty).table("[mesh]", MESH)?;
+    let size = match m.get("size") {
+        Some(s) => ctx.positive(s, Kind::Length, "mesh.size")?,
+        None => default_size(parts, ctx),
+    };
+    let number = |key: &str, default: f64, lo: f64, hi: f64| bounded_number(&m, "mesh", key, default, lo, hi);
+    Ok(MeshSettings {
+        size,
+        min_angle: number("min_angle", DEFAULT_MIN_ANGLE, MIN_ANGLE_RANGE.0, MIN_ANGLE_RANGE.1)?,
+        grading: number("grading", DEFAULT_GRADING, GRADING_RANGE.0, GRADING_RANGE.1)?,
+        max_elements: number("max_elements", DEFAULT_MAX_ELEMENTS as f64, 100.0, 1e9)? as usize,
+        order: number("order", 2.0, 1.0, 2.0)?.round() as u32,
+    })
+}
+
+/// An optional number of a table, `default` when absent, else within [lo, hi].
+fn bounded_number(table: &Fields, section: &str, key: &str, default: f64, lo: f64, hi: f64) -> Result<f64, Diagnostic> {
+    let Some(v) = table.get(key) else { return Ok(default) };
+    let x = v.number(&format!("{section}.{key}"))?;
+    if !(lo..=hi).contains(&x) {
+        return Err(Diagnostic::new(
+            format!("{section}.{key} must lie between {lo} and {hi}, got {x}"),
+            Some(v.span.clone()),
+        ));
+    }
+    Ok(x)
+}
+
+/// The `[solver]` table: Newton-Raphson stopping rules and the step method.
+pub(super) fn solver_settings(top: &Fields) -> Result<solver::NewtonSettings, Diagnostic> {
+    let empty = Item {
+        value: Value::Table(Vec::new()),
+        span: 0..0,
+    };
+    let t = top.get("solver").unwrap_or(&empty).table("[solver]", SOLVER)?;
+    let d = solver::NewtonSettings::default();
+    let number = |key: &str, default: f64, lo: f64, hi: f64| bounded_number(&t, "solver", key, default, lo, hi);
+    Ok(solver::NewtonSettings {
+        residual_tolerance: number("residual_tolerance", d.residual_tolerance, 1e-14, 1e-2)?,
+        update_tolerance: number("update_tolerance", d.update_tolerance, 1e-14, 1.0)?,
+        max_iterations: number("max_iterations", d.max_iterations as f64, 1.0, 1000.0)?.round() as usize,
+        stiffen_tangent_above: number("stiffen_tangent_above", d.stiffen_tangent_above, 1e-12, 10.0)?,
+        reuse_factorization: t
+            .get("reuse_factorization")
+            .map(|v| v.bool("solver.reuse_factorization"))
+            .transpose()?
+            .unwrap_or(d.reuse_factorization),
+    })
+}
+
+/// A twentieth of the largest part extent when [mesh] size is not given.
+fn default_size(parts: &[Item], ctx: &Context) -> f64 {
+    let mut extent: f64 = 0.0;
+    for p in parts {
+        let Value::Table(entries) = &p.value else {
+            continue;
+        };
+        for (k, v) in entries {
+            let pts: Vec<[f64; 2]> = match (k.name.as_str(), &v.value) {
+                ("rect", Value::Table(t)) => t.iter().filter_map(|(_, x)| ctx.point(x, "rect").ok()).collect(),
+                ("polygon", Value::Array(a)) => a.iter().filter_map(|x| ctx.point(x, "polygon").ok()).collect(),
+                ("circle", Value::Table(t)) => {
+                    let r = t
+                        .iter()
+                        .find(|(k, _)| k.name == "radius")
+                        .and_then(|(_, x)| ctx.quantity(x, Kind::Length, "radius").ok())
+                        .unwrap_or(0.0);
+                    extent = extent.max(2.0 * r);
+                    Vec::new()
+                }
+                _ => Vec::new(),
+            };
+            let (lo, hi) = mesher::geometry::bbox(pts);
+            if lo[0].is_finite() {
+                extent = extent.max(hi[0] - lo[0]).max(hi[1] - lo[1]);
+            }
+        }
+    }
+    if extent > 0.0 {
+        extent / 20.0
+    } else {
+        ctx.length_unit
+    }
+}

@@ -1,0 +1,125 @@
+//! Stage two of reading a case: check every table, resolve names, convert
+//! units and build the [`Model`], with the span of each part, probe and
+//! expectation kept beside it for messages. One file per table, each with
+//! its allowed keys beside its reader.
+
+mod expects;
+mod materials_table;
+mod measures;
+mod mesh_table;
+mod names;
+mod params;
+mod parts;
+mod study_table;
+
+pub use mesh_table::DEFAULT_MAX_ELEMENTS;
+pub use params::{params, sweep};
+
+use crate::case::diagnostic::Diagnostic;
+use crate::case::document::{Item, Value};
+use crate::case::quantity::Context;
+use crate::case::units::Kind;
+use expects::{expects, output};
+use materials_table::user_materials;
+use measures::{fluxes, forces, probes};
+use mesh_table::{mesh_settings, solver_settings};
+use names::{check_unique_names, TOP};
+use parts::part;
+use std::collections::BTreeMap;
+use std::ops::Range;
+use std::path::Path;
+use study::model::Model;
+use study::{Origin, StudyError};
+use study_table::{applied_field, boundary, depth, geometry, length_unit, STUDY};
+
+/// Where each part, probe and expectation of a model was written: byte
+/// ranges of the case text, by the model's indices.
+#[derive(Clone, Debug, Default)]
+pub struct Spans {
+    /// The `[[part]]` tables.
+    pub parts: Vec<Range<usize>>,
+    /// The `[[probe]]` tables.
+    pub probes: Vec<Range<usize>>,
+    /// The `[[expect]]` tables.
+    pub expects: Vec<Range<usize>>,
+}
+
+impl Spans {
+    /// The span a study error points at: the first character of its item.
+    pub fn of(&self, origin: Option<Origin>) -> Option<Range<usize>> {
+        let span = match origin? {
+            Origin::Part(i) => self.parts.get(i)?,
+            Origin::Probe(i) => self.probes.get(i)?,
+        };
+        Some(span.start..span.start + 1)
+    }
+
+    /// A study error as a diagnostic at its item.
+    pub fn diagnostic(&self, e: &StudyError) -> Diagnostic {
+        Diagnostic::new(e.message.clone(), self.of(e.origin)).with_help(e.help.clone())
+    }
+}
+
+/// Builds the model for one set of parameter values, with its spans.
+pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> Result<(Model, Spans), Diagnostic> {
+    let top = doc.table("the case file", TOP)?;
+    let empty = Item {
+        value: Value::Table(Vec::new()),
+        span: 0..0,
+    };
+    let study = top.get("study").unwrap_or(&empty).table("[study]", STUDY)?;
+    let (unit_name, unit) = length_unit(&study)?;
+    let ctx = Context { params, length_unit: unit };
+    let symmetry = geometry(&study)?;
+    let user_materials = user_materials(&top, &ctx, case_dir)?;
+    let temperature = match study.get("temperature") {
+        Some(t) => ctx.quantity(t, Kind::Temperature, "study.temperature")?,
+        None => 20.0,
+    };
+    let parts_items = match top.get("part") {
+        Some(p) => p.tables("[[part]]")?,
+        None => &[],
+    };
+    if parts_items.is_empty() {
+        return Err(Diagnostic::new("the case has no [[part]]: a study needs at least one part", Some(0..1)));
+    }
+    let mesh = mesh_settings(&top, &ctx, parts_items)?;
+    let mut parts = Vec::new();
+    let mut spans = Spans::default();
+    for item in parts_items {
+        parts.push(part(item, &ctx, symmetry, &user_materials, &mesh, &parts)?);
+        spans.parts.push(item.span.clone());
+    }
+    let mut model = Model {
+        title: study
+            .get("title")
+            .map(|t| t.str("study.title").map(str::to_string))
+            .transpose()?
+            .unwrap_or_else(|| "untitled study".into()),
+        symmetry,
+        length_unit: (unit_name, unit),
+        depth: depth(&study, &ctx, symmetry)?,
+        temperature,
+        boundary: boundary(&study, &ctx)?,
+        applied_field: applied_field(&study, &ctx, symmetry)?,
+        mesh,
+        parts,
+        probes: Vec::new(),
+        forces: Vec::new(),
+        fluxes: Vec::new(),
+        expects: Vec::new(),
+        output: output(&top)?,
+        newton: solver_settings(&top)?,
+        reach_level: match study.get("reach_level") {
+            Some(r) => ctx.positive(r, Kind::FluxDensity, "study.reach_level")?,
+            None => 5e-3,
+        },
+        params: params.clone(),
+    };
+    (model.probes, spans.probes) = probes(&top, &ctx)?.into_iter().unzip();
+    model.forces = forces(&top, &ctx, &model)?;
+    model.fluxes = fluxes(&top, &ctx, &model)?;
+    check_unique_names(&top)?;
+    (model.expects, spans.expects) = expects(&top, &ctx, &model)?.into_iter().unzip();
+    Ok((model, spans))
+}

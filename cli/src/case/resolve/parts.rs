@@ -1,0 +1,175 @@
+//! `[[part]]`: a part's outline, material, magnetization and current.
+
+use super::materials_table::lookup_material;
+use crate::case::diagnostic::Diagnostic;
+use crate::case::document::Item;
+use crate::case::quantity::Context;
+use crate::case::units::Kind;
+use mesher::{Shape, Symmetry};
+use std::collections::BTreeMap;
+use study::materials::{Entry, Material};
+use study::model::*;
+
+const PART: &[&str] = &[
+    "name",
+    "material",
+    "polygon",
+    "rect",
+    "circle",
+    "magnetization",
+    "mesh_size",
+    "current",
+    "current_density",
+];
+const SHAPES: &[&str] = &["polygon", "rect", "circle"];
+
+pub(super) fn part(
+    item: &Item,
+    ctx: &Context,
+    symmetry: Symmetry,
+    user: &BTreeMap<String, (Entry, std::ops::Range<usize>)>,
+    mesh: &MeshSettings,
+    before: &[Part],
+) -> Result<Part, Diagnostic> {
+    let t = item.table("[[part]]", PART)?;
+    let name = t.require("name")?.str("part.name")?.to_string();
+    if before.iter().any(|p| p.name == name) {
+        return Err(Diagnostic::new(
+            format!("a part named '{name}' already exists; part names must be unique"),
+            Some(t.require("name")?.span.clone()),
+        ));
+    }
+    let what = format!("part '{name}'");
+    let material = lookup_material(t.require("material")?, user)?;
+    let shapes = t.present(SHAPES);
+    if shapes.len() != 1 {
+        let msg = if shapes.is_empty() {
+            format!("{what} needs a shape: one of rect, polygon or circle")
+        } else {
+            format!("{what} has {} shapes ({}); give exactly one", shapes.len(), shapes.join(", "))
+        };
+        return Err(Diagnostic::new(msg, Some(t.span.start..t.span.start + 1)));
+    }
+    let shape = shape(shapes[0], t.require(shapes[0])?, ctx, &what)?;
+    let mesh_size = match t.get("mesh_size") {
+        Some(m) => ctx.positive(m, Kind::Length, &format!("{what} mesh_size"))?,
+        None => mesh.size,
+    };
+    let is_magnet = matches!(material.material, Material::Magnet(_));
+    let magnetization = match (t.get("magnetization"), is_magnet) {
+        (Some(m), true) => Some(direction(m, ctx, symmetry, &what)?),
+        (None, true) => {
+            return Err(Diagnostic::new(
+                format!(
+                    "{what} is a magnet ({}) and needs a magnetization direction, for example magnetization = \"+z\"",
+                    material.name
+                ),
+                Some(t.span.start..t.span.start + 1),
+            ))
+        }
+        (Some(m), false) => {
+            return Err(Diagnostic::new(
+                format!("{what}: magnetization applies to magnet materials only ('{}' is not one)", material.name),
+                Some(m.span.clone()),
+            ))
+        }
+        (None, false) => None,
+    };
+    let current = match (t.get("current"), t.get("current_density")) {
+        (Some(c), None) => Some(ctx.quantity(c, Kind::Current, &format!("{what} current"))?),
+        (None, Some(j)) => Some(ctx.quantity(j, Kind::CurrentDensity, &format!("{what} current_density"))? * shape.exact_area(symmetry)),
+        (Some(c), Some(_)) => {
+            return Err(Diagnostic::new(
+                format!("{what}: give current or current_density, not both"),
+                Some(c.span.clone()),
+            ))
+        }
+        (None, None) => None,
+    };
+    if let (Some(_), true) = (current, is_magnet) {
+        return Err(Diagnostic::new(
+            format!("{what}: a magnet cannot carry a winding current here; model the winding as its own part"),
+            t.get("current").or(t.get("current_density")).map(|i| i.span.clone()),
+        ));
+    }
+    Ok(Part {
+        name,
+        material,
+        shape,
+        mesh_size,
+        magnetization,
+        current,
+    })
+}
+
+fn shape(kind: &str, item: &Item, ctx: &Context, what: &str) -> Result<Shape, Diagnostic> {
+    match kind {
+        "rect" => {
+            let t = item.table(&format!("{what} rect"), &["from", "to"])?;
+            let from = ctx.point(t.require("from")?, &format!("{what} rect.from"))?;
+            let to = ctx.point(t.require("to")?, &format!("{what} rect.to"))?;
+            if from[0] == to[0] || from[1] == to[1] {
+                return Err(Diagnostic::new(format!("{what}: the rectangle has zero area"), Some(item.span.clone())));
+            }
+            Ok(Shape::Rect { from, to })
+        }
+        "circle" => {
+            let t = item.table(&format!("{what} circle"), &["center", "radius"])?;
+            Ok(Shape::Circle {
+                center: ctx.point(t.require("center")?, &format!("{what} circle.center"))?,
+                radius: ctx.positive(t.require("radius")?, Kind::Length, &format!("{what} circle.radius"))?,
+            })
+        }
+        _ => {
+            let pts = item.array(&format!("{what} polygon"))?;
+            if pts.len() < 3 {
+                return Err(Diagnostic::new(
+                    format!("{what}: a polygon needs at least 3 points, found {}", pts.len()),
+                    Some(item.span.clone()),
+                ));
+            }
+            Ok(Shape::Polygon(
+                pts.iter().map(|p| ctx.point(p, &format!("{what} polygon"))).collect::<Result<_, _>>()?,
+            ))
+        }
+    }
+}
+
+fn direction(item: &Item, ctx: &Context, symmetry: Symmetry, what: &str) -> Result<[f64; 2], Diagnostic> {
+    let s = item.str(&format!("{what} magnetization"))?;
+    let words: &[&str] = match symmetry {
+        Symmetry::Axisymmetric => &["+z", "-z", "+r", "-r"],
+        Symmetry::Planar => &["+x", "-x", "+y", "-y"],
+    };
+    let d = match s {
+        "+z" | "+y" => Some([0.0, 1.0]),
+        "-z" | "-y" => Some([0.0, -1.0]),
+        "+r" | "+x" => Some([1.0, 0.0]),
+        "-r" | "-x" => Some([-1.0, 0.0]),
+        _ => None,
+    };
+    if let Some(d) = d {
+        if words.contains(&s) {
+            return Ok(d);
+        }
+        return Err(Diagnostic::new(
+            format!("{what}: magnetization '{s}' does not fit this geometry; use one of {}", words.join(" ")),
+            Some(item.span.clone()),
+        ));
+    }
+    if symmetry == Symmetry::Planar {
+        if let Ok(angle) = ctx.quantity(item, Kind::Angle, &format!("{what} magnetization")) {
+            return Ok([angle.cos(), angle.sin()]);
+        }
+    }
+    let extra = if symmetry == Symmetry::Planar {
+        " or an angle such as \"30 deg\""
+    } else {
+        ""
+    };
+    Err(Diagnostic::new(
+        format!("{what}: unknown magnetization '{s}'; use one of {}{extra}", words.join(" ")),
+        Some(item.span.clone()),
+    )
+    .suggest(s, words.iter().copied()))
+}

@@ -1,0 +1,111 @@
+//! `[study]`: the length unit, geometry, depth, outer boundary and applied field.
+
+use crate::case::diagnostic::Diagnostic;
+use crate::case::document::{Fields, Value};
+use crate::case::quantity::Context;
+use crate::case::units::Kind;
+use mesher::{OuterBoundary, Symmetry};
+
+/// Keys of `[study]`.
+pub const STUDY: &[&str] = &[
+    "title",
+    "geometry",
+    "unit",
+    "depth",
+    "temperature",
+    "boundary",
+    "applied_field",
+    "box",
+    "reach_level",
+];
+
+pub(super) fn length_unit(study: &Fields) -> Result<(String, f64), Diagnostic> {
+    let Some(u) = study.get("unit") else {
+        return Ok(("mm".into(), 1e-3));
+    };
+    let name = u.str("study.unit")?;
+    match crate::case::units::unit(name) {
+        Some((Kind::Length, f)) => Ok((name.into(), f)),
+        _ => Err(Diagnostic::new(format!("study.unit: '{name}' is not a length unit"), Some(u.span.clone()))
+            .suggest(name, crate::case::units::symbols_of(Kind::Length))),
+    }
+}
+
+pub(super) fn geometry(study: &Fields) -> Result<Symmetry, Diagnostic> {
+    let Some(g) = study.get("geometry") else {
+        return Ok(Symmetry::Axisymmetric);
+    };
+    match g.str("study.geometry")? {
+        "axisymmetric" => Ok(Symmetry::Axisymmetric),
+        "planar" => Ok(Symmetry::Planar),
+        other => Err(Diagnostic::new(
+            format!("study.geometry: unknown geometry '{other}'; expected \"axisymmetric\" or \"planar\""),
+            Some(g.span.clone()),
+        )
+        .suggest(other, ["axisymmetric", "planar"])),
+    }
+}
+
+pub(super) fn depth(study: &Fields, ctx: &Context, symmetry: Symmetry) -> Result<f64, Diagnostic> {
+    match (study.get("depth"), symmetry) {
+        (Some(d), Symmetry::Planar) => ctx.positive(d, Kind::Length, "study.depth"),
+        (Some(d), Symmetry::Axisymmetric) => Err(Diagnostic::new("study.depth applies to planar studies only", Some(d.span.clone()))),
+        (None, Symmetry::Planar) => Ok(1.0),
+        (None, Symmetry::Axisymmetric) => Ok(1.0),
+    }
+}
+
+pub(super) fn boundary(study: &Fields, ctx: &Context) -> Result<OuterBoundary, Diagnostic> {
+    let kind = match study.get("boundary") {
+        None => "open",
+        Some(b) => b.str("study.boundary")?,
+    };
+    let box_item = study.get("box");
+    match kind {
+        "open" => {
+            if let Some(b) = box_item {
+                return Err(Diagnostic::new("study.box applies to boundary = \"flux-parallel\" only", Some(b.span.clone())));
+            }
+            Ok(OuterBoundary::Open)
+        }
+        "flux-parallel" => {
+            let from_to = match box_item {
+                None => None,
+                Some(b) => {
+                    let t = b.table("study.box", &["from", "to"])?;
+                    Some((ctx.point(t.require("from")?, "study.box.from")?, ctx.point(t.require("to")?, "study.box.to")?))
+                }
+            };
+            Ok(OuterBoundary::FluxParallel { from_to })
+        }
+        other => {
+            let span = study.get("boundary").map(|b| b.span.clone());
+            Err(Diagnostic::new(
+                format!("study.boundary: unknown boundary '{other}'; expected \"open\" or \"flux-parallel\""),
+                span,
+            )
+            .suggest(other, ["open", "flux-parallel"]))
+        }
+    }
+}
+
+pub(super) fn applied_field(study: &Fields, ctx: &Context, symmetry: Symmetry) -> Result<[f64; 2], Diagnostic> {
+    let Some(a) = study.get("applied_field") else {
+        return Ok([0.0, 0.0]);
+    };
+    match (&a.value, symmetry) {
+        (Value::Array(v), Symmetry::Planar) if v.len() == 2 => Ok([
+            ctx.quantity(&v[0], Kind::FluxDensity, "study.applied_field")?,
+            ctx.quantity(&v[1], Kind::FluxDensity, "study.applied_field")?,
+        ]),
+        (Value::Array(_), _) => Err(Diagnostic::new(
+            "study.applied_field: give [x, y] in a planar study, or one value along z in an axisymmetric study",
+            Some(a.span.clone()),
+        )),
+        (_, Symmetry::Axisymmetric) => Ok([0.0, ctx.quantity(a, Kind::FluxDensity, "study.applied_field")?]),
+        (_, Symmetry::Planar) => Err(Diagnostic::new(
+            "study.applied_field: a planar study needs [x, y], for example [\"0 T\", \"0.1 T\"]",
+            Some(a.span.clone()),
+        )),
+    }
+}

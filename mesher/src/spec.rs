@@ -1,0 +1,69 @@
+//! What the mesher is asked for: part shapes, refinements, the outer
+//! boundary and the quality settings, as plain data in consistent length
+//! units (metres in practice), with the defaults and ranges of the settings
+//! defined once.
+
+/// Default smallest angle of every triangle, degrees.
+pub const DEFAULT_MIN_ANGLE: f64 = 28.0;
+/// Smallest angles the refinement accepts, degrees (Ruppert's refinement
+/// terminates for angles up to about 33.8 degrees in practice).
+pub const MIN_ANGLE_RANGE: (f64, f64) = (20.0, 33.0);
+/// Default growth of the element size per element away from parts.
+pub const DEFAULT_GRADING: f64 = 1.3;
+/// Gradings accepted.
+pub const GRADING_RANGE: (f64, f64) = (1.05, 3.0);
+
+/// Planar studies use (x, y); axisymmetric studies use (r, z) with r >= 0.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Symmetry {
+    Planar,
+    Axisymmetric,
+}
+
+/// A part's outline as the case file gives it.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Shape {
+    Polygon(Vec<[f64; 2]>),
+    Rect { from: [f64; 2], to: [f64; 2] },
+    Circle { center: [f64; 2], radius: f64 },
+}
+
+/// How the outside of the model is closed.
+#[derive(Clone, Debug, PartialEq)]
+pub enum OuterBoundary {
+    /// Unbounded space: a disk (half-disk when axisymmetric) whose exterior is
+    /// mapped by the Kelvin transformation onto a second disk.
+    Open,
+    /// A = 0 on a box. `None` picks a box twice the size of the parts.
+    FluxParallel { from_to: Option<([f64; 2], [f64; 2])> },
+}
+
+/// One part to be meshed: a shape and the target edge length in and near it.
+#[derive(Clone, Debug)]
+pub struct PartSpec {
+    pub shape: Shape,
+    pub mesh_size: f64,
+}
+
+/// Something that is not a part but wants a fine mesh near it (a probe).
+#[derive(Clone, Debug)]
+pub enum Refinement {
+    Point { at: [f64; 2], size: f64 },
+    Line { from: [f64; 2], to: [f64; 2], size: f64 },
+}
+
+/// Everything the mesher needs, in consistent length units (metres in practice).
+#[derive(Clone, Debug)]
+pub struct MeshSpec {
+    pub symmetry: Symmetry,
+    pub parts: Vec<PartSpec>,
+    pub refinements: Vec<Refinement>,
+    pub outer: OuterBoundary,
+    /// Minimum angle of every triangle, degrees (clamped to [`MIN_ANGLE_RANGE`]).
+    pub min_angle_deg: f64,
+    /// Ratio by which element size may grow per element away from parts
+    /// (clamped to [`GRADING_RANGE`]).
+    pub grading: f64,
+    /// Refuse (before or during meshing) to make more triangles than this.
+    pub max_triangles: usize,
+}

@@ -1,0 +1,16 @@
+//! The built-in material library: magnet grades, soft-magnetic curves and
+//! linear materials, each entry with its source.
+//!
+//! Grade values are typical catalogue values (the standards that define
+//! minimum values, IEC 60404-8-1 and MMPA 0100, are not freely readable);
+//! source ids refer to the project's docs/materials.md.
+
+mod entry;
+mod grade;
+mod library;
+mod magnets;
+mod soft;
+
+pub use entry::{Entry, Material};
+pub use grade::MagnetGrade;
+pub use library::{lookup, names};
