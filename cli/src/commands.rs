@@ -73,6 +73,11 @@ fn solve_inner(
         let (k, n) = parse_shard(s)?;
         variants.retain(|v| v.index % n == k);
     }
+    // Input errors that every variant shares (a misspelled name, a bad unit)
+    // are found before any folder is made or mesh built.
+    if let Some(first) = variants.first() {
+        run::resolve(&loaded, &first.params, &limits)?;
+    }
     let out = default_output(&loaded, output);
     output::check_writable(&out).map_err(|e| Failure::Input(format!("error: {e}\n")))?;
     let swept = variants.first().is_some_and(|v| !v.label.is_empty());

@@ -42,6 +42,8 @@ pub struct Row {
     pub index: usize,
     pub swept: Vec<(String, f64)>,
     pub values: BTreeMap<String, f64>,
+    /// Unit symbol of each value, from its type (empty for a ratio).
+    pub units: BTreeMap<String, String>,
     pub converged: bool,
 }
 
@@ -86,30 +88,25 @@ fn read_row(file: &Path) -> Result<Row, String> {
         .as_object()
         .map(|m| m.iter().map(|(k, x)| (k.clone(), x.as_f64().unwrap_or(f64::NAN))).collect())
         .unwrap_or_default();
+    let units: BTreeMap<String, String> = v["units"]
+        .as_object()
+        .map(|m| m.iter().map(|(k, x)| (k.clone(), x.as_str().unwrap_or("").to_string())).collect())
+        .unwrap_or_default();
     Ok(Row {
         index: variant.index,
         swept: variant.swept,
         values,
+        units,
         converged: v["solve"]["converged"].as_bool().unwrap_or(false),
     })
 }
 
-/// The SI unit of a value by its name.
-pub fn unit_of(name: &str) -> &'static str {
-    let last = name.rsplit('.').next().unwrap_or("");
-    match name.split('.').next().unwrap_or("") {
-        "force" if last == "torque" => "N m",
-        "force" => "N",
-        "probe" | "part" if last == "h" => "A/m",
-        "probe" | "part" => "T",
-        "flux" if last == "inductance" => "H",
-        "flux" => "Wb",
-        "energy" | "coenergy" => "J",
-        "stray" if last == "moment" => "A m2",
-        "stray" if name.contains("h_at") => "A/m",
-        "stray" | "reach" => "m",
-        "magnet" => "1",
-        _ => "",
+/// A value's name with its unit as column headers write it: `name [unit]`,
+/// or the bare name for a ratio (no physical unit).
+fn header(rows: &[Row], name: &str, open: &str, close: &str) -> String {
+    match rows.iter().find_map(|r| r.units.get(name)).map(String::as_str) {
+        None | Some("") => name.to_string(),
+        Some(u) => format!("{name} {open}{u}{close}"),
     }
 }
 
@@ -125,7 +122,7 @@ pub fn table(rows: &[Row]) -> String {
     }
     s += ",converged";
     for n in &names {
-        s += &format!(",{n} [{}]", unit_of(n));
+        s += &format!(",{}", header(rows, n, "[", "]"));
     }
     s.push('\n');
     for r in rows {
@@ -172,7 +169,7 @@ pub fn charts(rows: &[Row]) -> Vec<(String, String, String)> {
                 (second.as_ref().map_or_else(|| name.clone(), |s| format!("{s} = {k}")), pts)
             })
             .collect();
-        let y_label = format!("{name} ({})", unit_of(name));
+        let y_label = header(rows, name, "(", ")");
         let title = format!("{name} against {x_name}");
         let svg = crate::output::svg::chart(&crate::output::svg::Chart {
             title: &title,
@@ -210,7 +207,7 @@ pub fn report(rows: &[Row], charts: &[(String, String, String)]) -> String {
     s += &format!(
         "| variant | {} | converged | {} |\n",
         params.join(" | "),
-        shown.iter().map(|n| format!("{n} ({})", unit_of(n))).collect::<Vec<_>>().join(" | ")
+        shown.iter().map(|n| header(rows, n, "(", ")")).collect::<Vec<_>>().join(" | ")
     );
     s += &format!("|---|{}---|{}\n", "---|".repeat(params.len()), "---|".repeat(shown.len()));
     for r in rows {

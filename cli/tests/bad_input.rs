@@ -92,3 +92,33 @@ fn an_unknown_parameter_override_is_reported() {
     assert_eq!(code, 2, "{text}");
     assert!(text.contains("did you mean 'gap'"), "{text}");
 }
+
+#[test]
+fn a_misspelled_expectation_is_refused_at_its_line_before_any_mesh() {
+    // Every example case with one misspelled [[expect]] value appended: exit 2
+    // at that table's line and column, and no output folder (nothing meshed).
+    let cases = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases");
+    let work = std::env::temp_dir().join(format!("lodestone-typo-{}", std::process::id()));
+    std::fs::create_dir_all(&work).unwrap();
+    let mut names: Vec<PathBuf> = std::fs::read_dir(&cases).unwrap().flatten().map(|e| e.path()).collect();
+    names.retain(|p| p.extension().is_some_and(|x| x == "toml"));
+    names.sort();
+    for case in names {
+        let text = std::fs::read_to_string(&case).unwrap();
+        let typo = format!("{text}\n\n[[expect]]\nvalue = \"force.pul.z\"\nmax = \"1 N\"\n");
+        let line = typo.lines().position(|l| l.contains("force.pul.z")).unwrap() + 1;
+        let path = work.join(case.file_name().unwrap());
+        std::fs::write(&path, typo).unwrap();
+        let out = work.join("out");
+        let started = std::time::Instant::now();
+        let (code, msg) = run(&["solve", "--quiet", "-o", out.to_str().unwrap(), path.to_str().unwrap()]);
+        let seconds = started.elapsed().as_secs_f64();
+        assert_clean(&msg);
+        assert_eq!(code, 2, "{}: {msg}", case.display());
+        assert!(msg.contains(&format!(":{line}:9")), "{}: no line {line} column 9 in {msg}", case.display());
+        assert!(msg.contains("no value named 'force.pul.z'"), "{msg}");
+        assert!(!out.exists(), "{}: an output folder was written", case.display());
+        println!("{}: refused in {seconds:.3} s", case.display());
+    }
+    let _ = std::fs::remove_dir_all(&work);
+}

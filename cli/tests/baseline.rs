@@ -71,6 +71,10 @@ fn example_values_match_the_kept_baseline() {
             for name in values.keys().filter(|n| !expected.contains_key(*n)) {
                 mismatches.push(format!("{key}: {name} is new"));
             }
+            // Every value carries its unit from its type (sweep tables read it).
+            for name in values.keys().filter(|n| json["units"].get(n.as_str()).and_then(Value::as_str).is_none()) {
+                mismatches.push(format!("{key}: {name} has no typed unit"));
+            }
         }
     }
     let _ = std::fs::remove_dir_all(&work);

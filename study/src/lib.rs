@@ -19,6 +19,7 @@ pub mod post;
 pub mod quantity;
 pub mod results;
 pub mod run;
+pub mod value_names;
 
 pub use lower::{Origin, StudyError};
 pub use model::Model;

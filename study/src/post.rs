@@ -48,6 +48,11 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
     }
     warnings.extend(thin_parts(model));
     values.retain(|_, v| v.is_finite());
+    let units = crate::value_names::value_names(model)
+        .into_iter()
+        .filter(|v| values.contains_key(&v.name))
+        .map(|v| (v.name, v.unit.symbol()))
+        .collect();
     let r = &sol.report;
     Results {
         format: "lodestone-results/1",
@@ -85,6 +90,7 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
         energy,
         parts,
         values,
+        units,
         cautions: CAUTIONS.to_vec(),
     }
 }

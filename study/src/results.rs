@@ -23,6 +23,8 @@ pub struct Results {
     pub warnings: Vec<String>,
     /// Every scalar by its `[[expect]]` name, SI units.
     pub values: BTreeMap<String, f64>,
+    /// The unit symbol of every value, from its type (empty for a ratio).
+    pub units: BTreeMap<String, &'static str>,
     pub cautions: Vec<&'static str>,
 }
 

@@ -34,8 +34,8 @@ fn bound_kind(unit: Unit) -> Option<Kind> {
 /// The value's typed name, or a located error listing the nearest names.
 fn value_name(item: &Item, model: &Model) -> Result<ValueName, Diagnostic> {
     let written = item.str("expect.value")?;
-    study::quantity::value_name(model, written).ok_or_else(|| {
-        let names = study::quantity::value_names(model);
+    study::value_names::value_name(model, written).ok_or_else(|| {
+        let names = study::value_names::value_names(model);
         Diagnostic::new(format!("expect: this study reports no value named '{written}'"), Some(item.span.clone()))
             .suggest(written, names.iter().map(|n| n.name.as_str()))
     })

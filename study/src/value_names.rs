@@ -1,0 +1,75 @@
+//! The typed values a model can report, known before it is meshed.
+
+use crate::materials::Material;
+use crate::model::{Model, ProbeShape};
+use crate::quantity::{Unit, ValueName};
+use mesher::Symmetry;
+
+/// Every value a solved model can report. Some (the stray-field distances,
+/// the incremental inductance) exist only when the solution has them; the
+/// list is what may be asked for.
+pub fn value_names(model: &Model) -> Vec<ValueName> {
+    let planar = model.symmetry == Symmetry::Planar;
+    let (c0, c1) = if planar { ("bx", "by") } else { ("br", "bz") };
+    let mut out = Vec::new();
+    let mut push = |name: String, unit| out.push(ValueName::new(name, unit));
+    for p in &model.probes {
+        let key = |s: &str| format!("probe.{}.{s}", p.name);
+        match p.shape {
+            ProbeShape::Point(_) => {
+                for c in ["b", c0, c1] {
+                    push(key(c), Unit::Tesla);
+                }
+                push(key("h"), Unit::AmperePerMetre);
+            }
+            ProbeShape::Line { .. } => {
+                for s in ["b.max", "b.min", "b.mean"] {
+                    push(key(s), Unit::Tesla);
+                }
+            }
+        }
+    }
+    for f in &model.forces {
+        let components = if planar { ["x", "y"] } else { ["r", "z"] };
+        for c in components.into_iter().chain(["magnitude"]) {
+            push(format!("force.{}.{c}", f.name), Unit::Newton);
+        }
+        if planar {
+            push(format!("force.{}.torque", f.name), Unit::NewtonMetre);
+        }
+    }
+    for f in &model.fluxes {
+        push(format!("flux.{}", f.name()), Unit::Weber);
+        push(format!("flux.{}.inductance", f.name()), Unit::Henry);
+        push(format!("flux.{}.incremental_inductance", f.name()), Unit::Henry);
+    }
+    push("energy".into(), Unit::Joule);
+    push("coenergy".into(), Unit::Joule);
+    for p in &model.parts {
+        push(format!("part.{}.b.max", p.name), Unit::Tesla);
+        push(format!("part.{}.b.mean", p.name), Unit::Tesla);
+        match p.material.material {
+            Material::Soft { .. } => push(format!("part.{}.saturated_share", p.name), Unit::Ratio),
+            Material::Magnet(_) => {
+                for s in ["margin", "permeance", "share_past_knee"] {
+                    push(format!("magnet.{}.{s}", p.name), Unit::Ratio);
+                }
+            }
+            _ => {}
+        }
+    }
+    push("reach.axis".into(), Unit::Metre);
+    if !planar {
+        push("stray.moment".into(), Unit::AmpereSquareMetre);
+        push("stray.h_at_2100mm".into(), Unit::AmperePerMetre);
+        push("stray.h_at_4600mm".into(), Unit::AmperePerMetre);
+        push("stray.implant_distance.axis".into(), Unit::Metre);
+        push("stray.implant_distance.plane".into(), Unit::Metre);
+    }
+    out
+}
+
+/// The typed name of `name` in this model, or None when the model cannot report it.
+pub fn value_name(model: &Model, name: &str) -> Option<ValueName> {
+    value_names(model).into_iter().find(|v| v.name == name)
+}
