@@ -2,184 +2,21 @@
 //! scatter map that puts each element entry straight into its slot of the
 //! compressed lower triangle.
 
-use crate::element::{element_residual, element_system, ElementLoad, ElementOrder, LocalSystem, Placement, EDGES, MAX_NODES};
+use crate::constraints::Constraints;
+use crate::element::{element_residual, element_system, ElementLoad, ElementOrder, LocalSystem, MAX_NODES};
 use crate::linear_system::symmetric_product;
 use crate::linear_system::Elimination;
 use crate::material::{Law, Tangent};
 use crate::ordering;
-use crate::pattern::{build_pattern, PAIRS};
+use crate::pattern::{build_pattern, SystemTooLarge, NO_SLOT, PAIRS};
 use crate::problem::Problem;
-use mesher::{BoundaryTag, Mesh, Region, Symmetry};
+use crate::space::{DofMap, ElementKind, Elements, NONE};
+use mesher::Mesh;
 use nalgebra_sparse::CscMatrix;
 use rayon::prelude::*;
 
-/// Marks a fixed node.
-pub const NONE: usize = usize::MAX;
-/// Marks an element entry that has no slot.
-pub(crate) const NO_SLOT: u32 = u32::MAX;
 /// Elements computed in parallel before their entries are scattered.
 const BLOCK: usize = 1 << 14;
-
-/// What an element is made of.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub enum ElementKind {
-    Air,
-    Part(usize),
-    Exterior,
-}
-
-/// The flat element table: physical triangles first, then the exterior disk.
-#[derive(Clone, Debug)]
-pub struct Elements {
-    pub order: ElementOrder,
-    /// Global node ids: corners, then edge midpoints (quadratic only).
-    pub nodes: Vec<[usize; MAX_NODES]>,
-    /// Corner coordinates in the element's own frame (mapped for the exterior).
-    pub coords: Vec<[[f64; 2]; 3]>,
-    pub kinds: Vec<ElementKind>,
-    pub n_physical: usize,
-    pub exterior: Option<([f64; 2], f64)>,
-    /// Total node count (mesh nodes plus edge midpoints).
-    pub n_nodes: usize,
-    /// Physical position of every node; exterior-only nodes keep their mapped position.
-    pub positions: Vec<[f64; 2]>,
-}
-
-impl Elements {
-    pub fn from_mesh(mesh: &Mesh, order: ElementOrder) -> Elements {
-        let mut corners: Vec<[usize; 3]> = mesh.triangles.clone();
-        let mut coords: Vec<[[f64; 2]; 3]> = mesh.triangles.iter().map(|t| t.map(|n| mesh.nodes[n])).collect();
-        let mut kinds: Vec<ElementKind> = mesh
-            .regions
-            .iter()
-            .map(|r| match r {
-                Region::Air => ElementKind::Air,
-                Region::Part(i) => ElementKind::Part(*i),
-            })
-            .collect();
-        let mut exterior = None;
-        if let Some(disk) = &mesh.exterior {
-            for t in &disk.triangles {
-                corners.push(t.map(|l| disk.global[l]));
-                coords.push(t.map(|l| disk.mapped[l]));
-                kinds.push(ElementKind::Exterior);
-            }
-            exterior = Some((disk.center, disk.radius));
-        }
-        let mut positions = mesh.nodes.clone();
-        let nodes = match order {
-            ElementOrder::Linear => corners.iter().map(|c| [c[0], c[1], c[2], NONE, NONE, NONE]).collect(),
-            ElementOrder::Quadratic => add_midpoints(&corners, &coords, &mut positions),
-        };
-        Elements {
-            order,
-            nodes,
-            coords,
-            kinds,
-            n_physical: mesh.triangles.len(),
-            exterior,
-            n_nodes: positions.len(),
-            positions,
-        }
-    }
-
-    pub fn placement(&self, e: usize) -> Placement {
-        match (self.kinds[e], self.exterior) {
-            (ElementKind::Exterior, Some((center, radius))) => Placement::Exterior { center, radius },
-            _ => Placement::Physical,
-        }
-    }
-
-    pub fn len(&self) -> usize {
-        self.nodes.len()
-    }
-
-    pub fn is_empty(&self) -> bool {
-        self.nodes.is_empty()
-    }
-
-    /// The element's nodes that exist (3 or 6).
-    pub fn element_nodes(&self, e: usize) -> &[usize] {
-        &self.nodes[e][..self.order.n_nodes()]
-    }
-
-    /// Nodal values of a global vector gathered for element e.
-    pub fn gather(&self, e: usize, values: &[f64]) -> [f64; MAX_NODES] {
-        let mut a = [0.0; MAX_NODES];
-        for (k, &n) in self.element_nodes(e).iter().enumerate() {
-            a[k] = values[n];
-        }
-        a
-    }
-}
-
-/// Numbers the edge midpoints: one node per distinct edge, shared by the
-/// triangles on both sides (rim edges join the domain and the exterior).
-fn add_midpoints(corners: &[[usize; 3]], coords: &[[[f64; 2]; 3]], positions: &mut Vec<[f64; 2]>) -> Vec<[usize; MAX_NODES]> {
-    let mut keys: Vec<(usize, usize, u32)> = Vec::with_capacity(3 * corners.len());
-    for (e, c) in corners.iter().enumerate() {
-        for (k, [a, b]) in EDGES.iter().enumerate() {
-            let (lo, hi) = (c[*a].min(c[*b]), c[*a].max(c[*b]));
-            keys.push((lo, hi, (3 * e + k) as u32));
-        }
-    }
-    keys.par_sort_unstable();
-    let mut mid = vec![NONE; 3 * corners.len()];
-    let mut prev = (NONE, NONE);
-    let mut id = positions.len();
-    for &(lo, hi, slot) in &keys {
-        if (lo, hi) != prev {
-            prev = (lo, hi);
-            id = positions.len();
-            let e = slot as usize / 3;
-            let [a, b] = EDGES[slot as usize % 3];
-            let x = coords[e];
-            // Physical elements come first, so a shared edge takes its physical midpoint.
-            positions.push([0.5 * (x[a][0] + x[b][0]), 0.5 * (x[a][1] + x[b][1])]);
-        }
-        mid[slot as usize] = id;
-    }
-    corners
-        .iter()
-        .enumerate()
-        .map(|(e, c)| [c[0], c[1], c[2], mid[3 * e], mid[3 * e + 1], mid[3 * e + 2]])
-        .collect()
-}
-
-/// Nodes held at zero reduced potential: the axis, a flux-parallel box, infinity.
-fn fixed_nodes(mesh: &Mesh, els: &Elements) -> Vec<bool> {
-    let mut fixed = vec![false; els.n_nodes];
-    let mut fixed_edges: std::collections::HashSet<(usize, usize)> = std::collections::HashSet::new();
-    for (edge, tag) in &mesh.boundary {
-        if matches!(tag, BoundaryTag::Axis | BoundaryTag::Outer) {
-            fixed[edge[0]] = true;
-            fixed[edge[1]] = true;
-            fixed_edges.insert((edge[0].min(edge[1]), edge[0].max(edge[1])));
-        }
-    }
-    let axisym = mesh.symmetry == Symmetry::Axisymmetric;
-    for e in 0..els.len() {
-        let x = els.coords[e];
-        for k in 0..3 {
-            if axisym && x[k][0] <= 0.0 {
-                fixed[els.nodes[e][k]] = true;
-            }
-        }
-        if els.order == ElementOrder::Quadratic {
-            for (k, [a, b]) in EDGES.iter().enumerate() {
-                let (na, nb) = (els.nodes[e][*a], els.nodes[e][*b]);
-                let on_axis = axisym && x[*a][0] <= 0.0 && x[*b][0] <= 0.0;
-                if on_axis || (e < els.n_physical && fixed[na] && fixed[nb] && fixed_edges.contains(&(na.min(nb), na.max(nb)))) {
-                    fixed[els.nodes[e][3 + k]] = true;
-                }
-            }
-        }
-    }
-    if let Some(disk) = &mesh.exterior {
-        fixed[disk.global[disk.infinity]] = true;
-    }
-    fixed
-}
 
 /// The assembled linear system's structure, reused by every Newton step.
 pub struct System {
@@ -211,15 +48,7 @@ impl System {
             || Elements::from_mesh(mesh, order),
             || if quadratic { ordering::corner_ranks(mesh) } else { None },
         );
-        let fixed = fixed_nodes(mesh, &elements);
-        let mut dof_of_node = vec![NONE; elements.n_nodes];
-        let mut n_dofs = 0;
-        for (n, f) in fixed.iter().enumerate() {
-            if !f {
-                dof_of_node[n] = n_dofs;
-                n_dofs += 1;
-            }
-        }
+        let DofMap { mut dof_of_node, n_dofs } = DofMap::new(&Constraints::of_mesh(mesh, &elements));
         // Linear elements (or no workspace for the ordering) leave the
         // ordering to AMD of the matrix: their corner graph is the matrix
         // graph, and its fixed corners made the factor 4 % larger.
@@ -492,11 +321,4 @@ pub fn element_load<'a>(kind: ElementKind, problem: &'a Problem, air: &'a Law) -
             tangent: Tangent::Exact,
         },
     }
-}
-
-/// The matrix would need more entries than a 32-bit slot addresses (or its
-/// pattern could not be formed): the mesh is far too fine.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub struct SystemTooLarge {
-    pub entries: usize,
 }

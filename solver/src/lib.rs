@@ -36,24 +36,22 @@
 pub mod assembly;
 pub mod bh_curve;
 mod buffer;
+pub mod constraints;
 pub mod element;
-pub mod energy;
-pub mod flux;
-pub mod force;
 pub mod linear_system;
 mod locate;
-pub mod magnet_check;
 pub mod material;
 pub mod newton;
 pub mod newton_step;
 mod ordering;
-mod pattern;
+pub mod pattern;
+pub mod post;
 pub mod problem;
 pub mod quadrature;
 mod reduction;
 mod segment_grid;
 pub mod solution;
-pub mod stray;
+pub mod space;
 
 pub use bh_curve::{BhCurve, CurveError};
 pub use material::Law;

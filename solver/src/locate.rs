@@ -1,7 +1,7 @@
 //! Point location in the physical triangles with a uniform bucket grid.
 
-use crate::assembly::Elements;
 use crate::element::barycentric;
+use crate::space::Elements;
 
 /// A bucket grid over the physical triangles.
 pub struct Locator {

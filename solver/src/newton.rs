@@ -3,11 +3,12 @@
 //! fresh Cholesky factorization or by conjugate gradients preconditioned
 //! with an earlier one (newton_step), then a line search on the field energy.
 
-use crate::assembly::{System, NONE};
+use crate::assembly::System;
 use crate::linear_system::{CholeskySolver, LinearError};
 use crate::material::Tangent;
 use crate::newton_step::TangentSolver;
 use crate::problem::Problem;
+use crate::space::NONE;
 use std::time::Instant;
 
 /// What happened during a solve: the soft outcome and where the time went.
@@ -71,8 +72,8 @@ impl std::fmt::Display for SolveError {
 
 impl std::error::Error for SolveError {}
 
-impl From<crate::assembly::SystemTooLarge> for SolveError {
-    fn from(e: crate::assembly::SystemTooLarge) -> Self {
+impl From<crate::pattern::SystemTooLarge> for SolveError {
+    fn from(e: crate::pattern::SystemTooLarge) -> Self {
         SolveError::TooLarge { entries: e.entries }
     }
 }

@@ -10,8 +10,8 @@
 //! buffer at every numeric factorization: 9 % of a 1e6-unknown linear solve
 //! in a profile, most of it page faults).
 
-use crate::assembly::{Elements, NONE};
 use crate::element::EDGES;
+use crate::space::{Elements, NONE};
 use faer::dyn_stack::{MemBuffer, MemStack};
 use faer::sparse::linalg::amd;
 use faer::sparse::SymbolicSparseColMatRef;

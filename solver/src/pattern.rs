@@ -3,11 +3,20 @@
 //! mesh from the elements each unknown belongs to: every column is gathered
 //! on its own, so the columns are split between threads.
 
-use crate::assembly::{Elements, SystemTooLarge, NONE, NO_SLOT};
 use crate::element::MAX_NODES;
+use crate::space::{Elements, NONE};
 use nalgebra_sparse::pattern::SparsityPattern;
 use rayon::prelude::*;
 use std::sync::atomic::{AtomicU32, Ordering};
+
+/// Marks an element entry that has no slot.
+pub const NO_SLOT: u32 = u32::MAX;
+/// The matrix would need more entries than a 32-bit slot addresses (or its
+/// pattern could not be formed): the mesh is far too fine.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct SystemTooLarge {
+    pub entries: usize,
+}
 
 /// Columns handed to a thread at a time.
 const COLUMN_CHUNK: usize = 4096;

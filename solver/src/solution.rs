@@ -5,12 +5,13 @@
 //! the point's own side is used, and a point exactly on an interface takes
 //! the part listed later in the case.
 
-use crate::assembly::{element_load, ElementKind, Elements, System};
+use crate::assembly::{element_load, System};
 use crate::element::{flux_density, point_op, potential, Placement};
 use crate::locate::Locator;
 use crate::material::Law;
 use crate::newton::{newton_solve, SolveError, SolveReport};
 use crate::problem::Problem;
+use crate::space::{ElementKind, Elements};
 use mesher::Symmetry;
 
 /// The solved state of a problem.

@@ -6,7 +6,8 @@ use crate::materials::Material;
 use crate::model::Model;
 use crate::results::{MagnetResult, StrayResult};
 use mesher::Symmetry;
-use solver::{magnet_check, stray, Solution};
+use solver::post::{magnet_check, stray};
+use solver::Solution;
 use std::collections::BTreeMap;
 
 /// The knee of a square-loop magnet lies where H reaches this fraction of

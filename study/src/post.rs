@@ -6,8 +6,9 @@ use crate::materials::Material;
 use crate::model::{Bound, FluxSpec, Model, ProbeShape};
 use crate::results::*;
 use mesher::Symmetry;
-use solver::assembly::ElementKind;
-use solver::{energy, flux, force, Solution};
+use solver::post::{energy, flux, force};
+use solver::space::ElementKind;
+use solver::Solution;
 use std::collections::BTreeMap;
 
 /// Everything about a solved study.
@@ -275,16 +276,14 @@ fn part_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f64
         .into_par_iter()
         .filter_map(|e| {
             let ElementKind::Part(i) = els.kinds[e] else { return None };
-            let a = els.gather(e, &sol.reduced);
             let mut st = (i, 0.0f64, 0.0, 0.0, 0.0);
-            solver::element::for_each_point(&els.coords[e], els.order, sol.symmetry(), sol.placement(e), |op| {
-                let b = solver::element::flux_density(op, &a, sol.background(e));
-                let bm = b[0].hypot(b[1]);
+            solver::post::integrate::for_each_field_point(sol, e, |p| {
+                let bm = p.b[0].hypot(p.b[1]);
                 st.1 = st.1.max(bm);
-                st.2 += bm * op.weight;
-                st.3 += op.weight;
+                st.2 += bm * p.weight;
+                st.3 += p.weight;
                 if knees[i].is_some_and(|k| bm > k) {
-                    st.4 += op.weight;
+                    st.4 += p.weight;
                 }
             });
             Some(st)

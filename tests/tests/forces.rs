@@ -1,7 +1,7 @@
 //! Forces, flux linkage, inductance and energy against closed forms.
 
 use mesher::{OuterBoundary, Refinement, Symmetry};
-use solver::force::force_on;
+use solver::post::force::force_on;
 use validation::reference::*;
 use validation::*;
 
@@ -100,8 +100,8 @@ fn long_solenoid_inductance_and_energy() {
     let winding = coil(rect(a - t / 2.0, -l / 2.0, a + t / 2.0, l / 2.0), 0.0001, j);
     let (lambda, energy) = solve_with(Symmetry::Axisymmetric, vec![winding], vec![], OuterBoundary::Open, [0.0; 2], |sol| {
         (
-            solver::flux::winding_linkage(sol, &[(0, 1.0)], turns),
-            solver::energy::stored_energy(sol).stored,
+            solver::post::flux::winding_linkage(sol, &[(0, 1.0)], turns),
+            solver::post::energy::stored_energy(sol).stored,
         )
     });
     let inductance = lambda / current;
@@ -133,8 +133,8 @@ fn coaxial_line_inductance_per_length_and_energy() {
     );
     let (lambda, energy) = solve_with(Symmetry::Planar, vec![outer, gap, inner], vec![], OuterBoundary::Open, [0.0; 2], |sol| {
         (
-            solver::flux::winding_linkage(sol, &[(2, 1.0), (0, -1.0)], 1.0),
-            solver::energy::stored_energy(sol).stored,
+            solver::post::flux::winding_linkage(sol, &[(2, 1.0), (0, -1.0)], 1.0),
+            solver::post::energy::stored_energy(sol).stored,
         )
     });
     let inductance = lambda / current;
@@ -410,7 +410,7 @@ fn coupling_torque_is_the_coenergy_derivative() {
     };
     for theta in [30.0, 100.0] {
         let torque = solve(theta, &|sol| force_on(sol, &[0], [-0.008, 0.0]).torque);
-        let coenergy = |t: f64| solve(t, &|sol| solver::energy::stored_energy(sol).coenergy);
+        let coenergy = |t: f64| solve(t, &|sol| solver::post::energy::stored_energy(sol).coenergy);
         let h = 0.25f64;
         let derivative = (coenergy(theta + h) - coenergy(theta - h)) / (2.0 * h.to_radians());
         eprintln!(

@@ -58,7 +58,7 @@ fn toroidal_core_flux_matches_amperes_law() {
         let fe = solve_with(Symmetry::Planar, vec![core, hole, wire], vec![], OuterBoundary::Open, [0.0; 2], |sol| {
             // The wire's polygon area differs from pi rc^2 by the chord error: scale to the meshed current.
             let meshed = sol.problem.mesh.part_areas(3)[2] * sol.problem.current_density[2];
-            (solver::flux::line_flux(sol, [r1, 0.0], [r2, 0.0]).unwrap().abs(), meshed)
+            (solver::post::flux::line_flux(sol, [r1, 0.0], [r2, 0.0]).unwrap().abs(), meshed)
         });
         let (g, w) = gauss_legendre_8();
         let n = 200;

@@ -1,8 +1,8 @@
 //! Flux across lines and flux linkage of windings.
 
-use crate::assembly::ElementKind;
-use crate::element::for_each_point;
+use super::integrate::for_each_potential_point;
 use crate::solution::Solution;
+use crate::space::ElementKind;
 use mesher::Symmetry;
 
 /// Flux across the line from `a` to `b`: planar, A(b) - A(a) per metre of
@@ -30,15 +30,11 @@ pub fn winding_linkage(solution: &Solution, parts: &[(usize, f64)], turns: f64) 
             if els.kinds[e] != ElementKind::Part(part) {
                 continue;
             }
-            let mut a = [0.0; crate::element::MAX_NODES];
-            for (k, &n) in els.element_nodes(e).iter().enumerate() {
-                a[k] = solution.node_potential(n);
-            }
-            for_each_point(&els.coords[e], els.order, solution.symmetry(), solution.placement(e), |op| {
-                integral += op.weight * crate::element::potential(op, &a);
-                area += op.weight
+            for_each_potential_point(solution, e, |x, weight, a| {
+                integral += weight * a;
+                area += weight
                     * if solution.symmetry() == Symmetry::Axisymmetric {
-                        1.0 / (2.0 * std::f64::consts::PI * op.x[0])
+                        1.0 / (2.0 * std::f64::consts::PI * x[0])
                     } else {
                         1.0
                     };

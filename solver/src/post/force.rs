@@ -7,9 +7,9 @@
 //! than one element keeps the integral away from the field singularities at
 //! the parts' corners and averages the discretization error.
 
-use crate::assembly::ElementKind;
-use crate::element::for_each_point;
+use super::integrate::{element_sum, for_each_field_point};
 use crate::solution::Solution;
+use crate::space::ElementKind;
 use crate::NU0;
 use mesher::{BoundaryTag, Symmetry};
 
@@ -46,7 +46,7 @@ pub fn force_on(solution: &Solution, parts: &[usize], torque_center: [f64; 2]) -
     let weight = band_weight(solution, &in_set_node, &other, &in_set);
     let contact = (0..n_nodes).any(|n| in_set_node[n] && other[n]) || touches_outer_boundary(solution, &in_set_node);
     let axisym = solution.symmetry() == Symmetry::Axisymmetric;
-    let [fx, fy, mut torque] = crate::reduction::ordered_sum(els.n_physical, |e| {
+    let [fx, fy, mut torque] = element_sum(els.n_physical, |e| {
         let mut sum = [0.0; 3];
         let g = corners(e).map(|n| weight[n]);
         if els.kinds[e] != ElementKind::Air || g.iter().all(|&v| v == 0.0) {
@@ -54,9 +54,8 @@ pub fn force_on(solution: &Solution, parts: &[usize], torque_center: [f64; 2]) -
         }
         let (dn, _) = crate::element::barycentric_gradients(&els.coords[e]);
         let grad = [0, 1].map(|k| g[0] * dn[0][k] + g[1] * dn[1][k] + g[2] * dn[2][k]);
-        let a = els.gather(e, &solution.reduced);
-        for_each_point(&els.coords[e], els.order, solution.symmetry(), solution.placement(e), |op| {
-            let b = crate::element::flux_density(op, &a, solution.problem.applied_field);
+        for_each_field_point(solution, e, |p| {
+            let (b, op) = (p.b, p);
             let half = 0.5 * (b[0] * b[0] + b[1] * b[1]);
             let t = [[b[0] * b[0] - half, b[0] * b[1]], [b[0] * b[1], b[1] * b[1] - half]];
             let tg = [0, 1].map(|i| -NU0 * (t[i][0] * grad[0] + t[i][1] * grad[1]) * op.weight);

@@ -1,9 +1,9 @@
 //! The working point of a magnet: B and H along its magnetization at every
 //! quadrature point, the margin to the knee, and the permeance coefficient.
 
-use crate::assembly::ElementKind;
-use crate::element::{flux_density, for_each_point};
+use super::integrate::for_each_field_point;
 use crate::solution::Solution;
+use crate::space::ElementKind;
 use crate::MU0;
 
 /// What the magnet check reports for one part.
@@ -29,7 +29,6 @@ pub struct WorkingPoint {
 /// against a knee at field strength `knee_h` (negative, A/m).
 pub fn working_point(solution: &Solution, part: usize, dir: [f64; 2], knee_h: f64) -> WorkingPoint {
     let els = &solution.elements;
-    let law = solution.law(ElementKind::Part(part));
     let (mut vol, mut sb, mut sh, mut past) = (0.0, 0.0, 0.0, 0.0);
     let mut worst = f64::INFINITY;
     let mut points = Vec::new();
@@ -37,17 +36,15 @@ pub fn working_point(solution: &Solution, part: usize, dir: [f64; 2], knee_h: f6
         if els.kinds[e] != ElementKind::Part(part) {
             continue;
         }
-        let a = els.gather(e, &solution.reduced);
-        for_each_point(&els.coords[e], els.order, solution.symmetry(), solution.placement(e), |op| {
-            let b = flux_density(op, &a, solution.background(e));
-            let h = law.response(b).h;
+        for_each_field_point(solution, e, |p| {
+            let (b, h) = (p.b, p.h());
             let (bp, hp) = (b[0] * dir[0] + b[1] * dir[1], h[0] * dir[0] + h[1] * dir[1]);
-            vol += op.weight;
-            sb += bp * op.weight;
-            sh += hp * op.weight;
+            vol += p.weight;
+            sb += bp * p.weight;
+            sh += hp * p.weight;
             worst = worst.min(hp);
             if hp < knee_h {
-                past += op.weight;
+                past += p.weight;
             }
             points.push([hp, bp]);
         });

@@ -1,0 +1,22 @@
+//! Stored magnetic energy and co-energy: the integral over all space
+//! (the Kelvin-mapped exterior included) of w = integral of H dB.
+
+use super::integrate::integrate;
+use crate::solution::Solution;
+
+/// Energy and co-energy, J (planar: per metre of depth).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Energy {
+    pub stored: f64,
+    pub coenergy: f64,
+}
+
+/// Energy and co-energy of the solution.
+pub fn stored_energy(solution: &Solution) -> Energy {
+    let [stored, coenergy] = integrate(solution, false, |p| {
+        let w = p.law.energy_density(p.b);
+        let h = p.h();
+        [p.weight * w, p.weight * (h[0] * p.b[0] + h[1] * p.b[1] - w)]
+    });
+    Energy { stored, coenergy }
+}
