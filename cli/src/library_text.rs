@@ -28,8 +28,8 @@ pub fn entry(e: &Entry) -> String {
             for p in curve {
                 s += &format!("    {:>10.1} {:>7.4}\n", p[0], p[1]);
             }
-            if let Ok(c) = solver::BhCurve::new(curve) {
-                s += &format!("  knee (differential permeability fallen to a tenth of its peak): {:.2} T\n", c.knee_b());
+            if let Some(k) = study::materials::knee(curve) {
+                s += &format!("  knee (differential permeability fallen to a tenth of its peak): {k:.2} T\n");
             }
         }
         Material::Magnet(g) => {

@@ -7,6 +7,7 @@ use crate::spec::{MeshSpec, OuterBoundary, Refinement};
 /// The closed outline of the physical domain, counter-clockwise.
 #[derive(Clone, Debug)]
 pub struct Domain {
+    /// The outline, counter-clockwise, as points.
     pub outline: Vec<[f64; 2]>,
     /// Centre and radius of the disk for an open boundary.
     pub kelvin: Option<([f64; 2], f64)>,
@@ -18,6 +19,7 @@ pub struct Domain {
 const RIM_SEGMENTS: usize = 64;
 
 impl Domain {
+    /// The domain around the parts: a disk for an open study, the given or a default box otherwise.
     pub fn enclosing(spec: &MeshSpec, polygons: &[Vec<[f64; 2]>]) -> Result<Domain, MeshError> {
         let part_points = polygons.iter().flatten().copied();
         let (lo, hi) = bbox(part_points.clone());
@@ -65,6 +67,7 @@ impl Domain {
         }
     }
 
+    /// Area of the outline.
     pub fn area(&self) -> f64 {
         crate::geometry::signed_area(&self.outline).abs()
     }

@@ -5,16 +5,66 @@ use std::fmt;
 /// A geometry or meshing failure, always caused by the input.
 #[derive(Clone, Debug, PartialEq)]
 pub enum MeshError {
-    TooFewPoints { part: usize, count: usize },
-    RepeatedPoint { part: usize, index: usize },
-    SelfIntersection { part: usize, edges: [usize; 2] },
-    ZeroArea { part: usize },
-    AcrossAxis { part: usize },
-    NotFinite { part: usize },
-    BadSize { part: usize, size: f64 },
-    OutOfRange { part: usize, extent: f64 },
-    TooManyTriangles { estimate: f64, limit: usize },
+    /// A part outline with fewer than three points.
+    TooFewPoints {
+        /// part index in the spec
+        part: usize,
+        /// points given
+        count: usize,
+    },
+    /// Two consecutive points of an outline coincide.
+    RepeatedPoint {
+        /// part index in the spec
+        part: usize,
+        /// index of the repeated point
+        index: usize,
+    },
+    /// Two edges of an outline cross.
+    SelfIntersection {
+        /// part index in the spec
+        part: usize,
+        /// the crossing edges, by their first point
+        edges: [usize; 2],
+    },
+    /// An outline encloses no area.
+    ZeroArea {
+        /// part index in the spec
+        part: usize,
+    },
+    /// An axisymmetric part reaches r < 0.
+    AcrossAxis {
+        /// part index in the spec
+        part: usize,
+    },
+    /// A coordinate is NaN or infinite.
+    NotFinite {
+        /// part index in the spec
+        part: usize,
+    },
+    /// A mesh size is not a positive finite length.
+    BadSize {
+        /// part index in the spec
+        part: usize,
+        /// the size given
+        size: f64,
+    },
+    /// A part is absurdly large or small for the others.
+    OutOfRange {
+        /// part index in the spec
+        part: usize,
+        /// its extent
+        extent: f64,
+    },
+    /// The mesh would exceed the triangle limit.
+    TooManyTriangles {
+        /// estimated triangles
+        estimate: f64,
+        /// the limit
+        limit: usize,
+    },
+    /// The triangulation itself failed (message from the Delaunay step).
     Triangulation(String),
+    /// The spec has no part.
     NoParts,
 }
 

@@ -17,7 +17,9 @@ use spade::{DelaunayTriangulation, Point2, Triangulation};
 /// The exterior disk, in its own (mapped) coordinates.
 #[derive(Clone, Debug)]
 pub struct ExteriorDisk {
+    /// Centre of the domain circle and of the mapped disk.
     pub center: [f64; 2],
+    /// Radius of both.
     pub radius: f64,
     /// Mapped coordinates of the disk's local nodes.
     pub mapped: Vec<[f64; 2]>,

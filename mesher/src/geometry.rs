@@ -231,10 +231,12 @@ pub fn point_segment_distance_squared(p: [f64; 2], a: [f64; 2], b: [f64; 2]) -> 
     d[0] * d[0] + d[1] * d[1]
 }
 
+/// Euclidean distance.
 pub fn dist(a: [f64; 2], b: [f64; 2]) -> f64 {
     (a[0] - b[0]).hypot(a[1] - b[1])
 }
 
+/// Lower-left and upper-right corners of the points.
 pub fn bbox(points: impl IntoIterator<Item = [f64; 2]>) -> ([f64; 2], [f64; 2]) {
     let mut lo = [f64::INFINITY; 2];
     let mut hi = [f64::NEG_INFINITY; 2];

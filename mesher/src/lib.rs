@@ -17,6 +17,8 @@
 //!   axisymmetric and three dimensional magnetic and electric field
 //!   problems, IEEE Trans. Magn. 25(5), 1989.
 
+#![warn(missing_docs)]
+
 mod domain;
 mod error;
 mod exterior;

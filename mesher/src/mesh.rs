@@ -6,6 +6,7 @@ use crate::geometry::{orient, Symmetry};
 /// What a triangle of the physical domain is made of.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
 pub enum Region {
+    /// Air (no part).
     Air,
     /// Index of the part in the order of the case file.
     Part(usize),
@@ -30,33 +31,45 @@ pub enum BoundaryTag {
 /// only to the Kelvin-mapped exterior and have no physical position.
 #[derive(Clone, Debug)]
 pub struct Mesh {
+    /// Planar or axisymmetric.
     pub symmetry: Symmetry,
+    /// Node positions.
     pub nodes: Vec<[f64; 2]>,
+    /// Nodes of the physical domain (the exterior disk adds its own after them).
     pub n_physical: usize,
     /// Counter-clockwise node triples of the physical domain.
     pub triangles: Vec<[usize; 3]>,
+    /// Region of each triangle.
     pub regions: Vec<Region>,
+    /// Tagged boundary edges.
     pub boundary: Vec<([usize; 2], BoundaryTag)>,
+    /// The Kelvin-mapped exterior disk of an open study.
     pub exterior: Option<ExteriorDisk>,
 }
 
 /// Summary figures of a mesh.
 #[derive(Clone, Debug)]
 pub struct MeshQuality {
+    /// Smallest angle of any triangle, degrees.
     pub min_angle_deg: f64,
+    /// Smallest triangle area.
     pub min_area: f64,
+    /// Total area of the physical triangles.
     pub total_area: f64,
 }
 
 impl Mesh {
+    /// Number of nodes (physical and exterior).
     pub fn n_nodes(&self) -> usize {
         self.nodes.len()
     }
 
+    /// The corner positions of triangle t.
     pub fn triangle_points(&self, t: usize) -> [[f64; 2]; 3] {
         self.triangles[t].map(|n| self.nodes[n])
     }
 
+    /// Area of triangle t.
     pub fn triangle_area(&self, t: usize) -> f64 {
         let [a, b, c] = self.triangle_points(t);
         0.5 * orient(a, b, c)
@@ -87,6 +100,7 @@ impl Mesh {
         areas
     }
 
+    /// Quality figures of the physical triangles.
     pub fn quality(&self) -> MeshQuality {
         let mut q = MeshQuality {
             min_angle_deg: 180.0,

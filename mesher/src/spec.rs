@@ -16,16 +16,31 @@ pub const GRADING_RANGE: (f64, f64) = (1.05, 3.0);
 /// Planar studies use (x, y); axisymmetric studies use (r, z) with r >= 0.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Symmetry {
+    /// Cross-section of a long assembly: points are (x, y).
     Planar,
+    /// Body of revolution about the z axis: points are (r, z).
     Axisymmetric,
 }
 
 /// A part's outline as the case file gives it.
 #[derive(Clone, Debug, PartialEq)]
 pub enum Shape {
+    /// A closed polygon, its points in order.
     Polygon(Vec<[f64; 2]>),
-    Rect { from: [f64; 2], to: [f64; 2] },
-    Circle { center: [f64; 2], radius: f64 },
+    /// An axis-aligned rectangle between two corners.
+    Rect {
+        /// one corner
+        from: [f64; 2],
+        /// the opposite corner
+        to: [f64; 2],
+    },
+    /// A circle (chords bounded by a sagitta).
+    Circle {
+        /// its centre
+        center: [f64; 2],
+        /// its radius
+        radius: f64,
+    },
 }
 
 /// How the outside of the model is closed.
@@ -35,29 +50,53 @@ pub enum OuterBoundary {
     /// mapped by the Kelvin transformation onto a second disk.
     Open,
     /// A = 0 on a box. `None` picks a box twice the size of the parts.
-    FluxParallel { from_to: Option<([f64; 2], [f64; 2])> },
+    /// Zero potential (flux parallel) on a box.
+    FluxParallel {
+        /// two corners of the box; None picks twice the parts' extent
+        from_to: Option<([f64; 2], [f64; 2])>,
+    },
 }
 
 /// One part to be meshed: a shape and the target edge length in and near it.
 #[derive(Clone, Debug)]
 pub struct PartSpec {
+    /// The outline.
     pub shape: Shape,
+    /// Target edge length in and near the part.
     pub mesh_size: f64,
 }
 
 /// Something that is not a part but wants a fine mesh near it (a probe).
 #[derive(Clone, Debug)]
 pub enum Refinement {
-    Point { at: [f64; 2], size: f64 },
-    Line { from: [f64; 2], to: [f64; 2], size: f64 },
+    /// A point to be resolved finely.
+    Point {
+        /// the point
+        at: [f64; 2],
+        /// target edge length there
+        size: f64,
+    },
+    /// A segment to be resolved finely.
+    Line {
+        /// one end
+        from: [f64; 2],
+        /// the other end
+        to: [f64; 2],
+        /// target edge length along it
+        size: f64,
+    },
 }
 
 /// Everything the mesher needs, in consistent length units (metres in practice).
 #[derive(Clone, Debug)]
 pub struct MeshSpec {
+    /// Planar or axisymmetric.
     pub symmetry: Symmetry,
+    /// The parts, later ones covering earlier ones where they overlap.
     pub parts: Vec<PartSpec>,
+    /// Places other than parts that want a fine mesh.
     pub refinements: Vec<Refinement>,
+    /// How the outside is closed.
     pub outer: OuterBoundary,
     /// Minimum angle of every triangle, degrees (clamped to [`MIN_ANGLE_RANGE`]).
     pub min_angle_deg: f64,

@@ -3,6 +3,7 @@
 //! compressed lower triangle.
 
 use crate::constraints::Constraints;
+use crate::dofs::DofMap;
 use crate::element::{element_residual, element_system, ElementLoad, ElementOrder, LocalSystem, MAX_NODES};
 use crate::linear_system::symmetric_product;
 use crate::linear_system::Elimination;
@@ -10,7 +11,7 @@ use crate::material::{Law, Tangent};
 use crate::ordering;
 use crate::pattern::{build_pattern, SystemTooLarge, NO_SLOT, PAIRS};
 use crate::problem::Problem;
-use crate::space::{DofMap, ElementKind, Elements, NONE};
+use crate::space::{ElementKind, Elements, NONE};
 use mesher::Mesh;
 use nalgebra_sparse::CscMatrix;
 use rayon::prelude::*;
@@ -20,8 +21,11 @@ const BLOCK: usize = 1 << 14;
 
 /// The assembled linear system's structure, reused by every Newton step.
 pub struct System {
+    /// The element table.
     pub elements: Elements,
+    /// Unknown of each node (NONE where fixed), in elimination order.
     pub dof_of_node: Vec<usize>,
+    /// Number of unknowns.
     pub n_dofs: usize,
     /// Lower triangle of the tangent, compressed by columns.
     pub matrix: CscMatrix<f64>,

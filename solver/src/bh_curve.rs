@@ -29,11 +29,25 @@ const BUCKETS: usize = 256;
 /// Why a B-H table was refused; `row` counts from 0 in the table given.
 #[derive(Clone, Debug, PartialEq)]
 pub enum CurveError {
+    /// Fewer than the points a curve needs (the count given).
     TooFewPoints(usize),
-    NotFinite { row: usize },
+    /// A value is NaN or infinite.
+    NotFinite {
+        /// the row
+        row: usize,
+    },
+    /// The first row is not (0, 0).
     DoesNotStartAtOrigin,
-    NotIncreasing { row: usize },
-    SlopeBelowMu0 { row: usize },
+    /// H or B does not rise from the previous row.
+    NotIncreasing {
+        /// the row
+        row: usize,
+    },
+    /// The slope falls below mu0 (not a physical soft material).
+    SlopeBelowMu0 {
+        /// the row
+        row: usize,
+    },
 }
 
 impl std::fmt::Display for CurveError {

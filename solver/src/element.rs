@@ -18,11 +18,14 @@ pub const MAX_NODES: usize = 6;
 /// Polynomial order of the potential in each triangle.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum ElementOrder {
+    /// Three-node triangles, potential linear.
     Linear,
+    /// Six-node triangles, potential quadratic.
     Quadratic,
 }
 
 impl ElementOrder {
+    /// Nodes per element: 3 or 6.
     pub fn n_nodes(self) -> usize {
         match self {
             ElementOrder::Linear => 3,
@@ -37,10 +40,13 @@ pub const EDGES: [[usize; 2]; 3] = [[0, 1], [1, 2], [2, 0]];
 /// Where a triangle lives, which fixes its weight and background field.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub enum Placement {
+    /// Inside the physical domain.
     Physical,
     /// Kelvin-mapped exterior of the circle (centre, radius).
     Exterior {
+        /// Centre of the domain circle.
         center: [f64; 2],
+        /// Radius of the domain circle.
         radius: f64,
     },
 }
@@ -54,7 +60,9 @@ pub struct PointOp {
     pub g: [[f64; MAX_NODES]; 2],
     /// Shape function values.
     pub n: [f64; MAX_NODES],
+    /// Number of nodes in use (3 or 6).
     pub len: usize,
+    /// Position of the point.
     pub x: [f64; 2],
 }
 
@@ -197,6 +205,7 @@ pub fn potential(op: &PointOp, a: &[f64; MAX_NODES]) -> f64 {
 /// The sources and law that act in one element.
 #[derive(Clone, Copy, Debug)]
 pub struct ElementLoad<'a> {
+    /// The law of the element's material.
     pub law: &'a Law,
     /// Current density, A/m2 (out of the plane, or +phi).
     pub current_density: f64,

@@ -33,10 +33,13 @@
 //!
 //! Architecture invariant: no file, terminal, serde or clap code in this crate.
 
+#![warn(missing_docs)]
+
 pub mod assembly;
 pub mod bh_curve;
 mod buffer;
 pub mod constraints;
+pub mod dofs;
 pub mod element;
 pub mod linear_system;
 mod locate;

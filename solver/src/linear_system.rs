@@ -15,6 +15,7 @@ pub enum LinearError {
     /// The matrix is not positive definite: a region without a reference
     /// potential, or a non-physical material.
     NotPositiveDefinite,
+    /// The factor would not fit in memory.
     OutOfMemory,
 }
 
@@ -216,6 +217,7 @@ fn transposed(n: usize, col_offsets: &[u32], row_indices: &[u32]) -> (Vec<u32>, 
 
 /// The numeric values of a factorization, used with the solver that made them.
 pub enum Factor {
+    /// In double precision: solves exactly.
     Double(Vec<f64>),
     /// Rounded to single precision: a preconditioner only.
     Single(Vec<f32>),

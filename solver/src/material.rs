@@ -8,11 +8,21 @@ use std::sync::Arc;
 #[derive(Clone, Debug)]
 pub enum Law {
     /// H = B / (mu0 mu_r).
-    Linear { relative_permeability: f64 },
+    /// Linear material.
+    Linear {
+        /// mu_r
+        relative_permeability: f64,
+    },
     /// H = H(|B|) B/|B| from a B-H curve.
     Saturating(Arc<BhCurve>),
     /// Linear recoil line: H = (B - Br) / (mu0 mu_rec), remanence `br` in T.
-    Magnet { recoil_permeability: f64, br: [f64; 2] },
+    /// Permanent magnet on its recoil line.
+    Magnet {
+        /// relative recoil permeability
+        recoil_permeability: f64,
+        /// remanence vector, T
+        br: [f64; 2],
+    },
 }
 
 /// Which linearization of H(B) the Newton tangent uses.
@@ -31,17 +41,21 @@ pub enum Tangent {
 /// H at a point and the tangent dH/dB (symmetric 2x2).
 #[derive(Clone, Copy, Debug)]
 pub struct FieldResponse {
+    /// Field strength, A/m.
     pub h: [f64; 2],
+    /// Its derivative dH/dB (the tangent reluctivity).
     pub dh_db: [[f64; 2]; 2],
     /// Secant reluctivity |H|/|B| seen by the relative permeability output.
     pub nu: f64,
 }
 
 impl Law {
+    /// Air: mu_r = 1.
     pub fn air() -> Law {
         Law::Linear { relative_permeability: 1.0 }
     }
 
+    /// Whether the law is not affine in B (a saturating curve).
     pub fn is_nonlinear(&self) -> bool {
         matches!(self, Law::Saturating(_))
     }

@@ -14,15 +14,23 @@ use std::time::Instant;
 /// What happened during a solve: the soft outcome and where the time went.
 #[derive(Clone, Debug, Default)]
 pub struct SolveReport {
+    /// Whether the stopping rules were met.
     pub converged: bool,
+    /// Newton-Raphson iterations taken.
     pub iterations: usize,
     /// |residual| / |residual at zero potential| after each iteration (first entry: 1).
     pub residual_history: Vec<f64>,
+    /// Number of unknowns.
     pub n_dofs: usize,
+    /// Seconds spent building the matrix pattern.
     pub seconds_pattern: f64,
+    /// Seconds spent assembling.
     pub seconds_assembly: f64,
+    /// Seconds spent in symbolic analysis.
     pub seconds_symbolic: f64,
+    /// Seconds spent in numeric factorizations.
     pub seconds_numeric: f64,
+    /// Seconds spent in triangular solves and conjugate gradients.
     pub seconds_solve: f64,
     /// Numeric factorizations done (the rest of the steps reused one as a preconditioner).
     pub factorizations: usize,
@@ -31,6 +39,7 @@ pub struct SolveReport {
 }
 
 impl SolveReport {
+    /// The last relative residual.
     pub fn residual(&self) -> f64 {
         self.residual_history.last().copied().unwrap_or(0.0)
     }
@@ -39,13 +48,16 @@ impl SolveReport {
 /// Why the solver could not produce an answer at all.
 #[derive(Clone, Debug, PartialEq)]
 pub enum SolveError {
+    /// The linear solver failed.
     Linear(LinearError),
     /// The matrix is too large for this solver's indexing.
     TooLarge {
+        /// Entries the matrix would have.
         entries: usize,
     },
     /// A NaN or infinity appeared in the iterate.
     NotFinite {
+        /// The iteration where it appeared.
         iteration: usize,
     },
 }

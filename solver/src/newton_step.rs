@@ -37,11 +37,14 @@ const SLOW_RATE: f64 = 0.5;
 /// How one step was solved, for the report.
 #[derive(Clone, Copy, Debug, Default)]
 pub struct StepCost {
+    /// Seconds in numeric factorization.
     pub seconds_numeric: f64,
+    /// Seconds in solving.
     pub seconds_solve: f64,
     /// Numeric factorizations made (two when a single-precision factor was made but its
     /// iterations stalled, so that the step fell back to double precision).
     pub factorizations: usize,
+    /// Conjugate-gradient iterations.
     pub cg_iterations: usize,
 }
 

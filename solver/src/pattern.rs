@@ -15,6 +15,7 @@ pub const NO_SLOT: u32 = u32::MAX;
 /// pattern could not be formed): the mesh is far too fine.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct SystemTooLarge {
+    /// Entries the matrix would have.
     pub entries: usize,
 }
 

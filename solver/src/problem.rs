@@ -11,6 +11,7 @@ pub struct NewtonSettings {
     pub residual_tolerance: f64,
     /// ... and |update| / |potential| falls below this.
     pub update_tolerance: f64,
+    /// Most Newton-Raphson iterations.
     pub max_iterations: usize,
     /// Solve later Newton steps by conjugate gradients preconditioned with
     /// an earlier factorization (an inexact Newton method), refactorizing
@@ -40,6 +41,7 @@ impl Default for NewtonSettings {
 /// Everything the solver needs. Lengths in metres, SI throughout.
 #[derive(Clone, Debug)]
 pub struct Problem<'m> {
+    /// The mesh.
     pub mesh: &'m Mesh,
     /// Law of each part, by part index.
     pub laws: Vec<Law>,
@@ -47,7 +49,9 @@ pub struct Problem<'m> {
     pub current_density: Vec<f64>,
     /// Uniform applied flux density, T ([x, y] planar; [0, z] axisymmetric).
     pub applied_field: [f64; 2],
+    /// Element order.
     pub order: ElementOrder,
+    /// Stopping rules and step method.
     pub newton: NewtonSettings,
 }
 
@@ -64,6 +68,7 @@ impl<'m> Problem<'m> {
         }
     }
 
+    /// Whether any part follows a saturating curve.
     pub fn is_nonlinear(&self) -> bool {
         self.laws.iter().any(Law::is_nonlinear)
     }

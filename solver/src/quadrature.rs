@@ -2,7 +2,9 @@
 
 /// One rule: barycentric points and weights summing to 1.
 pub struct Rule {
+    /// Barycentric coordinates of the points.
     pub points: &'static [[f64; 3]],
+    /// Weights (summing to 1).
     pub weights: &'static [f64],
 }
 

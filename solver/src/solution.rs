@@ -16,10 +16,13 @@ use mesher::Symmetry;
 
 /// The solved state of a problem.
 pub struct Solution<'m> {
+    /// The problem solved.
     pub problem: Problem<'m>,
+    /// Its element table.
     pub elements: Elements,
     /// Reduced potential at every node (physical, midpoint and exterior), Wb/m.
     pub reduced: Vec<f64>,
+    /// How the solve went.
     pub report: SolveReport,
     locator: Locator,
     air: Law,
@@ -28,7 +31,9 @@ pub struct Solution<'m> {
 /// The field at a point.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct PointField {
+    /// Flux density, T.
     pub b: [f64; 2],
+    /// Field strength, A/m.
     pub h: [f64; 2],
     /// The part the point lies in, None for air.
     pub part: Option<usize>,
@@ -53,6 +58,7 @@ pub fn solve<'m>(problem: &Problem<'m>, progress: &dyn Fn(usize, f64)) -> Result
 }
 
 impl<'m> Solution<'m> {
+    /// Planar or axisymmetric.
     pub fn symmetry(&self) -> Symmetry {
         self.problem.mesh.symmetry
     }
@@ -62,10 +68,12 @@ impl<'m> Solution<'m> {
         self.reduced[n] + self.problem.applied_potential(self.elements.positions[n])
     }
 
+    /// The law of an element kind.
     pub fn law(&self, kind: ElementKind) -> &Law {
         element_load(kind, &self.problem, &self.air).law
     }
 
+    /// The applied field in element e (none in the exterior, where the reaction field alone is mapped).
     pub fn background(&self, e: usize) -> [f64; 2] {
         match self.elements.kinds[e] {
             ElementKind::Exterior => [0.0, 0.0],
@@ -130,6 +138,7 @@ impl<'m> Solution<'m> {
         Some(potential(&op, &self.elements.gather(e, &self.reduced)))
     }
 
+    /// Where element e lives (physical or mapped exterior).
     pub fn placement(&self, e: usize) -> Placement {
         self.elements.placement(e)
     }

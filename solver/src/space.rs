@@ -1,9 +1,8 @@
 //! The function space: the element table (corners, and edge midpoints for
-//! quadratic elements, numbered once per mesh) and the map from nodes to
-//! unknowns that the constraints leave free. Pattern, ordering and assembly
-//! read it; it depends on none of them.
+//! quadratic elements, numbered once per mesh) of the element order asked
+//! for. Constraints, the dof map, pattern, ordering and assembly read it;
+//! it depends on none of them.
 
-use crate::constraints::Constraints;
 use crate::element::{ElementOrder, Placement, EDGES, MAX_NODES};
 use mesher::{Mesh, Region};
 use rayon::prelude::*;
@@ -13,21 +12,28 @@ pub const NONE: usize = usize::MAX;
 /// What an element is made of.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub enum ElementKind {
+    /// Air of the physical domain.
     Air,
+    /// The part with this index.
     Part(usize),
+    /// The Kelvin-mapped exterior.
     Exterior,
 }
 
 /// The flat element table: physical triangles first, then the exterior disk.
 #[derive(Clone, Debug)]
 pub struct Elements {
+    /// Linear or quadratic.
     pub order: ElementOrder,
     /// Global node ids: corners, then edge midpoints (quadratic only).
     pub nodes: Vec<[usize; MAX_NODES]>,
     /// Corner coordinates in the element's own frame (mapped for the exterior).
     pub coords: Vec<[[f64; 2]; 3]>,
+    /// What each element is.
     pub kinds: Vec<ElementKind>,
+    /// Elements of the physical domain (they come first).
     pub n_physical: usize,
+    /// Centre and radius of the Kelvin disk of an open study.
     pub exterior: Option<([f64; 2], f64)>,
     /// Total node count (mesh nodes plus edge midpoints).
     pub n_nodes: usize,
@@ -36,6 +42,7 @@ pub struct Elements {
 }
 
 impl Elements {
+    /// The element table of a mesh at an order: midpoints numbered once per edge.
     pub fn from_mesh(mesh: &Mesh, order: ElementOrder) -> Elements {
         let mut corners: Vec<[usize; 3]> = mesh.triangles.clone();
         let mut coords: Vec<[[f64; 2]; 3]> = mesh.triangles.iter().map(|t| t.map(|n| mesh.nodes[n])).collect();
@@ -73,6 +80,7 @@ impl Elements {
         }
     }
 
+    /// Where element e lives.
     pub fn placement(&self, e: usize) -> Placement {
         match (self.kinds[e], self.exterior) {
             (ElementKind::Exterior, Some((center, radius))) => Placement::Exterior { center, radius },
@@ -80,10 +88,12 @@ impl Elements {
         }
     }
 
+    /// Number of elements.
     pub fn len(&self) -> usize {
         self.nodes.len()
     }
 
+    /// Whether there are none.
     pub fn is_empty(&self) -> bool {
         self.nodes.is_empty()
     }
@@ -134,34 +144,4 @@ fn add_midpoints(corners: &[[usize; 3]], coords: &[[[f64; 2]; 3]], positions: &m
         .enumerate()
         .map(|(e, c)| [c[0], c[1], c[2], mid[3 * e], mid[3 * e + 1], mid[3 * e + 2]])
         .collect()
-}
-
-/// The unknowns of a problem: each node's unknown (NONE where the
-/// constraints fix it) and their count.
-#[derive(Clone, Debug)]
-pub struct DofMap {
-    /// The unknown of every node, NONE for a fixed node.
-    pub dof_of_node: Vec<usize>,
-    /// Number of unknowns.
-    pub n_dofs: usize,
-}
-
-impl DofMap {
-    /// Numbers the free nodes in node order.
-    pub fn new(constraints: &Constraints) -> DofMap {
-        let mut dof_of_node = vec![NONE; constraints.fixed.len()];
-        let mut n_dofs = 0;
-        for (n, f) in constraints.fixed.iter().enumerate() {
-            if !f {
-                dof_of_node[n] = n_dofs;
-                n_dofs += 1;
-            }
-        }
-        DofMap { dof_of_node, n_dofs }
-    }
-
-    /// Values per unknown spread to every node (zero at fixed nodes).
-    pub fn expand(&self, x: &[f64]) -> Vec<f64> {
-        self.dof_of_node.iter().map(|&d| if d == NONE { 0.0 } else { x[d] }).collect()
-    }
 }

@@ -22,8 +22,10 @@ pub const IMPLANT_LEVEL: f64 = 0.5e-3;
 /// (about 0.418 A/m, a 2 degree compass deflection, at 2.1 m and 4.6 m) and
 /// the older, still quoted 0.159 A/m at 2.1 m. Both SECONDARY transcriptions.
 pub const IATA_CURRENT: f64 = 0.418;
+/// The older air-transport screen, A/m at 2.1 m.
 pub const IATA_LEGACY: f64 = 0.159;
 
+/// Each magnet's working point against its knee at the study temperature, with its values and warnings.
 pub fn magnet_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f64>, warnings: &mut Vec<String>) -> BTreeMap<String, MagnetResult> {
     let mut out = BTreeMap::new();
     for (i, p) in model.parts.iter().enumerate() {
@@ -87,6 +89,7 @@ fn onset_temperature(worst_h: f64, t0: f64, br_coeff: f64, hcj_coeff: f64, knee2
     (-100.0..=400.0).contains(&t).then_some(t)
 }
 
+/// The stray field: dipole moment, implant and reach distances, air-transport screen.
 pub fn stray_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f64>) -> StrayResult {
     let mut r = StrayResult {
         reach_level_t: model.reach_level,

@@ -11,6 +11,8 @@
 //! Architecture invariant: no files, no terminal, no clap, no serde_json
 //! here; a serde derive on the results sits behind the `serde` feature.
 
+#![warn(missing_docs)]
+
 pub mod checks;
 pub mod lower;
 pub mod materials;

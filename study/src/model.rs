@@ -8,7 +8,9 @@ use std::collections::BTreeMap;
 /// One study, ready to mesh and solve.
 #[derive(Clone, Debug)]
 pub struct Model {
+    /// Title, for reports.
     pub title: String,
+    /// Planar or axisymmetric.
     pub symmetry: Symmetry,
     /// Name and SI factor of the study's length unit.
     pub length_unit: (String, f64),
@@ -16,38 +18,57 @@ pub struct Model {
     pub depth: f64,
     /// Magnet temperature, degC.
     pub temperature: f64,
+    /// How the outside is closed.
     pub boundary: OuterBoundary,
+    /// Uniform applied flux density, T.
     pub applied_field: [f64; 2],
+    /// Mesh settings.
     pub mesh: MeshSettings,
+    /// The parts, later ones covering earlier ones.
     pub parts: Vec<Part>,
+    /// Field probes.
     pub probes: Vec<Probe>,
+    /// Forces asked for.
     pub forces: Vec<ForceSpec>,
+    /// Fluxes and windings asked for.
     pub fluxes: Vec<FluxSpec>,
+    /// Expectations on typed values.
     pub expects: Vec<Expect>,
+    /// Which output files to write.
     pub output: OutputFlags,
     /// Newton-Raphson stopping rules and step method (`[solver]`).
     pub newton: solver::NewtonSettings,
     /// Flux density below which the axis "reach" ends, T.
     pub reach_level: f64,
+    /// Parameter values of this variant.
     pub params: BTreeMap<String, f64>,
 }
 
+/// How the mesh is made.
 #[derive(Clone, Debug)]
 pub struct MeshSettings {
     /// Default target edge length in and near parts, m.
     pub size: f64,
+    /// Smallest triangle angle, degrees.
     pub min_angle: f64,
+    /// Size growth per element away from parts.
     pub grading: f64,
+    /// Most triangles allowed.
     pub max_elements: usize,
     /// 1 (linear) or 2 (quadratic) triangles.
     pub order: u32,
 }
 
+/// One part: outline, material, magnetization, current.
 #[derive(Clone, Debug)]
 pub struct Part {
+    /// Its unique name.
     pub name: String,
+    /// Its material entry.
     pub material: Entry,
+    /// Its outline, m.
     pub shape: Shape,
+    /// Target edge length in and near it, m.
     pub mesh_size: f64,
     /// Unit vector of magnetization (magnets only).
     pub magnetization: Option<[f64; 2]>,
@@ -55,41 +76,67 @@ pub struct Part {
     pub current: Option<f64>,
 }
 
+/// Where a probe samples the field.
 #[derive(Clone, Debug)]
 pub enum ProbeShape {
+    /// One point, m.
     Point([f64; 2]),
-    Line { from: [f64; 2], to: [f64; 2], points: usize },
+    /// Evenly spaced points on a segment.
+    Line {
+        /// first point, m
+        from: [f64; 2],
+        /// last point, m
+        to: [f64; 2],
+        /// number of points
+        points: usize,
+    },
 }
 
+/// A named field probe.
 #[derive(Clone, Debug)]
 pub struct Probe {
+    /// Its unique name.
     pub name: String,
+    /// Where it samples.
     pub shape: ProbeShape,
 }
 
+/// A force (and planar torque) on a set of parts.
 #[derive(Clone, Debug)]
 pub struct ForceSpec {
+    /// Its unique name.
     pub name: String,
+    /// The parts of the set, by index.
     pub parts: Vec<usize>,
+    /// Point the torque is taken about, m.
     pub torque_about: [f64; 2],
 }
 
+/// A flux to report.
 #[derive(Clone, Debug)]
 pub enum FluxSpec {
+    /// Flux across a line.
     Line {
+        /// Its unique name.
         name: String,
+        /// One end, m.
         from: [f64; 2],
+        /// The other end, m.
         to: [f64; 2],
     },
     /// Parts with the sign of their current, and the turn count.
     Winding {
+        /// Its unique name.
         name: String,
+        /// The parts (index) and the sign of the turns in each.
         parts: Vec<(usize, f64)>,
+        /// Number of turns.
         turns: f64,
     },
 }
 
 impl FluxSpec {
+    /// Its name.
     pub fn name(&self) -> &str {
         match self {
             FluxSpec::Line { name, .. } | FluxSpec::Winding { name, .. } => name,
@@ -97,33 +144,45 @@ impl FluxSpec {
     }
 }
 
+/// A bound on a value, in SI units.
 #[derive(Clone, Debug, PartialEq)]
 pub enum Bound {
+    /// At least this.
     Min(f64),
+    /// At most this.
     Max(f64),
+    /// Between these, both included.
     Between(f64, f64),
     /// Target and absolute tolerance.
     Near(f64, f64),
 }
 
+/// An expectation: a typed value and its bound.
 #[derive(Clone, Debug)]
 pub struct Expect {
     /// The value's name and unit, checked against the model when the case is read.
     pub value: ValueName,
+    /// The bound.
     pub bound: Bound,
     /// The bound as the case wrote it, for reports.
     pub text: String,
 }
 
+/// Which output files a run writes.
 #[derive(Clone, Debug)]
 pub struct OutputFlags {
+    /// field.vtu.
     pub vtk: bool,
+    /// mesh.svg and the pictures.
     pub plots: bool,
+    /// report.md.
     pub report: bool,
+    /// Probe CSV files.
     pub csv: bool,
 }
 
 impl Model {
+    /// Index of the part with this name.
     pub fn part_index(&self, name: &str) -> Option<usize> {
         self.parts.iter().position(|p| p.name == name)
     }

@@ -3,28 +3,44 @@
 
 use std::collections::BTreeMap;
 
+/// Everything about a solved study, SI units.
 #[derive(Clone, Debug)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct Results {
+    /// Format tag of results.json.
     pub format: &'static str,
+    /// The study as solved.
     pub study: StudyInfo,
+    /// The sweep variant, if one.
     #[cfg_attr(feature = "serde", serde(skip_serializing_if = "Option::is_none"))]
     pub variant: Option<VariantInfo>,
+    /// Mesh figures.
     pub mesh: MeshInfo,
+    /// Solve figures.
     pub solve: SolveInfo,
+    /// Probe fields by name.
     pub probes: BTreeMap<String, ProbeResult>,
+    /// Forces by name.
     pub forces: BTreeMap<String, ForceResult>,
+    /// Fluxes by name.
     pub flux: BTreeMap<String, FluxResult>,
+    /// Stored energy and co-energy.
     pub energy: EnergyResult,
+    /// Per-part flux density figures.
     pub parts: BTreeMap<String, PartResult>,
+    /// Magnet working points.
     pub magnets: BTreeMap<String, MagnetResult>,
+    /// The stray field.
     pub stray: StrayResult,
+    /// Each expectation's outcome.
     pub expect: Vec<ExpectResult>,
+    /// Design warnings.
     pub warnings: Vec<String>,
     /// Every scalar by its `[[expect]]` name, SI units.
     pub values: BTreeMap<String, f64>,
     /// The unit symbol of every value, from its type (empty for a ratio).
     pub units: BTreeMap<String, &'static str>,
+    /// The cautions every report carries.
     pub cautions: Vec<&'static str>,
 }
 
@@ -32,68 +48,103 @@ pub struct Results {
 #[derive(Clone, Debug, PartialEq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize, serde::Deserialize))]
 pub struct VariantInfo {
+    /// Its index in the sweep.
     pub index: usize,
+    /// Its folder name.
     pub label: String,
+    /// The swept parameters and their values.
     pub swept: Vec<(String, f64)>,
 }
 
+/// The study as solved.
 #[derive(Clone, Debug)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct StudyInfo {
+    /// Its title.
     pub title: String,
+    /// "planar" or "axisymmetric".
     pub geometry: &'static str,
+    /// Magnet temperature, degC.
     pub temperature_c: f64,
+    /// Out-of-plane depth, m (1 when axisymmetric).
     pub depth_m: f64,
+    /// Parameter values.
     pub parameters: BTreeMap<String, f64>,
 }
 
+/// Mesh figures.
 #[derive(Clone, Debug)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct MeshInfo {
+    /// Nodes, edge midpoints included.
     pub nodes: usize,
+    /// Triangles of the physical domain.
     pub elements: usize,
+    /// Unknowns solved for.
     pub unknowns: usize,
+    /// Element order.
     pub element_order: u32,
+    /// Smallest triangle angle, degrees.
     pub min_angle_deg: f64,
 }
 
+/// Solve figures.
 #[derive(Clone, Debug)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct SolveInfo {
+    /// Whether Newton-Raphson met its stopping rules.
     pub converged: bool,
+    /// Iterations taken.
     pub iterations: usize,
+    /// Last relative residual.
     pub residual: f64,
+    /// Relative residual after each iteration.
     pub residual_history: Vec<f64>,
     /// Numeric factorizations of the tangent (fewer than iterations when
     /// later steps reuse one as a conjugate-gradient preconditioner).
     pub factorizations: usize,
+    /// Conjugate-gradient iterations.
     pub cg_iterations: usize,
+    /// Wall time, s.
     pub seconds: f64,
 }
 
+/// A probe's samples.
 #[derive(Clone, Debug)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct ProbeResult {
+    /// Sample points, m.
     pub points: Vec<[f64; 2]>,
+    /// B at each, T (NaN outside the mesh).
     pub b: Vec<[f64; 2]>,
+    /// |B| at each, T.
     pub bmag: Vec<f64>,
+    /// H at each, A/m.
     pub h: Vec<[f64; 2]>,
 }
 
+/// A force result (whole depth when planar).
 #[derive(Clone, Debug)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct ForceResult {
+    /// Force vector, N.
     pub vector: [f64; 2],
+    /// Its magnitude, N.
     pub magnitude: f64,
+    /// Torque about the given point, N m (planar).
     #[cfg_attr(feature = "serde", serde(skip_serializing_if = "Option::is_none"))]
     pub torque: Option<f64>,
+    /// Whether the set touches other material or the outer boundary.
     pub contact: bool,
 }
 
+/// A flux result.
 #[derive(Clone, Debug)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct FluxResult {
+    /// Flux or flux linkage, Wb.
     pub wb: f64,
+    /// Turns of a winding.
     #[cfg_attr(feature = "serde", serde(skip_serializing_if = "Option::is_none"))]
     pub turns: Option<f64>,
     /// Apparent inductance: linkage over current (no magnets, no applied field).
@@ -104,24 +155,33 @@ pub struct FluxResult {
     pub incremental_inductance_h: Option<f64>,
 }
 
+/// Energy of the whole field.
 #[derive(Clone, Debug)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct EnergyResult {
+    /// Stored energy, J.
     pub stored_j: f64,
+    /// Co-energy, J.
     pub coenergy_j: f64,
 }
 
+/// Flux density figures of a part.
 #[derive(Clone, Debug)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct PartResult {
+    /// Its material's name.
     pub material: String,
+    /// Largest |B| at any quadrature point, T: a local value that follows the mesh at corners.
     pub b_max: f64,
+    /// Volume mean of |B|, T.
     pub b_mean: f64,
+    /// Knee of a soft material's curve, T.
     #[cfg_attr(feature = "serde", serde(skip_serializing_if = "Option::is_none"))]
     pub knee_t: Option<f64>,
     /// Volume share above the knee.
     #[cfg_attr(feature = "serde", serde(skip_serializing_if = "Option::is_none"))]
     pub saturated_share: Option<f64>,
+    /// Whether more than SATURATED_SHARE of it runs above its knee.
     #[cfg_attr(feature = "serde", serde(skip_serializing_if = "Option::is_none"))]
     pub saturated: Option<bool>,
 }
@@ -129,26 +189,38 @@ pub struct PartResult {
 /// Volume share above the knee from which a steel part counts as saturated.
 pub const SATURATED_SHARE: f64 = 0.05;
 
+/// A magnet's working point at the study temperature.
 #[derive(Clone, Debug)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct MagnetResult {
+    /// Its grade.
     pub grade: String,
+    /// Study temperature, degC.
     pub temperature_c: f64,
+    /// Remanence at that temperature, T.
     pub br_t: f64,
+    /// Intrinsic coercivity at that temperature, A/m.
     pub hcj_a_per_m: f64,
     /// Field strength of the knee along the magnetization (negative), A/m.
     pub knee_h_a_per_m: f64,
+    /// Margin to the knee at the worst point: 1 - H/H_knee (a local value).
     pub margin: f64,
+    /// Volume share past the knee.
     pub share_past_knee: f64,
+    /// Permeance coefficient from the volume means.
     pub permeance: f64,
+    /// Volume mean of B along the magnetization, T.
     pub mean_b_t: f64,
+    /// Volume mean of H along the magnetization, A/m.
     pub mean_h_a_per_m: f64,
     /// Temperature at which the worst point reaches the knee (linear model estimate).
     pub knee_onset_c: Option<f64>,
+    /// (H, B) along the magnetization at each quadrature point, for plots.
     #[cfg_attr(feature = "serde", serde(skip))]
     pub points: Vec<[f64; 2]>,
 }
 
+/// The stray field beyond the assembly.
 #[derive(Clone, Debug, Default)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct StrayResult {
@@ -156,23 +228,31 @@ pub struct StrayResult {
     pub moment_a_m2: Option<f64>,
     /// Distances from the assembly's centre where |B| falls to 0.5 mT, m.
     pub implant_distance_axis_m: Option<f64>,
+    /// Distance in the mid-plane where |B| falls to 0.5 mT, m.
     pub implant_distance_plane_m: Option<f64>,
     /// Distance along the axis where |B| falls to the reach level, m.
     pub reach_axis_m: Option<f64>,
+    /// The reach level, T.
     pub reach_level_t: f64,
     /// |H| at 2.1 m and 4.6 m (the larger of axis and mid-plane), A/m.
     pub h_at_2100mm_a_per_m: Option<f64>,
+    /// |H| at 4.6 m, A/m.
     pub h_at_4600mm_a_per_m: Option<f64>,
     /// Air-transport screen against the magnetized-material thresholds.
     pub air_transport: Option<String>,
 }
 
+/// One expectation's outcome.
 #[derive(Clone, Debug)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct ExpectResult {
+    /// The value's name.
     pub value: String,
+    /// The bound as written.
     pub bound: String,
+    /// The value found (None when the study did not report it).
     pub actual: Option<f64>,
+    /// Whether the bound holds.
     pub pass: bool,
 }
 

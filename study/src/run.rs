@@ -12,9 +12,21 @@ pub enum Stage {
     /// The mesh is being built.
     Meshing,
     /// The mesh is built: its corner nodes and triangles.
-    Meshed { corners: usize, triangles: usize },
+    /// The mesh is built.
+    Meshed {
+        /// corner nodes
+        corners: usize,
+        /// triangles
+        triangles: usize,
+    },
     /// A Newton-Raphson iteration finished with this relative residual.
-    Newton { iteration: usize, residual: f64 },
+    /// A Newton-Raphson iteration finished.
+    Newton {
+        /// its number
+        iteration: usize,
+        /// relative residual after it
+        residual: f64,
+    },
 }
 
 /// Meshes a model after checking that its probes lie where the mesh reaches.

@@ -2,7 +2,7 @@
 
 use super::svg::{chart, Chart};
 use solver::Solution;
-use study::materials::Material;
+use study::materials::{bh_points, h_at, Material};
 use study::model::{Model, ProbeShape};
 use study::results::Results;
 
@@ -42,16 +42,13 @@ pub fn pictures(model: &Model, sol: &Solution, r: &Results) -> Vec<(String, Stri
     for p in &model.parts {
         match &p.material.material {
             Material::Soft { curve } => {
-                let Ok(c) = solver::BhCurve::new(curve) else { continue };
                 let Some(pr) = r.parts.get(&p.name) else { continue };
                 let top = pr.b_max.max(curve.last().map_or(2.0, |q| q[1]));
-                let line: Vec<[f64; 2]> = (0..=200)
-                    .map(|k| {
-                        let b = top * k as f64 / 200.0;
-                        [c.h_of_b(b).0 / 1e3, b]
-                    })
-                    .collect();
-                let ops: Vec<[f64; 2]> = [pr.b_mean, pr.b_max].iter().map(|&b| [c.h_of_b(b).0 / 1e3, b]).collect();
+                let kilo = |v: Vec<[f64; 2]>| v.into_iter().map(|[h, b]| [h / 1e3, b]).collect::<Vec<_>>();
+                let (Some(line), Some(ops)) = (bh_points(curve, top, 200), h_at(curve, &[pr.b_mean, pr.b_max])) else {
+                    continue;
+                };
+                let (line, ops) = (kilo(line), kilo(ops));
                 let title = format!("part {} ({}): B-H curve and operating range (mean, peak)", p.name, p.material.name);
                 let svg = chart(&Chart {
                     title: &title,
@@ -65,9 +62,8 @@ pub fn pictures(model: &Model, sol: &Solution, r: &Results) -> Vec<(String, Stri
             }
             Material::Magnet(g) => {
                 let Some(m) = r.magnets.get(&p.name) else { continue };
-                let br = g.br_at(model.temperature);
                 let knee = m.knee_h_a_per_m;
-                let line = vec![[knee / 1e3, br + solver::MU0 * g.recoil_permeability * knee], [0.0, br]];
+                let line = vec![[knee / 1e3, g.recoil_b(knee, model.temperature)], [0.0, g.br_at(model.temperature)]];
                 let step = (m.points.len() / 400).max(1);
                 let pts: Vec<[f64; 2]> = m.points.iter().step_by(step).map(|q| [q[0] / 1e3, q[1]]).collect();
                 let title = format!(

@@ -207,16 +207,12 @@ pub fn material_plot(e: &study::materials::Entry) -> String {
     use study::materials::Material;
     match &e.material {
         Material::Soft { curve } => {
-            let mut pts: Vec<[f64; 2]> = Vec::new();
-            if let Ok(c) = solver::BhCurve::new(curve) {
-                let bmax = curve.last().map_or(2.0, |p| p[1]) * 1.05;
-                pts = (0..=200)
-                    .map(|i| {
-                        let b = bmax * i as f64 / 200.0;
-                        [c.h_of_b(b).0 / 1e3, b]
-                    })
-                    .collect();
-            }
+            let bmax = curve.last().map_or(2.0, |p| p[1]) * 1.05;
+            let pts: Vec<[f64; 2]> = study::materials::bh_points(curve, bmax, 200)
+                .unwrap_or_default()
+                .into_iter()
+                .map(|[h, b]| [h / 1e3, b])
+                .collect();
             let table: Vec<[f64; 2]> = curve.iter().map(|p| [p[0] / 1e3, p[1]]).collect();
             chart(&Chart {
                 title: &format!("{}: B-H curve", e.name),
@@ -231,15 +227,7 @@ pub fn material_plot(e: &study::materials::Entry) -> String {
             let temps = [20.0, 80.0, 150.0];
             let series = temps
                 .iter()
-                .map(|&t| {
-                    let br = g.br_at(t);
-                    let hcb = br / (solver::MU0 * g.recoil_permeability);
-                    let h_end = hcb.min(g.hcj_at(t));
-                    (
-                        format!("{t} degC"),
-                        vec![[-h_end / 1e3, br - solver::MU0 * g.recoil_permeability * h_end], [0.0, br]],
-                    )
-                })
+                .map(|&t| (format!("{t} degC"), g.recoil_line(t).map(|[h, b]| [h / 1e3, b]).to_vec()))
                 .collect();
             chart(&Chart {
                 title: &format!("{}: recoil line to the knee", e.name),

@@ -7,7 +7,9 @@ use crate::solution::Solution;
 /// Energy and co-energy, J (planar: per metre of depth).
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Energy {
+    /// Stored energy: the integral of the integral of H dB.
     pub stored: f64,
+    /// Co-energy: the integral of H . B minus the stored energy density.
     pub coenergy: f64,
 }
 

@@ -26,6 +26,7 @@ pub struct Force {
     pub contact: bool,
 }
 
+/// Maxwell-stress force on the parts (a set) and torque about `torque_center` (planar), per metre of depth when planar.
 pub fn force_on(solution: &Solution, parts: &[usize], torque_center: [f64; 2]) -> Force {
     let els = &solution.elements;
     let n_nodes = solution.reduced.len();

@@ -18,6 +18,7 @@ pub struct WorkingPoint {
     pub permeance: f64,
     /// Volume means of B and H along the magnetization (T, A/m).
     pub mean_b: f64,
+    /// Volume mean of H along the magnetization, A/m.
     pub mean_h: f64,
     /// The most demagnetizing H along the magnetization (A/m).
     pub worst_h: f64,

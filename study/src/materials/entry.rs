@@ -10,9 +10,17 @@ pub enum Material {
     /// Non-magnetic conductor that may carry a winding current (mu_r = 1).
     Conductor,
     /// Linear permeable material.
-    Linear { relative_permeability: f64 },
+    /// Linear permeable material.
+    Linear {
+        /// mu_r
+        relative_permeability: f64,
+    },
     /// Soft magnetic material with a B-H curve (H in A/m, B in T).
-    Soft { curve: Vec<[f64; 2]> },
+    /// Soft magnetic material with a B-H curve.
+    Soft {
+        /// rows [H (A/m), B (T)] from the origin
+        curve: Vec<[f64; 2]>,
+    },
     /// Permanent magnet, linear recoil line.
     Magnet(MagnetGrade),
 }
@@ -20,8 +28,11 @@ pub enum Material {
 /// A library or user entry.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Entry {
+    /// Its name as the case file writes it.
     pub name: String,
+    /// Family, for listings (NdFeB, steel, ...).
     pub family: String,
+    /// What it is physically.
     pub material: Material,
     /// Where the numbers come from, with the labels of docs/materials.md.
     pub source: String,

@@ -5,12 +5,14 @@
 //! minimum values, IEC 60404-8-1 and MMPA 0100, are not freely readable);
 //! source ids refer to the project's docs/materials.md.
 
+mod curves;
 mod entry;
 mod grade;
 mod library;
 mod magnets;
 mod soft;
 
+pub use curves::{bh_points, check_table, h_at, knee, CurveError};
 pub use entry::{Entry, Material};
 pub use grade::MagnetGrade;
 pub use library::{lookup, names};

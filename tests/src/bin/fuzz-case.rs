@@ -1,7 +1,7 @@
 //! Fuzz harness for the case reader: mutates the example cases for a given
 //! number of seconds and feeds each through parse, resolve and meshing,
 //! catching panics. Crashing inputs are written to tests/bad-cases/fuzz-*.toml
-//! for triage. Usage: cargo run --release -p validation --bin fuzz-case -- SECONDS [SEED]
+//! for triage. Usage: `cargo run --release -p validation --bin fuzz-case -- SECONDS [SEED]`
 
 use std::time::Instant;
 use validation::random::{mutate, read_case, Rng};

@@ -52,8 +52,8 @@ fn user_material(t: &Fields, ctx: &Context, dir: &Path, what: &str) -> Result<Ma
         let br_v = ctx.quantity(br, Kind::FluxDensity, &format!("{what} br"))?;
         let mu = match (t.get("mur"), t.get("hcb")) {
             (Some(m), None) => positive_number(m, &format!("{what} mur"))?,
-            (None, Some(h)) => br_v / (solver::MU0 * ctx.positive(h, Kind::FieldStrength, &format!("{what} hcb"))?),
-            (None, None) => 1.05,
+            (None, Some(h)) => MagnetGrade::recoil_permeability_from(br_v, ctx.positive(h, Kind::FieldStrength, &format!("{what} hcb"))?),
+            (None, None) => MagnetGrade::DEFAULT_RECOIL_PERMEABILITY,
             (Some(m), Some(_)) => {
                 return Err(Diagnostic::new(
                     format!("{what}: give either mur or hcb for a magnet, not both"),
@@ -136,11 +136,11 @@ pub(super) fn positive_number(item: &Item, what: &str) -> Result<f64, Diagnostic
 
 /// Validates a B-H table; `csv` maps rows to file lines for the message.
 fn check_curve(pts: &[[f64; 2]], item: &Item, what: &str, csv: Option<(&Path, &[usize])>) -> Result<(), Diagnostic> {
-    solver::BhCurve::new(pts).map(|_| ()).map_err(|e| {
+    materials::check_table(pts).map_err(|e| {
         let row = match e {
-            solver::CurveError::NotFinite { row } | solver::CurveError::NotIncreasing { row } | solver::CurveError::SlopeBelowMu0 { row } => Some(row),
-            solver::CurveError::DoesNotStartAtOrigin => Some(0),
-            solver::CurveError::TooFewPoints(_) => None,
+            materials::CurveError::NotFinite { row } | materials::CurveError::NotIncreasing { row } | materials::CurveError::SlopeBelowMu0 { row } => Some(row),
+            materials::CurveError::DoesNotStartAtOrigin => Some(0),
+            materials::CurveError::TooFewPoints(_) => None,
         };
         let place = match (csv, row) {
             (Some((path, lines)), Some(r)) => format!(" ({}:{})", path.display(), lines.get(r).copied().unwrap_or(0)),

@@ -1,0 +1,66 @@
+//! Points of material curves for pictures and listings: a soft material's
+//! interpolated B-H curve and knee, a magnet's recoil line at a temperature.
+//! The formulas live here so that the command line only draws.
+
+use super::grade::MagnetGrade;
+use solver::{BhCurve, MU0};
+
+pub use solver::CurveError;
+
+/// Whether a B-H table makes a valid curve (starts at the origin, rises,
+/// slope above mu0, finite), and if not, the row at fault.
+pub fn check_table(table: &[[f64; 2]]) -> Result<(), CurveError> {
+    BhCurve::new(table).map(|_| ())
+}
+
+/// The interpolated (Fritsch-Carlson) B-H curve from B = 0 to `b_top`,
+/// as `samples + 1` points [H (A/m), B (T)]; None for an invalid table.
+pub fn bh_points(table: &[[f64; 2]], b_top: f64, samples: usize) -> Option<Vec<[f64; 2]>> {
+    let c = BhCurve::new(table).ok()?;
+    Some(
+        (0..=samples)
+            .map(|k| {
+                let b = b_top * k as f64 / samples as f64;
+                [c.h_of_b(b).0, b]
+            })
+            .collect(),
+    )
+}
+
+/// H (A/m) on the interpolated curve at each flux density; None for an invalid table.
+pub fn h_at(table: &[[f64; 2]], b: &[f64]) -> Option<Vec<[f64; 2]>> {
+    let c = BhCurve::new(table).ok()?;
+    Some(b.iter().map(|&b| [c.h_of_b(b).0, b]).collect())
+}
+
+/// The knee of a soft material's curve (differential permeability fallen
+/// to a tenth of its peak), T; None for an invalid table.
+pub fn knee(table: &[[f64; 2]]) -> Option<f64> {
+    BhCurve::new(table).ok().map(|c| c.knee_b())
+}
+
+impl MagnetGrade {
+    /// Recoil permeability of a user grade that gives neither mur nor HcB
+    /// (sintered NdFeB's typical 1.05, S1 in docs/materials.md).
+    pub const DEFAULT_RECOIL_PERMEABILITY: f64 = 1.05;
+
+    /// Recoil permeability of a straight normal curve through Br and -HcB:
+    /// mu_rec = Br / (mu0 HcB).
+    pub fn recoil_permeability_from(br: f64, hcb: f64) -> f64 {
+        br / (MU0 * hcb)
+    }
+
+    /// B on the recoil line at field strength `h` (A/m, along the
+    /// magnetization) and temperature `celsius`.
+    pub fn recoil_b(&self, h: f64, celsius: f64) -> f64 {
+        self.br_at(celsius) + MU0 * self.recoil_permeability * h
+    }
+
+    /// The recoil line at a temperature from H = 0 down to where it meets
+    /// B = 0 or -HcJ, whichever comes first: two points [H (A/m), B (T)].
+    pub fn recoil_line(&self, celsius: f64) -> [[f64; 2]; 2] {
+        let hcb = self.br_at(celsius) / (MU0 * self.recoil_permeability);
+        let h_end = -hcb.min(self.hcj_at(celsius));
+        [[h_end, self.recoil_b(h_end, celsius)], [0.0, self.br_at(celsius)]]
+    }
+}
