@@ -22,13 +22,22 @@ pub struct Parsed<'t> {
 
 struct Parser<'t, 'p> {
     text: &'t str,
+    /// Byte offset, always on a character boundary.
     pos: usize,
     params: &'p BTreeMap<String, f64>,
+    /// Open parentheses and unary signs around the current factor.
+    depth: usize,
 }
+
+/// Deepest nesting of parentheses and signs an expression may have: the
+/// parser recurses once per level, and a deeper text would exhaust the
+/// stack of a sweep's worker thread (5 000 levels did) long before it meant
+/// anything.
+pub const MAX_DEPTH: usize = 100;
 
 /// Parses `expr [unit]` where the unit is whatever follows the expression.
 pub fn parse<'t>(text: &'t str, params: &BTreeMap<String, f64>) -> Result<Parsed<'t>, ExprError> {
-    let mut p = Parser { text, pos: 0, params };
+    let mut p = Parser { text, pos: 0, params, depth: 0 };
     let value = p.sum()?;
     p.skip_space();
     let unit = text[p.pos..].trim();
@@ -52,8 +61,10 @@ impl Parser<'_, '_> {
     }
 
     fn skip_space(&mut self) {
-        while self.peek().is_some_and(char::is_whitespace) {
-            self.pos += 1;
+        // Any Unicode space (a no-break space pasted from a PDF) counts; the
+        // offset moves by the character's width, never into its middle.
+        while let Some(c) = self.peek().filter(|c| c.is_whitespace()) {
+            self.pos += c.len_utf8();
         }
     }
 
@@ -120,6 +131,16 @@ impl Parser<'_, '_> {
 
     fn factor(&mut self) -> Result<f64, ExprError> {
         self.skip_space();
+        if self.depth >= MAX_DEPTH {
+            return self.err(format!("the expression nests parentheses or signs more than {MAX_DEPTH} deep"));
+        }
+        self.depth += 1;
+        let v = self.factor_inner();
+        self.depth -= 1;
+        v
+    }
+
+    fn factor_inner(&mut self) -> Result<f64, ExprError> {
         match self.peek() {
             Some('-') => {
                 self.pos += 1;
@@ -224,5 +245,21 @@ mod tests {
         assert_eq!((e.offset, e.suggestion.as_deref()), (5, Some("gap")));
         assert_eq!(parse("1 / (gap - 1.5)", &p).unwrap_err().message, "division by zero");
         assert!(parse("(1 + 2", &p).is_err());
+    }
+
+    #[test]
+    fn unicode_spaces_and_deep_nesting_are_handled() {
+        let p = params();
+        // A no-break space (U+00A0) or a thin space (U+2009) between number and unit.
+        assert_eq!(parse("25\u{a0}mm", &p).unwrap().unit, "mm");
+        assert_eq!(parse("25\u{2009}mm", &p).unwrap().value, 25.0);
+        assert_eq!(parse("2 *\u{a0}gap", &p).unwrap().value, 3.0);
+        let deep = format!("{}1{}", "(".repeat(20_000), ")".repeat(20_000));
+        let e = parse(&deep, &p).unwrap_err();
+        assert!(e.message.contains("more than 100 deep"), "{}", e.message);
+        assert_eq!(e.offset, MAX_DEPTH);
+        assert!(parse(&"-".repeat(50_000), &p).is_err());
+        let ok = format!("{}1{}", "(".repeat(MAX_DEPTH - 1), ")".repeat(MAX_DEPTH - 1));
+        assert_eq!(parse(&ok, &p).unwrap().value, 1.0);
     }
 }

@@ -31,17 +31,22 @@ impl Context<'_> {
                 Some(item.span.clone()),
             )),
             Value::Str(s) => {
-                // The string's text starts one byte after the opening quote.
+                // The string's text starts one byte after the opening quote,
+                // and offsets in it map to the file only when it holds no
+                // escapes (an escape is always longer written than read); else
+                // messages point at the string's start.
                 let base = item.span.start + 1;
+                let exact = item.span.len() == s.len() + 2;
+                let at_offset = |offset: usize| if exact { base + offset } else { base };
                 let parsed = expr::parse(s, self.params).map_err(|e| {
-                    let at = base + e.offset;
+                    let at = at_offset(e.offset);
                     Diagnostic::new(format!("{what}: {}", e.message), Some(at..at + 1)).with_help(e.suggestion.map(|c| format!("did you mean '{c}'?")))
                 })?;
                 if parsed.unit.is_empty() {
                     return Ok(bare(parsed.value));
                 }
-                let at = base + parsed.unit_offset;
-                let span = Some(at..at + parsed.unit.len());
+                let at = at_offset(parsed.unit_offset);
+                let span = Some(at..at + if exact { parsed.unit.len() } else { 1 });
                 match units::unit(parsed.unit) {
                     Some((k, factor)) if k == kind => Ok(parsed.value * factor + units::offset(parsed.unit)),
                     Some((k, _)) => Err(Diagnostic::new(
