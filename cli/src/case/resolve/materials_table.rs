@@ -23,12 +23,13 @@ pub(super) fn user_materials(top: &Fields, ctx: &Context, dir: &Path) -> Result<
         ));
     };
     for (k, v) in entries {
+        super::names::checked_name(&k.name, k.span.clone(), "[materials] name")?;
         let what = format!("[materials.{}]", k.name);
         let t = v.table(&what, MATERIAL)?;
         let material = user_material(&t, ctx, dir, &what)?;
         let source = t
             .get("description")
-            .map(|d| d.str(&what).map(str::to_string))
+            .map(|d| super::names::plain_text(d, &what))
             .transpose()?
             .unwrap_or_else(|| "user data in the case file".into());
         out.insert(

@@ -17,7 +17,7 @@ pub(super) fn probes(top: &Fields, ctx: &Context) -> Result<Vec<(Probe, Range<us
     let mut out = Vec::new();
     for item in named_tables(top, "probe")? {
         let t = item.table("[[probe]]", PROBE)?;
-        let name = t.require("name")?.str("probe.name")?.to_string();
+        let name = super::names::name(t.require("name")?, "probe.name")?;
         let what = format!("probe '{name}'");
         let shape = match (t.get("point"), t.get("line")) {
             (Some(p), None) => ProbeShape::Point(ctx.point(p, &what)?),
@@ -58,7 +58,7 @@ pub(super) fn forces(top: &Fields, ctx: &Context, model: &Model) -> Result<Vec<F
     let mut out = Vec::new();
     for item in named_tables(top, "force")? {
         let t = item.table("[[force]]", FORCE)?;
-        let name = t.require("name")?.str("force.name")?.to_string();
+        let name = super::names::name(t.require("name")?, "force.name")?;
         let parts = part_list(t.require("parts")?, model, &format!("force '{name}' parts"))?;
         let torque_about = match t.get("torque_about") {
             Some(p) => ctx.point(p, "force.torque_about")?,
@@ -73,7 +73,7 @@ pub(super) fn fluxes(top: &Fields, ctx: &Context, model: &Model) -> Result<Vec<F
     let mut out = Vec::new();
     for item in named_tables(top, "flux")? {
         let t = item.table("[[flux]]", FLUX)?;
-        let name = t.require("name")?.str("flux.name")?.to_string();
+        let name = super::names::name(t.require("name")?, "flux.name")?;
         let what = format!("flux '{name}'");
         match (t.get("line"), t.get("winding")) {
             (Some(l), None) => {

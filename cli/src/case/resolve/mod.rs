@@ -93,7 +93,7 @@ pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> R
     let mut model = Model {
         title: study
             .get("title")
-            .map(|t| t.str("study.title").map(str::to_string))
+            .map(|t| names::plain_text(t, "study.title"))
             .transpose()?
             .unwrap_or_else(|| "untitled study".into()),
         symmetry,

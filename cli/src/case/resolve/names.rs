@@ -66,3 +66,56 @@ pub(super) fn check_unique_names(top: &Fields) -> Result<(), Diagnostic> {
     }
     Ok(())
 }
+
+/// Longest name of a part, probe, force, flux or material.
+pub(super) const MAX_NAME_CHARS: usize = 64;
+
+/// A name as the case writes it, checked against the documented set: 1 to
+/// 64 ASCII letters, digits, '_' and '-', starting with a letter or digit.
+/// Names become file names (probe-NAME.csv), CSV columns, SVG text and
+/// value names (`force.NAME.z`), so a '/', '..', ',', '.', a control
+/// character or an empty name would escape the output folder, break a
+/// table or a value name.
+pub(super) fn name(item: &Item, what: &str) -> Result<String, Diagnostic> {
+    checked_name(item.str(what)?, item.span.clone(), what)
+}
+
+/// `name`'s check on a name written at `span` (a table key, for example).
+pub(super) fn checked_name(s: &str, span: std::ops::Range<usize>, what: &str) -> Result<String, Diagnostic> {
+    let bad = |why: String| {
+        Err(Diagnostic::new(
+            format!("{what} '{}': {why}; a name is 1 to {MAX_NAME_CHARS} ASCII letters, digits, '_' or '-', starting with a letter or digit", s.escape_debug()),
+            Some(span.clone()),
+        ))
+    };
+    if s.is_empty() {
+        return bad("is empty".into());
+    }
+    if s.chars().count() > MAX_NAME_CHARS {
+        return bad(format!("is {} characters long", s.chars().count()));
+    }
+    if let Some(c) = s.chars().find(|c| !(c.is_ascii_alphanumeric() || *c == '_' || *c == '-')) {
+        return bad(format!("holds {}", if c.is_control() || c.is_whitespace() { format!("the character {}", c.escape_unicode()) } else { format!("'{c}'") }));
+    }
+    if !s.starts_with(|c: char| c.is_ascii_alphanumeric()) {
+        return bad("starts with a sign".into());
+    }
+    Ok(s.to_string())
+}
+
+/// Free text for people (a title, a description): one line, no control
+/// characters, at most 200 characters, so that it prints, tabulates and
+/// draws as written.
+pub(super) fn plain_text(item: &Item, what: &str) -> Result<String, Diagnostic> {
+    let s = item.str(what)?;
+    if let Some(c) = s.chars().find(|c| c.is_control()) {
+        return Err(Diagnostic::new(
+            format!("{what}: holds the control character {}; write one line of plain text", c.escape_unicode()),
+            Some(item.span.clone()),
+        ));
+    }
+    if s.chars().count() > 200 {
+        return Err(Diagnostic::new(format!("{what}: {} characters; at most 200", s.chars().count()), Some(item.span.clone())));
+    }
+    Ok(s.to_string())
+}

@@ -32,7 +32,7 @@ pub(super) fn part(
     before: &[Part],
 ) -> Result<Part, Diagnostic> {
     let t = item.table("[[part]]", PART)?;
-    let name = t.require("name")?.str("part.name")?.to_string();
+    let name = super::names::name(t.require("name")?, "part.name")?;
     if before.iter().any(|p| p.name == name) {
         return Err(Diagnostic::new(
             format!("a part named '{name}' already exists; part names must be unique"),
