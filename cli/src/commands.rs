@@ -71,7 +71,14 @@ fn solve_inner(
     let mut variants = run::variants(&loaded, &overrides(set)?)?;
     if let Some(s) = shard {
         let (k, n) = parse_shard(s)?;
+        if variants.len() == 1 && variants[0].label.is_empty() {
+            return Err(Failure::Input(format!("error: --shard {s}: {} has no [sweep]; shards split a sweep's variants\n", loaded.path.display())));
+        }
+        let all = variants.len();
         variants.retain(|v| v.index % n == k);
+        if variants.is_empty() {
+            return Err(Failure::Input(format!("error: --shard {s}: the sweep has {all} variants, so shard {k} of {n} has none\n")));
+        }
     }
     // Input errors that every variant shares (a misspelled name, a bad unit)
     // are found before any folder is made or mesh built.
@@ -86,7 +93,7 @@ fn solve_inner(
         progress.finish();
         output::write_all(&out, &outcome.files).map_err(|e| Failure::Input(format!("error: {e}\n")))?;
         print!("{}", crate::summary::summary(&outcome, &out));
-        return Ok(if outcome.results.solve.converged { 0 } else { not_converged(&outcome) });
+        return Ok(if outcome.results.solve.converged { 0 } else { not_converged(&outcome, true) });
     }
     let hash = sweep::case_hash(&loaded.text);
     let results: Vec<Result<(Variant, Outcome), Failure>> = variants
@@ -109,7 +116,7 @@ fn solve_inner(
         }
         if let Ok((_, o)) = r {
             if !o.results.solve.converged {
-                code = not_converged(o);
+                code = not_converged(o, true);
             }
         }
     }
@@ -125,7 +132,9 @@ fn solve_inner(
     Ok(code)
 }
 
-fn not_converged(o: &Outcome) -> i32 {
+/// Reports a solve that did not converge; `written` says whether its last
+/// iterate went to the output folder (`solve`) or nowhere (`check`).
+fn not_converged(o: &Outcome, written: bool) -> i32 {
     let h: Vec<String> = o.results.solve.residual_history.iter().map(|r| format!("{r:.2e}")).collect();
     eprintln!(
         "error: {}: Newton-Raphson did not converge in {} iterations; residual history: {}",
@@ -133,7 +142,8 @@ fn not_converged(o: &Outcome) -> i32 {
         o.results.solve.iterations,
         h.join(" ")
     );
-    eprintln!("       the last iterate was written and marked unconverged; try a finer mesh in saturated steel, or check the B-H data");
+    let what = if written { "the last iterate was written and marked unconverged" } else { "nothing was written" };
+    eprintln!("       {what}; try a finer mesh in saturated steel, or check the B-H data");
     3
 }
 
@@ -152,7 +162,17 @@ pub fn check(cases: &[PathBuf], junit: Option<PathBuf>, set: &[String], max_elem
                 worst = worst.max(code);
                 suites.push(suite);
             }
-            Err(f) => worst = worst.max(fail(&f)),
+            Err(f) => {
+                worst = worst.max(fail(&f));
+                // A case that cannot be read or solved is a failed test, not a missing one.
+                suites.push(crate::junit::Suite {
+                    name: case.display().to_string(),
+                    cases: vec![crate::junit::Case {
+                        name: "load and solve".into(),
+                        message: Some(f.message().trim().to_string()),
+                    }],
+                });
+            }
         }
     }
     progress.finish();
@@ -193,21 +213,30 @@ fn check_case(case: &Path, over: &BTreeMap<String, f64>, limits: &Limits, progre
                 )));
             }
         }
-        if !o.results.solve.converged {
-            code = code.max(not_converged(&o));
+        let converged = o.results.solve.converged;
+        if !converged {
+            code = code.max(not_converged(&o, false));
         }
         let tag = if v.label.is_empty() { String::new() } else { format!(" [{}]", v.label) };
         println!("{}{tag}", loaded.path.display());
         println!("  {:<36} {:<24} {:>14}  result", "value", "bound", "actual");
         for e in &o.results.expect {
             let actual = e.actual.map_or("-".into(), |a| format!("{a:.6e}"));
-            println!("  {:<36} {:<24} {:>14}  {}", e.value, e.bound, actual, if e.pass { "pass" } else { "FAIL" });
-            if !e.pass {
+            // An expectation on an unconverged solution cannot pass: its value is not the answer.
+            let pass = e.pass && converged;
+            let verdict = if pass { "pass" } else if e.pass { "FAIL (not converged)" } else { "FAIL" };
+            println!("  {:<36} {:<24} {:>14}  {verdict}", e.value, e.bound, actual);
+            if !pass {
                 code = code.max(1);
             }
+            let message = if !e.pass {
+                Some(format!("{} = {} is outside {}", e.value, actual, e.bound))
+            } else {
+                (!converged).then(|| format!("{} = {} holds, but the solution did not converge", e.value, actual))
+            };
             suite.cases.push(crate::junit::Case {
                 name: format!("{}{tag}", e.value),
-                message: (!e.pass).then(|| format!("{} = {} is outside {}", e.value, actual, e.bound)),
+                message,
             });
         }
         if o.results.expect.is_empty() {

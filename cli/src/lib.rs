@@ -3,6 +3,7 @@
 
 pub mod case;
 pub mod commands;
+pub mod input_file;
 pub mod junit;
 pub mod library_text;
 pub mod output;

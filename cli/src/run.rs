@@ -62,18 +62,7 @@ const MAX_CASE_BYTES: u64 = 16 << 20;
 
 pub fn load(path: &Path) -> Result<Loaded, Failure> {
     let shown = path.display();
-    let meta = std::fs::metadata(path).map_err(|e| Failure::Input(format!("error: cannot read the case file {shown}: {e}\n")))?;
-    if meta.is_dir() {
-        return Err(Failure::Input(format!("error: {shown} is a directory, not a case file\n")));
-    }
-    if meta.len() > MAX_CASE_BYTES {
-        return Err(Failure::Input(format!(
-            "error: {shown} is {} bytes; a case file is plain text of at most 16 MiB\n",
-            meta.len()
-        )));
-    }
-    let bytes = std::fs::read(path).map_err(|e| Failure::Input(format!("error: cannot read the case file {shown}: {e}\n")))?;
-    let text = String::from_utf8(bytes).map_err(|_| Failure::Input(format!("error: {shown} is not UTF-8 text (is it a binary file?)\n")))?;
+    let text = crate::input_file::read_text(path, "case file", MAX_CASE_BYTES).map_err(|e| Failure::Input(format!("error: {e}\n")))?;
     if text.trim().is_empty() {
         return Err(Failure::Input(format!("error: {shown} is empty; a case needs at least one [[part]]\n")));
     }
@@ -84,6 +73,9 @@ pub fn load(path: &Path) -> Result<Loaded, Failure> {
         doc,
     })
 }
+
+/// Most variants a sweep may have.
+pub const MAX_VARIANTS: usize = 100_000;
 
 /// One set of parameter values of a sweep, with its folder name.
 #[derive(Clone, Debug)]
@@ -103,18 +95,24 @@ pub fn variants(loaded: &Loaded, overrides: &BTreeMap<String, f64>) -> Result<Ve
         .into_iter()
         .filter(|(k, _)| !overrides.contains_key(k))
         .collect();
-    let mut combos: Vec<Vec<(String, f64)>> = vec![Vec::new()];
+    // The count is checked before any combination is made: 4 x 1000 steps
+    // were enumerated first (2.8 GB) and only then refused.
+    let count = sweep.iter().try_fold(1usize, |n, (_, v)| n.checked_mul(v.len())).filter(|&n| n <= MAX_VARIANTS);
+    let Some(count) = count else {
+        let sizes: Vec<String> = sweep.iter().map(|(k, v)| format!("{k}: {}", v.len())).collect();
+        return Err(Failure::Input(format!(
+            "error: {}: the sweep's values multiply to more than {MAX_VARIANTS} variants ({}); sweep fewer values or split the case\n",
+            loaded.path.display(),
+            sizes.join(", ")
+        )));
+    };
+    let mut combos: Vec<Vec<(String, f64)>> = Vec::with_capacity(count);
+    combos.push(Vec::new());
     for (name, values) in &sweep {
         combos = combos
             .into_iter()
             .flat_map(|c| values.iter().map(move |v| [c.clone(), vec![(name.clone(), *v)]].concat()))
             .collect();
-    }
-    if combos.len() > 100_000 {
-        return Err(Failure::Input(format!(
-            "error: the sweep has {} variants; at most 100000 are allowed\n",
-            combos.len()
-        )));
     }
     Ok(combos
         .into_iter()

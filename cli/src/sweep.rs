@@ -80,7 +80,7 @@ fn collect(dir: &Path, rows: &mut Vec<Row>, depth: usize) -> Result<(), String> 
 }
 
 fn read_row(file: &Path) -> Result<Row, String> {
-    let text = std::fs::read_to_string(file).map_err(|e| format!("cannot read {}: {e}", file.display()))?;
+    let text = crate::input_file::read_text(file, "results file", 1 << 30)?;
     let v: Value = serde_json::from_str(&text).map_err(|e| format!("{} is not valid results JSON: {e}", file.display()))?;
     let variant: study::results::VariantInfo =
         serde_json::from_value(v["variant"].clone()).map_err(|e| format!("{}: no variant section: {e}", file.display()))?;

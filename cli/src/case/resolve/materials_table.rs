@@ -9,6 +9,10 @@ use std::collections::BTreeMap;
 use std::path::Path;
 use study::materials::{self, Entry, MagnetGrade, Material};
 
+/// Largest B-H table file read, bytes (a measured curve has hundreds of rows).
+const MAX_CSV_BYTES: u64 = 4 << 20;
+
+/// Keys of a `[materials.NAME]` table.
 const MATERIAL: &[&str] = &["bh", "bh_csv", "mur", "br", "hcb", "hcj", "br_coeff", "hcj_coeff", "description"];
 
 pub(super) fn user_materials(top: &Fields, ctx: &Context, dir: &Path) -> Result<BTreeMap<String, (Entry, std::ops::Range<usize>)>, Diagnostic> {
@@ -116,8 +120,8 @@ fn user_material(t: &Fields, ctx: &Context, dir: &Path, what: &str) -> Result<Ma
             let item = t.require("bh_csv")?;
             let rel = item.str(&format!("{what} bh_csv"))?;
             let path = dir.join(rel);
-            let text = std::fs::read_to_string(&path)
-                .map_err(|e| Diagnostic::new(format!("{what} bh_csv: cannot read {}: {e}", path.display()), Some(item.span.clone())))?;
+            let text = crate::input_file::read_text(&path, "B-H table", MAX_CSV_BYTES)
+                .map_err(|e| Diagnostic::new(format!("{what} bh_csv: {e}"), Some(item.span.clone())))?;
             let (pts, lines) = parse_bh_csv(&text)
                 .map_err(|(line, msg)| Diagnostic::new(format!("{what} bh_csv: {}:{line}: {msg}", path.display()), Some(item.span.clone())))?;
             check_curve(&pts, item, what, Some((&path, &lines)))?;
