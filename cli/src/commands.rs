@@ -3,6 +3,7 @@
 
 use crate::case::suggest;
 use crate::output;
+use crate::output::folder::OutputFolder;
 use crate::progress::Progress;
 use crate::run::{self, Failure, Limits, Loaded, Outcome, Variant};
 use crate::sweep;
@@ -72,12 +73,17 @@ fn solve_inner(
     if let Some(s) = shard {
         let (k, n) = parse_shard(s)?;
         if variants.len() == 1 && variants[0].label.is_empty() {
-            return Err(Failure::Input(format!("error: --shard {s}: {} has no [sweep]; shards split a sweep's variants\n", loaded.path.display())));
+            return Err(Failure::Input(format!(
+                "error: --shard {s}: {} has no [sweep]; shards split a sweep's variants\n",
+                loaded.path.display()
+            )));
         }
         let all = variants.len();
         variants.retain(|v| v.index % n == k);
         if variants.is_empty() {
-            return Err(Failure::Input(format!("error: --shard {s}: the sweep has {all} variants, so shard {k} of {n} has none\n")));
+            return Err(Failure::Input(format!(
+                "error: --shard {s}: the sweep has {all} variants, so shard {k} of {n} has none\n"
+            )));
         }
     }
     // Input errors that every variant shares (a misspelled name, a bad unit)
@@ -86,50 +92,100 @@ fn solve_inner(
         run::resolve(&loaded, &first.params, &limits)?;
     }
     let out = default_output(&loaded, output);
-    output::check_writable(&out).map_err(|e| Failure::Input(format!("error: {e}\n")))?;
+    let folder = OutputFolder::open(&out).map_err(|e| Failure::Input(format!("error: {e}\n")))?;
     let swept = variants.first().is_some_and(|v| !v.label.is_empty());
     if !swept {
         let outcome = run::solve_variant(&loaded, &variants[0], &limits, &progress)?;
         progress.finish();
-        output::write_all(&out, &outcome.files).map_err(|e| Failure::Input(format!("error: {e}\n")))?;
+        folder
+            .commit(Path::new(""), &outcome.files)
+            .map_err(|e| Failure::Input(format!("error: {e}\n")))?;
         print!("{}", crate::summary::summary(&outcome, &out));
-        return Ok(if outcome.results.solve.converged { 0 } else { not_converged(&outcome, true) });
+        return Ok(if outcome.results.solve.converged {
+            expectation_code(&outcome)
+        } else {
+            not_converged(&outcome, true)
+        });
     }
-    let hash = sweep::case_hash(&loaded.text);
-    let results: Vec<Result<(Variant, Outcome), Failure>> = variants
+    solve_sweep(&loaded, &variants, &folder, &limits, force, &progress)
+}
+
+/// 1 when an expectation failed, else 0 (as `check` and the README have it).
+fn expectation_code(o: &Outcome) -> i32 {
+    i32::from(o.results.expect.iter().any(|e| !e.pass))
+}
+
+/// Solves a sweep's variants into their folders (skipping those already
+/// whole for the same model), then writes the sweep table of exactly these
+/// variants: a failed variant is named, and the others still get their table.
+fn solve_sweep(loaded: &Loaded, variants: &[Variant], folder: &OutputFolder, limits: &Limits, force: bool, progress: &Progress) -> Result<i32, Failure> {
+    let out = folder.path();
+    let case = sweep::case_hash(&loaded.text);
+    // Each variant's key from its resolved model; a variant that cannot be
+    // resolved (a zero-size part at one value) fails alone.
+    let keys: Vec<Result<String, Failure>> = variants
+        .iter()
+        .map(|v| run::resolve(loaded, &v.params, limits).map(|r| sweep::variant_key(case, v, &r.model)))
+        .collect();
+    let results: Vec<(usize, Result<Outcome, Failure>)> = variants
         .par_iter()
-        .filter(|v| force || !sweep::is_whole(&out, v, hash))
-        .map(|v| {
-            let o = run::solve_variant(&loaded, v, &limits, &progress)?;
-            let mut files = o.files.clone();
-            files.push(("variant.hash".into(), sweep::variant_hash(hash, v).into_bytes()));
-            let dir = out.join(&v.label);
-            output::write_all(&dir, &files).map_err(|e| Failure::Input(format!("error: {e}\n")))?;
-            Ok((v.clone(), o))
+        .zip(&keys)
+        .enumerate()
+        .filter(|(_, (v, key))| force || !key.as_ref().is_ok_and(|k| sweep::is_whole(out, v, k)))
+        .map(|(i, (v, key))| {
+            let solved = match key {
+                Err(f) => Err(Failure::Input(f.message().to_string())),
+                Ok(key) => run::solve_variant(loaded, v, limits, progress).and_then(|o| {
+                    let mut files = o.files.clone();
+                    files.push(("variant.hash".into(), key.clone().into_bytes()));
+                    folder
+                        .commit(Path::new(&v.label), &files)
+                        .map_err(|e| Failure::Input(format!("error: {e}\n")))?;
+                    Ok(o)
+                }),
+            };
+            (i, solved)
         })
         .collect();
     progress.finish();
     let mut code = 0;
-    for r in &results {
-        if let Err(f) = r {
-            return Err(Failure::Input(f.message().to_string()));
-        }
-        if let Ok((_, o)) = r {
-            if !o.results.solve.converged {
-                code = not_converged(o, true);
+    let mut failed = Vec::new();
+    for (i, r) in &results {
+        match r {
+            Err(f) => {
+                eprint!("error: variant {} ({}) failed:\n{}", variants[*i].label, describe(&variants[*i]), f.message());
+                failed.push(f.exit_code());
             }
+            Ok(o) if !o.results.solve.converged => code = code.max(not_converged(o, true)),
+            Ok(o) => code = code.max(expectation_code(o)),
         }
     }
-    let rows = sweep::rows_from_folders(std::slice::from_ref(&out)).map_err(|e| Failure::Input(format!("error: {e}\n")))?;
-    output::write_all(&out, &sweep::summary_files(&rows)).map_err(|e| Failure::Input(format!("error: {e}\n")))?;
+    let labels: Vec<(&str, &str)> = variants
+        .iter()
+        .zip(&keys)
+        .filter_map(|(v, k)| k.as_ref().ok().map(|k| (v.label.as_str(), k.as_str())))
+        .collect();
+    let rows = sweep::rows_of_run(out, &labels).map_err(|e| Failure::Input(format!("error: {e}\n")))?;
+    if !rows.is_empty() {
+        folder
+            .commit(Path::new(""), &sweep::summary_files(&rows))
+            .map_err(|e| Failure::Input(format!("error: {e}\n")))?;
+    }
     println!(
-        "{}: {} variants solved ({} already whole), sweep table in {}",
+        "{}: {} variants solved ({} already whole, {} failed), sweep table of {} in {}",
         loaded.path.display(),
-        results.len(),
+        results.len() - failed.len(),
         variants.len() - results.len(),
+        failed.len(),
+        rows.len(),
         out.join("sweep.csv").display()
     );
-    Ok(code)
+    Ok(failed.into_iter().fold(code, i32::max))
+}
+
+/// A variant's swept parameters, `gap = 0.5, t = 2`.
+fn describe(v: &Variant) -> String {
+    v.swept.iter().map(|(k, x)| format!("{k} = {x}")).collect::<Vec<_>>().join(", ")
 }
 
 /// Reports a solve that did not converge; `written` says whether its last
@@ -142,7 +198,11 @@ fn not_converged(o: &Outcome, written: bool) -> i32 {
         o.results.solve.iterations,
         h.join(" ")
     );
-    let what = if written { "the last iterate was written and marked unconverged" } else { "nothing was written" };
+    let what = if written {
+        "the last iterate was written and marked unconverged"
+    } else {
+        "nothing was written"
+    };
     eprintln!("       {what}; try a finer mesh in saturated steel, or check the B-H data");
     3
 }
@@ -224,7 +284,13 @@ fn check_case(case: &Path, over: &BTreeMap<String, f64>, limits: &Limits, progre
             let actual = e.actual.map_or("-".into(), |a| format!("{a:.6e}"));
             // An expectation on an unconverged solution cannot pass: its value is not the answer.
             let pass = e.pass && converged;
-            let verdict = if pass { "pass" } else if e.pass { "FAIL (not converged)" } else { "FAIL" };
+            let verdict = if pass {
+                "pass"
+            } else if e.pass {
+                "FAIL (not converged)"
+            } else {
+                "FAIL"
+            };
             println!("  {:<36} {:<24} {:>14}  {verdict}", e.value, e.bound, actual);
             if !pass {
                 code = code.max(1);
@@ -259,7 +325,9 @@ pub fn mesh(case: &Path, output: Option<PathBuf>, set: &[String], max_elements: 
         let out = default_output(&loaded, output.clone());
         let vtu = output::vtk::mesh_vtu(&model, &mesh).map_err(|e| Failure::Input(format!("error: {e}\n")))?;
         let svg = output::svg::mesh_svg(&model, &mesh).into_bytes();
-        output::write_all(&out, &vec![("mesh.vtu".into(), vtu), ("mesh.svg".into(), svg)]).map_err(|e| Failure::Input(format!("error: {e}\n")))?;
+        OutputFolder::open(&out)
+            .and_then(|f| f.commit(Path::new(""), &vec![("mesh.vtu".into(), vtu), ("mesh.svg".into(), svg)]))
+            .map_err(|e| Failure::Input(format!("error: {e}\n")))?;
         let q = mesh.quality();
         let (air, per) = mesh.triangles_per_part(model.parts.len());
         println!(
@@ -306,7 +374,8 @@ pub fn materials(name: Option<&str>, plot: Option<PathBuf>) -> i32 {
 pub fn merge(folders: &[PathBuf], out: &Path) -> i32 {
     match sweep::rows_from_folders(folders) {
         Ok(rows) => {
-            if let Err(e) = output::write_all(out, &sweep::summary_files(&rows)) {
+            let written = OutputFolder::open(out).and_then(|f| f.commit(Path::new(""), &sweep::summary_files(&rows)));
+            if let Err(e) = written {
                 eprintln!("error: {e}");
                 return 2;
             }

@@ -15,10 +15,16 @@ pub fn read_text(path: &Path, what: &str, max_bytes: u64) -> Result<String, Stri
         return Err(format!("{shown} is a directory, not a {what}"));
     }
     if !meta.is_file() {
-        return Err(format!("{shown} is not a regular file (a pipe, a device or a socket); the {what} must be a plain text file"));
+        return Err(format!(
+            "{shown} is not a regular file (a pipe, a device or a socket); the {what} must be a plain text file"
+        ));
     }
     if meta.len() > max_bytes {
-        return Err(format!("{shown} is {} bytes; a {what} is plain text of at most {}", meta.len(), size_text(max_bytes)));
+        return Err(format!(
+            "{shown} is {} bytes; a {what} is plain text of at most {}",
+            meta.len(),
+            size_text(max_bytes)
+        ));
     }
     let file = std::fs::File::open(path).map_err(|e| format!("cannot read the {what} {shown}: {e}"))?;
     let mut bytes = Vec::new();

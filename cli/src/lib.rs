@@ -4,6 +4,7 @@
 pub mod case;
 pub mod commands;
 pub mod input_file;
+pub mod interrupt;
 pub mod junit;
 pub mod library_text;
 pub mod output;

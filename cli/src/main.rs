@@ -97,7 +97,21 @@ enum Command {
     },
 }
 
+/// A file-size limit (`ulimit -f`) kills a process that writes past it
+/// with SIGXFSZ and no message; ignored, the write fails with EFBIG
+/// instead, and the atomic writer reports it and leaves earlier results.
+fn ignore_file_size_signal() {
+    #[cfg(unix)]
+    // SAFETY: setting a signal's disposition to SIG_IGN at start-up, before
+    // any thread exists, has no memory-safety preconditions.
+    unsafe {
+        libc::signal(libc::SIGXFSZ, libc::SIG_IGN);
+    }
+}
+
 fn main() {
+    ignore_file_size_signal();
+    lodestone::interrupt::install();
     let cli = Cli::parse();
     let code = match cli.command {
         Command::Solve {

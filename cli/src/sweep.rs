@@ -20,20 +20,43 @@ pub fn case_hash(text: &str) -> u64 {
     fnv1a(text.as_bytes(), 0xcbf2_9ce4_8422_2325)
 }
 
-/// The hash of the case text and this variant's parameter values.
-pub fn variant_hash(case: u64, v: &Variant) -> String {
-    let mut h = case;
-    for (k, x) in &v.params {
-        h = fnv1a(k.as_bytes(), h);
-        h = fnv1a(&x.to_bits().to_le_bytes(), h);
+/// What identifies a variant's results: the resolved model (so an edit to
+/// a file the case reads, a B-H table, changes it as surely as an edit to
+/// the case) and the run it belongs to (the case text and the parameters
+/// that are not swept, shared by every shard of one sweep). Two lines,
+/// stored as `variant.hash`.
+pub fn variant_key(case: u64, v: &Variant, model: &study::Model) -> String {
+    let mut run = case;
+    for (k, x) in v.params.iter().filter(|(k, _)| !v.swept.iter().any(|(s, _)| s == *k)) {
+        run = fnv1a(k.as_bytes(), run);
+        run = fnv1a(&x.to_bits().to_le_bytes(), run);
     }
-    format!("{h:016x}\n")
+    let model = fnv1a(format!("{}{model:?}", env!("CARGO_PKG_VERSION")).as_bytes(), 0xcbf2_9ce4_8422_2325);
+    format!("model {model:016x}\nrun {run:016x}\n")
 }
 
-/// True when the variant folder holds results made from the same case and parameters.
-pub fn is_whole(out: &Path, v: &Variant, case: u64) -> bool {
+/// The run line of a variant key.
+fn run_of(key: &str) -> &str {
+    key.lines().find(|l| l.starts_with("run ")).unwrap_or("")
+}
+
+/// True when the variant folder holds whole results of the same model.
+pub fn is_whole(out: &Path, v: &Variant, key: &str) -> bool {
     let dir = out.join(&v.label);
-    dir.join("results.json").is_file() && std::fs::read_to_string(dir.join("variant.hash")).is_ok_and(|h| h == variant_hash(case, v))
+    dir.join("results.json").is_file() && std::fs::read_to_string(dir.join("variant.hash")).is_ok_and(|h| h == key)
+}
+
+/// The rows of exactly these variants (label, key): folders of other runs,
+/// or of a sweep that had more variants, are left out.
+pub fn rows_of_run(out: &Path, variants: &[(&str, &str)]) -> Result<Vec<Row>, String> {
+    let mut rows = Vec::new();
+    for (label, key) in variants {
+        let dir = out.join(label);
+        if std::fs::read_to_string(dir.join("variant.hash")).is_ok_and(|h| h == *key) && dir.join("results.json").is_file() {
+            rows.push(read_row(&dir.join("results.json"), key)?);
+        }
+    }
+    Ok(rows)
 }
 
 /// One row of the sweep table.
@@ -45,41 +68,78 @@ pub struct Row {
     /// Unit symbol of each value, from its type (empty for a ratio).
     pub units: BTreeMap<String, String>,
     pub converged: bool,
+    /// Planar or axisymmetric.
+    pub geometry: String,
+    /// The run line of the variant's key.
+    pub run: String,
 }
 
-/// Reads every `variant-*/results.json` below the folders, ordered by variant index.
+/// Reads every `variant-*` folder below the folders, for `merge`: each
+/// must hold whole results, all of one run (the same case and settings,
+/// hence one geometry), and a variant found twice must be the same model.
 pub fn rows_from_folders(folders: &[PathBuf]) -> Result<Vec<Row>, String> {
-    let mut rows = Vec::new();
+    let mut found = Vec::new();
     for f in folders {
-        collect(f, &mut rows, 0)?;
+        variant_folders(f, &mut found, 0)?;
     }
-    rows.sort_by_key(|r| r.index);
-    rows.dedup_by_key(|r| r.index);
-    if rows.is_empty() {
+    let mut rows: Vec<(Row, String)> = Vec::new();
+    for dir in &found {
+        let key = std::fs::read_to_string(dir.join("variant.hash")).unwrap_or_default();
+        if !dir.join("results.json").is_file() || key.is_empty() {
+            return Err(format!(
+                "{} holds no whole results (results.json and variant.hash); solve that shard again before merging",
+                dir.display()
+            ));
+        }
+        rows.push((read_row(&dir.join("results.json"), &key)?, key));
+    }
+    let Some((first, _)) = rows.first() else {
         return Err("no variant results (variant-*/results.json) found".into());
+    };
+    let (run, geometry) = (first.run.clone(), first.geometry.clone());
+    for ((r, _), dir) in rows.iter().zip(&found) {
+        if r.run != run || r.geometry != geometry {
+            return Err(format!(
+                "{} comes from another run ({} study, {}) than {} ({} study, {}): merge only the shards of one sweep",
+                dir.display(),
+                r.geometry,
+                r.run,
+                found[0].display(),
+                geometry,
+                run
+            ));
+        }
     }
+    rows.sort_by_key(|(r, _)| r.index);
+    for pair in rows.windows(2) {
+        if pair[0].0.index == pair[1].0.index && pair[0].1 != pair[1].1 {
+            return Err(format!(
+                "variant {} appears twice with different results; merge each shard once",
+                pair[0].0.index
+            ));
+        }
+    }
+    let mut rows: Vec<Row> = rows.into_iter().map(|(r, _)| r).collect();
+    rows.dedup_by_key(|r| r.index);
     Ok(rows)
 }
 
-fn collect(dir: &Path, rows: &mut Vec<Row>, depth: usize) -> Result<(), String> {
+fn variant_folders(dir: &Path, out: &mut Vec<PathBuf>, depth: usize) -> Result<(), String> {
     let entries = std::fs::read_dir(dir).map_err(|e| format!("cannot read {}: {e}", dir.display()))?;
     let mut paths: Vec<PathBuf> = entries.flatten().map(|e| e.path()).collect();
     paths.sort();
     for p in paths {
         let name = p.file_name().map(|n| n.to_string_lossy().into_owned()).unwrap_or_default();
         if p.is_dir() && name.starts_with("variant-") {
-            let file = p.join("results.json");
-            if file.is_file() {
-                rows.push(read_row(&file)?);
-            }
+            out.push(p);
         } else if p.is_dir() && depth < 2 {
-            collect(&p, rows, depth + 1)?;
+            variant_folders(&p, out, depth + 1)?;
         }
     }
     Ok(())
 }
 
-fn read_row(file: &Path) -> Result<Row, String> {
+fn read_row(file: &Path, key: &str) -> Result<Row, String> {
     let text = crate::input_file::read_text(file, "results file", 1 << 30)?;
     let v: Value = serde_json::from_str(&text).map_err(|e| format!("{} is not valid results JSON: {e}", file.display()))?;
     let variant: study::results::VariantInfo =
@@ -98,6 +158,8 @@ fn read_row(file: &Path) -> Result<Row, String> {
         values,
         units,
         converged: v["solve"]["converged"].as_bool().unwrap_or(false),
+        geometry: v["study"]["geometry"].as_str().unwrap_or("").to_string(),
+        run: run_of(key).to_string(),
     })
 }
 

@@ -37,7 +37,12 @@ pub const MAX_DEPTH: usize = 100;
 
 /// Parses `expr [unit]` where the unit is whatever follows the expression.
 pub fn parse<'t>(text: &'t str, params: &BTreeMap<String, f64>) -> Result<Parsed<'t>, ExprError> {
-    let mut p = Parser { text, pos: 0, params, depth: 0 };
+    let mut p = Parser {
+        text,
+        pos: 0,
+        params,
+        depth: 0,
+    };
     let value = p.sum()?;
     p.skip_space();
     let unit = text[p.pos..].trim();

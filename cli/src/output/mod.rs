@@ -1,9 +1,12 @@
 //! Writing results: every file goes to a temporary name beside its target
-//! and is renamed into place only when whole, so a failed or interrupted
-//! run never leaves half a file and never spoils earlier results.
+//! and is renamed into place only when whole; a result folder's files are
+//! committed as one set under the folder's lock (`folder.rs`), so a failed
+//! or interrupted run never leaves half a file, never spoils earlier
+//! results and never mixes two runs' files.
 
 pub mod csv;
 pub mod fieldmap;
+pub mod folder;
 pub mod pictures;
 pub mod report;
 pub mod svg;
@@ -17,11 +20,23 @@ pub type FileSet = Vec<(PathBuf, Vec<u8>)>;
 
 const TMP_MARK: &str = ".lodestone-tmp-";
 
-/// Writes every file of the set under `dir` (created if missing) atomically per file.
+/// Writes every file of the set under `dir` (created if missing): each to
+/// a temporary name first, then all renamed into place. For single files
+/// beside the user's own (a JUnit report); result folders use
+/// [`folder::OutputFolder`], which also makes the set whole as a unit.
 pub fn write_all(dir: &Path, files: &FileSet) -> Result<(), String> {
+    let staged = stage(dir, files)?;
+    for (tmp, target) in &staged {
+        std::fs::rename(tmp, target).map_err(|e| format!("cannot move {} into place: {e}", target.display()))?;
+    }
+    Ok(())
+}
+
+/// Writes every file to a temporary name beside its target: (temporary,
+/// target) pairs, or nothing left behind on failure.
+fn stage(dir: &Path, files: &FileSet) -> Result<Vec<(PathBuf, PathBuf)>, String> {
     std::fs::create_dir_all(dir).map_err(|e| format!("cannot create the output folder {}: {e}", dir.display()))?;
-    remove_stale(dir);
-    let mut staged = Vec::new();
+    let mut staged: Vec<(PathBuf, PathBuf)> = Vec::new();
     for (name, bytes) in files {
         let target = dir.join(name);
         if let Some(parent) = target.parent() {
@@ -45,10 +60,7 @@ pub fn write_all(dir: &Path, files: &FileSet) -> Result<(), String> {
         }
         staged.push((tmp, target));
     }
-    for (tmp, target) in &staged {
-        std::fs::rename(tmp, target).map_err(|e| format!("cannot move {} into place: {e}", target.display()))?;
-    }
-    Ok(())
+    Ok(staged)
 }
 
 /// Writes one file atomically at `path` (its folder is created if missing).
@@ -61,7 +73,8 @@ pub fn write_file(path: &Path, bytes: Vec<u8>) -> Result<(), String> {
     write_all(&dir, &vec![(name, bytes)])
 }
 
-/// Removes temporary files left by an interrupted run.
+/// Removes temporary files left by an interrupted run (only under the
+/// folder's lock, so never another live run's).
 fn remove_stale(dir: &Path) {
     if let Ok(entries) = std::fs::read_dir(dir) {
         for e in entries.flatten() {
@@ -70,13 +83,4 @@ fn remove_stale(dir: &Path) {
             }
         }
     }
-}
-
-/// Checks that a folder can be written before any long work starts.
-pub fn check_writable(dir: &Path) -> Result<(), String> {
-    std::fs::create_dir_all(dir).map_err(|e| format!("cannot create the output folder {}: {e}", dir.display()))?;
-    let probe = dir.join(format!("{TMP_MARK}probe-{}", std::process::id()));
-    std::fs::write(&probe, b"").map_err(|e| format!("cannot write in the output folder {}: {e}", dir.display()))?;
-    let _ = std::fs::remove_file(probe);
-    Ok(())
 }

@@ -84,7 +84,10 @@ pub(super) fn name(item: &Item, what: &str) -> Result<String, Diagnostic> {
 pub(super) fn checked_name(s: &str, span: std::ops::Range<usize>, what: &str) -> Result<String, Diagnostic> {
     let bad = |why: String| {
         Err(Diagnostic::new(
-            format!("{what} '{}': {why}; a name is 1 to {MAX_NAME_CHARS} ASCII letters, digits, '_' or '-', starting with a letter or digit", s.escape_debug()),
+            format!(
+                "{what} '{}': {why}; a name is 1 to {MAX_NAME_CHARS} ASCII letters, digits, '_' or '-', starting with a letter or digit",
+                s.escape_debug()
+            ),
             Some(span.clone()),
         ))
     };
@@ -95,7 +98,14 @@ pub(super) fn checked_name(s: &str, span: std::ops::Range<usize>, what: &str) ->
         return bad(format!("is {} characters long", s.chars().count()));
     }
     if let Some(c) = s.chars().find(|c| !(c.is_ascii_alphanumeric() || *c == '_' || *c == '-')) {
-        return bad(format!("holds {}", if c.is_control() || c.is_whitespace() { format!("the character {}", c.escape_unicode()) } else { format!("'{c}'") }));
+        return bad(format!(
+            "holds {}",
+            if c.is_control() || c.is_whitespace() {
+                format!("the character {}", c.escape_unicode())
+            } else {
+                format!("'{c}'")
+            }
+        ));
     }
     if !s.starts_with(|c: char| c.is_ascii_alphanumeric()) {
         return bad("starts with a sign".into());
@@ -115,7 +125,10 @@ pub(super) fn plain_text(item: &Item, what: &str) -> Result<String, Diagnostic> 
         ));
     }
     if s.chars().count() > 200 {
-        return Err(Diagnostic::new(format!("{what}: {} characters; at most 200", s.chars().count()), Some(item.span.clone())));
+        return Err(Diagnostic::new(
+            format!("{what}: {} characters; at most 200", s.chars().count()),
+            Some(item.span.clone()),
+        ));
     }
     Ok(s.to_string())
 }
