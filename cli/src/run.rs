@@ -163,9 +163,31 @@ pub fn resolve(loaded: &Loaded, params: &BTreeMap<String, f64>, limits: &Limits)
     Ok(Resolved { model, spans })
 }
 
-/// Meshes a resolved model, errors pointing at the case.
+/// Meshes a resolved model, errors pointing at the case; refused before
+/// any work when the solve would not fit in the memory this machine has
+/// free (a raised `--max-elements` let a 1e8-triangle mesh start).
 pub fn mesh(loaded: &Loaded, r: &Resolved) -> Result<mesher::Mesh, Failure> {
+    let estimate = mesher::estimate_triangles(&study::lower::mesh_spec(&r.model)).unwrap_or(0.0);
+    let need = estimate * mesher::BYTES_PER_TRIANGLE;
+    if let Some(free) = available_memory() {
+        if estimate <= r.model.mesh.max_elements as f64 && need > 0.9 * free {
+            return Err(Failure::Input(format!(
+                "error: {}: the mesh would need about {estimate:.2e} triangles, about {:.1} GB of memory to solve, but this machine has {:.1} GB free; coarsen mesh.size or mesh_size\n",
+                loaded.path.display(),
+                need / 1e9,
+                free / 1e9
+            )));
+        }
+    }
     study::run::mesh(&r.model).map_err(|e| loaded.study_error(&r.spans, &e))
+}
+
+/// Memory the kernel reports as available (Linux `MemAvailable`), bytes.
+fn available_memory() -> Option<f64> {
+    let text = std::fs::read_to_string("/proc/meminfo").ok()?;
+    let line = text.lines().find(|l| l.starts_with("MemAvailable:"))?;
+    let kib: f64 = line.split_whitespace().nth(1)?.parse().ok()?;
+    Some(kib * 1024.0)
 }
 
 /// Meshes, solves and post-processes one variant.

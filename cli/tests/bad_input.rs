@@ -122,3 +122,69 @@ fn a_misspelled_expectation_is_refused_at_its_line_before_any_mesh() {
     }
     let _ = std::fs::remove_dir_all(&work);
 }
+
+#[test]
+fn resource_guards_refuse_before_any_work() {
+    // Class 5 (issue 22), cases too large to keep in the corpus: more parts
+    // than the cap, a FIFO as the case, /dev/zero as the case.
+    let dir = std::env::temp_dir().join(format!("lodestone-guards-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let mut text = String::from("[study]\ngeometry = \"planar\"\ndepth = 1\n");
+    for i in 0..10_001 {
+        text += &format!("[[part]]\nname = \"p{i}\"\nmaterial = \"N42\"\nmagnetization = \"+y\"\nrect = {{ from = [{}, 0], to = [{}, 1] }}\n", 2 * i, 2 * i + 1);
+    }
+    let many = dir.join("many.toml");
+    std::fs::write(&many, text).unwrap();
+    let started = std::time::Instant::now();
+    let (code, msg) = run(&["check", "--quiet", many.to_str().unwrap()]);
+    assert_eq!(code, 2, "{msg}");
+    assert!(msg.contains("at most 10000"), "{msg}");
+    println!("10 001 parts refused in {:.2} s", started.elapsed().as_secs_f64());
+    #[cfg(unix)]
+    {
+        let fifo = dir.join("case.fifo");
+        let made = Command::new("mkfifo").arg(&fifo).status().is_ok_and(|s| s.success());
+        if made {
+            let (code, msg) = run(&["check", "--quiet", fifo.to_str().unwrap()]);
+            assert_eq!(code, 2, "{msg}");
+            assert!(msg.contains("not a regular file"), "{msg}");
+        }
+        let (code, msg) = run(&["solve", "--quiet", "/dev/zero", "-o", dir.join("out").to_str().unwrap()]);
+        assert_eq!(code, 2, "{msg}");
+        assert!(msg.contains("not a regular file"), "{msg}");
+        assert!(!dir.join("out").exists(), "a failed first run left a folder");
+    }
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
+fn shards_beyond_the_sweep_and_file_size_limits_get_messages() {
+    let cases = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases");
+    let pot = cases.join("pot-magnet.toml");
+    let (code, msg) = run(&["solve", "--quiet", pot.to_str().unwrap(), "--shard", "1/2"]);
+    assert_clean(&msg);
+    assert_eq!(code, 2, "{msg}");
+    assert!(msg.contains("has no [sweep]"), "{msg}");
+    let sweep = cases.join("holding-magnet-gap-sweep.toml");
+    let (code, msg) = run(&["solve", "--quiet", sweep.to_str().unwrap(), "--shard", "15/20"]);
+    assert_clean(&msg);
+    assert_eq!(code, 2, "{msg}");
+    assert!(msg.contains("has none"), "{msg}");
+    #[cfg(unix)]
+    {
+        // `ulimit -f` (blocks of 512 bytes here: 100 is 50 KiB): the field file
+        // cannot be written; a message and exit 2, not death by SIGXFSZ.
+        let out = std::env::temp_dir().join(format!("lodestone-ulimit-{}", std::process::id()));
+        let script = format!(
+            "ulimit -f 100; exec '{}' solve --quiet '{}' -o '{}'",
+            env!("CARGO_BIN_EXE_lodestone"),
+            pot.display(),
+            out.display()
+        );
+        let o = Command::new("sh").arg("-c").arg(&script).output().unwrap();
+        let text = String::from_utf8_lossy(&o.stderr);
+        assert_eq!(o.status.code(), Some(2), "{text}");
+        assert!(text.contains("cannot write"), "{text}");
+        let _ = std::fs::remove_dir_all(&out);
+    }
+}

@@ -204,7 +204,7 @@ pub fn point_in_polygon(poly: &[[f64; 2]], p: [f64; 2]) -> bool {
     inside
 }
 
-fn point_on_segment(a: [f64; 2], b: [f64; 2], p: [f64; 2]) -> bool {
+pub(crate) fn point_on_segment(a: [f64; 2], b: [f64; 2], p: [f64; 2]) -> bool {
     let len = dist(a, b);
     orient(a, b, p).abs() <= 1e-12 * len * len
         && p[0] >= a[0].min(b[0]) - 1e-15

@@ -25,11 +25,12 @@ mod exterior;
 pub mod geometry;
 mod mesh;
 mod size_field;
+mod spatial;
 mod spec;
 mod triangulate;
 
 pub use domain::Domain;
-pub use error::MeshError;
+pub use error::{MeshError, BYTES_PER_TRIANGLE};
 pub use exterior::ExteriorDisk;
 pub use mesh::{BoundaryTag, Mesh, MeshQuality, Region};
 pub use spec::{MeshSpec, OuterBoundary, PartSpec, Refinement, Shape, Symmetry, DEFAULT_GRADING, DEFAULT_MIN_ANGLE, GRADING_RANGE, MIN_ANGLE_RANGE};

@@ -3,7 +3,9 @@
 
 use crate::domain::Domain;
 use crate::error::MeshError;
-use crate::geometry::{dist, point_segment_distance, signed_area};
+use crate::geometry::{dist, signed_area};
+#[cfg(test)]
+use crate::geometry::point_segment_distance;
 use crate::spec::{MeshSpec, Refinement};
 
 /// Area of an equilateral triangle of unit edge.
@@ -38,7 +40,9 @@ pub fn sources(spec: &MeshSpec, polygons: &[Vec<[f64; 2]>]) -> Vec<SizeSource> {
     out
 }
 
-/// Size at a point by brute force over sources (used for the few boundary points).
+/// Size at a point by brute force over sources: the reference the
+/// indexed search (`spatial::SourceIndex`) is tested against.
+#[cfg(test)]
 pub fn size_at(p: [f64; 2], sources: &[SizeSource], grading: f64, max_size: f64) -> f64 {
     sources
         .iter()

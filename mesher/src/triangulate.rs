@@ -4,9 +4,10 @@
 use crate::domain::Domain;
 use crate::error::MeshError;
 use crate::exterior;
-use crate::geometry::{dist, point_in_polygon, Symmetry};
+use crate::geometry::{dist, Symmetry};
 use crate::mesh::{BoundaryTag, Mesh, Region};
-use crate::size_field::{self, SizeSource};
+use crate::size_field;
+use crate::spatial::{PolygonIndex, SourceIndex};
 use crate::spec::{MeshSpec, GRADING_RANGE, MIN_ANGLE_RANGE};
 use rayon::prelude::*;
 use spade::handles::{FixedFaceHandle, FixedVertexHandle, InnerTag};
@@ -18,9 +19,12 @@ type Cdt = ConstrainedDelaunayTriangulation<Point2<f64>>;
 struct Work<'a> {
     cdt: Cdt,
     size: Vec<f64>,
-    sources: Vec<SizeSource>,
-    /// Sources before this index are part edges, after it probes.
-    n_part_sources: usize,
+    /// Every size source (part edges and probes), indexed.
+    sources: SourceIndex,
+    /// The probes' sources alone.
+    probe_sources: SourceIndex,
+    /// The part outlines, indexed by their boxes.
+    parts: PolygonIndex,
     grading: f64,
     max_size: f64,
     polygons: &'a [Vec<[f64; 2]>],
@@ -48,8 +52,9 @@ pub fn mesh_domain(spec: &MeshSpec, polygons: &[Vec<[f64; 2]>], domain: &Domain)
     let mut work = Work {
         cdt: Cdt::new(),
         size: Vec::new(),
-        sources: size_field::sources(spec, polygons),
-        n_part_sources: polygons.iter().map(Vec::len).sum(),
+        sources: SourceIndex::new(size_field::sources(spec, polygons)),
+        probe_sources: SourceIndex::new(size_field::sources(spec, polygons).split_off(polygons.iter().map(Vec::len).sum())),
+        parts: PolygonIndex::new(polygons),
         grading: spec.grading.clamp(GRADING_RANGE.0, GRADING_RANGE.1),
         max_size: domain.max_size,
         polygons,
@@ -88,18 +93,13 @@ impl Work<'_> {
     /// every part whose outline holds the point (so that an edge between
     /// two parts is split for the finer of the two).
     fn size_at(&self, p: [f64; 2]) -> f64 {
-        let graded = size_field::size_at(p, &self.sources, self.grading, self.max_size);
-        self.polygons
-            .iter()
-            .zip(&self.part_sizes)
-            .filter(|(poly, _)| point_in_polygon(poly, p))
-            .map(|(_, &h)| h)
-            .fold(graded, f64::min)
+        let graded = self.sources.size_at(p, self.grading, self.max_size);
+        self.parts.containing(self.polygons, p).into_iter().map(|i| self.part_sizes[i]).fold(graded, f64::min)
     }
 
     /// Size wanted by the probes alone (few sources, so brute force is cheap).
     fn probe_size_at(&self, p: [f64; 2]) -> f64 {
-        size_field::size_at(p, &self.sources[self.n_part_sources..], self.grading, self.max_size)
+        self.probe_sources.size_at(p, self.grading, self.max_size)
     }
 
     /// True for an edge on the axis r = 0 that the outline already constrains.
@@ -294,10 +294,7 @@ impl Work<'_> {
     /// Target size of the region holding a triangle (the last part holding its centroid).
     fn region_size_at(&self, p: [Point2<f64>; 3]) -> f64 {
         let c = [(p[0].x + p[1].x + p[2].x) / 3.0, (p[0].y + p[1].y + p[2].y) / 3.0];
-        self.polygons
-            .iter()
-            .rposition(|poly| point_in_polygon(poly, c))
-            .map_or(f64::INFINITY, |i| self.part_sizes[i])
+        self.parts.last_containing(self.polygons, c).map_or(f64::INFINITY, |i| self.part_sizes[i])
     }
 
     fn refine_angles(&mut self, min_angle: f64, max_vertices: usize, max_triangles: usize) -> Result<(), MeshError> {
@@ -318,7 +315,7 @@ impl Work<'_> {
 
     fn extract(&self, symmetry: Symmetry, domain: &Domain) -> Mesh {
         let nodes: Vec<[f64; 2]> = self.cdt.vertices().map(|v| [v.position().x, v.position().y]).collect();
-        let regions_by_face = face_regions(&self.cdt, self.polygons);
+        let regions_by_face = face_regions(&self.cdt, self.polygons, &self.parts);
         let mut triangles = Vec::with_capacity(self.cdt.num_inner_faces());
         let mut regions = Vec::with_capacity(self.cdt.num_inner_faces());
         for face in self.cdt.inner_faces() {
@@ -368,7 +365,7 @@ impl Work<'_> {
 
 /// Region of every inner face: flood fill across non-constraint edges, then
 /// one point-in-polygon test per connected component (last part wins).
-fn face_regions(cdt: &Cdt, polygons: &[Vec<[f64; 2]>]) -> Vec<Option<Region>> {
+fn face_regions(cdt: &Cdt, polygons: &[Vec<[f64; 2]>], parts: &PolygonIndex) -> Vec<Option<Region>> {
     let n = cdt.num_inner_faces() + 1;
     let mut region: Vec<Option<Region>> = vec![None; n];
     let mut stack = Vec::new();
@@ -378,7 +375,7 @@ fn face_regions(cdt: &Cdt, polygons: &[Vec<[f64; 2]>]) -> Vec<Option<Region>> {
         }
         let p = start.positions();
         let c = [(p[0].x + p[1].x + p[2].x) / 3.0, (p[0].y + p[1].y + p[2].y) / 3.0];
-        let r = polygons.iter().rposition(|poly| point_in_polygon(poly, c)).map_or(Region::Air, Region::Part);
+        let r = parts.last_containing(polygons, c).map_or(Region::Air, Region::Part);
         region[start.fix().index()] = Some(r);
         stack.push(start);
         while let Some(face) = stack.pop() {

@@ -22,12 +22,16 @@ const MANIFEST: &str = ".lodestone-files";
 pub struct OutputFolder {
     dir: PathBuf,
     _lock: File,
+    /// The folder did not exist before this run: a run that commits
+    /// nothing removes it again (a failed first run leaves no empty folder).
+    created: bool,
 }
 
 impl OutputFolder {
     /// Creates (if needed) and locks the folder, finishing any interrupted
     /// commit and clearing temporary files of a dead run.
     pub fn open(dir: &Path) -> Result<OutputFolder, String> {
+        let created = !dir.exists();
         std::fs::create_dir_all(dir).map_err(|e| format!("cannot create the output folder {}: {e}", dir.display()))?;
         let lock = File::options()
             .create(true)
@@ -44,6 +48,7 @@ impl OutputFolder {
         let folder = OutputFolder {
             dir: dir.to_path_buf(),
             _lock: lock,
+            created,
         };
         folder.recover(dir)?;
         Ok(folder)
@@ -106,6 +111,16 @@ impl OutputFolder {
     pub fn remove_variant(&self, label: &str) {
         if label.starts_with("variant-") && !label.contains(['/', '\\']) {
             let _ = std::fs::remove_dir_all(self.dir.join(label));
+        }
+    }
+}
+
+impl Drop for OutputFolder {
+    fn drop(&mut self) {
+        if self.created && !self.dir.join(MANIFEST).exists() {
+            let _ = std::fs::remove_file(self.dir.join(LOCK));
+            // Only if nothing else is in it.
+            let _ = std::fs::remove_dir(&self.dir);
         }
     }
 }

@@ -32,6 +32,11 @@ use study::model::Model;
 use study::{Origin, StudyError};
 use study_table::{applied_field, boundary, depth, geometry, length_unit, STUDY};
 
+/// Most parts a case may have: each gets its own mesh of at least tens of
+/// triangles, so 150 000 parts meant millions of triangles and minutes
+/// before any output.
+pub const MAX_PARTS: usize = 10_000;
+
 /// Where each part, probe and expectation of a model was written: byte
 /// ranges of the case text, by the model's indices.
 #[derive(Clone, Debug, Default)]
@@ -82,6 +87,12 @@ pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> R
     };
     if parts_items.is_empty() {
         return Err(Diagnostic::new("the case has no [[part]]: a study needs at least one part", Some(0..1)));
+    }
+    if parts_items.len() > MAX_PARTS {
+        return Err(Diagnostic::new(
+            format!("the case has {} [[part]] tables; at most {MAX_PARTS} (a 2D section of one assembly), split the study", parts_items.len()),
+            Some(parts_items[MAX_PARTS].span.start..parts_items[MAX_PARTS].span.start + 1),
+        ));
     }
     let mesh = mesh_settings(&top, &ctx, parts_items)?;
     let mut parts = Vec::new();
