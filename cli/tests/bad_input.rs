@@ -131,7 +131,11 @@ fn resource_guards_refuse_before_any_work() {
     std::fs::create_dir_all(&dir).unwrap();
     let mut text = String::from("[study]\ngeometry = \"planar\"\ndepth = 1\n");
     for i in 0..10_001 {
-        text += &format!("[[part]]\nname = \"p{i}\"\nmaterial = \"N42\"\nmagnetization = \"+y\"\nrect = {{ from = [{}, 0], to = [{}, 1] }}\n", 2 * i, 2 * i + 1);
+        text += &format!(
+            "[[part]]\nname = \"p{i}\"\nmaterial = \"N42\"\nmagnetization = \"+y\"\nrect = {{ from = [{}, 0], to = [{}, 1] }}\n",
+            2 * i,
+            2 * i + 1
+        );
     }
     let many = dir.join("many.toml");
     std::fs::write(&many, text).unwrap();

@@ -3,9 +3,9 @@
 
 use crate::domain::Domain;
 use crate::error::MeshError;
-use crate::geometry::{dist, signed_area};
 #[cfg(test)]
 use crate::geometry::point_segment_distance;
+use crate::geometry::{dist, signed_area};
 use crate::spec::{MeshSpec, Refinement};
 
 /// Area of an equilateral triangle of unit edge.

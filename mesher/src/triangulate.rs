@@ -94,7 +94,11 @@ impl Work<'_> {
     /// two parts is split for the finer of the two).
     fn size_at(&self, p: [f64; 2]) -> f64 {
         let graded = self.sources.size_at(p, self.grading, self.max_size);
-        self.parts.containing(self.polygons, p).into_iter().map(|i| self.part_sizes[i]).fold(graded, f64::min)
+        self.parts
+            .containing(self.polygons, p)
+            .into_iter()
+            .map(|i| self.part_sizes[i])
+            .fold(graded, f64::min)
     }
 
     /// Size wanted by the probes alone (few sources, so brute force is cheap).

@@ -140,8 +140,30 @@ pub fn current_densities(model: &Model, mesh: &mesher::Mesh) -> Result<Vec<f64>,
         .collect()
 }
 
+/// Parts that later parts cover wholly are refused: they would contribute
+/// nothing and report zeros (a study whose only magnet was covered gave
+/// zero results and exit 0).
+pub fn check_parts_visible(model: &Model, mesh: &mesher::Mesh) -> Result<(), StudyError> {
+    let areas = mesh.part_areas(model.parts.len());
+    for (i, (p, area)) in model.parts.iter().zip(areas).enumerate() {
+        if area <= 0.0 {
+            let cover = model.parts[i + 1..].iter().map(|q| format!("'{}'", q.name)).collect::<Vec<_>>();
+            return Err(StudyError::new(
+                format!(
+                    "part '{}' is wholly covered by later parts ({}), so nothing of it is meshed; where parts overlap the later one wins: move it, or list it after them",
+                    p.name,
+                    cover.join(", ")
+                ),
+                Some(Origin::Part(i)),
+            ));
+        }
+    }
+    Ok(())
+}
+
 /// The solver's problem for a model on its mesh.
 pub fn problem<'m>(model: &Model, mesh: &'m mesher::Mesh) -> Result<Problem<'m>, StudyError> {
+    check_parts_visible(model, mesh)?;
     let mut problem = Problem::new(mesh, laws(model)?, current_densities(model, mesh)?);
     problem.applied_field = model.applied_field;
     problem.newton = model.newton;

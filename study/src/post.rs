@@ -224,16 +224,26 @@ fn thin_parts(model: &Model) -> Vec<String> {
             (thickness < MIN_ELEMENTS_ACROSS * p.mesh_size).then(|| {
                 let f = model.length_unit.1;
                 format!(
-                    "part '{}' is {:.3} {u} thick but its mesh size is {:.3} {u}: fewer than {MIN_ELEMENTS_ACROSS} elements across; set mesh_size = {:.3} or less for accuracy inside it",
+                    "part '{}' is {} {u} thick but its mesh size is {} {u}: fewer than {MIN_ELEMENTS_ACROSS} elements across; set mesh_size = {} or less for accuracy inside it",
                     p.name,
-                    thickness / f,
-                    p.mesh_size / f,
-                    thickness / f / 3.0,
+                    significant(thickness / f),
+                    significant(p.mesh_size / f),
+                    significant(thickness / f / 3.0),
                     u = model.length_unit.0
                 )
             })
         })
         .collect()
+}
+
+/// A length for a message with three significant digits, however small
+/// (a sliver's advice read "mesh_size = 0.000" with fixed decimals).
+fn significant(x: f64) -> String {
+    if x == 0.0 || !x.is_finite() {
+        return format!("{x}");
+    }
+    let decimals = (2 - x.abs().log10().floor() as i32).max(0) as usize;
+    format!("{x:.decimals$}")
 }
 
 /// Relative current step of the perturbation solve.

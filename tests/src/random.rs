@@ -62,6 +62,20 @@ pub fn mutate(text: &str, rng: &mut Rng) -> String {
         "1e400",
         "-",
         "polygon = [[0,0],[0,0],[0,0]]",
+        // Multi-byte UTF-8: spaces pasted from PDFs, accents, an emoji, a
+        // byte-order mark, a right-to-left mark, a combining accent.
+        "\u{a0}",
+        "\u{2009}",
+        "\u{e9}",
+        "\u{1f9f2}",
+        "\u{feff}",
+        "\u{200f}",
+        "e\u{301}",
+        "\\u00e9",
+        "\\t",
+        "\u{1b}[31m",
+        "../",
+        "/",
     ];
     let mut bytes = text.as_bytes().to_vec();
     for _ in 0..1 + rng.below(4) {
@@ -69,7 +83,7 @@ pub fn mutate(text: &str, rng: &mut Rng) -> String {
             break;
         }
         let at = rng.below(bytes.len());
-        match rng.below(5) {
+        match rng.below(7) {
             0 => bytes[at] = (rng.next_u64() & 0x7f) as u8,
             1 => {
                 let end = (at + rng.below(16)).min(bytes.len());
@@ -80,9 +94,22 @@ pub fn mutate(text: &str, rng: &mut Rng) -> String {
                 let piece = bytes[at..end].to_vec();
                 bytes.splice(at..at, piece);
             }
-            _ => {
+            4 => {
                 let t = rng.pick(TOKENS).as_bytes().to_vec();
                 bytes.splice(at..at, t);
+            }
+            5 => {
+                // Deep nesting: parentheses in an expression, brackets or
+                // braces in TOML.
+                let (open, close) = *rng.pick(&[("(", ")"), ("[", "]"), ("{", "}"), ("-", "")]);
+                let depth = 1 + rng.below(2_000);
+                let piece = format!("{}1{}", open.repeat(depth), close.repeat(depth));
+                bytes.splice(at..at, piece.into_bytes());
+            }
+            _ => {
+                // A long name or string.
+                let piece = "n".repeat(1 + rng.below(5_000));
+                bytes.splice(at..at, piece.into_bytes());
             }
         }
     }
@@ -93,13 +120,25 @@ pub fn mutate(text: &str, rng: &mut Rng) -> String {
 /// parameters, resolve, and the mesh estimate (meshing only when small).
 /// Returns whether it was accepted. Panics propagate to the caller.
 pub fn read_case(text: &str) -> bool {
-    let Ok(doc) = lodestone::case::document::parse(text) else { return false };
-    let Ok(params) = lodestone::case::resolve::params(&doc, &Default::default()) else {
-        return false;
+    // Every refusal is rendered too: the renderer once panicked on its own.
+    let refused = |d: lodestone::case::Diagnostic| {
+        let _ = lodestone::case::render("fuzz.toml", text, &d);
+        false
     };
-    let _ = lodestone::case::resolve::sweep(&doc);
-    let Ok((model, _spans)) = lodestone::case::resolve::resolve(&doc, &params, std::path::Path::new(".")) else {
-        return false;
+    let doc = match lodestone::case::document::parse(text) {
+        Ok(doc) => doc,
+        Err(d) => return refused(d),
+    };
+    let params = match lodestone::case::resolve::params(&doc, &Default::default()) {
+        Ok(p) => p,
+        Err(d) => return refused(d),
+    };
+    if let Err(d) = lodestone::case::resolve::sweep(&doc) {
+        refused(d);
+    }
+    let model = match lodestone::case::resolve::resolve(&doc, &params, std::path::Path::new(".")) {
+        Ok((model, _spans)) => model,
+        Err(d) => return refused(d),
     };
     let mut spec = study::lower::mesh_spec(&model);
     spec.max_triangles = 20_000;

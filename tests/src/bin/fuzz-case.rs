@@ -1,7 +1,7 @@
 //! Fuzz harness for the case reader: mutates the example cases for a given
 //! number of seconds and feeds each through parse, resolve and meshing,
 //! catching panics. Crashing inputs are written to tests/bad-cases/fuzz-*.toml
-//! for triage. Usage: `cargo run --release -p validation --bin fuzz-case -- SECONDS [SEED]`
+//! for triage. Usage: `cargo run --release -p validation --bin fuzz-case -- SECONDS [SEED] [MAX_INPUTS]`
 
 use std::time::Instant;
 use validation::random::{mutate, read_case, Rng};
@@ -10,6 +10,7 @@ fn main() {
     let args: Vec<String> = std::env::args().collect();
     let seconds: f64 = args.get(1).and_then(|s| s.parse().ok()).unwrap_or(60.0);
     let seed: u64 = args.get(2).and_then(|s| s.parse().ok()).unwrap_or(7);
+    let max_inputs: u64 = args.get(3).and_then(|s| s.parse().ok()).unwrap_or(u64::MAX);
     let dir = concat!(env!("CARGO_MANIFEST_DIR"), "/../cases");
     let seeds: Vec<String> = std::fs::read_dir(dir)
         .expect("cases folder")
@@ -20,7 +21,7 @@ fn main() {
     let mut rng = Rng::new(seed);
     let start = Instant::now();
     let (mut runs, mut accepted, mut crashes) = (0u64, 0u64, 0u64);
-    while start.elapsed().as_secs_f64() < seconds {
+    while start.elapsed().as_secs_f64() < seconds && runs < max_inputs {
         let mut text = seeds[rng.below(seeds.len())].clone();
         for _ in 0..1 + rng.below(3) {
             text = mutate(&text, &mut rng);

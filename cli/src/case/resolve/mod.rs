@@ -90,7 +90,10 @@ pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> R
     }
     if parts_items.len() > MAX_PARTS {
         return Err(Diagnostic::new(
-            format!("the case has {} [[part]] tables; at most {MAX_PARTS} (a 2D section of one assembly), split the study", parts_items.len()),
+            format!(
+                "the case has {} [[part]] tables; at most {MAX_PARTS} (a 2D section of one assembly), split the study",
+                parts_items.len()
+            ),
             Some(parts_items[MAX_PARTS].span.start..parts_items[MAX_PARTS].span.start + 1),
         ));
     }
@@ -101,6 +104,7 @@ pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> R
         parts.push(part(item, &ctx, symmetry, &user_materials, &mesh, &parts)?);
         spans.parts.push(item.span.clone());
     }
+    check_temperature(&study, temperature, &parts)?;
     let mut model = Model {
         title: study
             .get("title")
@@ -133,4 +137,24 @@ pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> R
     check_unique_names(&top)?;
     (model.expects, spans.expects) = expects(&top, &ctx, &model)?.into_iter().unzip();
     Ok((model, spans))
+}
+
+/// Refuses a study temperature outside a magnet grade's temperature range.
+fn check_temperature(study: &crate::case::document::Fields, temperature: f64, parts: &[study::model::Part]) -> Result<(), Diagnostic> {
+    for p in parts {
+        if let study::materials::Material::Magnet(g) = &p.material.material {
+            let (lo, hi) = g.temperature_range();
+            if !(lo..=hi).contains(&temperature) {
+                let span = study.get("temperature").map(|t| t.span.clone());
+                return Err(Diagnostic::new(
+                    format!(
+                        "study.temperature {temperature} degC is outside the range of magnet '{}' ({}): {lo} to {hi:.0} degC, where its temperature model holds",
+                        p.name, p.material.name
+                    ),
+                    span,
+                ));
+            }
+        }
+    }
+    Ok(())
 }
