@@ -192,3 +192,49 @@ fn an_edited_bh_file_is_solved_again() {
     assert!(t.contains("2 variants solved (0 already whole"), "{t}");
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+#[test]
+fn junit_counts_broken_cases_and_unconverged_expectations_as_failures() {
+    // Class 4: a case that cannot be read is a failed test (with only broken
+    // cases the report said tests=0, failures=0), and an expectation that
+    // holds on an unconverged solution fails.
+    let dir = temp("junit");
+    let broken = dir.join("broken.toml");
+    std::fs::write(&broken, "[[part]]\nname = \"m\"\nmaterial = \"N4\"\n").unwrap();
+    let junit = dir.join("report.xml");
+    let (code, text) = run(&["check", "--quiet", broken.to_str().unwrap(), "--junit", junit.to_str().unwrap()]);
+    assert_eq!(code, 2, "{text}");
+    let xml = std::fs::read_to_string(&junit).unwrap();
+    assert!(xml.contains("tests=\"1\" failures=\"1\""), "{xml}");
+    assert!(xml.contains("unknown material"), "{xml}");
+    // Saturating steel stopped after one Newton-Raphson iteration.
+    let unconverged = dir.join("unconverged.toml");
+    let case =
+        sweep_case("planar", "[1]").replace("[params]", "[solver]\nmax_iterations = 1\n\n[params]") + "\n[[expect]]\nvalue = \"energy\"\nmin = \"0 J\"\n";
+    std::fs::write(&unconverged, case).unwrap();
+    let (code, text) = run(&["check", "--quiet", unconverged.to_str().unwrap(), "--junit", junit.to_str().unwrap()]);
+    assert_eq!(code, 3, "{text}");
+    assert!(text.contains("FAIL (not converged)") && text.contains("nothing was written"), "{text}");
+    let xml = std::fs::read_to_string(&junit).unwrap();
+    assert!(xml.contains("failures=\"1\"") && xml.contains("did not converge"), "{xml}");
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
+fn a_mesh_below_the_asked_angle_is_reported() {
+    // A 3-degree spike cannot be meshed with 28-degree triangles: the
+    // results say so instead of staying silent.
+    let dir = temp("angle");
+    let case = dir.join("spike.toml");
+    std::fs::write(
+        &case,
+        "[study]\ngeometry = \"planar\"\ndepth = \"10 mm\"\n[[part]]\nname = \"pole\"\nmaterial = \"low-carbon-steel\"\npolygon = [[0, 0], [20, 0], [0, 1]]\n[[part]]\nname = \"magnet\"\nmaterial = \"N42\"\nmagnetization = \"+y\"\nrect = { from = [0, -5], to = [20, -1] }\n[output]\nvtk = false\nplots = false\n",
+    )
+    .unwrap();
+    let out = dir.join("out");
+    let (code, text) = run(&["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()]);
+    assert_eq!(code, 0, "{text}");
+    let json = std::fs::read_to_string(out.join("results.json")).unwrap();
+    assert!(json.contains("smallest angle is"), "{json}");
+    let _ = std::fs::remove_dir_all(&dir);
+}

@@ -48,6 +48,13 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
         }
     }
     warnings.extend(thin_parts(model));
+    let smallest = mesh.quality().min_angle_deg;
+    if smallest < model.mesh.min_angle - MIN_ANGLE_SLACK {
+        warnings.push(format!(
+            "the mesh's smallest angle is {smallest:.1} deg, below the {:.1} deg asked (the refinement stops at sharp corners of the outlines and at its element limit); results near such triangles are less accurate",
+            model.mesh.min_angle
+        ));
+    }
     values.retain(|_, v| v.is_finite());
     let units = crate::value_names::value_names(model)
         .into_iter()
@@ -245,6 +252,9 @@ fn significant(x: f64) -> String {
     let decimals = (2 - x.abs().log10().floor() as i32).max(0) as usize;
     format!("{x:.decimals$}")
 }
+
+/// How far below the asked smallest angle the mesh may fall unremarked, degrees.
+const MIN_ANGLE_SLACK: f64 = 0.5;
 
 /// Relative current step of the perturbation solve.
 const CURRENT_STEP: f64 = 1e-3;
