@@ -24,10 +24,16 @@ fn overrides(set: &[String]) -> Result<BTreeMap<String, f64>, Failure> {
         let Some((k, v)) = s.split_once('=') else {
             return Err(Failure::Input(format!("error: --set {s}: expected NAME=VALUE, for example --set gap=2.5\n")));
         };
-        let value: f64 = v
-            .trim()
-            .parse()
-            .map_err(|_| Failure::Input(format!("error: --set {s}: '{v}' is not a number\n")))?;
+        let value: f64 = v.trim().parse().map_err(|_| {
+            // "4mm": a number with a unit, which --set does not take.
+            let number: String = v.trim().chars().take_while(|c| c.is_ascii_digit() || matches!(c, '.' | '-' | '+' | 'e' | 'E')).collect();
+            let hint = if !number.is_empty() && number.parse::<f64>().is_ok() {
+                format!("\n      = help: --set takes a plain number, in the units the case uses for that parameter (its unit comes from where the case uses it): --set {k}={number}")
+            } else {
+                String::new()
+            };
+            Failure::Input(format!("error: --set {s}: '{v}' is not a number{hint}\n"))
+        })?;
         if !value.is_finite() {
             return Err(Failure::Input(format!("error: --set {s}: the value must be finite\n")));
         }

@@ -8,6 +8,7 @@
 pub mod diagnostic;
 pub mod document;
 pub mod expr;
+pub mod material_names;
 mod quantity;
 pub mod resolve;
 pub mod suggest;

@@ -55,7 +55,7 @@ impl Context<'_> {
                     )),
                     None => Err(
                         Diagnostic::new(format!("{what}: unknown unit '{}'; expected {}", parsed.unit, kind.describe()), span)
-                            .suggest(parsed.unit, units::symbols_of(kind)),
+                            .with_help(Some(units::suggestion(parsed.unit, kind))),
                     ),
                 }
             }

@@ -73,6 +73,7 @@ pub const UNITS: &[(&str, Kind, f64)] = &[
     ("kJ/m3", Kind::EnergyProduct, 1e3),
     ("MGOe", Kind::EnergyProduct, 1e5 / (4.0 * PI)),
     ("degC", Kind::Temperature, 1.0),
+    ("\u{b0}C", Kind::Temperature, 1.0),
     ("K", Kind::Temperature, 1.0),
     ("A", Kind::Current, 1.0),
     ("kA", Kind::Current, 1e3),
@@ -81,6 +82,7 @@ pub const UNITS: &[(&str, Kind, f64)] = &[
     ("N", Kind::Force, 1.0),
     ("kN", Kind::Force, 1e3),
     ("lbf", Kind::Force, 4.448_221_615_260_5),
+    ("kgf", Kind::Force, 9.806_65),
     ("%", Kind::Percent, 1.0),
     ("%/K", Kind::PercentPerKelvin, 1.0),
     ("%/degC", Kind::PercentPerKelvin, 1.0),
@@ -107,6 +109,59 @@ pub fn offset(symbol: &str) -> f64 {
     }
 }
 
+/// Spellings people write for a unit, with the symbol meant: a word that
+/// is a different unit of the same kind by edit distance ("80 C" was met by
+/// "did you mean 'K'?", i.e. 80 kelvin) must lead to the unit meant.
+const ALIASES: &[(&str, &str)] = &[
+    ("C", "degC"),
+    ("celsius", "degC"),
+    ("degree", "deg"),
+    ("degrees", "deg"),
+    ("kelvin", "K"),
+    ("millimetre", "mm"),
+    ("millimeter", "mm"),
+    ("centimetre", "cm"),
+    ("centimeter", "cm"),
+    ("metre", "m"),
+    ("meter", "m"),
+    ("inch", "in"),
+    ("inches", "in"),
+    ("thou", "mil"),
+    ("tesla", "T"),
+    ("millitesla", "mT"),
+    ("gauss", "G"),
+    ("oersted", "Oe"),
+    ("newton", "N"),
+    ("newtons", "N"),
+    ("kgF", "kgf"),
+    ("kp", "kgf"),
+    ("lb", "lbf"),
+    ("lbs", "lbf"),
+    ("ampere", "A"),
+    ("amps", "A"),
+    ("A/mm^2", "A/mm2"),
+    ("henry", "H"),
+    ("weber", "Wb"),
+    ("joule", "J"),
+];
+
+/// Help for an unknown unit where `kind` is wanted: the unit meant, when
+/// the word is a known spelling of one or close to one of that kind, else
+/// the list of the kind's units.
+pub fn suggestion(word: &str, kind: Kind) -> String {
+    let symbols = symbols_of(kind);
+    let meant = ALIASES
+        .iter()
+        .find(|(alias, symbol)| alias.eq_ignore_ascii_case(word) && symbols.contains(symbol))
+        .map(|(_, symbol)| symbol.to_string())
+        .or_else(|| symbols.iter().find(|s| s.eq_ignore_ascii_case(word)).map(|s| s.to_string()))
+        .or_else(|| crate::case::suggest::closest(word, symbols.iter().copied()));
+    match meant {
+        Some(s) => format!("did you mean '{s}'?"),
+        None => format!("the units of {}: {}", kind.describe().split(" (").next().unwrap_or(""), symbols.join(", ")),
+    }
+}
+
 /// Looks a unit up by its symbol.
 pub fn unit(symbol: &str) -> Option<(Kind, f64)> {
     UNITS.iter().find(|u| u.0 == symbol).map(|u| (u.1, u.2))
@@ -122,6 +177,17 @@ mod tests {
     use super::*;
 
     #[test]
+    fn suggestions_know_the_kind_asked_for() {
+        assert_eq!(suggestion("C", Kind::Temperature), "did you mean 'degC'?");
+        assert_eq!(suggestion("millimetre", Kind::Length), "did you mean 'mm'?");
+        assert_eq!(suggestion("MM", Kind::Length), "did you mean 'mm'?");
+        assert_eq!(suggestion("kp", Kind::Force), "did you mean 'kgf'?");
+        assert!(suggestion("furlong", Kind::Length).contains("m, cm, mm, um, in, mil"), "{}", suggestion("furlong", Kind::Length));
+        // A spelling of another kind's unit is not offered.
+        assert!(!suggestion("tesla", Kind::Length).contains("'T'"));
+    }
+
+    #[test]
     fn factors_match_published_definitions() {
         // NIST SP 811 (2008), B.8: inch = 2.54e-2 m exactly; mil = 2.54e-5 m.
         assert_eq!(unit("in").unwrap().1, 2.54e-2);
@@ -133,6 +199,8 @@ mod tests {
         assert!((unit("lbf").unwrap().1 - 4.448_222).abs() < 1e-6);
         // SI Brochure 9th ed.: T = 0 K corresponds to -273.15 degC.
         assert_eq!(offset("K"), -273.15);
+        // NIST SP 811 B.8: kilogram-force = 9.80665 N (standard gravity, exact).
+        assert_eq!(unit("kgf").unwrap().1, 9.806_65);
         // 1 MGOe = 7.957747 kJ/m3 (from G and Oe above).
         assert!((unit("MGOe").unwrap().1 - 7957.747).abs() < 1e-3);
     }

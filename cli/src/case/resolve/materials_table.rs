@@ -199,6 +199,6 @@ pub(super) fn lookup_material(item: &Item, user: &BTreeMap<String, (Entry, std::
             format!("unknown material '{name}' (not in the built-in library nor in [materials])"),
             Some(item.span.clone()),
         )
-        .suggest(name, names.iter().map(String::as_str))
+        .with_help(Some(crate::case::material_names::help(name, &names)))
     })
 }

@@ -27,7 +27,7 @@ pub(super) fn length_unit(study: &Fields) -> Result<(String, f64), Diagnostic> {
     match crate::case::units::unit(name) {
         Some((Kind::Length, f)) => Ok((name.into(), f)),
         _ => Err(Diagnostic::new(format!("study.unit: '{name}' is not a length unit"), Some(u.span.clone()))
-            .suggest(name, crate::case::units::symbols_of(Kind::Length))),
+            .with_help(Some(crate::case::units::suggestion(name, Kind::Length)))),
     }
 }
 
