@@ -133,6 +133,7 @@ fn solve_sweep(loaded: &Loaded, variants: &[Variant], folder: &OutputFolder, lim
         .iter()
         .map(|v| run::resolve(loaded, &v.params, limits).map(|r| sweep::variant_key(case, v, &r.model)))
         .collect();
+    unused_sweep_parameter(loaded, variants, &keys)?;
     let results: Vec<(usize, Result<Outcome, Failure>)> = variants
         .par_iter()
         .zip(&keys)
@@ -187,6 +188,28 @@ fn solve_sweep(loaded: &Loaded, variants: &[Variant], folder: &OutputFolder, lim
         out.join("sweep.csv").display()
     );
     Ok(failed.into_iter().fold(code, i32::max))
+}
+
+/// Refuses a sweep over a parameter that nothing in the case uses: two
+/// variants that differ in it resolve to the same model, and would be
+/// solved twice to the same answer.
+fn unused_sweep_parameter(loaded: &Loaded, variants: &[Variant], keys: &[Result<String, Failure>]) -> Result<(), Failure> {
+    let model_of = |k: &Result<String, Failure>| k.as_ref().ok().and_then(|k| k.lines().next().map(str::to_string));
+    let mut seen: BTreeMap<String, &Variant> = BTreeMap::new();
+    for (v, k) in variants.iter().zip(keys) {
+        let Some(model) = model_of(k) else { continue };
+        if let Some(first) = seen.get(&model) {
+            let name = v.swept.iter().zip(&first.swept).find(|(a, b)| a.1 != b.1).map_or("?", |(a, _)| a.0.as_str());
+            return Err(Failure::Input(format!(
+                "error: {}: the sweep over '{name}' gives identical models ({} and {}): nothing in the case uses '{name}'; write it into a part's dimensions or a material, or remove it from [sweep]\n",
+                loaded.path.display(),
+                first.label,
+                v.label
+            )));
+        }
+        seen.insert(model, v);
+    }
+    Ok(())
 }
 
 /// A variant's swept parameters, `gap = 0.5, t = 2`.

@@ -140,6 +140,21 @@ pub fn current_densities(model: &Model, mesh: &mesher::Mesh) -> Result<Vec<f64>,
         .collect()
 }
 
+/// A study without any source of field is refused: no magnet, no winding
+/// current and no applied field give zero everywhere (such a case
+/// "converged in 0 iterations" with all zeros).
+pub fn check_sources(model: &Model) -> Result<(), StudyError> {
+    let magnet = model.parts.iter().any(|p| matches!(p.material.material, Material::Magnet(_)));
+    let current = model.parts.iter().any(|p| p.current.is_some_and(|i| i != 0.0));
+    if magnet || current || model.applied_field != [0.0, 0.0] {
+        return Ok(());
+    }
+    Err(StudyError::new(
+        "the study has no source of field: no magnet, no winding current and no applied field, so every result would be zero; add a magnet, a current or study.applied_field".into(),
+        None,
+    ))
+}
+
 /// Parts that later parts cover wholly are refused: they would contribute
 /// nothing and report zeros (a study whose only magnet was covered gave
 /// zero results and exit 0).

@@ -16,6 +16,8 @@ pub struct Model {
     pub length_unit: (String, f64),
     /// Planar out-of-plane length, m (1 for axisymmetric studies).
     pub depth: f64,
+    /// Whether a planar study's depth was given (else results are per metre).
+    pub depth_given: bool,
     /// Magnet temperature, degC.
     pub temperature: f64,
     /// How the outside is closed.

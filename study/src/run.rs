@@ -32,6 +32,7 @@ pub enum Stage {
 /// Meshes a model after checking that its probes lie where the mesh reaches.
 pub fn mesh(model: &Model) -> Result<mesher::Mesh, StudyError> {
     lower::check_probes_inside(model)?;
+    lower::check_sources(model)?;
     mesher::build_mesh(&lower::mesh_spec(model)).map_err(|e| lower::mesh_error(model, &e))
 }
 

@@ -41,7 +41,10 @@ pub fn help(name: &str, known: &[String]) -> String {
         }
     }
     for (names, say) in DESIGNATIONS {
-        if names.iter().any(|n| *n == lower || lower.ends_with(&format!("-{n}")) || lower.starts_with(&format!("{n}-"))) {
+        if names
+            .iter()
+            .any(|n| *n == lower || lower.ends_with(&format!("-{n}")) || lower.starts_with(&format!("{n}-")))
+        {
             return format!("'{name}' looks like {say}");
         }
     }
@@ -66,10 +69,20 @@ mod tests {
     use super::*;
 
     fn known() -> Vec<String> {
-        ["N35", "N42", "N52", "N42SH", "YX16", "steel-1010", "low-carbon-steel", "stainless-430", "M270-35A"]
-            .iter()
-            .map(|s| s.to_string())
-            .collect()
+        [
+            "N35",
+            "N42",
+            "N52",
+            "N42SH",
+            "YX16",
+            "steel-1010",
+            "low-carbon-steel",
+            "stainless-430",
+            "M270-35A",
+        ]
+        .iter()
+        .map(|s| s.to_string())
+        .collect()
     }
 
     #[test]

@@ -182,7 +182,11 @@ mod tests {
         assert_eq!(suggestion("millimetre", Kind::Length), "did you mean 'mm'?");
         assert_eq!(suggestion("MM", Kind::Length), "did you mean 'mm'?");
         assert_eq!(suggestion("kp", Kind::Force), "did you mean 'kgf'?");
-        assert!(suggestion("furlong", Kind::Length).contains("m, cm, mm, um, in, mil"), "{}", suggestion("furlong", Kind::Length));
+        assert!(
+            suggestion("furlong", Kind::Length).contains("m, cm, mm, um, in, mil"),
+            "{}",
+            suggestion("furlong", Kind::Length)
+        );
         // A spelling of another kind's unit is not offered.
         assert!(!suggestion("tesla", Kind::Length).contains("'T'"));
     }

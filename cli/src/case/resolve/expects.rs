@@ -36,8 +36,27 @@ fn value_name(item: &Item, model: &Model) -> Result<ValueName, Diagnostic> {
     let written = item.str("expect.value")?;
     study::value_names::value_name(model, written).ok_or_else(|| {
         let names = study::value_names::value_names(model);
-        Diagnostic::new(format!("expect: this study reports no value named '{written}'"), Some(item.span.clone()))
-            .suggest(written, names.iter().map(|n| n.name.as_str()))
+        let err = Diagnostic::new(format!("expect: this study reports no value named '{written}'"), Some(item.span.clone()));
+        // A component of the other geometry: y is z about the axis, x is r.
+        let axisymmetric = model.symmetry == mesher::Symmetry::Axisymmetric;
+        let swaps: &[(&str, &str)] = if axisymmetric {
+            &[("y", "z"), ("x", "r"), ("by", "bz"), ("bx", "br")]
+        } else {
+            &[("z", "y"), ("r", "x"), ("bz", "by"), ("br", "bx")]
+        };
+        let mapped = written.rsplit_once('.').and_then(|(head, last)| {
+            let to = swaps.iter().find(|(from, _)| *from == last)?.1;
+            let name = format!("{head}.{to}");
+            names.iter().any(|n| n.name == name).then_some(name)
+        });
+        match mapped {
+            Some(m) => err.with_help(Some(format!(
+                "components in {} study are {}; did you mean '{m}'?",
+                if axisymmetric { "an axisymmetric" } else { "a planar" },
+                if axisymmetric { "r and z" } else { "x and y" }
+            ))),
+            None => err.suggest(written, names.iter().map(|n| n.name.as_str())),
+        }
     })
 }
 

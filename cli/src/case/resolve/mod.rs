@@ -114,6 +114,7 @@ pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> R
         symmetry,
         length_unit: (unit_name, unit),
         depth: depth(&study, &ctx, symmetry)?,
+        depth_given: study.get("depth").is_some(),
         temperature,
         boundary: boundary(&study, &ctx)?,
         applied_field: applied_field(&study, &ctx, symmetry)?,

@@ -1,0 +1,95 @@
+//! Modelling mistakes that used to pass silently now get a warning or a
+//! refusal (issue 23, point 2), and `solve` exits 1 when an expectation fails.
+
+use std::path::PathBuf;
+use std::process::Command;
+
+fn temp(name: &str) -> PathBuf {
+    let d = std::env::temp_dir().join(format!("lodestone-mistakes-{}-{name}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&d);
+    std::fs::create_dir_all(&d).unwrap();
+    d
+}
+
+/// Solves `text` as a case: exit code, terminal text, and results.json if written.
+fn solve(name: &str, text: &str) -> (i32, String, String) {
+    let dir = temp(name);
+    let case = dir.join("case.toml");
+    std::fs::write(&case, text).unwrap();
+    let out = dir.join("out");
+    let o = Command::new(env!("CARGO_BIN_EXE_lodestone"))
+        .args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()])
+        .output()
+        .unwrap();
+    let json = std::fs::read_to_string(out.join("results.json")).unwrap_or_default();
+    let _ = std::fs::remove_dir_all(&dir);
+    (
+        o.status.code().unwrap_or(-1),
+        format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr)),
+        json,
+    )
+}
+
+const MAGNET: &str = "[[part]]\nname = \"magnet\"\nmaterial = \"N42\"\nmagnetization = \"+y\"\nrect = { from = [0, 0], to = [10, 5] }\n";
+const OUTPUT: &str = "[output]\nvtk = false\nplots = false\nreport = false\n";
+
+#[test]
+fn a_study_without_a_source_is_refused() {
+    let (code, text, _) = solve(
+        "nosource",
+        &format!("[study]\ngeometry = \"planar\"\ndepth = \"10 mm\"\n[[part]]\nname = \"plate\"\nmaterial = \"low-carbon-steel\"\nrect = {{ from = [0, 0], to = [10, 5] }}\n{OUTPUT}"),
+    );
+    assert_eq!(code, 2, "{text}");
+    assert!(text.contains("no source of field"), "{text}");
+}
+
+#[test]
+fn a_planar_study_without_depth_says_its_results_are_per_metre() {
+    let (code, text, json) = solve("depth", &format!("[study]\ngeometry = \"planar\"\n{MAGNET}{OUTPUT}"));
+    assert_eq!(code, 0, "{text}");
+    assert!(json.contains("per metre of depth"), "{json}");
+    let (_, _, json) = solve("depthgiven", &format!("[study]\ngeometry = \"planar\"\ndepth = \"50 mm\"\n{MAGNET}{OUTPUT}"));
+    assert!(!json.contains("per metre of depth"), "{json}");
+}
+
+#[test]
+fn a_probe_inside_material_and_a_covered_magnet_are_warned() {
+    let case = format!(
+        "[study]\ngeometry = \"planar\"\ndepth = \"10 mm\"\n{MAGNET}[[part]]\nname = \"plate\"\nmaterial = \"low-carbon-steel\"\nrect = {{ from = [-5, 3], to = [15, 8] }}\n[[probe]]\nname = \"inside\"\npoint = [5, 1]\n{OUTPUT}"
+    );
+    let (code, text, json) = solve("inside", &case);
+    assert_eq!(code, 0, "{text}");
+    assert!(json.contains("probe 'inside' lies inside part 'magnet'"), "{json}");
+    // The plate overlaps the top 2 mm of the 5 mm magnet: 40 % covered.
+    assert!(json.contains("magnet 'magnet' is 40 % covered by later parts ('plate')"), "{json}");
+}
+
+#[test]
+fn a_sweep_over_an_unused_parameter_is_refused() {
+    let case = format!("[params]\nt = 1\n[sweep]\nt = [1, 2, 3]\n[study]\ngeometry = \"planar\"\ndepth = \"10 mm\"\n{MAGNET}{OUTPUT}");
+    let (code, text, _) = solve("unused", &case);
+    assert_eq!(code, 2, "{text}");
+    assert!(text.contains("nothing in the case uses 't'"), "{text}");
+}
+
+#[test]
+fn bounds_and_value_names_are_checked_against_the_quantity() {
+    // A bound in newtons on a flux density.
+    let case = format!("[study]\ngeometry = \"planar\"\ndepth = \"10 mm\"\n{MAGNET}[[probe]]\nname = \"p\"\npoint = [5, 10]\n[[expect]]\nvalue = \"probe.p.b\"\nmax = \"5 N\"\n{OUTPUT}");
+    let (code, text, _) = solve("bound", &case);
+    assert_eq!(code, 2, "{text}");
+    assert!(text.contains("the bound is a force") && text.contains("a flux density"), "{text}");
+    // A planar component name in an axisymmetric study.
+    let case = "[study]\ngeometry = \"axisymmetric\"\n[[part]]\nname = \"magnet\"\nmaterial = \"N42\"\nmagnetization = \"+z\"\nrect = { from = [0, 0], to = [10, 5] }\n[[part]]\nname = \"plate\"\nmaterial = \"low-carbon-steel\"\nrect = { from = [0, 6], to = [20, 9] }\n[[force]]\nname = \"pull\"\nparts = [\"plate\"]\n[[expect]]\nvalue = \"force.pull.y\"\nmax = \"0 N\"\n";
+    let (code, text, _) = solve("axisym", &format!("{case}{OUTPUT}"));
+    assert_eq!(code, 2, "{text}");
+    assert!(text.contains("did you mean 'force.pull.z'?"), "{text}");
+}
+
+#[test]
+fn solve_exits_1_when_an_expectation_fails() {
+    let case = format!("[study]\ngeometry = \"planar\"\ndepth = \"10 mm\"\n{MAGNET}[[expect]]\nvalue = \"energy\"\nmax = \"0 J\"\n{OUTPUT}");
+    let (code, text, json) = solve("fails", &case);
+    assert_eq!(code, 1, "{text}");
+    assert!(json.contains("\"pass\": false"), "{json}");
+}
