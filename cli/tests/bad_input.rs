@@ -2,6 +2,8 @@
 //! and message, and nothing panics. Each `NAME.toml` has a `NAME.expect`:
 //! the exit code on the first line, a fragment of the message on the second.
 
+mod common;
+
 use std::path::{Path, PathBuf};
 use std::process::Command;
 
@@ -97,13 +99,9 @@ fn an_unknown_parameter_override_is_reported() {
 fn a_misspelled_expectation_is_refused_at_its_line_before_any_mesh() {
     // Every example case with one misspelled [[expect]] value appended: exit 2
     // at that table's line and column, and no output folder (nothing meshed).
-    let cases = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases");
     let work = std::env::temp_dir().join(format!("lodestone-typo-{}", std::process::id()));
     std::fs::create_dir_all(&work).unwrap();
-    let mut names: Vec<PathBuf> = std::fs::read_dir(&cases).unwrap().flatten().map(|e| e.path()).collect();
-    names.retain(|p| p.extension().is_some_and(|x| x == "toml"));
-    names.sort();
-    for case in names {
+    for case in common::example_cases() {
         let text = std::fs::read_to_string(&case).unwrap();
         let typo = format!("{text}\n\n[[expect]]\nvalue = \"force.pul.z\"\nmax = \"1 N\"\n");
         let line = typo.lines().position(|l| l.contains("force.pul.z")).unwrap() + 1;

@@ -4,6 +4,8 @@
 //! regenerates the baseline with `bash tests/baseline/bless.sh` and says
 //! why in its commit; a refactor must leave it alone.
 
+mod common;
+
 use serde_json::Value;
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
@@ -31,13 +33,7 @@ fn example_values_match_the_kept_baseline() {
     let work = std::env::temp_dir().join(format!("lodestone-baseline-{}", std::process::id()));
     let mut seen = 0;
     let mut mismatches = Vec::new();
-    let mut cases: Vec<PathBuf> = std::fs::read_dir(root.join("cases"))
-        .unwrap()
-        .flatten()
-        .map(|e| e.path())
-        .filter(|p| p.extension().is_some_and(|x| x == "toml"))
-        .collect();
-    cases.sort();
+    let cases = common::example_cases();
     for case in &cases {
         let stem = case.file_stem().unwrap().to_string_lossy().into_owned();
         let out = work.join(&stem);

@@ -1,18 +1,13 @@
 //! The example cases are regression tests: `lodestone check cases/*.toml` passes.
 
+mod common;
+
 use std::path::Path;
 use std::process::Command;
 
 #[test]
 fn every_example_case_passes_check() {
-    let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases");
-    let mut cases: Vec<_> = std::fs::read_dir(&dir)
-        .unwrap()
-        .flatten()
-        .map(|e| e.path())
-        .filter(|p| p.extension().is_some_and(|x| x == "toml"))
-        .collect();
-    cases.sort();
+    let cases = common::example_cases();
     assert!(cases.len() >= 8, "{} example cases", cases.len());
     let junit = std::env::temp_dir().join(format!("lodestone-examples-{}.xml", std::process::id()));
     let out = Command::new(env!("CARGO_BIN_EXE_lodestone"))

@@ -187,9 +187,17 @@ pub fn signed_area(poly: &[[f64; 2]]) -> f64 {
 
 /// Even-odd point-in-polygon test; points on an edge count as inside.
 pub fn point_in_polygon(poly: &[[f64; 2]], p: [f64; 2]) -> bool {
+    point_in_edges(poly, 0..poly.len(), p)
+}
+
+/// Even-odd ray casting over the listed edges of `poly` (edge i runs from
+/// point i to the next), with a point on one of them counting as inside:
+/// over every edge, the point-in-polygon test; over the edges that can
+/// cross the point's height (a row band of `spatial`), the same answer.
+pub fn point_in_edges(poly: &[[f64; 2]], edges: impl IntoIterator<Item = usize>, p: [f64; 2]) -> bool {
     let n = poly.len();
     let mut inside = false;
-    for i in 0..n {
+    for i in edges {
         let (a, b) = (poly[i], poly[(i + 1) % n]);
         if point_on_segment(a, b, p) {
             return true;
@@ -204,7 +212,7 @@ pub fn point_in_polygon(poly: &[[f64; 2]], p: [f64; 2]) -> bool {
     inside
 }
 
-pub(crate) fn point_on_segment(a: [f64; 2], b: [f64; 2], p: [f64; 2]) -> bool {
+fn point_on_segment(a: [f64; 2], b: [f64; 2], p: [f64; 2]) -> bool {
     let len = dist(a, b);
     orient(a, b, p).abs() <= 1e-12 * len * len
         && p[0] >= a[0].min(b[0]) - 1e-15
