@@ -37,10 +37,13 @@ pub fn magnet_results(model: &Model, sol: &Solution, values: &mut BTreeMap<Strin
         let hcj = g.hcj_at(t);
         let knee = -KNEE_FRACTION * hcj;
         let wp = magnet_check::working_point(sol, i, dir, knee);
-        let onset = onset_temperature(wp.worst_h, t, g.br_coeff, g.hcj_coeff, KNEE_FRACTION * g.hcj);
+        let onset = onset_temperature(wp.worst_share_h, t, g.br_coeff, g.hcj_coeff, KNEE_FRACTION * g.hcj);
         values.insert(format!("magnet.{}.margin", p.name), wp.margin);
+        values.insert(format!("magnet.{}.margin_local", p.name), wp.margin_local);
         values.insert(format!("magnet.{}.permeance", p.name), wp.permeance);
         values.insert(format!("magnet.{}.share_past_knee", p.name), wp.share_past_knee);
+        // Past the knee over more than WORST_SHARE of the volume (the margin
+        // is taken at that percentile): a corner alone does not warn.
         if wp.margin < 0.0 {
             let when = onset.map_or(String::new(), |c| format!("; by the linear model the knee is first reached near {c:.0} degC"));
             warnings.push(format!(
@@ -59,6 +62,7 @@ pub fn magnet_results(model: &Model, sol: &Solution, values: &mut BTreeMap<Strin
                 hcj_a_per_m: hcj,
                 knee_h_a_per_m: knee,
                 margin: wp.margin,
+                margin_local: wp.margin_local,
                 share_past_knee: wp.share_past_knee,
                 permeance: wp.permeance,
                 mean_b_t: wp.mean_b,

@@ -203,8 +203,11 @@ pub struct MagnetResult {
     pub hcj_a_per_m: f64,
     /// Field strength of the knee along the magnetization (negative), A/m.
     pub knee_h_a_per_m: f64,
-    /// Margin to the knee at the worst point: 1 - H/H_knee (a local value).
+    /// Margin to the knee of the most demagnetized 1 % of the volume:
+    /// 1 - H/H_knee at that percentile (converges with the mesh).
     pub margin: f64,
+    /// The margin at the single worst point: a local value that follows the mesh at corners.
+    pub margin_local: f64,
     /// Volume share past the knee.
     pub share_past_knee: f64,
     /// Permeance coefficient from the volume means.

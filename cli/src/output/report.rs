@@ -79,7 +79,7 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
     }
     s.push('\n');
     if !r.magnets.is_empty() {
-        let _ = writeln!(s, "## Magnets at {} degC\n\nThe knee is taken at {:.0} % of HcJ at the study temperature; the margin is 1 - H/H_knee at the worst point (0: at the knee). The onset temperature is a linear-model estimate (field scaled with Br, knee with HcJ).\n\n| magnet | grade | Br (T) | HcJ (kA/m) | margin | past knee | permeance | onset (degC) |\n|---|---|---|---|---|---|---|---|", model.temperature, 100.0 * study::checks::KNEE_FRACTION);
+        let _ = writeln!(s, "## Magnets at {} degC\n\nThe knee is taken at {:.0} % of HcJ at the study temperature; the margin is 1 - H/H_knee over the most demagnetized 1 % of the volume (0: at the knee; the value at the single worst point, `margin_local` in results.json, follows the mesh at corners and is not judged). The onset temperature is a linear-model estimate (field scaled with Br, knee with HcJ).\n\n| magnet | grade | Br (T) | HcJ (kA/m) | margin | past knee | permeance | onset (degC) |\n|---|---|---|---|---|---|---|---|", model.temperature, 100.0 * study::checks::KNEE_FRACTION);
         for (n, m) in &r.magnets {
             let _ = writeln!(
                 s,

@@ -9,9 +9,17 @@ use crate::MU0;
 /// What the magnet check reports for one part.
 #[derive(Clone, Debug, PartialEq)]
 pub struct WorkingPoint {
-    /// Smallest margin over the magnet: 1 - H/H_knee along the magnetization
-    /// (1 = no demagnetizing field, 0 = at the knee, negative = past it).
+    /// Margin of the most demagnetized WORST_SHARE of the volume:
+    /// 1 - H/H_knee along the magnetization at that volume percentile (1 = no
+    /// demagnetizing field, 0 = at the knee, negative = past it). Unlike the
+    /// worst point it converges with the mesh: at a corner the field is
+    /// singular, and halving the mesh twice moved the worst point's margin
+    /// from -0.61 to -1.19 to -1.63 while the share past the knee stayed at
+    /// 0.04 %.
     pub margin: f64,
+    /// The margin at the single worst quadrature point: a local value that
+    /// follows the mesh at corners.
+    pub margin_local: f64,
     /// Volume share of the magnet past the knee.
     pub share_past_knee: f64,
     /// Permeance coefficient -B/(mu0 H) from the volume means along the magnetization.
@@ -20,10 +28,30 @@ pub struct WorkingPoint {
     pub mean_b: f64,
     /// Volume mean of H along the magnetization, A/m.
     pub mean_h: f64,
-    /// The most demagnetizing H along the magnetization (A/m).
+    /// The most demagnetizing H along the magnetization (A/m), at one point.
     pub worst_h: f64,
+    /// H along the magnetization at the most demagnetized WORST_SHARE of the volume (A/m).
+    pub worst_share_h: f64,
     /// (H, B) along the magnetization at each quadrature point, for plots.
     pub points: Vec<[f64; 2]>,
+}
+
+/// The volume share over which the margin is judged.
+pub const WORST_SHARE: f64 = 0.01;
+
+/// The H below which `share` of the volume lies: the weighted percentile of
+/// (H, weight) pairs.
+fn volume_percentile(mut samples: Vec<(f64, f64)>, share: f64) -> f64 {
+    samples.sort_by(|a, b| a.0.total_cmp(&b.0));
+    let total: f64 = samples.iter().map(|s| s.1).sum();
+    let mut below = 0.0;
+    for (h, w) in &samples {
+        below += w;
+        if below >= share * total {
+            return *h;
+        }
+    }
+    samples.last().map_or(f64::NAN, |s| s.0)
 }
 
 /// Working point of part `part`, magnetized along the unit vector `dir`,
@@ -33,6 +61,7 @@ pub fn working_point(solution: &Solution, part: usize, dir: [f64; 2], knee_h: f6
     let (mut vol, mut sb, mut sh, mut past) = (0.0, 0.0, 0.0, 0.0);
     let mut worst = f64::INFINITY;
     let mut points = Vec::new();
+    let mut weighted = Vec::new();
     for e in 0..els.n_physical {
         if els.kinds[e] != ElementKind::Part(part) {
             continue;
@@ -48,22 +77,38 @@ pub fn working_point(solution: &Solution, part: usize, dir: [f64; 2], knee_h: f6
                 past += p.weight;
             }
             points.push([hp, bp]);
+            weighted.push((hp, p.weight));
         });
     }
     let (mean_b, mean_h) = if vol > 0.0 { (sb / vol, sh / vol) } else { (0.0, 0.0) };
-    let margin = if knee_h < 0.0 && worst.is_finite() {
-        1.0 - worst / knee_h
-    } else {
-        f64::INFINITY
-    };
+    let worst_share_h = volume_percentile(weighted, WORST_SHARE);
+    let margin_at = |h: f64| if knee_h < 0.0 && h.is_finite() { 1.0 - h / knee_h } else { f64::INFINITY };
     let permeance = if mean_h < 0.0 { -mean_b / (MU0 * mean_h) } else { f64::INFINITY };
     WorkingPoint {
-        margin,
+        margin: margin_at(worst_share_h),
+        margin_local: margin_at(worst),
         share_past_knee: if vol > 0.0 { past / vol } else { 0.0 },
         permeance,
         mean_b,
         mean_h,
         worst_h: worst,
+        worst_share_h,
         points,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::volume_percentile;
+
+    #[test]
+    fn the_percentile_is_weighted_by_volume() {
+        // One tiny, very negative point (a corner) does not move the 1 % figure.
+        let mut samples: Vec<(f64, f64)> = (0..100).map(|i| (i as f64, 1.0)).collect();
+        samples.push((-1e6, 1e-3));
+        assert_eq!(volume_percentile(samples.clone(), 0.01), 0.0);
+        assert_eq!(volume_percentile(samples, 0.5), 49.0);
+        // A heavy point counts with its weight.
+        assert_eq!(volume_percentile(vec![(-5.0, 3.0), (1.0, 97.0)], 0.01), -5.0);
     }
 }
