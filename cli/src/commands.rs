@@ -310,7 +310,8 @@ fn check_case(case: &Path, over: &BTreeMap<String, f64>, limits: &Limits, progre
         println!("{}{tag}", loaded.path.display());
         println!("  {:<36} {:<24} {:>14}  result", "value", "bound", "actual");
         for e in &o.results.expect {
-            let actual = e.actual.map_or("-".into(), |a| format!("{a:.6e}"));
+            let unit = o.results.units.get(&e.value).copied().unwrap_or("");
+            let actual = e.actual.map_or("-".into(), |a| crate::output::engineering::eng(a, unit));
             // An expectation on an unconverged solution cannot pass: its value is not the answer.
             let pass = e.pass && converged;
             let verdict = if pass {

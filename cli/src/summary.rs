@@ -1,13 +1,23 @@
 //! The plain-text summary printed after a solve.
 
+use crate::output::engineering::eng;
 use crate::run::Outcome;
 use std::path::Path;
 
+/// The summary: mesh and solve figures, forces, fluxes, probes, parts,
+/// energy, expectations, and the warnings, in engineering notation.
 pub fn summary(o: &Outcome, out: &Path) -> String {
     let r = &o.results;
     let m = &o.model;
     let (u, f) = (&m.length_unit.0, m.length_unit.1);
     let mut s = format!("{}\n", m.title);
+    if m.symmetry == mesher::Symmetry::Planar {
+        s += &if m.depth_given {
+            format!("  planar, depth {} {u}: forces, fluxes and energies are for the whole depth\n", m.depth / f)
+        } else {
+            "  planar, NO DEPTH GIVEN: forces, fluxes and energies are per metre of depth\n".to_string()
+        };
+    }
     s += &format!(
         "  mesh: {} nodes, {} triangles (order {}), {} unknowns, min angle {:.1} deg\n",
         r.mesh.nodes, r.mesh.elements, r.mesh.element_order, r.mesh.unknowns, r.mesh.min_angle_deg
@@ -27,28 +37,30 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
             ""
         };
         s += &format!(
-            "  force {name}: [{:.4e}, {:.4e}] N, |F| = {:.4e} N{contact}\n",
-            fr.vector[0], fr.vector[1], fr.magnitude
+            "  force {name}: [{}, {}], |F| = {}{contact}\n",
+            eng(fr.vector[0], "N"),
+            eng(fr.vector[1], "N"),
+            eng(fr.magnitude, "N")
         );
     }
     for (name, fl) in &r.flux {
-        s += &format!("  flux {name}: {:.4e} Wb", fl.wb);
+        s += &format!("  flux {name}: {}", eng(fl.wb, "Wb"));
         if let Some(l) = fl.inductance_h {
-            s += &format!(", inductance {l:.4e} H");
+            s += &format!(", inductance {}", eng(l, "H"));
         }
         s.push('\n');
     }
     for (name, p) in &r.probes {
         if p.points.len() == 1 {
             s += &format!(
-                "  probe {name} at ({:.4}, {:.4}) {u}: |B| = {:.4e} T\n",
+                "  probe {name} at ({}, {}) {u}: |B| = {}\n",
                 p.points[0][0] / f,
                 p.points[0][1] / f,
-                p.bmag[0]
+                eng(p.bmag[0], "T")
             );
         } else {
             let max = p.bmag.iter().copied().fold(0.0, f64::max);
-            s += &format!("  probe {name}: {} points, |B| max {:.4e} T\n", p.points.len(), max);
+            s += &format!("  probe {name}: {} points, |B| max {}\n", p.points.len(), eng(max, "T"));
         }
     }
     for (name, p) in &r.parts {
@@ -56,17 +68,26 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
             Some(true) => "  SATURATED (above the knee of its curve)",
             _ => "",
         };
-        s += &format!("  part {name} ({}): |B| max {:.3} T, mean {:.3} T{sat}\n", p.material, p.b_max, p.b_mean);
+        s += &format!(
+            "  part {name} ({}): |B| mean {}, peak {} (local){sat}\n",
+            p.material,
+            eng(p.b_mean, "T"),
+            eng(p.b_max, "T")
+        );
     }
-    s += &format!("  energy: {:.4e} J\n", r.energy.stored_j);
+    s += &format!("  energy: {}\n", eng(r.energy.stored_j, "J"));
     for e in &r.expect {
+        let unit = r.units.get(&e.value).copied().unwrap_or("");
         s += &format!(
             "  expect {} {}: {} ({})\n",
             e.value,
             e.bound,
-            e.actual.map_or("-".into(), |a| format!("{a:.4e}")),
+            e.actual.map_or("-".into(), |a| eng(a, unit)),
             if e.pass { "pass" } else { "FAIL" }
         );
+    }
+    for w in &r.warnings {
+        s += &format!("  WARNING: {w}\n");
     }
     s += &format!("  results in {}\n", out.display());
     s

@@ -5,6 +5,7 @@
 //! results and never mixes two runs' files.
 
 pub mod csv;
+pub mod engineering;
 pub mod fieldmap;
 pub mod folder;
 pub mod pictures;

@@ -1,0 +1,58 @@
+//! Numbers as engineers read them: four significant digits with an SI
+//! prefix (-333.2 N, 5.29 mT, 12.9 kgf), not scientific notation. For what
+//! people read (summary, check, report); machine files keep full precision.
+
+/// `value` in `unit` with an SI prefix chosen so that the number lies in
+/// [1, 1000); a unit without a prefix form (empty for a ratio, degC) gets
+/// four significant digits alone.
+pub fn eng(value: f64, unit: &str) -> String {
+    if !value.is_finite() {
+        return format!("{value} {unit}").trim_end().to_string();
+    }
+    let prefixable = !unit.is_empty() && !matches!(unit, "degC" | "%" | "deg" | "kgf" | "lbf");
+    if value == 0.0 || !prefixable {
+        return format!("{} {unit}", significant(value)).trim_end().to_string();
+    }
+    const PREFIXES: [(i32, &str); 9] = [(-12, "p"), (-9, "n"), (-6, "u"), (-3, "m"), (0, ""), (3, "k"), (6, "M"), (9, "G"), (12, "T")];
+    let exponent = ((value.abs().log10() / 3.0).floor() as i32 * 3).clamp(-12, 12);
+    let prefix = PREFIXES.iter().find(|p| p.0 == exponent).map_or("", |p| p.1);
+    let scaled = value / 10f64.powi(exponent);
+    // Rounding to four digits can reach 1000: take the next prefix then.
+    if significant(scaled).trim_start_matches('-').starts_with("1000") && exponent < 12 {
+        return eng(value * (1.0 + 1e-12), unit);
+    }
+    format!("{} {prefix}{unit}", significant(scaled))
+}
+
+/// Four significant digits, trailing zeros after the point dropped.
+fn significant(x: f64) -> String {
+    if x == 0.0 {
+        return "0".into();
+    }
+    let decimals = (3 - x.abs().log10().floor() as i32).clamp(0, 12) as usize;
+    let s = format!("{x:.decimals$}");
+    if s.contains('.') {
+        s.trim_end_matches('0').trim_end_matches('.').to_string()
+    } else {
+        s
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::eng;
+
+    #[test]
+    fn numbers_read_as_engineers_write_them() {
+        assert_eq!(eng(-333.16, "N"), "-333.2 N");
+        assert_eq!(eng(5.2899e-3, "T"), "5.29 mT");
+        assert_eq!(eng(0.0005, "N"), "500 uN");
+        assert_eq!(eng(26_000.0, "N"), "26 kN");
+        assert_eq!(eng(0.2107, "J"), "210.7 mJ");
+        assert_eq!(eng(0.4279, ""), "0.4279");
+        assert_eq!(eng(12.94, "kgf"), "12.94 kgf");
+        assert_eq!(eng(0.0, "T"), "0 T");
+        assert_eq!(eng(999.96, "N"), "1 kN");
+        assert_eq!(eng(1.389e-2, "H"), "13.89 mH");
+    }
+}
