@@ -335,6 +335,24 @@ fn check_case(case: &Path, over: &BTreeMap<String, f64>, limits: &Limits, progre
                 message,
             });
         }
+        // A magnet past its knee over more than 1 % of its volume fails
+        // `check` unless the case allows it (it will lose magnetization).
+        if !o.model.allow.iter().any(|a| a == "demagnetization") {
+            for (name, m) in o.results.magnets.iter().filter(|(_, m)| m.margin < 0.0) {
+                code = code.max(1);
+                println!(
+                    "  magnet {name}: past its knee over {:.1} % of its volume  FAIL (demagnetization; allow = [\"demagnetization\"] in [study] if intended)",
+                    100.0 * m.share_past_knee
+                );
+                suite.cases.push(crate::junit::Case {
+                    name: format!("demagnetization of magnet {name}{tag}"),
+                    message: Some(format!(
+                        "magnet '{name}' is past its knee over {:.1} % of its volume",
+                        100.0 * m.share_past_knee
+                    )),
+                });
+            }
+        }
         if o.results.expect.is_empty() {
             println!("  (no [[expect]] in this case)");
         }

@@ -93,3 +93,47 @@ fn solve_exits_1_when_an_expectation_fails() {
     assert_eq!(code, 1, "{text}");
     assert!(json.contains("\"pass\": false"), "{json}");
 }
+
+/// An axisymmetric N42 disk of radius 5 mm and length `length` mm at `celsius`.
+fn disk(length: f64, celsius: f64, extra: &str) -> String {
+    format!(
+        "[study]\ngeometry = \"axisymmetric\"\ntemperature = \"{celsius} degC\"\n{extra}\n[[part]]\nname = \"disk\"\nmaterial = \"N42\"\nmagnetization = \"+z\"\nrect = {{ from = [0, 0], to = [5, {length}] }}\n{OUTPUT}"
+    )
+}
+
+/// Runs `check` on a case text: exit code and terminal text.
+fn check(name: &str, text: &str) -> (i32, String) {
+    let dir = temp(name);
+    let case = dir.join("case.toml");
+    std::fs::write(&case, text).unwrap();
+    let o = Command::new(env!("CARGO_BIN_EXE_lodestone"))
+        .args(["check", "--quiet", case.to_str().unwrap()])
+        .output()
+        .unwrap();
+    let _ = std::fs::remove_dir_all(&dir);
+    (
+        o.status.code().unwrap_or(-1),
+        format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr)),
+    )
+}
+
+#[test]
+fn a_demagnetized_magnet_warns_and_fails_check_unless_allowed() {
+    // N42 loses HcJ at about 0.75 %/K (library sources S1, S5): a 10 mm x 2 mm disk
+    // (permeance coefficient well below 1) at 150 degC runs past its knee.
+    let (code, text, json) = solve("hot", &disk(2.0, 150.0, ""));
+    assert_eq!(code, 0, "{text}");
+    assert!(text.contains("WARNING: magnet 'disk'") && text.contains("past its knee"), "{text}");
+    assert!(json.contains("past its knee"), "{json}");
+    let (code, text) = check("hotcheck", &disk(2.0, 150.0, ""));
+    assert_eq!(code, 1, "{text}");
+    assert!(text.contains("FAIL (demagnetization"), "{text}");
+    let (code, text) = check("allowed", &disk(2.0, 150.0, "allow = [\"demagnetization\"]"));
+    assert_eq!(code, 0, "{text}");
+    // No false alarm: a 10 mm x 10 mm cylinder at 20 degC.
+    let (code, text, _) = solve("cool", &disk(10.0, 20.0, ""));
+    assert_eq!(code, 0, "{text}");
+    assert!(!text.contains("WARNING"), "{text}");
+    let (code, text) = check("coolcheck", &disk(10.0, 20.0, ""));
+    assert_eq!(code, 0, "{text}");
+}

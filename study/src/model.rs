@@ -44,6 +44,8 @@ pub struct Model {
     pub reach_level: f64,
     /// Parameter values of this variant.
     pub params: BTreeMap<String, f64>,
+    /// Design-check failures that `check` lets pass (`"demagnetization"`).
+    pub allow: Vec<String>,
 }
 
 /// How the mesh is made.

@@ -131,6 +131,7 @@ pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> R
             None => 5e-3,
         },
         params: params.clone(),
+        allow: study_table::allowed(&study)?,
     };
     (model.probes, spans.probes) = probes(&top, &ctx)?.into_iter().unzip();
     model.forces = forces(&top, &ctx, &model)?;

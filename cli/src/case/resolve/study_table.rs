@@ -17,6 +17,7 @@ pub const STUDY: &[&str] = &[
     "applied_field",
     "box",
     "reach_level",
+    "allow",
 ];
 
 pub(super) fn length_unit(study: &Fields) -> Result<(String, f64), Diagnostic> {
@@ -108,4 +109,27 @@ pub(super) fn applied_field(study: &Fields, ctx: &Context, symmetry: Symmetry) -
             Some(a.span.clone()),
         )),
     }
+}
+
+/// What `check` lets pass that it would otherwise fail: `allow =
+/// ["demagnetization"]` for a design whose magnet is meant to run past its
+/// knee (a study of the loss itself).
+pub(super) fn allowed(study: &Fields) -> Result<Vec<String>, Diagnostic> {
+    const ALLOWED: &[&str] = &["demagnetization"];
+    let Some(a) = study.get("allow") else { return Ok(Vec::new()) };
+    a.array("study.allow")?
+        .iter()
+        .map(|item| {
+            let word = item.str("study.allow")?;
+            if ALLOWED.contains(&word) {
+                Ok(word.to_string())
+            } else {
+                Err(Diagnostic::new(
+                    format!("study.allow: unknown '{word}'; allowed: {}", ALLOWED.join(", ")),
+                    Some(item.span.clone()),
+                )
+                .suggest(word, ALLOWED.iter().copied()))
+            }
+        })
+        .collect()
 }
