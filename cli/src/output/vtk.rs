@@ -55,9 +55,22 @@ pub fn mesh_vtu(model: &Model, mesh: &Mesh) -> Result<Vec<u8>, String> {
     grid(mesh, &model.title, Vec::new(), region_arrays(model, mesh))
 }
 
+/// Flux lines are contours of the flux function: A_z itself when planar
+/// (Wb per metre), but 2 pi r A_phi about the axis (the flux through the
+/// circle of radius r, Wb): contours of A_phi are not flux lines.
+fn flux_function(symmetry: mesher::Symmetry, nodes: &[[f64; 2]], potential: &[f64]) -> Vec<f64> {
+    match symmetry {
+        mesher::Symmetry::Planar => potential.to_vec(),
+        mesher::Symmetry::Axisymmetric => potential.iter().zip(nodes).map(|(a, x)| 2.0 * std::f64::consts::PI * x[0] * a).collect(),
+    }
+}
+
+/// field.vtu: potential and flux function at the nodes, B, |B|, H and
+/// relative permeability per triangle, with part and material numbers.
 pub fn field_vtu(model: &Model, sol: &Solution) -> Result<Vec<u8>, String> {
     let mesh = sol.problem.mesh;
     let potential: Vec<f64> = (0..mesh.n_physical).map(|n| sol.node_potential(n)).collect();
+    let flux_function = flux_function(mesh.symmetry, &mesh.nodes, &potential);
     let n = mesh.triangles.len();
     use rayon::prelude::*;
     let per: Vec<([f64; 2], [f64; 2], f64)> = (0..n)
@@ -77,5 +90,29 @@ pub fn field_vtu(model: &Model, sol: &Solution) -> Result<Vec<u8>, String> {
     cell.push(Attribute::scalars("B_magnitude", 1).with_data(bm));
     cell.push(Attribute::vectors("H").with_data(h));
     cell.push(Attribute::scalars("relative_permeability", 1).with_data(mu));
-    grid(mesh, &model.title, vec![Attribute::scalars("potential", 1).with_data(potential)], cell)
+    let point = vec![
+        Attribute::scalars("potential", 1).with_data(potential),
+        Attribute::scalars("flux_function", 1).with_data(flux_function),
+    ];
+    grid(mesh, &model.title, point, cell)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::flux_function;
+
+    #[test]
+    fn the_axisymmetric_flux_function_is_the_flux_through_the_circle() {
+        // A uniform B0 along z has A_phi = B0 r / 2; the flux through the circle
+        // of radius r is B0 pi r^2 (Gauss's law for a uniform field).
+        let b0 = 0.3;
+        let nodes: Vec<[f64; 2]> = (0..20).map(|i| [0.001 * i as f64, 0.01]).collect();
+        let a: Vec<f64> = nodes.iter().map(|x| b0 * x[0] / 2.0).collect();
+        let f = flux_function(mesher::Symmetry::Axisymmetric, &nodes, &a);
+        for (x, phi) in nodes.iter().zip(f) {
+            let exact = b0 * std::f64::consts::PI * x[0] * x[0];
+            assert!((phi - exact).abs() <= 1e-15, "{phi} against {exact}");
+        }
+        assert_eq!(flux_function(mesher::Symmetry::Planar, &nodes, &a), a);
+    }
 }
