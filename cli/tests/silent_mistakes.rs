@@ -137,3 +137,16 @@ fn a_demagnetized_magnet_warns_and_fails_check_unless_allowed() {
     let (code, text) = check("coolcheck", &disk(10.0, 20.0, ""));
     assert_eq!(code, 0, "{text}");
 }
+
+#[test]
+fn cautions_fit_the_study_and_the_reach_names_its_reference() {
+    // An electromagnet without a permanent magnet: no magnet-handling or air-transport caution.
+    let coil = "[study]\ngeometry = \"axisymmetric\"\n[[part]]\nname = \"coil\"\nmaterial = \"copper\"\ncurrent = \"500 A\"\nrect = { from = [5, 0], to = [10, 10] }\n[[part]]\nname = \"core\"\nmaterial = \"low-carbon-steel\"\nrect = { from = [0, 0], to = [4, 10] }\n[output]\nvtk = false\nplots = false\n";
+    let (code, text, json) = solve("coil", coil);
+    assert_eq!(code, 0, "{text}");
+    assert!(!json.contains("snap together") && !json.contains("air-transport"), "{json}");
+    assert!(json.contains("implanted medical devices"), "{json}");
+    assert!(json.contains("reference_point_m"), "{json}");
+    let (_, _, json) = solve("magnetcautions", &disk(10.0, 20.0, ""));
+    assert!(json.contains("snap together") && json.contains("air-transport"), "{json}");
+}

@@ -103,6 +103,7 @@ pub fn stray_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String
         return r;
     };
     let (c, radius) = (disk.center, disk.radius);
+    r.reference_point_m = Some(c);
     let limit = 0.98 * radius;
     let axisym = model.symmetry == Symmetry::Axisymmetric;
     let series = stray::exterior_series(sol, c, 0.95 * radius);

@@ -100,7 +100,7 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
         parts,
         values,
         units,
-        cautions: CAUTIONS.to_vec(),
+        cautions: cautions(model),
     }
 }
 
@@ -252,6 +252,17 @@ fn significant(x: f64) -> String {
     }
     let decimals = (2 - x.abs().log10().floor() as i32).max(0) as usize;
     format!("{x:.decimals$}")
+}
+
+/// The cautions that fit the study: magnet handling and air transport only
+/// where there is a permanent magnet (an electromagnet got them too).
+fn cautions(model: &Model) -> Vec<&'static str> {
+    let magnets = model.parts.iter().any(|p| matches!(p.material.material, Material::Magnet(_)));
+    CAUTIONS
+        .iter()
+        .copied()
+        .filter(|c| magnets || !(c.contains("snap together") || c.contains("air-transport")))
+        .collect()
 }
 
 /// Share of a magnet that later parts may cover unremarked.

@@ -233,6 +233,9 @@ pub struct StrayResult {
     pub implant_distance_axis_m: Option<f64>,
     /// Distance in the mid-plane where |B| falls to 0.5 mT, m.
     pub implant_distance_plane_m: Option<f64>,
+    /// The point distances are measured from: the centre of the box around
+    /// every part (on the axis when axisymmetric), m.
+    pub reference_point_m: Option<[f64; 2]>,
     /// Distance along the axis where |B| falls to the reach level, m.
     pub reach_axis_m: Option<f64>,
     /// The reach level, T.

@@ -97,9 +97,17 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
     }
     let st = &r.stray;
     let _ = writeln!(s, "## Stray field\n");
+    if let Some(c) = st.reference_point_m {
+        let _ = writeln!(
+            s,
+            "Distances are measured from ({}, {}) {u}, the centre of the box around every part, along the axis and in the mid-plane through it.\n",
+            c[0] / f,
+            c[1] / f
+        );
+    }
     let _ = writeln!(
         s,
-        "- reach along the axis to {:.1} mT (a common rule of thumb for picking up small steel items): {} {u}",
+        "- reach along the axis to {:.1} mT (a common rule of thumb for picking up small steel items), from the reference point: {} {u}",
         st.reach_level_t * 1e3,
         opt(st.reach_axis_m, 1.0 / f, 1)
     );
