@@ -306,7 +306,12 @@ fn check_case(case: &Path, over: &BTreeMap<String, f64>, limits: &Limits, progre
         if !converged {
             code = code.max(not_converged(&o, false));
         }
-        let tag = if v.label.is_empty() { String::new() } else { format!(" [{}]", v.label) };
+        // Variants named by their parameters, not only by number.
+        let tag = if v.label.is_empty() {
+            String::new()
+        } else {
+            format!(" [{}: {}]", v.label, describe(v))
+        };
         println!("{}{tag}", loaded.path.display());
         println!("  {:<36} {:<24} {:>14}  result", "value", "bound", "actual");
         for e in &o.results.expect {

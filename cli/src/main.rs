@@ -100,12 +100,17 @@ enum Command {
 /// A file-size limit (`ulimit -f`) kills a process that writes past it
 /// with SIGXFSZ and no message; ignored, the write fails with EFBIG
 /// instead, and the atomic writer reports it and leaves earlier results.
+/// SIGPIPE gets its default back (see below).
 fn ignore_file_size_signal() {
     #[cfg(unix)]
     // SAFETY: setting a signal's disposition to SIG_IGN at start-up, before
     // any thread exists, has no memory-safety preconditions.
     unsafe {
         libc::signal(libc::SIGXFSZ, libc::SIG_IGN);
+        // Output piped into `head` that closes early: end quietly as other
+        // command-line tools do (Rust ignores SIGPIPE, and println! then
+        // panicked on the broken pipe).
+        libc::signal(libc::SIGPIPE, libc::SIG_DFL);
     }
 }
 

@@ -71,6 +71,8 @@ pub struct Row {
     pub values: BTreeMap<String, f64>,
     /// Unit symbol of each value, from its type (empty for a ratio).
     pub units: BTreeMap<String, String>,
+    /// The values the case asks for, in its order.
+    pub asked: Vec<String>,
     pub converged: bool,
     /// Planar or axisymmetric.
     pub geometry: String,
@@ -156,7 +158,12 @@ fn read_row(file: &Path, key: &str) -> Result<Row, String> {
         .as_object()
         .map(|m| m.iter().map(|(k, x)| (k.clone(), x.as_str().unwrap_or("").to_string())).collect())
         .unwrap_or_default();
+    let asked: Vec<String> = v["asked"]
+        .as_array()
+        .map(|a| a.iter().filter_map(|x| x.as_str().map(str::to_string)).collect())
+        .unwrap_or_default();
     Ok(Row {
+        asked,
         index: variant.index,
         swept: variant.swept,
         values,
@@ -212,10 +219,9 @@ pub fn charts(rows: &[Row]) -> Vec<(String, String, String)> {
     let Some(first) = rows.first() else { return Vec::new() };
     let Some((x_name, _)) = first.swept.first() else { return Vec::new() };
     let second = first.swept.get(1).map(|s| s.0.clone());
-    let mut names: Vec<String> = rows.iter().flat_map(|r| r.values.keys().cloned()).collect();
-    names.sort();
-    names.dedup();
-    names.retain(|n| !n.ends_with(".b.min") && !n.ends_with(".r") && n != "coenergy");
+    // Charts of what the case asks for (its expectations, forces, fluxes and
+    // probes), not of every value: a sweep drew 20 to 26 charts.
+    let names = first.asked.clone();
     let mut out = Vec::new();
     for name in names.iter().take(MAX_CHARTS) {
         let mut groups: Vec<(f64, Vec<[f64; 2]>)> = Vec::new();
@@ -261,24 +267,24 @@ pub fn report(rows: &[Row], charts: &[(String, String, String)]) -> String {
         rows.len()
     );
     let params: Vec<String> = rows.first().map(|r| r.swept.iter().map(|(k, _)| k.clone()).collect()).unwrap_or_default();
-    let shown: Vec<&str> = ["force.", "flux.", "magnet.", "probe."]
-        .iter()
-        .flat_map(|p| {
-            rows.first()
-                .into_iter()
-                .flat_map(move |r| r.values.keys().filter(move |k| k.starts_with(p)).map(String::as_str))
-        })
-        .take(6)
-        .collect();
+    // The columns lead with what the case asks for, in its order.
+    let shown: Vec<&str> = rows.first().map(|r| r.asked.iter().map(String::as_str).take(8).collect()).unwrap_or_default();
     s += &format!(
         "| variant | {} | converged | {} |\n",
         params.join(" | "),
-        shown.iter().map(|n| header(rows, n, "(", ")")).collect::<Vec<_>>().join(" | ")
+        shown.iter().map(|n| n.to_string()).collect::<Vec<_>>().join(" | ")
     );
     s += &format!("|---|{}---|{}\n", "---|".repeat(params.len()), "---|".repeat(shown.len()));
     for r in rows {
         let p: Vec<String> = r.swept.iter().map(|(_, v)| format!("{v}")).collect();
-        let v: Vec<String> = shown.iter().map(|n| r.values.get(*n).map_or("-".into(), |x| format!("{x:.4e}"))).collect();
+        let v: Vec<String> = shown
+            .iter()
+            .map(|n| {
+                r.values
+                    .get(*n)
+                    .map_or("-".into(), |x| crate::output::engineering::eng(*x, r.units.get(*n).map_or("", String::as_str)))
+            })
+            .collect();
         s += &format!("| {} | {} | {} | {} |\n", r.index, p.join(" | "), r.converged, v.join(" | "));
     }
     s.push('\n');

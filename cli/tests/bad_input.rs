@@ -190,3 +190,15 @@ fn shards_beyond_the_sweep_and_file_size_limits_get_messages() {
         let _ = std::fs::remove_dir_all(&out);
     }
 }
+
+#[test]
+#[cfg(unix)]
+fn a_closed_output_pipe_ends_the_run_quietly() {
+    // `lodestone check ... | head -2`: the pipe closes early; println! panicked on it.
+    let cases = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/holding-magnet-gap-sweep.toml");
+    let script = format!("'{}' check --quiet '{}' | head -1", env!("CARGO_BIN_EXE_lodestone"), cases.display());
+    let o = Command::new("sh").arg("-c").arg(&script).output().unwrap();
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert_clean(&err);
+    assert!(!err.contains("Broken pipe"), "{err}");
+}

@@ -57,6 +57,7 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
         ));
     }
     values.retain(|_, v| v.is_finite());
+    let asked = asked(model, &values);
     let units = crate::value_names::value_names(model)
         .into_iter()
         .filter(|v| values.contains_key(&v.name))
@@ -99,6 +100,7 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
         energy,
         parts,
         values,
+        asked,
         units,
         cautions: cautions(model),
     }
@@ -252,6 +254,28 @@ fn significant(x: f64) -> String {
     }
     let decimals = (2 - x.abs().log10().floor() as i32).max(0) as usize;
     format!("{x:.decimals$}")
+}
+
+/// The values the case asks for, in its order, that the solution reported.
+fn asked(model: &Model, values: &BTreeMap<String, f64>) -> Vec<String> {
+    let planar = model.symmetry == Symmetry::Planar;
+    let mut out: Vec<String> = model.expects.iter().map(|e| e.value.name.clone()).collect();
+    for f in &model.forces {
+        out.push(format!("force.{}.{}", f.name, if planar { "y" } else { "z" }));
+        out.push(format!("force.{}.magnitude", f.name));
+    }
+    for f in &model.fluxes {
+        out.push(format!("flux.{}", f.name()));
+    }
+    for p in &model.probes {
+        out.push(match p.shape {
+            ProbeShape::Point(_) => format!("probe.{}.b", p.name),
+            ProbeShape::Line { .. } => format!("probe.{}.b.max", p.name),
+        });
+    }
+    let mut seen = std::collections::BTreeSet::new();
+    out.retain(|n| values.contains_key(n) && seen.insert(n.clone()));
+    out
 }
 
 /// The cautions that fit the study: magnet handling and air transport only

@@ -38,6 +38,9 @@ pub struct Results {
     pub warnings: Vec<String>,
     /// Every scalar by its `[[expect]]` name, SI units.
     pub values: BTreeMap<String, f64>,
+    /// The values the case asks for, in its order: expectations first, then
+    /// forces, fluxes and probes as written (sweep reports lead with them).
+    pub asked: Vec<String>,
     /// The unit symbol of every value, from its type (empty for a ratio).
     pub units: BTreeMap<String, &'static str>,
     /// The cautions every report carries.
