@@ -204,7 +204,7 @@ pub fn solve_variant(loaded: &Loaded, variant: &Variant, limits: &Limits, progre
     let Resolved { model, spans } = resolved;
     let report = |stage: Stage| match stage {
         Stage::Meshing => progress.note(&format!("{tag}: meshing")),
-        Stage::Meshed { corners, triangles } => progress.note(&format!("{tag}: {corners} nodes, {triangles} triangles; solving")),
+        Stage::Meshed { corners, triangles } => progress.note(&format!("{tag}: {corners} corner nodes, {triangles} triangles; solving")),
         Stage::Newton { iteration, residual } => progress.note(&format!("{tag}: Newton iteration {iteration}, relative residual {residual:.3e}")),
     };
     let sol = study::run::solve(&model, &mesh, &report).map_err(|e| match e.origin {

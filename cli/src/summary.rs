@@ -19,8 +19,13 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
         };
     }
     s += &format!(
-        "  mesh: {} nodes, {} triangles (order {}), {} unknowns, min angle {:.1} deg\n",
-        r.mesh.nodes, r.mesh.elements, r.mesh.element_order, r.mesh.unknowns, r.mesh.min_angle_deg
+        "  mesh: {} nodes{}, {} triangles (order {}), {} unknowns, min angle {:.1} deg\n",
+        r.mesh.nodes,
+        if r.mesh.element_order == 2 { " (corners and edge midpoints)" } else { "" },
+        r.mesh.elements,
+        r.mesh.element_order,
+        r.mesh.unknowns,
+        r.mesh.min_angle_deg
     );
     s += &format!(
         "  solve: {} in {} iteration(s), {} factorization(s), residual {:.2e}, {:.2} s\n",
