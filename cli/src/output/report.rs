@@ -1,5 +1,6 @@
 //! report.md: the study in tables and pictures, with the cautions.
 
+use super::engineering::eng;
 use crate::case::Model;
 use std::fmt::Write;
 use study::results::Results;
@@ -41,27 +42,32 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
         let _ = writeln!(s, "![{title}]({file})\n");
     }
     if !r.forces.is_empty() {
-        let _ = writeln!(s, "## Forces\n\n| set | F1 (N) | F2 (N) | magnitude (N) | note |\n|---|---|---|---|---|");
+        let _ = writeln!(s, "## Forces\n\n| set | F1 | F2 | magnitude | note |\n|---|---|---|---|---|");
         for (n, fr) in &r.forces {
             let _ = writeln!(
                 s,
-                "| {n} | {:.4} | {:.4} | {:.4} | {} |",
-                fr.vector[0],
-                fr.vector[1],
-                fr.magnitude,
+                "| {n} | {} | {} | {} | {} |",
+                eng(fr.vector[0], "N"),
+                eng(fr.vector[1], "N"),
+                eng(fr.magnitude, "N"),
                 if fr.contact { "touches other material: unreliable" } else { "" }
             );
         }
         s.push('\n');
     }
     if !r.flux.is_empty() {
-        let _ = writeln!(s, "## Flux\n\n| name | flux or linkage (Wb) | inductance (H) |\n|---|---|---|");
+        let _ = writeln!(s, "## Flux\n\n| name | flux or linkage | inductance |\n|---|---|---|");
         for (n, fl) in &r.flux {
-            let _ = writeln!(s, "| {n} | {:.4e} | {} |", fl.wb, fl.inductance_h.map_or("-".into(), |l| format!("{l:.4e}")));
+            let _ = writeln!(s, "| {n} | {} | {} |", eng(fl.wb, "Wb"), fl.inductance_h.map_or("-".into(), |l| eng(l, "H")));
         }
         s.push('\n');
     }
-    let _ = writeln!(s, "Stored energy {:.4e} J, co-energy {:.4e} J.\n", r.energy.stored_j, r.energy.coenergy_j);
+    let _ = writeln!(
+        s,
+        "Stored energy {}, co-energy {}.\n",
+        eng(r.energy.stored_j, "J"),
+        eng(r.energy.coenergy_j, "J")
+    );
     let _ = writeln!(
         s,
         "## Parts\n\n| part | material | peak B (T) | mean B (T) | knee (T) | share above knee |\n|---|---|---|---|---|---|"
@@ -112,7 +118,7 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
         opt(st.reach_axis_m, 1.0 / f, 1)
     );
     if let Some(m) = st.moment_a_m2 {
-        let _ = writeln!(s, "- dipole moment (multipole projection of the solution): {m:.4e} A m2");
+        let _ = writeln!(s, "- dipole moment (multipole projection of the solution): {}", eng(m, "A m2"));
         let _ = writeln!(
             s,
             "- |B| falls to 0.5 mT (implanted devices, ICNIRP 2009) at {} {u} on the axis and {} {u} in the mid-plane, from the assembly's centre",
@@ -138,7 +144,7 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
                 "| {} | {} | {} | {} |",
                 e.value,
                 e.bound,
-                e.actual.map_or("-".into(), |a| format!("{a:.4e}")),
+                e.actual.map_or("-".into(), |a| eng(a, r.units.get(&e.value).copied().unwrap_or(""))),
                 if e.pass { "pass" } else { "FAIL" }
             );
         }
