@@ -80,6 +80,17 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
             eng(p.b_max, "T")
         );
     }
+    for (name, c) in &r.coils {
+        s += &format!(
+            "  coil {name}: {} in {}, {} dissipated, {} in the copper, surface about {} above {} degC (still air; an estimate)\n",
+            eng(c.current, "A"),
+            eng(c.resistance, "ohm"),
+            eng(c.power, "W"),
+            eng(c.current_density / 1e6, "A/mm2"),
+            eng(c.temperature_rise, "K"),
+            study::coil::AMBIENT_C
+        );
+    }
     s += &format!("  energy: {}\n", eng(r.energy.stored_j, "J"));
     for e in &r.expect {
         let unit = r.units.get(&e.value).copied().unwrap_or("");

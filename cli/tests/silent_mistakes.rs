@@ -150,3 +150,36 @@ fn cautions_fit_the_study_and_the_reach_names_its_reference() {
     let (_, _, json) = solve("magnetcautions", &disk(10.0, 20.0, ""));
     assert!(json.contains("snap together") && json.contains("air-transport"), "{json}");
 }
+
+#[test]
+fn coil_figures_match_the_wire_tables() {
+    // 100 turns of AWG 24 on a mean radius of 7.5 mm, 100 ampere-turns (1 A).
+    // Source: NEMA MW 1000 wire table as printed by a maker (shared data S67, S68):
+    // AWG 24 is 84.219 ohm/km at 20 degC and 0.5106 mm bare; copper's alpha 0.00393 /K (IEC 60028, S61).
+    let coil = |extra: &str| {
+        format!(
+            "[study]\ngeometry = \"axisymmetric\"\n[[part]]\nname = \"coil\"\nmaterial = \"copper\"\ncurrent = \"100 A\"\nturns = 100\nwire = \"AWG 24\"\n{extra}rect = {{ from = [5, 0], to = [10, 10] }}\n[[part]]\nname = \"core\"\nmaterial = \"low-carbon-steel\"\nrect = {{ from = [0, 0], to = [4, 10] }}\n{OUTPUT}"
+        )
+    };
+    let value = |json: &str, name: &str| -> f64 {
+        let v: serde_json::Value = serde_json::from_str(json).unwrap();
+        v["values"][name].as_f64().unwrap_or(f64::NAN)
+    };
+    let (code, text, json) = solve("coil20", &coil(""));
+    assert_eq!(code, 0, "{text}");
+    let table_r = 84.219e-3 * 100.0 * 2.0 * std::f64::consts::PI * 0.0075;
+    let r = value(&json, "coil.coil.resistance");
+    assert!((r / table_r - 1.0).abs() < 2e-3, "{r} ohm against the table's {table_r}");
+    assert!((value(&json, "coil.coil.power") - r).abs() < 1e-12, "1 A: power equals resistance");
+    let j_table = 1.0 / (std::f64::consts::PI * 0.5106e-3 * 0.5106e-3 / 4.0);
+    assert!((value(&json, "coil.coil.current_density") / j_table - 1.0).abs() < 2e-3);
+    assert!(text.contains("coil coil:"), "{text}");
+    let (_, _, hot) = solve("coil120", &coil("winding_temperature = \"120 degC\"\n"));
+    let ratio = value(&hot, "coil.coil.resistance") / r;
+    assert!((ratio - (1.0 + 0.00393 * 100.0)).abs() < 1e-9, "{ratio}");
+    // A planar winding needs its mean turn length.
+    let planar = coil("").replace("geometry = \"axisymmetric\"", "geometry = \"planar\"\ndepth = \"20 mm\"");
+    let (code, text, _) = solve("coilplanar", &planar);
+    assert_eq!(code, 2, "{text}");
+    assert!(text.contains("needs turn_length"), "{text}");
+}

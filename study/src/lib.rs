@@ -14,6 +14,7 @@
 #![warn(missing_docs)]
 
 pub mod checks;
+pub mod coil;
 pub mod lower;
 pub mod materials;
 pub mod model;

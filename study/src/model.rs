@@ -78,6 +78,23 @@ pub struct Part {
     pub magnetization: Option<[f64; 2]>,
     /// Ampere-turns through the cross-section, A.
     pub current: Option<f64>,
+    /// The winding's wire, for its resistance, power and temperature rise.
+    pub winding: Option<Winding>,
+}
+
+/// A winding's turns and wire, given on a part that carries a current.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Winding {
+    /// Number of turns in the part.
+    pub turns: f64,
+    /// Copper cross-section of one wire, m2 (from the wire size, or from a
+    /// fill factor and the part's area).
+    pub wire_area: f64,
+    /// Mean length of one turn, m: None about the axis (2 pi times the
+    /// part's centroid radius); given for a planar coil side.
+    pub turn_length: Option<f64>,
+    /// Copper temperature for the resistance, degC.
+    pub temperature: f64,
 }
 
 /// Where a probe samples the field.

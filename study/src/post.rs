@@ -27,6 +27,7 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
     values.insert("energy".into(), energy.stored_j);
     values.insert("coenergy".into(), energy.coenergy_j);
     let parts = part_results(model, sol, &mut values);
+    let coils = coil_results(model, &mut values);
     let mut warnings = Vec::new();
     let magnets = crate::checks::magnet_results(model, sol, &mut values, &mut warnings);
     let stray = crate::checks::stray_results(model, sol, &mut values);
@@ -93,6 +94,7 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
         expect: evaluate(model, &values),
         magnets,
         stray,
+        coils,
         warnings,
         probes,
         forces,
@@ -254,6 +256,24 @@ fn significant(x: f64) -> String {
     }
     let decimals = (2 - x.abs().log10().floor() as i32).max(0) as usize;
     format!("{x:.decimals$}")
+}
+
+/// Resistance, current, power, current density and temperature rise of each
+/// winding whose wire is given.
+fn coil_results(model: &Model, values: &mut BTreeMap<String, f64>) -> BTreeMap<String, crate::coil::CoilFigures> {
+    let mut out = BTreeMap::new();
+    for p in &model.parts {
+        if let Some(c) = crate::coil::figures(model, p) {
+            let key = |s: &str| format!("coil.{}.{s}", p.name);
+            values.insert(key("resistance"), c.resistance);
+            values.insert(key("current"), c.current);
+            values.insert(key("power"), c.power);
+            values.insert(key("current_density"), c.current_density);
+            values.insert(key("temperature_rise"), c.temperature_rise);
+            out.insert(p.name.clone(), c);
+        }
+    }
+    out
 }
 
 /// The values the case asks for, in its order, that the solution reported.

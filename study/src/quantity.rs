@@ -27,6 +27,16 @@ pub enum Unit {
     AmpereSquareMetre,
     /// A ratio without physical unit (shares, margins, permeance coefficients).
     Ratio,
+    /// Current, A.
+    Ampere,
+    /// Resistance, ohm.
+    Ohm,
+    /// Power, W.
+    Watt,
+    /// Current density, A/m2.
+    AmperePerSquareMetre,
+    /// A temperature difference, K.
+    Kelvin,
 }
 
 impl Unit {
@@ -43,6 +53,11 @@ impl Unit {
             Unit::Metre => "m",
             Unit::AmpereSquareMetre => "A m2",
             Unit::Ratio => "",
+            Unit::Ampere => "A",
+            Unit::Ohm => "ohm",
+            Unit::Watt => "W",
+            Unit::AmperePerSquareMetre => "A/m2",
+            Unit::Kelvin => "K",
         }
     }
 
@@ -59,6 +74,11 @@ impl Unit {
             Unit::Metre => "a length",
             Unit::AmpereSquareMetre => "a dipole moment",
             Unit::Ratio => "a ratio without unit",
+            Unit::Ampere => "a current",
+            Unit::Ohm => "a resistance",
+            Unit::Watt => "a power",
+            Unit::AmperePerSquareMetre => "a current density",
+            Unit::Kelvin => "a temperature difference",
         }
     }
 }

@@ -32,6 +32,8 @@ pub struct Results {
     pub magnets: BTreeMap<String, MagnetResult>,
     /// The stray field.
     pub stray: StrayResult,
+    /// Winding figures of the parts whose wire is given.
+    pub coils: BTreeMap<String, crate::coil::CoilFigures>,
     /// Each expectation's outcome.
     pub expect: Vec<ExpectResult>,
     /// Design warnings.

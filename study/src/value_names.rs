@@ -58,6 +58,13 @@ pub fn value_names(model: &Model) -> Vec<ValueName> {
             _ => {}
         }
     }
+    for p in model.parts.iter().filter(|p| p.winding.is_some() && p.current.is_some()) {
+        push(format!("coil.{}.resistance", p.name), Unit::Ohm);
+        push(format!("coil.{}.current", p.name), Unit::Ampere);
+        push(format!("coil.{}.power", p.name), Unit::Watt);
+        push(format!("coil.{}.current_density", p.name), Unit::AmperePerSquareMetre);
+        push(format!("coil.{}.temperature_rise", p.name), Unit::Kelvin);
+    }
     push("reach.axis".into(), Unit::Metre);
     if !planar {
         push("stray.moment".into(), Unit::AmpereSquareMetre);

@@ -9,7 +9,7 @@ pub fn eng(value: f64, unit: &str) -> String {
     if !value.is_finite() {
         return format!("{value} {unit}").trim_end().to_string();
     }
-    let prefixable = !unit.is_empty() && !matches!(unit, "degC" | "%" | "deg" | "kgf" | "lbf");
+    let prefixable = !unit.is_empty() && !matches!(unit, "degC" | "%" | "deg" | "kgf" | "lbf" | "A/mm2" | "K");
     if value == 0.0 || !prefixable {
         return format!("{} {unit}", significant(value)).trim_end().to_string();
     }

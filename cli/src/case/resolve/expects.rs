@@ -27,7 +27,10 @@ fn bound_kind(unit: Unit) -> Option<Kind> {
         Unit::Metre => Some(Kind::Length),
         Unit::AmpereSquareMetre => Some(Kind::Moment),
         Unit::Ratio => Some(Kind::Dimensionless),
-        Unit::NewtonMetre => None,
+        Unit::Ampere => Some(Kind::Current),
+        Unit::AmperePerSquareMetre => Some(Kind::CurrentDensity),
+        // No unit table entries for these yet: bounds are plain SI numbers.
+        Unit::NewtonMetre | Unit::Ohm | Unit::Watt | Unit::Kelvin => None,
     }
 }
 

@@ -2,6 +2,7 @@
 
 use super::materials_table::lookup_material;
 use crate::case::diagnostic::Diagnostic;
+use crate::case::document::Fields;
 use crate::case::document::Item;
 use crate::case::quantity::Context;
 use crate::case::units::Kind;
@@ -20,6 +21,11 @@ const PART: &[&str] = &[
     "mesh_size",
     "current",
     "current_density",
+    "turns",
+    "wire",
+    "fill_factor",
+    "turn_length",
+    "winding_temperature",
 ];
 const SHAPES: &[&str] = &["polygon", "rect", "circle"];
 
@@ -92,6 +98,7 @@ pub(super) fn part(
             t.get("current").or(t.get("current_density")).map(|i| i.span.clone()),
         ));
     }
+    let winding = winding(&t, ctx, &what, current.is_some(), shape.exact_area(symmetry), symmetry)?;
     Ok(Part {
         name,
         material,
@@ -99,7 +106,91 @@ pub(super) fn part(
         mesh_size,
         magnetization,
         current,
+        winding,
     })
+}
+
+/// A winding's wire: `turns` with `wire` ("AWG 24", or a bare copper
+/// diameter such as "0.5 mm") or `fill_factor` (copper share of the part's
+/// area), `turn_length` (the mean turn, needed in a planar study) and
+/// `winding_temperature` (default 20 degC).
+fn winding(t: &Fields, ctx: &Context, what: &str, carries_current: bool, area: f64, symmetry: Symmetry) -> Result<Option<Winding>, Diagnostic> {
+    let keys = t.present(&["turns", "wire", "fill_factor", "turn_length", "winding_temperature"]);
+    if keys.is_empty() {
+        return Ok(None);
+    }
+    let first = t.get(keys[0]).map(|i| i.span.clone());
+    if !carries_current {
+        return Err(Diagnostic::new(
+            format!("{what}: {} describes a winding, but the part carries no current", keys.join(", ")),
+            first,
+        ));
+    }
+    let turns_item = t
+        .get("turns")
+        .ok_or_else(|| Diagnostic::new(format!("{what}: a winding needs turns"), first.clone()))?;
+    let turns = turns_item.number(&format!("{what} turns"))?;
+    if !(1.0..=1e7).contains(&turns) {
+        return Err(Diagnostic::new(format!("{what}: turns must be from 1 to 1e7"), Some(turns_item.span.clone())));
+    }
+    let wire_area = match (t.get("wire"), t.get("fill_factor")) {
+        (Some(w), None) => wire_area(w, ctx, what)?,
+        (None, Some(f)) => {
+            let share = f.number(&format!("{what} fill_factor"))?;
+            if !(share > 0.0 && share <= 0.907) {
+                return Err(Diagnostic::new(
+                    format!("{what}: fill_factor is the copper share of the part's area, above 0 and at most 0.907 (round wires packed hexagonally)"),
+                    Some(f.span.clone()),
+                ));
+            }
+            share * area / turns
+        }
+        (Some(w), Some(_)) => return Err(Diagnostic::new(format!("{what}: give wire or fill_factor, not both"), Some(w.span.clone()))),
+        (None, None) => {
+            return Err(Diagnostic::new(
+                format!("{what}: a winding needs wire (\"AWG 24\" or \"0.5 mm\") or fill_factor"),
+                first,
+            ))
+        }
+    };
+    let turn_length = t
+        .get("turn_length")
+        .map(|l| ctx.positive(l, Kind::Length, &format!("{what} turn_length")))
+        .transpose()?;
+    if symmetry == Symmetry::Planar && turn_length.is_none() {
+        return Err(Diagnostic::new(
+            format!("{what}: a planar winding needs turn_length, the mean length of one turn (end turns included)"),
+            first,
+        ));
+    }
+    let temperature = match t.get("winding_temperature") {
+        Some(c) => ctx.quantity(c, Kind::Temperature, &format!("{what} winding_temperature"))?,
+        None => 20.0,
+    };
+    Ok(Some(Winding {
+        turns,
+        wire_area,
+        turn_length,
+        temperature,
+    }))
+}
+
+/// The copper area of `wire`: an AWG size or a bare diameter.
+fn wire_area(item: &Item, ctx: &Context, what: &str) -> Result<f64, Diagnostic> {
+    let diameter = match item.str(&format!("{what} wire")).ok().and_then(|s| s.trim().strip_prefix("AWG")) {
+        Some(gauge) => {
+            let n: f64 = gauge
+                .trim()
+                .parse()
+                .map_err(|_| Diagnostic::new(format!("{what} wire: expected \"AWG n\" or a diameter"), Some(item.span.clone())))?;
+            if !(0.0..=40.0).contains(&n) || n.fract() != 0.0 {
+                return Err(Diagnostic::new(format!("{what} wire: AWG sizes from 0 to 40"), Some(item.span.clone())));
+            }
+            study::coil::awg_diameter(n)
+        }
+        None => ctx.positive(item, Kind::Length, &format!("{what} wire diameter"))?,
+    };
+    Ok(std::f64::consts::PI * diameter * diameter / 4.0)
 }
 
 fn shape(kind: &str, item: &Item, ctx: &Context, what: &str) -> Result<Shape, Diagnostic> {

@@ -1,0 +1,110 @@
+//! Winding figures an electromagnet designer checks first: resistance at
+//! the copper's temperature, power, current density and a steady
+//! temperature-rise estimate.
+//!
+//! Sources (shared data, docs/materials.md labels): annealed copper
+//! 1.7241e-8 ohm m at 20 degC and 0.00393 /K (IEC 60028 as read in S60,
+//! S61, S62); AWG diameters d = 0.127 mm x 92^((36 - n)/39) (ASTM B258, S66);
+//! the steady heat balance of a winding's surface, convection plus
+//! radiation (S75, eq. 1), with a still-air convection coefficient of
+//! 7.5 W/(m2 K) and an emissivity of 0.9 for varnished windings, both from
+//! memory (5 to 10 and 0.8 to 0.95 are the ranges recalled).
+
+use crate::model::{Model, Part, Winding};
+use mesher::Symmetry;
+
+/// Resistivity of annealed copper at 20 degC, ohm m (IEC 60028).
+pub const COPPER_RESISTIVITY_20C: f64 = 1.7241e-8;
+/// Temperature coefficient of copper's resistance at 20 degC, 1/K (IEC 60028).
+pub const COPPER_ALPHA_20C: f64 = 0.00393;
+/// Natural-convection coefficient of a small coil in still air, W/(m2 K) (from memory).
+const CONVECTION: f64 = 7.5;
+/// Emissivity of a varnished winding (from memory).
+const EMISSIVITY: f64 = 0.9;
+/// Stefan-Boltzmann constant, W/(m2 K4) (CODATA 2018, exact).
+const STEFAN_BOLTZMANN: f64 = 5.670_374_419e-8;
+/// Ambient temperature of the heat balance, degC.
+pub const AMBIENT_C: f64 = 20.0;
+
+/// Bare copper diameter of an AWG size, m (ASTM B258).
+pub fn awg_diameter(gauge: f64) -> f64 {
+    0.127e-3 * 92f64.powf((36.0 - gauge) / 39.0)
+}
+
+/// What the winding of one part comes to.
+#[derive(Clone, Debug, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
+pub struct CoilFigures {
+    /// Resistance at the winding temperature, ohm.
+    pub resistance: f64,
+    /// Current in the wire, A.
+    pub current: f64,
+    /// Power dissipated, W.
+    pub power: f64,
+    /// Current density in the copper, A/m2.
+    pub current_density: f64,
+    /// Steady temperature rise of the winding surface above ambient, K.
+    pub temperature_rise: f64,
+}
+
+/// The figures of a part's winding, or None when the part has no wire given
+/// or its mean turn is unknown (a planar coil side without `turn_length`).
+/// The cooled surface is the winding's outline carried round its mean turn
+/// (about the axis: the box's cylinders and end annuli).
+pub fn figures(model: &Model, part: &Part) -> Option<CoilFigures> {
+    let w: &Winding = part.winding.as_ref()?;
+    let ampere_turns = part.current?;
+    let (lo, hi) = part_box(part);
+    let (turn, surface) = match model.symmetry {
+        Symmetry::Axisymmetric => {
+            let centroid_r = 0.5 * (lo[0] + hi[0]);
+            // Outer cylinder, inner cylinder and the two end annuli of the winding's box.
+            let surface = 2.0 * std::f64::consts::PI * (hi[0] + lo[0]) * (hi[1] - lo[1]) + 2.0 * std::f64::consts::PI * (hi[0] * hi[0] - lo[0] * lo[0]);
+            (w.turn_length.unwrap_or(2.0 * std::f64::consts::PI * centroid_r), surface)
+        }
+        Symmetry::Planar => {
+            // The bundle's outline carried along the mean turn (Pappus' rule).
+            let turn = w.turn_length?;
+            (turn, 2.0 * ((hi[0] - lo[0]) + (hi[1] - lo[1])) * turn)
+        }
+    };
+    let rho = COPPER_RESISTIVITY_20C * (1.0 + COPPER_ALPHA_20C * (w.temperature - 20.0));
+    let resistance = rho * w.turns * turn / w.wire_area;
+    let current = ampere_turns / w.turns;
+    let power = current * current * resistance;
+    let ambient_k = AMBIENT_C + 273.15;
+    // Radiation linearised at ambient: 4 eps sigma T^3.
+    let h = CONVECTION + 4.0 * EMISSIVITY * STEFAN_BOLTZMANN * ambient_k.powi(3);
+    Some(CoilFigures {
+        resistance,
+        current,
+        power,
+        current_density: current.abs() / w.wire_area,
+        temperature_rise: power / (h * surface),
+    })
+}
+
+/// The bounding box of a part's outline.
+fn part_box(part: &Part) -> ([f64; 2], [f64; 2]) {
+    match &part.shape {
+        mesher::Shape::Rect { from, to } => ([from[0].min(to[0]), from[1].min(to[1])], [from[0].max(to[0]), from[1].max(to[1])]),
+        mesher::Shape::Circle { center, radius } => ([center[0] - radius, center[1] - radius], [center[0] + radius, center[1] + radius]),
+        mesher::Shape::Polygon(p) => mesher::geometry::bbox(p.iter().copied()),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn awg_and_copper_match_the_wire_tables() {
+        // ASTM B258 / NEMA MW 1000 (shared data S66, S67): AWG 20 is 0.8128 mm, AWG 24 0.5106 mm.
+        assert!((awg_diameter(20.0) - 0.8128e-3).abs() < 0.0005e-3);
+        assert!((awg_diameter(24.0) - 0.5106e-3).abs() < 0.0005e-3);
+        // S68: AWG 20 is 10.13 ohm per 1000 ft at 20 degC (33.23 ohm/km).
+        let area = std::f64::consts::PI * awg_diameter(20.0).powi(2) / 4.0;
+        let per_km = COPPER_RESISTIVITY_20C * 1000.0 / area;
+        assert!((per_km - 33.23).abs() < 0.05, "{per_km}");
+    }
+}
