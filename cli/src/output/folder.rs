@@ -7,7 +7,7 @@
 //! found on opening (the machine stopped mid-commit) is rolled forward
 //! first, so a folder never shows two runs' files side by side.
 
-use super::{remove_stale, stage, FileSet, TMP_MARK};
+use super::{remove_stale, stage, FileSet};
 use std::fs::File;
 use std::path::{Path, PathBuf};
 
@@ -106,13 +106,6 @@ impl OutputFolder {
             std::fs::remove_file(set.join(JOURNAL)).map_err(|e| format!("cannot finish the commit in {}: {e}", set.display()))
         })
     }
-
-    /// Removes a variant folder of an earlier run that the current case no longer has.
-    pub fn remove_variant(&self, label: &str) {
-        if label.starts_with("variant-") && !label.contains(['/', '\\']) {
-            let _ = std::fs::remove_dir_all(self.dir.join(label));
-        }
-    }
 }
 
 impl Drop for OutputFolder {
@@ -123,9 +116,4 @@ impl Drop for OutputFolder {
             let _ = std::fs::remove_dir(&self.dir);
         }
     }
-}
-
-/// Whether a file name is one of the folder's own bookkeeping files.
-pub fn is_bookkeeping(name: &str) -> bool {
-    name == LOCK || name == JOURNAL || name == MANIFEST || name.starts_with(TMP_MARK)
 }
