@@ -183,3 +183,33 @@ fn coil_figures_match_the_wire_tables() {
     assert_eq!(code, 2, "{text}");
     assert!(text.contains("needs turn_length"), "{text}");
 }
+
+#[test]
+fn the_field_map_states_its_scale_and_a_clipped_peak() {
+    // A log scale over three decades shows the mT-level field at a distance;
+    // a peak above the top colour is named on the bar.
+    let case = |output: &str| {
+        format!("[study]\ngeometry = \"planar\"\ndepth = \"10 mm\"\n{MAGNET}[[part]]\nname = \"plate\"\nmaterial = \"low-carbon-steel\"\nrect = {{ from = [-5, 6], to = [15, 7] }}\n[output]\nvtk = false\nreport = false\n{output}")
+    };
+    for (name, output, want) in [
+        ("linear", "", "linear scale"),
+        ("log", "field_scale = \"log\"\n", "log scale"),
+        ("range", "field_range = [\"1 mT\", \"0.5 T\"]\n", "\u{2265} 500 mT"),
+    ] {
+        let dir = temp(name);
+        let file = dir.join("case.toml");
+        std::fs::write(&file, case(output)).unwrap();
+        let out = dir.join("out");
+        let o = Command::new(env!("CARGO_BIN_EXE_lodestone"))
+            .args(["solve", "--quiet", file.to_str().unwrap(), "-o", out.to_str().unwrap()])
+            .output()
+            .unwrap();
+        assert_eq!(o.status.code(), Some(0), "{}", String::from_utf8_lossy(&o.stderr));
+        let svg = std::fs::read_to_string(out.join("field-map.svg")).unwrap();
+        assert!(svg.contains(want), "{name}: no '{want}' in the colour bar");
+        if name == "range" {
+            assert!(svg.contains("peak ") && svg.contains("(local)"), "the clipped peak is not named");
+        }
+        let _ = std::fs::remove_dir_all(&dir);
+    }
+}

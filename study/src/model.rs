@@ -200,6 +200,11 @@ pub struct OutputFlags {
     pub report: bool,
     /// Probe CSV files.
     pub csv: bool,
+    /// Colour scale of the field map: logarithmic shows mT-level fields at a
+    /// distance that a linear scale puts on the zero colour.
+    pub log_scale: bool,
+    /// |B| range of the field map's colours, T (None: chosen from the field).
+    pub field_range: Option<(f64, f64)>,
 }
 
 impl Model {

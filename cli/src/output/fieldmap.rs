@@ -50,7 +50,7 @@ pub fn field_map(model: &Model, sol: &Solution) -> String {
     if model.symmetry == Symmetry::Axisymmetric {
         lo[0] = 0.0;
     }
-    let (w, bar) = (760.0, 110.0);
+    let (w, bar) = (760.0, 150.0);
     let scale = w / (hi[0] - lo[0]).max(hi[1] - lo[1]);
     let (pw, ph) = ((hi[0] - lo[0]) * scale, (hi[1] - lo[1]) * scale);
     let tx = |p: [f64; 2]| ((p[0] - lo[0]) * scale, ph - (p[1] - lo[1]) * scale);
@@ -70,10 +70,11 @@ pub fn field_map(model: &Model, sol: &Solution) -> String {
     }
     let mut sorted: Vec<f64> = grid.iter().copied().filter(|v| v.is_finite()).collect();
     sorted.sort_by(f64::total_cmp);
-    let bmax = sorted.get(sorted.len() * 99 / 100).copied().unwrap_or(1.0).max(1e-12);
+    let peak = sorted.last().copied().unwrap_or(0.0);
+    let scale_of = ColourScale::new(model, &sorted);
     let level = |v: f64| {
         if v.is_finite() {
-            ((v / bmax).clamp(0.0, 1.0) * LEVELS).round() as i64
+            (scale_of.position(v) * LEVELS).round() as i64
         } else {
             -1
         }
@@ -127,7 +128,7 @@ pub fn field_map(model: &Model, sol: &Solution) -> String {
     if model.symmetry == Symmetry::Axisymmetric {
         s += &format!("<g class=\"axis\"><line x1=\"1\" y1=\"0\" x2=\"1\" y2=\"{ph:.1}\" stroke=\"#ff4040\" stroke-width=\"2\" stroke-dasharray=\"8 4\"/><text x=\"6\" y=\"{:.1}\" fill=\"#ff4040\">axis r = 0</text></g>", ph - 6.0);
     }
-    s += &colour_bar(pw + 20.0, 10.0, ph - 20.0, bmax);
+    s += &colour_bar(pw + 20.0, 10.0, ph - 20.0, &scale_of, peak);
     let (u, f) = (&model.length_unit.0, model.length_unit.1);
     s += &format!(
         "<text x=\"10\" y=\"{:.0}\">view {:.1} x {:.1} {u}; {} </text>",
@@ -144,7 +145,51 @@ pub fn field_map(model: &Model, sol: &Solution) -> String {
     s
 }
 
-fn colour_bar(x: f64, y: f64, h: f64, bmax: f64) -> String {
+/// How |B| maps to a colour: linear from 0, or logarithmic over three
+/// decades, up to the 99th percentile of the view (or the case's
+/// `field_range`). Values beyond the top take the top colour.
+struct ColourScale {
+    lo: f64,
+    hi: f64,
+    log: bool,
+}
+
+impl ColourScale {
+    fn new(model: &Model, sorted: &[f64]) -> ColourScale {
+        let p99 = sorted.get(sorted.len() * 99 / 100).copied().unwrap_or(1.0).max(1e-12);
+        let log = model.output.log_scale;
+        let (lo, hi) = match model.output.field_range {
+            Some(r) => r,
+            None if log => ((p99 / 1e3).max(1e-9), p99),
+            None => (0.0, p99),
+        };
+        ColourScale { lo, hi, log }
+    }
+
+    /// Position of |B| on the scale, 0 to 1.
+    fn position(&self, v: f64) -> f64 {
+        let t = if self.log {
+            (v.max(self.lo).ln() - self.lo.ln()) / (self.hi.ln() - self.lo.ln())
+        } else {
+            (v - self.lo) / (self.hi - self.lo)
+        };
+        t.clamp(0.0, 1.0)
+    }
+
+    /// |B| at a position on the scale.
+    fn value(&self, t: f64) -> f64 {
+        if self.log {
+            (self.lo.ln() + t * (self.hi.ln() - self.lo.ln())).exp()
+        } else {
+            self.lo + t * (self.hi - self.lo)
+        }
+    }
+}
+
+/// The colour bar with five labels in engineering notation; when the peak
+/// lies above the top colour, the top label says so and the peak is given
+/// (the bar topped out at 1.595 T while the peak was 2.205 T, unremarked).
+fn colour_bar(x: f64, y: f64, h: f64, scale: &ColourScale, peak: f64) -> String {
     let mut s = String::from("<g class=\"colourbar\">");
     let n = 50;
     for i in 0..n {
@@ -156,12 +201,27 @@ fn colour_bar(x: f64, y: f64, h: f64, bmax: f64) -> String {
             colour(t)
         );
     }
+    let clipped = peak > scale.hi * (1.0 + 1e-9);
     for k in 0..=4 {
-        let v = bmax * k as f64 / 4.0;
-        s += &format!("<text x=\"{:.1}\" y=\"{:.1}\">{:.3}</text>", x + 24.0, y + h * (1.0 - k as f64 / 4.0) + 4.0, v);
+        let v = scale.value(k as f64 / 4.0);
+        let mark = if k == 4 && clipped { "\u{2265} " } else { "" };
+        s += &format!(
+            "<text x=\"{:.1}\" y=\"{:.1}\">{mark}{}</text>",
+            x + 24.0,
+            y + h * (1.0 - k as f64 / 4.0) + 4.0,
+            escape(&super::engineering::eng(v, "T"))
+        );
     }
-    s += &format!("<text x=\"{x:.1}\" y=\"{:.1}\">|B| (T)</text></g>", y + h + 16.0);
-    s
+    let kind = if scale.log { "log scale" } else { "linear scale" };
+    s += &format!("<text x=\"{x:.1}\" y=\"{:.1}\">|B|, {kind}</text>", y + h + 16.0);
+    if clipped {
+        s += &format!(
+            "<text x=\"{x:.1}\" y=\"{:.1}\">peak {} (local)</text>",
+            y + h + 30.0,
+            escape(&super::engineering::eng(peak, "T"))
+        );
+    }
+    s + "</g>"
 }
 
 /// Flux lines: contours of the flux function (A_z planar, r A_phi axisymmetric).

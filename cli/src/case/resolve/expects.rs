@@ -13,7 +13,7 @@ use study::quantity::{Unit, ValueName};
 /// Keys of `[[expect]]`.
 const EXPECT: &[&str] = &["value", "min", "max", "between", "near", "tolerance"];
 /// Keys of `[output]`.
-const OUTPUT: &[&str] = &["vtk", "plots", "report", "csv"];
+const OUTPUT: &[&str] = &["vtk", "plots", "report", "csv", "field_scale", "field_range"];
 
 /// The unit kind a bound on a value of this unit may be written in.
 fn bound_kind(unit: Unit) -> Option<Kind> {
@@ -150,7 +150,7 @@ pub(super) fn expects(top: &Fields, ctx: &Context, model: &Model) -> Result<Vec<
     Ok(out)
 }
 
-pub(super) fn output(top: &Fields) -> Result<OutputFlags, Diagnostic> {
+pub(super) fn output(top: &Fields, ctx: &Context) -> Result<OutputFlags, Diagnostic> {
     let empty = Item {
         value: Value::Table(Vec::new()),
         span: 0..0,
@@ -162,5 +162,42 @@ pub(super) fn output(top: &Fields) -> Result<OutputFlags, Diagnostic> {
         plots: flag("plots")?,
         report: flag("report")?,
         csv: flag("csv")?,
+        log_scale: match o.get("field_scale") {
+            None => false,
+            Some(v) => match v.str("output.field_scale")? {
+                "linear" => false,
+                "log" => true,
+                other => {
+                    return Err(Diagnostic::new(
+                        format!("output.field_scale: '{other}' is not a scale; use \"linear\" or \"log\""),
+                        Some(v.span.clone()),
+                    )
+                    .suggest(other, ["linear", "log"]))
+                }
+            },
+        },
+        field_range: match o.get("field_range") {
+            None => None,
+            Some(r) => {
+                let a = r.array("output.field_range")?;
+                let bad = || {
+                    Diagnostic::new(
+                        "output.field_range: give [low, high] flux densities, low above 0 and below high, such as [\"0.5 mT\", \"1.5 T\"]",
+                        Some(r.span.clone()),
+                    )
+                };
+                if a.len() != 2 {
+                    return Err(bad());
+                }
+                let (lo, hi) = (
+                    ctx.positive(&a[0], Kind::FluxDensity, "output.field_range")?,
+                    ctx.positive(&a[1], Kind::FluxDensity, "output.field_range")?,
+                );
+                if lo >= hi {
+                    return Err(bad());
+                }
+                Some((lo, hi))
+            }
+        },
     })
 }

@@ -124,7 +124,7 @@ pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> R
         forces: Vec::new(),
         fluxes: Vec::new(),
         expects: Vec::new(),
-        output: output(&top)?,
+        output: output(&top, &ctx)?,
         newton: solver_settings(&top)?,
         reach_level: match study.get("reach_level") {
             Some(r) => ctx.positive(r, Kind::FluxDensity, "study.reach_level")?,
