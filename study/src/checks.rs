@@ -75,7 +75,7 @@ pub fn magnet_results(model: &Model, sol: &Solution, values: &mut BTreeMap<Strin
     out
 }
 
-/// Temperature at which the worst working point meets the knee, by the
+/// Temperature at which the most demagnetized 1 % of the volume meets the knee, by the
 /// linear model: the demagnetizing field scales with Br(T) and the knee with
 /// HcJ(T), both by their reversible coefficients from 20 degC.
 fn onset_temperature(worst_h: f64, t0: f64, br_coeff: f64, hcj_coeff: f64, knee20: f64) -> Option<f64> {

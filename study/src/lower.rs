@@ -121,23 +121,11 @@ pub fn laws(model: &Model) -> Result<Vec<Law>, StudyError> {
         .collect()
 }
 
-/// Current density of each part: ampere-turns over the meshed area.
-pub fn current_densities(model: &Model, mesh: &mesher::Mesh) -> Result<Vec<f64>, StudyError> {
+/// Current density of each part: ampere-turns over the meshed area (every
+/// part has area: `check_parts_visible` refuses a covered one first).
+fn current_densities(model: &Model, mesh: &mesher::Mesh) -> Vec<f64> {
     let areas = mesh.part_areas(model.parts.len());
-    model
-        .parts
-        .iter()
-        .zip(areas)
-        .enumerate()
-        .map(|(i, (p, area))| match p.current {
-            None => Ok(0.0),
-            Some(_) if area <= 0.0 => Err(StudyError::new(
-                format!("part '{}' carries a current but has no area left (later parts cover it)", p.name),
-                Some(Origin::Part(i)),
-            )),
-            Some(i) => Ok(i / area),
-        })
-        .collect()
+    model.parts.iter().zip(areas).map(|(p, area)| p.current.map_or(0.0, |i| i / area)).collect()
 }
 
 /// A study without any source of field is refused: no magnet, no winding
@@ -179,7 +167,7 @@ pub fn check_parts_visible(model: &Model, mesh: &mesher::Mesh) -> Result<(), Stu
 /// The solver's problem for a model on its mesh.
 pub fn problem<'m>(model: &Model, mesh: &'m mesher::Mesh) -> Result<Problem<'m>, StudyError> {
     check_parts_visible(model, mesh)?;
-    let mut problem = Problem::new(mesh, laws(model)?, current_densities(model, mesh)?);
+    let mut problem = Problem::new(mesh, laws(model)?, current_densities(model, mesh));
     problem.applied_field = model.applied_field;
     problem.newton = model.newton;
     problem.order = if model.mesh.order == 1 {

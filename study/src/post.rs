@@ -345,13 +345,12 @@ fn modelling_warnings(model: &Model, sol: &Solution) -> Vec<String> {
         let covered = if exact > 0.0 { 1.0 - area / exact } else { 0.0 };
         if source && covered > COVERED_SHARE {
             let later: Vec<String> = model.parts[i + 1..].iter().map(|q| format!("'{}'", q.name)).collect();
+            let kind = if p.current.is_some() { "winding" } else { "magnet" };
             out.push(format!(
-                "{} '{}' is {:.0} % covered by later parts ({}): the covered share is not {}; if they should only touch, draw them apart",
-                if source && p.current.is_some() { "winding" } else { "magnet" },
+                "{kind} '{}' is {:.0} % covered by later parts ({}): the covered share is not {kind}; if they should only touch, draw them apart",
                 p.name,
                 100.0 * covered,
                 later.join(", "),
-                if p.current.is_some() { "winding" } else { "magnet" }
             ));
         }
     }

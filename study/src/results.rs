@@ -221,7 +221,7 @@ pub struct MagnetResult {
     pub mean_b_t: f64,
     /// Volume mean of H along the magnetization, A/m.
     pub mean_h_a_per_m: f64,
-    /// Temperature at which the worst point reaches the knee (linear model estimate).
+    /// Temperature at which the most demagnetized 1 % of the volume reaches the knee (linear model estimate).
     pub knee_onset_c: Option<f64>,
     /// (H, B) along the magnetization at each quadrature point, for plots.
     #[cfg_attr(feature = "serde", serde(skip))]
