@@ -11,6 +11,7 @@ use rayon::prelude::*;
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 use study::materials;
+use study::results::Verdict;
 
 fn fail(f: &Failure) -> i32 {
     eprint!("{}", f.message());
@@ -313,27 +314,29 @@ fn check_case(case: &Path, over: &BTreeMap<String, f64>, limits: &Limits, progre
             format!(" [{}: {}]", v.label, describe(v))
         };
         println!("{}{tag}", loaded.path.display());
-        println!("  {:<36} {:<24} {:>14}  result", "value", "bound", "actual");
+        println!("  {:<36} {:<24} {:>24}  result", "value", "bound", "actual");
         for e in &o.results.expect {
             let unit = o.results.units.get(&e.value).copied().unwrap_or("");
-            let actual = e.actual.map_or("-".into(), |a| crate::output::engineering::eng(a, unit));
+            let actual = e.actual.map_or("-".into(), |a| crate::output::engineering::eng_pm(a, e.error, unit));
             // An expectation on an unconverged solution cannot pass: its value is not the answer.
             let pass = e.pass && converged;
-            let verdict = if pass {
-                "pass"
-            } else if e.pass {
-                "FAIL (not converged)"
-            } else {
-                "FAIL"
+            let verdict = match (e.verdict, converged) {
+                (Verdict::Pass, true) => "pass",
+                (Verdict::Pass, false) => "FAIL (not converged)",
+                (Verdict::Undecided, _) => "UNDECIDED (counts as a failure)",
+                (Verdict::Fail, _) => "FAIL",
             };
-            println!("  {:<36} {:<24} {:>14}  {verdict}", e.value, e.bound, actual);
+            println!("  {:<36} {:<24} {:>24}  {verdict}", e.value, e.bound, actual);
             if !pass {
                 code = code.max(1);
             }
-            let message = if !e.pass {
-                Some(format!("{} = {} is outside {}", e.value, actual, e.bound))
-            } else {
-                (!converged).then(|| format!("{} = {} holds, but the solution did not converge", e.value, actual))
+            let message = match e.verdict {
+                Verdict::Fail => Some(format!("{} = {} is outside {}", e.value, actual, e.bound)),
+                Verdict::Undecided => Some(format!(
+                    "{} = {}: the bound {} lies within the value's estimated error, and refinement stopped at max_elements; tighten [study] accuracy or raise [mesh] max_elements",
+                    e.value, actual, e.bound
+                )),
+                Verdict::Pass => (!converged).then(|| format!("{} = {} holds, but the solution did not converge", e.value, actual)),
             };
             suite.cases.push(crate::junit::Case {
                 name: format!("{}{tag}", e.value),

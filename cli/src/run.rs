@@ -206,30 +206,42 @@ pub fn solve_variant(loaded: &Loaded, variant: &Variant, limits: &Limits, progre
         Stage::Meshing => progress.note(&format!("{tag}: meshing")),
         Stage::Meshed { corners, triangles } => progress.note(&format!("{tag}: {corners} corner nodes, {triangles} triangles; solving")),
         Stage::Newton { iteration, residual } => progress.note(&format!("{tag}: Newton iteration {iteration}, relative residual {residual:.3e}")),
+        Stage::Refined {
+            step,
+            unknowns,
+            worst_relative_error,
+            worst_value,
+        } => progress.note(&format!(
+            "{tag}: refinement {step}: {unknowns} unknowns, largest estimated error {:.3} % ({worst_value})",
+            100.0 * worst_relative_error
+        )),
     };
-    let sol = study::run::solve(&model, &mesh, &report).map_err(|e| match e.origin {
+    let finish = |sol: &solver::Solution, estimate: study::estimate::Estimate| -> Result<(Results, FileSet), Failure> {
+        let (mut results, field) = results_and_field(&model, sol, estimate);
+        results.solve.seconds = start.elapsed().as_secs_f64();
+        if !variant.label.is_empty() {
+            results.variant = Some(results::VariantInfo {
+                index: variant.index,
+                label: variant.label.clone(),
+                swept: variant.swept.clone(),
+            });
+        }
+        let files = collect_files(&model, sol, &results, field?)?;
+        Ok((results, files))
+    };
+    let (results, files) = study::run::solve_to_accuracy(&model, mesh, &report, finish).map_err(|e| match e.origin {
         Some(_) => loaded.study_error(&spans, &e),
         None => Failure::Input(format!("error: {}: {e}\n", loaded.path.display())),
-    })?;
-    let (mut results, field) = results_and_field(&model, &sol);
-    results.solve.seconds = start.elapsed().as_secs_f64();
-    if !variant.label.is_empty() {
-        results.variant = Some(results::VariantInfo {
-            index: variant.index,
-            label: variant.label.clone(),
-            swept: variant.swept.clone(),
-        });
-    }
-    let files = collect_files(&model, &sol, &results, field?)?;
+    })??;
     Ok(Outcome { model, results, files })
 }
 
 /// The results and the encoded field file, computed side by side: the VTK
 /// encoding needs only the solution, and each takes about half a second at
 /// 1e6 unknowns.
-pub fn results_and_field(model: &Model, sol: &solver::Solution) -> (Results, Result<Option<Vec<u8>>, Failure>) {
+pub fn results_and_field(model: &Model, sol: &solver::Solution, estimate: study::estimate::Estimate) -> (Results, Result<Option<Vec<u8>>, Failure>) {
     rayon::join(
-        || study::post::results(model, sol, 0.0),
+        || study::post::results_with_errors(model, sol, estimate),
         || {
             model
                 .output

@@ -1,8 +1,9 @@
 //! The plain-text summary printed after a solve.
 
-use crate::output::engineering::eng;
+use crate::output::engineering::{eng, eng_pm};
 use crate::run::Outcome;
 use std::path::Path;
+use study::results::Verdict;
 
 /// The summary: mesh and solve figures, forces, fluxes, probes, parts,
 /// energy, expectations, and the warnings, in engineering notation.
@@ -35,6 +36,8 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
         r.solve.residual,
         r.solve.seconds
     );
+    s += &accuracy_line(r);
+    let err = |name: String| r.errors.get(&name).copied();
     for (name, fr) in &r.forces {
         let contact = if fr.contact {
             "  (parts touch other material or the boundary: value unreliable)"
@@ -45,11 +48,11 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
             "  force {name}: [{}, {}], |F| = {}{contact}\n",
             eng(fr.vector[0], "N"),
             eng(fr.vector[1], "N"),
-            eng(fr.magnitude, "N")
+            eng_pm(fr.magnitude, err(format!("force.{name}.magnitude")), "N")
         );
     }
     for (name, fl) in &r.flux {
-        s += &format!("  flux {name}: {}", eng(fl.wb, "Wb"));
+        s += &format!("  flux {name}: {}", eng_pm(fl.wb, err(format!("flux.{name}")), "Wb"));
         if let Some(l) = fl.inductance_h {
             s += &format!(", inductance {}", eng(l, "H"));
         }
@@ -61,7 +64,7 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
                 "  probe {name} at ({}, {}) {u}: |B| = {}\n",
                 p.points[0][0] / f,
                 p.points[0][1] / f,
-                eng(p.bmag[0], "T")
+                eng_pm(p.bmag[0], err(format!("probe.{name}.b")), "T")
             );
         } else {
             let max = p.bmag.iter().copied().fold(0.0, f64::max);
@@ -91,15 +94,19 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
             study::coil::AMBIENT_C
         );
     }
-    s += &format!("  energy: {}\n", eng(r.energy.stored_j, "J"));
+    s += &format!("  energy: {}\n", eng_pm(r.energy.stored_j, err("energy".into()), "J"));
     for e in &r.expect {
         let unit = r.units.get(&e.value).copied().unwrap_or("");
         s += &format!(
             "  expect {} {}: {} ({})\n",
             e.value,
             e.bound,
-            e.actual.map_or("-".into(), |a| eng(a, unit)),
-            if e.pass { "pass" } else { "FAIL" }
+            e.actual.map_or("-".into(), |a| eng_pm(a, e.error, unit)),
+            match e.verdict {
+                Verdict::Pass => "pass",
+                Verdict::Fail => "FAIL",
+                Verdict::Undecided => "UNDECIDED: the bound lies within the value's error",
+            }
         );
     }
     for w in &r.warnings {
@@ -107,4 +114,21 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
     }
     s += &format!("  results in {}\n", out.display());
     s
+}
+
+/// How the values were refined: the target, the meshes, the worst estimate.
+fn accuracy_line(r: &study::Results) -> String {
+    let Some(a) = &r.adaptive else {
+        return "  accuracy: off (mesh as given, no error estimates)\n".into();
+    };
+    let last = a.steps.last();
+    let worst = last.and_then(|s| s.worst_relative_error).unwrap_or(f64::NAN);
+    let which = last.and_then(|s| s.worst_value.clone()).unwrap_or_default();
+    format!(
+        "  accuracy: {} {} % after {} mesh(es), largest estimated error {:.3} % ({which})\n",
+        if a.reached { "reached" } else { "NOT REACHED:" },
+        100.0 * a.target,
+        a.steps.len(),
+        100.0 * worst
+    )
 }

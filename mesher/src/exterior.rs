@@ -33,6 +33,11 @@ pub struct ExteriorDisk {
 
 /// Ratio by which ring spacing grows towards infinity.
 const RING_GROWTH: f64 = 1.3;
+/// Ring spacing as a share of the ring's radius near the centre of an
+/// axisymmetric exterior (geometric grading towards infinity).
+const CENTRE_GRADING: f64 = 0.3;
+/// Radius, as a share of the disk's, where that grading stops.
+const CENTRE_GRADING_END: f64 = 1e-4;
 
 /// Builds the disk (half-disk when `half`) from the domain's rim nodes, given
 /// as (global id, position on the circle).
@@ -44,10 +49,18 @@ pub fn build(center: [f64; 2], radius: f64, rim: &[(usize, [f64; 2])], half: boo
     let mut points: Vec<[f64; 2]> = rim.iter().map(|r| onto_circle(r.1, center, radius)).collect();
     let mut global: Vec<usize> = rim.iter().map(|r| r.0).collect();
     let (mut rho, mut delta) = (radius, spacing);
+    // Axisymmetric: the potential of the mapped exterior tends to a
+    // direction-dependent limit at infinity (a dipole's A' = c sin(theta)
+    // there), which no element at the centre can follow; rings shrinking
+    // towards the centre confine that misfit to a vanishing disk.
+    let innermost = if half { radius * CENTRE_GRADING_END } else { 0.0 };
     loop {
         delta = (delta * RING_GROWTH).min(radius / 4.0);
+        if half {
+            delta = delta.min(CENTRE_GRADING * rho);
+        }
         rho -= delta;
-        if rho < 0.6 * delta {
+        if rho < 0.6 * delta || rho < innermost {
             break;
         }
         points.extend(ring(center, rho, delta, half));

@@ -24,6 +24,7 @@ mod error;
 mod exterior;
 pub mod geometry;
 mod mesh;
+mod refine;
 mod size_field;
 mod spatial;
 mod spec;

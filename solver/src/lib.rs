@@ -50,6 +50,7 @@ mod ordering;
 pub mod pattern;
 pub mod post;
 pub mod problem;
+pub mod prolong;
 pub mod quadrature;
 mod reduction;
 mod segment_grid;

@@ -53,6 +53,10 @@ pub struct Problem<'m> {
     pub order: ElementOrder,
     /// Stopping rules and step method.
     pub newton: NewtonSettings,
+    /// A first guess of the reduced potential at every node (a coarser
+    /// mesh's solution carried over by `prolong::to_refined`): a saturating
+    /// study then starts near its answer. Linear studies ignore it.
+    pub initial: Option<std::sync::Arc<[f64]>>,
 }
 
 impl<'m> Problem<'m> {
@@ -65,6 +69,7 @@ impl<'m> Problem<'m> {
             applied_field: [0.0, 0.0],
             order: ElementOrder::Quadratic,
             newton: NewtonSettings::default(),
+            initial: None,
         }
     }
 

@@ -15,6 +15,7 @@
 
 pub mod checks;
 pub mod coil;
+pub mod estimate;
 pub mod lower;
 pub mod materials;
 pub mod model;

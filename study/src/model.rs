@@ -46,6 +46,9 @@ pub struct Model {
     pub params: BTreeMap<String, f64>,
     /// Design-check failures that `check` lets pass (`"demagnetization"`).
     pub allow: Vec<String>,
+    /// Relative error every asked value is refined to (`[study] accuracy`);
+    /// None keeps the mesh as given and estimates nothing.
+    pub accuracy: Option<f64>,
 }
 
 /// How the mesh is made.

@@ -3,7 +3,7 @@
 //! scalar values that `[[expect]]` and sweep tables read.
 
 use crate::materials::Material;
-use crate::model::{Bound, FluxSpec, Model, ProbeShape};
+use crate::model::{FluxSpec, Model, ProbeShape};
 use crate::results::*;
 use mesher::Symmetry;
 use solver::post::{energy, flux, force};
@@ -11,7 +11,30 @@ use solver::space::ElementKind;
 use solver::Solution;
 use std::collections::BTreeMap;
 
-/// Everything about a solved study.
+/// Everything about a solved study, with the error estimates of its values
+/// (only values that have both an estimate and a value are kept) and the
+/// expectations judged within them.
+pub fn results_with_errors(model: &Model, sol: &Solution, estimate: crate::estimate::Estimate) -> Results {
+    let mut r = results(model, sol, 0.0);
+    r.errors = estimate.errors;
+    r.errors.retain(|k, e| e.is_finite() && r.values.contains_key(k));
+    if let Some(a) = estimate.adaptive.as_ref().filter(|a| !a.reached) {
+        let last = a.steps.last();
+        r.warnings.push(format!(
+            "the accuracy asked ({} %) was not reached: the largest estimated error is {:.3} % ({}) on {} triangles, and the next refinement would pass [mesh] max_elements ({}) or the solution did not converge",
+            100.0 * a.target,
+            100.0 * last.and_then(|s| s.worst_relative_error).unwrap_or(f64::NAN),
+            last.and_then(|s| s.worst_value.clone()).unwrap_or_default(),
+            last.map_or(0, |s| s.elements),
+            model.mesh.max_elements
+        ));
+    }
+    r.adaptive = estimate.adaptive;
+    r.expect = evaluate(model, &r.values, &r.errors);
+    r
+}
+
+/// Everything about a solved study, without error estimates.
 pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
     let mesh = sol.problem.mesh;
     let depth = if model.symmetry == Symmetry::Planar { model.depth } else { 1.0 };
@@ -91,7 +114,7 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
             cg_iterations: r.cg_iterations,
             seconds,
         },
-        expect: evaluate(model, &values),
+        expect: evaluate(model, &values, &BTreeMap::new()),
         magnets,
         stray,
         coils,
@@ -102,6 +125,8 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
         energy,
         parts,
         values,
+        errors: BTreeMap::new(),
+        adaptive: None,
         asked,
         units,
         cautions: cautions(model),
@@ -447,24 +472,26 @@ fn part_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f64
     out
 }
 
-/// Evaluates every `[[expect]]` against the values.
-pub fn evaluate(model: &Model, values: &BTreeMap<String, f64>) -> Vec<ExpectResult> {
+/// Evaluates every `[[expect]]` against the values, within their errors
+/// where estimated.
+pub fn evaluate(model: &Model, values: &BTreeMap<String, f64>, errors: &BTreeMap<String, f64>) -> Vec<ExpectResult> {
     model
         .expects
         .iter()
         .map(|e| {
             let actual = values.get(&e.value.name).copied();
-            let pass = actual.is_some_and(|v| match e.bound {
-                Bound::Min(lo) => v >= lo,
-                Bound::Max(hi) => v <= hi,
-                Bound::Between(lo, hi) => v >= lo && v <= hi,
-                Bound::Near(t, tol) => (v - t).abs() <= tol,
-            });
+            let error = errors.get(&e.value.name).copied();
+            let verdict = match actual {
+                None => Verdict::Fail,
+                Some(v) => crate::estimate::verdict(&e.bound, v, error.unwrap_or(0.0)),
+            };
             ExpectResult {
                 value: e.value.name.clone(),
                 bound: e.text.clone(),
                 actual,
-                pass,
+                pass: verdict == Verdict::Pass,
+                verdict,
+                error,
             }
         })
         .collect()

@@ -40,6 +40,12 @@ pub struct Results {
     pub warnings: Vec<String>,
     /// Every scalar by its `[[expect]]` name, SI units.
     pub values: BTreeMap<String, f64>,
+    /// Estimated absolute error of each value, SI units (empty when
+    /// `[study] accuracy = "off"`).
+    pub errors: BTreeMap<String, f64>,
+    /// The refinement steps that led to these values.
+    #[cfg_attr(feature = "serde", serde(skip_serializing_if = "Option::is_none"))]
+    pub adaptive: Option<Adaptive>,
     /// The values the case asks for, in its order: expectations first, then
     /// forces, fluxes and probes as written (sweep reports lead with them).
     pub asked: Vec<String>,
@@ -263,8 +269,25 @@ pub struct ExpectResult {
     pub bound: String,
     /// The value found (None when the study did not report it).
     pub actual: Option<f64>,
-    /// Whether the bound holds.
+    /// Whether the bound holds for the value within its error.
     pub pass: bool,
+    /// "pass", "fail", or "undecided" when the bound lies within the value's error.
+    pub verdict: Verdict,
+    /// The value's estimated absolute error, if estimated.
+    #[cfg_attr(feature = "serde", serde(skip_serializing_if = "Option::is_none"))]
+    pub error: Option<f64>,
+}
+
+/// An expectation's outcome.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize), serde(rename_all = "lowercase"))]
+pub enum Verdict {
+    /// The bound holds for every value within the error.
+    Pass,
+    /// The bound fails for every value within the error (or there is no value).
+    Fail,
+    /// The bound holds for some values within the error and not for others.
+    Undecided,
 }
 
 /// The cautions every report carries.
@@ -274,3 +297,32 @@ pub const CAUTIONS: &[&str] = &[
     "Magnetized goods have air-transport rules (IATA packing instruction 953); this tool screens, the current regulations and the carrier decide.",
     "Results are estimates from a 2D model; confirm by measurement and qualified practice before relying on them.",
 ];
+
+/// One mesh of the refinement sequence.
+#[derive(Clone, Debug, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
+pub struct Step {
+    /// Triangles of the physical domain.
+    pub elements: usize,
+    /// Unknowns solved for.
+    pub unknowns: usize,
+    /// Largest estimated relative error of an asked value (None on the
+    /// first mesh, which has nothing to compare with).
+    pub worst_relative_error: Option<f64>,
+    /// The value it belongs to.
+    pub worst_value: Option<String>,
+    /// Seconds for this step's solve and estimate.
+    pub seconds: f64,
+}
+
+/// How the reported values were reached.
+#[derive(Clone, Debug, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
+pub struct Adaptive {
+    /// The relative error asked for.
+    pub target: f64,
+    /// Whether every asked value reached it.
+    pub reached: bool,
+    /// The meshes solved, coarsest first; the values are from the last.
+    pub steps: Vec<Step>,
+}

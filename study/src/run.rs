@@ -1,10 +1,13 @@
 //! Running one study: mesh, solve and post-process a model. Progress goes
 //! to a callback; nothing here prints.
 
+use crate::estimate::{driving, undecided, worst, Estimate, History};
 use crate::lower::{self, StudyError};
 use crate::model::Model;
 use crate::results::Results;
+use crate::results::{Adaptive, Step};
 use solver::Solution;
+use std::time::Instant;
 
 /// Stages of a run, reported to the progress callback.
 #[derive(Clone, Debug, PartialEq)]
@@ -27,6 +30,17 @@ pub enum Stage {
         /// relative residual after it
         residual: f64,
     },
+    /// A refinement step finished with this error estimate.
+    Refined {
+        /// its number (1 for the first mesh that has a coarser one to compare with)
+        step: usize,
+        /// unknowns of its mesh
+        unknowns: usize,
+        /// largest estimated relative error of an asked value
+        worst_relative_error: f64,
+        /// the value it belongs to
+        worst_value: String,
+    },
 }
 
 /// Meshes a model after checking that its probes lie where the mesh reaches.
@@ -38,7 +52,19 @@ pub fn mesh(model: &Model) -> Result<mesher::Mesh, StudyError> {
 
 /// Solves a model on its mesh.
 pub fn solve<'m>(model: &Model, mesh: &'m mesher::Mesh, progress: &(dyn Fn(Stage) + Sync)) -> Result<Solution<'m>, StudyError> {
-    let problem = lower::problem(model, mesh)?;
+    solve_from(model, mesh, None, progress)
+}
+
+/// Solves a model on its mesh from a first guess of the reduced potential
+/// at every node (see `solver::prolong`).
+pub fn solve_from<'m>(
+    model: &Model,
+    mesh: &'m mesher::Mesh,
+    initial: Option<std::sync::Arc<[f64]>>,
+    progress: &(dyn Fn(Stage) + Sync),
+) -> Result<Solution<'m>, StudyError> {
+    let mut problem = lower::problem(model, mesh)?;
+    problem.initial = initial;
     progress(Stage::Meshed {
         corners: mesh.n_nodes(),
         triangles: mesh.triangles.len(),
@@ -50,10 +76,70 @@ pub fn solve<'m>(model: &Model, mesh: &'m mesher::Mesh, progress: &(dyn Fn(Stage
     })
 }
 
-/// Meshes, solves and post-processes a model: its typed results.
+/// Meshes, solves (refining to the model's accuracy) and post-processes a
+/// model: its typed results, with the error of each value.
 pub fn run(model: &Model, progress: &(dyn Fn(Stage) + Sync)) -> Result<Results, StudyError> {
     progress(Stage::Meshing);
     let mesh = mesh(model)?;
-    let solution = solve(model, &mesh, progress)?;
-    Ok(crate::post::results(model, &solution, 0.0))
+    solve_to_accuracy(model, mesh, progress, |sol, estimate| crate::post::results_with_errors(model, sol, estimate))
+}
+
+/// Meshes and solves the model, refining until its accuracy is reached
+/// (or solving the mesh as given when accuracy is off), then hands the
+/// last solution and the error estimates to `finish`.
+pub fn solve_to_accuracy<R>(
+    model: &Model,
+    first: mesher::Mesh,
+    progress: &(dyn Fn(Stage) + Sync),
+    finish: impl FnOnce(&Solution, Estimate) -> R,
+) -> Result<R, StudyError> {
+    let Some(target) = model.accuracy else {
+        let sol = solve(model, &first, progress)?;
+        return Ok(finish(&sol, Estimate::default()));
+    };
+    let mut mesh = first;
+    let mut history = History::new();
+    let mut steps = Vec::new();
+    let mut guess = None;
+    loop {
+        let start = Instant::now();
+        let sol = solve_from(model, &mesh, guess.take(), progress)?;
+        let results = crate::post::results(model, &sol, 0.0);
+        let first_step = steps.is_empty();
+        history.update(&results.values);
+        let names = driving(model, &results);
+        let (rel, name) = worst(&names, &results.values, &history.estimate);
+        steps.push(Step {
+            elements: mesh.triangles.len(),
+            unknowns: sol.report.n_dofs,
+            worst_relative_error: (!first_step).then_some(rel),
+            worst_value: (!first_step).then(|| name.clone()),
+            seconds: start.elapsed().as_secs_f64(),
+        });
+        let reached = !first_step && rel <= target && !undecided(model, &results.values, &history.estimate);
+        let total = mesh.triangles.len() + mesh.exterior.as_ref().map_or(0, |d| d.triangles.len());
+        let room = 4 * total <= model.mesh.max_elements;
+        if !first_step {
+            progress(Stage::Refined {
+                step: steps.len() - 1,
+                unknowns: sol.report.n_dofs,
+                worst_relative_error: rel,
+                worst_value: name,
+            });
+        }
+        if reached || !room || !sol.report.converged {
+            let estimate = Estimate {
+                errors: history.estimate.clone(),
+                adaptive: Some(Adaptive { target, reached, steps }),
+            };
+            return Ok(finish(&sol, estimate));
+        }
+        let next = mesh.refined();
+        if sol.problem.is_nonlinear() {
+            let fine = solver::space::Elements::from_mesh(&next, sol.elements.order);
+            guess = solver::prolong::to_refined(&sol, &fine).map(std::sync::Arc::from);
+        }
+        drop(sol);
+        mesh = next;
+    }
 }

@@ -167,7 +167,7 @@ fn run_text(text: &str) -> Row {
     let sol = solver::solve(&problem, &|_, _| {}).unwrap();
     // Post-processing and the field file's encoding run side by side, as in `lodestone solve`.
     let t = Instant::now();
-    let (results, field) = lodestone::run::results_and_field(&model, &sol);
+    let (results, field) = lodestone::run::results_and_field(&model, &sol, Default::default());
     let post_s = t.elapsed().as_secs_f64();
     let t = Instant::now();
     let field = field.unwrap_or_else(|f| panic!("{}", f.message()));

@@ -38,9 +38,46 @@ fn significant(x: f64) -> String {
     }
 }
 
+/// A value with its estimated error, both in the value's prefix and to the
+/// error's second significant digit: `-333.2 N ± 0.12 N`, `526.88 mT ±
+/// 0.020 mT`, `527 mT ± 12 mT`. Without a finite error, the value alone.
+pub fn eng_pm(value: f64, error: Option<f64>, unit: &str) -> String {
+    let Some(e) = error.filter(|e| e.is_finite() && *e >= 0.0) else {
+        return eng(value, unit);
+    };
+    if !value.is_finite() {
+        return eng(value, unit);
+    }
+    let prefixable = !unit.is_empty() && !matches!(unit, "degC" | "%" | "deg" | "kgf" | "lbf" | "A/mm2" | "K");
+    let reference = if value != 0.0 { value.abs() } else { e };
+    let exponent = if prefixable && reference > 0.0 {
+        ((reference.log10() / 3.0).floor() as i32 * 3).clamp(-12, 12)
+    } else {
+        0
+    };
+    const PREFIXES: [(i32, &str); 9] = [(-12, "p"), (-9, "n"), (-6, "u"), (-3, "m"), (0, ""), (3, "k"), (6, "M"), (9, "G"), (12, "T")];
+    let prefix = PREFIXES.iter().find(|p| p.0 == exponent).map_or("", |p| p.1);
+    let (v, e) = (value / 10f64.powi(exponent), e / 10f64.powi(exponent));
+    let decimals = if e > 0.0 { (1 - e.log10().floor() as i32).clamp(0, 9) as usize } else { 4 };
+    let u = format!("{prefix}{unit}");
+    format!("{v:.decimals$} {u} \u{b1} {e:.decimals$} {u}")
+        .replace("  ", " ")
+        .trim_end()
+        .to_string()
+}
+
 #[cfg(test)]
 mod tests {
-    use super::eng;
+    use super::{eng, eng_pm};
+
+    #[test]
+    fn values_with_errors_show_the_errors_digits() {
+        assert_eq!(eng_pm(-333.16, Some(0.12), "N"), "-333.16 N \u{b1} 0.12 N");
+        assert_eq!(eng_pm(0.52688, Some(2.0e-5), "T"), "526.880 mT \u{b1} 0.020 mT");
+        assert_eq!(eng_pm(0.527, Some(0.012), "T"), "527 mT \u{b1} 12 mT");
+        assert_eq!(eng_pm(0.4279, Some(0.0012), ""), "0.4279 \u{b1} 0.0012");
+        assert_eq!(eng_pm(5.0, None, "N"), "5 N");
+    }
 
     #[test]
     fn numbers_read_as_engineers_write_them() {

@@ -132,6 +132,7 @@ pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> R
         },
         params: params.clone(),
         allow: study_table::allowed(&study)?,
+        accuracy: study_table::accuracy(&study)?,
     };
     (model.probes, spans.probes) = probes(&top, &ctx)?.into_iter().unzip();
     model.forces = forces(&top, &ctx, &model)?;

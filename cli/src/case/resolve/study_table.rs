@@ -18,7 +18,14 @@ pub const STUDY: &[&str] = &[
     "box",
     "reach_level",
     "allow",
+    "accuracy",
 ];
+
+/// Default `[study] accuracy`: relative error every asked value is refined to.
+pub const DEFAULT_ACCURACY: f64 = 1e-3;
+/// Tightest accuracy accepted (relative): below it the floating-point
+/// solution itself (condition number times 1e-16) is not trustworthy.
+const FINEST_ACCURACY: f64 = 1e-7;
 
 pub(super) fn length_unit(study: &Fields) -> Result<(String, f64), Diagnostic> {
     let Some(u) = study.get("unit") else {
@@ -132,4 +139,37 @@ pub(super) fn allowed(study: &Fields) -> Result<Vec<String>, Diagnostic> {
             }
         })
         .collect()
+}
+
+/// `accuracy = "0.1 %"` (a percentage, or a plain fraction such as 0.001),
+/// or `"off"` to keep the mesh as given and report no error estimates.
+pub(super) fn accuracy(study: &Fields) -> Result<Option<f64>, Diagnostic> {
+    let Some(a) = study.get("accuracy") else { return Ok(Some(DEFAULT_ACCURACY)) };
+    let bad = |what: String| {
+        Diagnostic::new(what, Some(a.span.clone())).with_help(Some(
+            "give a relative error such as \"0.1 %\" or 0.001, or \"off\" to keep the mesh as given".into(),
+        ))
+    };
+    let x = match &a.value {
+        Value::Str(s) if s.trim() == "off" => return Ok(None),
+        Value::Str(s) => {
+            let t = s.trim();
+            let Some(number) = t.strip_suffix('%') else {
+                return Err(bad(format!("study.accuracy: '{t}' is not a percentage (\"0.1 %\") or \"off\"")));
+            };
+            number
+                .trim()
+                .parse::<f64>()
+                .map_err(|_| bad(format!("study.accuracy: '{t}' is not a percentage")))?
+                / 100.0
+        }
+        _ => a.number("study.accuracy")?,
+    };
+    if !(FINEST_ACCURACY..=0.5).contains(&x) {
+        return Err(bad(format!(
+            "study.accuracy: {x:e} is out of range; it must lie between {FINEST_ACCURACY:e} ({} %) and 0.5 (50 %)",
+            FINEST_ACCURACY * 100.0
+        )));
+    }
+    Ok(Some(x))
 }

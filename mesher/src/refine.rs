@@ -1,0 +1,216 @@
+//! Uniform (red) refinement: every triangle split into four at its edge
+//! midpoints. The refined mesh is nested in the coarse one, so a value
+//! computed on both converges regularly from one to the other, and their
+//! difference measures the discretization error (the study's error
+//! estimates rest on this). Triangle shapes, and so the smallest angle, are
+//! kept; midpoints of the open boundary's rim go onto the exact circle, in
+//! the domain and in the Kelvin-mapped exterior alike.
+
+use crate::exterior::ExteriorDisk;
+use crate::mesh::{BoundaryTag, Mesh};
+use std::collections::HashMap;
+
+/// Midpoint node of each edge, keyed by its sorted end nodes.
+type EdgeMidpoints = HashMap<(usize, usize), usize>;
+
+fn key(a: usize, b: usize) -> (usize, usize) {
+    (a.min(b), a.max(b))
+}
+
+fn midpoint(a: [f64; 2], b: [f64; 2]) -> [f64; 2] {
+    [0.5 * (a[0] + b[0]), 0.5 * (a[1] + b[1])]
+}
+
+/// The point at the same angle on the circle (centre, radius); on the axis
+/// side of an axisymmetric half-disk r stays non-negative.
+fn onto_circle(p: [f64; 2], center: [f64; 2], radius: f64) -> [f64; 2] {
+    let d = (p[0] - center[0]).hypot(p[1] - center[1]);
+    if d == 0.0 {
+        return p;
+    }
+    [center[0] + (p[0] - center[0]) * radius / d, center[1] + (p[1] - center[1]) * radius / d]
+}
+
+/// The four children of a counter-clockwise triangle with midpoints m of
+/// edges 0-1, 1-2, 2-0; all counter-clockwise.
+fn children(t: [usize; 3], m: [usize; 3]) -> [[usize; 3]; 4] {
+    [[t[0], m[0], m[2]], [m[0], t[1], m[1]], [m[2], m[1], t[2]], [m[0], m[1], m[2]]]
+}
+
+impl Mesh {
+    /// This mesh with every triangle split into four (physical domain and
+    /// exterior disk); regions and boundary tags are inherited.
+    pub fn refined(&self) -> Mesh {
+        let rim = self.exterior.as_ref().map(|d| (d.center, d.radius));
+        let rim_edges: std::collections::HashSet<(usize, usize)> = self
+            .boundary
+            .iter()
+            .filter(|(_, t)| *t == BoundaryTag::Rim)
+            .map(|(e, _)| key(e[0], e[1]))
+            .collect();
+        // Physical nodes first: old ones, then the new midpoints.
+        let mut nodes: Vec<[f64; 2]> = self.nodes[..self.n_physical].to_vec();
+        let mut mids = EdgeMidpoints::new();
+        let mut triangles = Vec::with_capacity(4 * self.triangles.len());
+        for t in &self.triangles {
+            let m = [0, 1, 2].map(|k| {
+                let (a, b) = (t[k], t[(k + 1) % 3]);
+                *mids.entry(key(a, b)).or_insert_with(|| {
+                    let mut p = midpoint(self.nodes[a], self.nodes[b]);
+                    if let (Some((c, r)), true) = (rim, rim_edges.contains(&key(a, b))) {
+                        p = onto_circle(p, c, r);
+                    }
+                    nodes.push(p);
+                    nodes.len() - 1
+                })
+            });
+            triangles.extend(children(*t, m));
+        }
+        let n_physical = nodes.len();
+        let regions = self.regions.iter().flat_map(|r| [*r; 4]).collect();
+        let boundary = self
+            .boundary
+            .iter()
+            .flat_map(|&([a, b], tag)| {
+                let m = mids[&key(a, b)];
+                [([a, m], tag), ([m, b], tag)]
+            })
+            .collect();
+        let mut mesh = Mesh {
+            symmetry: self.symmetry,
+            nodes,
+            n_physical,
+            triangles,
+            regions,
+            boundary,
+            exterior: None,
+        };
+        if let Some(disk) = &self.exterior {
+            mesh.exterior = Some(refine_exterior(disk, self.n_physical, &mids, &rim_edges, &mut mesh.nodes));
+        }
+        mesh
+    }
+}
+
+/// The exterior disk refined: rim edges share the domain's rim midpoints,
+/// every other edge gets an exterior-only node (numbered after all
+/// physical nodes, whose count grew, so old exterior-only ids shift too).
+fn refine_exterior(
+    disk: &ExteriorDisk,
+    old_physical: usize,
+    physical_mids: &EdgeMidpoints,
+    rim_edges: &std::collections::HashSet<(usize, usize)>,
+    nodes: &mut Vec<[f64; 2]>,
+) -> ExteriorDisk {
+    let first_free = nodes.len();
+    let global: Vec<usize> = disk
+        .global
+        .iter()
+        .map(|&g| if g < old_physical { g } else { g - old_physical + first_free })
+        .collect();
+    for (local, &g) in global.iter().enumerate() {
+        if g >= first_free {
+            debug_assert_eq!(g, nodes.len());
+            nodes.push(disk.mapped[local]);
+        }
+    }
+    let mut mapped = disk.mapped.clone();
+    let mut global = global;
+    let mut local_mids: HashMap<(usize, usize), usize> = HashMap::new();
+    let mut triangles = Vec::with_capacity(4 * disk.triangles.len());
+    for t in &disk.triangles {
+        let m = [0, 1, 2].map(|k| {
+            let (a, b) = (t[k], t[(k + 1) % 3]);
+            *local_mids.entry(key(a, b)).or_insert_with(|| {
+                let (ga, gb) = (disk.global[a], disk.global[b]);
+                let on_rim = ga < old_physical && gb < old_physical && rim_edges.contains(&key(ga, gb));
+                let p = midpoint(disk.mapped[a], disk.mapped[b]);
+                if on_rim {
+                    // The domain's midpoint is on the circle, where the map is the identity.
+                    let g = physical_mids[&key(ga, gb)];
+                    mapped.push(nodes[g]);
+                    global.push(g);
+                } else {
+                    mapped.push(p);
+                    global.push(nodes.len());
+                    nodes.push(p);
+                }
+                mapped.len() - 1
+            })
+        });
+        triangles.extend(children(*t, m));
+    }
+    ExteriorDisk {
+        center: disk.center,
+        radius: disk.radius,
+        mapped,
+        global,
+        triangles,
+        infinity: disk.infinity,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use crate::spec::{MeshSpec, OuterBoundary, PartSpec, Shape, Symmetry};
+
+    fn spec(symmetry: Symmetry) -> MeshSpec {
+        MeshSpec {
+            symmetry,
+            parts: vec![PartSpec {
+                shape: Shape::Rect {
+                    from: [0.0, 0.0],
+                    to: [0.01, 0.02],
+                },
+                mesh_size: 0.002,
+            }],
+            refinements: Vec::new(),
+            outer: OuterBoundary::Open,
+            min_angle_deg: 28.0,
+            grading: 1.3,
+            max_triangles: 1_000_000,
+        }
+    }
+
+    /// Red refinement by definition: four children per triangle, the same
+    /// area per region, the same smallest angle (children are similar to
+    /// their parent), rim midpoints on the circle, every exterior node id
+    /// after the physical ones and each node used.
+    #[test]
+    fn red_refinement_keeps_areas_angles_and_the_rim() {
+        for symmetry in [Symmetry::Planar, Symmetry::Axisymmetric] {
+            let coarse = crate::build_mesh(&spec(symmetry)).unwrap();
+            let fine = coarse.refined();
+            assert_eq!(fine.triangles.len(), 4 * coarse.triangles.len());
+            let (qc, qf) = (coarse.quality(), fine.quality());
+            // Rim midpoints move out onto the circle: a little area is gained, none lost.
+            assert!(qf.total_area >= qc.total_area * (1.0 - 1e-12) && qf.total_area < qc.total_area * 1.01);
+            assert!((qc.min_angle_deg - qf.min_angle_deg).abs() < 0.5, "{qc:?} {qf:?}");
+            let ac: f64 = coarse.part_areas(1)[0];
+            let af: f64 = fine.part_areas(1)[0];
+            assert!((ac - af).abs() < 1e-12 * ac);
+            let disk = fine.exterior.as_ref().unwrap();
+            assert_eq!(disk.triangles.len(), 4 * coarse.exterior.as_ref().unwrap().triangles.len());
+            for (l, &g) in disk.global.iter().enumerate() {
+                // New rim midpoints (old rim nodes may be chord split points a sagitta inside).
+                if (coarse.n_physical..fine.n_physical).contains(&g) {
+                    let p = fine.nodes[g];
+                    let d = (p[0] - disk.center[0]).hypot(p[1] - disk.center[1]);
+                    assert!(
+                        (d - disk.radius).abs() < 1e-9 * disk.radius,
+                        "{symmetry:?} rim node {g} (local {l}) at {d}, radius {}, coarse physical {}",
+                        disk.radius,
+                        coarse.n_physical
+                    );
+                    let q = disk.mapped[l];
+                    assert!((q[0] - p[0]).abs() + (q[1] - p[1]).abs() < 1e-9 * disk.radius);
+                }
+            }
+            let mut used = vec![false; fine.n_nodes()];
+            fine.triangles.iter().flatten().for_each(|&n| used[n] = true);
+            disk.triangles.iter().flatten().for_each(|&l| used[disk.global[l]] = true);
+            assert!(used.iter().all(|&u| u), "every node belongs to a triangle");
+            assert!(fine.triangles.iter().flatten().all(|&n| n < fine.n_physical));
+        }
+    }
+}

@@ -1,0 +1,50 @@
+//! Carrying a solution to the mesh that `Mesh::refined` made from its mesh:
+//! the coarse field evaluated at the fine nodes. The fine space holds the
+//! coarse one (nested meshes, same order), so this is exact up to the rim
+//! midpoints that refinement moves onto the circle; it serves as the first
+//! guess of the fine solve.
+
+use crate::element::{point_op, potential, EDGES, MAX_NODES};
+use crate::space::Elements;
+use crate::Solution;
+
+/// Parent barycentrics of the corners of the four children (the order of
+/// `Mesh::refined`: three corner children, then the middle one).
+const CHILD_CORNERS: [[[f64; 3]; 3]; 4] = [
+    [[1.0, 0.0, 0.0], [0.5, 0.5, 0.0], [0.5, 0.0, 0.5]],
+    [[0.5, 0.5, 0.0], [0.0, 1.0, 0.0], [0.0, 0.5, 0.5]],
+    [[0.5, 0.0, 0.5], [0.0, 0.5, 0.5], [0.0, 0.0, 1.0]],
+    [[0.5, 0.5, 0.0], [0.0, 0.5, 0.5], [0.5, 0.0, 0.5]],
+];
+
+/// Parent barycentrics of a child's node `j` (corners, then edge midpoints).
+fn node_in_parent(child: usize, j: usize) -> [f64; 3] {
+    let c = &CHILD_CORNERS[child];
+    if j < 3 {
+        return c[j];
+    }
+    let [a, b] = EDGES[j - 3];
+    [0, 1, 2].map(|i| 0.5 * (c[a][i] + c[b][i]))
+}
+
+/// The reduced potential of `coarse` at every node of `fine`, whose element
+/// 4e + k is child k of the coarse element e; None when the tables do not
+/// match that pattern (another order or another mesh).
+pub fn to_refined(coarse: &Solution, fine: &Elements) -> Option<Vec<f64>> {
+    let els = &coarse.elements;
+    if fine.len() != 4 * els.len() || fine.order != els.order {
+        return None;
+    }
+    let mut out = vec![0.0; fine.n_nodes];
+    for e in 0..els.len() {
+        let a: [f64; MAX_NODES] = els.gather(e, &coarse.reduced);
+        for k in 0..4 {
+            let f = 4 * e + k;
+            for (j, &node) in fine.element_nodes(f).iter().enumerate() {
+                let op = point_op(&els.coords[e], els.order, coarse.symmetry(), els.placement(e), node_in_parent(k, j), 1.0);
+                out[node] = potential(&op, &a);
+            }
+        }
+    }
+    Some(out)
+}

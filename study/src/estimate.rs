@@ -1,0 +1,241 @@
+//! Error estimates and adaptive refinement (`[study] accuracy`).
+//!
+//! The study is solved on a sequence of nested meshes, each the previous
+//! one with every triangle split into four (`Mesh::refined`). On nested
+//! meshes a value converges regularly, so the change of a value from one
+//! mesh to the next measures its discretization error (the idea behind
+//! Richardson extrapolation; L. F. Richardson, Phil. Trans. R. Soc. A 210,
+//! 1911):
+//! - with two meshes, the error of the finer value is taken as the whole
+//!   change |d| (twice that for a field at a point; see
+//!   `first_change_share`): exact for a value converging as h^1, three
+//!   times the error at h^2 and fifteen times at h^4, so never an
+//!   underestimate once the error at least halves per step;
+//! - with three or more, when the last two changes have one sign, the
+//!   observed ratio rho = |d_k| / |d_(k-1)| gives the geometric tail
+//!   |d_k| rho / (1 - rho), doubled for safety; when the sign reversed (two
+//!   error terms still compete, as at a probe near the open boundary's rim
+//!   on coarse meshes) the estimate is twice the change; rho is
+//!   kept within [1/16, 0.9] (no faster than quadratic elements' energy
+//!   converges, and a stalled value gets ten times its change), and an
+//!   estimate never falls below what a 1/16 decrease per step since the
+//!   previous change leaves (a change that happens to pass through zero
+//!   does not make a value look exact).
+//!
+//! Refinement continues until every value the case asks for (its probes,
+//! forces, fluxes and expectations) has an estimated relative error below
+//! the target and no expectation is undecided, or until the next mesh
+//! would pass `max_elements`. The mesh is refined uniformly: the a-priori
+//! grading at corners (see `lower::mesh_spec`) puts the fine elements where
+//! the field is singular, and each step keeps it.
+
+use crate::model::{Bound, Model};
+use std::collections::BTreeMap;
+
+/// Fastest error decrease per refinement step trusted (quadratic elements'
+/// energy error falls as h^4).
+const RHO_MIN: f64 = 1.0 / 16.0;
+/// Slowest: a value changing by more than 90 % of its last change is not
+/// yet converging; its estimate is ten times its change.
+const RHO_MAX: f64 = 0.9;
+/// Safety factor on the geometric tail.
+const SAFETY: f64 = 2.0;
+
+/// Estimated absolute errors of the last mesh's values.
+#[derive(Clone, Debug, Default)]
+pub struct Estimate {
+    /// By value name, SI units.
+    pub errors: BTreeMap<String, f64>,
+    /// The refinement record (None when accuracy is off).
+    pub adaptive: Option<crate::results::Adaptive>,
+}
+
+/// The scale a value's error is measured against: the value itself, or the
+/// magnitude of the vector it is a component of (a component that vanishes
+/// by symmetry is not asked to be accurate relative to zero).
+pub fn scale(name: &str, values: &BTreeMap<String, f64>) -> f64 {
+    let own = values.get(name).copied().unwrap_or(0.0).abs();
+    let Some((group, _)) = name.rsplit_once('.') else { return own };
+    ["b", "magnitude"]
+        .iter()
+        .filter_map(|m| values.get(&format!("{group}.{m}")))
+        .fold(own, |s, v| s.max(v.abs()))
+}
+
+/// The two-mesh estimate as a multiple of the change. A field at a point
+/// converges as h^2 with quadratic elements (one order less than the
+/// potential), so its change is three times its error once asymptotic; on
+/// coarse meshes its error can still stall while the rest converges (a
+/// probe near the open boundary's rim: 1.1e-4 against a change of 4e-5),
+/// so twice the change is taken. Integrals (forces, fluxes, energy)
+/// converge as h^4, with a change fifteen times the error, and take it as is.
+fn first_change_share(name: &str) -> f64 {
+    if name.starts_with("probe.") {
+        2.0
+    } else {
+        1.0
+    }
+}
+
+/// Errors of the newest values from the last two changes.
+pub(crate) struct History {
+    previous: BTreeMap<String, f64>,
+    change: BTreeMap<String, f64>,
+    pub(crate) estimate: BTreeMap<String, f64>,
+}
+
+impl History {
+    /// No meshes yet.
+    pub(crate) fn new() -> History {
+        History {
+            previous: BTreeMap::new(),
+            change: BTreeMap::new(),
+            estimate: BTreeMap::new(),
+        }
+    }
+
+    /// The estimates for `values` (the finer mesh's) against the previous mesh's.
+    pub(crate) fn update(&mut self, values: &BTreeMap<String, f64>) {
+        let mut change = BTreeMap::new();
+        let mut estimate = BTreeMap::new();
+        for (name, &v) in values {
+            let Some(&p) = self.previous.get(name) else { continue };
+            let d = v - p;
+            // However small this change, the error cannot have fallen faster
+            // than RHO_MIN per step since the last one.
+            let floor = |d0: f64| SAFETY * d0.abs() * RHO_MIN * RHO_MIN / (1.0 - RHO_MIN);
+            let e = match self.change.get(name) {
+                // Changes of one sign: the asymptotic range, where the tail applies.
+                Some(&d0) if d0 != 0.0 && d0.signum() == d.signum() => {
+                    let rho = (d / d0).abs().clamp(RHO_MIN, RHO_MAX);
+                    (SAFETY * d.abs() * rho / (1.0 - rho)).max(floor(d0))
+                }
+                // A change that reverses the last one: two error terms still
+                // compete, and the next change may be as large as this one.
+                Some(&d0) => (SAFETY * d.abs()).max(floor(d0)),
+                None => first_change_share(name) * d.abs(),
+            };
+            change.insert(name.clone(), d);
+            estimate.insert(name.clone(), e);
+        }
+        self.previous = values.clone();
+        self.change = change;
+        self.estimate = estimate;
+    }
+}
+
+/// The values that drive refinement: those asked for, else the energy.
+/// A force on parts that touch other material is left out: its stress band
+/// cannot close in air, it does not converge, and a warning already says so.
+pub(crate) fn driving(model: &Model, results: &crate::results::Results) -> Vec<String> {
+    let mut out: Vec<String> = results.asked.to_vec();
+    out.extend(model.expects.iter().map(|e| e.value.name.clone()));
+    for (name, f) in &results.forces {
+        if f.contact {
+            let prefix = format!("force.{name}.");
+            out.retain(|v| !v.starts_with(&prefix));
+        }
+    }
+    if out.is_empty() {
+        out.push("energy".into());
+    }
+    out.sort();
+    out.dedup();
+    out
+}
+
+/// The worst relative error among the driving values, and its name.
+pub(crate) fn worst(names: &[String], values: &BTreeMap<String, f64>, errors: &BTreeMap<String, f64>) -> (f64, String) {
+    let mut w = (0.0, String::new());
+    for n in names {
+        let Some(&e) = errors.get(n) else { continue };
+        let s = scale(n, values);
+        let rel = if s > 0.0 { e / s } else { 0.0 };
+        if rel > w.0 || w.1.is_empty() {
+            w = (rel, n.clone());
+        }
+    }
+    w
+}
+
+/// Whether a bound holds for every, no, or some value within v +- e.
+pub fn verdict(bound: &Bound, v: f64, e: f64) -> crate::results::Verdict {
+    use crate::results::Verdict;
+    let holds = |x: f64| match *bound {
+        Bound::Min(lo) => x >= lo,
+        Bound::Max(hi) => x <= hi,
+        Bound::Between(lo, hi) => x >= lo && x <= hi,
+        Bound::Near(t, tol) => (x - t).abs() <= tol,
+    };
+    // The bounds are intervals, so the ends of [v - e, v + e] decide,
+    // except for a target interval that sits inside it.
+    let inside = match *bound {
+        Bound::Between(lo, hi) => v - e <= lo && hi <= v + e,
+        Bound::Near(t, tol) => v - e <= t - tol && t + tol <= v + e,
+        _ => false,
+    };
+    match (holds(v - e), holds(v + e), holds(v)) {
+        (true, true, true) => Verdict::Pass,
+        (false, false, false) if !inside => Verdict::Fail,
+        _ => Verdict::Undecided,
+    }
+}
+
+/// Whether some expectation is undecided at these values and errors.
+pub(crate) fn undecided(model: &Model, values: &BTreeMap<String, f64>, errors: &BTreeMap<String, f64>) -> bool {
+    model.expects.iter().any(|x| match (values.get(&x.value.name), errors.get(&x.value.name)) {
+        (Some(&v), Some(&e)) => verdict(&x.bound, v, e) == crate::results::Verdict::Undecided,
+        _ => false,
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::results::Verdict;
+
+    fn map(pairs: &[(&str, f64)]) -> BTreeMap<String, f64> {
+        pairs.iter().map(|(k, v)| (k.to_string(), *v)).collect()
+    }
+
+    /// A sequence with error C h^p on halving meshes: the estimate after
+    /// three meshes is within a factor two of the true error, from above,
+    /// for p from 1 to 4 (the Richardson tail of a geometric sequence).
+    #[test]
+    fn estimates_of_geometric_sequences_are_within_two() {
+        for p in [1.0, 1.5, 2.0, 3.0, 4.0] {
+            let mut h = History::new();
+            let exact = 3.0;
+            for k in 0..5 {
+                let err = 0.1 * 0.5f64.powf(p * k as f64);
+                h.update(&map(&[("x", exact + err)]));
+                if k >= 1 {
+                    let ratio = h.estimate["x"] / err;
+                    assert!((1.0..=if k == 1 { 16.0 } else { 2.01 }).contains(&ratio), "p {p} step {k}: ratio {ratio}");
+                }
+            }
+        }
+    }
+
+    /// The verdict is decided only when the whole interval agrees.
+    #[test]
+    fn verdicts_within_the_error() {
+        assert_eq!(verdict(&Bound::Min(10.0), 11.0, 0.5), Verdict::Pass);
+        assert_eq!(verdict(&Bound::Min(10.0), 11.0, 2.0), Verdict::Undecided);
+        assert_eq!(verdict(&Bound::Min(10.0), 8.0, 1.0), Verdict::Fail);
+        assert_eq!(verdict(&Bound::Between(1.0, 2.0), 1.5, 0.2), Verdict::Pass);
+        assert_eq!(verdict(&Bound::Between(1.0, 2.0), 1.5, 1.0), Verdict::Undecided);
+        assert_eq!(verdict(&Bound::Near(5.0, 0.1), 6.0, 0.2), Verdict::Fail);
+        assert_eq!(verdict(&Bound::Near(5.0, 0.1), 5.05, 0.1), Verdict::Undecided);
+        assert_eq!(verdict(&Bound::Max(1.0), 0.5, 0.0), Verdict::Pass);
+    }
+
+    /// A component is measured against its vector's magnitude.
+    #[test]
+    fn components_scale_with_their_vector() {
+        let v = map(&[("probe.p.bx", 1e-9), ("probe.p.b", 0.5), ("force.f.magnitude", 3.0), ("force.f.x", 0.0)]);
+        assert_eq!(scale("probe.p.bx", &v), 0.5);
+        assert_eq!(scale("force.f.x", &v), 3.0);
+        assert_eq!(scale("energy", &map(&[("energy", -2.0)])), 2.0);
+    }
+}
