@@ -89,7 +89,8 @@ pub fn build(center: [f64; 2], radius: f64, rim: &[(usize, [f64; 2])], half: boo
     })
 }
 
-fn onto_circle(p: [f64; 2], c: [f64; 2], radius: f64) -> [f64; 2] {
+/// The point at the same angle on the circle (r = 0 stays on the axis).
+pub(crate) fn onto_circle(p: [f64; 2], c: [f64; 2], radius: f64) -> [f64; 2] {
     let d = (p[0] - c[0]).hypot(p[1] - c[1]);
     if d == 0.0 {
         return p;

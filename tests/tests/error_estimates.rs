@@ -1,0 +1,116 @@
+//! Error estimates against exact answers, at default settings (no mesh
+//! key, `[study] accuracy` at its default 0.1 %): each value is within
+//! 0.1 % of the closed form, and each estimate is honest (the true error at
+//! most twice the estimate, and the estimate at most 20 times the true
+//! error or below a tenth of the target).
+
+use validation::reference::{coaxial_cylinders_force, cylinder_axis_bz, cylinder_field};
+use validation::{record, rel, solve_case_text};
+
+const TARGET: f64 = 1e-3;
+
+/// The value and its estimated error from a solved case.
+fn value_and_error(r: &study::Results, name: &str) -> (f64, f64) {
+    (r.values[name], r.errors[name])
+}
+
+/// Asserts the two honesty bounds for one value and records its ratio.
+fn assert_honest(what: &str, value: f64, error: f64, exact: f64) {
+    let truth = (value - exact).abs();
+    let scale = exact.abs();
+    eprintln!(
+        "{what}: value {value:.9e} exact {exact:.9e} true {:.2e} estimated {:.2e} ratio {:.2}",
+        truth / scale,
+        error / scale,
+        truth / error
+    );
+    assert!(
+        truth <= TARGET * scale,
+        "{what}: true relative error {:.2e} above the 0.1 % target",
+        truth / scale
+    );
+    assert!(truth <= 2.0 * error, "{what}: true error {truth:.3e} more than twice the estimate {error:.3e}");
+    assert!(
+        error <= 20.0 * truth || error <= 0.1 * TARGET * scale,
+        "{what}: estimate {error:.3e} more than 20 times the true error {truth:.3e} and above a tenth of the target"
+    );
+}
+
+const RIGID: &str = r#"
+[materials.rigid]
+br = "1.26 T"
+mur = 1
+description = "rigid magnet, recoil permeability 1"
+"#;
+
+/// P1 of docs/benchmarks.md: the axial field of a rigid cylinder (R 9.525
+/// mm, L 25.4 mm, Br 1.26 T) at four distances above its face. Source: the
+/// on-axis closed form (Derby and Olbert, Am. J. Phys. 78, 2010).
+#[test]
+fn cylinder_axis_field_within_its_error_at_default_settings() {
+    let (r, l) = (9.525e-3, 25.4e-3);
+    let distances = [1.0, 5.0, 23.7, 47.4];
+    let mut text = format!("[study]\ntitle = \"P1\"\ngeometry = \"axisymmetric\"\nunit = \"mm\"\n{RIGID}\n[output]\nvtk = false\nplots = false\nreport = false\n\n[[part]]\nname = \"magnet\"\nmaterial = \"rigid\"\nmagnetization = \"+z\"\nrect = {{ from = [0, 0], to = [9.525, 25.4] }}\n");
+    for (i, d) in distances.iter().enumerate() {
+        text += &format!("\n[[probe]]\nname = \"d{i}\"\npoint = [0, {}]\n", 25.4 + d);
+    }
+    let res = solve_case_text(&text, &[]);
+    for (i, d) in distances.iter().enumerate() {
+        let exact = cylinder_axis_bz(1.26, r, l, l + d * 1e-3);
+        let (v, e) = value_and_error(&res, &format!("probe.d{i}.bz"));
+        record(
+            "cylinder on-axis B_z at default settings, within its error",
+            "Derby & Olbert 2010",
+            TARGET,
+            rel(v, exact),
+        );
+        assert_honest(&format!("P1 d = {d} mm"), v, e, exact);
+    }
+}
+
+/// P2: two coaxial rigid cylinders magnetized alike, gaps 0.5 to 20 mm.
+/// Source: the charge-model force (Vokoun, Beleggia, Heller, Sittner,
+/// J. Magn. Magn. Mater. 321, 2009).
+#[test]
+fn coaxial_pull_within_its_error_at_default_settings() {
+    let (r, l) = (9.525e-3, 25.4e-3);
+    for gap in [0.5, 1.0, 5.0, 20.0] {
+        let text = format!("[study]\ntitle = \"P2\"\ngeometry = \"axisymmetric\"\nunit = \"mm\"\n{RIGID}\n[output]\nvtk = false\nplots = false\nreport = false\n\n[[part]]\nname = \"lower\"\nmaterial = \"rigid\"\nmagnetization = \"+z\"\nrect = {{ from = [0, -25.4], to = [9.525, 0] }}\n\n[[part]]\nname = \"upper\"\nmaterial = \"rigid\"\nmagnetization = \"+z\"\nrect = {{ from = [0, {gap}], to = [9.525, {}] }}\n\n[[force]]\nname = \"pull\"\nparts = [\"upper\"]\n", gap + 25.4);
+        let res = solve_case_text(&text, &[]);
+        let exact = -coaxial_cylinders_force(1.26, 1.26, r, r, l, l, gap * 1e-3);
+        let (v, e) = value_and_error(&res, "force.pull.z");
+        record(
+            "coaxial magnets attracting at default settings, within its error",
+            "Vokoun et al. 2009 (charge model)",
+            TARGET,
+            rel(v, exact),
+        );
+        assert_honest(&format!("P2 gap {gap} mm"), v, e, exact);
+    }
+}
+
+/// A field off the axis, beside and above a cylinder, where both components
+/// matter. Source: the elliptic-integral field of a uniformly magnetized
+/// cylinder (Derby and Olbert 2010).
+#[test]
+fn off_axis_field_within_its_error_at_default_settings() {
+    let (a, b) = (0.005, 0.004);
+    let points = [(7.0, 2.0), (3.0, 9.0), (12.0, -6.0)];
+    let mut text = format!("[study]\ntitle = \"off-axis\"\ngeometry = \"axisymmetric\"\nunit = \"mm\"\n{RIGID}\n[output]\nvtk = false\nplots = false\nreport = false\n\n[[part]]\nname = \"magnet\"\nmaterial = \"rigid\"\nmagnetization = \"+z\"\nrect = {{ from = [0, -4], to = [5, 4] }}\n");
+    for (i, (rho, z)) in points.iter().enumerate() {
+        text += &format!("\n[[probe]]\nname = \"p{i}\"\npoint = [{rho}, {z}]\n");
+    }
+    let res = solve_case_text(&text, &[]);
+    for (i, (rho, z)) in points.iter().enumerate() {
+        let exact = cylinder_field(1.26, a, b, rho * 1e-3, z * 1e-3);
+        let magnitude = exact[0].hypot(exact[1]);
+        let (v, e) = value_and_error(&res, &format!("probe.p{i}.b"));
+        record(
+            "cylinder off-axis |B| at default settings, within its error",
+            "Derby & Olbert 2010 (elliptic integral)",
+            TARGET,
+            rel(v, magnitude),
+        );
+        assert_honest(&format!("off-axis ({rho}, {z}) mm"), v, e, magnitude);
+    }
+}
