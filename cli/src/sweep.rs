@@ -69,6 +69,8 @@ pub struct Row {
     pub index: usize,
     pub swept: Vec<(String, f64)>,
     pub values: BTreeMap<String, f64>,
+    /// Estimated absolute error of each value that has one.
+    pub errors: BTreeMap<String, f64>,
     /// Unit symbol of each value, from its type (empty for a ratio).
     pub units: BTreeMap<String, String>,
     /// The values the case asks for, in its order.
@@ -154,6 +156,10 @@ fn read_row(file: &Path, key: &str) -> Result<Row, String> {
         .as_object()
         .map(|m| m.iter().map(|(k, x)| (k.clone(), x.as_f64().unwrap_or(f64::NAN))).collect())
         .unwrap_or_default();
+    let errors: BTreeMap<String, f64> = v["errors"]
+        .as_object()
+        .map(|m| m.iter().filter_map(|(k, x)| Some((k.clone(), x.as_f64()?))).collect())
+        .unwrap_or_default();
     let units: BTreeMap<String, String> = v["units"]
         .as_object()
         .map(|m| m.iter().map(|(k, x)| (k.clone(), x.as_str().unwrap_or("").to_string())).collect())
@@ -167,6 +173,7 @@ fn read_row(file: &Path, key: &str) -> Result<Row, String> {
         index: variant.index,
         swept: variant.swept,
         values,
+        errors,
         units,
         converged: v["solve"]["converged"].as_bool().unwrap_or(false),
         geometry: v["study"]["geometry"].as_str().unwrap_or("").to_string(),
@@ -194,8 +201,13 @@ pub fn table(rows: &[Row]) -> String {
         s += &format!(",{p}");
     }
     s += ",converged";
+    // Each value with an estimate gets its error in the next column.
+    let with_error = |n: &String| rows.iter().any(|r| r.errors.contains_key(n));
     for n in &names {
         s += &format!(",{}", header(rows, n, "[", "]"));
+        if with_error(n) {
+            s += &format!(",{}", header(rows, n, "[", "]").replacen(n.as_str(), &format!("{n}.error"), 1));
+        }
     }
     s.push('\n');
     for r in rows {
@@ -207,6 +219,9 @@ pub fn table(rows: &[Row]) -> String {
         s += &format!(",{}", r.converged);
         for n in &names {
             s += &r.values.get(n).map_or_else(|| ",".to_string(), |v| format!(",{v:.9e}"));
+            if with_error(n) {
+                s += &r.errors.get(n).map_or_else(|| ",".to_string(), |e| format!(",{e:.3e}"));
+            }
         }
         s.push('\n');
     }

@@ -1,6 +1,6 @@
 //! report.md: the study in tables and pictures, with the cautions.
 
-use super::engineering::eng;
+use super::engineering::{eng, eng_pm};
 use crate::case::Model;
 use std::fmt::Write;
 use study::results::Results;
@@ -27,6 +27,23 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
         r.solve.residual,
         r.solve.seconds
     );
+    match &r.adaptive {
+        Some(a) => {
+            let last = a.steps.last();
+            let _ = writeln!(
+                s,
+                "Accuracy: {} % asked, {} after {} nested mesh(es); largest estimated error {:.3} % ({}). Every value below carries its estimated error (\u{b1}); results.json has them all under `errors`.\n",
+                100.0 * a.target,
+                if a.reached { "reached" } else { "NOT reached" },
+                a.steps.len(),
+                100.0 * last.and_then(|x| x.worst_relative_error).unwrap_or(f64::NAN),
+                last.and_then(|x| x.worst_value.clone()).unwrap_or_default()
+            );
+        }
+        None => {
+            let _ = writeln!(s, "Accuracy: off (the mesh as given; no error estimates).\n");
+        }
+    }
     if !r.study.parameters.is_empty() {
         let p: Vec<String> = r.study.parameters.iter().map(|(k, v)| format!("{k} = {v}")).collect();
         let _ = writeln!(s, "Parameters: {}.\n", p.join(", "));
@@ -49,7 +66,7 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
                 "| {n} | {} | {} | {} | {} |",
                 eng(fr.vector[0], "N"),
                 eng(fr.vector[1], "N"),
-                eng(fr.magnitude, "N"),
+                eng_pm(fr.magnitude, r.errors.get(&format!("force.{n}.magnitude")).copied(), "N"),
                 if fr.contact { "touches other material: unreliable" } else { "" }
             );
         }
@@ -58,15 +75,20 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
     if !r.flux.is_empty() {
         let _ = writeln!(s, "## Flux\n\n| name | flux or linkage | inductance |\n|---|---|---|");
         for (n, fl) in &r.flux {
-            let _ = writeln!(s, "| {n} | {} | {} |", eng(fl.wb, "Wb"), fl.inductance_h.map_or("-".into(), |l| eng(l, "H")));
+            let _ = writeln!(
+                s,
+                "| {n} | {} | {} |",
+                eng_pm(fl.wb, r.errors.get(&format!("flux.{n}")).copied(), "Wb"),
+                fl.inductance_h.map_or("-".into(), |l| eng(l, "H"))
+            );
         }
         s.push('\n');
     }
     let _ = writeln!(
         s,
         "Stored energy {}, co-energy {}.\n",
-        eng(r.energy.stored_j, "J"),
-        eng(r.energy.coenergy_j, "J")
+        eng_pm(r.energy.stored_j, r.errors.get("energy").copied(), "J"),
+        eng_pm(r.energy.coenergy_j, r.errors.get("coenergy").copied(), "J")
     );
     let _ = writeln!(
         s,
@@ -144,8 +166,13 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
                 "| {} | {} | {} | {} |",
                 e.value,
                 e.bound,
-                e.actual.map_or("-".into(), |a| eng(a, r.units.get(&e.value).copied().unwrap_or(""))),
-                if e.pass { "pass" } else { "FAIL" }
+                e.actual
+                    .map_or("-".into(), |a| eng_pm(a, e.error, r.units.get(&e.value).copied().unwrap_or(""))),
+                match e.verdict {
+                    study::results::Verdict::Pass => "pass",
+                    study::results::Verdict::Fail => "FAIL",
+                    study::results::Verdict::Undecided => "UNDECIDED (the bound lies within the error)",
+                }
             );
         }
         s.push('\n');

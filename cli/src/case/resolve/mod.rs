@@ -97,7 +97,12 @@ pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> R
             Some(parts_items[MAX_PARTS].span.start..parts_items[MAX_PARTS].span.start + 1),
         ));
     }
-    let mesh = mesh_settings(&top, &ctx, parts_items)?;
+    let accuracy = study_table::accuracy(&study)?;
+    let mut mesh = mesh_settings(&top, &ctx, parts_items)?;
+    let size_given = top.get("mesh").and_then(|m| m.table("[mesh]", mesh_table::MESH).ok()).is_some_and(|m| m.get("size").is_some());
+    if let (Some(target), false) = (accuracy, size_given) {
+        mesh.size *= mesh_table::first_mesh_scale(target);
+    }
     let mut parts = Vec::new();
     let mut spans = Spans::default();
     for item in parts_items {
@@ -132,7 +137,7 @@ pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> R
         },
         params: params.clone(),
         allow: study_table::allowed(&study)?,
-        accuracy: study_table::accuracy(&study)?,
+        accuracy,
     };
     (model.probes, spans.probes) = probes(&top, &ctx)?.into_iter().unzip();
     model.forces = forces(&top, &ctx, &model)?;
