@@ -31,6 +31,7 @@ fn case(planar: bool, steel: &str, size: f64) -> String {
 [study]
 geometry = "{geometry}"
 unit = "mm"
+accuracy = "off"
 {extra}
 [mesh]
 size = {size}
