@@ -288,3 +288,88 @@ fn non_convergence_exits_3_with_the_history_and_writes_the_last_iterate() {
     assert!(out.join("field.vtu").exists());
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+/// A small study whose refinement stops at its element limit after two
+/// meshes (14 612 triangles, the next would be 58 448), with expectations.
+fn limited_case(expects: &str) -> String {
+    format!(
+        r#"[study]
+title = "error bars"
+geometry = "axisymmetric"
+unit = "mm"
+accuracy = "1 %"
+
+[mesh]
+max_elements = 40000
+
+[output]
+vtk = false
+plots = false
+report = false
+
+[[part]]
+name = "magnet"
+material = "N42"
+magnetization = "+z"
+rect = {{ from = [0, 0], to = [5, 4] }}
+
+[[probe]]
+name = "front"
+point = [0, 10]
+{expects}"#
+    )
+}
+
+#[test]
+fn every_value_carries_its_error_and_a_bound_within_it_is_undecided() {
+    let dir = temp("errors");
+    let case = dir.join("c.toml");
+    std::fs::write(&case, limited_case("")).unwrap();
+    let out = dir.join("out");
+    let (code, text) = run(exe().args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()]));
+    assert_eq!(code, 0, "{text}");
+    assert!(text.contains("|B| = ") && text.contains(" \u{b1} "), "summary without error bars: {text}");
+    let json: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(out.join("results.json")).unwrap()).unwrap();
+    let (values, errors) = (json["values"].as_object().unwrap(), json["errors"].as_object().unwrap());
+    assert!(!errors.is_empty());
+    for (k, e) in errors {
+        assert!(values.contains_key(k), "error for a value that is not reported: {k}");
+        assert!(e.as_f64().is_some_and(|e| e.is_finite() && e >= 0.0), "{k}: {e}");
+    }
+    let steps = json["adaptive"]["steps"].as_array().unwrap();
+    assert_eq!(steps.len(), 2, "{steps:?}");
+    let (v, e) = (values["probe.front.b"].as_f64().unwrap(), errors["probe.front.b"].as_f64().unwrap());
+    assert!(e > 0.0 && e < 0.01 * v, "{v} +- {e}");
+    // Three bounds around the value: within half the error (undecided),
+    // three errors wide (pass), far away (fail).
+    let bound = |lo: f64, hi: f64| format!("\n[[expect]]\nvalue = \"probe.front.b\"\nbetween = [\"{lo} T\", \"{hi} T\"]\n");
+    for (lo, hi, exit, word) in [
+        (v - 0.5 * e, v + 0.5 * e, 1, "UNDECIDED"),
+        (v - 3.0 * e, v + 3.0 * e, 0, "pass"),
+        (2.0 * v, 3.0 * v, 1, "FAIL"),
+    ] {
+        std::fs::write(&case, limited_case(&bound(lo, hi))).unwrap();
+        let junit = dir.join("junit.xml");
+        let (code, text) = run(exe().args(["check", "--quiet", case.to_str().unwrap(), "--junit", junit.to_str().unwrap()]));
+        assert_eq!(code, exit, "{text}");
+        assert!(text.contains(word), "no {word} in {text}");
+        if word == "UNDECIDED" {
+            let xml = std::fs::read_to_string(&junit).unwrap();
+            assert!(xml.contains("estimated error") && xml.contains("max_elements"), "{xml}");
+        }
+    }
+}
+
+#[test]
+fn accuracy_off_solves_the_mesh_as_given_without_estimates() {
+    let dir = temp("accuracy-off");
+    let case = dir.join("c.toml");
+    std::fs::write(&case, limited_case("").replace("accuracy = \"1 %\"", "accuracy = \"off\"")).unwrap();
+    let out = dir.join("out");
+    let (code, text) = run(exe().args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()]));
+    assert_eq!(code, 0, "{text}");
+    assert!(text.contains("accuracy: off"), "{text}");
+    let json: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(out.join("results.json")).unwrap()).unwrap();
+    assert!(json["errors"].as_object().unwrap().is_empty());
+    assert!(json.get("adaptive").is_none());
+}

@@ -99,7 +99,10 @@ pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> R
     }
     let accuracy = study_table::accuracy(&study)?;
     let mut mesh = mesh_settings(&top, &ctx, parts_items)?;
-    let size_given = top.get("mesh").and_then(|m| m.table("[mesh]", mesh_table::MESH).ok()).is_some_and(|m| m.get("size").is_some());
+    let size_given = top
+        .get("mesh")
+        .and_then(|m| m.table("[mesh]", mesh_table::MESH).ok())
+        .is_some_and(|m| m.get("size").is_some());
     if let (Some(target), false) = (accuracy, size_given) {
         mesh.size *= mesh_table::first_mesh_scale(target);
     }
