@@ -1,0 +1,90 @@
+//! `cargo bench -p validation --bench accuracy`: time to accuracy with
+//! `[study] accuracy` on the two problems of the peer instrument
+//! (../shared/peer), each with a closed form:
+//! - P1: a rigid cylinder (Br 1.26 T, R 9.525 mm, L 25.4 mm), B_z on its axis
+//!   1, 5, 23.7 and 47.4 mm above its face (Derby and Olbert 2010);
+//! - P2: two such cylinders, coaxial, magnetized alike, gaps 1, 5 and 20
+//!   mm; the pull (charge model, Vokoun et al. 2009); time = the three
+//!   solves together, as the instrument counts it.
+//!
+//! For each target it prints the median wall time of `--runs N` runs
+//! (default 3, in this process, no files written), the largest true
+//! relative error, the largest estimated relative error, and the largest
+//! ratio of true to estimated error (honest when at most 2).
+
+use std::time::Instant;
+use validation::reference::{coaxial_cylinders_force, cylinder_axis_bz};
+
+const RIGID: &str = "[materials.rigid]\nbr = \"1.26 T\"\nmur = 1\ndescription = \"rigid magnet\"\n";
+const OUTPUT: &str = "[output]\nvtk = false\nplots = false\nreport = false\ncsv = false\n";
+const R: f64 = 9.525e-3;
+const L: f64 = 25.4e-3;
+
+fn head(title: &str, accuracy: &str) -> String {
+    format!("[study]\ntitle = \"{title}\"\ngeometry = \"axisymmetric\"\nunit = \"mm\"\naccuracy = \"{accuracy}\"\n{RIGID}{OUTPUT}")
+}
+
+fn p1(accuracy: &str) -> (String, Vec<(String, f64)>) {
+    let mut text = head("P1", accuracy);
+    text += "[[part]]\nname = \"magnet\"\nmaterial = \"rigid\"\nmagnetization = \"+z\"\nrect = { from = [0, 0], to = [9.525, 25.4] }\n";
+    let mut exact = Vec::new();
+    for (i, d) in [1.0, 5.0, 23.7, 47.4].iter().enumerate() {
+        text += &format!("[[probe]]\nname = \"d{i}\"\npoint = [0, {}]\n", 25.4 + d);
+        exact.push((format!("probe.d{i}.bz"), cylinder_axis_bz(1.26, R, L, L + d * 1e-3)));
+    }
+    (text, exact)
+}
+
+fn p2(accuracy: &str, gap: f64) -> (String, Vec<(String, f64)>) {
+    let mut text = head("P2", accuracy);
+    text += "[[part]]\nname = \"lower\"\nmaterial = \"rigid\"\nmagnetization = \"+z\"\nrect = { from = [0, -25.4], to = [9.525, 0] }\n";
+    text += &format!(
+        "[[part]]\nname = \"upper\"\nmaterial = \"rigid\"\nmagnetization = \"+z\"\nrect = {{ from = [0, {gap}], to = [9.525, {}] }}\n",
+        gap + 25.4
+    );
+    text += "[[force]]\nname = \"pull\"\nparts = [\"upper\"]\n";
+    let exact = -coaxial_cylinders_force(1.26, 1.26, R, R, L, L, gap * 1e-3);
+    (text, vec![("force.pull.z".into(), exact)])
+}
+
+/// Seconds, worst true relative error, worst estimated relative error, worst true/estimate.
+fn measure(cases: &[(String, Vec<(String, f64)>)]) -> (f64, f64, f64, f64) {
+    let start = Instant::now();
+    let results: Vec<study::Results> = cases.iter().map(|(t, _)| validation::solve_case_text(t, &[])).collect();
+    let seconds = start.elapsed().as_secs_f64();
+    let (mut truth, mut est, mut ratio) = (0.0f64, 0.0f64, 0.0f64);
+    for (r, (_, exact)) in results.iter().zip(cases) {
+        for (name, x) in exact {
+            let t = (r.values[name] - x).abs() / x.abs();
+            let e = r.errors.get(name).copied().unwrap_or(f64::NAN) / x.abs();
+            truth = truth.max(t);
+            est = est.max(e);
+            ratio = ratio.max(t / e);
+        }
+    }
+    (seconds, truth, est, ratio)
+}
+
+fn main() {
+    let args: Vec<String> = std::env::args().collect();
+    let runs = args
+        .iter()
+        .position(|a| a == "--runs")
+        .and_then(|i| args.get(i + 1)?.parse().ok())
+        .unwrap_or(3usize);
+    println!("| problem | accuracy | median time (s) | true error | estimated error | true / estimated |");
+    println!("|---|---|---|---|---|---|");
+    for target in ["1 %", "0.1 %", "0.01 %", "0.001 %"] {
+        for problem in ["P1", "P2"] {
+            let cases: Vec<_> = if problem == "P1" {
+                vec![p1(target)]
+            } else {
+                [1.0, 5.0, 20.0].iter().map(|&g| p2(target, g)).collect()
+            };
+            let mut rows: Vec<(f64, f64, f64, f64)> = (0..runs).map(|_| measure(&cases)).collect();
+            rows.sort_by(|a, b| a.0.total_cmp(&b.0));
+            let (s, t, e, q) = rows[rows.len() / 2];
+            println!("| {problem} | {target} | {s:.3} | {t:.2e} | {e:.2e} | {q:.2} |");
+        }
+    }
+}
