@@ -98,7 +98,7 @@ pub fn solve_to_accuracy<R>(
         return Ok(finish(&sol, Estimate::default()));
     };
     let mut mesh = first;
-    let mut history = History::new();
+    let mut history = History::new(model.mesh.order);
     let mut steps = Vec::new();
     let mut guess = None;
     loop {
