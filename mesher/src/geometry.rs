@@ -98,6 +98,12 @@ fn circle_polygon(part: usize, c: [f64; 2], radius: f64, size: f64, symmetry: Sy
         .collect())
 }
 
+/// Largest distance inside a circle of its meshed outline (chords for a
+/// part of this size): the sagitta of its chords.
+pub fn circle_sagitta(radius: f64, size: f64) -> f64 {
+    radius * (1.0 - (std::f64::consts::PI / circle_segments(radius, size) as f64).cos())
+}
+
 /// Number of chords for a circle: chord <= size, sagitta <= CHORD_FRACTION * size,
 /// and at least MIN_CIRCLE_SEGMENTS (area within 0.3 % of the circle's).
 pub fn circle_segments(radius: f64, size: f64) -> usize {

@@ -34,6 +34,7 @@ pub use domain::Domain;
 pub use error::{MeshError, BYTES_PER_TRIANGLE};
 pub use exterior::ExteriorDisk;
 pub use mesh::{BoundaryTag, Mesh, MeshQuality, Region};
+pub use refine::BoundaryCircle;
 pub use spec::{MeshSpec, OuterBoundary, PartSpec, Refinement, Shape, Symmetry, DEFAULT_GRADING, DEFAULT_MIN_ANGLE, GRADING_RANGE, MIN_ANGLE_RANGE};
 
 /// Builds the mesh of a study: validate shapes, triangulate, refine, tag.

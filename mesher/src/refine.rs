@@ -37,10 +37,71 @@ fn children(t: [usize; 3], m: [usize; 3]) -> [[usize; 3]; 4] {
     [[t[0], m[0], m[2]], [m[0], t[1], m[1]], [m[2], m[1], t[2]], [m[0], m[1], m[2]]]
 }
 
+/// A part whose outline is a circle: refinement puts the midpoints of its
+/// boundary edges on the circle, so the geometry converges with the mesh.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct BoundaryCircle {
+    /// The part's index (its region).
+    pub part: usize,
+    /// Centre of the circle.
+    pub center: [f64; 2],
+    /// Its radius.
+    pub radius: f64,
+    /// How far inside the circle the meshed outline may lie: the sagitta of
+    /// its chords (`geometry::circle_sagitta`).
+    pub sagitta: f64,
+}
+
+/// The circle an edge lies on, if it is an outline edge of a round part:
+/// both ends within the outline's chord sagitta of the circle (a split point
+/// of a chord lies up to that far inside; after refinement every point is on it).
+fn circle_of_edge(tag: BoundaryTag, a: [f64; 2], b: [f64; 2], circles: &[BoundaryCircle]) -> Option<BoundaryCircle> {
+    let BoundaryTag::Interface(r1, r2) = tag else { return None };
+    circles.iter().copied().find(|c| {
+        let on = |p: [f64; 2]| ((p[0] - c.center[0]).hypot(p[1] - c.center[1]) - c.radius).abs() <= 1.01 * c.sagitta + 1e-12 * c.radius;
+        [r1, r2].contains(&crate::mesh::Region::Part(c.part)) && on(a) && on(b)
+    })
+}
+
+/// Moves the ends of the edges on circles onto them.
+fn snap(nodes: &mut [[f64; 2]], on_circle: &HashMap<(usize, usize), BoundaryCircle>) {
+    for (&(a, b), c) in on_circle {
+        for n in [a, b] {
+            nodes[n] = onto_circle(nodes[n], c.center, c.radius);
+        }
+    }
+}
+
 impl Mesh {
+    /// The outline edges of round parts, with their circles.
+    fn edges_on_circles(&self, circles: &[BoundaryCircle]) -> HashMap<(usize, usize), BoundaryCircle> {
+        self.boundary
+            .iter()
+            .filter_map(|&([a, b], tag)| Some((key(a, b), circle_of_edge(tag, self.nodes[a], self.nodes[b], circles)?)))
+            .collect()
+    }
+
+    /// Moves the outline nodes of round parts onto their circles: a node that
+    /// angle refinement put on a chord sits up to a sagitta inside, and the
+    /// first step of refinement would otherwise change the geometry (and the
+    /// values) by more than the discretization does.
+    pub fn snap_onto(&mut self, circles: &[BoundaryCircle]) {
+        let on_circle = self.edges_on_circles(circles);
+        snap(&mut self.nodes, &on_circle);
+    }
+
     /// This mesh with every triangle split into four (physical domain and
     /// exterior disk); regions and boundary tags are inherited.
     pub fn refined(&self) -> Mesh {
+        self.refined_onto(&[])
+    }
+
+    /// `refined`, with the outline edges of round parts split on their
+    /// circles, and their old nodes moved onto them (a node that angle
+    /// refinement put on a chord sat a sagitta inside; left there, the
+    /// polygon's error would stay whatever the refinement).
+    pub fn refined_onto(&self, circles: &[BoundaryCircle]) -> Mesh {
+        let on_circle = self.edges_on_circles(circles);
         let rim = self.exterior.as_ref().map(|d| (d.center, d.radius));
         let rim_edges: std::collections::HashSet<(usize, usize)> = self
             .boundary
@@ -50,15 +111,18 @@ impl Mesh {
             .collect();
         // Physical nodes first: old ones, then the new midpoints.
         let mut nodes: Vec<[f64; 2]> = self.nodes[..self.n_physical].to_vec();
+        snap(&mut nodes, &on_circle);
         let mut mids = EdgeMidpoints::new();
         let mut triangles = Vec::with_capacity(4 * self.triangles.len());
         for t in &self.triangles {
             let m = [0, 1, 2].map(|k| {
                 let (a, b) = (t[k], t[(k + 1) % 3]);
                 *mids.entry(key(a, b)).or_insert_with(|| {
-                    let mut p = midpoint(self.nodes[a], self.nodes[b]);
+                    let mut p = midpoint(nodes[a], nodes[b]);
                     if let (Some((c, r)), true) = (rim, rim_edges.contains(&key(a, b))) {
                         p = onto_circle(p, c, r);
+                    } else if let Some(c) = on_circle.get(&key(a, b)) {
+                        p = onto_circle(p, c.center, c.radius);
                     }
                     nodes.push(p);
                     nodes.len() - 1
@@ -212,5 +276,40 @@ mod tests {
             assert!(used.iter().all(|&u| u), "every node belongs to a triangle");
             assert!(fine.triangles.iter().flatten().all(|&n| n < fine.n_physical));
         }
+    }
+
+    /// A round part's area converges to pi R^2 at the rate of the chords'
+    /// sagitta, h^2, once refinement follows the circle (without it, it stays
+    /// at the first outline's deficit).
+    #[test]
+    fn refinement_follows_round_outlines() {
+        use crate::refine::BoundaryCircle;
+        let (radius, size) = (0.005, 0.001);
+        let mut s = spec(Symmetry::Planar);
+        s.parts[0] = PartSpec {
+            shape: Shape::Circle { center: [0.0, 0.0], radius },
+            mesh_size: size,
+        };
+        let circle = [BoundaryCircle {
+            part: 0,
+            center: [0.0, 0.0],
+            radius,
+            sagitta: crate::geometry::circle_sagitta(radius, size),
+        }];
+        let exact = std::f64::consts::PI * radius * radius;
+        let mut mesh = crate::build_mesh(&s).unwrap();
+        mesh.snap_onto(&circle);
+        let mut deficits = Vec::new();
+        for _ in 0..3 {
+            deficits.push(1.0 - mesh.part_areas(1)[0] / exact);
+            mesh = mesh.refined_onto(&circle);
+        }
+        assert!(deficits[0] > 0.0 && deficits[0] < 0.01, "{deficits:?}");
+        for w in deficits.windows(2) {
+            let ratio = w[0] / w[1];
+            assert!((3.5..4.5).contains(&ratio), "deficits {deficits:?}: ratio {ratio}, expected 4");
+        }
+        let plain = crate::build_mesh(&s).unwrap().refined().refined();
+        assert!(1.0 - plain.part_areas(1)[0] / exact > 10.0 * deficits[2], "plain refinement keeps the polygon");
     }
 }

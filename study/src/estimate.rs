@@ -236,7 +236,10 @@ mod tests {
                     h.update(&map(&[(name, exact + err)]));
                     if k >= 1 {
                         let ratio = h.estimate[name] / err;
-                        assert!((1.0..=if k == 1 { 16.0 } else { 2.01 }).contains(&ratio), "{name} p {p} step {k}: ratio {ratio}");
+                        assert!(
+                            (1.0..=if k == 1 { 16.0 } else { 2.01 }).contains(&ratio),
+                            "{name} p {p} step {k}: ratio {ratio}"
+                        );
                     }
                 }
             }

@@ -98,6 +98,8 @@ pub fn solve_to_accuracy<R>(
         return Ok(finish(&sol, Estimate::default()));
     };
     let mut mesh = first;
+    let round = round_parts(model);
+    mesh.snap_onto(&round);
     let mut history = History::new(model.mesh.order);
     let mut steps = Vec::new();
     let mut guess = None;
@@ -134,7 +136,7 @@ pub fn solve_to_accuracy<R>(
             };
             return Ok(finish(&sol, estimate));
         }
-        let next = mesh.refined();
+        let next = mesh.refined_onto(&round);
         if sol.problem.is_nonlinear() {
             let fine = solver::space::Elements::from_mesh(&next, sol.elements.order);
             guess = solver::prolong::to_refined(&sol, &fine).map(std::sync::Arc::from);
@@ -142,4 +144,22 @@ pub fn solve_to_accuracy<R>(
         drop(sol);
         mesh = next;
     }
+}
+
+/// The parts whose outline is a circle, for refinement to follow.
+fn round_parts(model: &Model) -> Vec<mesher::BoundaryCircle> {
+    model
+        .parts
+        .iter()
+        .enumerate()
+        .filter_map(|(part, p)| match p.shape {
+            mesher::Shape::Circle { center, radius } => Some(mesher::BoundaryCircle {
+                part,
+                center,
+                radius,
+                sagitta: mesher::geometry::circle_sagitta(radius, p.mesh_size),
+            }),
+            _ => None,
+        })
+        .collect()
 }

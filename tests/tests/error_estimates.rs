@@ -114,3 +114,25 @@ fn off_axis_field_within_its_error_at_default_settings() {
         assert_honest(&format!("off-axis ({rho}, {z}) mm"), v, e, magnitude);
     }
 }
+
+/// A round magnet in a planar study: outside a uniformly magnetized circular
+/// cylinder the field is that of a 2D dipole, B = Br R^2 / (2 r^2) [2 (m.r) r - m]
+/// (Jackson, Classical Electrodynamics, 3rd ed., sec. 5.10 and problem 5.19):
+/// on the magnetization axis at r = 2R, Br / 8. The outline is a circle, so
+/// the estimate must cover its polygonal approximation too.
+#[test]
+fn round_magnet_field_within_its_error_at_default_settings() {
+    let text = format!("[study]\ntitle = \"round magnet\"\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = \"10 mm\"\n{RIGID}\n[output]\nvtk = false\nplots = false\nreport = false\n\n[[part]]\nname = \"magnet\"\nmaterial = \"rigid\"\nmagnetization = \"+y\"\ncircle = {{ center = [0, 0], radius = 5 }}\n\n[[probe]]\nname = \"above\"\npoint = [0, 10]\n\n[[probe]]\nname = \"beside\"\npoint = [12, 0]\n");
+    let res = solve_case_text(&text, &[]);
+    // Above: Br R^2 / (2 r^2) along +y; beside (m.r = 0): -Br R^2 / (2 r^2) along y.
+    for (name, exact) in [("probe.above.by", 1.26 * 25.0 / 200.0), ("probe.beside.by", -1.26 * 25.0 / 288.0)] {
+        let (v, e) = value_and_error(&res, name);
+        record(
+            "round planar magnet, exterior dipole field at default settings, within its error",
+            "Jackson 1999 sec. 5.10 (uniformly magnetized cylinder)",
+            TARGET,
+            rel(v, exact),
+        );
+        assert_honest(name, v, e, exact);
+    }
+}
