@@ -106,7 +106,7 @@ fn off_axis_field_within_its_error_at_default_settings() {
         let magnitude = exact[0].hypot(exact[1]);
         let (v, e) = value_and_error(&res, &format!("probe.p{i}.b"));
         record(
-            "cylinder off-axis |B| at default settings, within its error",
+            "cylinder off-axis B magnitude at default settings, within its error",
             "Derby & Olbert 2010 (elliptic integral)",
             TARGET,
             rel(v, magnitude),
