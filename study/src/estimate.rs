@@ -45,6 +45,9 @@ pub struct Estimate {
     pub errors: BTreeMap<String, f64>,
     /// The refinement record (None when accuracy is off).
     pub adaptive: Option<crate::results::Adaptive>,
+    /// The last mesh's results as already computed for the estimate (so the
+    /// finishing step does not post-process the largest mesh twice).
+    pub results: Option<crate::results::Results>,
 }
 
 /// The scale a value's error is measured against: the value itself, or the

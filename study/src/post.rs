@@ -15,7 +15,7 @@ use std::collections::BTreeMap;
 /// (only values that have both an estimate and a value are kept) and the
 /// expectations judged within them.
 pub fn results_with_errors(model: &Model, sol: &Solution, estimate: crate::estimate::Estimate) -> Results {
-    let mut r = results(model, sol, 0.0);
+    let mut r = estimate.results.unwrap_or_else(|| results(model, sol, 0.0));
     r.errors = estimate.errors;
     r.errors.retain(|k, e| e.is_finite() && r.values.contains_key(k));
     if let Some(a) = estimate.adaptive.as_ref().filter(|a| !a.reached) {

@@ -133,6 +133,7 @@ pub fn solve_to_accuracy<R>(
             let estimate = Estimate {
                 errors: history.estimate.clone(),
                 adaptive: Some(Adaptive { target, reached, steps }),
+                results: Some(results),
             };
             return Ok(finish(&sol, estimate));
         }
