@@ -135,3 +135,43 @@ fn field_vtu_reads_back_with_its_arrays() {
     assert!(point.iter().any(|(n, len)| n == "potential" && *len == piece.num_points()), "{point:?}");
     let _ = std::fs::remove_dir_all(&out);
 }
+
+#[test]
+fn mesh_picture_frames_the_parts_not_the_whole_disk() {
+    // A bare disk with a short probe: the open boundary's disk is several
+    // times the magnet's size; mesh.svg draws the parts and probes with half
+    // their extent around them, clipped, and leaves the far air out.
+    let dir = std::env::temp_dir().join(format!("lodestone-meshsvg-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    let case = dir.join("disk.toml");
+    std::fs::write(
+        &case,
+        "[study]\ngeometry = \"axisymmetric\"\nunit = \"mm\"\n\n[[part]]\nname = \"magnet\"\nmaterial = \"N42\"\nmagnetization = \"+z\"\nrect = { from = [0, 0], to = [5, 3] }\n\n[[probe]]\nname = \"p\"\npoint = [0, 20]\n",
+    )
+    .unwrap();
+    let out = dir.join("out");
+    let run = Command::new(env!("CARGO_BIN_EXE_lodestone"))
+        .args(["mesh", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()])
+        .output()
+        .unwrap();
+    assert!(run.status.success(), "{}", String::from_utf8_lossy(&run.stderr));
+    let summary = String::from_utf8_lossy(&run.stdout);
+    let total: usize = summary
+        .split(", ")
+        .nth(1)
+        .and_then(|s| s.split(' ').next())
+        .and_then(|n| n.parse().ok())
+        .unwrap();
+    let magnet: usize = summary
+        .lines()
+        .find(|l| l.trim_start().starts_with("magnet"))
+        .and_then(|l| l.split_whitespace().nth(1)?.parse().ok())
+        .unwrap();
+    let svg = std::fs::read_to_string(out.join("mesh.svg")).unwrap();
+    let map = inventory(&svg);
+    let drawn = map["polygon"];
+    assert!(map.contains_key("clipPath"), "{map:?}");
+    assert!(drawn < total && drawn > magnet, "drew {drawn} of {total} triangles ({magnet} in the magnet)");
+    let _ = std::fs::remove_dir_all(&dir);
+}

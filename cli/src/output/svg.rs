@@ -19,8 +19,40 @@ pub fn escape(s: &str) -> String {
     s.replace('&', "&amp;").replace('<', "&lt;").replace('>', "&gt;").replace('"', "&quot;")
 }
 
+/// The window of mesh.svg: the parts and probes with half their extent
+/// around them, within the meshed domain (the open boundary's disk is
+/// several times wider than the parts, and drawn whole it left the parts a
+/// small patch in a picture of empty air).
+fn mesh_window(model: &Model, mesh: &Mesh) -> ([f64; 2], [f64; 2]) {
+    let (dlo, dhi) = mesher::geometry::bbox(mesh.nodes[..mesh.n_physical].iter().copied());
+    let part_points = mesh
+        .triangles
+        .iter()
+        .zip(&mesh.regions)
+        .filter(|(_, r)| matches!(r, Region::Part(_)))
+        .flat_map(|(t, _)| t.map(|n| mesh.nodes[n]));
+    let probe_points = model.probes.iter().flat_map(|p| match p.shape {
+        study::model::ProbeShape::Point(x) => vec![x],
+        study::model::ProbeShape::Line { from, to, .. } => vec![from, to],
+    });
+    let (lo, hi) = mesher::geometry::bbox(part_points.chain(probe_points));
+    if !lo[0].is_finite() {
+        return (dlo, dhi);
+    }
+    let pad = 0.5 * (hi[0] - lo[0]).max(hi[1] - lo[1]);
+    (
+        [(lo[0] - pad).max(dlo[0]), (lo[1] - pad).max(dlo[1])],
+        [(hi[0] + pad).min(dhi[0]), (hi[1] + pad).min(dhi[1])],
+    )
+}
+
 pub fn mesh_svg(model: &Model, mesh: &Mesh) -> String {
-    let (lo, hi) = mesher::geometry::bbox(mesh.nodes[..mesh.n_physical].iter().copied());
+    let (lo, hi) = mesh_window(model, mesh);
+    // A triangle is drawn when its bounding box meets the window (the clip path cuts it).
+    let meets = |t: &[usize; 3]| {
+        let (a, b) = mesher::geometry::bbox(t.iter().map(|&n| mesh.nodes[n]));
+        a[0] <= hi[0] && b[0] >= lo[0] && a[1] <= hi[1] && b[1] >= lo[1]
+    };
     let w = 800.0;
     let scale = w / (hi[0] - lo[0]).max(hi[1] - lo[1]).max(f64::MIN_POSITIVE);
     let hgt = (hi[1] - lo[1]) * scale;
@@ -31,8 +63,14 @@ pub fn mesh_svg(model: &Model, mesh: &Mesh) -> String {
         hgt + legend_h,
         hgt + legend_h
     );
-    s += &format!("<title>{}</title><g stroke=\"#555\" stroke-width=\"0.3\">", escape(&model.title));
+    s += &format!(
+        "<title>{}</title><clipPath id=\"window\"><rect width=\"{w:.0}\" height=\"{hgt:.0}\"/></clipPath><g stroke=\"#555\" stroke-width=\"0.3\" clip-path=\"url(#window)\">",
+        escape(&model.title)
+    );
     for (t, tri) in mesh.triangles.iter().enumerate() {
+        if !meets(tri) {
+            continue;
+        }
         let pts: Vec<String> = tri
             .iter()
             .map(|&n| {
