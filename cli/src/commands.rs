@@ -343,21 +343,17 @@ fn check_case(case: &Path, over: &BTreeMap<String, f64>, limits: &Limits, progre
                 message,
             });
         }
-        // A magnet past its knee over more than 1 % of its volume fails
-        // `check` unless the case allows it (it will lose magnetization).
+        // A magnet past its knee over more than 1 % of its volume, or that
+        // loses more than 1 % of its flux irreversibly, fails `check`
+        // unless the case allows it.
         if !o.model.allow.iter().any(|a| a == "demagnetization") {
-            for (name, m) in o.results.magnets.iter().filter(|(_, m)| m.margin < 0.0) {
+            for (name, m) in &o.results.magnets {
+                let Some(why) = demagnetization(m) else { continue };
                 code = code.max(1);
-                println!(
-                    "  magnet {name}: past its knee over {:.1} % of its volume  FAIL (demagnetization; allow = [\"demagnetization\"] in [study] if intended)",
-                    100.0 * m.share_past_knee
-                );
+                println!("  magnet {name}: {why}  FAIL (demagnetization; allow = [\"demagnetization\"] in [study] if intended)");
                 suite.cases.push(crate::junit::Case {
                     name: format!("demagnetization of magnet {name}{tag}"),
-                    message: Some(format!(
-                        "magnet '{name}' is past its knee over {:.1} % of its volume",
-                        100.0 * m.share_past_knee
-                    )),
+                    message: Some(format!("magnet '{name}': {why}")),
                 });
             }
         }
@@ -442,5 +438,20 @@ pub fn merge(folders: &[PathBuf], out: &Path) -> i32 {
             eprintln!("error: {e}");
             2
         }
+    }
+}
+
+/// Why a magnet fails `check` for demagnetization, or None.
+fn demagnetization(m: &study::results::MagnetResult) -> Option<String> {
+    let loss = m.irreversible_loss > study::checks::LOSS_WARNING;
+    let past = m.margin < 0.0;
+    match (loss, past) {
+        (false, false) => None,
+        (true, _) => Some(format!(
+            "loses {:.1} % of its flux irreversibly, past its knee over {:.1} % of its volume",
+            100.0 * m.irreversible_loss,
+            100.0 * m.share_past_knee
+        )),
+        (false, true) => Some(format!("past its knee over {:.1} % of its volume", 100.0 * m.share_past_knee)),
     }
 }

@@ -39,8 +39,10 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
     s += &accuracy_line(r);
     let err = |name: String| r.errors.get(&name).copied();
     for (name, fr) in &r.forces {
-        let contact = if fr.contact {
-            "  (parts touch other material or the boundary: value unreliable)"
+        let contact = if fr.unreliable {
+            "  (parts touch the outer boundary: value unreliable)"
+        } else if fr.contact {
+            "  (at contact)"
         } else {
             ""
         };
@@ -81,6 +83,21 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
             p.material,
             eng(p.b_mean, "T"),
             eng(p.b_max, "T")
+        );
+    }
+    for (name, m) in &r.magnets {
+        s += &format!(
+            "  magnet {name} ({} at {} degC): margin {:.2} over its worst 1 %, {:.1} % past the knee, irreversible loss {:.1} %{}\n",
+            m.grade,
+            m.temperature_c,
+            m.margin,
+            100.0 * m.share_past_knee,
+            100.0 * m.irreversible_loss,
+            if m.irreversible_loss > study::checks::LOSS_WARNING {
+                "  DEMAGNETIZED"
+            } else {
+                ""
+            }
         );
     }
     for (name, c) in &r.coils {

@@ -125,9 +125,11 @@ fn a_demagnetized_magnet_warns_and_fails_check_unless_allowed() {
     assert_eq!(code, 0, "{text}");
     assert!(text.contains("WARNING: magnet 'disk'") && text.contains("past its knee"), "{text}");
     assert!(json.contains("past its knee"), "{json}");
+    // The loss is in the summary's magnet line and in a warning.
+    assert!(text.contains("DEMAGNETIZED") && text.contains("of its flux irreversibly"), "{text}");
     let (code, text) = check("hotcheck", &disk(2.0, 150.0, ""));
     assert_eq!(code, 1, "{text}");
-    assert!(text.contains("FAIL (demagnetization"), "{text}");
+    assert!(text.contains("FAIL (demagnetization") && text.contains("irreversibly"), "{text}");
     let (code, text) = check("allowed", &disk(2.0, 150.0, "allow = [\"demagnetization\"]"));
     assert_eq!(code, 0, "{text}");
     // No false alarm: a 10 mm x 10 mm cylinder at 20 degC.

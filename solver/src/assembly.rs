@@ -134,7 +134,7 @@ impl System {
                     els.order,
                     problem.mesh.symmetry,
                     els.placement(e),
-                    element_load(els.kinds[e], problem, &self.air),
+                    element_load(e, els.kinds[e], problem, &self.air),
                 )
             })
             .collect();
@@ -156,7 +156,7 @@ impl System {
         }
         let (mut affine_list, mut nonlinear) = (Vec::new(), Vec::new());
         for e in 0..self.elements.len() {
-            if element_load(self.elements.kinds[e], problem, &self.air).law.is_nonlinear() {
+            if element_load(e, self.elements.kinds[e], problem, &self.air).law.is_nonlinear() {
                 nonlinear.push(e);
             } else {
                 affine_list.push(e);
@@ -252,7 +252,7 @@ impl Target<'_> {
                 .map(|&e| {
                     let load = ElementLoad {
                         tangent: how.tangent,
-                        ..element_load(els.kinds[e], problem, how.air)
+                        ..element_load(e, els.kinds[e], problem, how.air)
                     };
                     element_system(&els.coords[e], &els.gather(e, a), els.order, symmetry, els.placement(e), load)
                 })
@@ -304,25 +304,28 @@ struct AffinePart {
 }
 
 /// Law, current and background field of an element.
-pub fn element_load<'a>(kind: ElementKind, problem: &'a Problem, air: &'a Law) -> ElementLoad<'a> {
+pub fn element_load<'a>(e: usize, kind: ElementKind, problem: &'a Problem, air: &'a Law) -> ElementLoad<'a> {
     match kind {
         ElementKind::Air => ElementLoad {
             law: air,
             current_density: 0.0,
             background: problem.applied_field,
             tangent: Tangent::Exact,
+            share: 1.0,
         },
         ElementKind::Part(i) => ElementLoad {
             law: &problem.laws[i],
             current_density: problem.current_density[i],
             background: problem.applied_field,
             tangent: Tangent::Exact,
+            share: problem.remanence_share(e),
         },
         ElementKind::Exterior => ElementLoad {
             law: air,
             current_density: 0.0,
             background: [0.0, 0.0],
             tangent: Tangent::Exact,
+            share: 1.0,
         },
     }
 }

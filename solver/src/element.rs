@@ -213,6 +213,8 @@ pub struct ElementLoad<'a> {
     pub background: [f64; 2],
     /// The linearization used for the tangent (the residual is always exact).
     pub tangent: Tangent,
+    /// A magnet's share of its remanence left after an exposure (1 otherwise).
+    pub share: f64,
 }
 
 /// Local tangent matrix and residual of one element.
@@ -221,7 +223,7 @@ pub type LocalSystem = ([[f64; MAX_NODES]; MAX_NODES], [f64; MAX_NODES]);
 /// H at a quadrature point, less the background's nu0 B_bg, with the law's response.
 fn point_field(op: &PointOp, a: &[f64; MAX_NODES], load: &ElementLoad) -> ([f64; 2], crate::material::FieldResponse) {
     let b = flux_density(op, a, load.background);
-    let resp = load.law.response_with(b, load.tangent);
+    let resp = load.law.response_of(b, load.tangent, load.share);
     ([resp.h[0] - NU0 * load.background[0], resp.h[1] - NU0 * load.background[1]], resp)
 }
 

@@ -43,6 +43,7 @@ pub mod dofs;
 pub mod element;
 pub mod linear_system;
 mod locate;
+pub mod magnet_law;
 pub mod material;
 pub mod newton;
 pub mod newton_step;

@@ -129,7 +129,8 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
         || {
             let t = Instant::now();
             let affine = system.affine_residual(problem, &a);
-            let residual = system.assemble_with(problem, &a, kind(1.0), affine.clone());
+            let first = if warm { kind(1.0) } else { Tangent::ColdStart };
+            let residual = system.assemble_with(problem, &a, first, affine.clone());
             (Iterate { a, residual, affine }, t.elapsed().as_secs_f64())
         },
     );

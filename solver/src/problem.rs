@@ -57,6 +57,9 @@ pub struct Problem<'m> {
     /// mesh's solution carried over by `prolong::to_refined`): a saturating
     /// study then starts near its answer. Linear studies ignore it.
     pub initial: Option<std::sync::Arc<[f64]>>,
+    /// Per physical element, the share of a magnet's remanence left after an
+    /// earlier exposure drove it past its knee (1 = unharmed); None: all 1.
+    pub remanence: Option<std::sync::Arc<[f64]>>,
 }
 
 impl<'m> Problem<'m> {
@@ -70,7 +73,13 @@ impl<'m> Problem<'m> {
             order: ElementOrder::Quadratic,
             newton: NewtonSettings::default(),
             initial: None,
+            remanence: None,
         }
+    }
+
+    /// The share of its remanence that element `e` keeps (1 without an exposure).
+    pub fn remanence_share(&self, e: usize) -> f64 {
+        self.remanence.as_ref().and_then(|s| s.get(e).copied()).unwrap_or(1.0)
     }
 
     /// Whether any part follows a saturating curve.

@@ -70,7 +70,13 @@ impl<'m> Solution<'m> {
 
     /// The law of an element kind.
     pub fn law(&self, kind: ElementKind) -> &Law {
-        element_load(kind, &self.problem, &self.air).law
+        element_load(0, kind, &self.problem, &self.air).law
+    }
+
+    /// H in element e at flux density b (a magnet's remaining share applied).
+    pub fn element_h(&self, e: usize, b: [f64; 2]) -> [f64; 2] {
+        let load = element_load(e, self.elements.kinds[e], &self.problem, &self.air);
+        load.law.response_of(b, load.tangent, load.share).h
     }
 
     /// The applied field in element e (none in the exterior, where the reaction field alone is mapped).
@@ -104,7 +110,7 @@ impl<'m> Solution<'m> {
         let (e, lam) = self.element_at(p)?;
         let b = self.element_b_at(e, lam);
         let kind = self.elements.kinds[e];
-        let h = self.law(kind).response(b).h;
+        let h = self.element_h(e, b);
         let part = match kind {
             ElementKind::Part(i) => Some(i),
             _ => None,

@@ -15,6 +15,11 @@ use std::collections::BTreeMap;
 /// memory; the grade's full second-quadrant curve is not in the library).
 pub const KNEE_FRACTION: f64 = 0.9;
 
+/// Irreversible flux loss above which a magnet is a warning, and `check`
+/// fails: 1 % (common practice: makers' "loss under 1 %" criterion for the
+/// maximum working temperature, from memory).
+pub const LOSS_WARNING: f64 = 0.01;
+
 /// 0.5 mT: implanted medical devices are generally not affected below it (ICNIRP 2009).
 pub const IMPLANT_LEVEL: f64 = 0.5e-3;
 
@@ -42,6 +47,18 @@ pub fn magnet_results(model: &Model, sol: &Solution, values: &mut BTreeMap<Strin
         values.insert(format!("magnet.{}.margin_local", p.name), wp.margin_local);
         values.insert(format!("magnet.{}.permeance", p.name), wp.permeance);
         values.insert(format!("magnet.{}.share_past_knee", p.name), wp.share_past_knee);
+        values.insert(format!("magnet.{}.loss", p.name), wp.loss);
+        if wp.loss > LOSS_WARNING {
+            let after = model
+                .exposure
+                .map_or(String::new(), |e| format!(" after the exposure at {} degC", e.temperature));
+            warnings.push(format!(
+                "magnet '{}' ({}) loses {:.1} % of its flux irreversibly{after}: every result here is for the weakened magnet at {t} degC",
+                p.name,
+                p.material.name,
+                100.0 * wp.loss
+            ));
+        }
         // Past the knee over more than WORST_SHARE of the volume (the margin
         // is taken at that percentile): a corner alone does not warn.
         if wp.margin < 0.0 {
@@ -64,6 +81,7 @@ pub fn magnet_results(model: &Model, sol: &Solution, values: &mut BTreeMap<Strin
                 margin: wp.margin,
                 margin_local: wp.margin_local,
                 share_past_knee: wp.share_past_knee,
+                irreversible_loss: wp.loss,
                 permeance: wp.permeance,
                 mean_b_t: wp.mean_b,
                 mean_h_a_per_m: wp.mean_h,

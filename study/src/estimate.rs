@@ -151,13 +151,13 @@ impl History {
 }
 
 /// The values that drive refinement: those asked for, else the energy.
-/// A force on parts that touch other material is left out: its stress band
-/// cannot close in air, it does not converge, and a warning already says so.
+/// A force on parts that touch the outer boundary is left out: no surface
+/// closes around them, it does not converge, and a warning already says so.
 pub(crate) fn driving(model: &Model, results: &crate::results::Results) -> Vec<String> {
     let mut out: Vec<String> = results.asked.to_vec();
     out.extend(model.expects.iter().map(|e| e.value.name.clone()));
     for (name, f) in &results.forces {
-        if f.contact {
+        if f.unreliable {
             let prefix = format!("force.{name}.");
             out.retain(|v| !v.starts_with(&prefix));
         }

@@ -105,7 +105,7 @@ pub struct StudyError {
 }
 
 impl StudyError {
-    fn new(message: String, origin: Option<Origin>) -> StudyError {
+    pub(crate) fn new(message: String, origin: Option<Origin>) -> StudyError {
         StudyError { message, origin, help: None }
     }
 }
@@ -158,6 +158,7 @@ pub fn laws(model: &Model) -> Result<Vec<Law>, StudyError> {
                 Ok(Law::Magnet {
                     recoil_permeability: g.recoil_permeability,
                     br: [br * d[0], br * d[1]],
+                    knee: g.knee_at(model.temperature),
                 })
             }
         })

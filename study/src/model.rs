@@ -49,6 +49,19 @@ pub struct Model {
     /// Relative error every asked value is refined to (`[study] accuracy`);
     /// None keeps the mesh as given and estimates nothing.
     pub accuracy: Option<f64>,
+    /// An earlier state the magnets went through (`[study] exposure`).
+    pub exposure: Option<Exposure>,
+}
+
+/// An exposure: the magnets are solved first at this temperature and
+/// applied field, and every magnet element keeps the lowest point it
+/// reached (it recoils from there in the study itself).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Exposure {
+    /// Magnet temperature during the exposure, degC.
+    pub temperature: f64,
+    /// Uniform applied flux density during the exposure, T.
+    pub applied_field: [f64; 2],
 }
 
 /// How the mesh is made.

@@ -55,9 +55,9 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
     let magnets = crate::checks::magnet_results(model, sol, &mut values, &mut warnings);
     let stray = crate::checks::stray_results(model, sol, &mut values);
     for (name, f) in &forces {
-        if f.contact {
+        if f.unreliable {
             warnings.push(format!(
-                "force '{name}': the parts touch other material or the outer boundary, so the stress band cannot close around them in air and the force is not reliable; leave an air gap"
+                "force '{name}': the parts touch the outer boundary, so no surface closes around them and the force is not reliable; move the boundary away"
             ));
         }
     }
@@ -71,7 +71,12 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
             ));
         }
     }
-    warnings.extend(thin_parts(model));
+    // With an accuracy the mesh is refined until the estimates meet it, so
+    // a first mesh coarse across a thin part is not a warning (it said "2
+    // elements across" of a mesh later split four times over).
+    if model.accuracy.is_none() {
+        warnings.extend(thin_parts(model));
+    }
     warnings.extend(modelling_warnings(model, sol));
     let smallest = mesh.quality().min_angle_deg;
     if smallest < model.mesh.min_angle - MIN_ANGLE_SLACK {
@@ -196,6 +201,7 @@ fn force_results(model: &Model, sol: &Solution, depth: f64, values: &mut BTreeMa
                 magnitude: v[0].hypot(v[1]),
                 torque,
                 contact: r.contact,
+                unreliable: r.at_boundary,
             },
         );
     }

@@ -145,8 +145,10 @@ pub struct ForceResult {
     /// Torque about the given point, N m (planar).
     #[cfg_attr(feature = "serde", serde(skip_serializing_if = "Option::is_none"))]
     pub torque: Option<f64>,
-    /// Whether the set touches other material or the outer boundary.
+    /// Whether the set touches another part: the pull at contact, across the interface.
     pub contact: bool,
+    /// Whether the set touches the outer boundary: the value is not reliable.
+    pub unreliable: bool,
 }
 
 /// A flux result.
@@ -221,6 +223,9 @@ pub struct MagnetResult {
     pub margin_local: f64,
     /// Volume share past the knee.
     pub share_past_knee: f64,
+    /// Irreversible flux loss (fraction of Br): 1 - the volume mean of the
+    /// share each point keeps on recoiling from its lowest point.
+    pub irreversible_loss: f64,
     /// Permeance coefficient from the volume means.
     pub permeance: f64,
     /// Volume mean of B along the magnetization, T.

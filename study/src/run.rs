@@ -3,10 +3,10 @@
 
 use crate::estimate::{driving, undecided, worst, Estimate, History};
 use crate::lower::{self, StudyError};
-use crate::model::Model;
+use crate::model::{Exposure, Model};
 use crate::results::Results;
 use crate::results::{Adaptive, Step};
-use solver::Solution;
+use solver::{Problem, Solution};
 use std::time::Instant;
 
 /// Stages of a run, reported to the progress callback.
@@ -69,11 +69,38 @@ pub fn solve_from<'m>(
         corners: mesh.n_nodes(),
         triangles: mesh.triangles.len(),
     });
-    solver::solve(&problem, &|iteration, residual| progress(Stage::Newton { iteration, residual })).map_err(|e| StudyError {
+    if let Some(exposure) = &model.exposure {
+        problem.remanence = Some(exposure_state(model, exposure, mesh, progress)?.into());
+    }
+    solve_problem(&problem, progress)
+}
+
+/// Solves a lowered problem, reporting Newton's progress.
+fn solve_problem<'m>(problem: &Problem<'m>, progress: &(dyn Fn(Stage) + Sync)) -> Result<Solution<'m>, StudyError> {
+    solver::solve(problem, &|iteration, residual| progress(Stage::Newton { iteration, residual })).map_err(|e| StudyError {
         message: e.to_string(),
         origin: None,
         help: None,
     })
+}
+
+/// The share of its remanence every element keeps after the exposure: the
+/// model solved at the exposure's temperature and applied field on the
+/// same mesh, each magnet element recoiling from the lowest point it reached.
+fn exposure_state(model: &Model, exposure: &Exposure, mesh: &mesher::Mesh, progress: &(dyn Fn(Stage) + Sync)) -> Result<Vec<f64>, StudyError> {
+    let mut exposed = model.clone();
+    exposed.temperature = exposure.temperature;
+    exposed.applied_field = exposure.applied_field;
+    exposed.exposure = None;
+    let problem = lower::problem(&exposed, mesh)?;
+    let sol = solve_problem(&problem, progress)?;
+    if !sol.report.converged {
+        return Err(StudyError::new(
+            "the exposure (study.exposure) did not converge, so the state it leaves in the magnets is unknown".into(),
+            None,
+        ));
+    }
+    Ok(solver::post::magnet_check::remaining_shares(&sol))
 }
 
 /// Meshes, solves (refining to the model's accuracy) and post-processes a

@@ -51,7 +51,7 @@ pub fn value_names(model: &Model) -> Vec<ValueName> {
         match p.material.material {
             Material::Soft { .. } => push(format!("part.{}.saturated_share", p.name), Unit::Ratio),
             Material::Magnet(_) => {
-                for s in ["margin", "margin_local", "permeance", "share_past_knee"] {
+                for s in ["margin", "margin_local", "permeance", "share_past_knee", "loss"] {
                     push(format!("magnet.{}.{s}", p.name), Unit::Ratio);
                 }
             }

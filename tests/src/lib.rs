@@ -42,7 +42,11 @@ pub fn magnet(shape: Shape, size: f64, br: [f64; 2]) -> TestPart {
     TestPart {
         shape,
         size,
-        law: Law::Magnet { recoil_permeability: 1.0, br },
+        law: Law::Magnet {
+            recoil_permeability: 1.0,
+            br,
+            knee: None,
+        },
         current_density: 0.0,
     }
 }

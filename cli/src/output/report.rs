@@ -67,7 +67,13 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
                 eng(fr.vector[0], "N"),
                 eng(fr.vector[1], "N"),
                 eng_pm(fr.magnitude, r.errors.get(&format!("force.{n}.magnitude")).copied(), "N"),
-                if fr.contact { "touches other material: unreliable" } else { "" }
+                if fr.unreliable {
+                    "touches the outer boundary: unreliable"
+                } else if fr.contact {
+                    "at contact"
+                } else {
+                    ""
+                }
             );
         }
         s.push('\n');

@@ -16,7 +16,7 @@ pub struct Energy {
 /// Energy and co-energy of the solution.
 pub fn stored_energy(solution: &Solution) -> Energy {
     let [stored, coenergy] = integrate(solution, false, |p| {
-        let w = p.law.energy_density(p.b);
+        let w = p.energy_density();
         let h = p.h();
         [p.weight * w, p.weight * (h[0] * p.b[0] + h[1] * p.b[1] - w)]
     });

@@ -5,7 +5,9 @@
 //! across a band of air a few elements wide around them (0 on every other
 //! part). Any such g gives the exact force for the exact field; a band wider
 //! than one element keeps the integral away from the field singularities at
-//! the parts' corners and averages the discretization error.
+//! the parts' corners and averages the discretization error. Where the
+//! set touches another part, the interface closes the surface, with the
+//! stress of a vanishing air gap (`contact.rs`).
 
 use super::integrate::{element_sum, for_each_field_point};
 use crate::solution::Solution;
@@ -20,10 +22,12 @@ pub struct Force {
     pub vector: [f64; 2],
     /// Planar only: torque about the given point, N m per metre of depth.
     pub torque: f64,
-    /// True when the set touches another non-air part or the outer boundary:
-    /// the stress layer then cuts through material or ends at the boundary,
-    /// and the value is not reliable.
+    /// True when the set touches another part: the force then includes the
+    /// air-gap stress across the contact (`contact.rs`), the pull at contact.
     pub contact: bool,
+    /// True when the set touches the outer boundary: no surface closes around
+    /// it, and the value is not reliable.
+    pub at_boundary: bool,
 }
 
 /// Maxwell-stress force on the parts (a set) and torque about `torque_center` (planar), per metre of depth when planar.
@@ -45,7 +49,8 @@ pub fn force_on(solution: &Solution, parts: &[usize], torque_center: [f64; 2]) -
         }
     }
     let weight = band_weight(solution, &in_set_node, &other, &in_set);
-    let contact = (0..n_nodes).any(|n| in_set_node[n] && other[n]) || touches_outer_boundary(solution, &in_set_node);
+    let contact = (0..n_nodes).any(|n| in_set_node[n] && other[n]) && super::contact::touches_other_parts(solution, &in_set);
+    let at_boundary = touches_outer_boundary(solution, &in_set_node);
     let axisym = solution.symmetry() == Symmetry::Axisymmetric;
     let [fx, fy, mut torque] = element_sum(els.n_physical, |e| {
         let mut sum = [0.0; 3];
@@ -67,12 +72,23 @@ pub fn force_on(solution: &Solution, parts: &[usize], torque_center: [f64; 2]) -
         });
         sum
     });
-    let mut f = [fx, fy];
+    let [cx, cy, ct] = if contact {
+        super::contact::interface_force(solution, &in_set, torque_center)
+    } else {
+        [0.0; 3]
+    };
+    let mut f = [fx + cx, fy + cy];
+    torque += ct;
     if axisym {
         f[0] = 0.0;
         torque = 0.0;
     }
-    Force { vector: f, torque, contact }
+    Force {
+        vector: f,
+        torque,
+        contact,
+        at_boundary,
+    }
 }
 
 /// Element layers the band spans at least.

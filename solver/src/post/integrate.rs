@@ -24,12 +24,19 @@ pub struct FieldPoint<'s> {
     pub b: [f64; 2],
     /// The element's law.
     pub law: &'s Law,
+    /// A magnet's share of its remanence left after an exposure (1 otherwise).
+    pub share: f64,
 }
 
 impl FieldPoint<'_> {
     /// Field strength from the element's law, A/m.
     pub fn h(&self) -> [f64; 2] {
-        self.law.response(self.b).h
+        self.law.response_of(self.b, crate::material::Tangent::Exact, self.share).h
+    }
+
+    /// Stored energy density, J/m3.
+    pub fn energy_density(&self) -> f64 {
+        self.law.energy_density_of(self.b, self.share)
     }
 }
 
@@ -38,6 +45,7 @@ pub fn for_each_field_point(solution: &Solution, e: usize, mut f: impl FnMut(&Fi
     let els = &solution.elements;
     let kind = els.kinds[e];
     let law = solution.law(kind);
+    let share = solution.problem.remanence_share(e);
     let a = els.gather(e, &solution.reduced);
     let background = solution.background(e);
     for_each_point(&els.coords[e], els.order, solution.symmetry(), solution.placement(e), |op| {
@@ -48,6 +56,7 @@ pub fn for_each_field_point(solution: &Solution, e: usize, mut f: impl FnMut(&Fi
             weight: op.weight,
             b: flux_density(op, &a, background),
             law,
+            share,
         })
     });
 }

@@ -1,7 +1,7 @@
 //! The working point of a magnet: B and H along its magnetization at every
 //! quadrature point, the margin to the knee, and the permeance coefficient.
 
-use super::integrate::for_each_field_point;
+use super::integrate::{for_each_field_point, FieldPoint};
 use crate::solution::Solution;
 use crate::space::ElementKind;
 use crate::MU0;
@@ -32,6 +32,11 @@ pub struct WorkingPoint {
     pub worst_h: f64,
     /// H along the magnetization at the most demagnetized WORST_SHARE of the volume (A/m).
     pub worst_share_h: f64,
+    /// Irreversible loss: 1 - the volume mean of the share of Br each point
+    /// keeps when it recoils from the lowest point it reached (on this
+    /// solution's curve, after any earlier exposure). The flux lost for
+    /// good once the magnet returns to its working point.
+    pub loss: f64,
     /// (H, B) along the magnetization at each quadrature point, for plots.
     pub points: Vec<[f64; 2]>,
 }
@@ -62,11 +67,13 @@ pub fn working_point(solution: &Solution, part: usize, dir: [f64; 2], knee_h: f6
     let mut worst = f64::INFINITY;
     let mut points = Vec::new();
     let mut weighted = Vec::new();
+    let mut kept = 0.0;
     for e in 0..els.n_physical {
         if els.kinds[e] != ElementKind::Part(part) {
             continue;
         }
         for_each_field_point(solution, e, |p| {
+            kept += kept_share(p) * p.weight;
             let (b, h) = (p.b, p.h());
             let (bp, hp) = (b[0] * dir[0] + b[1] * dir[1], h[0] * dir[0] + h[1] * dir[1]);
             vol += p.weight;
@@ -88,6 +95,7 @@ pub fn working_point(solution: &Solution, part: usize, dir: [f64; 2], knee_h: f6
         margin: margin_at(worst_share_h),
         margin_local: margin_at(worst),
         share_past_knee: if vol > 0.0 { past / vol } else { 0.0 },
+        loss: if vol > 0.0 { 1.0 - kept / vol } else { 0.0 },
         permeance,
         mean_b,
         mean_h,
@@ -95,6 +103,34 @@ pub fn working_point(solution: &Solution, part: usize, dir: [f64; 2], knee_h: f6
         worst_share_h,
         points,
     }
+}
+
+/// The share of Br a magnet's point keeps: the element's share after an
+/// exposure, or less where this solution drives it further down its curve.
+fn kept_share(p: &FieldPoint) -> f64 {
+    let Some((curve, axis)) = p.law.magnet_curve() else { return 1.0 };
+    let h = p.h();
+    p.share.min(curve.remaining_share(h[0] * axis[0] + h[1] * axis[1]))
+}
+
+/// Per physical element, the share of its remanence each magnet element
+/// keeps after this solution (the volume mean over its points; 1 for every
+/// other element): the state an exposure leaves behind.
+pub fn remaining_shares(solution: &Solution) -> Vec<f64> {
+    (0..solution.elements.n_physical)
+        .map(|e| {
+            let (mut kept, mut vol) = (0.0, 0.0);
+            for_each_field_point(solution, e, |p| {
+                kept += kept_share(p) * p.weight;
+                vol += p.weight;
+            });
+            if vol > 0.0 {
+                kept / vol
+            } else {
+                1.0
+            }
+        })
+        .collect()
 }
 
 #[cfg(test)]

@@ -3,6 +3,7 @@
 //! Maxwell-stress force and torque, magnet working points, the stray field
 //! beyond the domain).
 
+pub mod contact;
 pub mod energy;
 pub mod flux;
 pub mod force;

@@ -18,9 +18,26 @@ pub struct MagnetGrade {
     pub hcj_coeff: f64,
     /// Catalogue maximum working temperature, degC (at a permeance coefficient near 2).
     pub max_temperature: Option<f64>,
+    /// Squareness Hk/HcJ of the intrinsic curve: where its knee begins
+    /// (the knee model in `solver::magnet_law`).
+    pub squareness: f64,
 }
 
 impl MagnetGrade {
+    /// Squareness of sintered NdFeB: Hk/HcJ = 0.97, derived from a maker's
+    /// digitised N35-class curve at 20 and 80 degC (S56 in docs/materials.md).
+    pub const NDFEB_SQUARENESS: f64 = 0.97;
+    /// Squareness of the other families and of user grades: the knee at
+    /// 90 % of HcJ, the knee fraction the design check has always used
+    /// (common practice, from memory); a wider knee than measured on NdFeB,
+    /// so loss is predicted early rather than late.
+    pub const DEFAULT_SQUARENESS: f64 = 0.9;
+
+    /// The knee of the intrinsic curve at a temperature; None without a finite HcJ.
+    pub fn knee_at(&self, celsius: f64) -> Option<solver::magnet_law::Knee> {
+        solver::magnet_law::Knee::from_squareness(self.br_at(celsius), self.recoil_permeability, self.hcj_at(celsius), self.squareness)
+    }
+
     /// Br at a temperature (linear reversible model, reference 20 degC).
     pub fn br_at(&self, celsius: f64) -> f64 {
         self.br * (1.0 + self.br_coeff / 100.0 * (celsius - 20.0))
@@ -59,5 +76,62 @@ impl MagnetGrade {
         let model = falls_to(self.br_coeff).min(falls_to(self.hcj_coeff));
         let catalogue = self.max_temperature.map_or(f64::INFINITY, |t| t + 100.0);
         (Self::LOWEST_TEMPERATURE, model.min(catalogue))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::MagnetGrade;
+    use solver::magnet_law::MagnetCurve;
+
+    /// The knee model against a measured curve: the intrinsic curve of an
+    /// N35-class sintered NdFeB at 20 degC (BOMATEC BMN-35 data sheet,
+    /// digitised: S56 in docs/materials.md; reading error about 3 kA/m),
+    /// with the figures derived from it (Br 1.219 T, HcJ 959 kA/m, mu_rec
+    /// 1.043, Hk/HcJ 0.97). At each measured (H, J) the model's H for that
+    /// J lies within 1.5 % of HcJ: the tanh knee is symmetric about -HcJ
+    /// while the measured one drops almost vertically at -HcJ, so the
+    /// model bends about 12 kA/m early at the knee's foot.
+    #[test]
+    fn the_knee_follows_a_measured_ndfeb_curve() {
+        let grade = MagnetGrade {
+            br: 1.219,
+            recoil_permeability: 1.043,
+            hcj: 959e3,
+            hcb: None,
+            br_coeff: 0.0,
+            hcj_coeff: 0.0,
+            max_temperature: None,
+            squareness: MagnetGrade::NDFEB_SQUARENESS,
+        };
+        let curve = MagnetCurve {
+            br: grade.br,
+            recoil_permeability: grade.recoil_permeability,
+            knee: grade.knee_at(20.0),
+        };
+        let measured = [
+            (-500.0, 1.195),
+            (-800.0, 1.176),
+            (-880.0, 1.167),
+            (-900.0, 1.157),
+            (-920.0, 1.131),
+            (-929.9, 1.100),
+            (-939.2, 1.050),
+            (-944.6, 1.000),
+            (-951.6, 0.900),
+            (-955.8, 0.800),
+        ];
+        for (h_ka, j) in measured {
+            let b = solver::MU0 * h_ka * 1e3 + j;
+            // The model's H where mu0 H + J(H) = b, i.e. where J(H) = j on this point's load line.
+            let h = curve.axial(b, 1.0).h;
+            let off = (h - h_ka * 1e3).abs() / grade.hcj;
+            assert!(
+                off < 0.015,
+                "at {h_ka} kA/m, J {j} T: model H {:.1} kA/m, {:.2} % of HcJ off",
+                h / 1e3,
+                100.0 * off
+            );
+        }
     }
 }

@@ -13,7 +13,7 @@ use study::materials::{self, Entry, MagnetGrade, Material};
 const MAX_CSV_BYTES: u64 = 4 << 20;
 
 /// Keys of a `[materials.NAME]` table.
-const MATERIAL: &[&str] = &["bh", "bh_csv", "mur", "br", "hcb", "hcj", "br_coeff", "hcj_coeff", "description"];
+const MATERIAL: &[&str] = &["bh", "bh_csv", "mur", "br", "hcb", "hcj", "br_coeff", "hcj_coeff", "squareness", "description"];
 
 pub(super) fn user_materials(top: &Fields, ctx: &Context, dir: &Path) -> Result<BTreeMap<String, (Entry, std::ops::Range<usize>)>, Diagnostic> {
     let mut out = BTreeMap::new();
@@ -82,8 +82,22 @@ fn user_material(t: &Fields, ctx: &Context, dir: &Path, what: &str) -> Result<Ma
                 .map(|c| ctx.quantity(c, Kind::PercentPerKelvin, &format!("{what} {key}")))
                 .transpose()
         };
+        let squareness = match t.get("squareness") {
+            Some(q) => {
+                let v = positive_number(q, &format!("{what} squareness"))?;
+                if !(0.5..=0.999).contains(&v) {
+                    return Err(Diagnostic::new(
+                        format!("{what} squareness: Hk/HcJ = {v} lies outside 0.5 to 0.999 (sintered NdFeB is about 0.97)"),
+                        Some(q.span.clone()),
+                    ));
+                }
+                v
+            }
+            None => MagnetGrade::DEFAULT_SQUARENESS,
+        };
         return Ok(Material::Magnet(MagnetGrade {
             br: br_v,
+            squareness,
             recoil_permeability: mu,
             hcj,
             hcb: None,

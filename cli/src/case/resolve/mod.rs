@@ -112,7 +112,11 @@ pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> R
         parts.push(part(item, &ctx, symmetry, &user_materials, &mesh, &parts)?);
         spans.parts.push(item.span.clone());
     }
-    check_temperature(&study, temperature, &parts)?;
+    check_temperature(&study, temperature, &parts, "temperature")?;
+    let exposure = study_table::exposure(&study, &ctx, symmetry, temperature)?;
+    if let Some(e) = &exposure {
+        check_temperature(&study, e.temperature, &parts, "exposure")?;
+    }
     let mut model = Model {
         title: study
             .get("title")
@@ -141,6 +145,7 @@ pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> R
         params: params.clone(),
         allow: study_table::allowed(&study)?,
         accuracy,
+        exposure,
     };
     (model.probes, spans.probes) = probes(&top, &ctx)?.into_iter().unzip();
     model.forces = forces(&top, &ctx, &model)?;
@@ -151,15 +156,15 @@ pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> R
 }
 
 /// Refuses a study temperature outside a magnet grade's temperature range.
-fn check_temperature(study: &crate::case::document::Fields, temperature: f64, parts: &[study::model::Part]) -> Result<(), Diagnostic> {
+fn check_temperature(study: &crate::case::document::Fields, temperature: f64, parts: &[study::model::Part], key: &str) -> Result<(), Diagnostic> {
     for p in parts {
         if let study::materials::Material::Magnet(g) = &p.material.material {
             let (lo, hi) = g.temperature_range();
             if !(lo..=hi).contains(&temperature) {
-                let span = study.get("temperature").map(|t| t.span.clone());
+                let span = study.get(key).map(|t| t.span.clone());
                 return Err(Diagnostic::new(
                     format!(
-                        "study.temperature {temperature} degC is outside the range of magnet '{}' ({}): {lo} to {hi:.0} degC, where its temperature model holds",
+                        "study.{key} {temperature} degC is outside the range of magnet '{}' ({}): {lo} to {hi:.0} degC, where its temperature model holds",
                         p.name, p.material.name
                     ),
                     span,

@@ -19,7 +19,11 @@ pub const STUDY: &[&str] = &[
     "reach_level",
     "allow",
     "accuracy",
+    "exposure",
 ];
+
+/// Keys of `[study] exposure = { ... }`.
+const EXPOSURE: &[&str] = &["temperature", "applied_field"];
 
 /// Default `[study] accuracy`: relative error every asked value is refined to.
 pub const DEFAULT_ACCURACY: f64 = 1e-3;
@@ -98,21 +102,25 @@ pub(super) fn boundary(study: &Fields, ctx: &Context) -> Result<OuterBoundary, D
 }
 
 pub(super) fn applied_field(study: &Fields, ctx: &Context, symmetry: Symmetry) -> Result<[f64; 2], Diagnostic> {
-    let Some(a) = study.get("applied_field") else {
+    field_of(study, ctx, symmetry, "study.applied_field")
+}
+
+/// A uniform field under `applied_field` in a table (`what` names it in messages).
+fn field_of(table: &Fields, ctx: &Context, symmetry: Symmetry, what: &str) -> Result<[f64; 2], Diagnostic> {
+    let Some(a) = table.get("applied_field") else {
         return Ok([0.0, 0.0]);
     };
     match (&a.value, symmetry) {
-        (Value::Array(v), Symmetry::Planar) if v.len() == 2 => Ok([
-            ctx.quantity(&v[0], Kind::FluxDensity, "study.applied_field")?,
-            ctx.quantity(&v[1], Kind::FluxDensity, "study.applied_field")?,
-        ]),
+        (Value::Array(v), Symmetry::Planar) if v.len() == 2 => {
+            Ok([ctx.quantity(&v[0], Kind::FluxDensity, what)?, ctx.quantity(&v[1], Kind::FluxDensity, what)?])
+        }
         (Value::Array(_), _) => Err(Diagnostic::new(
-            "study.applied_field: give [x, y] in a planar study, or one value along z in an axisymmetric study",
+            format!("{what}: give [x, y] in a planar study, or one value along z in an axisymmetric study"),
             Some(a.span.clone()),
         )),
-        (_, Symmetry::Axisymmetric) => Ok([0.0, ctx.quantity(a, Kind::FluxDensity, "study.applied_field")?]),
+        (_, Symmetry::Axisymmetric) => Ok([0.0, ctx.quantity(a, Kind::FluxDensity, what)?]),
         (_, Symmetry::Planar) => Err(Diagnostic::new(
-            "study.applied_field: a planar study needs [x, y], for example [\"0 T\", \"0.1 T\"]",
+            format!("{what}: a planar study needs [x, y], for example [\"0 T\", \"0.1 T\"]"),
             Some(a.span.clone()),
         )),
     }
@@ -172,4 +180,21 @@ pub(super) fn accuracy(study: &Fields) -> Result<Option<f64>, Diagnostic> {
         )));
     }
     Ok(Some(x))
+}
+
+/// `exposure = { temperature = "150 degC", applied_field = ... }`: an
+/// earlier state the magnets went through (heat, an opposing field); each
+/// magnet element then recoils from the lowest point it reached there.
+/// The temperature defaults to the study's, the field to none.
+pub(super) fn exposure(study: &Fields, ctx: &Context, symmetry: Symmetry, temperature: f64) -> Result<Option<study::model::Exposure>, Diagnostic> {
+    let Some(e) = study.get("exposure") else { return Ok(None) };
+    let t = e.table("study.exposure", EXPOSURE)?;
+    let temperature = match t.get("temperature") {
+        Some(v) => ctx.quantity(v, Kind::Temperature, "study.exposure.temperature")?,
+        None => temperature,
+    };
+    Ok(Some(study::model::Exposure {
+        temperature,
+        applied_field: field_of(&t, ctx, symmetry, "study.exposure.applied_field")?,
+    }))
 }

@@ -1,0 +1,85 @@
+//! The pull at contact: a magnet resting on steel, and the same magnet a
+//! few hundredths of a millimetre off it.
+//!
+//! Source: the method of images. A flat face of steel with mu_r -> infinity
+//! mirrors a magnet's charges with their own sign, so a magnet at gap g
+//! from a thick plate pulls as it would pull an identical magnet at 2 g
+//! (for mu_r = 1e4 the image is weaker by (mu_r - 1)/(mu_r + 1), 2e-4). The
+//! pull between two coaxial cylinders is the charge-model integral of
+//! J. Vokoun et al., J. Magn. Magn. Mater. 321, 2009, 3758.
+
+use validation::reference::coaxial_cylinders_force;
+use validation::{record, rel, solve_case_text};
+
+/// A rigid magnet (R 10 mm, L 5 mm, Br 1.2 T) above a plate of mu_r 1e4,
+/// 160 mm across and 40 mm thick. At 0.1 % accuracy every gap came out
+/// 2.1e-4 to 2.2e-4 below the image method (contact: 1.0e-3): the image of
+/// a plate of mu_r 1e4 is weaker by 2e-4, so the plate's finite size adds
+/// nothing visible. The test asks 0.3 % (the check is 1 %) to stay short.
+const CASE: &str = r#"
+[study]
+title = "magnet on a thick plate"
+geometry = "axisymmetric"
+unit = "mm"
+accuracy = "0.3 %"
+
+[params]
+gap = 0
+
+[materials.rigid]
+br = "1.2 T"
+mur = 1
+description = "rigid magnet, recoil permeability 1"
+
+[materials.iron]
+mur = 1e4
+description = "ideal steel for the image method"
+
+[output]
+vtk = false
+plots = false
+report = false
+
+[[part]]
+name = "plate"
+material = "iron"
+rect = { from = [0, -40], to = [80, 0] }
+
+[[part]]
+name = "magnet"
+material = "rigid"
+magnetization = "+z"
+rect = { from = [0, "gap"], to = [10, "gap + 5"] }
+
+[[force]]
+name = "pull"
+parts = ["magnet"]
+"#;
+
+#[test]
+fn the_pull_at_contact_and_across_a_closing_gap_matches_the_image_method() {
+    let mut pulls = Vec::new();
+    for gap_mm in [0.0, 0.05, 0.1, 0.5] {
+        let r = solve_case_text(CASE, &[("gap", gap_mm)]);
+        let f = r.values["force.pull.z"];
+        let contact = r.forces["pull"].contact;
+        assert_eq!(contact, gap_mm == 0.0, "contact flag at gap {gap_mm} mm");
+        assert!(!r.forces["pull"].unreliable, "gap {gap_mm} mm: flagged unreliable");
+        let exact = -coaxial_cylinders_force(1.2, 1.2, 0.01, 0.01, 0.005, 0.005, 2.0 * gap_mm * 1e-3);
+        let e = rel(f, exact);
+        eprintln!(
+            "gap {gap_mm} mm: pull {f:.5} N, image method {exact:.5} N, error {e:.2e}, estimated {:.2e}",
+            r.errors["force.pull.z"] / exact.abs()
+        );
+        record(
+            &format!("pull of a magnet on steel at gap {gap_mm} mm"),
+            "image method, Vokoun et al. 2009",
+            0.01,
+            e,
+        );
+        assert!(e < 0.01, "gap {gap_mm} mm: {f} N against {exact} N");
+        pulls.push(f);
+    }
+    // Without a jump: the pull grows steadily as the gap closes.
+    assert!(pulls.windows(2).all(|w| w[0] < w[1]), "{pulls:?}");
+}
