@@ -158,6 +158,10 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
     let mut solver = TangentSolver::new(analysis.map_err(SolveError::Linear)?, settings.reuse_factorization);
     let mut forcing = Forcing::new(settings.residual_tolerance);
     let mut previous_update = None;
+    // Magnets with a knee and no steel: the first (cold-start) step solves
+    // the recoil-line problem exactly; where no magnet point comes near its
+    // knee that is the answer, and the residual says so at once.
+    let knee_only = !linear && !problem.laws.iter().any(|l| matches!(l, crate::material::Law::Saturating(_)));
     for it in 1..=settings.max_iterations {
         let rel_now = report.residual_history.last().copied().unwrap_or(1.0);
         // Far from the solution the tangent moves too much between steps for an
@@ -166,7 +170,8 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
         // (a single-precision factor and conjugate gradients to the forcing
         // term). Linear studies and exact Newton take exact steps.
         let eta = forcing.next(rel_now);
-        let inexact = settings.reuse_factorization && !linear;
+        let exact_first = knee_only && it == 1 && !warm;
+        let inexact = settings.reuse_factorization && !linear && !exact_first;
         let reuse = inexact && kind(rel_now) == Tangent::Exact;
         let eta = if inexact { eta } else { 0.0 };
         let (step, cost) = solver.step(&system.matrix, &now.residual, eta, reuse).map_err(SolveError::Linear)?;
@@ -190,7 +195,8 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
         if !rel.is_finite() {
             return Err(SolveError::NotFinite { iteration: it });
         }
-        if (linear && rel < 1e-6) || (rel < settings.residual_tolerance && error < settings.update_tolerance.max(1e-14)) || rel < 1e-14 {
+        let recoil_exact = exact_first && rel < 1e-2 * settings.residual_tolerance;
+        if (linear && rel < 1e-6) || recoil_exact || (rel < settings.residual_tolerance && error < settings.update_tolerance.max(1e-14)) || rel < 1e-14 {
             report.converged = true;
             break;
         }
