@@ -10,5 +10,7 @@ pub mod library_text;
 pub mod output;
 pub mod progress;
 pub mod run;
+pub mod seek;
 pub mod summary;
 pub mod sweep;
+pub mod tolerance;

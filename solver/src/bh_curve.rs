@@ -173,7 +173,7 @@ fn simpson(f: impl Fn(f64) -> f64, a: f64, b: f64) -> f64 {
 }
 
 /// Slopes of a monotone piecewise cubic through (x, y) by Fritsch and Carlson (1980).
-fn fritsch_carlson_slopes(x: &[f64], y: &[f64]) -> Vec<f64> {
+pub(crate) fn fritsch_carlson_slopes(x: &[f64], y: &[f64]) -> Vec<f64> {
     let n = x.len();
     let delta: Vec<f64> = (0..n - 1).map(|k| (y[k + 1] - y[k]) / (x[k + 1] - x[k])).collect();
     let mut m = vec![0.0; n];

@@ -21,6 +21,7 @@
 //! axis is the root of mu0 H + J(H) = B, which is unique because mu0 H + J
 //! rises strictly with H.
 
+use crate::intrinsic_table::IntrinsicTable;
 use crate::MU0;
 
 /// The knee of a magnet's intrinsic curve.
@@ -48,13 +49,15 @@ impl Knee {
 
 /// One magnet's law along and across its easy axis.
 #[derive(Clone, Copy, Debug, PartialEq)]
-pub struct MagnetCurve {
+pub struct MagnetCurve<'t> {
     /// Remanence, T (positive).
     pub br: f64,
     /// Relative recoil permeability mu_rec.
     pub recoil_permeability: f64,
     /// The knee, or None for a magnet that stays on its recoil line.
     pub knee: Option<Knee>,
+    /// A user's intrinsic curve, which takes the knee's place.
+    pub table: Option<&'t IntrinsicTable>,
 }
 
 /// H along the easy axis and its derivative dH/dB there.
@@ -72,7 +75,7 @@ fn ln_cosh(u: f64) -> f64 {
     a + (-2.0 * a).exp().ln_1p() - std::f64::consts::LN_2
 }
 
-impl MagnetCurve {
+impl MagnetCurve<'_> {
     fn chi_mu0(&self) -> f64 {
         (self.recoil_permeability - 1.0) * MU0
     }
@@ -84,6 +87,9 @@ impl MagnetCurve {
 
     /// J on the major (virgin demagnetization) curve, T.
     pub fn major_j(&self, h: f64) -> f64 {
+        if let Some(t) = self.table {
+            return t.j(h).0;
+        }
         match &self.knee {
             None => self.br + self.chi_mu0() * h,
             Some(k) => self.chi_mu0() * (h + k.hcj) + self.jk(k) * ((h + k.hcj) / k.width).tanh(),
@@ -109,8 +115,11 @@ impl MagnetCurve {
             h: (b - share * self.br) / mu,
             dh_db: 1.0 / mu,
         };
-        let Some(k) = &self.knee else { return recoil };
-        let major = self.major_axial(b, k);
+        let major = match (self.table, &self.knee) {
+            (Some(t), _) => table_axial(t, b, recoil.h),
+            (None, Some(k)) => self.major_axial(b, k),
+            (None, None) => return recoil,
+        };
         // B(H) is the smaller of the two rising branches, so H is the larger root.
         if share < 1.0 && recoil.h > major.h {
             recoil
@@ -172,6 +181,18 @@ impl MagnetCurve {
     fn b_dh(&self, h: f64, share: f64) -> f64 {
         let mu = MU0 * self.recoil_permeability;
         let recoil = |h: f64| 0.5 * mu * h * h + share * self.br * h;
+        if let Some(t) = self.table {
+            let major = |h: f64| 0.5 * MU0 * h * h + t.integral(h);
+            if share >= 1.0 {
+                return major(h) - major(0.0);
+            }
+            let crossing = table_crossing(|x| t.j(x).0 - (share * self.br + self.chi_mu0() * x));
+            return if h >= crossing {
+                recoil(h)
+            } else {
+                recoil(crossing) + major(h) - major(crossing)
+            };
+        }
         let Some(k) = &self.knee else { return recoil(h) };
         let jk = self.jk(k);
         let major = |h: f64| 0.5 * MU0 * h * h + 0.5 * self.chi_mu0() * (h + k.hcj).powi(2) + jk * k.width * ln_cosh((h + k.hcj) / k.width);
@@ -196,16 +217,89 @@ impl MagnetCurve {
     }
 }
 
+/// The root of mu0 H + J(H) = b on a tabulated curve: bracketed from the
+/// recoil line's root `guess` by doubling steps, then Newton's method with
+/// bisection whenever a step does not halve the residual.
+fn table_axial(t: &IntrinsicTable, b: f64, guess: f64) -> AxialResponse {
+    let g = |h: f64| MU0 * h + t.j(h).0 - b;
+    let mut step = guess.abs().max(1e3) * 0.1;
+    let (mut lo, mut hi) = (guess, guess);
+    for _ in 0..200 {
+        if g(lo) <= 0.0 {
+            break;
+        }
+        lo -= step;
+        step *= 2.0;
+    }
+    step = guess.abs().max(1e3) * 0.1;
+    for _ in 0..200 {
+        if g(hi) >= 0.0 {
+            break;
+        }
+        hi += step;
+        step *= 2.0;
+    }
+    let mut h = 0.5 * (lo + hi);
+    let mut last = f64::INFINITY;
+    for _ in 0..200 {
+        let (j, dj) = t.j(h);
+        let r = MU0 * h + j - b;
+        if r > 0.0 {
+            hi = h;
+        } else {
+            lo = h;
+        }
+        let mut next = h - r / (MU0 + dj);
+        if !(next > lo && next < hi) || r.abs() > 0.5 * last {
+            next = 0.5 * (lo + hi);
+        }
+        last = r.abs();
+        let done = (next - h).abs() <= 1e-13 * (1.0 + h.abs()) || hi - lo <= 1e-13 * (1.0 + h.abs());
+        h = next;
+        if done {
+            break;
+        }
+    }
+    AxialResponse {
+        h,
+        dh_db: 1.0 / (MU0 + t.j(h).1),
+    }
+}
+
+/// Where a tabulated major curve meets a recoil line below H = 0 (`gap`
+/// is major minus recoil: positive at 0 for a magnet that lost flux), by
+/// bisection; minus infinity if they never meet.
+fn table_crossing(gap: impl Fn(f64) -> f64) -> f64 {
+    let mut lo = -1e3;
+    while gap(lo) > 0.0 {
+        lo *= 2.0;
+        if lo < -1e12 {
+            return f64::NEG_INFINITY;
+        }
+    }
+    let mut hi = 0.0;
+    for _ in 0..200 {
+        let mid = 0.5 * (lo + hi);
+        if gap(mid) > 0.0 {
+            hi = mid;
+        } else {
+            lo = mid;
+        }
+    }
+    0.5 * (lo + hi)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
 
-    fn n42_hot() -> MagnetCurve {
+    fn n42_hot() -> MagnetCurve<'static> {
         let (br, mu, hcj) = (1.1, 1.05, 500e3);
         MagnetCurve {
             br,
             recoil_permeability: mu,
             knee: Knee::from_squareness(br, mu, hcj, 0.97),
+            table: None,
         }
     }
 
@@ -274,6 +368,7 @@ mod sweep {
             br,
             recoil_permeability: mu,
             knee: Knee::from_squareness(br, mu, hcj, 0.97),
+            table: None,
         };
         let mut worst: f64 = 0.0;
         let mut at = 0.0;

@@ -1,6 +1,7 @@
 //! Constitutive laws H(B) of the regions: linear, saturating, permanent magnet.
 
 use crate::bh_curve::BhCurve;
+use crate::intrinsic_table::IntrinsicTable;
 use crate::magnet_law::{Knee, MagnetCurve};
 use crate::{MU0, NU0};
 use std::sync::Arc;
@@ -26,6 +27,8 @@ pub enum Law {
         br: [f64; 2],
         /// The knee of the intrinsic curve; None keeps the magnet on its recoil line.
         knee: Option<Knee>,
+        /// A user's tabulated intrinsic curve, in the knee's place.
+        table: Option<Arc<IntrinsicTable>>,
     },
 }
 
@@ -70,12 +73,23 @@ impl Law {
 
     /// Whether the law is not affine in B (a saturating curve, a magnet with a knee).
     pub fn is_nonlinear(&self) -> bool {
-        matches!(self, Law::Saturating(_) | Law::Magnet { knee: Some(_), .. })
+        matches!(
+            self,
+            Law::Saturating(_) | Law::Magnet { knee: Some(_), .. } | Law::Magnet { table: Some(_), .. }
+        )
     }
 
     /// A magnet's curve along its easy axis and the axis (unit vector); None for other laws.
-    pub fn magnet_curve(&self) -> Option<(MagnetCurve, [f64; 2])> {
-        let Law::Magnet { recoil_permeability, br, knee } = self else { return None };
+    pub fn magnet_curve(&self) -> Option<(MagnetCurve<'_>, [f64; 2])> {
+        let Law::Magnet {
+            recoil_permeability,
+            br,
+            knee,
+            table,
+        } = self
+        else {
+            return None;
+        };
         let size = br[0].hypot(br[1]);
         let axis = if size > 0.0 { [br[0] / size, br[1] / size] } else { [0.0, 1.0] };
         Some((
@@ -83,6 +97,7 @@ impl Law {
                 br: size,
                 recoil_permeability: *recoil_permeability,
                 knee: *knee,
+                table: table.as_deref(),
             },
             axis,
         ))

@@ -23,6 +23,8 @@ pub mod post;
 pub mod quantity;
 pub mod results;
 pub mod run;
+pub mod seek;
+pub mod tolerance;
 pub mod value_names;
 
 pub use lower::{Origin, StudyError};

@@ -159,6 +159,7 @@ pub fn laws(model: &Model) -> Result<Vec<Law>, StudyError> {
                     recoil_permeability: g.recoil_permeability,
                     br: [br * d[0], br * d[1]],
                     knee: g.knee_at(model.temperature),
+                    table: g.intrinsic_at(model.temperature),
                 })
             }
         })

@@ -46,6 +46,7 @@ pub fn magnet(shape: Shape, size: f64, br: [f64; 2]) -> TestPart {
             recoil_permeability: 1.0,
             br,
             knee: None,
+            table: None,
         },
         current_density: 0.0,
     }

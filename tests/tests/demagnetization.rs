@@ -188,3 +188,62 @@ fn a_hot_thin_disk_is_demagnetized_and_a_cool_cylinder_is_not() {
     assert!(cool.values["magnet.magnet.margin"] > 0.0);
     assert!(!cool.warnings.iter().any(|w| w.contains("magnet 'magnet'")), "{:?}", cool.warnings);
 }
+
+/// The intrinsic curve of an N35-class sintered NdFeB at 20 degC, read from
+/// a maker's data sheet (BOMATEC BMN-35, digitised: S56 in
+/// docs/materials.md), as a user would type it: [H kA/m, J T].
+const MEASURED: &[[f64; 2]] = &[
+    [-959.7, 0.0],
+    [-959.3, 0.4],
+    [-955.8, 0.8],
+    [-951.6, 0.9],
+    [-944.6, 1.0],
+    [-939.2, 1.05],
+    [-929.9, 1.1],
+    [-920.0, 1.131],
+    [-900.0, 1.157],
+    [-880.0, 1.167],
+    [-800.0, 1.176],
+    [-500.0, 1.195],
+    [0.0, 1.219],
+];
+
+/// Same closed form as above with a user's tabulated curve: the case gives
+/// `jh`, and the load line H = B_a/mu0 - J(H)/(2 mu0) is solved here with
+/// the same monotone interpolation of the table (its own unit tests check
+/// it), so what is tested is the solve: H(B) inverted inside Newton, the
+/// field, and the loss.
+#[test]
+fn a_tabulated_intrinsic_curve_is_followed_into_its_knee() {
+    let points: Vec<[f64; 2]> = MEASURED.iter().map(|p| [p[0] * 1e3, p[1]]).collect();
+    let table = solver::intrinsic_table::IntrinsicTable::new(&points, 0.043 * MU0).unwrap();
+    let rows: Vec<String> = MEASURED.iter().map(|p| format!("[{}, {}]", p[0] * 1e3, p[1])).collect();
+    for applied in [0.0, -0.6] {
+        let text = replace_grade(&round_magnet(applied, None), &format!("jh = [{}]\nmur = 1.043\n", rows.join(", ")));
+        let r = solve_case_text(&text, &[]);
+        let j = |h: f64| table.j(h).0;
+        let h = root(|h| h - applied / MU0 + j(h) / (2.0 * MU0), -3e6, 1e6);
+        let exact = MU0 * h + j(h);
+        let b = r.values["probe.centre.by"];
+        let e = (b - exact).abs() / 1.219;
+        eprintln!("table, applied {applied} T: H {h:.0} A/m, B {b:.6} T against {exact:.6} T, error {e:.2e}");
+        record(
+            &format!("tabulated curve on its load line, applied {applied} T"),
+            "uniform state, demagnetizing factor 1/2 (Osborn 1945); error relative to Br",
+            0.001,
+            e,
+        );
+        assert!(e < 0.001, "applied {applied} T: {b} T against {exact} T");
+        let loss = r.values["magnet.magnet.loss"];
+        // The share kept never exceeds 1 (this table is a little flatter than its recoil slope near 0).
+        let expected = (1.0 - (j(h) - 0.043 * MU0 * h) / j(0.0)).max(0.0);
+        assert!((loss - expected).abs() < 0.001, "applied {applied} T: loss {loss} against {expected}");
+    }
+}
+
+/// The case text with the `[materials.grade]` keys replaced by `keys`.
+fn replace_grade(text: &str, keys: &str) -> String {
+    let start = text.find("[materials.grade]\n").unwrap() + "[materials.grade]\n".len();
+    let end = text[start..].find("description").unwrap() + start;
+    format!("{}{keys}{}", &text[..start], &text[end..])
+}

@@ -188,6 +188,7 @@ fn magnet_in_uniform_field(shape: mesher::Shape, size: f64, recoil: f64, angle_d
         recoil_permeability: recoil,
         br: [BR * c, BR * s],
         knee: None,
+        table: None,
     };
     solve_with(Symmetry::Planar, vec![part], vec![], OuterBoundary::Open, [0.0, b0], |sol| {
         let r = force_on(sol, &[0], [0.0; 2]);

@@ -21,6 +21,9 @@ pub struct MagnetGrade {
     /// Squareness Hk/HcJ of the intrinsic curve: where its knee begins
     /// (the knee model in `solver::magnet_law`).
     pub squareness: f64,
+    /// A user's tabulated intrinsic curve at 20 degC, used in place of the
+    /// knee model.
+    pub intrinsic: Option<std::sync::Arc<solver::intrinsic_table::IntrinsicTable>>,
 }
 
 impl MagnetGrade {
@@ -32,6 +35,46 @@ impl MagnetGrade {
     /// (common practice, from memory); a wider knee than measured on NdFeB,
     /// so loss is predicted early rather than late.
     pub const DEFAULT_SQUARENESS: f64 = 0.9;
+
+    /// A grade from its tabulated intrinsic curve ([H A/m, J T] from J <= 0
+    /// up to H = 0): Br is J(0), HcJ where the points cross J = 0.
+    pub fn from_intrinsic_curve(points: &[[f64; 2]], recoil_permeability: f64, br_coeff: f64, hcj_coeff: f64) -> Result<MagnetGrade, String> {
+        let table = solver::intrinsic_table::IntrinsicTable::new(points, (recoil_permeability - 1.0) * solver::MU0)?;
+        let br = table.j(0.0).0;
+        if br.partial_cmp(&0.0) != Some(std::cmp::Ordering::Greater) || points[0][1] > 0.0 {
+            return Err(format!(
+                "the curve must run from J <= 0 (at HcJ) up to a positive J at H = 0; it runs from {} T to {br} T",
+                points[0][1]
+            ));
+        }
+        let k = points.iter().rposition(|p| p[1] <= 0.0).unwrap_or(0);
+        let (a, b) = (points[k], points[k + 1]);
+        let hcj = -(a[0] + (b[0] - a[0]) * (0.0 - a[1]) / (b[1] - a[1]));
+        Ok(MagnetGrade {
+            br,
+            recoil_permeability,
+            hcj,
+            hcb: None,
+            br_coeff,
+            hcj_coeff,
+            max_temperature: None,
+            squareness: MagnetGrade::DEFAULT_SQUARENESS,
+            intrinsic: Some(std::sync::Arc::new(table)),
+        })
+    }
+
+    /// The user's intrinsic curve at a temperature: H scaled with HcJ and J
+    /// with Br by the reversible coefficients.
+    pub fn intrinsic_at(&self, celsius: f64) -> Option<std::sync::Arc<solver::intrinsic_table::IntrinsicTable>> {
+        let t = self.intrinsic.as_ref()?;
+        let dt = celsius - 20.0;
+        let (kh, kj) = (1.0 + self.hcj_coeff / 100.0 * dt, 1.0 + self.br_coeff / 100.0 * dt);
+        Some(if dt == 0.0 || !(kh > 0.0 && kj > 0.0) {
+            t.clone()
+        } else {
+            std::sync::Arc::new(t.scaled(kh, kj))
+        })
+    }
 
     /// The knee of the intrinsic curve at a temperature; None without a finite HcJ.
     pub fn knee_at(&self, celsius: f64) -> Option<solver::magnet_law::Knee> {
@@ -103,11 +146,13 @@ mod tests {
             hcj_coeff: 0.0,
             max_temperature: None,
             squareness: MagnetGrade::NDFEB_SQUARENESS,
+            intrinsic: None,
         };
         let curve = MagnetCurve {
             br: grade.br,
             recoil_permeability: grade.recoil_permeability,
             knee: grade.knee_at(20.0),
+            table: None,
         };
         let measured = [
             (-500.0, 1.195),

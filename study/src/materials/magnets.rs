@@ -302,6 +302,7 @@ fn ndfeb(name: &str) -> Option<Entry> {
         hcj_coeff: class.2,
         max_temperature: Some(class.3),
         squareness: MagnetGrade::NDFEB_SQUARENESS,
+        intrinsic: None,
     };
     let source = format!(
         "sintered NdFeB: Br {:.3} T = middle of the {}-{} T catalogue range for {} (S6; S1), recoil permeability 1.05 and alpha Br -0.12 %/K (S1; S12); {}; typical catalogue values, not a standard's minimum",
@@ -326,6 +327,7 @@ fn other(name: &str) -> Option<Entry> {
         hcj_coeff: g.7,
         max_temperature: Some(g.8),
         squareness: MagnetGrade::DEFAULT_SQUARENESS,
+        intrinsic: None,
     };
     Some(Entry {
         name: g.0.into(),

@@ -34,12 +34,37 @@ fn bound_kind(unit: Unit) -> Option<Kind> {
     }
 }
 
+/// A quantity compared with a value (a bound, a target) in SI, its unit
+/// checked against the value's: a bare number is taken as SI.
+pub(super) fn value_quantity(ctx: &Context, i: &Item, value: &ValueName, what: &str, role: &str) -> Result<f64, Diagnostic> {
+    let (v, kind) = ctx.any_quantity(i, what)?;
+    match (kind, bound_kind(value.unit)) {
+        (None, _) => Ok(v),
+        (Some(Kind::Percent), Some(Kind::Dimensionless)) => Ok(v / 100.0),
+        (Some(k), Some(want)) if k == want => Ok(v),
+        (Some(k), _) => Err(Diagnostic::new(
+            format!(
+                "{what}: the {role} is {} but '{}' is {} ({})",
+                k.describe(),
+                value.name,
+                value.unit.quantity(),
+                if value.unit.symbol().is_empty() {
+                    "a plain number"
+                } else {
+                    value.unit.symbol()
+                }
+            ),
+            Some(i.span.clone()),
+        )),
+    }
+}
+
 /// The value's typed name, or a located error listing the nearest names.
-fn value_name(item: &Item, model: &Model) -> Result<ValueName, Diagnostic> {
-    let written = item.str("expect.value")?;
+pub(super) fn value_name(item: &Item, model: &Model) -> Result<ValueName, Diagnostic> {
+    let written = item.str("value")?;
     study::value_names::value_name(model, written).ok_or_else(|| {
         let names = study::value_names::value_names(model);
-        let err = Diagnostic::new(format!("expect: this study reports no value named '{written}'"), Some(item.span.clone()));
+        let err = Diagnostic::new(format!("this study reports no value named '{written}'"), Some(item.span.clone()));
         // A component of the other geometry: y is z about the axis, x is r.
         let axisymmetric = model.symmetry == mesher::Symmetry::Axisymmetric;
         let swaps: &[(&str, &str)] = if axisymmetric {
@@ -70,28 +95,7 @@ pub(super) fn expects(top: &Fields, ctx: &Context, model: &Model) -> Result<Vec<
         let t = item.table("[[expect]]", EXPECT)?;
         let value = value_name(t.require("value")?, model)?;
         let what = format!("expect '{}'", value.name);
-        let q = |i: &Item| -> Result<f64, Diagnostic> {
-            let (v, kind) = ctx.any_quantity(i, &what)?;
-            match (kind, bound_kind(value.unit)) {
-                (None, _) => Ok(v),
-                (Some(Kind::Percent), Some(Kind::Dimensionless)) => Ok(v / 100.0),
-                (Some(k), Some(want)) if k == want => Ok(v),
-                (Some(k), _) => Err(Diagnostic::new(
-                    format!(
-                        "{what}: the bound is {} but '{}' is {} ({})",
-                        k.describe(),
-                        value.name,
-                        value.unit.quantity(),
-                        if value.unit.symbol().is_empty() {
-                            "a plain number"
-                        } else {
-                            value.unit.symbol()
-                        }
-                    ),
-                    Some(i.span.clone()),
-                )),
-            }
-        };
+        let q = |i: &Item| value_quantity(ctx, i, &value, &what, "bound");
         let text = |i: &Item| match &i.value {
             Value::Str(s) => s.clone(),
             Value::Num(n) => format!("{n}"),

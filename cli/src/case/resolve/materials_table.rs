@@ -13,7 +13,19 @@ use study::materials::{self, Entry, MagnetGrade, Material};
 const MAX_CSV_BYTES: u64 = 4 << 20;
 
 /// Keys of a `[materials.NAME]` table.
-const MATERIAL: &[&str] = &["bh", "bh_csv", "mur", "br", "hcb", "hcj", "br_coeff", "hcj_coeff", "squareness", "description"];
+const MATERIAL: &[&str] = &[
+    "bh",
+    "bh_csv",
+    "mur",
+    "br",
+    "hcb",
+    "hcj",
+    "br_coeff",
+    "hcj_coeff",
+    "squareness",
+    "jh",
+    "description",
+];
 
 pub(super) fn user_materials(top: &Fields, ctx: &Context, dir: &Path) -> Result<BTreeMap<String, (Entry, std::ops::Range<usize>)>, Diagnostic> {
     let mut out = BTreeMap::new();
@@ -53,6 +65,9 @@ pub(super) fn user_materials(top: &Fields, ctx: &Context, dir: &Path) -> Result<
 }
 
 fn user_material(t: &Fields, ctx: &Context, dir: &Path, what: &str) -> Result<Material, Diagnostic> {
+    if let Some(jh) = t.get("jh") {
+        return table_magnet(t, ctx, jh, what);
+    }
     if let Some(br) = t.get("br") {
         let br_v = ctx.quantity(br, Kind::FluxDensity, &format!("{what} br"))?;
         let mu = match (t.get("mur"), t.get("hcb")) {
@@ -104,6 +119,7 @@ fn user_material(t: &Fields, ctx: &Context, dir: &Path, what: &str) -> Result<Ma
             br_coeff: coeff("br_coeff")?.unwrap_or(0.0),
             hcj_coeff: coeff("hcj_coeff")?.unwrap_or(0.0),
             max_temperature: None,
+            intrinsic: None,
         }));
     }
     let given = t.present(&["bh", "bh_csv", "mur"]);
@@ -142,6 +158,40 @@ fn user_material(t: &Fields, ctx: &Context, dir: &Path, what: &str) -> Result<Ma
             Ok(Material::Soft { curve: pts })
         }
     }
+}
+
+/// A magnet by its intrinsic curve: `jh = [[H A/m, J T], ...]` from the
+/// data sheet's second quadrant, from J <= 0 (at or past HcJ) up to H = 0
+/// (Br), with `mur` (recoil permeability, default 1.05) and the reversible
+/// coefficients as for any magnet.
+fn table_magnet(t: &Fields, ctx: &Context, jh: &Item, what: &str) -> Result<Material, Diagnostic> {
+    if let Some(other) = t.get("br").or(t.get("hcj")).or(t.get("hcb")).or(t.get("squareness")) {
+        return Err(Diagnostic::new(
+            format!("{what}: jh gives the whole intrinsic curve (Br is J at H = 0, HcJ where J = 0); leave out br, hcb, hcj and squareness"),
+            Some(other.span.clone()),
+        ));
+    }
+    let mut pts = Vec::new();
+    for row in jh.array(&format!("{what} jh"))? {
+        let r = row.array(&format!("{what} jh row"))?;
+        if r.len() != 2 {
+            return Err(Diagnostic::new(format!("{what} jh: each row is [H in A/m, J in T]"), Some(row.span.clone())));
+        }
+        pts.push([r[0].number("H")?, r[1].number("J")?]);
+    }
+    let mu = match t.get("mur") {
+        Some(m) => positive_number(m, &format!("{what} mur"))?,
+        None => MagnetGrade::DEFAULT_RECOIL_PERMEABILITY,
+    };
+    let coeff = |key: &str| {
+        t.get(key)
+            .map(|c| ctx.quantity(c, Kind::PercentPerKelvin, &format!("{what} {key}")))
+            .transpose()
+    };
+    let (br_coeff, hcj_coeff) = (coeff("br_coeff")?.unwrap_or(0.0), coeff("hcj_coeff")?.unwrap_or(0.0));
+    MagnetGrade::from_intrinsic_curve(&pts, mu, br_coeff, hcj_coeff)
+        .map(Material::Magnet)
+        .map_err(|msg| Diagnostic::new(format!("{what} jh: {msg}"), Some(jh.span.clone())))
 }
 
 pub(super) fn positive_number(item: &Item, what: &str) -> Result<f64, Diagnostic> {

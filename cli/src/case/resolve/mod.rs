@@ -10,10 +10,14 @@ mod mesh_table;
 mod names;
 mod params;
 mod parts;
+mod seek_table;
 mod study_table;
+mod tolerance_table;
 
 pub use mesh_table::DEFAULT_MAX_ELEMENTS;
 pub use params::{params, sweep};
+pub use seek_table::Seek;
+pub use tolerance_table::{Method, Tolerance};
 
 use crate::case::diagnostic::Diagnostic;
 use crate::case::document::{Item, Value};
@@ -173,4 +177,25 @@ fn check_temperature(study: &crate::case::document::Fields, temperature: f64, pa
         }
     }
     Ok(())
+}
+
+/// The case's `[seek]`, resolved against a model of the case (its value
+/// name and target unit are checked there).
+pub fn seek(doc: &Item, params: &BTreeMap<String, f64>, model: &Model) -> Result<Option<Seek>, Diagnostic> {
+    let top = doc.table("the case file", TOP)?;
+    let ctx = Context {
+        params,
+        length_unit: model.length_unit.1,
+    };
+    seek_table::seek(&top, &ctx, model)
+}
+
+/// The case's `[tolerance]`, with nominal values from `params`.
+pub fn tolerance(doc: &Item, params: &BTreeMap<String, f64>, model: &Model) -> Result<Option<Tolerance>, Diagnostic> {
+    let top = doc.table("the case file", TOP)?;
+    let ctx = Context {
+        params,
+        length_unit: model.length_unit.1,
+    };
+    tolerance_table::tolerance(&top, &ctx)
 }

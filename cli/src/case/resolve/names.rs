@@ -11,6 +11,8 @@ pub(super) const TOP: &[&str] = &[
     "mesh",
     "params",
     "sweep",
+    "seek",
+    "tolerance",
     "materials",
     "part",
     "probe",

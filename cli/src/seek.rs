@@ -1,0 +1,117 @@
+//! `lodestone solve` on a case with `[seek]`: the goal seek's evaluations
+//! (each a study solved to its accuracy, no files), then the case solved
+//! in full at the parameter found, written with seek.json and seek.csv as
+//! one set.
+
+use crate::case::resolve::Seek;
+use crate::output::folder::OutputFolder;
+use crate::progress::Progress;
+use crate::run::{self, Failure, Limits, Loaded, Variant};
+use std::collections::BTreeMap;
+use std::path::Path;
+use study::seek::{Evaluation, SeekError};
+
+/// One evaluation: the study at `x`, its value and estimated error.
+fn evaluate(loaded: &Loaded, base: &Variant, spec: &Seek, x: f64, limits: &Limits, progress: &Progress) -> Result<Evaluation, Failure> {
+    let mut params = base.params.clone();
+    params.insert(spec.vary.clone(), x);
+    let resolved = run::resolve(loaded, &params, limits)?;
+    let model = resolved.model;
+    let results = study::run::run(&model, &|_| {}).map_err(|e| match e.origin {
+        Some(_) => loaded.study_error(&resolved.spans, &e),
+        None => Failure::Input(format!("error: {}: {} = {x}: {e}\n", loaded.path.display(), spec.vary)),
+    })?;
+    if !results.solve.converged {
+        return Err(Failure::Input(format!(
+            "error: {}: the study did not converge at {} = {x}, so the seek cannot go on\n",
+            loaded.path.display(),
+            spec.vary
+        )));
+    }
+    let value = results.values.get(&spec.value).copied().unwrap_or(f64::NAN);
+    let error = results.errors.get(&spec.value).copied().unwrap_or(0.0);
+    progress.note(&format!(
+        "{}: seek {} = {x:.6}: {} = {value:.6e} {} (target {:.6e})",
+        loaded.stem(),
+        spec.vary,
+        spec.value,
+        spec.unit,
+        spec.target
+    ));
+    Ok(Evaluation { x, value, error })
+}
+
+/// Runs the seek, then the full case at the answer; exit code as `solve`.
+pub fn solve(loaded: &Loaded, spec: &Seek, base: &Variant, folder: &OutputFolder, limits: &Limits, progress: &Progress) -> Result<i32, Failure> {
+    let found = study::seek::seek(spec.range[0], spec.range[1], spec.target, |x| evaluate(loaded, base, spec, x, limits, progress));
+    let found = match found {
+        Ok(f) => f,
+        Err(SeekError::Evaluation(f)) => return Err(f),
+        Err(SeekError::NotInRange { low, high }) => {
+            progress.finish();
+            eprintln!(
+                "{}: {} does not reach {:.6e} {} anywhere in {} = {} .. {}: it ranges from {low:.6e} to {high:.6e} there; widen seek.range",
+                loaded.path.display(),
+                spec.value,
+                spec.target,
+                spec.unit,
+                spec.vary,
+                spec.range[0],
+                spec.range[1]
+            );
+            return Ok(1);
+        }
+    };
+    let mut at = base.clone();
+    at.params.insert(spec.vary.clone(), found.x);
+    let mut outcome = run::solve_variant(loaded, &at, limits, progress)?;
+    progress.finish();
+    let value = outcome.results.values.get(&spec.value).copied();
+    let error = outcome.results.errors.get(&spec.value).copied();
+    outcome.files.push(("seek.json".into(), seek_json(spec, &found, &at.params, value, error)?));
+    outcome.files.push(("seek.csv".into(), seek_csv(spec, &found).into_bytes()));
+    folder
+        .commit(Path::new(""), &outcome.files)
+        .map_err(|e| Failure::Input(format!("error: {e}\n")))?;
+    print!("{}", crate::summary::summary(&outcome, folder.path()));
+    println!(
+        "  seek: {} = {:.6} ± {:.2e} gives {} = {} (target {}), {} evaluations",
+        spec.vary,
+        found.x,
+        found.uncertainty,
+        spec.value,
+        value.map_or("-".into(), |v| crate::output::engineering::eng_pm(v, error, spec.unit)),
+        crate::output::engineering::eng(spec.target, spec.unit),
+        found.evaluations.len()
+    );
+    Ok(i32::from(!outcome.results.solve.converged) * 3)
+}
+
+fn seek_json(spec: &Seek, found: &study::seek::Found, params: &BTreeMap<String, f64>, value: Option<f64>, error: Option<f64>) -> Result<Vec<u8>, Failure> {
+    let evaluations: Vec<_> = found
+        .evaluations
+        .iter()
+        .map(|e| serde_json::json!({ "x": e.x, "value": e.value, "error": e.error }))
+        .collect();
+    let json = serde_json::json!({
+        "vary": spec.vary,
+        "found": found.x,
+        "uncertainty": found.uncertainty,
+        "value_name": spec.value,
+        "target": spec.target,
+        "value": value,
+        "error": error,
+        "params": params,
+        "evaluations": evaluations,
+        "note": "SI units for value, error and target; the parameter in the case's own units. The uncertainty is the value's estimated error over the slope, plus what is left of the final bracket."
+    });
+    serde_json::to_vec_pretty(&json).map_err(|e| Failure::Input(format!("error: cannot encode seek.json: {e}\n")))
+}
+
+fn seek_csv(spec: &Seek, found: &study::seek::Found) -> String {
+    let mut s = format!("{},{} [{}],{}.error [{}]\n", spec.vary, spec.value, spec.unit, spec.value, spec.unit);
+    for e in &found.evaluations {
+        s += &format!("{},{},{}\n", e.x, e.value, e.error);
+    }
+    s
+}

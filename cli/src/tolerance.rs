@@ -1,0 +1,178 @@
+//! `lodestone solve` on a case with `[tolerance]`: every sample solved to
+//! the case's accuracy (no files), the statistics of every value, then the
+//! nominal case solved in full and written with tolerance.csv and
+//! tolerance.json as one set.
+
+use crate::case::resolve::{Method, Tolerance};
+use crate::output::folder::OutputFolder;
+use crate::progress::Progress;
+use crate::run::{self, Failure, Limits, Loaded, Variant};
+use std::collections::BTreeMap;
+use std::path::Path;
+use study::tolerance::{corners, latin_hypercube, statistics, Statistics};
+
+/// The values of one sample, by name.
+type Values = BTreeMap<String, f64>;
+
+/// Solves the study at one parameter set.
+fn sample(loaded: &Loaded, base: &Variant, tol: &Tolerance, at: &[f64], limits: &Limits) -> Result<Values, Failure> {
+    let mut params = base.params.clone();
+    for (s, v) in tol.spreads.iter().zip(at) {
+        params.insert(s.name.clone(), *v);
+    }
+    let resolved = run::resolve(loaded, &params, limits)?;
+    let results = study::run::run(&resolved.model, &|_| {}).map_err(|e| match e.origin {
+        Some(_) => loaded.study_error(&resolved.spans, &e),
+        None => Failure::Input(format!("error: {}: {e}\n", loaded.path.display())),
+    })?;
+    if !results.solve.converged {
+        return Err(Failure::Input(format!(
+            "error: {}: a tolerance sample did not converge at {params:?}\n",
+            loaded.path.display()
+        )));
+    }
+    Ok(results.values)
+}
+
+/// Solves every sample in turn, with progress.
+fn solve_all(
+    loaded: &Loaded,
+    base: &Variant,
+    tol: &Tolerance,
+    sets: &[Vec<f64>],
+    limits: &Limits,
+    progress: &Progress,
+    what: &str,
+) -> Result<Vec<Values>, Failure> {
+    let mut out = Vec::with_capacity(sets.len());
+    for (i, at) in sets.iter().enumerate() {
+        progress.note(&format!("{}: tolerance {what} {} of {}", loaded.stem(), i + 1, sets.len()));
+        out.push(sample(loaded, base, tol, at, limits)?);
+    }
+    Ok(out)
+}
+
+/// Statistics of every value over the samples.
+fn all_statistics(values: &[Values]) -> BTreeMap<String, Statistics> {
+    let names: Vec<String> = values.first().map(|v| v.keys().cloned().collect()).unwrap_or_default();
+    names
+        .into_iter()
+        .filter_map(|n| statistics(&values.iter().filter_map(|v| v.get(&n).copied()).collect::<Vec<_>>()).map(|s| (n, s)))
+        .collect()
+}
+
+/// Values whose extremes over the face centres pass those over the corners:
+/// there the worst case is not at a corner, and the corner method misses it.
+fn not_at_corners(corner: &BTreeMap<String, Statistics>, inside: &[Values]) -> Vec<String> {
+    corner
+        .iter()
+        .filter(|(n, s)| {
+            let slack = 1e-9 * s.max.abs().max(s.min.abs());
+            inside.iter().filter_map(|v| v.get(*n)).any(|&x| x > s.max + slack || x < s.min - slack)
+        })
+        .map(|(n, _)| n.clone())
+        .collect()
+}
+
+/// Runs the tolerance study, then the nominal case; exit code as `solve`.
+pub fn solve(loaded: &Loaded, tol: &Tolerance, base: &Variant, folder: &OutputFolder, limits: &Limits, progress: &Progress) -> Result<i32, Failure> {
+    let (sets, values, off_corner) = match tol.method {
+        Method::MonteCarlo { samples, seed } => {
+            let sets = latin_hypercube(&tol.spreads, samples, seed);
+            let values = solve_all(loaded, base, tol, &sets, limits, progress, "sample")?;
+            (sets, values, Vec::new())
+        }
+        Method::Corners => {
+            let (corner_sets, inside_sets) = corners(&tol.spreads);
+            let values = solve_all(loaded, base, tol, &corner_sets, limits, progress, "corner")?;
+            let inside = solve_all(loaded, base, tol, &inside_sets, limits, progress, "face centre")?;
+            let off = not_at_corners(&all_statistics(&values), &inside);
+            (corner_sets, values, off)
+        }
+    };
+    let stats = all_statistics(&values);
+    let mut outcome = run::solve_variant(loaded, base, limits, progress)?;
+    progress.finish();
+    outcome.files.push(("tolerance.csv".into(), csv(tol, &sets, &values).into_bytes()));
+    outcome.files.push(("tolerance.json".into(), json(tol, &stats, &off_corner, sets.len())?));
+    folder
+        .commit(Path::new(""), &outcome.files)
+        .map_err(|e| Failure::Input(format!("error: {e}\n")))?;
+    print!("{}", crate::summary::summary(&outcome, folder.path()));
+    let method = match tol.method {
+        Method::MonteCarlo { .. } => "Monte Carlo (Latin hypercube)",
+        Method::Corners => "corners",
+    };
+    let corners_only = tol.method == Method::Corners;
+    let heading = if corners_only {
+        "smallest and largest over the corners"
+    } else {
+        "min, 1st, 50th, 99th percentile, max"
+    };
+    println!("  tolerance: {} samples by {method}; {heading}:", sets.len());
+    for name in &outcome.results.asked {
+        if let Some(s) = stats.get(name) {
+            let unit = outcome.results.units.get(name).copied().unwrap_or("");
+            let e = |v: f64| crate::output::engineering::eng(v, unit);
+            if corners_only {
+                println!("    {name}: {} .. {}", e(s.min), e(s.max));
+            } else {
+                println!("    {name}: {}, {}, {}, {}, {}", e(s.min), e(s.p1), e(s.p50), e(s.p99), e(s.max));
+            }
+        }
+    }
+    for name in &off_corner {
+        println!("  WARNING: {name}: a face centre of the tolerance box goes past the corners' extremes, so its worst case is not at a corner; use method = \"monte-carlo\"");
+    }
+    Ok(if outcome.results.solve.converged {
+        i32::from(outcome.results.expect.iter().any(|e| !e.pass))
+    } else {
+        3
+    })
+}
+
+fn csv(tol: &Tolerance, sets: &[Vec<f64>], values: &[Values]) -> String {
+    let names: Vec<String> = values.first().map(|v| v.keys().cloned().collect()).unwrap_or_default();
+    let mut s = String::from("sample");
+    for sp in &tol.spreads {
+        s += &format!(",{}", sp.name);
+    }
+    for n in &names {
+        s += &format!(",{n}");
+    }
+    s.push('\n');
+    for (i, (set, v)) in sets.iter().zip(values).enumerate() {
+        s += &i.to_string();
+        for x in set {
+            s += &format!(",{x}");
+        }
+        for n in &names {
+            s += &format!(",{}", v.get(n).copied().unwrap_or(f64::NAN));
+        }
+        s.push('\n');
+    }
+    s
+}
+
+fn json(tol: &Tolerance, stats: &BTreeMap<String, Statistics>, off_corner: &[String], n: usize) -> Result<Vec<u8>, Failure> {
+    let spreads: Vec<_> = tol
+        .spreads
+        .iter()
+        .map(|s| serde_json::json!({ "name": s.name, "nominal": s.nominal, "plus_minus": s.half_width, "distribution": format!("{:?}", s.distribution).to_lowercase() }))
+        .collect();
+    let statistics: BTreeMap<_, _> = stats
+        .iter()
+        .map(|(k, s)| {
+            (
+                k.clone(),
+                serde_json::json!({ "min": s.min, "p1": s.p1, "p50": s.p50, "p99": s.p99, "max": s.max }),
+            )
+        })
+        .collect();
+    let method = match tol.method {
+        Method::MonteCarlo { seed, .. } => serde_json::json!({ "name": "monte-carlo", "sampling": "latin-hypercube", "seed": seed }),
+        Method::Corners => serde_json::json!({ "name": "corners", "worst_case_not_at_a_corner": off_corner }),
+    };
+    let json = serde_json::json!({ "method": method, "samples": n, "spreads": spreads, "statistics": statistics, "note": "values in SI; percentiles interpolate between order statistics (Hyndman and Fan type 7); a normal spread's plus_minus is three standard deviations" });
+    serde_json::to_vec_pretty(&json).map_err(|e| Failure::Input(format!("error: cannot encode tolerance.json: {e}\n")))
+}

@@ -1,0 +1,93 @@
+//! `[tolerance]` end to end: Br uniform within +-3 % on a bare magnet.
+
+use std::process::Command;
+
+/// B_z on the axis of a uniformly magnetized cylinder (radius a, length L)
+/// at distance z from its face (Furlani 2001, sec. 4.3; Derby and Olbert
+/// 2010). Linear in Br, so the field's percentiles are Br's.
+fn axis_field(br: f64, a: f64, l: f64, z: f64) -> f64 {
+    let f = |u: f64| u / (u * u + a * a).sqrt();
+    0.5 * br * (f(z + l) - f(z))
+}
+
+fn case(method: &str) -> String {
+    format!(
+        r#"
+[study]
+geometry = "axisymmetric"
+unit = "mm"
+
+[params]
+kbr = 1.0
+
+[materials.rigid]
+br = "1.2 * kbr T"
+mur = 1
+description = "rigid magnet for the closed form"
+
+[output]
+vtk = false
+plots = false
+report = false
+
+[[part]]
+name = "magnet"
+material = "rigid"
+magnetization = "+z"
+rect = {{ from = [0, 0], to = [5, 10] }}
+
+[[probe]]
+name = "front"
+point = [0, 20]
+
+[tolerance]
+{method}
+spread = {{ kbr = {{ plus_minus = "3 %" }} }}
+"#
+    )
+}
+
+fn run(name: &str, text: &str) -> (serde_json::Value, String) {
+    let dir = std::env::temp_dir().join(format!("lodestone-tol-{name}-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    let case = dir.join("case.toml");
+    std::fs::write(&case, text).unwrap();
+    let out = dir.join("out");
+    let o = Command::new(env!("CARGO_BIN_EXE_lodestone"))
+        .args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()])
+        .output()
+        .unwrap();
+    let text = format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr));
+    assert_eq!(o.status.code(), Some(0), "{text}");
+    let json = serde_json::from_slice(&std::fs::read(out.join("tolerance.json")).unwrap()).unwrap();
+    assert!(out.join("tolerance.csv").exists() && out.join("results.json").exists());
+    let _ = std::fs::remove_dir_all(&dir);
+    (json, text)
+}
+
+#[test]
+fn percentiles_of_a_field_follow_a_uniform_br_spread() {
+    let (json, text) = run("mc", &case("method = \"monte-carlo\"\nsamples = 50"));
+    let s = &json["statistics"]["probe.front.b"];
+    let nominal = axis_field(1.2, 0.005, 0.01, 0.01);
+    // Br uniform on [0.97, 1.03] of nominal: its 1st and 99th percentiles.
+    for (key, k) in [("p1", 0.97 + 0.06 * 0.01), ("p99", 0.97 + 0.06 * 0.99), ("p50", 1.0)] {
+        let got = s[key].as_f64().unwrap();
+        let exact = nominal * k;
+        let e = (got - exact).abs() / exact;
+        eprintln!("{key}: {got:.6e} T against {exact:.6e} T, error {e:.2e}");
+        assert!(e < 0.005, "{key}: {got} against {exact}\n{text}");
+    }
+    assert!(text.contains("tolerance: 50 samples"), "{text}");
+}
+
+#[test]
+fn corners_bound_a_monotone_value() {
+    let (json, _) = run("corners", &case("method = \"corners\""));
+    let s = &json["statistics"]["probe.front.b"];
+    let nominal = axis_field(1.2, 0.005, 0.01, 0.01);
+    assert!((s["min"].as_f64().unwrap() / (0.97 * nominal) - 1.0).abs() < 0.005);
+    assert!((s["max"].as_f64().unwrap() / (1.03 * nominal) - 1.0).abs() < 0.005);
+    assert_eq!(json["method"]["worst_case_not_at_a_corner"].as_array().unwrap().len(), 0);
+}

@@ -1,0 +1,217 @@
+//! Goal seek: the parameter value at which a result meets its target.
+//!
+//! The range is scanned from its low end for the first change of sign of
+//! value - target (the smallest parameter that reaches the target, as a
+//! designer asks it), then the bracket is closed by Brent's method (R. P.
+//! Brent, Algorithms for Minimization without Derivatives, 1973, ch. 4:
+//! inverse quadratic interpolation and secant steps, bisection whenever
+//! they do not shrink the bracket fast enough). Each evaluation is a solve
+//! with its own error estimate, so the search stops once the bracket is
+//! narrower than what that error allows: the parameter's uncertainty is the
+//! value's estimated error over the slope, plus what is left of the bracket.
+
+/// One evaluation: the parameter, the value there and its estimated error.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Evaluation {
+    /// Parameter value.
+    pub x: f64,
+    /// The sought value there (SI).
+    pub value: f64,
+    /// Its estimated absolute error (0 when not estimated).
+    pub error: f64,
+}
+
+/// The answer of a seek.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Found {
+    /// The parameter value where the value meets the target.
+    pub x: f64,
+    /// Its uncertainty (same unit as x): the value's error over the slope,
+    /// plus half the final bracket.
+    pub uncertainty: f64,
+    /// Every evaluation, in order.
+    pub evaluations: Vec<Evaluation>,
+}
+
+/// Why a seek found nothing.
+#[derive(Clone, Debug, PartialEq)]
+pub enum SeekError<E> {
+    /// The value does not cross the target anywhere in the range: its
+    /// smallest and largest value seen.
+    NotInRange {
+        /// Smallest value seen.
+        low: f64,
+        /// Largest value seen.
+        high: f64,
+    },
+    /// An evaluation failed.
+    Evaluation(E),
+}
+
+/// Points the range is scanned at for a bracket, ends included.
+const SCAN_POINTS: usize = 9;
+/// Most evaluations after the bracket is found.
+const MOST_STEPS: usize = 40;
+
+/// The scan's points: geometric when the range spans more than a decade of
+/// positive values (a magnet's size), else even.
+fn scan(lo: f64, hi: f64) -> Vec<f64> {
+    let n = SCAN_POINTS - 1;
+    (0..=n)
+        .map(|i| {
+            let t = i as f64 / n as f64;
+            if lo > 0.0 && hi / lo > 10.0 {
+                lo * (hi / lo).powf(t)
+            } else {
+                lo + t * (hi - lo)
+            }
+        })
+        .collect()
+}
+
+/// Finds x in [lo, hi] where value(x) = target, the smallest such x when
+/// there are several. `evaluate` solves the study at x.
+pub fn seek<E>(lo: f64, hi: f64, target: f64, mut evaluate: impl FnMut(f64) -> Result<Evaluation, E>) -> Result<Found, SeekError<E>> {
+    let mut evaluations = Vec::new();
+    let mut eval = |x: f64, evaluations: &mut Vec<Evaluation>| -> Result<Evaluation, SeekError<E>> {
+        let e = evaluate(x).map_err(SeekError::Evaluation)?;
+        evaluations.push(e);
+        Ok(e)
+    };
+    // The first sign change from the low end.
+    let mut previous: Option<Evaluation> = None;
+    let mut bracket = None;
+    for x in scan(lo, hi) {
+        let e = eval(x, &mut evaluations)?;
+        if let Some(p) = previous {
+            if (p.value - target).signum() != (e.value - target).signum() || e.value == target {
+                bracket = Some((p, e));
+                break;
+            }
+        } else if e.value == target {
+            bracket = Some((e, e));
+            break;
+        }
+        previous = Some(e);
+    }
+    let Some((a, b)) = bracket else {
+        let values = evaluations.iter().map(|e| e.value);
+        return Err(SeekError::NotInRange {
+            low: values.clone().fold(f64::INFINITY, f64::min),
+            high: values.fold(f64::NEG_INFINITY, f64::max),
+        });
+    };
+    let (x, uncertainty) = brent(a, b, target, &mut |x| eval(x, &mut evaluations))?;
+    Ok(Found { x, uncertainty, evaluations })
+}
+
+/// Brent's method on f(x) = value - target inside the bracket [a, b]
+/// (b the better end, a the other end of the bracket, c the previous b, d
+/// the one before). Stops when the bracket is within the uncertainty the
+/// value's error allows at the current slope (or within 1e-9 of the range).
+fn brent<E>(a: Evaluation, b: Evaluation, target: f64, eval: &mut dyn FnMut(f64) -> Result<Evaluation, SeekError<E>>) -> Result<(f64, f64), SeekError<E>> {
+    let f = |e: &Evaluation| e.value - target;
+    let (mut a, mut b) = (a, b);
+    if f(&a).abs() < f(&b).abs() {
+        std::mem::swap(&mut a, &mut b);
+    }
+    let (mut c, mut d) = (a, a.x);
+    let mut bisected = true;
+    let floor = 1e-9 * (b.x - a.x).abs();
+    let uncertainty = |a: &Evaluation, b: &Evaluation| {
+        let slope = (f(b) - f(a)) / (b.x - a.x);
+        let allowed = if slope != 0.0 && slope.is_finite() {
+            a.error.max(b.error) / slope.abs()
+        } else {
+            0.0
+        };
+        (allowed, 0.5 * (b.x - a.x).abs())
+    };
+    for _ in 0..MOST_STEPS {
+        let (allowed, half) = uncertainty(&a, &b);
+        if f(&b) == 0.0 {
+            return Ok((b.x, allowed));
+        }
+        if 2.0 * half <= allowed.max(floor) {
+            return Ok((b.x, allowed + half));
+        }
+        let (fa, fb, fc) = (f(&a), f(&b), f(&c));
+        let mut s = if fa != fc && fb != fc {
+            a.x * fb * fc / ((fa - fb) * (fa - fc)) + b.x * fa * fc / ((fb - fa) * (fb - fc)) + c.x * fa * fb / ((fc - fa) * (fc - fb))
+        } else {
+            b.x - fb * (b.x - a.x) / (fb - fa)
+        };
+        let edge = (3.0 * a.x + b.x) / 4.0;
+        let outside = !((s > edge.min(b.x)) && (s < edge.max(b.x)));
+        let slow = if bisected {
+            (s - b.x).abs() >= 0.5 * (b.x - c.x).abs()
+        } else {
+            (s - b.x).abs() >= 0.5 * (c.x - d).abs()
+        };
+        bisected = outside || slow || !s.is_finite();
+        if bisected {
+            s = 0.5 * (a.x + b.x);
+        }
+        let e = eval(s)?;
+        d = c.x;
+        c = b;
+        if (f(&a) < 0.0) != (f(&e) < 0.0) {
+            b = e;
+        } else {
+            a = e;
+        }
+        if f(&a).abs() < f(&b).abs() {
+            std::mem::swap(&mut a, &mut b);
+        }
+    }
+    let (allowed, half) = uncertainty(&a, &b);
+    Ok((b.x, allowed + half))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn exact(x: f64) -> Result<Evaluation, ()> {
+        Ok(Evaluation {
+            x,
+            value: x * x * x,
+            error: 0.0,
+        })
+    }
+
+    #[test]
+    fn the_cube_root_is_found_to_the_tolerance() {
+        let found = seek(0.1, 10.0, 2.0, exact).unwrap();
+        assert!((found.x - 2f64.cbrt()).abs() < 1e-8, "{found:?}");
+        assert!(found.evaluations.len() < 25, "{} evaluations", found.evaluations.len());
+    }
+
+    #[test]
+    fn the_smallest_root_is_taken() {
+        // sin crosses 0.5 at pi/6 and 5 pi/6 in [0, 3]: the scan from the low end takes pi/6.
+        let found = seek(0.0, 3.0, 0.5, |x| Ok::<_, ()>(Evaluation { x, value: x.sin(), error: 0.0 })).unwrap();
+        assert!((found.x - std::f64::consts::FRAC_PI_6).abs() < 1e-8, "{found:?}");
+    }
+
+    #[test]
+    fn an_error_on_the_value_becomes_the_parameters_uncertainty() {
+        // value 10 x with error 0.01: x is known to 0.001.
+        let found = seek(0.0, 1.0, 4.0, |x| {
+            Ok::<_, ()>(Evaluation {
+                x,
+                value: 10.0 * x,
+                error: 0.01,
+            })
+        })
+        .unwrap();
+        assert!((found.x - 0.4).abs() <= found.uncertainty, "{found:?}");
+        assert!(found.uncertainty < 0.003 && found.uncertainty >= 0.001, "{found:?}");
+    }
+
+    #[test]
+    fn a_target_out_of_reach_is_reported_with_what_was_seen() {
+        let e = seek(1.0, 2.0, 100.0, exact).unwrap_err();
+        assert_eq!(e, SeekError::NotInRange { low: 1.0, high: 8.0 });
+    }
+}
