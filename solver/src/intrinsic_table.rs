@@ -12,7 +12,7 @@ pub struct IntrinsicTable {
     h: Vec<f64>,
     j: Vec<f64>,
     slope: Vec<f64>,
-    /// The integral of J dH from h[0] to h[k].
+    /// The integral of J dH from the first point to h.k].
     running: Vec<f64>,
     /// chi mu0: the slope beyond the table, T/(A/m).
     recoil_slope: f64,
@@ -113,7 +113,7 @@ impl IntrinsicTable {
         }
     }
 
-    /// The integral of J dH from h[0] to h.
+    /// The integral of J dH from the first point to h.
     pub fn integral(&self, h: f64) -> f64 {
         let n = self.h.len();
         let beyond = |h0: f64, j0: f64, base: f64| {
