@@ -136,7 +136,7 @@ impl MagnetCurve<'_> {
         let jk = self.jk(k);
         // In u = (H + HcJ) / w: g(u) = mu w u - mu0 HcJ + Jk tanh(u) - b.
         let shift = b + MU0 * k.hcj;
-        let (mut lo, mut hi) = ((shift - jk) / (mu * k.width), (shift + jk) / (mu * k.width));
+        let (lo, hi) = ((shift - jk) / (mu * k.width), (shift + jk) / (mu * k.width));
         if lo >= 20.0 {
             // tanh(u) = 1 to the last bit: the recoil line itself, computed
             // as the knee-less law computes it (the same rounding, so a
@@ -146,31 +146,8 @@ impl MagnetCurve<'_> {
                 dh_db: 1.0 / mu,
             };
         }
-        let mut u = lo;
-        let slope = |u: f64| mu * k.width + jk / u.cosh().powi(2);
-        {
-            let mut last = f64::INFINITY;
-            for _ in 0..200 {
-                let g = mu * k.width * u - MU0 * k.hcj + jk * u.tanh() - b;
-                if g > 0.0 {
-                    hi = u;
-                } else {
-                    lo = u;
-                }
-                let mut next = u - g / slope(u);
-                // Bisect when Newton leaves the bracket or does not halve
-                // |g| (it can cycle between the knee's two bends).
-                if !(next > lo && next < hi) || g.abs() > 0.5 * last {
-                    next = 0.5 * (lo + hi);
-                }
-                last = g.abs();
-                let done = (next - u).abs() <= 1e-14 * (1.0 + u.abs()) || hi - lo <= 1e-14 * (1.0 + u.abs());
-                u = next;
-                if done {
-                    break;
-                }
-            }
-        }
+        let g = |u: f64| (mu * k.width * u - MU0 * k.hcj + jk * u.tanh() - b, mu * k.width + jk / u.cosh().powi(2));
+        let u = bracketed_root(g, lo, hi, lo, 1e-14);
         AxialResponse {
             h: u * k.width - k.hcj,
             dh_db: 1.0 / (mu + jk / k.width / u.cosh().powi(2)),
@@ -217,6 +194,34 @@ impl MagnetCurve<'_> {
     }
 }
 
+/// The root of a rising g in [lo, hi] (g(lo) <= 0 <= g(hi)) from `start`:
+/// Newton's method kept inside the bracket, bisecting whenever a step
+/// leaves it or does not halve |g| (Newton alone can cycle between the two
+/// bends of a knee), until the step or the bracket is below `tol` relative.
+/// `g` returns the value and the slope.
+fn bracketed_root(g: impl Fn(f64) -> (f64, f64), mut lo: f64, mut hi: f64, start: f64, tol: f64) -> f64 {
+    let (mut x, mut last) = (start, f64::INFINITY);
+    for _ in 0..200 {
+        let (v, slope) = g(x);
+        if v > 0.0 {
+            hi = x;
+        } else {
+            lo = x;
+        }
+        let mut next = x - v / slope;
+        if !(next > lo && next < hi) || v.abs() > 0.5 * last {
+            next = 0.5 * (lo + hi);
+        }
+        last = v.abs();
+        let done = (next - x).abs() <= tol * (1.0 + x.abs()) || hi - lo <= tol * (1.0 + x.abs());
+        x = next;
+        if done {
+            break;
+        }
+    }
+    x
+}
+
 /// The root of mu0 H + J(H) = b on a tabulated curve: bracketed from the
 /// recoil line's root `guess` by doubling steps, then Newton's method with
 /// bisection whenever a step does not halve the residual.
@@ -239,27 +244,16 @@ fn table_axial(t: &IntrinsicTable, b: f64, guess: f64) -> AxialResponse {
         hi += step;
         step *= 2.0;
     }
-    let mut h = 0.5 * (lo + hi);
-    let mut last = f64::INFINITY;
-    for _ in 0..200 {
-        let (j, dj) = t.j(h);
-        let r = MU0 * h + j - b;
-        if r > 0.0 {
-            hi = h;
-        } else {
-            lo = h;
-        }
-        let mut next = h - r / (MU0 + dj);
-        if !(next > lo && next < hi) || r.abs() > 0.5 * last {
-            next = 0.5 * (lo + hi);
-        }
-        last = r.abs();
-        let done = (next - h).abs() <= 1e-13 * (1.0 + h.abs()) || hi - lo <= 1e-13 * (1.0 + h.abs());
-        h = next;
-        if done {
-            break;
-        }
-    }
+    let h = bracketed_root(
+        |h| {
+            let (j, dj) = t.j(h);
+            (MU0 * h + j - b, MU0 + dj)
+        },
+        lo,
+        hi,
+        0.5 * (lo + hi),
+        1e-13,
+    );
     AxialResponse {
         h,
         dh_db: 1.0 / (MU0 + t.j(h).1),

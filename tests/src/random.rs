@@ -1,25 +1,21 @@
-//! A small deterministic random generator (SplitMix64, G. Steele et al.,
-//! OOPSLA 2014) for property tests and the fuzz harness: fixed seeds, no
-//! dependencies.
+//! The deterministic random generator of the property tests and the fuzz
+//! harness: study's SplitMix64 (fixed seeds, no dependencies) with the
+//! helpers the tests want.
 
-pub struct Rng(u64);
+pub struct Rng(study::tolerance::Rng);
 
 impl Rng {
     pub fn new(seed: u64) -> Rng {
-        Rng(seed)
+        Rng(study::tolerance::Rng::new(seed))
     }
 
     pub fn next_u64(&mut self) -> u64 {
-        self.0 = self.0.wrapping_add(0x9e37_79b9_7f4a_7c15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xbf58_476d_1ce4_e5b9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94d0_49bb_1331_11eb);
-        z ^ (z >> 31)
+        self.0.next_u64()
     }
 
     /// Uniform in [0, 1).
     pub fn unit(&mut self) -> f64 {
-        (self.next_u64() >> 11) as f64 / (1u64 << 53) as f64
+        self.0.unit()
     }
 
     pub fn range(&mut self, lo: f64, hi: f64) -> f64 {
