@@ -1,16 +1,11 @@
 //! `[seek]` end to end: the smallest cylinder (L = D) that gives 5 mT at
 //! 100 mm from its face, against the closed form's root.
 
-use std::process::Command;
+mod common;
 
-/// B_z on the axis of a uniformly magnetized cylinder (radius a, length L)
-/// at distance z from its face: Br/2 [(z + L)/sqrt((z + L)^2 + a^2) -
-/// z/sqrt(z^2 + a^2)] (E. P. Furlani, Permanent Magnet and
-/// Electromechanical Devices, 2001, sec. 4.3; Derby and Olbert 2010).
+/// B_z at z from the face of a cylinder with L = D = d (common::cylinder_axis_field, Furlani 2001).
 fn axis_field(br: f64, d: f64, z: f64) -> f64 {
-    let a = d / 2.0;
-    let f = |u: f64| u / (u * u + a * a).sqrt();
-    0.5 * br * (f(z + d) - f(z))
+    common::cylinder_axis_field(br, d / 2.0, d, z)
 }
 
 const CASE: &str = r#"
@@ -50,18 +45,8 @@ target = "5 mT"
 
 #[test]
 fn the_smallest_cylinder_for_5_mt_at_100_mm_matches_the_closed_form() {
-    let dir = std::env::temp_dir().join(format!("lodestone-seek-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&dir);
-    std::fs::create_dir_all(&dir).unwrap();
-    let case = dir.join("case.toml");
-    std::fs::write(&case, CASE).unwrap();
-    let out = dir.join("out");
-    let o = Command::new(env!("CARGO_BIN_EXE_lodestone"))
-        .args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()])
-        .output()
-        .unwrap();
-    let text = format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr));
-    assert_eq!(o.status.code(), Some(0), "{text}");
+    let (code, text, out) = common::solve_text("seek", CASE);
+    assert_eq!(code, Some(0), "{text}");
     let json: serde_json::Value = serde_json::from_slice(&std::fs::read(out.join("seek.json")).unwrap()).unwrap();
     let (found, uncertainty) = (json["found"].as_f64().unwrap(), json["uncertainty"].as_f64().unwrap());
     // The closed form's root, by bisection (the field rises with d here).
@@ -86,22 +71,13 @@ fn the_smallest_cylinder_for_5_mt_at_100_mm_matches_the_closed_form() {
     assert!(json["evaluations"].as_array().unwrap().len() < 30);
     assert!(out.join("seek.csv").exists() && out.join("results.json").exists());
     assert!(text.contains("seek: d = "), "{text}");
-    let _ = std::fs::remove_dir_all(&dir);
+    let _ = std::fs::remove_dir_all(out.parent().unwrap());
 }
 
 #[test]
 fn a_target_out_of_reach_exits_1_and_says_what_was_seen() {
-    let dir = std::env::temp_dir().join(format!("lodestone-seek-far-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&dir);
-    std::fs::create_dir_all(&dir).unwrap();
-    let case = dir.join("case.toml");
-    std::fs::write(&case, CASE.replace("range = [5, 100]", "range = [5, 8]")).unwrap();
-    let o = Command::new(env!("CARGO_BIN_EXE_lodestone"))
-        .args(["solve", "--quiet", case.to_str().unwrap(), "-o", dir.join("out").to_str().unwrap()])
-        .output()
-        .unwrap();
-    let text = String::from_utf8_lossy(&o.stderr).to_string();
-    assert_eq!(o.status.code(), Some(1), "{text}");
+    let (code, text, out) = common::solve_text("seek-far", &CASE.replace("range = [5, 100]", "range = [5, 8]"));
+    assert_eq!(code, Some(1), "{text}");
     assert!(text.contains("does not reach") && text.contains("widen seek.range"), "{text}");
-    let _ = std::fs::remove_dir_all(&dir);
+    let _ = std::fs::remove_dir_all(out.parent().unwrap());
 }

@@ -1,14 +1,8 @@
 //! `[tolerance]` end to end: Br uniform within +-3 % on a bare magnet.
 
-use std::process::Command;
+mod common;
 
-/// B_z on the axis of a uniformly magnetized cylinder (radius a, length L)
-/// at distance z from its face (Furlani 2001, sec. 4.3; Derby and Olbert
-/// 2010). Linear in Br, so the field's percentiles are Br's.
-fn axis_field(br: f64, a: f64, l: f64, z: f64) -> f64 {
-    let f = |u: f64| u / (u * u + a * a).sqrt();
-    0.5 * br * (f(z + l) - f(z))
-}
+use common::cylinder_axis_field as axis_field;
 
 fn case(method: &str) -> String {
     format!(
@@ -47,22 +41,14 @@ spread = {{ kbr = {{ plus_minus = "3 %" }} }}
     )
 }
 
+/// Solves a tolerance case: tolerance.json and the terminal text. The
+/// field is linear in Br, so its percentiles are Br's.
 fn run(name: &str, text: &str) -> (serde_json::Value, String) {
-    let dir = std::env::temp_dir().join(format!("lodestone-tol-{name}-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&dir);
-    std::fs::create_dir_all(&dir).unwrap();
-    let case = dir.join("case.toml");
-    std::fs::write(&case, text).unwrap();
-    let out = dir.join("out");
-    let o = Command::new(env!("CARGO_BIN_EXE_lodestone"))
-        .args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()])
-        .output()
-        .unwrap();
-    let text = format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr));
-    assert_eq!(o.status.code(), Some(0), "{text}");
+    let (code, text, out) = common::solve_text(&format!("tol-{name}"), text);
+    assert_eq!(code, Some(0), "{text}");
     let json = serde_json::from_slice(&std::fs::read(out.join("tolerance.json")).unwrap()).unwrap();
     assert!(out.join("tolerance.csv").exists() && out.join("results.json").exists());
-    let _ = std::fs::remove_dir_all(&dir);
+    let _ = std::fs::remove_dir_all(out.parent().unwrap());
     (json, text)
 }
 

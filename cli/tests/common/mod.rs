@@ -1,4 +1,6 @@
 //! Helpers shared by the command-line tests.
+// Each test crate includes this module and uses part of it.
+#![allow(dead_code)]
 
 use std::path::{Path, PathBuf};
 
@@ -13,4 +15,31 @@ pub fn example_cases() -> Vec<PathBuf> {
         .collect();
     cases.sort();
     cases
+}
+
+/// B_z on the axis of a uniformly magnetized cylinder (radius a, length L)
+/// at distance z from its face: Br/2 [(z + L)/sqrt((z + L)^2 + a^2) -
+/// z/sqrt(z^2 + a^2)] (E. P. Furlani, Permanent Magnet and
+/// Electromechanical Devices, 2001, sec. 4.3; Derby and Olbert 2010).
+pub fn cylinder_axis_field(br: f64, a: f64, l: f64, z: f64) -> f64 {
+    let f = |u: f64| u / (u * u + a * a).sqrt();
+    0.5 * br * (f(z + l) - f(z))
+}
+
+/// Runs `lodestone solve --quiet` on a case text in a fresh folder named
+/// after `name`: the exit code, the terminal text, and the output folder
+/// (the caller removes `dir`, its parent, when done).
+pub fn solve_text(name: &str, text: &str) -> (Option<i32>, String, PathBuf) {
+    let dir = std::env::temp_dir().join(format!("lodestone-{name}-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    let case = dir.join("case.toml");
+    std::fs::write(&case, text).unwrap();
+    let out = dir.join("out");
+    let o = std::process::Command::new(env!("CARGO_BIN_EXE_lodestone"))
+        .args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()])
+        .output()
+        .unwrap();
+    let said = format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr));
+    (o.status.code(), said, out)
 }
