@@ -63,18 +63,18 @@ fn interfaces(solution: &Solution, in_set: &dyn Fn(ElementKind) -> bool) -> Vec<
         .collect()
 }
 
-/// Whether the set touches another part anywhere.
-pub fn touches_other_parts(solution: &Solution, in_set: &dyn Fn(ElementKind) -> bool) -> bool {
-    !interfaces(solution, in_set).is_empty()
-}
-
 /// Force [Fx, Fy] (per metre of depth when planar) and torque about
-/// `torque_center` from the air-gap stress on the set's contact interfaces.
-pub fn interface_force(solution: &Solution, in_set: &dyn Fn(ElementKind) -> bool, torque_center: [f64; 2]) -> [f64; 3] {
+/// `torque_center` from the air-gap stress on the set's contact interfaces;
+/// None where the set touches no other part.
+pub fn interface_force(solution: &Solution, in_set: &dyn Fn(ElementKind) -> bool, torque_center: [f64; 2]) -> Option<[f64; 3]> {
     let els = &solution.elements;
     let axisym = solution.symmetry() == Symmetry::Axisymmetric;
+    let found = interfaces(solution, in_set);
+    if found.is_empty() {
+        return None;
+    }
     let mut sum = [0.0; 3];
-    for f in interfaces(solution, in_set) {
+    for f in found {
         let [pa, pb] = f.ends;
         let d = [pb[0] - pa[0], pb[1] - pa[1]];
         let length = d[0].hypot(d[1]);
@@ -111,5 +111,5 @@ pub fn interface_force(solution: &Solution, in_set: &dyn Fn(ElementKind) -> bool
             sum[2] += arm[0] * traction[1] - arm[1] * traction[0];
         }
     }
-    sum
+    Some(sum)
 }

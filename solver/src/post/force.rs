@@ -49,7 +49,12 @@ pub fn force_on(solution: &Solution, parts: &[usize], torque_center: [f64; 2]) -
         }
     }
     let weight = band_weight(solution, &in_set_node, &other, &in_set);
-    let contact = (0..n_nodes).any(|n| in_set_node[n] && other[n]) && super::contact::touches_other_parts(solution, &in_set);
+    // Shared nodes are cheap to test; the interface edges are found only then.
+    let across = (0..n_nodes)
+        .any(|n| in_set_node[n] && other[n])
+        .then(|| super::contact::interface_force(solution, &in_set, torque_center))
+        .flatten();
+    let contact = across.is_some();
     let at_boundary = touches_outer_boundary(solution, &in_set_node);
     let axisym = solution.symmetry() == Symmetry::Axisymmetric;
     let [fx, fy, mut torque] = element_sum(els.n_physical, |e| {
@@ -72,11 +77,7 @@ pub fn force_on(solution: &Solution, parts: &[usize], torque_center: [f64; 2]) -
         });
         sum
     });
-    let [cx, cy, ct] = if contact {
-        super::contact::interface_force(solution, &in_set, torque_center)
-    } else {
-        [0.0; 3]
-    };
+    let [cx, cy, ct] = across.unwrap_or([0.0; 3]);
     let mut f = [fx + cx, fy + cy];
     torque += ct;
     if axisym {
