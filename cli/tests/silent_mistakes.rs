@@ -215,3 +215,18 @@ fn the_field_map_states_its_scale_and_a_clipped_peak() {
         let _ = std::fs::remove_dir_all(&dir);
     }
 }
+
+/// Issue 23, point 9: a common steel designation with no sourced curve is
+/// refused with the closest sourced grade named, where it stands in the
+/// file; one that is the same material as a sourced grade resolves to it.
+#[test]
+fn steel_designations_resolve_or_name_the_closest_sourced_grade() {
+    let plate = |m: &str| {
+        format!("[study]\ngeometry = \"planar\"\ndepth = \"10 mm\"\n{MAGNET}[[part]]\nname = \"plate\"\nmaterial = \"{m}\"\nrect = {{ from = [0, 6], to = [10, 8] }}\n{OUTPUT}")
+    };
+    let (code, text, _) = solve("s1018", &plate("1018"));
+    assert_eq!(code, 2, "{text}");
+    assert!(text.contains("closest sourced grade is 'DC01'") && text.contains(":11:12"), "{text}");
+    let (code, text, _) = solve("s12L14", &plate("12L14"));
+    assert_eq!(code, 0, "{text}");
+}

@@ -11,6 +11,7 @@ mod grade;
 mod library;
 mod magnets;
 mod soft;
+mod sourced_curves;
 
 pub use curves::{bh_points, check_table, h_at, knee, CurveError};
 pub use entry::{Entry, Material};

@@ -1,6 +1,7 @@
 //! Soft-magnetic B-H curves (H in A/m, B in T).
 
 use super::entry::{Entry, Material};
+use super::sourced_curves::SOURCED;
 
 struct Curve {
     name: &'static str,
@@ -22,54 +23,82 @@ const CURVES: &[Curve] = &[
         ],
         source: "TEAM Workshop Problem 13 steel (Nakata and Fujiwara, COMPEL 11(3), 1992; S32): table to 1.8 T as transcribed from a SECONDARY public copy; points above 1.8 T computed from the problem's saturation law J = a H^2 + b H + c (derived)",
     },
-    Curve {
-        name: "M270-35A",
-        family: "non-oriented electrical steel",
-        points: &[[0.0, 0.0], [40.0, 0.5], [80.0, 1.0], [150.0, 1.2], [400.0, 1.35], [1000.0, 1.43], [2500.0, 1.493], [5000.0, 1.606], [10000.0, 1.713], [100000.0, 2.0]],
-        source: "EN 10106 guaranteed minimum B at 2.5, 5 and 10 kA/m (S35, SECONDARY); points below 2.5 kA/m and at 100 kA/m COMPLETED FROM MEMORY (typical fully processed NO steel), not sourced",
-    },
-    Curve {
-        name: "M400-50A",
-        family: "non-oriented electrical steel",
-        points: &[[0.0, 0.0], [45.0, 0.5], [90.0, 1.0], [170.0, 1.2], [450.0, 1.36], [1000.0, 1.45], [2500.0, 1.533], [5000.0, 1.636], [10000.0, 1.743], [100000.0, 2.02]],
-        source: "EN 10106 guaranteed minimum B at 2.5, 5 and 10 kA/m (S35, SECONDARY); points below 2.5 kA/m and at 100 kA/m COMPLETED FROM MEMORY (typical fully processed NO steel), not sourced",
-    },
-    Curve {
-        name: "pure-iron",
-        family: "solid iron",
-        points: &[[0.0, 0.0], [100.0, 1.0], [300.0, 1.35], [1000.0, 1.5], [5000.0, 1.7], [20000.0, 1.9], [100000.0, 2.1]],
-        source: "FROM MEMORY: indicative annealed pure iron (Armco-type), placeholder only; saturation polarization 2.15 T is a handbook value",
-    },
-    Curve {
-        name: "steel-1010",
-        family: "solid steel",
-        points: &[[0.0, 0.0], [500.0, 0.9], [1000.0, 1.2], [2500.0, 1.45], [5000.0, 1.6], [10000.0, 1.75], [50000.0, 2.0], [150000.0, 2.2]],
-        source: "FROM MEMORY: indicative 1008/1010 low-carbon steel as drawn, placeholder only (heats differ 2-3x in H at a given B)",
-    },
-    Curve {
-        name: "grey-cast-iron",
-        family: "cast iron",
-        points: &[[0.0, 0.0], [400.0, 0.2], [1000.0, 0.4], [2000.0, 0.55], [5000.0, 0.75], [10000.0, 0.9], [30000.0, 1.15]],
-        source: "FROM MEMORY: indicative grey cast iron; the 0.2 T at 400 A/m point is a textbook graph reading (S38, low precision)",
-    },
-    Curve {
-        name: "stainless-430",
-        family: "ferritic stainless steel",
-        points: &[[0.0, 0.0], [500.0, 0.6], [1000.0, 0.9], [2500.0, 1.15], [10000.0, 1.35], [50000.0, 1.5]],
-        source: "FROM MEMORY: indicative annealed 430 ferritic stainless, placeholder only (S37 qualitative)",
-    },
 ];
 
+/// Designations that name the same material as a sourced curve (the same
+/// material number, or the AISI name of a European grade): they resolve to
+/// that curve, whose source says which grade it is.
+const SAME_MATERIAL: &[(&str, &str)] = &[
+    ("1.0330", "DC01"),
+    ("1.0347", "DC03"),
+    ("1.0715", "9SMn28k"),
+    ("1.0718", "9SMnPb28"),
+    ("12L14", "9SMnPb28"),
+    ("AISI-12L14", "9SMnPb28"),
+    ("1.4016", "X6Cr17"),
+    ("430", "X6Cr17"),
+    ("AISI-430", "X6Cr17"),
+    ("stainless-430", "X6Cr17"),
+];
+
+/// The curve of this name, or of the sourced grade this designation is.
 pub fn lookup(name: &str) -> Option<Entry> {
-    let c = CURVES.iter().find(|c| c.name == name)?;
+    let target = SAME_MATERIAL.iter().find(|a| a.0 == name).map_or(name, |a| a.1);
+    let (curve, family, points, source) = all().find(|c| c.0 == target)?;
+    let source = if curve == name {
+        source.to_string()
+    } else {
+        format!("'{name}' is the same material as {curve}: {source}")
+    };
     Some(Entry {
-        name: c.name.into(),
-        family: c.family.into(),
-        material: Material::Soft { curve: c.points.to_vec() },
-        source: c.source.into(),
+        name: name.into(),
+        family: family.into(),
+        material: Material::Soft { curve: points.to_vec() },
+        source,
     })
 }
 
+/// The library's curves: the TEAM 13 steel and the generated sourced set.
+fn all() -> impl Iterator<Item = (&'static str, &'static str, &'static [[f64; 2]], &'static str)> {
+    CURVES.iter().map(|c| (c.name, c.family, c.points, c.source)).chain(SOURCED.iter().copied())
+}
+
 pub fn names() -> Vec<String> {
-    CURVES.iter().map(|c| c.name.to_string()).collect()
+    all().map(|c| c.0.to_string()).collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Every curve must pass the solver's own table check, and no curve may
+    /// carry a from-memory label: the library holds sourced curves only.
+    #[test]
+    fn every_curve_is_valid_and_sourced() {
+        for (name, _, points, source) in all() {
+            assert!(super::super::check_table(points).is_ok(), "{name}");
+            assert!(!source.to_lowercase().contains("from memory"), "{name}: {source}");
+        }
+    }
+
+    /// 12L14 is the AISI name of material 1.0718 (9SMnPb28): the same curve,
+    /// with the source saying so; a designation with no sourced curve is not
+    /// quietly given another grade's.
+    #[test]
+    fn designations_of_the_same_material_resolve_to_its_curve() {
+        let Some(Entry {
+            material: Material::Soft { curve },
+            source,
+            ..
+        }) = lookup("12L14")
+        else {
+            panic!("12L14")
+        };
+        assert!(source.contains("same material as 9SMnPb28"));
+        let Some((_, _, points, _)) = all().find(|c| c.0 == "9SMnPb28") else {
+            panic!("9SMnPb28")
+        };
+        assert_eq!(curve, points.to_vec());
+        assert!(lookup("1018").is_none(), "1018 has no sourced curve; the case reader names the closest");
+    }
 }
