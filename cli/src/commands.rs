@@ -4,6 +4,7 @@
 use crate::case::suggest;
 use crate::output;
 use crate::output::folder::OutputFolder;
+use crate::output::svg::ChartAxis;
 use crate::progress::Progress;
 use crate::run::{self, Failure, Limits, Loaded, Outcome, Variant};
 use crate::sweep;
@@ -189,8 +190,13 @@ fn solve_sweep(loaded: &Loaded, variants: &[Variant], folder: &OutputFolder, lim
         .collect();
     let rows = sweep::rows_of_run(out, &labels).map_err(|e| Failure::Input(format!("error: {e}\n")))?;
     if !rows.is_empty() {
+        // The charts follow the case's [output] chart keys (read from the first variant).
+        let axis = variants
+            .first()
+            .and_then(|v| run::resolve(loaded, &v.params, limits).ok())
+            .map_or_else(ChartAxis::default, |r| ChartAxis::of(&r.model.output));
         folder
-            .commit(Path::new(""), &sweep::summary_files(&rows))
+            .commit(Path::new(""), &sweep::summary_files(&rows, &axis))
             .map_err(|e| Failure::Input(format!("error: {e}\n")))?;
     }
     println!(
@@ -440,7 +446,7 @@ pub fn materials(name: Option<&str>, plot: Option<PathBuf>) -> i32 {
 pub fn merge(folders: &[PathBuf], out: &Path) -> i32 {
     match sweep::rows_from_folders(folders) {
         Ok(rows) => {
-            let written = OutputFolder::open(out).and_then(|f| f.commit(Path::new(""), &sweep::summary_files(&rows)));
+            let written = OutputFolder::open(out).and_then(|f| f.commit(Path::new(""), &sweep::summary_files(&rows, &ChartAxis::default())));
             if let Err(e) = written {
                 eprintln!("error: {e}");
                 return 2;

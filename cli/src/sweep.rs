@@ -2,6 +2,7 @@
 //! are already whole, and the sweep table built from variant folders (so a
 //! sharded run and an unsharded one give the same table).
 
+use crate::output::svg::ChartAxis;
 use crate::run::Variant;
 use serde_json::Value;
 use std::collections::BTreeMap;
@@ -230,7 +231,7 @@ pub fn table(rows: &[Row]) -> String {
 
 /// Charts of each value against the first swept parameter, one line per
 /// value of the second (if any): (file name, value name, SVG).
-pub fn charts(rows: &[Row]) -> Vec<(String, String, String)> {
+pub fn charts(rows: &[Row], axis: &ChartAxis) -> Vec<(String, String, String)> {
     let Some(first) = rows.first() else { return Vec::new() };
     let Some((x_name, _)) = first.swept.first() else { return Vec::new() };
     let second = first.swept.get(1).map(|s| s.0.clone());
@@ -249,7 +250,7 @@ pub fn charts(rows: &[Row]) -> Vec<(String, String, String)> {
                 None => groups.push((key, vec![[x, y]])),
             }
         }
-        let series = groups
+        let series: Vec<(String, Vec<[f64; 2]>)> = groups
             .into_iter()
             .map(|(k, mut pts)| {
                 pts.sort_by(|a, b| a[0].total_cmp(&b[0]));
@@ -257,14 +258,18 @@ pub fn charts(rows: &[Row]) -> Vec<(String, String, String)> {
             })
             .collect();
         let y_label = header(rows, name, "(", ")");
+        let values: Vec<f64> = series.iter().flat_map(|s| s.1.iter().map(|p| p[1])).collect();
+        let flux = rows.iter().find_map(|r| r.units.get(name)).is_some_and(|u| u == "T");
         let title = format!("{name} against {x_name}");
         let svg = crate::output::svg::chart(&crate::output::svg::Chart {
             title: &title,
             x_label: x_name,
             y_label: &y_label,
             series,
-            scatter: Vec::new(),
-            marks: Vec::new(),
+            marks: if flux { axis.implant_mark(&values, 1.0) } else { Vec::new() },
+            log_y: axis.log_for(values.iter().copied()),
+            y_range: if flux { axis.flux_range_in(1.0) } else { None },
+            ..Default::default()
         });
         out.push((format!("sweep-{}.svg", name.replace('.', "-")), name.clone(), svg));
     }
@@ -311,8 +316,8 @@ pub fn report(rows: &[Row], charts: &[(String, String, String)]) -> String {
 }
 
 /// Every file that summarizes a sweep: the table, the charts and the report.
-pub fn summary_files(rows: &[Row]) -> crate::output::FileSet {
-    let charts = charts(rows);
+pub fn summary_files(rows: &[Row], axis: &ChartAxis) -> crate::output::FileSet {
+    let charts = charts(rows, axis);
     let mut files: crate::output::FileSet = vec![
         ("sweep.csv".into(), table(rows).into_bytes()),
         ("sweep-report.md".into(), report(rows, &charts).into_bytes()),

@@ -209,6 +209,10 @@ fn the_field_map_states_its_scale_and_a_clipped_peak() {
         assert_eq!(o.status.code(), Some(0), "{}", String::from_utf8_lossy(&o.stderr));
         let svg = std::fs::read_to_string(out.join("field-map.svg")).unwrap();
         assert!(svg.contains(want), "{name}: no '{want}' in the colour bar");
+        // Dimensions: a scale bar in the case's unit; the open boundary's
+        // rim drawn as a path of the domain's outline, not as cell steps.
+        assert!(svg.contains("class=\"scale-bar\"") && svg.contains(" mm</text>"), "{name}: no scale bar");
+        assert!(svg.contains("class=\"domain-edge\""), "{name}: the rim is not drawn as a line");
         if name == "range" {
             assert!(svg.contains("peak ") && svg.contains("(local)"), "the clipped peak is not named");
         }

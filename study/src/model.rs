@@ -221,6 +221,11 @@ pub struct OutputFlags {
     pub log_scale: bool,
     /// |B| range of the field map's colours, T (None: chosen from the field).
     pub field_range: Option<(f64, f64)>,
+    /// Charts' y axes: Some(true) log, Some(false) linear, None chosen per
+    /// chart (log where positive values span more than two decades).
+    pub chart_log: Option<bool>,
+    /// |B| range of the charts of flux density, T.
+    pub chart_range: Option<(f64, f64)>,
 }
 
 impl Model {

@@ -69,6 +69,7 @@ pub fn field_map(model: &Model, sol: &Solution) -> String {
         }
     }
     let mut sorted: Vec<f64> = grid.iter().copied().filter(|v| v.is_finite()).collect();
+    spread_into_empty_cells(&mut grid, nx, ny);
     sorted.sort_by(f64::total_cmp);
     let peak = sorted.last().copied().unwrap_or(0.0);
     let scale_of = ColourScale::new(model, &sorted);
@@ -112,6 +113,7 @@ pub fn field_map(model: &Model, sol: &Solution) -> String {
         }
     }
     s += "</g>";
+    s += &domain_edge(mesh, &tx, pw, ph);
     s += &flux_lines(model, sol, &shown, &tx);
     s += "<g class=\"outlines\" stroke=\"white\" stroke-width=\"1.2\">";
     for (e, tag) in &mesh.boundary {
@@ -141,8 +143,106 @@ pub fn field_map(model: &Model, sol: &Solution) -> String {
             "x to the right, y up"
         }
     );
+    s += &scale_bar(pw, ph, scale, model.length_unit.1, &model.length_unit.0);
     s += "</svg>\n";
     s
+}
+
+/// A scale bar under the map, right-aligned: a round length (1, 2 or 5
+/// times a power of ten in the case's length unit) near a fifth of the
+/// view's width, drawn to scale and labelled.
+fn scale_bar(pw: f64, ph: f64, px_per_m: f64, unit_m: f64, unit: &str) -> String {
+    let target = pw / 5.0 / px_per_m / unit_m;
+    let mag = 10f64.powf(target.log10().floor());
+    let len = [5.0, 2.0, 1.0].iter().map(|m| m * mag).find(|l| *l <= target).unwrap_or(mag);
+    let px = len * unit_m * px_per_m;
+    let (x0, y) = (pw - px - 10.0, ph + 16.0);
+    format!(
+        "<g class=\"scale-bar\"><path d=\"M{x0:.1},{:.1}V{y:.1}H{:.1}V{:.1}\" fill=\"none\" stroke=\"#222\" stroke-width=\"1.5\"/><text x=\"{:.1}\" y=\"{:.1}\" text-anchor=\"end\">{} {unit}</text></g>",
+        y - 5.0,
+        x0 + px,
+        y - 5.0,
+        x0 - 6.0,
+        y + 4.0,
+        format!("{}", (len * 1e6).round() / 1e6)
+    )
+}
+
+/// Gives each empty cell (its centre outside the domain) next to a filled
+/// one that neighbour's value, twice over: the cells the domain's edge cuts
+/// are then coloured to their far side, and the mask of `domain_edge` draws
+/// the edge itself as a smooth line instead of a staircase of cells.
+fn spread_into_empty_cells(grid: &mut [f64], nx: usize, ny: usize) {
+    for _ in 0..2 {
+        let before = grid.to_vec();
+        for j in 0..ny {
+            for i in 0..nx {
+                if before[j * nx + i].is_finite() {
+                    continue;
+                }
+                let near = [(i.wrapping_sub(1), j), (i + 1, j), (i, j.wrapping_sub(1)), (i, j + 1)];
+                if let Some(v) = near
+                    .iter()
+                    .filter(|(a, b)| *a < nx && *b < ny)
+                    .map(|(a, b)| before[b * nx + a])
+                    .find(|v| v.is_finite())
+                {
+                    grid[j * nx + i] = v;
+                }
+            }
+        }
+    }
+}
+
+/// White over everything outside the domain (the view's rectangle less the
+/// domain's outline, even-odd), and the outline drawn: the open boundary's
+/// rim as a circle, not as the cells' staircase.
+fn domain_edge(mesh: &mesher::Mesh, tx: &dyn Fn([f64; 2]) -> (f64, f64), pw: f64, ph: f64) -> String {
+    let loops = outline_loops(mesh);
+    if loops.is_empty() {
+        return String::new();
+    }
+    let path: String = loops
+        .iter()
+        .map(|l| {
+            let pts: Vec<String> = l.iter().map(|&n| tx(mesh.nodes[n])).map(|(x, y)| format!("{x:.1},{y:.1}")).collect();
+            format!("M{}Z", pts.join("L"))
+        })
+        .collect();
+    let rect = format!("M-2,-2H{:.1}V{:.1}H-2Z", pw + 2.0, ph + 2.0);
+    format!("<path class=\"outside\" fill=\"white\" fill-rule=\"evenodd\" d=\"{rect}{path}\"/><path class=\"domain-edge\" fill=\"none\" stroke=\"#888\" stroke-width=\"1\" d=\"{path}\"/>")
+}
+
+/// The domain's outer outline as closed loops of node indices: the edges on
+/// the rim, the flux-parallel box and the axis, chained end to end.
+fn outline_loops(mesh: &mesher::Mesh) -> Vec<Vec<usize>> {
+    let mut next: std::collections::HashMap<usize, Vec<usize>> = std::collections::HashMap::new();
+    for (e, tag) in &mesh.boundary {
+        if matches!(tag, BoundaryTag::Rim | BoundaryTag::Outer | BoundaryTag::Axis) {
+            next.entry(e[0]).or_default().push(e[1]);
+            next.entry(e[1]).or_default().push(e[0]);
+        }
+    }
+    let mut used = std::collections::HashSet::new();
+    let mut loops = Vec::new();
+    let mut starts: Vec<usize> = next.keys().copied().collect();
+    starts.sort_unstable();
+    for start in starts {
+        if used.contains(&start) {
+            continue;
+        }
+        let (mut l, mut at) = (vec![start], start);
+        used.insert(start);
+        while let Some(&n) = next.get(&at).and_then(|v| v.iter().find(|n| !used.contains(*n))) {
+            used.insert(n);
+            l.push(n);
+            at = n;
+        }
+        if l.len() > 2 {
+            loops.push(l);
+        }
+    }
+    loops
 }
 
 /// How |B| maps to a colour: linear from 0, or logarithmic over three

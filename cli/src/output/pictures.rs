@@ -1,6 +1,6 @@
 //! Every picture of a solved study, as (file name, title, SVG text).
 
-use super::svg::{chart, Chart};
+use super::svg::{chart, Chart, ChartAxis};
 use solver::Solution;
 use study::materials::{bh_points, h_at, Material};
 use study::model::{Model, ProbeShape};
@@ -23,11 +23,9 @@ pub fn pictures(model: &Model, sol: &Solution, r: &Results) -> Vec<(String, Stri
             .zip(&pr.bmag)
             .map(|(q, b)| [(q[0] - start[0]).hypot(q[1] - start[1]) / f, b * 1e3])
             .collect();
-        let marks = if pr.bmag.iter().any(|&b| b < study::checks::IMPLANT_LEVEL) && pr.bmag.iter().any(|&b| b > study::checks::IMPLANT_LEVEL) {
-            vec![(0.5, "0.5 mT".to_string())]
-        } else {
-            Vec::new()
-        };
+        let axis = ChartAxis::of(&model.output);
+        let values: Vec<f64> = pts.iter().map(|p| p[1]).collect();
+        let marks = axis.implant_mark(&values, 1e3);
         let title = format!("probe {}: |B| along the line", p.name);
         let svg = chart(&Chart {
             title: &title,
@@ -36,6 +34,9 @@ pub fn pictures(model: &Model, sol: &Solution, r: &Results) -> Vec<(String, Stri
             series: vec![("|B|".into(), pts)],
             scatter: Vec::new(),
             marks,
+            log_y: axis.log_for(values.iter().copied()),
+            y_range: axis.flux_range_in(1e3),
+            ..Default::default()
         });
         out.push((format!("probe-{}.svg", p.name), title, svg));
     }
@@ -57,6 +58,7 @@ pub fn pictures(model: &Model, sol: &Solution, r: &Results) -> Vec<(String, Stri
                     series: vec![("B-H curve".into(), line)],
                     scatter: vec![("mean and peak |B|".into(), ops)],
                     marks: Vec::new(),
+                    ..Default::default()
                 });
                 out.push((format!("bh-{}.svg", p.name), title, svg));
             }
@@ -77,6 +79,7 @@ pub fn pictures(model: &Model, sol: &Solution, r: &Results) -> Vec<(String, Stri
                     series: vec![("recoil line to the knee".into(), line)],
                     scatter: vec![("working points".into(), pts)],
                     marks: Vec::new(),
+                    ..Default::default()
                 });
                 out.push((format!("magnet-{}.svg", p.name), title, svg));
             }

@@ -104,6 +104,7 @@ pub fn mesh_svg(model: &Model, mesh: &Mesh) -> String {
 }
 
 /// A line chart: axes, ticks, labels and one or more series.
+#[derive(Default)]
 pub struct Chart<'a> {
     pub title: &'a str,
     pub x_label: &'a str,
@@ -113,6 +114,68 @@ pub struct Chart<'a> {
     pub scatter: Vec<(String, Vec<[f64; 2]>)>,
     /// Horizontal reference lines (value, label).
     pub marks: Vec<(f64, String)>,
+    /// A logarithmic y axis (values at or below zero are left out): fields
+    /// that fall over decades with distance stay readable at the far end.
+    pub log_y: bool,
+    /// The y axis's range, in the chart's units (None: from the data).
+    /// Values beyond it are drawn at its edge.
+    pub y_range: Option<[f64; 2]>,
+}
+
+/// How a chart's y axis is scaled, from `[output] chart_scale` and
+/// `chart_range`.
+#[derive(Clone, Copy, Debug, Default)]
+pub struct ChartAxis {
+    /// "log": always log; "linear": never; None ("auto"): log when every
+    /// value is positive and they span more than two decades.
+    pub log: Option<bool>,
+    /// Flux-density range, T, for charts of flux density.
+    pub flux_range: Option<(f64, f64)>,
+}
+
+impl ChartAxis {
+    /// The axis settings of a case's `[output]`.
+    pub fn of(o: &study::model::OutputFlags) -> Self {
+        ChartAxis {
+            log: o.chart_log,
+            flux_range: o.chart_range,
+        }
+    }
+
+    /// The 0.5 mT implant level as a mark, where a flux-density chart's
+    /// values (in units of `per_tesla`) or its range reach across it.
+    pub fn implant_mark(&self, values: &[f64], per_tesla: f64) -> Vec<(f64, String)> {
+        let level = study::checks::IMPLANT_LEVEL * per_tesla;
+        let (lo, hi) = values
+            .iter()
+            .filter(|v| v.is_finite())
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &v| (a.min(v), b.max(v)));
+        let (lo, hi) = self.flux_range_in(per_tesla).map_or((lo, hi), |r| (r[0], r[1]));
+        if lo <= level && level <= hi {
+            vec![(level, "0.5 mT".to_string())]
+        } else {
+            Vec::new()
+        }
+    }
+    /// Whether values like these are drawn on a log axis.
+    pub fn log_for(&self, values: impl Iterator<Item = f64>) -> bool {
+        self.log.unwrap_or_else(|| {
+            let (mut lo, mut hi) = (f64::INFINITY, 0.0f64);
+            for v in values.filter(|v| v.is_finite()) {
+                if v <= 0.0 {
+                    return false;
+                }
+                (lo, hi) = (lo.min(v), hi.max(v));
+            }
+            hi > 100.0 * lo
+        })
+    }
+
+    /// The y range of a flux-density chart drawn in units of `per_tesla`
+    /// (1e3 for mT).
+    pub fn flux_range_in(&self, per_tesla: f64) -> Option<[f64; 2]> {
+        self.flux_range.map(|(lo, hi)| [lo * per_tesla, hi * per_tesla])
+    }
 }
 
 fn nice_ticks(lo: f64, hi: f64) -> Vec<f64> {
@@ -126,12 +189,25 @@ fn nice_ticks(lo: f64, hi: f64) -> Vec<f64> {
 
 pub fn chart(c: &Chart) -> String {
     let (w, h, ml, mr, mt, mb) = (720.0, 440.0, 80.0, 30.0, 40.0, 60.0);
-    let pts = c
-        .series
-        .iter()
-        .flat_map(|s| s.1.iter().copied())
-        .filter(|p| p[0].is_finite() && p[1].is_finite());
-    let (mut lo, mut hi) = bbox(pts.chain(c.marks.iter().map(|m| [f64::NAN, m.0]).filter(|p| p[1].is_finite())));
+    // Every y is drawn through `ty`: log10 on a log axis (None at or below
+    // zero), clamped into the range when one is given.
+    let range = c.y_range.map(|r| {
+        if c.log_y {
+            [r[0].max(f64::MIN_POSITIVE).log10(), r[1].max(f64::MIN_POSITIVE).log10()]
+        } else {
+            r
+        }
+    });
+    let ty = |y: f64| -> Option<f64> {
+        let t = if c.log_y { (y > 0.0).then(|| y.log10())? } else { y };
+        t.is_finite().then(|| range.map_or(t, |r| t.clamp(r[0], r[1])))
+    };
+    let at = |p: &[f64; 2]| if p[0].is_finite() { ty(p[1]).map(|y| [p[0], y]) } else { None };
+    let pts = c.series.iter().chain(&c.scatter).flat_map(|s| s.1.iter().filter_map(at));
+    let (mut lo, mut hi) = bbox(pts.chain(c.marks.iter().filter_map(|m| ty(m.0)).map(|y| [f64::NAN, y])));
+    if let Some(r) = range {
+        (lo[1], hi[1]) = (r[0], r[1]);
+    }
     if !lo[0].is_finite() {
         lo = [0.0, 0.0];
         hi = [1.0, 1.0];
@@ -168,7 +244,12 @@ pub fn chart(c: &Chart) -> String {
             fmt_tick(t)
         );
     }
-    for t in nice_ticks(lo[1], hi[1]) {
+    let y_ticks: Vec<(f64, f64)> = if c.log_y {
+        log_ticks(lo[1], hi[1])
+    } else {
+        nice_ticks(lo[1], hi[1]).into_iter().map(|t| (t, t)).collect()
+    };
+    for (t, label) in y_ticks {
         s += &format!(
             "<line x1=\"{0}\" y1=\"{1:.1}\" x2=\"{2}\" y2=\"{1:.1}\" stroke=\"#222\"/><text x=\"{3}\" y=\"{4:.1}\" text-anchor=\"end\">{5}</text>",
             ml - 5.0,
@@ -176,7 +257,7 @@ pub fn chart(c: &Chart) -> String {
             ml,
             ml - 8.0,
             sy(t) + 4.0,
-            fmt_tick(t)
+            fmt_tick(label)
         );
     }
     s += &format!(
@@ -186,20 +267,17 @@ pub fn chart(c: &Chart) -> String {
         escape(c.x_label)
     );
     s += &format!(
-        "<text class=\"ylabel\" transform=\"translate(18 {}) rotate(-90)\" text-anchor=\"middle\">{}</text>",
+        "<text class=\"ylabel\" transform=\"translate(18 {}) rotate(-90)\" text-anchor=\"middle\">{}{}</text>",
         (mt + h - mb) / 2.0,
-        escape(c.y_label)
+        escape(c.y_label),
+        if c.log_y { ", log scale" } else { "" }
     );
-    for (value, label) in &c.marks {
-        s += &format!("<line x1=\"{ml}\" y1=\"{0:.1}\" x2=\"{1}\" y2=\"{0:.1}\" stroke=\"#aa3377\" stroke-dasharray=\"6 4\"/><text x=\"{2}\" y=\"{3:.1}\" text-anchor=\"end\" fill=\"#aa3377\">{4}</text>", sy(*value), w - mr, w - mr - 4.0, sy(*value) - 4.0, escape(label));
+    for (value, label) in c.marks.iter().filter_map(|(v, l)| Some((ty(*v)?, l))) {
+        s += &format!("<line x1=\"{ml}\" y1=\"{0:.1}\" x2=\"{1}\" y2=\"{0:.1}\" stroke=\"#aa3377\" stroke-dasharray=\"6 4\"/><text x=\"{2}\" y=\"{3:.1}\" text-anchor=\"end\" fill=\"#aa3377\">{4}</text>", sy(value), w - mr, w - mr - 4.0, sy(value) - 4.0, escape(label));
     }
     for (k, (name, pts)) in c.series.iter().enumerate() {
         let colour = part_colour(Some(k));
-        let path: Vec<String> = pts
-            .iter()
-            .filter(|p| p[0].is_finite() && p[1].is_finite())
-            .map(|p| format!("{:.1},{:.1}", sx(p[0]), sy(p[1])))
-            .collect();
+        let path: Vec<String> = pts.iter().filter_map(at).map(|p| format!("{:.1},{:.1}", sx(p[0]), sy(p[1]))).collect();
         s += &format!(
             "<polyline class=\"series\" fill=\"none\" stroke=\"{colour}\" stroke-width=\"2\" points=\"{}\"/>",
             path.join(" ")
@@ -214,7 +292,7 @@ pub fn chart(c: &Chart) -> String {
     for (k, (name, pts)) in c.scatter.iter().enumerate() {
         let colour = part_colour(Some(c.series.len() + k));
         s += "<g class=\"scatter\">";
-        for p in pts.iter().filter(|p| p[0].is_finite() && p[1].is_finite()) {
+        for p in pts.iter().filter_map(at) {
             s += &format!("<circle cx=\"{:.1}\" cy=\"{:.1}\" r=\"2\" fill=\"{colour}\"/>", sx(p[0]), sy(p[1]));
         }
         s += &format!(
@@ -226,6 +304,23 @@ pub fn chart(c: &Chart) -> String {
     }
     s += "</svg>\n";
     s
+}
+
+/// Ticks of a log axis between 10^lo and 10^hi: (position, value) at each
+/// decade, and at 2 and 5 times it where the axis spans under three decades.
+fn log_ticks(lo: f64, hi: f64) -> Vec<(f64, f64)> {
+    let few = hi - lo < 3.0;
+    let mut out = Vec::new();
+    for k in (lo.floor() as i32)..=(hi.ceil() as i32) {
+        for m in if few { &[1.0, 2.0, 5.0][..] } else { &[1.0][..] } {
+            let v = m * 10f64.powi(k);
+            let t = v.log10();
+            if t >= lo - 1e-9 && t <= hi + 1e-9 {
+                out.push((t, v));
+            }
+        }
+    }
+    out
 }
 
 fn fmt_tick(v: f64) -> String {
@@ -259,6 +354,7 @@ pub fn material_plot(e: &study::materials::Entry) -> String {
                 series: vec![("interpolated (Fritsch-Carlson)".into(), pts)],
                 scatter: vec![("table points".into(), table)],
                 marks: Vec::new(),
+                ..Default::default()
             })
         }
         Material::Magnet(g) => {
@@ -274,6 +370,7 @@ pub fn material_plot(e: &study::materials::Entry) -> String {
                 series,
                 scatter: Vec::new(),
                 marks: Vec::new(),
+                ..Default::default()
             })
         }
         _ => chart(&Chart {
@@ -283,6 +380,59 @@ pub fn material_plot(e: &study::materials::Entry) -> String {
             series: Vec::new(),
             scatter: Vec::new(),
             marks: Vec::new(),
+            ..Default::default()
         }),
+    }
+}
+
+#[cfg(test)]
+mod chart_tests {
+    use super::*;
+
+    /// A field falling from 300 mT to 0.1 mT with distance: the automatic
+    /// axis goes log, and the 0.5 mT level (far below a linear axis's first
+    /// tick) gets its own labelled line (issue 23, point 5).
+    #[test]
+    fn a_field_over_decades_gets_a_log_axis_and_the_implant_level() {
+        let pts: Vec<[f64; 2]> = (0..50).map(|i| [i as f64, 300.0 * (-(i as f64) / 6.0).exp().max(1e-4) + 0.1]).collect();
+        let values: Vec<f64> = pts.iter().map(|p| p[1]).collect();
+        let axis = ChartAxis::default();
+        assert!(axis.log_for(values.iter().copied()));
+        assert!(!axis.log_for([1.0, 50.0].into_iter()), "under two decades stays linear");
+        assert!(!axis.log_for([-1.0, 500.0].into_iter()), "a sign change stays linear");
+        let marks = axis.implant_mark(&values, 1e3);
+        assert_eq!(marks.len(), 1);
+        let svg = chart(&Chart {
+            title: "t",
+            x_label: "x",
+            y_label: "|B| (mT)",
+            series: vec![("b".into(), pts)],
+            marks,
+            log_y: true,
+            ..Default::default()
+        });
+        assert!(svg.contains("log scale") && svg.contains("0.5 mT"));
+        for label in [">1<", ">10<", ">100<"] {
+            assert!(svg.contains(label), "no decade tick {label}");
+        }
+    }
+
+    /// A chart range clamps the axis to it, in the chart's units, whatever
+    /// the data span.
+    #[test]
+    fn a_chart_range_sets_the_axis() {
+        let axis = ChartAxis {
+            log: Some(false),
+            flux_range: Some((0.0, 0.2)),
+        };
+        let r = axis.flux_range_in(1e3).unwrap();
+        assert_eq!(r, [0.0, 200.0]);
+        let svg = chart(&Chart {
+            series: vec![("b".into(), vec![[0.0, 10.0], [1.0, 900.0]])],
+            y_range: Some(r),
+            ..Default::default()
+        });
+        assert!(svg.contains(">200<") && !svg.contains(">900<"));
+        assert_eq!(log_ticks(0.0, 1.0).iter().map(|t| t.1).collect::<Vec<_>>(), vec![1.0, 2.0, 5.0, 10.0]);
     }
 }

@@ -13,7 +13,7 @@ use study::quantity::{Unit, ValueName};
 /// Keys of `[[expect]]`.
 const EXPECT: &[&str] = &["value", "min", "max", "between", "near", "tolerance"];
 /// Keys of `[output]`.
-const OUTPUT: &[&str] = &["vtk", "plots", "report", "csv", "field_scale", "field_range"];
+const OUTPUT: &[&str] = &["vtk", "plots", "report", "csv", "field_scale", "field_range", "chart_scale", "chart_range"];
 
 /// The unit kind a bound on a value of this unit may be written in.
 fn bound_kind(unit: Unit) -> Option<Kind> {
@@ -166,42 +166,49 @@ pub(super) fn output(top: &Fields, ctx: &Context) -> Result<OutputFlags, Diagnos
         plots: flag("plots")?,
         report: flag("report")?,
         csv: flag("csv")?,
-        log_scale: match o.get("field_scale") {
-            None => false,
-            Some(v) => match v.str("output.field_scale")? {
-                "linear" => false,
-                "log" => true,
-                other => {
-                    return Err(Diagnostic::new(
-                        format!("output.field_scale: '{other}' is not a scale; use \"linear\" or \"log\""),
-                        Some(v.span.clone()),
-                    )
-                    .suggest(other, ["linear", "log"]))
-                }
-            },
-        },
-        field_range: match o.get("field_range") {
-            None => None,
-            Some(r) => {
-                let a = r.array("output.field_range")?;
-                let bad = || {
-                    Diagnostic::new(
-                        "output.field_range: give [low, high] flux densities, low above 0 and below high, such as [\"0.5 mT\", \"1.5 T\"]",
-                        Some(r.span.clone()),
-                    )
-                };
-                if a.len() != 2 {
-                    return Err(bad());
-                }
-                let (lo, hi) = (
-                    ctx.positive(&a[0], Kind::FluxDensity, "output.field_range")?,
-                    ctx.positive(&a[1], Kind::FluxDensity, "output.field_range")?,
-                );
-                if lo >= hi {
-                    return Err(bad());
-                }
-                Some((lo, hi))
-            }
-        },
+        log_scale: scale(&o, "field_scale", &["linear", "log"])?.unwrap_or(false),
+        field_range: flux_range(&o, "field_range", ctx)?,
+        chart_log: scale(&o, "chart_scale", &["auto", "linear", "log"])?,
+        chart_range: flux_range(&o, "chart_range", ctx)?,
     })
+}
+
+/// A scale key: Some(true) for "log", Some(false) for "linear", None for
+/// "auto" or no key.
+fn scale(o: &Fields, key: &str, allowed: &[&str]) -> Result<Option<bool>, Diagnostic> {
+    let Some(v) = o.get(key) else { return Ok(None) };
+    match v.str(&format!("output.{key}"))? {
+        "linear" => Ok(Some(false)),
+        "log" => Ok(Some(true)),
+        "auto" if allowed.contains(&"auto") => Ok(None),
+        other => Err(Diagnostic::new(
+            format!(
+                "output.{key}: '{other}' is not a scale; use {}",
+                allowed.iter().map(|a| format!("\"{a}\"")).collect::<Vec<_>>().join(" or ")
+            ),
+            Some(v.span.clone()),
+        )
+        .suggest(other, allowed.iter().copied())),
+    }
+}
+
+/// A flux-density range key, `[low, high]` with 0 < low < high.
+fn flux_range(o: &Fields, key: &str, ctx: &Context) -> Result<Option<(f64, f64)>, Diagnostic> {
+    let Some(r) = o.get(key) else { return Ok(None) };
+    let a = r.array(&format!("output.{key}"))?;
+    let bad = || {
+        Diagnostic::new(
+            format!("output.{key}: give [low, high] flux densities, low above 0 and below high, such as [\"0.5 mT\", \"1.5 T\"]"),
+            Some(r.span.clone()),
+        )
+    };
+    if a.len() != 2 {
+        return Err(bad());
+    }
+    let name = format!("output.{key}");
+    let (lo, hi) = (ctx.positive(&a[0], Kind::FluxDensity, &name)?, ctx.positive(&a[1], Kind::FluxDensity, &name)?);
+    if lo >= hi {
+        return Err(bad());
+    }
+    Ok(Some((lo, hi)))
 }
