@@ -278,7 +278,16 @@ pub fn collect_files(model: &Model, sol: &solver::Solution, results: &Results, f
         }
     }
     if model.output.report {
-        files.push(("report.md".into(), output::report::report(model, results, &shown).into_bytes()));
+        let md = output::report::report(model, results, &shown);
+        let svg = |name: &str| {
+            files
+                .iter()
+                .find(|(n, _)| n.as_os_str() == name)
+                .map(|(_, b)| String::from_utf8_lossy(b).into_owned())
+        };
+        let html = output::html::page(&md, &svg);
+        files.push(("report.md".into(), md.into_bytes()));
+        files.push(("report.html".into(), html.into_bytes()));
     }
     Ok(files)
 }

@@ -133,6 +133,22 @@ fn field_vtu_reads_back_with_its_arrays() {
     }
     let point = names(&piece.data.point);
     assert!(point.iter().any(|(n, len)| n == "potential" && *len == piece.num_points()), "{point:?}");
+    // The names behind the numbers, as VTK string arrays in the field data
+    // (byte codes, each string ended by 0; VTK's own reader gives them back
+    // as ['magnet'] and ['air', 'N38']).
+    let xml = std::fs::read_to_string(out.join("field.vtu")).unwrap();
+    let strings = |name: &str| -> Vec<String> {
+        let start = xml.find(&format!("Name=\"{name}\"")).unwrap_or_else(|| panic!("no field array {name}"));
+        let body = &xml[start..][xml[start..].find('>').unwrap() + 1..];
+        let codes: Vec<u8> = body[..body.find('<').unwrap()].split_whitespace().map(|c| c.parse().unwrap()).collect();
+        codes
+            .split(|c| *c == 0)
+            .filter(|s| !s.is_empty())
+            .map(|s| String::from_utf8(s.to_vec()).unwrap())
+            .collect()
+    };
+    assert_eq!(strings("part_names"), ["magnet"]);
+    assert_eq!(strings("material_names"), ["air", "N38"]);
     let _ = std::fs::remove_dir_all(&out);
 }
 

@@ -164,7 +164,7 @@ fn scale_bar(pw: f64, ph: f64, px_per_m: f64, unit_m: f64, unit: &str) -> String
         y - 5.0,
         x0 - 6.0,
         y + 4.0,
-        format!("{}", (len * 1e6).round() / 1e6)
+        (len * 1e6).round() / 1e6
     )
 }
 

@@ -8,6 +8,7 @@ pub mod csv;
 pub mod engineering;
 pub mod fieldmap;
 pub mod folder;
+pub mod html;
 pub mod pictures;
 pub mod report;
 pub mod svg;

@@ -36,7 +36,6 @@ pub fn pictures(model: &Model, sol: &Solution, r: &Results) -> Vec<(String, Stri
             marks,
             log_y: axis.log_for(values.iter().copied()),
             y_range: axis.flux_range_in(1e3),
-            ..Default::default()
         });
         out.push((format!("probe-{}.svg", p.name), title, svg));
     }

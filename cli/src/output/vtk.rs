@@ -5,7 +5,8 @@ use mesher::{Mesh, Region};
 use solver::Solution;
 use vtkio::model::{Attribute, Attributes, ByteOrder, CellType, Cells, DataSet, IOBuffer, UnstructuredGridPiece, Version, VertexNumbers, Vtk};
 
-fn grid(mesh: &Mesh, title: &str, point: Vec<Attribute>, cell: Vec<Attribute>) -> Result<Vec<u8>, String> {
+fn grid(model: &Model, mesh: &Mesh, point: Vec<Attribute>, cell: Vec<Attribute>) -> Result<Vec<u8>, String> {
+    let title = &model.title;
     let points: Vec<f64> = mesh.nodes[..mesh.n_physical].iter().flat_map(|p| [p[0], p[1], 0.0]).collect();
     let connectivity: Vec<u64> = mesh.triangles.iter().flat_map(|t| t.map(|n| n as u64)).collect();
     let offsets: Vec<u64> = (1..=mesh.triangles.len() as u64).map(|i| 3 * i).collect();
@@ -26,16 +27,50 @@ fn grid(mesh: &Mesh, title: &str, point: Vec<Attribute>, cell: Vec<Attribute>) -
     };
     let mut out = Vec::new();
     vtk.write_xml(&mut out).map_err(|e| format!("cannot encode VTK: {e}"))?;
-    Ok(out)
+    with_names(out, model)
 }
 
-fn region_arrays(model: &Model, mesh: &Mesh) -> Vec<Attribute> {
+/// The names behind the `part` and `material` numbers, as the grid's field
+/// data: string arrays `part_names` (index = part number) and
+/// `material_names` (index = material number, 0 = air), so a viewer's
+/// legend can say "magnet (N42)" where the cells say 0. VTK's ascii string
+/// arrays hold each string's byte codes, each string ended by a 0.
+fn with_names(xml: Vec<u8>, model: &Model) -> Result<Vec<u8>, String> {
+    let text = String::from_utf8(xml).map_err(|e| format!("cannot encode VTK: {e}"))?;
+    let Some(at) = text.find("<Piece") else {
+        return Err("cannot encode VTK: no piece".into());
+    };
+    let array = |name: &str, items: &[&str]| {
+        let codes: Vec<String> = items.iter().flat_map(|s| s.bytes().map(|b| b.to_string()).chain(["0".to_string()])).collect();
+        format!(
+            "<Array type=\"String\" Name=\"{name}\" NumberOfTuples=\"{}\" format=\"ascii\">{}</Array>",
+            items.len(),
+            codes.join(" ")
+        )
+    };
+    let parts: Vec<&str> = model.parts.iter().map(|p| p.name.as_str()).collect();
+    let field = format!(
+        "<FieldData>{}{}</FieldData>",
+        array("part_names", &parts),
+        array("material_names", &material_names(model))
+    );
+    Ok(format!("{}{field}{}", &text[..at], &text[at..]).into_bytes())
+}
+
+/// Material names in the order of the `material` numbers: air first, then
+/// each part's material where it first appears.
+fn material_names(model: &Model) -> Vec<&str> {
     let mut names: Vec<&str> = vec!["air"];
     for p in &model.parts {
         if !names.contains(&p.material.name.as_str()) {
             names.push(&p.material.name);
         }
     }
+    names
+}
+
+fn region_arrays(model: &Model, mesh: &Mesh) -> Vec<Attribute> {
+    let names = material_names(model);
     let part: Vec<i32> = mesh.regions.iter().map(|r| if let Region::Part(i) = r { *i as i32 } else { -1 }).collect();
     let material: Vec<i32> = mesh
         .regions
@@ -52,7 +87,7 @@ fn region_arrays(model: &Model, mesh: &Mesh) -> Vec<Attribute> {
 }
 
 pub fn mesh_vtu(model: &Model, mesh: &Mesh) -> Result<Vec<u8>, String> {
-    grid(mesh, &model.title, Vec::new(), region_arrays(model, mesh))
+    grid(model, mesh, Vec::new(), region_arrays(model, mesh))
 }
 
 /// Flux lines are contours of the flux function: A_z itself when planar
@@ -94,7 +129,7 @@ pub fn field_vtu(model: &Model, sol: &Solution) -> Result<Vec<u8>, String> {
         Attribute::scalars("potential", 1).with_data(potential),
         Attribute::scalars("flux_function", 1).with_data(flux_function),
     ];
-    grid(mesh, &model.title, point, cell)
+    grid(model, mesh, point, cell)
 }
 
 #[cfg(test)]
