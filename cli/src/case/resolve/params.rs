@@ -88,14 +88,17 @@ fn range(v: &Item, what: &str) -> Result<Vec<f64>, Diagnostic> {
     if log && (from <= 0.0 || to <= 0.0) {
         return Err(Diagnostic::new(format!("{what}: log spacing needs positive from and to"), Some(v.span.clone())));
     }
+    // Ends exact and every value rounded to 12 significant digits, so that
+    // variants read "gap = 5", not "gap = 4.999999999999999".
+    let round = |v: f64| format!("{v:.11e}").parse().unwrap_or(v);
     Ok((0..n)
         .map(|i| {
             let t = if n == 1 { 0.0 } else { i as f64 / (n - 1) as f64 };
-            if log {
-                (from.ln() + t * (to.ln() - from.ln())).exp()
+            round(if log {
+                (from.ln() * (1.0 - t) + t * to.ln()).exp()
             } else {
-                from + t * (to - from)
-            }
+                from * (1.0 - t) + t * to
+            })
         })
         .collect())
 }
