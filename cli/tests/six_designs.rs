@@ -64,7 +64,7 @@ impl Run {
     }
 }
 
-/// 1. A sensor's bias field through a 3 mm aluminium wall, 12 mm from a
+/// Design 1: A sensor's bias field through a 3 mm aluminium wall, 12 mm from a
 /// rigid 10 x 10 mm cylinder magnet: on-axis closed form of a uniformly
 /// magnetized cylinder (Derby and Olbert, Am. J. Phys. 78, 2010).
 #[test]
@@ -89,7 +89,7 @@ fn a_field_through_a_wall_matches_the_closed_form() {
     r.assert_engineering_numbers();
 }
 
-/// 2. A cup magnet on a 6 mm plate across 0.3 mm: the pull against the
+/// Design 2: A cup magnet on a 6 mm plate across 0.3 mm: the pull against the
 /// magnetic-pressure estimate F = sum of Phi^2 / (2 mu0 A) over the pole
 /// face and the rim, from the fluxes the tool itself reports (Maxwell's
 /// pull formula, common practice; fringing and leakage make the estimate
@@ -118,7 +118,7 @@ fn a_cup_magnets_pull_matches_the_magnetic_pressure_estimate() {
     r.assert_engineering_numbers();
 }
 
-/// 3. A planar C-core electromagnet in M400-50A, 20 mm deep, 400 turns of
+/// Design 3: A planar C-core electromagnet in M400-50A, 20 mm deep, 400 turns of
 /// AWG 22 at 0.5 A, its armature 1 mm from both legs. Against its magnetic
 /// circuit (common practice): the flux across the gaps, fringing included,
 /// is at least the ideal N I mu0 A / (2 g) less the iron's small share and
@@ -169,7 +169,7 @@ fn an_electromagnet_matches_its_magnetic_circuit_and_gets_coil_figures() {
     r.assert_engineering_numbers();
 }
 
-/// 4. A holding magnet on a back plate against the same magnet bare, on a
+/// Design 4: A holding magnet on a back plate against the same magnet bare, on a
 /// 5 mm plate across 0.5 mm: the back plate must raise the pull (it closes
 /// the magnet's return path; common practice), and a plate-free bare
 /// magnet gives no saturation warning.
@@ -195,7 +195,7 @@ fn a_back_plate_raises_the_pull() {
     bare.assert_engineering_numbers();
 }
 
-/// 5. A thin N35 disk, 20 x 1 mm, in a 120 degC oven: far past its knee
+/// Design 5: A thin N35 disk, 20 x 1 mm, in a 120 degC oven: far past its knee
 /// (demagnetizing factor near 1), the tool says so and `solve` still
 /// exits 0 but the summary and warnings name the loss; the same disk at
 /// 20 degC keeps its flux (a thin disk of N35 at 20 degC sits above its
@@ -220,7 +220,7 @@ fn a_baked_thin_disk_is_reported_demagnetized() {
     hot.assert_engineering_numbers();
 }
 
-/// 6. A planar two-magnet latch with no depth given: its pull is per metre
+/// Design 6: A planar two-magnet latch with no depth given: its pull is per metre
 /// of depth, and the tool must say so beside the number; given a 25 mm
 /// depth, the pull is that per-metre figure times 0.025 (the planar model's
 /// definition).
