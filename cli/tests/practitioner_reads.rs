@@ -1,0 +1,81 @@
+//! What a practitioner reads (issue 23, points 3, 4 and 6): the hint for a
+//! unit given to --set, sweep reports and `check` that lead with what the
+//! case asks for and name variants by their parameters, and a progress
+//! line whose counts agree with the summary's.
+
+use std::path::PathBuf;
+use std::process::Command;
+
+fn dir(name: &str) -> PathBuf {
+    let d = std::env::temp_dir().join(format!("lodestone-reads-{}-{name}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&d);
+    std::fs::create_dir_all(&d).unwrap();
+    d
+}
+
+fn run(args: &[&str]) -> (i32, String, String) {
+    let o = Command::new(env!("CARGO_BIN_EXE_lodestone")).args(args).output().unwrap();
+    (o.status.code().unwrap_or(-1), String::from_utf8_lossy(&o.stdout).into_owned(), String::from_utf8_lossy(&o.stderr).into_owned())
+}
+
+/// A bare disk swept over its thickness, asking for a point probe, then a
+/// force, then an expectation on the probe (in that order).
+const SWEPT: &str = "[study]\ngeometry = \"axisymmetric\"\nunit = \"mm\"\naccuracy = \"off\"\n\
+    [params]\nt = 2\n[sweep]\nt = { from = 1, to = 3, steps = 3 }\n[mesh]\nsize = 2\n\
+    [[part]]\nname = \"magnet\"\nmaterial = \"N42\"\nmagnetization = \"+z\"\nrect = { from = [0, 0], to = [5, \"t\"] }\n\
+    [[part]]\nname = \"plate\"\nmaterial = \"DC01\"\nrect = { from = [0, \"t + 1\"], to = [10, \"t + 3\"] }\n\
+    [[probe]]\nname = \"zfront\"\npoint = [0, \"t + 0.5\"]\n\
+    [[force]]\nname = \"apull\"\nparts = [\"plate\"]\n\
+    [[expect]]\nvalue = \"probe.zfront.bz\"\nmin = \"1 mT\"\n";
+
+#[test]
+fn a_unit_given_to_set_gets_the_plain_number_hint() {
+    let d = dir("set");
+    let case = d.join("case.toml");
+    std::fs::write(&case, SWEPT).unwrap();
+    let (code, _, err) = run(&["solve", "--quiet", case.to_str().unwrap(), "--set", "t=4mm", "-o", d.join("out").to_str().unwrap()]);
+    assert_eq!(code, 2, "{err}");
+    assert!(err.contains("plain number") && err.contains("--set t=4"), "{err}");
+    let _ = std::fs::remove_dir_all(&d);
+}
+
+#[test]
+fn sweeps_lead_with_what_the_case_asks_for() {
+    let d = dir("sweep");
+    let case = d.join("case.toml");
+    std::fs::write(&case, SWEPT).unwrap();
+    let out = d.join("out");
+    let (code, _, err) = run(&["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()]);
+    assert_eq!(code, 0, "{err}");
+    let report = std::fs::read_to_string(out.join("sweep-report.md")).unwrap();
+    let header = report.lines().find(|l| l.starts_with("| variant")).unwrap();
+    let (probe, force) = (header.find("probe.zfront").unwrap(), header.find("force.apull").unwrap());
+    assert!(probe < force, "columns not in the case's order: {header}");
+    // Charts only of what is asked: the probe's values and the force's.
+    let charts = std::fs::read_dir(&out).unwrap().flatten().filter(|e| e.file_name().to_string_lossy().starts_with("sweep-")).count() - 2;
+    assert!((1..=8).contains(&charts), "{charts} charts");
+    // check names each variant by its parameters.
+    let (code, stdout, err) = run(&["check", "--quiet", case.to_str().unwrap()]);
+    assert_eq!(code, 0, "{stdout}{err}");
+    for t in ["t = 1]", "t = 2]", "t = 3]"] {
+        assert!(stdout.contains(t), "no variant named '{t}': {stdout}");
+    }
+    let _ = std::fs::remove_dir_all(&d);
+}
+
+#[test]
+fn the_progress_line_and_the_summary_count_alike() {
+    let d = dir("counts");
+    let case = d.join("case.toml");
+    std::fs::write(&case, SWEPT.replace("[sweep]\nt = { from = 1, to = 3, steps = 3 }\n", "")).unwrap();
+    let out = d.join("out");
+    let (code, stdout, err) = run(&["solve", case.to_str().unwrap(), "-o", out.to_str().unwrap()]);
+    assert_eq!(code, 0, "{err}");
+    let json: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(out.join("results.json")).unwrap()).unwrap();
+    let triangles = json["mesh"]["elements"].as_u64().unwrap();
+    let progress = err.lines().rfind(|l| l.contains("corner nodes")).unwrap_or_else(|| panic!("no progress line: {err}"));
+    assert!(progress.contains(&format!("{triangles} triangles")), "{progress} against {triangles}");
+    let summary = stdout.lines().find(|l| l.contains("mesh:")).unwrap();
+    assert!(summary.contains(&format!("{} nodes (corners and edge midpoints)", json["mesh"]["nodes"])), "{summary}");
+    let _ = std::fs::remove_dir_all(&d);
+}
