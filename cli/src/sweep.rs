@@ -257,18 +257,27 @@ pub fn charts(rows: &[Row], axis: &ChartAxis) -> Vec<(String, String, String)> {
                 (second.as_ref().map_or_else(|| name.clone(), |s| format!("{s} = {k}")), pts)
             })
             .collect();
-        let y_label = header(rows, name, "(", ")");
+        // In the unit's SI prefix for the largest value (mT, kN), as people read them.
+        let unit = rows.iter().find_map(|r| r.units.get(name)).cloned().unwrap_or_default();
+        let top = series.iter().flat_map(|s| s.1.iter().map(|p| p[1].abs())).fold(0.0, f64::max);
+        let (exponent, prefix) = crate::output::engineering::prefix_of(top, &unit);
+        let per = 10f64.powi(-exponent);
+        let series: Vec<(String, Vec<[f64; 2]>)> = series
+            .into_iter()
+            .map(|(k, pts)| (k, pts.into_iter().map(|[x, y]| [x, y * per]).collect()))
+            .collect();
         let values: Vec<f64> = series.iter().flat_map(|s| s.1.iter().map(|p| p[1])).collect();
-        let flux = rows.iter().find_map(|r| r.units.get(name)).is_some_and(|u| u == "T");
+        let flux = unit == "T";
+        let y_label = if unit.is_empty() { name.clone() } else { format!("{name} ({prefix}{unit})") };
         let title = format!("{name} against {x_name}");
         let svg = crate::output::svg::chart(&crate::output::svg::Chart {
             title: &title,
             x_label: x_name,
             y_label: &y_label,
             series,
-            marks: if flux { axis.implant_mark(&values, 1.0) } else { Vec::new() },
+            marks: if flux { axis.implant_mark(&values, per) } else { Vec::new() },
             log_y: axis.log_for(values.iter().copied()),
-            y_range: if flux { axis.flux_range_in(1.0) } else { None },
+            y_range: if flux { axis.flux_range_in(per) } else { None },
             ..Default::default()
         });
         out.push((format!("sweep-{}.svg", name.replace('.', "-")), name.clone(), svg));

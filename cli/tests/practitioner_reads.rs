@@ -15,7 +15,11 @@ fn dir(name: &str) -> PathBuf {
 
 fn run(args: &[&str]) -> (i32, String, String) {
     let o = Command::new(env!("CARGO_BIN_EXE_lodestone")).args(args).output().unwrap();
-    (o.status.code().unwrap_or(-1), String::from_utf8_lossy(&o.stdout).into_owned(), String::from_utf8_lossy(&o.stderr).into_owned())
+    (
+        o.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&o.stdout).into_owned(),
+        String::from_utf8_lossy(&o.stderr).into_owned(),
+    )
 }
 
 /// A bare disk swept over its thickness, asking for a point probe, then a
@@ -33,7 +37,15 @@ fn a_unit_given_to_set_gets_the_plain_number_hint() {
     let d = dir("set");
     let case = d.join("case.toml");
     std::fs::write(&case, SWEPT).unwrap();
-    let (code, _, err) = run(&["solve", "--quiet", case.to_str().unwrap(), "--set", "t=4mm", "-o", d.join("out").to_str().unwrap()]);
+    let (code, _, err) = run(&[
+        "solve",
+        "--quiet",
+        case.to_str().unwrap(),
+        "--set",
+        "t=4mm",
+        "-o",
+        d.join("out").to_str().unwrap(),
+    ]);
     assert_eq!(code, 2, "{err}");
     assert!(err.contains("plain number") && err.contains("--set t=4"), "{err}");
     let _ = std::fs::remove_dir_all(&d);
@@ -52,8 +64,23 @@ fn sweeps_lead_with_what_the_case_asks_for() {
     let (probe, force) = (header.find("probe.zfront").unwrap(), header.find("force.apull").unwrap());
     assert!(probe < force, "columns not in the case's order: {header}");
     // Charts only of what is asked: the probe's values and the force's.
-    let charts = std::fs::read_dir(&out).unwrap().flatten().filter(|e| e.file_name().to_string_lossy().starts_with("sweep-")).count() - 2;
+    let charts = std::fs::read_dir(&out)
+        .unwrap()
+        .flatten()
+        .filter(|e| e.file_name().to_string_lossy().starts_with("sweep-"))
+        .count()
+        - 2;
     assert!((1..=8).contains(&charts), "{charts} charts");
+    // Charts in engineering units: the field in mT, plain tick labels.
+    let chart = std::fs::read_to_string(out.join("sweep-probe-zfront-bz.svg")).unwrap();
+    assert!(chart.contains("probe.zfront.bz (mT)"), "the field chart is not in mT");
+    let labels: Vec<&str> = chart
+        .split('>')
+        .filter_map(|t| t.split('<').next())
+        .filter(|t| t.parse::<f64>().is_ok())
+        .collect();
+    assert!(labels.len() >= 4, "{labels:?}");
+    assert!(labels.iter().all(|t| !t.contains('e')), "scientific notation in a chart: {labels:?}");
     // check names each variant by its parameters.
     let (code, stdout, err) = run(&["check", "--quiet", case.to_str().unwrap()]);
     assert_eq!(code, 0, "{stdout}{err}");
@@ -73,9 +100,15 @@ fn the_progress_line_and_the_summary_count_alike() {
     assert_eq!(code, 0, "{err}");
     let json: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(out.join("results.json")).unwrap()).unwrap();
     let triangles = json["mesh"]["elements"].as_u64().unwrap();
-    let progress = err.lines().rfind(|l| l.contains("corner nodes")).unwrap_or_else(|| panic!("no progress line: {err}"));
+    let progress = err
+        .lines()
+        .rfind(|l| l.contains("corner nodes"))
+        .unwrap_or_else(|| panic!("no progress line: {err}"));
     assert!(progress.contains(&format!("{triangles} triangles")), "{progress} against {triangles}");
     let summary = stdout.lines().find(|l| l.contains("mesh:")).unwrap();
-    assert!(summary.contains(&format!("{} nodes (corners and edge midpoints)", json["mesh"]["nodes"])), "{summary}");
+    assert!(
+        summary.contains(&format!("{} nodes (corners and edge midpoints)", json["mesh"]["nodes"])),
+        "{summary}"
+    );
     let _ = std::fs::remove_dir_all(&d);
 }

@@ -9,17 +9,15 @@ pub fn eng(value: f64, unit: &str) -> String {
     if !value.is_finite() {
         return format!("{value} {unit}").trim_end().to_string();
     }
-    let prefixable = !unit.is_empty() && !matches!(unit, "degC" | "%" | "deg" | "kgf" | "lbf" | "A/mm2" | "K");
-    if value == 0.0 || !prefixable {
+    let (exponent, prefix) = prefix_of(value.abs(), unit);
+    if value == 0.0 || !prefixable(unit) {
         return format!("{} {unit}", significant(value)).trim_end().to_string();
     }
-    const PREFIXES: [(i32, &str); 9] = [(-12, "p"), (-9, "n"), (-6, "u"), (-3, "m"), (0, ""), (3, "k"), (6, "M"), (9, "G"), (12, "T")];
-    let exponent = ((value.abs().log10() / 3.0).floor() as i32 * 3).clamp(-12, 12);
-    let prefix = PREFIXES.iter().find(|p| p.0 == exponent).map_or("", |p| p.1);
     let scaled = value / 10f64.powi(exponent);
     // Rounding to four digits can reach 1000: take the next prefix then.
     if significant(scaled).trim_start_matches('-').starts_with("1000") && exponent < 12 {
-        return eng(value * (1.0 + 1e-12), unit);
+        let (_, next) = prefix_of(10f64.powi(exponent + 3), unit);
+        return format!("{} {next}{unit}", significant(value / 10f64.powi(exponent + 3)));
     }
     format!("{} {prefix}{unit}", significant(scaled))
 }
@@ -48,15 +46,7 @@ pub fn eng_pm(value: f64, error: Option<f64>, unit: &str) -> String {
     if !value.is_finite() {
         return eng(value, unit);
     }
-    let prefixable = !unit.is_empty() && !matches!(unit, "degC" | "%" | "deg" | "kgf" | "lbf" | "A/mm2" | "K");
-    let reference = if value != 0.0 { value.abs() } else { e };
-    let exponent = if prefixable && reference > 0.0 {
-        ((reference.log10() / 3.0).floor() as i32 * 3).clamp(-12, 12)
-    } else {
-        0
-    };
-    const PREFIXES: [(i32, &str); 9] = [(-12, "p"), (-9, "n"), (-6, "u"), (-3, "m"), (0, ""), (3, "k"), (6, "M"), (9, "G"), (12, "T")];
-    let prefix = PREFIXES.iter().find(|p| p.0 == exponent).map_or("", |p| p.1);
+    let (exponent, prefix) = prefix_of(if value != 0.0 { value.abs() } else { e }, unit);
     let (v, e) = (value / 10f64.powi(exponent), e / 10f64.powi(exponent));
     let decimals = if e > 0.0 { (1 - e.log10().floor() as i32).clamp(0, 9) as usize } else { 4 };
     let u = format!("{prefix}{unit}");
@@ -64,6 +54,22 @@ pub fn eng_pm(value: f64, error: Option<f64>, unit: &str) -> String {
         .replace("  ", " ")
         .trim_end()
         .to_string()
+}
+
+/// Whether a unit takes SI prefixes (not a ratio, degC, %, deg, kgf, ...).
+fn prefixable(unit: &str) -> bool {
+    !unit.is_empty() && !matches!(unit, "degC" | "%" | "deg" | "kgf" | "lbf" | "A/mm2" | "K")
+}
+
+/// The power of ten (a multiple of 3) and SI prefix that bring `reference`
+/// (positive) into [1, 1000) in `unit`; (0, "") where the unit takes none.
+pub fn prefix_of(reference: f64, unit: &str) -> (i32, &'static str) {
+    const PREFIXES: [(i32, &str); 9] = [(-12, "p"), (-9, "n"), (-6, "u"), (-3, "m"), (0, ""), (3, "k"), (6, "M"), (9, "G"), (12, "T")];
+    if !prefixable(unit) || !(reference.is_finite() && reference > 0.0) {
+        return (0, "");
+    }
+    let exponent = ((reference.log10() / 3.0).floor() as i32 * 3).clamp(-12, 12);
+    (exponent, PREFIXES.iter().find(|p| p.0 == exponent).map_or("", |p| p.1))
 }
 
 #[cfg(test)]

@@ -323,13 +323,21 @@ fn log_ticks(lo: f64, hi: f64) -> Vec<(f64, f64)> {
     out
 }
 
+/// A tick label in plain digits (0.005, 20000), never scientific notation
+/// within the range charts meet; six significant digits at most.
 fn fmt_tick(v: f64) -> String {
     if v == 0.0 {
-        "0".into()
-    } else if v.abs() >= 1e4 || v.abs() < 1e-2 {
-        format!("{v:.1e}")
+        return "0".into();
+    }
+    if !(1e-9..1e12).contains(&v.abs()) {
+        return format!("{v:.1e}");
+    }
+    let decimals = (5 - v.abs().log10().floor() as i32).clamp(0, 12) as usize;
+    let s = format!("{v:.decimals$}");
+    if s.contains('.') {
+        s.trim_end_matches('0').trim_end_matches('.').to_string()
     } else {
-        format!("{}", (v * 1e6).round() / 1e6)
+        s
     }
 }
 
