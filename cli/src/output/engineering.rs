@@ -65,7 +65,7 @@ fn prefixable(unit: &str) -> bool {
 /// (positive) into [1, 1000) in `unit`; (0, "") where the unit takes none.
 pub fn prefix_of(reference: f64, unit: &str) -> (i32, &'static str) {
     const PREFIXES: [(i32, &str); 9] = [(-12, "p"), (-9, "n"), (-6, "u"), (-3, "m"), (0, ""), (3, "k"), (6, "M"), (9, "G"), (12, "T")];
-    if !prefixable(unit) || !(reference.is_finite() && reference > 0.0) {
+    if !(prefixable(unit) && reference.is_finite() && reference > 0.0) {
         return (0, "");
     }
     let exponent = ((reference.log10() / 3.0).floor() as i32 * 3).clamp(-12, 12);
