@@ -96,15 +96,16 @@ fn solve_inner(
     }
     // Input errors that every variant shares (a misspelled name, a bad unit)
     // are found before any folder is made or mesh built.
-    let (mut seek, mut tolerance) = (None, None);
+    let (mut seek, mut tolerance, mut optimize) = (None, None, None);
     if let Some(first) = variants.first() {
         let resolved = run::resolve(&loaded, &first.params, &limits)?;
         seek = crate::case::resolve::seek(&loaded.doc, &first.params, &resolved.model).map_err(|d| loaded.input(&d))?;
         tolerance = crate::case::resolve::tolerance(&loaded.doc, &first.params, &resolved.model).map_err(|d| loaded.input(&d))?;
+        optimize = crate::case::resolve::optimize(&loaded.doc, &first.params, &resolved.model).map_err(|d| loaded.input(&d))?;
     }
-    if (seek.is_some() || tolerance.is_some()) && shard.is_some() {
+    if (seek.is_some() || tolerance.is_some() || optimize.is_some()) && shard.is_some() {
         return Err(Failure::Input(
-            "error: --shard splits a sweep; a [seek] or [tolerance] runs its evaluations one after another\n".into(),
+            "error: --shard splits a sweep; a [seek], [tolerance] or [optimize] runs its evaluations itself\n".into(),
         ));
     }
     let out = default_output(&loaded, output);
@@ -114,6 +115,9 @@ fn solve_inner(
     }
     if let Some(tol) = &tolerance {
         return crate::tolerance::solve(&loaded, tol, &variants[0], &folder, &limits, &progress);
+    }
+    if let Some(spec) = &optimize {
+        return crate::optimize::solve(&loaded, spec, &variants[0], &folder, &limits, &progress);
     }
     let swept = variants.first().is_some_and(|v| !v.label.is_empty());
     if !swept {

@@ -64,8 +64,8 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
         if p.points.len() == 1 {
             s += &format!(
                 "  probe {name} at ({}, {}) {u}: |B| = {}\n",
-                p.points[0][0] / f,
-                p.points[0][1] / f,
+                eng(p.points[0][0] / f, ""),
+                eng(p.points[0][1] / f, ""),
                 eng_pm(p.bmag[0], err(format!("probe.{name}.b")), "T")
             );
         } else {

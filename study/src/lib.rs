@@ -19,6 +19,7 @@ pub mod estimate;
 pub mod lower;
 pub mod materials;
 pub mod model;
+pub mod optimize;
 pub mod post;
 pub mod quantity;
 pub mod results;

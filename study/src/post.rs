@@ -457,6 +457,10 @@ fn part_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f64
         let share = if vol[i] > 0.0 { above[i] / vol[i] } else { 0.0 };
         values.insert(format!("part.{}.b.max", p.name), max[i]);
         values.insert(format!("part.{}.b.mean", p.name), mean);
+        // Its volume as meshed (the whole depth of a planar study): for a
+        // cost or a fixed-volume design.
+        let depth = if model.symmetry == mesher::Symmetry::Planar { model.depth } else { 1.0 };
+        values.insert(format!("part.{}.volume", p.name), vol[i] * depth);
         if knee.is_some() {
             values.insert(format!("part.{}.saturated_share", p.name), share);
         }

@@ -37,6 +37,8 @@ pub enum Unit {
     AmperePerSquareMetre,
     /// A temperature difference, K.
     Kelvin,
+    /// Volume, m3.
+    CubicMetre,
 }
 
 impl Unit {
@@ -58,6 +60,7 @@ impl Unit {
             Unit::Watt => "W",
             Unit::AmperePerSquareMetre => "A/m2",
             Unit::Kelvin => "K",
+            Unit::CubicMetre => "m3",
         }
     }
 
@@ -79,6 +82,7 @@ impl Unit {
             Unit::Watt => "a power",
             Unit::AmperePerSquareMetre => "a current density",
             Unit::Kelvin => "a temperature difference",
+            Unit::CubicMetre => "a volume",
         }
     }
 }

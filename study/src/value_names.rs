@@ -48,6 +48,7 @@ pub fn value_names(model: &Model) -> Vec<ValueName> {
     for p in &model.parts {
         push(format!("part.{}.b.max", p.name), Unit::Tesla);
         push(format!("part.{}.b.mean", p.name), Unit::Tesla);
+        push(format!("part.{}.volume", p.name), Unit::CubicMetre);
         match p.material.material {
             Material::Soft { .. } => push(format!("part.{}.saturated_share", p.name), Unit::Ratio),
             Material::Magnet(_) => {

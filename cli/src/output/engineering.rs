@@ -40,7 +40,9 @@ fn significant(x: f64) -> String {
 /// error's second significant digit: `-333.2 N ± 0.12 N`, `526.88 mT ±
 /// 0.020 mT`, `527 mT ± 12 mT`. Without a finite error, the value alone.
 pub fn eng_pm(value: f64, error: Option<f64>, unit: &str) -> String {
-    let Some(e) = error.filter(|e| e.is_finite() && *e >= 0.0) else {
+    // An error below a billionth of the value (a volume of straight-sided
+    // parts) is no error worth printing.
+    let Some(e) = error.filter(|e| e.is_finite() && *e > 1e-9 * value.abs()) else {
         return eng(value, unit);
     };
     if !value.is_finite() {
@@ -58,7 +60,7 @@ pub fn eng_pm(value: f64, error: Option<f64>, unit: &str) -> String {
 
 /// Whether a unit takes SI prefixes (not a ratio, degC, %, deg, kgf, ...).
 fn prefixable(unit: &str) -> bool {
-    !unit.is_empty() && !matches!(unit, "degC" | "%" | "deg" | "kgf" | "lbf" | "A/mm2" | "K")
+    !unit.is_empty() && !matches!(unit, "degC" | "%" | "deg" | "kgf" | "lbf" | "A/mm2" | "K" | "m3")
 }
 
 /// The power of ten (a multiple of 3) and SI prefix that bring `reference`

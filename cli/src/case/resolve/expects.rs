@@ -30,7 +30,7 @@ fn bound_kind(unit: Unit) -> Option<Kind> {
         Unit::Ampere => Some(Kind::Current),
         Unit::AmperePerSquareMetre => Some(Kind::CurrentDensity),
         // No unit table entries for these yet: bounds are plain SI numbers.
-        Unit::NewtonMetre | Unit::Ohm | Unit::Watt | Unit::Kelvin => None,
+        Unit::NewtonMetre | Unit::Ohm | Unit::Watt | Unit::Kelvin | Unit::CubicMetre => None,
     }
 }
 

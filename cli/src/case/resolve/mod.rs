@@ -8,6 +8,7 @@ mod materials_table;
 mod measures;
 mod mesh_table;
 mod names;
+mod optimize_table;
 mod params;
 mod parts;
 mod seek_table;
@@ -15,6 +16,7 @@ mod study_table;
 mod tolerance_table;
 
 pub use mesh_table::DEFAULT_MAX_ELEMENTS;
+pub use optimize_table::{Constraint, Objective, Optimize};
 pub use params::{params, sweep};
 pub use seek_table::Seek;
 pub use tolerance_table::{Method, Tolerance};
@@ -198,4 +200,15 @@ pub fn tolerance(doc: &Item, params: &BTreeMap<String, f64>, model: &Model) -> R
         length_unit: model.length_unit.1,
     };
     tolerance_table::tolerance(&top, &ctx)
+}
+
+/// The case's `[optimize]`, resolved against a model of the case (value
+/// names and bound units are checked there).
+pub fn optimize(doc: &Item, params: &BTreeMap<String, f64>, model: &Model) -> Result<Option<Optimize>, Diagnostic> {
+    let top = doc.table("the case file", TOP)?;
+    let ctx = Context {
+        params,
+        length_unit: model.length_unit.1,
+    };
+    optimize_table::optimize(&top, &ctx, model)
 }

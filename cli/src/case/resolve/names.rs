@@ -13,6 +13,7 @@ pub(super) const TOP: &[&str] = &[
     "sweep",
     "seek",
     "tolerance",
+    "optimize",
     "materials",
     "part",
     "probe",

@@ -1,0 +1,289 @@
+//! `lodestone solve` on a case with `[optimize]`: the search's evaluations
+//! (each a study solved to the optimization's accuracy, no files), then
+//! the case solved in full at the optimum, written with optimize.json,
+//! optimize.csv, optimize.svg and optimum.toml as one set.
+
+use crate::case::resolve::Optimize;
+use crate::output::folder::OutputFolder;
+use crate::output::svg::{chart, Chart};
+use crate::progress::Progress;
+use crate::run::{self, Failure, Limits, Loaded, Variant};
+use std::collections::BTreeMap;
+use std::path::Path;
+use std::sync::atomic::{AtomicUsize, Ordering};
+use study::optimize::{Optimum, Point, Search};
+
+/// One evaluation: the study at `x` solved to the search's accuracy; the
+/// objective (negated when maximized) and each constraint's margin.
+fn evaluate(loaded: &Loaded, base: &Variant, spec: &Optimize, x: &[f64], limits: &Limits, progress: &Progress, count: &AtomicUsize) -> Result<Point, Failure> {
+    let mut params = base.params.clone();
+    for ((name, _), v) in spec.vary.iter().zip(x) {
+        params.insert(name.clone(), *v);
+    }
+    let at = || {
+        spec.vary
+            .iter()
+            .zip(x)
+            .map(|((n, _), v)| format!("{n} = {v:.6}"))
+            .collect::<Vec<_>>()
+            .join(", ")
+    };
+    let resolved = run::resolve(loaded, &params, limits)?;
+    let mut model = resolved.model;
+    model.accuracy = Some(spec.accuracy);
+    let results = study::run::run(&model, &|_| {}).map_err(|e| match e.origin {
+        Some(_) => loaded.study_error(&resolved.spans, &e),
+        None => Failure::Input(format!("error: {}: at {}: {e}\n", loaded.path.display(), at())),
+    })?;
+    if !results.solve.converged {
+        return Err(Failure::Input(format!(
+            "error: {}: the study did not converge at {}, so the optimization cannot go on\n",
+            loaded.path.display(),
+            at()
+        )));
+    }
+    let Some((objective, _)) = spec.objective.evaluate(&results.values, &results.errors) else {
+        return Err(Failure::Input(format!(
+            "error: {}: the objective '{}' has no value at {}\n",
+            loaded.path.display(),
+            spec.objective.text,
+            at()
+        )));
+    };
+    let margins = spec
+        .constraints
+        .iter()
+        .map(|c| c.margin(results.values.get(&c.value).copied().unwrap_or(f64::NAN)))
+        .collect::<Vec<_>>();
+    let k = count.fetch_add(1, Ordering::Relaxed) + 1;
+    progress.note(&format!(
+        "{}: optimize #{k}: {}: {} = {objective:.6e}",
+        loaded.stem(),
+        at(),
+        spec.objective.text
+    ));
+    Ok(Point {
+        x: x.to_vec(),
+        objective: if spec.objective.maximize { -objective } else { objective },
+        margins: margins.into_iter().map(|m| if m.is_nan() { -f64::INFINITY } else { m }).collect(),
+    })
+}
+
+/// Runs the optimization, then the full case at the optimum; exit code as
+/// `solve`, and 1 when no candidate met every constraint.
+pub fn solve(loaded: &Loaded, spec: &Optimize, base: &Variant, folder: &OutputFolder, limits: &Limits, progress: &Progress) -> Result<i32, Failure> {
+    let search = Search {
+        bounds: spec.vary.iter().map(|v| v.1).collect(),
+        start: spec
+            .vary
+            .iter()
+            .map(|(n, b)| base.params.get(n).copied().unwrap_or(0.5 * (b[0] + b[1])).clamp(b[0], b[1]))
+            .collect(),
+        constraints: spec.constraints.len(),
+        max_evaluations: spec.max_evaluations,
+        design_points: spec.design,
+        x_tolerance: spec.tolerance,
+        seed: spec.seed,
+    };
+    let count = AtomicUsize::new(0);
+    let optimum = study::optimize::optimize(&search, |x| evaluate(loaded, base, spec, x, limits, progress, &count))?;
+    let mut at = base.clone();
+    for ((name, _), v) in spec.vary.iter().zip(&optimum.best.x) {
+        at.params.insert(name.clone(), *v);
+    }
+    let mut outcome = run::solve_variant(loaded, &at, limits, progress)?;
+    progress.finish();
+    let params: BTreeMap<String, f64> = spec.vary.iter().map(|(n, _)| (n.clone(), at.params[n])).collect();
+    let asked: Vec<String> = spec.objective.names.iter().chain(spec.constraints.iter().map(|c| &c.value)).cloned().collect();
+    let pick = |m: &BTreeMap<String, f64>| -> BTreeMap<String, f64> { asked.iter().filter_map(|n| m.get(n).map(|v| (n.clone(), *v))).collect() };
+    let (values, errors) = (pick(&outcome.results.values), pick(&outcome.results.errors));
+    let objective = spec.objective.evaluate(&outcome.results.values, &outcome.results.errors);
+    let json = serde_json::json!({
+        "objective": spec.objective.text,
+        "sense": if spec.objective.maximize { "maximize" } else { "minimize" },
+        "objective_value": objective.map(|o| o.0),
+        "objective_error": objective.map(|o| o.1),
+        "feasible": optimum.feasible,
+        "params": params,
+        "values": values,
+        "errors": errors,
+        "subject_to": spec.constraints.iter().map(|c| c.text.clone()).collect::<Vec<_>>(),
+        "evaluations": optimum.evaluations.len(),
+        "stop": optimum.stop,
+        "accuracy_of_evaluations": spec.accuracy,
+        "note": "values and errors in SI; params in the case's own units. The optimum is the best evaluation found by COBYLA after a parallel Latin-hypercube start; the search stops when its steps fall below the tolerance share of each range. Evaluations are solved to accuracy_of_evaluations, the case at the optimum to the case's own accuracy."
+    });
+    let encoded = serde_json::to_vec_pretty(&json).map_err(|e| Failure::Input(format!("error: cannot encode optimize.json: {e}\n")))?;
+    outcome.files.push(("optimize.json".into(), encoded));
+    outcome.files.push(("optimize.csv".into(), evaluations_csv(spec, &optimum).into_bytes()));
+    outcome.files.push(("optimize.svg".into(), history_chart(spec, &optimum).into_bytes()));
+    outcome.files.push(("optimum.toml".into(), optimum_case(&loaded.text, &params).into_bytes()));
+    add_to_report(&mut outcome.files, &report_section(spec, &optimum, &params, objective));
+    folder
+        .commit(Path::new(""), &outcome.files)
+        .map_err(|e| Failure::Input(format!("error: {e}\n")))?;
+    print!("{}", crate::summary::summary(&outcome, folder.path()));
+    let p: Vec<String> = params.iter().map(|(k, v)| format!("{k} = {v:.6}")).collect();
+    println!(
+        "  optimize: {} {} = {} at {} ({}), {} evaluations, stopped because {}; optimum.toml is the case at the optimum",
+        if spec.objective.maximize { "largest" } else { "smallest" },
+        spec.objective.text,
+        objective.map_or("-".into(), |o| crate::output::engineering::eng_pm(o.0, Some(o.1), spec.objective.unit)),
+        p.join(", "),
+        if optimum.feasible {
+            "every constraint met"
+        } else {
+            "NO candidate met every constraint"
+        },
+        optimum.evaluations.len(),
+        optimum.stop
+    );
+    if !optimum.feasible {
+        return Ok(1);
+    }
+    Ok(i32::from(!outcome.results.solve.converged) * 3)
+}
+
+/// Natural-sign objective of a point.
+fn natural(spec: &Optimize, p: &Point) -> f64 {
+    if spec.objective.maximize {
+        -p.objective
+    } else {
+        p.objective
+    }
+}
+
+/// optimize.csv: every evaluation in order, parameters, objective, each
+/// constrained value and whether all constraints held.
+fn evaluations_csv(spec: &Optimize, o: &Optimum) -> String {
+    let mut s = String::from("evaluation");
+    for (n, _) in &spec.vary {
+        s += &format!(",{n}");
+    }
+    s += &format!(",objective [{}]", if spec.objective.unit.is_empty() { "SI" } else { spec.objective.unit });
+    for c in &spec.constraints {
+        s += &format!(",{}", c.value);
+    }
+    s += ",feasible\n";
+    for (i, p) in o.evaluations.iter().enumerate() {
+        s += &format!("{}", i + 1);
+        for v in &p.x {
+            s += &format!(",{v}");
+        }
+        s += &format!(",{}", natural(spec, p));
+        for (c, m) in spec.constraints.iter().zip(&p.margins) {
+            s += &format!(",{}", if c.at_most { c.bound - m } else { c.bound + m });
+        }
+        s += &format!(",{}\n", p.violation() == 0.0);
+    }
+    s
+}
+
+/// optimize.svg: the objective of each evaluation, feasible ones as dots,
+/// and the best so far as a line.
+fn history_chart(spec: &Optimize, o: &Optimum) -> String {
+    let sign = if spec.objective.maximize { -1.0 } else { 1.0 };
+    let mut best = f64::INFINITY;
+    let mut line = Vec::new();
+    let mut dots = Vec::new();
+    for (i, p) in o.evaluations.iter().enumerate() {
+        let x = (i + 1) as f64;
+        if p.violation() == 0.0 {
+            best = best.min(p.objective);
+            dots.push([x, sign * p.objective]);
+        }
+        if best.is_finite() {
+            line.push([x, sign * best]);
+        }
+    }
+    let title = format!("{}: {}", if spec.objective.maximize { "maximize" } else { "minimize" }, spec.objective.text);
+    let y = if spec.objective.unit.is_empty() {
+        "objective".to_string()
+    } else {
+        format!("objective ({})", spec.objective.unit)
+    };
+    chart(&Chart {
+        title: &title,
+        x_label: "evaluation",
+        y_label: &y,
+        series: vec![("best so far".into(), line)],
+        scatter: vec![("feasible evaluations".into(), dots)],
+        ..Default::default()
+    })
+}
+
+/// The case text with each varied parameter set to its optimum in
+/// `[params]` and the `[optimize]` table left out: solving it gives the
+/// optimum's results directly.
+fn optimum_case(text: &str, params: &BTreeMap<String, f64>) -> String {
+    let mut out = String::from("# The case at the optimum found by its optimization (that table is left out).\n");
+    let mut section = String::new();
+    for line in text.lines() {
+        let t = line.trim_start();
+        if t.starts_with('[') {
+            section = t.trim_end().to_string();
+        }
+        if section == "[optimize]" {
+            continue;
+        }
+        let key = t.split('=').next().unwrap_or("").trim();
+        match params.get(key) {
+            Some(v) if section == "[params]" && t.contains('=') => out += &format!("{key} = {v}\n"),
+            _ => {
+                out += line;
+                out.push('\n');
+            }
+        }
+    }
+    out
+}
+
+/// The report's section on the optimization.
+fn report_section(spec: &Optimize, o: &Optimum, params: &BTreeMap<String, f64>, objective: Option<(f64, f64)>) -> String {
+    let mut s = format!(
+        "## Optimization\n\n{} `{}`{} over {}: {} evaluations ({} in the parallel start), each solved to {} %; the search stopped because {}; {}.\n\n| parameter | range | optimum |\n|---|---|---|\n",
+        if spec.objective.maximize { "Maximize" } else { "Minimize" },
+        spec.objective.text,
+        if spec.constraints.is_empty() { String::new() } else { format!(" subject to {}", spec.constraints.iter().map(|c| format!("`{}`", c.text)).collect::<Vec<_>>().join(", ")) },
+        spec.vary.iter().map(|v| v.0.as_str()).collect::<Vec<_>>().join(", "),
+        o.evaluations.len(),
+        spec.design + 1,
+        100.0 * spec.accuracy,
+        o.stop,
+        if o.feasible { "every constraint met at the optimum" } else { "NO evaluation met every constraint" }
+    );
+    for (n, b) in &spec.vary {
+        s += &format!("| {n} | {} .. {} | {:.6} |\n", b[0], b[1], params[n]);
+    }
+    if let Some((v, e)) = objective {
+        s += &format!(
+            "\nObjective at the optimum: {}. The history is optimize.svg, every evaluation optimize.csv, the case at the optimum optimum.toml.\n\n",
+            crate::output::engineering::eng_pm(v, Some(e), spec.objective.unit)
+        );
+    }
+    s += "![optimization history](optimize.svg)\n";
+    s
+}
+
+/// Puts a section into report.md before its cautions, and report.html anew.
+fn add_to_report(files: &mut crate::output::FileSet, section: &str) {
+    let Some(i) = files.iter().position(|(n, _)| n.as_os_str() == "report.md") else {
+        return;
+    };
+    let md = String::from_utf8_lossy(&files[i].1).into_owned();
+    let md = match md.find("## Cautions") {
+        Some(at) => format!("{}{section}\n{}", &md[..at], &md[at..]),
+        None => format!("{md}\n{section}"),
+    };
+    let svg = |name: &str| {
+        files
+            .iter()
+            .find(|(n, _)| n.as_os_str() == name)
+            .map(|(_, b)| String::from_utf8_lossy(b).into_owned())
+    };
+    let html = crate::output::html::page(&md, &svg);
+    files[i].1 = md.into_bytes();
+    if let Some(h) = files.iter_mut().find(|(n, _)| n.as_os_str() == "report.html") {
+        h.1 = html.into_bytes();
+    }
+}

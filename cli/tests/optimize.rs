@@ -1,0 +1,137 @@
+//! `[optimize]` end to end (issue 21): the radius of a fixed-volume
+//! cylinder magnet that gives the most axial field 20 mm above its face,
+//! against the optimum of the closed form; a constraint and an objective
+//! made of part volumes; the files it writes.
+
+mod common;
+
+/// Volume of the magnet, mm3, as k = V / pi in the case.
+const VOLUME: f64 = 1000.0;
+
+const CASE: &str = r#"
+[study]
+geometry = "axisymmetric"
+unit = "mm"
+
+[materials.rigid]
+br = "1.2 T"
+mur = 1
+description = "rigid magnet for the closed form"
+
+[params]
+r = 5
+k = 318.30988618379067
+
+[output]
+vtk = false
+
+[[part]]
+name = "magnet"
+material = "rigid"
+magnetization = "+z"
+rect = { from = [0, 0], to = ["r", "k / (r * r)"] }
+
+[[probe]]
+name = "target"
+point = [0, "k / (r * r) + 20"]
+
+[optimize]
+maximize = "probe.target.bz"
+vary = { r = [2, 20] }
+"#;
+
+/// The closed form's field 20 mm above the face, over the radius at fixed
+/// volume (Derby and Olbert, Am. J. Phys. 78, 2010), maximized by golden
+/// section to 1e-9 mm.
+fn closed_form_optimum() -> f64 {
+    let field = |a: f64| common::cylinder_axis_field(1.2, a, VOLUME / (std::f64::consts::PI * a * a), 20.0);
+    let (mut lo, mut hi) = (2.0f64, 20.0f64);
+    let g = (5f64.sqrt() - 1.0) / 2.0;
+    while hi - lo > 1e-9 {
+        let (a, b) = (hi - g * (hi - lo), lo + g * (hi - lo));
+        if field(a) > field(b) {
+            hi = b;
+        } else {
+            lo = a;
+        }
+    }
+    0.5 * (lo + hi)
+}
+
+#[test]
+fn finds_the_fixed_volume_optimum_of_the_closed_form() {
+    let (code, said, out) = common::solve_text("optimize", CASE);
+    assert_eq!(code, Some(0), "{said}");
+    let json: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(out.join("optimize.json")).unwrap()).unwrap();
+    let r = json["params"]["r"].as_f64().unwrap();
+    let want = closed_form_optimum();
+    assert!((r / want - 1.0).abs() < 0.01, "r = {r} mm against the closed form's {want} mm");
+    let evaluations = json["evaluations"].as_u64().unwrap();
+    assert!(evaluations < 60, "{evaluations} evaluations");
+    // The field there against the closed form, within its estimated error
+    // or 0.1 % (the case's accuracy).
+    let b = json["values"]["probe.target.bz"].as_f64().unwrap();
+    let exact = common::cylinder_axis_field(1.2, r, VOLUME / (std::f64::consts::PI * r * r), 20.0);
+    assert!((b / exact - 1.0).abs() < 1e-3, "{b} T against {exact} T");
+    assert!(json["errors"]["probe.target.bz"].as_f64().unwrap() > 0.0);
+    // Every evaluation in the CSV, the history chart, the case at the optimum.
+    let csv = std::fs::read_to_string(out.join("optimize.csv")).unwrap();
+    assert_eq!(csv.lines().count() as u64, evaluations + 1);
+    assert!(std::fs::read_to_string(out.join("optimize.svg")).unwrap().contains("best so far"));
+    let optimum = std::fs::read_to_string(out.join("optimum.toml")).unwrap();
+    assert!(optimum.contains(&format!("r = {r}")) && !optimum.contains("[optimize]"));
+    assert!(std::fs::read_to_string(out.join("report.md")).unwrap().contains("## Optimization"));
+    let _ = std::fs::remove_dir_all(out.parent().unwrap());
+}
+
+/// A cost of part volumes minimized under a field constraint: the smallest
+/// volume of the same magnet family that still gives 10 mT at the target.
+/// The field falls as the volume falls, so the optimum sits on the
+/// constraint: the field there is 10 mT within the search's tolerance, and
+/// the cost is the magnet's volume times its price.
+#[test]
+fn minimizes_a_cost_of_volumes_subject_to_a_field() {
+    let case = CASE
+        .replace("k = 318.30988618379067", "k = 318.30988618379067\nr0 = 8.9")
+        .replace("to = [\"r\", \"k / (r * r)\"]", "to = [\"r0\", \"k * r / (r0 * r0 * 10)\"]")
+        .replace("point = [0, \"k / (r * r) + 20\"]", "point = [0, \"k * r / (r0 * r0 * 10) + 20\"]")
+        .replace(
+            "maximize = \"probe.target.bz\"\nvary = { r = [2, 20] }",
+            "minimize = \"2.5e5 * part.magnet.volume\"\nvary = { r = [2, 20] }\nsubject_to = [\"probe.target.bz >= 10 mT\"]\naccuracy = \"0.01 %\"",
+        );
+    let (code, said, out) = common::solve_text("optimize-cost", &case);
+    assert_eq!(code, Some(0), "{said}");
+    let json: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(out.join("optimize.json")).unwrap()).unwrap();
+    assert_eq!(json["feasible"], true, "{json}");
+    let b = json["values"]["probe.target.bz"].as_f64().unwrap();
+    assert!((0.01 * (1.0 - 1e-3)..0.0101).contains(&b), "{b} T: not on the constraint");
+    let cost = json["objective_value"].as_f64().unwrap();
+    let r = json["params"]["r"].as_f64().unwrap();
+    let volume = VOLUME * r / 10.0 * 1e-9;
+    assert!((cost / (2.5e5 * volume) - 1.0).abs() < 1e-6, "{cost} against {}", 2.5e5 * volume);
+    let _ = std::fs::remove_dir_all(out.parent().unwrap());
+}
+
+#[test]
+fn bad_optimize_tables_are_refused_where_they_stand() {
+    for (bad, want) in [
+        ("maximize = \"probe.target.bx\"\nvary = { r = [2, 20] }", "did you mean"),
+        ("maximize = \"probe.target.bz\"\nvary = { q = [2, 20] }", "'q' is not a parameter"),
+        ("maximize = \"probe.target.bz\"\nvary = { r = [20, 2] }", "low below high"),
+        (
+            "maximize = \"probe.target.bz\"\nvary = { r = [2, 20] }\nsubject_to = [\"probe.target.bz <= 5 N\"]",
+            "flux density",
+        ),
+        (
+            "maximize = \"probe.target.bz\"\nvary = { r = [2, 20] }\nsubject_to = [\"probe.target.bz < 5 mT\"]",
+            "is not a bound",
+        ),
+        ("vary = { r = [2, 20] }", "give one of maximize"),
+    ] {
+        let case = CASE.replace("maximize = \"probe.target.bz\"\nvary = { r = [2, 20] }", bad);
+        let (code, said, out) = common::solve_text("optimize-bad", &case);
+        assert_eq!(code, Some(2), "{bad}: {said}");
+        assert!(said.contains(want) && said.contains("case.toml:"), "{bad}: {said}");
+        let _ = std::fs::remove_dir_all(out.parent().unwrap());
+    }
+}
