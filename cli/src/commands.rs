@@ -76,7 +76,10 @@ fn solve_inner(
 ) -> Result<i32, Failure> {
     let progress = Progress::new(quiet);
     let loaded = run::load(case)?;
-    let limits = Limits { max_elements };
+    let limits = Limits {
+        max_elements,
+        ..Default::default()
+    };
     let mut variants = run::variants(&loaded, &overrides(set)?)?;
     if let Some(s) = shard {
         let (k, n) = parse_shard(s)?;
@@ -263,7 +266,10 @@ fn not_converged(o: &Outcome, written: bool) -> i32 {
 
 pub fn check(cases: &[PathBuf], junit: Option<PathBuf>, set: &[String], max_elements: Option<usize>, quiet: bool) -> i32 {
     let progress = Progress::new(quiet);
-    let limits = Limits { max_elements };
+    let limits = Limits {
+        max_elements,
+        ..Default::default()
+    };
     let over = match overrides(set) {
         Ok(o) => o,
         Err(f) => return fail(&f),
@@ -393,7 +399,14 @@ pub fn mesh(case: &Path, output: Option<PathBuf>, set: &[String], max_elements: 
     let go = || -> Result<(), Failure> {
         let loaded = run::load(case)?;
         let variants = run::variants(&loaded, &overrides(set)?)?;
-        let resolved = run::resolve(&loaded, &variants[0].params, &Limits { max_elements })?;
+        let resolved = run::resolve(
+            &loaded,
+            &variants[0].params,
+            &Limits {
+                max_elements,
+                ..Default::default()
+            },
+        )?;
         progress.note(&format!("{}: meshing", loaded.stem()));
         let mesh = run::mesh(&loaded, &resolved)?;
         let model = resolved.model;

@@ -61,8 +61,17 @@ impl Loaded {
 const MAX_CASE_BYTES: u64 = 16 << 20;
 
 pub fn load(path: &Path) -> Result<Loaded, Failure> {
-    let shown = path.display();
     let text = crate::input_file::read_text(path, "case file", MAX_CASE_BYTES).map_err(|e| Failure::Input(format!("error: {e}\n")))?;
+    load_text(path, text)
+}
+
+/// A case from its text (the Python package's string or dict); `path`
+/// names it in messages and anchors relative file names.
+pub fn load_text(path: &Path, text: String) -> Result<Loaded, Failure> {
+    let shown = path.display();
+    if text.len() > MAX_CASE_BYTES as usize {
+        return Err(Failure::Input(format!("error: {shown}: the case text is larger than {MAX_CASE_BYTES} bytes\n")));
+    }
     if text.trim().is_empty() {
         return Err(Failure::Input(format!("error: {shown} is empty; a case needs at least one [[part]]\n")));
     }
@@ -137,6 +146,8 @@ pub struct Outcome {
 #[derive(Clone, Debug, Default)]
 pub struct Limits {
     pub max_elements: Option<usize>,
+    /// An accuracy that replaces the case's: Some(None) is "off".
+    pub accuracy: Option<Option<f64>>,
 }
 
 /// A variant's model, with the spans its errors point at.
@@ -159,6 +170,9 @@ pub fn resolve(loaded: &Loaded, params: &BTreeMap<String, f64>, limits: &Limits)
     let (mut model, spans) = case::resolve::resolve(&loaded.doc, params, &loaded.dir()).map_err(|d| loaded.input(&d))?;
     if let Some(m) = limits.max_elements {
         model.mesh.max_elements = m;
+    }
+    if let Some(a) = limits.accuracy {
+        model.accuracy = a;
     }
     Ok(Resolved { model, spans })
 }
@@ -192,6 +206,18 @@ fn available_memory() -> Option<f64> {
 
 /// Meshes, solves and post-processes one variant.
 pub fn solve_variant(loaded: &Loaded, variant: &Variant, limits: &Limits, progress: &Progress) -> Result<Outcome, Failure> {
+    solve_variant_keeping(loaded, variant, limits, progress, |_| ()).map(|(o, ())| o)
+}
+
+/// As [`solve_variant`], and `keep` takes what it needs of the final
+/// solution before it is dropped (the Python package keeps the field).
+pub fn solve_variant_keeping<T>(
+    loaded: &Loaded,
+    variant: &Variant,
+    limits: &Limits,
+    progress: &Progress,
+    keep: impl FnOnce(&solver::Solution) -> T,
+) -> Result<(Outcome, T), Failure> {
     let start = Instant::now();
     let resolved = resolve(loaded, &variant.params, limits)?;
     let tag = if variant.label.is_empty() {
@@ -216,7 +242,7 @@ pub fn solve_variant(loaded: &Loaded, variant: &Variant, limits: &Limits, progre
             100.0 * worst_relative_error
         )),
     };
-    let finish = |sol: &solver::Solution, estimate: study::estimate::Estimate| -> Result<(Results, FileSet), Failure> {
+    let finish = |sol: &solver::Solution, estimate: study::estimate::Estimate| -> Result<(Results, FileSet, T), Failure> {
         let (mut results, field) = results_and_field(&model, sol, estimate);
         results.solve.seconds = start.elapsed().as_secs_f64();
         if !variant.label.is_empty() {
@@ -227,13 +253,13 @@ pub fn solve_variant(loaded: &Loaded, variant: &Variant, limits: &Limits, progre
             });
         }
         let files = collect_files(&model, sol, &results, field?)?;
-        Ok((results, files))
+        Ok((results, files, keep(sol)))
     };
-    let (results, files) = study::run::solve_to_accuracy(&model, mesh, &report, finish).map_err(|e| match e.origin {
+    let (results, files, kept) = study::run::solve_to_accuracy(&model, mesh, &report, finish).map_err(|e| match e.origin {
         Some(_) => loaded.study_error(&spans, &e),
         None => Failure::Input(format!("error: {}: {e}\n", loaded.path.display())),
     })??;
-    Ok(Outcome { model, results, files })
+    Ok((Outcome { model, results, files }, kept))
 }
 
 /// The results and the encoded field file, computed side by side: the VTK

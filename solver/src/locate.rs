@@ -4,6 +4,7 @@ use crate::element::barycentric;
 use crate::space::Elements;
 
 /// A bucket grid over the physical triangles.
+#[derive(Clone, Debug)]
 pub struct Locator {
     origin: [f64; 2],
     cell: f64,

@@ -39,6 +39,33 @@ pub struct PointField {
     pub part: Option<usize>,
 }
 
+impl Solution<'_> {
+    /// The same solution over another copy of its mesh (which must be a
+    /// clone of it): for a caller that must own the mesh beside the
+    /// solution, as the Python package does to sample B after the study
+    /// has returned.
+    pub fn rebind<'n>(&self, mesh: &'n mesher::Mesh) -> Solution<'n> {
+        let p = &self.problem;
+        Solution {
+            problem: Problem {
+                mesh,
+                laws: p.laws.clone(),
+                current_density: p.current_density.clone(),
+                applied_field: p.applied_field,
+                order: p.order,
+                newton: p.newton,
+                initial: p.initial.clone(),
+                remanence: p.remanence.clone(),
+            },
+            elements: self.elements.clone(),
+            reduced: self.reduced.clone(),
+            report: self.report.clone(),
+            locator: self.locator.clone(),
+            air: self.air.clone(),
+        }
+    }
+}
+
 /// Solves the problem. `progress` hears (iteration, relative residual).
 pub fn solve<'m>(problem: &Problem<'m>, progress: &dyn Fn(usize, f64)) -> Result<Solution<'m>, SolveError> {
     let t = std::time::Instant::now();

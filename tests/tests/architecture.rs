@@ -50,7 +50,10 @@ fn no_module_imports_one_that_imports_it_back() {
             continue;
         }
         let graph = edges(&read_crate(&dir));
-        assert!(graph.len() > 3, "{krate}: {} modules read", graph.len());
+        // Every crate but the one-module Python layer has several modules:
+        // fewer means the reader missed them.
+        let least = if *krate == "python" { 1 } else { 4 };
+        assert!(graph.len() >= least, "{krate}: {} modules read", graph.len());
         let found = cycles(&graph);
         assert!(found.is_empty(), "{krate}: import cycles {found:?}");
     }

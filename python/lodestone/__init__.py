@@ -1,0 +1,210 @@
+"""Lodestone from Python: solve a permanent-magnet case and read its fields,
+pulls, fluxes and design checks, each value with its estimated error.
+
+    >>> import lodestone
+    >>> r = lodestone.solve("cases/pot-magnet.toml")
+    >>> r.values["force.pull.z"], r.errors["force.pull.z"]
+
+The numbers are the command line's: the same case reader, solver and
+results. A case that cannot be read raises :class:`CaseError` with the
+command line's message, file, line and column.
+
+Strong magnets pinch and shatter, static fields affect implanted devices,
+and magnetized goods have shipping rules: the results are estimates from a
+2D model, to be confirmed by measurement and qualified practice.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import os
+import re
+from typing import Any, Dict, List, Mapping, Optional, Sequence, Tuple, Union
+
+import numpy as np
+
+from . import _lodestone
+
+__all__ = ["solve", "Results", "CaseError"]
+
+
+class CaseError(ValueError):
+    """A case that cannot be read or solved as written.
+
+    ``message`` is the command line's full message; ``file``, ``line`` and
+    ``column`` say where (None where the message names no place).
+    """
+
+    def __init__(self, message: str) -> None:
+        super().__init__(message)
+        self.message = message
+        self.file: Optional[str] = None
+        self.line: Optional[int] = None
+        self.column: Optional[int] = None
+        m = re.search(r"-->\s*(.*?):(\d+):(\d+)", message)
+        if m:
+            self.file, self.line, self.column = m.group(1), int(m.group(2)), int(m.group(3))
+
+
+CaseLike = Union[str, "os.PathLike[str]", Mapping[str, Any]]
+
+
+def solve(case: CaseLike, set: Optional[Mapping[str, float]] = None, accuracy: Union[None, str, float] = None) -> "Results":
+    """Solve a case and return its :class:`Results`.
+
+    ``case`` is a path to a case file, the text of a case (TOML), or a dict
+    of the same tables. ``set`` overrides parameters of ``[params]`` (plain
+    numbers, in the units the case uses for them). ``accuracy`` replaces
+    ``[study] accuracy``: ``"0.1 %"``, a fraction such as ``1e-3``, or
+    ``"off"``. The GIL is released while the study solves.
+    """
+    text, path = _case_text(case)
+    try:
+        answer = _lodestone.solve_text(text, path, dict(set) if set else None, _accuracy(accuracy))
+    except ValueError as e:
+        raise CaseError(str(e)) from None
+    results_json, field_map, field = answer
+    return Results(results_json, field_map, field)
+
+
+def _case_text(case: CaseLike) -> Tuple[str, str]:
+    """The case's text and the path that names it in messages."""
+    if isinstance(case, Mapping):
+        return _to_toml(case), os.path.join(os.getcwd(), "<dict>.toml")
+    if isinstance(case, os.PathLike) or (isinstance(case, str) and "\n" not in case and (case.endswith(".toml") or os.path.exists(case))):
+        path = os.fspath(case)
+        try:
+            with open(path, encoding="utf-8") as f:
+                return f.read(), path
+        except OSError as e:
+            raise CaseError(f"error: cannot read the case file {path}: {e.strerror}") from None
+        except UnicodeDecodeError:
+            raise CaseError(f"error: {path} is not UTF-8 text") from None
+    if isinstance(case, str):
+        return case, os.path.join(os.getcwd(), "<string>.toml")
+    raise TypeError("case must be a path, the text of a case or a dict")
+
+
+def _accuracy(accuracy: Union[None, str, float]) -> Optional[float]:
+    """None (the case's), a fraction, or -1 for "off"."""
+    if accuracy is None:
+        return None
+    if isinstance(accuracy, str):
+        a = accuracy.strip()
+        if a == "off":
+            return -1.0
+        if a.endswith("%"):
+            return float(a[:-1]) / 100.0
+        return float(a)
+    a = float(accuracy)
+    if not (1e-7 <= a <= 0.5):
+        raise ValueError("accuracy: a fraction from 1e-7 to 0.5, a percentage such as '0.1 %', or 'off'")
+    return a
+
+
+def _toml_value(v: Any) -> str:
+    if isinstance(v, bool):
+        return "true" if v else "false"
+    if isinstance(v, (int, float)):
+        if isinstance(v, float) and not math.isfinite(v):
+            raise ValueError(f"a case holds finite numbers only, not {v}")
+        return repr(v)
+    if isinstance(v, str):
+        return json.dumps(v)
+    if isinstance(v, Mapping):
+        return "{ " + ", ".join(f"{_toml_key(k)} = {_toml_value(x)}" for k, x in v.items()) + " }"
+    if isinstance(v, Sequence):
+        return "[" + ", ".join(_toml_value(x) for x in v) + "]"
+    if isinstance(v, np.ndarray):
+        return _toml_value(v.tolist())
+    raise TypeError(f"cannot write {type(v).__name__} into a case")
+
+
+def _toml_key(k: str) -> str:
+    return k if re.fullmatch(r"[A-Za-z0-9_-]+", k) else json.dumps(k)
+
+
+def _to_toml(case: Mapping[str, Any]) -> str:
+    """A dict of tables as case text: a dict is a table, a list of dicts an
+    array of tables ([[part]]), everything else a value."""
+    lines: List[str] = []
+    for name, body in case.items():
+        if isinstance(body, Mapping):
+            lines.append(f"[{_toml_key(name)}]")
+            lines += [f"{_toml_key(k)} = {_toml_value(v)}" for k, v in body.items()]
+        elif isinstance(body, Sequence) and not isinstance(body, str) and body and all(isinstance(b, Mapping) for b in body):
+            for b in body:
+                lines.append(f"[[{_toml_key(name)}]]")
+                lines += [f"{_toml_key(k)} = {_toml_value(v)}" for k, v in b.items()]
+        else:
+            raise TypeError(f"case['{name}'] must be a table (dict) or a list of tables")
+        lines.append("")
+    return "\n".join(lines)
+
+
+class Results:
+    """A solved case.
+
+    ``values`` and ``errors`` are keyed by the value names of ``[[expect]]``
+    (SI units; ``errors`` are estimated absolute errors). ``probes[name]``
+    holds numpy arrays ``points`` (m, as results.json), ``b`` (T, one row per
+    point) and ``b_magnitude``. ``forces`` and ``warnings`` are as in
+    results.json, which :meth:`to_json` returns whole.
+    """
+
+    def __init__(self, results_json: str, field_map: Optional[str], field: Any) -> None:
+        self._json = results_json
+        self._data: Dict[str, Any] = json.loads(results_json)
+        self._field_map = field_map
+        self._field = field
+        self.values: Dict[str, float] = dict(self._data.get("values", {}))
+        self.errors: Dict[str, float] = dict(self._data.get("errors", {}))
+        self.forces: Dict[str, Any] = dict(self._data.get("forces", {}))
+        self.warnings: List[str] = list(self._data.get("warnings", []))
+        self.cautions: List[str] = list(self._data.get("cautions", []))
+        self.probes: Dict[str, Dict[str, np.ndarray]] = {}
+        for name, p in self._data.get("probes", {}).items():
+            self.probes[name] = {
+                "points": np.asarray(p.get("points", []), dtype=float),
+                "b": np.asarray(p.get("b", []), dtype=float),
+                "b_magnitude": np.asarray(p.get("bmag", []), dtype=float),
+            }
+
+    def field(self, x: Union[float, Sequence[float], np.ndarray], y: Union[float, Sequence[float], np.ndarray]) -> np.ndarray:
+        """B (T) at points given in the case's length unit: an array of
+        shape ``x.shape + (2,)`` holding (Bx, By), or (Br, Bz) about the
+        axis; NaN outside the solved region (beyond the open boundary's
+        rim, which lies past the parts and the farthest probe: add a probe
+        to reach further)."""
+        xa, ya = np.broadcast_arrays(np.asarray(x, dtype=float), np.asarray(y, dtype=float))
+        b = self._field.b_at(xa.ravel().tolist(), ya.ravel().tolist())
+        return np.asarray(b, dtype=float).reshape(xa.shape + (2,))
+
+    def mesh(self) -> Tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """The final mesh: node coordinates (case length unit, shape (n, 2)),
+        triangles (corner indices, shape (m, 3)) and each triangle's part
+        index (-1 for air)."""
+        nodes, triangles, parts = self._field.mesh()
+        return np.asarray(nodes, dtype=float), np.asarray(triangles, dtype=np.int64), np.asarray(parts, dtype=np.int64)
+
+    def to_json(self) -> str:
+        """results.json's text, as the command line writes it."""
+        return self._json
+
+    def __repr__(self) -> str:
+        return f"<lodestone.Results: {len(self.values)} values, {len(self.warnings)} warnings>"
+
+    def _repr_html_(self) -> str:
+        import html
+
+        rows = "".join(
+            f"<tr><td>{html.escape(k)}</td><td>{v:.6g}</td><td>{'' if self.errors.get(k) is None else f'± {self.errors[k]:.2g}'}</td></tr>"
+            for k, v in sorted(self.values.items())
+        )
+        warn = "".join(f"<li>{html.escape(w)}</li>" for w in self.warnings)
+        out = f"<div><b>Warnings</b><ul>{warn}</ul></div>" if warn else ""
+        out += f"<table><thead><tr><th>value</th><th>SI</th><th>error</th></tr></thead><tbody>{rows}</tbody></table>"
+        if self._field_map:
+            out += f"<div style='max-width:48rem'>{self._field_map}</div>"
+        return out
