@@ -387,11 +387,38 @@ fn check_case(case: &Path, over: &BTreeMap<String, f64>, limits: &Limits, progre
                 });
             }
         }
-        if o.results.expect.is_empty() {
+        if o.results.expect.is_empty() && !o.model.expects.iter().any(|x| x.statistic.is_some()) {
             println!("  (no [[expect]] in this case)");
         }
+        code = code.max(check_statistics(&loaded, v, &o, limits, progress, &mut suite)?);
     }
     Ok((code, suite))
+}
+
+/// Expectations on a statistic (`statistic = "p99"`): `check` runs the
+/// case's tolerance samples and judges them; 1 when one fails.
+fn check_statistics(loaded: &Loaded, v: &Variant, o: &Outcome, limits: &Limits, progress: &Progress, suite: &mut crate::junit::Suite) -> Result<i32, Failure> {
+    if !o.model.expects.iter().any(|x| x.statistic.is_some()) {
+        return Ok(0);
+    }
+    let Some(tol) = crate::case::resolve::tolerance(&loaded.doc, &v.params, &o.model).map_err(|d| loaded.input(&d))? else {
+        return Ok(0);
+    };
+    let samples = crate::tolerance::samples(loaded, &tol, v, limits, progress)?;
+    progress.finish();
+    println!("  over {} tolerance samples:", samples.sets.len());
+    let mut code = 0;
+    for j in crate::tolerance::judge(&o.model, &samples.stats) {
+        println!("  {}", j.line());
+        if !j.pass {
+            code = 1;
+        }
+        suite.cases.push(crate::junit::Case {
+            name: j.name.clone(),
+            message: (!j.pass).then(|| format!("{} over the tolerance samples is outside {}", j.name, j.bound)),
+        });
+    }
+    Ok(code)
 }
 
 pub fn mesh(case: &Path, output: Option<PathBuf>, set: &[String], max_elements: Option<usize>, quiet: bool) -> i32 {

@@ -34,7 +34,7 @@ fn sample(loaded: &Loaded, base: &Variant, tol: &Tolerance, at: &[f64], limits: 
     Ok(results.values)
 }
 
-/// Solves every sample in turn, with progress.
+/// Solves every sample, several at a time on the cores, with progress.
 fn solve_all(
     loaded: &Loaded,
     base: &Variant,
@@ -44,12 +44,16 @@ fn solve_all(
     progress: &Progress,
     what: &str,
 ) -> Result<Vec<Values>, Failure> {
-    let mut out = Vec::with_capacity(sets.len());
-    for (i, at) in sets.iter().enumerate() {
-        progress.note(&format!("{}: tolerance {what} {} of {}", loaded.stem(), i + 1, sets.len()));
-        out.push(sample(loaded, base, tol, at, limits)?);
-    }
-    Ok(out)
+    use rayon::prelude::*;
+    let done = std::sync::atomic::AtomicUsize::new(0);
+    sets.par_iter()
+        .map(|at| {
+            let v = sample(loaded, base, tol, at, limits)?;
+            let k = done.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1;
+            progress.note(&format!("{}: tolerance {what} {k} of {}", loaded.stem(), sets.len()));
+            Ok(v)
+        })
+        .collect()
 }
 
 /// Statistics of every value over the samples.
@@ -74,8 +78,20 @@ fn not_at_corners(corner: &BTreeMap<String, Statistics>, inside: &[Values]) -> V
         .collect()
 }
 
-/// Runs the tolerance study, then the nominal case; exit code as `solve`.
-pub fn solve(loaded: &Loaded, tol: &Tolerance, base: &Variant, folder: &OutputFolder, limits: &Limits, progress: &Progress) -> Result<i32, Failure> {
+/// A tolerance study's samples and what they give.
+pub struct Samples {
+    /// Each sample's parameter values, in the spreads' order.
+    pub sets: Vec<Vec<f64>>,
+    /// Each sample's values.
+    pub values: Vec<Values>,
+    /// Statistics of every value.
+    pub stats: BTreeMap<String, Statistics>,
+    /// Values whose worst case is not at a corner (corners method).
+    pub off_corner: Vec<String>,
+}
+
+/// Solves the samples of a tolerance study (no files).
+pub fn samples(loaded: &Loaded, tol: &Tolerance, base: &Variant, limits: &Limits, progress: &Progress) -> Result<Samples, Failure> {
     let (sets, values, off_corner) = match tol.method {
         Method::MonteCarlo { samples, seed } => {
             let sets = latin_hypercube(&tol.spreads, samples, seed);
@@ -91,10 +107,80 @@ pub fn solve(loaded: &Loaded, tol: &Tolerance, base: &Variant, folder: &OutputFo
         }
     };
     let stats = all_statistics(&values);
+    Ok(Samples {
+        sets,
+        values,
+        stats,
+        off_corner,
+    })
+}
+
+/// An expectation on a statistic, judged over the samples.
+pub struct Judged {
+    /// What was bounded, as "force.pull.z p99".
+    pub name: String,
+    /// The bound as written.
+    pub bound: String,
+    /// The figures judged (one, or both ends for "worst" on a range).
+    pub figures: Vec<f64>,
+    /// Unit symbol of the value.
+    pub unit: &'static str,
+    /// Whether the bound holds for every figure.
+    pub pass: bool,
+}
+
+/// Judges every `[[expect]]` that names a statistic.
+pub fn judge(model: &study::model::Model, stats: &BTreeMap<String, Statistics>) -> Vec<Judged> {
+    model
+        .expects
+        .iter()
+        .filter_map(|x| {
+            let s = x.statistic?;
+            let figures = stats.get(&x.value.name).map_or_else(Vec::new, |st| st.judged(s, &x.bound));
+            let pass = !figures.is_empty()
+                && figures
+                    .iter()
+                    .all(|v| study::estimate::verdict(&x.bound, *v, 0.0) == study::results::Verdict::Pass);
+            Some(Judged {
+                name: format!("{} {}", x.value.name, format!("{s:?}").to_lowercase()),
+                bound: x.text.clone(),
+                figures,
+                unit: x.value.unit.symbol(),
+                pass,
+            })
+        })
+        .collect()
+}
+
+impl Judged {
+    /// The line `solve` and `check` print.
+    pub fn line(&self) -> String {
+        let figs: Vec<String> = self.figures.iter().map(|v| crate::output::engineering::eng(*v, self.unit)).collect();
+        format!(
+            "{:<36} {:<24} {:>24}  {}",
+            self.name,
+            self.bound,
+            figs.join(" .. "),
+            if self.pass { "pass" } else { "FAIL" }
+        )
+    }
+}
+
+/// Runs the tolerance study, then the nominal case; exit code as `solve`.
+pub fn solve(loaded: &Loaded, tol: &Tolerance, base: &Variant, folder: &OutputFolder, limits: &Limits, progress: &Progress) -> Result<i32, Failure> {
+    let Samples {
+        sets,
+        values,
+        stats,
+        off_corner,
+    } = samples(loaded, tol, base, limits, progress)?;
     let mut outcome = run::solve_variant(loaded, base, limits, progress)?;
     progress.finish();
     outcome.files.push(("tolerance.csv".into(), csv(tol, &sets, &values).into_bytes()));
-    outcome.files.push(("tolerance.json".into(), json(tol, &stats, &off_corner, sets.len())?));
+    let judged = judge(&outcome.model, &stats);
+    outcome
+        .files
+        .push(("tolerance.json".into(), json(tol, &stats, &off_corner, sets.len(), &judged)?));
     folder
         .commit(Path::new(""), &outcome.files)
         .map_err(|e| Failure::Input(format!("error: {e}\n")))?;
@@ -124,8 +210,18 @@ pub fn solve(loaded: &Loaded, tol: &Tolerance, base: &Variant, folder: &OutputFo
     for name in &off_corner {
         println!("  WARNING: {name}: a face centre of the tolerance box goes past the corners' extremes, so its worst case is not at a corner; use method = \"monte-carlo\"");
     }
+    for j in &judged {
+        let figs: Vec<String> = j.figures.iter().map(|v| crate::output::engineering::eng(*v, j.unit)).collect();
+        println!(
+            "  expect {} {}: {} ({})",
+            j.name,
+            j.bound,
+            figs.join(" .. "),
+            if j.pass { "pass" } else { "FAIL" }
+        );
+    }
     Ok(if outcome.results.solve.converged {
-        i32::from(outcome.results.expect.iter().any(|e| !e.pass))
+        i32::from(outcome.results.expect.iter().any(|e| !e.pass) || judged.iter().any(|j| !j.pass))
     } else {
         3
     })
@@ -154,7 +250,7 @@ fn csv(tol: &Tolerance, sets: &[Vec<f64>], values: &[Values]) -> String {
     s
 }
 
-fn json(tol: &Tolerance, stats: &BTreeMap<String, Statistics>, off_corner: &[String], n: usize) -> Result<Vec<u8>, Failure> {
+fn json(tol: &Tolerance, stats: &BTreeMap<String, Statistics>, off_corner: &[String], n: usize, judged: &[Judged]) -> Result<Vec<u8>, Failure> {
     let spreads: Vec<_> = tol
         .spreads
         .iter()
@@ -173,6 +269,10 @@ fn json(tol: &Tolerance, stats: &BTreeMap<String, Statistics>, off_corner: &[Str
         Method::MonteCarlo { seed, .. } => serde_json::json!({ "name": "monte-carlo", "sampling": "latin-hypercube", "seed": seed }),
         Method::Corners => serde_json::json!({ "name": "corners", "worst_case_not_at_a_corner": off_corner }),
     };
-    let json = serde_json::json!({ "method": method, "samples": n, "spreads": spreads, "statistics": statistics, "note": "values in SI; percentiles interpolate between order statistics (Hyndman and Fan type 7); a normal spread's plus_minus is three standard deviations" });
+    let expect: Vec<_> = judged
+        .iter()
+        .map(|j| serde_json::json!({ "value": j.name, "bound": j.bound, "figures": j.figures, "pass": j.pass }))
+        .collect();
+    let json = serde_json::json!({ "method": method, "samples": n, "spreads": spreads, "statistics": statistics, "expect": expect, "note": "values in SI; percentiles interpolate between order statistics (Hyndman and Fan type 7); a normal spread's plus_minus is three standard deviations" });
     serde_json::to_vec_pretty(&json).map_err(|e| Failure::Input(format!("error: cannot encode tolerance.json: {e}\n")))
 }

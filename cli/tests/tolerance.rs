@@ -77,3 +77,48 @@ fn corners_bound_a_monotone_value() {
     assert!((s["max"].as_f64().unwrap() / (1.03 * nominal) - 1.0).abs() < 0.005);
     assert_eq!(json["method"]["worst_case_not_at_a_corner"].as_array().unwrap().len(), 0);
 }
+
+/// `[[expect]] statistic`: the field's 99th percentile over Br uniform
+/// +-3 % is the nominal field times 1 + 0.03 (2 x 0.99 - 1) = 1.0294 (the
+/// field is linear in Br); a bound just under it passes and one just over
+/// fails, in `solve` (exit 1) and in `check`. A statistic with no
+/// [tolerance] table is refused where it stands.
+#[test]
+fn expectations_bound_a_statistic_over_the_samples() {
+    let nominal = axis_field(1.2, 0.005, 0.01, 0.01);
+    let p99 = nominal * (1.0 + 0.03 * (2.0 * 0.99 - 1.0));
+    let with = |bound: f64| {
+        format!(
+            "{}\n[[expect]]\nvalue = \"probe.front.b\"\nstatistic = \"p99\"\nmax = \"{} mT\"\n",
+            case("method = \"monte-carlo\"\nsamples = 50"),
+            bound * 1e3
+        )
+    };
+    let (code, text, out) = common::solve_text("tol-stat-pass", &with(p99 * 1.005));
+    assert_eq!(code, Some(0), "{text}");
+    assert!(text.contains("probe.front.b p99") && text.contains("(pass)"), "{text}");
+    let json: serde_json::Value = serde_json::from_slice(&std::fs::read(out.join("tolerance.json")).unwrap()).unwrap();
+    assert_eq!(json["expect"][0]["pass"], true);
+    let _ = std::fs::remove_dir_all(out.parent().unwrap());
+    let (code, text, out) = common::solve_text("tol-stat-fail", &with(p99 * 0.995));
+    assert_eq!(code, Some(1), "{text}");
+    assert!(text.contains("(FAIL)"), "{text}");
+    // check runs the samples too.
+    let o = std::process::Command::new(env!("CARGO_BIN_EXE_lodestone"))
+        .args(["check", "--quiet", out.parent().unwrap().join("case.toml").to_str().unwrap()])
+        .output()
+        .unwrap();
+    let said = String::from_utf8_lossy(&o.stdout);
+    assert_eq!(o.status.code(), Some(1), "{said}");
+    assert!(said.contains("tolerance samples") && said.contains("FAIL"), "{said}");
+    let _ = std::fs::remove_dir_all(out.parent().unwrap());
+    // Without a [tolerance] table: refused at the key.
+    let plain = with(p99).replace(
+        "[tolerance]\nmethod = \"monte-carlo\"\nsamples = 50\nspread = { kbr = { plus_minus = \"3 %\" } }\n",
+        "",
+    );
+    let (code, text, out) = common::solve_text("tol-stat-none", &plain);
+    assert_eq!(code, Some(2), "{text}");
+    assert!(text.contains("has none") && text.contains("case.toml:"), "{text}");
+    let _ = std::fs::remove_dir_all(out.parent().unwrap());
+}

@@ -209,10 +209,14 @@ pub fn verdict(bound: &Bound, v: f64, e: f64) -> crate::results::Verdict {
 
 /// Whether some expectation is undecided at these values and errors.
 pub(crate) fn undecided(model: &Model, values: &BTreeMap<String, f64>, errors: &BTreeMap<String, f64>) -> bool {
-    model.expects.iter().any(|x| match (values.get(&x.value.name), errors.get(&x.value.name)) {
-        (Some(&v), Some(&e)) => verdict(&x.bound, v, e) == crate::results::Verdict::Undecided,
-        _ => false,
-    })
+    model
+        .expects
+        .iter()
+        .filter(|x| x.statistic.is_none())
+        .any(|x| match (values.get(&x.value.name), errors.get(&x.value.name)) {
+            (Some(&v), Some(&e)) => verdict(&x.bound, v, e) == crate::results::Verdict::Undecided,
+            _ => false,
+        })
 }
 
 #[cfg(test)]

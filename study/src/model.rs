@@ -194,6 +194,25 @@ pub enum Bound {
     Near(f64, f64),
 }
 
+/// A statistic of a value over a tolerance study's samples, which an
+/// expectation may bound in place of the nominal value.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Statistic {
+    /// The smallest value over the samples.
+    Min,
+    /// The 1st percentile.
+    P1,
+    /// The median.
+    P50,
+    /// The 99th percentile.
+    P99,
+    /// The largest value over the samples.
+    Max,
+    /// The end of the spread that the bound faces (min for a lower bound,
+    /// max for an upper one, both for a range).
+    Worst,
+}
+
 /// An expectation: a typed value and its bound.
 #[derive(Clone, Debug)]
 pub struct Expect {
@@ -203,6 +222,9 @@ pub struct Expect {
     pub bound: Bound,
     /// The bound as the case wrote it, for reports.
     pub text: String,
+    /// Bound a statistic over a tolerance study instead of the nominal
+    /// value (judged by the tolerance run, not by the nominal solve).
+    pub statistic: Option<Statistic>,
 }
 
 /// Which output files a run writes.

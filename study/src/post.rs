@@ -488,6 +488,7 @@ pub fn evaluate(model: &Model, values: &BTreeMap<String, f64>, errors: &BTreeMap
     model
         .expects
         .iter()
+        .filter(|e| e.statistic.is_none())
         .map(|e| {
             let actual = values.get(&e.value.name).copied();
             let error = errors.get(&e.value.name).copied();

@@ -2,6 +2,8 @@
 //! Monte Carlo by Latin-hypercube sampling) and the statistics of each value
 //! over them. Numerics only: the cli solves each sample and writes files.
 
+use crate::model::{Bound, Statistic};
+
 /// How a parameter spreads about its nominal value.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub enum Distribution {
@@ -136,6 +138,26 @@ pub fn latin_hypercube(spreads: &[Spread], n: usize, seed: u64) -> Vec<Vec<f64>>
         columns.push(column);
     }
     (0..n).map(|i| columns.iter().map(|c| c[i]).collect()).collect()
+}
+
+impl Statistics {
+    /// The figures an expectation on `statistic` is judged by: one
+    /// percentile, or for "worst" the end (or both ends) of the spread that
+    /// the bound faces.
+    pub fn judged(&self, statistic: Statistic, bound: &Bound) -> Vec<f64> {
+        match statistic {
+            Statistic::Min => vec![self.min],
+            Statistic::P1 => vec![self.p1],
+            Statistic::P50 => vec![self.p50],
+            Statistic::P99 => vec![self.p99],
+            Statistic::Max => vec![self.max],
+            Statistic::Worst => match bound {
+                Bound::Min(_) => vec![self.min],
+                Bound::Max(_) => vec![self.max],
+                Bound::Between(..) | Bound::Near(..) => vec![self.min, self.max],
+            },
+        }
+    }
 }
 
 /// Every corner of the tolerance box (2^k sets, each parameter at nominal

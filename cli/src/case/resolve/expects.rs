@@ -11,7 +11,7 @@ use study::model::*;
 use study::quantity::{Unit, ValueName};
 
 /// Keys of `[[expect]]`.
-const EXPECT: &[&str] = &["value", "min", "max", "between", "near", "tolerance"];
+const EXPECT: &[&str] = &["value", "min", "max", "between", "near", "tolerance", "statistic"];
 /// Keys of `[output]`.
 const OUTPUT: &[&str] = &["vtk", "plots", "report", "csv", "field_scale", "field_range", "chart_scale", "chart_range"];
 
@@ -142,11 +142,13 @@ pub(super) fn expects(top: &Fields, ctx: &Context, model: &Model) -> Result<Vec<
                 ));
             }
         }
+        let statistic = statistic(&t, top, &what)?;
         out.push((
             Expect {
                 value,
                 bound: bound.0,
                 text: bound.1,
+                statistic,
             },
             item.span.clone(),
         ));
@@ -211,4 +213,43 @@ fn flux_range(o: &Fields, key: &str, ctx: &Context) -> Result<Option<(f64, f64)>
         return Err(bad());
     }
     Ok(Some((lo, hi)))
+}
+
+/// `statistic = "p99"`: an expectation on a statistic over the case's
+/// `[tolerance]` samples (refused without one; the percentiles need Monte
+/// Carlo samples, so a corners study takes min, max and worst only).
+fn statistic(t: &Fields, top: &Fields, what: &str) -> Result<Option<Statistic>, Diagnostic> {
+    const WORDS: [&str; 6] = ["min", "p1", "p50", "p99", "max", "worst"];
+    let Some(item) = t.get("statistic") else { return Ok(None) };
+    let word = item.str(&format!("{what}: statistic"))?;
+    let s = match word {
+        "min" => Statistic::Min,
+        "p1" => Statistic::P1,
+        "p50" => Statistic::P50,
+        "p99" => Statistic::P99,
+        "max" => Statistic::Max,
+        "worst" => Statistic::Worst,
+        other => {
+            return Err(Diagnostic::new(
+                format!("{what}: '{other}' is not a statistic; use one of {}", WORDS.join(", ")),
+                Some(item.span.clone()),
+            )
+            .suggest(other, WORDS))
+        }
+    };
+    let Some(tol) = top.get("tolerance") else {
+        return Err(Diagnostic::new(
+            format!("{what}: a statistic is taken over the samples of a [tolerance] study, and this case has none; add one, or drop `statistic` to bound the nominal value"),
+            Some(item.span.clone()),
+        ));
+    };
+    let corners =
+        matches!(&tol.value, Value::Table(entries) if entries.iter().any(|(k, v)| k.name == "method" && matches!(&v.value, Value::Str(m) if m == "corners")));
+    if corners && matches!(s, Statistic::P1 | Statistic::P50 | Statistic::P99) {
+        return Err(Diagnostic::new(
+            format!("{what}: a percentile needs Monte Carlo samples; a corners study gives min, max and worst"),
+            Some(item.span.clone()),
+        ));
+    }
+    Ok(Some(s))
 }
