@@ -3,7 +3,7 @@
 use super::materials_table::lookup_material;
 use crate::case::diagnostic::Diagnostic;
 use crate::case::document::Fields;
-use crate::case::document::Item;
+use crate::case::document::{Item, Value};
 use crate::case::quantity::Context;
 use crate::case::units::Kind;
 use mesher::{Shape, Symmetry};
@@ -46,7 +46,7 @@ pub(super) fn part(
         ));
     }
     let what = format!("part '{name}'");
-    let material = lookup_material(t.require("material")?, user)?;
+    let material = lookup_material(&picked_material(t.require("material")?, ctx)?, user)?;
     let shapes = t.present(SHAPES);
     if shapes.len() != 1 {
         let msg = if shapes.is_empty() {
@@ -263,4 +263,34 @@ fn direction(item: &Item, ctx: &Context, symmetry: Symmetry, what: &str) -> Resu
         Some(item.span.clone()),
     )
     .suggest(s, words.iter().copied()))
+}
+
+/// `material = { pick = "g", from = ["N35", "N42", "N52"] }`: the
+/// parameter `g` (1 for the first) chooses the material, so that a sweep,
+/// a seek or a tolerance study can run over grades. A plain name passes
+/// through.
+fn picked_material(item: &Item, ctx: &Context) -> Result<Item, Diagnostic> {
+    let Value::Table(_) = &item.value else { return Ok(item.clone()) };
+    let t = item.table("part.material", &["pick", "from"])?;
+    let by = t.require("pick")?;
+    let name = by.str("part.material.pick")?;
+    let Some(&k) = ctx.params.get(name) else {
+        return Err(Diagnostic::new(
+            format!("part.material.pick: '{name}' is not a parameter; give it a value in [params]"),
+            Some(by.span.clone()),
+        )
+        .suggest(name, ctx.params.keys().map(String::as_str)));
+    };
+    let from = t.require("from")?;
+    let list = from.array("part.material.from")?;
+    if list.is_empty() || k.fract() != 0.0 || k < 1.0 || k > list.len() as f64 {
+        return Err(Diagnostic::new(
+            format!(
+                "part.material: {name} = {k} picks no material; it must be a whole number from 1 to {}",
+                list.len()
+            ),
+            Some(item.span.clone()),
+        ));
+    }
+    Ok(list[k as usize - 1].clone())
 }
