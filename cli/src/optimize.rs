@@ -118,7 +118,7 @@ pub fn solve(loaded: &Loaded, spec: &Optimize, base: &Variant, folder: &OutputFo
     outcome.files.push(("optimize.csv".into(), evaluations_csv(spec, &optimum).into_bytes()));
     outcome.files.push(("optimize.svg".into(), history_chart(spec, &optimum).into_bytes()));
     outcome.files.push(("optimum.toml".into(), optimum_case(&loaded.text, &params).into_bytes()));
-    add_to_report(&mut outcome.files, &report_section(spec, &optimum, &params, objective));
+    crate::output::report::add_section(&mut outcome.files, &report_section(spec, &optimum, &params, objective));
     folder
         .commit(Path::new(""), &outcome.files)
         .map_err(|e| Failure::Input(format!("error: {e}\n")))?;
@@ -263,27 +263,4 @@ fn report_section(spec: &Optimize, o: &Optimum, params: &BTreeMap<String, f64>, 
     }
     s += "![optimization history](optimize.svg)\n";
     s
-}
-
-/// Puts a section into report.md before its cautions, and report.html anew.
-fn add_to_report(files: &mut crate::output::FileSet, section: &str) {
-    let Some(i) = files.iter().position(|(n, _)| n.as_os_str() == "report.md") else {
-        return;
-    };
-    let md = String::from_utf8_lossy(&files[i].1).into_owned();
-    let md = match md.find("## Cautions") {
-        Some(at) => format!("{}{section}\n{}", &md[..at], &md[at..]),
-        None => format!("{md}\n{section}"),
-    };
-    let svg = |name: &str| {
-        files
-            .iter()
-            .find(|(n, _)| n.as_os_str() == name)
-            .map(|(_, b)| String::from_utf8_lossy(b).into_owned())
-    };
-    let html = crate::output::html::page(&md, &svg);
-    files[i].1 = md.into_bytes();
-    if let Some(h) = files.iter_mut().find(|(n, _)| n.as_os_str() == "report.html") {
-        h.1 = html.into_bytes();
-    }
 }

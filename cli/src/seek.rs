@@ -70,6 +70,16 @@ pub fn solve(loaded: &Loaded, spec: &Seek, base: &Variant, folder: &OutputFolder
     let error = outcome.results.errors.get(&spec.value).copied();
     outcome.files.push(("seek.json".into(), seek_json(spec, &found, &at.params, value, error)?));
     outcome.files.push(("seek.csv".into(), seek_csv(spec, &found).into_bytes()));
+    let section = format!(
+        "## Goal seek\n\n`{}` reaches {} at {} = {:.6} \u{b1} {:.2e} (the case's own units), found in {} evaluations by a scan and Brent's method; the case above is solved there. Every evaluation is in seek.csv, the answer in seek.json.\n",
+        spec.value,
+        crate::output::engineering::eng(spec.target, spec.unit),
+        spec.vary,
+        found.x,
+        found.uncertainty,
+        found.evaluations.len()
+    );
+    crate::output::report::add_section(&mut outcome.files, &section);
     folder
         .commit(Path::new(""), &outcome.files)
         .map_err(|e| Failure::Input(format!("error: {e}\n")))?;

@@ -178,6 +178,10 @@ pub fn solve(loaded: &Loaded, tol: &Tolerance, base: &Variant, folder: &OutputFo
     progress.finish();
     outcome.files.push(("tolerance.csv".into(), csv(tol, &sets, &values).into_bytes()));
     let judged = judge(&outcome.model, &stats);
+    crate::output::report::add_section(
+        &mut outcome.files,
+        &report_section(tol, &stats, &outcome.results, sets.len(), &off_corner, &judged),
+    );
     outcome
         .files
         .push(("tolerance.json".into(), json(tol, &stats, &off_corner, sets.len(), &judged)?));
@@ -275,4 +279,63 @@ fn json(tol: &Tolerance, stats: &BTreeMap<String, Statistics>, off_corner: &[Str
         .collect();
     let json = serde_json::json!({ "method": method, "samples": n, "spreads": spreads, "statistics": statistics, "expect": expect, "note": "values in SI; percentiles interpolate between order statistics (Hyndman and Fan type 7); a normal spread's plus_minus is three standard deviations" });
     serde_json::to_vec_pretty(&json).map_err(|e| Failure::Input(format!("error: cannot encode tolerance.json: {e}\n")))
+}
+
+/// The report's section: the spreads, each asked value's statistics, and
+/// the verdicts on statistics.
+fn report_section(
+    tol: &Tolerance,
+    stats: &BTreeMap<String, Statistics>,
+    results: &study::results::Results,
+    n: usize,
+    off_corner: &[String],
+    judged: &[Judged],
+) -> String {
+    let method = match tol.method {
+        Method::MonteCarlo { .. } => "Monte Carlo samples (Latin hypercube)",
+        Method::Corners => "corners of the tolerance box",
+    };
+    let spreads: Vec<String> = tol
+        .spreads
+        .iter()
+        .map(|s| format!("{} = {} \u{b1} {}", s.name, s.nominal, s.half_width))
+        .collect();
+    // Percentiles of a handful of corners mean nothing: corners give the range.
+    let corners = tol.method == Method::Corners;
+    let head = if corners {
+        "| value | min | max |\n|---|---|---|"
+    } else {
+        "| value | min | p1 | p50 | p99 | max |\n|---|---|---|---|---|---|"
+    };
+    let mut s = format!(
+        "## Tolerances\n\n{n} {method}; {}. The tables above are the nominal design's; over the samples:\n\n{head}\n",
+        spreads.join(", ")
+    );
+    for name in &results.asked {
+        let Some(st) = stats.get(name) else { continue };
+        let unit = results.units.get(name).copied().unwrap_or("");
+        let e = |v: f64| crate::output::engineering::eng(v, unit);
+        s += &if corners {
+            format!("| {name} | {} | {} |\n", e(st.min), e(st.max))
+        } else {
+            format!("| {name} | {} | {} | {} | {} | {} |\n", e(st.min), e(st.p1), e(st.p50), e(st.p99), e(st.max))
+        };
+    }
+    for name in off_corner {
+        s += &format!("\n{name}: its worst case is not at a corner (a face centre goes past the corners); use Monte Carlo.\n");
+    }
+    if !judged.is_empty() {
+        s += "\n| expectation | bound | over the samples | result |\n|---|---|---|---|\n";
+        for j in judged {
+            let figs: Vec<String> = j.figures.iter().map(|v| crate::output::engineering::eng(*v, j.unit)).collect();
+            s += &format!(
+                "| {} | {} | {} | {} |\n",
+                j.name,
+                j.bound,
+                figs.join(" .. "),
+                if j.pass { "pass" } else { "FAIL" }
+            );
+        }
+    }
+    s + "\nEvery sample is in tolerance.csv, the statistics in tolerance.json.\n"
 }

@@ -45,8 +45,13 @@ target = "5 mT"
 
 #[test]
 fn the_smallest_cylinder_for_5_mt_at_100_mm_matches_the_closed_form() {
-    let (code, text, out) = common::solve_text("seek", CASE);
+    let (code, text, out) = common::solve_text("seek", &CASE.replace("report = false\n", ""));
     assert_eq!(code, Some(0), "{text}");
+    let report = std::fs::read_to_string(out.join("report.md")).unwrap();
+    assert!(
+        report.contains("## Goal seek") && report.contains("reaches 5 mT"),
+        "the report does not summarize the seek"
+    );
     let json: serde_json::Value = serde_json::from_slice(&std::fs::read(out.join("seek.json")).unwrap()).unwrap();
     let (found, uncertainty) = (json["found"].as_f64().unwrap(), json["uncertainty"].as_f64().unwrap());
     // The closed form's root, by bisection (the field rises with d here).

@@ -90,7 +90,7 @@ fn expectations_bound_a_statistic_over_the_samples() {
     let with = |bound: f64| {
         format!(
             "{}\n[[expect]]\nvalue = \"probe.front.b\"\nstatistic = \"p99\"\nmax = \"{} mT\"\n",
-            case("method = \"monte-carlo\"\nsamples = 50"),
+            case("method = \"monte-carlo\"\nsamples = 50").replace("report = false\n", ""),
             bound * 1e3
         )
     };
@@ -99,6 +99,11 @@ fn expectations_bound_a_statistic_over_the_samples() {
     assert!(text.contains("probe.front.b p99") && text.contains("(pass)"), "{text}");
     let json: serde_json::Value = serde_json::from_slice(&std::fs::read(out.join("tolerance.json")).unwrap()).unwrap();
     assert_eq!(json["expect"][0]["pass"], true);
+    let report = std::fs::read_to_string(out.join("report.md")).unwrap();
+    assert!(
+        report.contains("## Tolerances") && report.contains("| probe.front.b |"),
+        "the report has no tolerance table"
+    );
     let _ = std::fs::remove_dir_all(out.parent().unwrap());
     let (code, text, out) = common::solve_text("tol-stat-fail", &with(p99 * 0.995));
     assert_eq!(code, Some(1), "{text}");

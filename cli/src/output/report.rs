@@ -189,3 +189,26 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
     }
     s
 }
+
+/// Puts a section into report.md before its cautions, and report.html anew.
+pub fn add_section(files: &mut crate::output::FileSet, section: &str) {
+    let Some(i) = files.iter().position(|(n, _)| n.as_os_str() == "report.md") else {
+        return;
+    };
+    let md = String::from_utf8_lossy(&files[i].1).into_owned();
+    let md = match md.find("## Cautions") {
+        Some(at) => format!("{}{section}\n{}", &md[..at], &md[at..]),
+        None => format!("{md}\n{section}"),
+    };
+    let svg = |name: &str| {
+        files
+            .iter()
+            .find(|(n, _)| n.as_os_str() == name)
+            .map(|(_, b)| String::from_utf8_lossy(b).into_owned())
+    };
+    let html = crate::output::html::page(&md, &svg);
+    files[i].1 = md.into_bytes();
+    if let Some(h) = files.iter_mut().find(|(n, _)| n.as_os_str() == "report.html") {
+        h.1 = html.into_bytes();
+    }
+}
