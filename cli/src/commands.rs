@@ -81,11 +81,25 @@ fn solve_inner(
         ..Default::default()
     };
     let mut variants = run::variants(&loaded, &overrides(set)?)?;
-    if let Some(s) = shard {
-        let (k, n) = parse_shard(s)?;
+    // Input errors that every variant shares (a misspelled name, a bad unit)
+    // are found before any folder is made or mesh built.
+    let (mut seek, mut tolerance, mut optimize) = (None, None, None);
+    if let Some(first) = variants.first() {
+        let resolved = run::resolve(&loaded, &first.params, &limits)?;
+        seek = crate::case::resolve::seek(&loaded.doc, &first.params, &resolved.model).map_err(|d| loaded.input(&d))?;
+        tolerance = crate::case::resolve::tolerance(&loaded.doc, &first.params, &resolved.model).map_err(|d| loaded.input(&d))?;
+        optimize = crate::case::resolve::optimize(&loaded.doc, &first.params, &resolved.model).map_err(|d| loaded.input(&d))?;
+    }
+    let shard = shard.map(|s| parse_shard(s).map(|kn| (s, kn))).transpose()?;
+    if (seek.is_some() || optimize.is_some()) && shard.is_some() {
+        return Err(Failure::Input(
+            "error: --shard splits a sweep's variants or a tolerance study's samples; a [seek] or [optimize] runs its evaluations itself\n".into(),
+        ));
+    }
+    if let (Some((s, (k, n))), None) = (shard, &tolerance) {
         if variants.len() == 1 && variants[0].label.is_empty() {
             return Err(Failure::Input(format!(
-                "error: --shard {s}: {} has no [sweep]; shards split a sweep's variants\n",
+                "error: --shard {s}: {} has no [sweep] nor [tolerance]; shards split a sweep's variants or a tolerance study's samples\n",
                 loaded.path.display()
             )));
         }
@@ -97,27 +111,17 @@ fn solve_inner(
             )));
         }
     }
-    // Input errors that every variant shares (a misspelled name, a bad unit)
-    // are found before any folder is made or mesh built.
-    let (mut seek, mut tolerance, mut optimize) = (None, None, None);
-    if let Some(first) = variants.first() {
-        let resolved = run::resolve(&loaded, &first.params, &limits)?;
-        seek = crate::case::resolve::seek(&loaded.doc, &first.params, &resolved.model).map_err(|d| loaded.input(&d))?;
-        tolerance = crate::case::resolve::tolerance(&loaded.doc, &first.params, &resolved.model).map_err(|d| loaded.input(&d))?;
-        optimize = crate::case::resolve::optimize(&loaded.doc, &first.params, &resolved.model).map_err(|d| loaded.input(&d))?;
-    }
-    if (seek.is_some() || tolerance.is_some() || optimize.is_some()) && shard.is_some() {
-        return Err(Failure::Input(
-            "error: --shard splits a sweep; a [seek], [tolerance] or [optimize] runs its evaluations itself\n".into(),
-        ));
-    }
     let out = default_output(&loaded, output);
     let folder = OutputFolder::open(&out).map_err(|e| Failure::Input(format!("error: {e}\n")))?;
     if let Some(spec) = &seek {
         return crate::seek::solve(&loaded, spec, &variants[0], &folder, &limits, &progress);
     }
     if let Some(tol) = &tolerance {
-        return crate::tolerance::solve(&loaded, tol, &variants[0], &folder, &limits, &progress);
+        let run = crate::tolerance::Run {
+            shard: shard.map(|s| s.1),
+            force,
+        };
+        return crate::tolerance::solve(&loaded, tol, &variants[0], &folder, &limits, &progress, run);
     }
     if let Some(spec) = &optimize {
         return crate::optimize::solve(&loaded, spec, &variants[0], &folder, &limits, &progress);
@@ -488,6 +492,22 @@ pub fn materials(name: Option<&str>, plot: Option<PathBuf>) -> i32 {
 }
 
 pub fn merge(folders: &[PathBuf], out: &Path) -> i32 {
+    if folders.iter().any(|f| f.join("samples").is_dir()) {
+        return match crate::tolerance::gather(folders, out) {
+            Ok(n) => {
+                println!(
+                    "gathered {n} tolerance samples into {}; `lodestone solve CASE -o {}` finishes the study from them",
+                    out.join("samples").display(),
+                    out.display()
+                );
+                0
+            }
+            Err(e) => {
+                eprintln!("error: {e}");
+                2
+            }
+        };
+    }
     match sweep::rows_from_folders(folders) {
         Ok(rows) => {
             let written = OutputFolder::open(out).and_then(|f| f.commit(Path::new(""), &sweep::summary_files(&rows, &ChartAxis::default())));

@@ -9,7 +9,7 @@ use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 
 /// FNV-1a 64-bit hash (stable across builds and machines).
-fn fnv1a(bytes: &[u8], mut h: u64) -> u64 {
+pub fn fnv1a(bytes: &[u8], mut h: u64) -> u64 {
     for b in bytes {
         h ^= u64::from(*b);
         h = h.wrapping_mul(0x0100_0000_01b3);

@@ -34,7 +34,65 @@ fn sample(loaded: &Loaded, base: &Variant, tol: &Tolerance, at: &[f64], limits: 
     Ok(results.values)
 }
 
-/// Solves every sample, several at a time on the cores, with progress.
+/// How a tolerance run keeps its samples: each solved sample is committed
+/// to `samples/KIND-NNNN/` of the output folder as it completes, so that
+/// an interrupted run resumes where it stopped and shards (`--shard K/N`,
+/// every N-th sample) can be gathered by `merge` and finished by a plain
+/// `solve`.
+#[derive(Clone, Copy, Debug, Default)]
+pub struct Run {
+    /// This shard's K and N.
+    pub shard: Option<(usize, usize)>,
+    /// Solve every sample again, ignoring kept ones.
+    pub force: bool,
+}
+
+/// Where samples are kept, and how.
+struct Store<'a> {
+    folder: &'a OutputFolder,
+    run: Run,
+    /// Identifies the case (its text and its other parameters).
+    case: u64,
+}
+
+impl Store<'_> {
+    /// A sample's key: the case, and the sample's own parameter values.
+    fn key(&self, at: &[f64]) -> String {
+        let h = at.iter().fold(self.case, |h, x| crate::sweep::fnv1a(&x.to_bits().to_le_bytes(), h));
+        format!("{h:016x}")
+    }
+
+    /// A kept sample's values, when whole and of this case.
+    fn kept(&self, label: &str, key: &str) -> Option<Values> {
+        if self.run.force {
+            return None;
+        }
+        let dir = self.folder.path().join("samples").join(label);
+        if std::fs::read_to_string(dir.join("sample.hash")).ok()? != key {
+            return None;
+        }
+        let bits: BTreeMap<String, u64> = serde_json::from_str(&std::fs::read_to_string(dir.join("values.json")).ok()?).ok()?;
+        Some(bits.into_iter().map(|(k, b)| (k, f64::from_bits(b))).collect())
+    }
+
+    /// Commits a solved sample (values as exact bits).
+    fn keep(&self, label: &str, key: &str, values: &Values) -> Result<(), Failure> {
+        let bits: BTreeMap<&String, u64> = values.iter().map(|(k, v)| (k, v.to_bits())).collect();
+        let json = serde_json::to_vec(&bits).map_err(|e| Failure::Input(format!("error: cannot encode a sample: {e}\n")))?;
+        let files: crate::output::FileSet = vec![("values.json".into(), json), ("sample.hash".into(), key.as_bytes().to_vec())];
+        self.folder
+            .commit(&Path::new("samples").join(label), &files)
+            .map_err(|e| Failure::Input(format!("error: {e}\n")))
+    }
+
+    /// Whether this run solves sample `i` (its shard's share).
+    fn mine(&self, i: usize) -> bool {
+        self.run.shard.is_none_or(|(k, n)| i % n == k)
+    }
+}
+
+/// Solves every sample, several at a time on the cores, with progress:
+/// kept ones are read back, other shards' are left as None.
 fn solve_all(
     loaded: &Loaded,
     base: &Variant,
@@ -43,17 +101,37 @@ fn solve_all(
     limits: &Limits,
     progress: &Progress,
     what: &str,
-) -> Result<Vec<Values>, Failure> {
+    store: Option<&Store>,
+) -> Result<Vec<Option<Values>>, Failure> {
     use rayon::prelude::*;
     let done = std::sync::atomic::AtomicUsize::new(0);
     sets.par_iter()
-        .map(|at| {
+        .enumerate()
+        .map(|(i, at)| {
+            let label = format!("{what}-{i:04}").replace(' ', "-");
+            if let Some(s) = store {
+                let key = s.key(at);
+                if let Some(v) = s.kept(&label, &key) {
+                    return Ok(Some(v));
+                }
+                if !s.mine(i) {
+                    return Ok(None);
+                }
+                let v = sample(loaded, base, tol, at, limits)?;
+                s.keep(&label, &key, &v)?;
+                note(progress, loaded, what, &done, sets.len());
+                return Ok(Some(v));
+            }
             let v = sample(loaded, base, tol, at, limits)?;
-            let k = done.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1;
-            progress.note(&format!("{}: tolerance {what} {k} of {}", loaded.stem(), sets.len()));
-            Ok(v)
+            note(progress, loaded, what, &done, sets.len());
+            Ok(Some(v))
         })
         .collect()
+}
+
+fn note(progress: &Progress, loaded: &Loaded, what: &str, done: &std::sync::atomic::AtomicUsize, n: usize) {
+    let k = done.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1;
+    progress.note(&format!("{}: tolerance {what} {k} of {n}", loaded.stem()));
 }
 
 /// Statistics of every value over the samples.
@@ -90,29 +168,58 @@ pub struct Samples {
     pub off_corner: Vec<String>,
 }
 
-/// Solves the samples of a tolerance study (no files).
-pub fn samples(loaded: &Loaded, tol: &Tolerance, base: &Variant, limits: &Limits, progress: &Progress) -> Result<Samples, Failure> {
+/// Solves the samples of a tolerance study, or, with a store, keeps each
+/// as it is solved and reads kept ones back. Ok(Err(missing)) when a shard
+/// left samples to other shards: how many are still to be solved.
+fn samples_kept(
+    loaded: &Loaded,
+    tol: &Tolerance,
+    base: &Variant,
+    limits: &Limits,
+    progress: &Progress,
+    store: Option<&Store>,
+) -> Result<Result<Samples, usize>, Failure> {
+    let whole = |v: Vec<Option<Values>>| -> Result<Vec<Values>, usize> {
+        let missing = v.iter().filter(|x| x.is_none()).count();
+        if missing > 0 {
+            Err(missing)
+        } else {
+            Ok(v.into_iter().flatten().collect())
+        }
+    };
     let (sets, values, off_corner) = match tol.method {
         Method::MonteCarlo { samples, seed } => {
             let sets = latin_hypercube(&tol.spreads, samples, seed);
-            let values = solve_all(loaded, base, tol, &sets, limits, progress, "sample")?;
+            let values = match whole(solve_all(loaded, base, tol, &sets, limits, progress, "sample", store)?) {
+                Ok(v) => v,
+                Err(m) => return Ok(Err(m)),
+            };
             (sets, values, Vec::new())
         }
         Method::Corners => {
             let (corner_sets, inside_sets) = corners(&tol.spreads);
-            let values = solve_all(loaded, base, tol, &corner_sets, limits, progress, "corner")?;
-            let inside = solve_all(loaded, base, tol, &inside_sets, limits, progress, "face centre")?;
+            let values = whole(solve_all(loaded, base, tol, &corner_sets, limits, progress, "corner", store)?);
+            let inside = whole(solve_all(loaded, base, tol, &inside_sets, limits, progress, "face centre", store)?);
+            let (values, inside) = match (values, inside) {
+                (Ok(v), Ok(i)) => (v, i),
+                (a, b) => return Ok(Err(a.err().unwrap_or(0) + b.err().unwrap_or(0))),
+            };
             let off = not_at_corners(&all_statistics(&values), &inside);
             (corner_sets, values, off)
         }
     };
     let stats = all_statistics(&values);
-    Ok(Samples {
+    Ok(Ok(Samples {
         sets,
         values,
         stats,
         off_corner,
-    })
+    }))
+}
+
+/// Solves the samples of a tolerance study (no files), for `check`.
+pub fn samples(loaded: &Loaded, tol: &Tolerance, base: &Variant, limits: &Limits, progress: &Progress) -> Result<Samples, Failure> {
+    samples_kept(loaded, tol, base, limits, progress, None)?.map_err(|m| Failure::Input(format!("error: {m} tolerance samples were left unsolved\n")))
 }
 
 /// An expectation on a statistic, judged over the samples.
@@ -166,14 +273,34 @@ impl Judged {
     }
 }
 
-/// Runs the tolerance study, then the nominal case; exit code as `solve`.
-pub fn solve(loaded: &Loaded, tol: &Tolerance, base: &Variant, folder: &OutputFolder, limits: &Limits, progress: &Progress) -> Result<i32, Failure> {
+/// Runs the tolerance study, keeping each sample in the output folder,
+/// then the nominal case; exit code as `solve`. A shard solves its share
+/// of the samples and stops there.
+pub fn solve(loaded: &Loaded, tol: &Tolerance, base: &Variant, folder: &OutputFolder, limits: &Limits, progress: &Progress, run: Run) -> Result<i32, Failure> {
+    let others = base.params.iter().filter(|(k, _)| !tol.spreads.iter().any(|s| &s.name == *k));
+    let case = others.fold(crate::sweep::case_hash(&loaded.text), |h, (k, v)| {
+        crate::sweep::fnv1a(&v.to_bits().to_le_bytes(), crate::sweep::fnv1a(k.as_bytes(), h))
+    });
+    let store = Store { folder, run, case };
     let Samples {
         sets,
         values,
         stats,
         off_corner,
-    } = samples(loaded, tol, base, limits, progress)?;
+    } = match samples_kept(loaded, tol, base, limits, progress, Some(&store))? {
+        Ok(s) => s,
+        Err(missing) => {
+            progress.finish();
+            let (k, n) = run.shard.unwrap_or((0, 1));
+            println!(
+                "{}: shard {k}/{n} of the tolerance samples kept in {}; {missing} samples are other shards'. Gather the shard folders with `lodestone merge FOLDER... -o DIR`, then `lodestone solve {} -o DIR` finishes the study from them.",
+                loaded.path.display(),
+                folder.path().join("samples").display(),
+                loaded.path.display()
+            );
+            return Ok(0);
+        }
+    };
     let mut outcome = run::solve_variant(loaded, base, limits, progress)?;
     progress.finish();
     outcome.files.push(("tolerance.csv".into(), csv(tol, &sets, &values).into_bytes()));
@@ -338,4 +465,36 @@ fn report_section(
         }
     }
     s + "\nEvery sample is in tolerance.csv, the statistics in tolerance.json.\n"
+}
+
+/// `merge` of tolerance shards: every kept sample of the folders, each a
+/// whole set (values and key), copied into `out/samples`; a sample found
+/// twice must be the same. The number gathered.
+pub fn gather(folders: &[std::path::PathBuf], out: &Path) -> Result<usize, String> {
+    let folder = OutputFolder::open(out)?;
+    let mut seen: BTreeMap<String, String> = BTreeMap::new();
+    for f in folders {
+        let Ok(entries) = std::fs::read_dir(f.join("samples")) else { continue };
+        for e in entries.flatten() {
+            let label = e.file_name().to_string_lossy().into_owned();
+            let (Ok(key), Ok(values)) = (
+                std::fs::read_to_string(e.path().join("sample.hash")),
+                std::fs::read(e.path().join("values.json")),
+            ) else {
+                continue;
+            };
+            match seen.get(&label) {
+                Some(k) if *k == key => continue,
+                Some(_) => return Err(format!("{} holds sample {label} of another case or run than the other folders", f.display())),
+                None => {}
+            }
+            let files: crate::output::FileSet = vec![("values.json".into(), values), ("sample.hash".into(), key.clone().into_bytes())];
+            folder.commit(&Path::new("samples").join(&label), &files)?;
+            seen.insert(label, key);
+        }
+    }
+    if seen.is_empty() {
+        return Err("no whole tolerance samples in these folders".into());
+    }
+    Ok(seen.len())
 }

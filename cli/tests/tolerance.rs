@@ -127,3 +127,37 @@ fn expectations_bound_a_statistic_over_the_samples() {
     assert!(text.contains("has none") && text.contains("case.toml:"), "{text}");
     let _ = std::fs::remove_dir_all(out.parent().unwrap());
 }
+
+/// Issue 21, point 4: tolerance samples shard (`--shard K/N`), gather
+/// (`merge`) and resume: the shards' samples, merged and finished by a
+/// plain `solve`, give the statistics of one unsharded run bit for bit,
+/// and a run over a folder that holds every sample solves none again.
+#[test]
+fn samples_shard_merge_and_resume() {
+    let dir = std::env::temp_dir().join(format!("lodestone-tol-shard-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    let file = dir.join("case.toml");
+    std::fs::write(&file, case("method = \"monte-carlo\"\nsamples = 8")).unwrap();
+    let run = |args: &[&str]| {
+        let o = std::process::Command::new(env!("CARGO_BIN_EXE_lodestone")).args(args).output().unwrap();
+        assert_eq!(o.status.code(), Some(0), "{args:?}: {}", String::from_utf8_lossy(&o.stderr));
+        String::from_utf8_lossy(&o.stderr).into_owned()
+    };
+    let (c, d) = (file.to_str().unwrap(), |n: &str| dir.join(n).to_str().unwrap().to_string());
+    run(&["solve", "--quiet", c, "-o", &d("whole")]);
+    run(&["solve", "--quiet", c, "-o", &d("a"), "--shard", "0/2"]);
+    run(&["solve", "--quiet", c, "-o", &d("b"), "--shard", "1/2"]);
+    assert!(!dir.join("a/tolerance.json").exists(), "a shard wrote statistics of half the samples");
+    run(&["merge", &d("a"), &d("b"), "-o", &d("merged")]);
+    let progress = run(&["solve", c, "-o", &d("merged")]);
+    assert!(!progress.contains("tolerance sample"), "samples solved again: {progress}");
+    let stats = |n: &str| -> serde_json::Value {
+        let j: serde_json::Value = serde_json::from_slice(&std::fs::read(dir.join(n).join("tolerance.json")).unwrap()).unwrap();
+        j["statistics"].clone()
+    };
+    assert_eq!(stats("merged"), stats("whole"));
+    let again = run(&["solve", c, "-o", &d("whole")]);
+    assert!(!again.contains("tolerance sample"), "a finished run solved its samples again: {again}");
+    let _ = std::fs::remove_dir_all(&dir);
+}
