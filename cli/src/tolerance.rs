@@ -91,18 +91,17 @@ impl Store<'_> {
     }
 }
 
+/// What every sample of one study shares.
+struct Job<'a> {
+    loaded: &'a Loaded,
+    base: &'a Variant,
+    tol: &'a Tolerance,
+    limits: &'a Limits,
+}
+
 /// Solves every sample, several at a time on the cores, with progress:
 /// kept ones are read back, other shards' are left as None.
-fn solve_all(
-    loaded: &Loaded,
-    base: &Variant,
-    tol: &Tolerance,
-    sets: &[Vec<f64>],
-    limits: &Limits,
-    progress: &Progress,
-    what: &str,
-    store: Option<&Store>,
-) -> Result<Vec<Option<Values>>, Failure> {
+fn solve_all(job: &Job, sets: &[Vec<f64>], progress: &Progress, what: &str, store: Option<&Store>) -> Result<Vec<Option<Values>>, Failure> {
     use rayon::prelude::*;
     let done = std::sync::atomic::AtomicUsize::new(0);
     sets.par_iter()
@@ -117,13 +116,13 @@ fn solve_all(
                 if !s.mine(i) {
                     return Ok(None);
                 }
-                let v = sample(loaded, base, tol, at, limits)?;
+                let v = sample(job.loaded, job.base, job.tol, at, job.limits)?;
                 s.keep(&label, &key, &v)?;
-                note(progress, loaded, what, &done, sets.len());
+                note(progress, job.loaded, what, &done, sets.len());
                 return Ok(Some(v));
             }
-            let v = sample(loaded, base, tol, at, limits)?;
-            note(progress, loaded, what, &done, sets.len());
+            let v = sample(job.loaded, job.base, job.tol, at, job.limits)?;
+            note(progress, job.loaded, what, &done, sets.len());
             Ok(Some(v))
         })
         .collect()
@@ -179,6 +178,7 @@ fn samples_kept(
     progress: &Progress,
     store: Option<&Store>,
 ) -> Result<Result<Samples, usize>, Failure> {
+    let job = Job { loaded, base, tol, limits };
     let whole = |v: Vec<Option<Values>>| -> Result<Vec<Values>, usize> {
         let missing = v.iter().filter(|x| x.is_none()).count();
         if missing > 0 {
@@ -190,7 +190,7 @@ fn samples_kept(
     let (sets, values, off_corner) = match tol.method {
         Method::MonteCarlo { samples, seed } => {
             let sets = latin_hypercube(&tol.spreads, samples, seed);
-            let values = match whole(solve_all(loaded, base, tol, &sets, limits, progress, "sample", store)?) {
+            let values = match whole(solve_all(&job, &sets, progress, "sample", store)?) {
                 Ok(v) => v,
                 Err(m) => return Ok(Err(m)),
             };
@@ -198,8 +198,8 @@ fn samples_kept(
         }
         Method::Corners => {
             let (corner_sets, inside_sets) = corners(&tol.spreads);
-            let values = whole(solve_all(loaded, base, tol, &corner_sets, limits, progress, "corner", store)?);
-            let inside = whole(solve_all(loaded, base, tol, &inside_sets, limits, progress, "face centre", store)?);
+            let values = whole(solve_all(&job, &corner_sets, progress, "corner", store)?);
+            let inside = whole(solve_all(&job, &inside_sets, progress, "face centre", store)?);
             let (values, inside) = match (values, inside) {
                 (Ok(v), Ok(i)) => (v, i),
                 (a, b) => return Ok(Err(a.err().unwrap_or(0) + b.err().unwrap_or(0))),
