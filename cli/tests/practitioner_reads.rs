@@ -146,3 +146,33 @@ fn a_parameter_picks_the_grade() {
     assert!(err.contains("picks no material") && err.contains("case.toml:13:12"), "{err}");
     let _ = std::fs::remove_dir_all(&d);
 }
+
+/// Issue 23, point 7: the reach's reference point is the user's where the
+/// case gives one (`reach_from`, measured outwards along the axis): from a
+/// magnet's face it is the reach from the centre less the 5 mm between
+/// them, and the report says where it was measured from.
+#[test]
+fn the_reach_is_measured_from_the_point_the_case_gives() {
+    let d = dir("reach");
+    let case = d.join("case.toml");
+    let text = "[study]\ngeometry = \"axisymmetric\"\nunit = \"mm\"\nREACH\n[[part]]\nname = \"m\"\nmaterial = \"N42\"\nmagnetization = \"+z\"\nrect = { from = [0, 0], to = [5, 10] }\n";
+    let reach = |extra: &str, name: &str| -> (f64, String) {
+        std::fs::write(&case, text.replace("REACH", extra)).unwrap();
+        let out = d.join(name);
+        let (code, _, err) = run(&["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()]);
+        assert_eq!(code, 0, "{err}");
+        let j: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(out.join("results.json")).unwrap()).unwrap();
+        (
+            j["values"]["reach.axis"].as_f64().unwrap(),
+            std::fs::read_to_string(out.join("report.md")).unwrap(),
+        )
+    };
+    let (centre, _) = reach("", "centre");
+    let (face, report) = reach("reach_from = [0, 10]", "face");
+    assert!(
+        (centre - face - 0.005).abs() < 1e-4 * centre,
+        "from the centre {centre} m, from the face {face} m"
+    );
+    assert!(report.contains("from (0, 10) mm, the case's reach_from"), "{report}");
+    let _ = std::fs::remove_dir_all(&d);
+}

@@ -132,7 +132,21 @@ pub fn stray_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String
             .flatten()
             .fold(None, |m: Option<f64>, d| Some(m.map_or(d, |x| x.max(d))))
     };
-    r.reach_axis_m = axis(model.reach_level);
+    // From the case's own point (a magnet's face, a wall) where it gives
+    // one, outwards (away from the centre along the axis); else from the
+    // centre, the farther of the two ways.
+    let from = model.reach_from.unwrap_or(c);
+    r.reach_from_m = Some(from);
+    let ways: &[[f64; 2]] = match from[1].partial_cmp(&c[1]) {
+        Some(std::cmp::Ordering::Greater) => &[[0.0, 1.0]],
+        Some(std::cmp::Ordering::Less) => &[[0.0, -1.0]],
+        _ => &[[0.0, 1.0], [0.0, -1.0]],
+    };
+    r.reach_axis_m = ways
+        .iter()
+        .copied()
+        .filter_map(|dir| stray::fall_distance(sol, from, dir, limit + (from[1] - c[1]).abs(), model.reach_level, series.as_ref()))
+        .fold(None, |m: Option<f64>, d| Some(m.map_or(d, |x| x.max(d))));
     if let Some(d) = r.reach_axis_m {
         values.insert("reach.axis".into(), d);
     }

@@ -42,6 +42,9 @@ pub struct Model {
     pub newton: solver::NewtonSettings,
     /// Flux density below which the axis "reach" ends, T.
     pub reach_level: f64,
+    /// The point the reach is measured from (m); None: the centre of the
+    /// box around every part.
+    pub reach_from: Option<[f64; 2]>,
     /// Parameter values of this variant.
     pub params: BTreeMap<String, f64>,
     /// Design-check failures that `check` lets pass (`"demagnetization"`).

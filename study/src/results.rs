@@ -254,6 +254,9 @@ pub struct StrayResult {
     pub reference_point_m: Option<[f64; 2]>,
     /// Distance along the axis where |B| falls to the reach level, m.
     pub reach_axis_m: Option<f64>,
+    /// The point the reach is measured from ([study] reach_from, or the
+    /// reference point), m.
+    pub reach_from_m: Option<[f64; 2]>,
     /// The reach level, T.
     pub reach_level_t: f64,
     /// |H| at 2.1 m and 4.6 m (the larger of axis and mid-plane), A/m.

@@ -139,9 +139,13 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
             c[1] / f
         );
     }
+    let from = match (st.reach_from_m, st.reference_point_m) {
+        (Some(p), Some(c)) if p != c => format!("from ({}, {}) {u}, the case's reach_from", p[0] / f, p[1] / f),
+        _ => "from the reference point".to_string(),
+    };
     let _ = writeln!(
         s,
-        "- reach along the axis to {:.1} mT (a common rule of thumb for picking up small steel items), from the reference point: {} {u}",
+        "- reach along the axis to {:.1} mT (a common rule of thumb for picking up small steel items), {from}: {} {u}",
         st.reach_level_t * 1e3,
         opt(st.reach_axis_m, 1.0 / f, 1)
     );

@@ -148,6 +148,7 @@ pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> R
             Some(r) => ctx.positive(r, Kind::FluxDensity, "study.reach_level")?,
             None => 5e-3,
         },
+        reach_from: study.get("reach_from").map(|p| ctx.point(p, "study.reach_from")).transpose()?,
         params: params.clone(),
         allow: study_table::allowed(&study)?,
         accuracy,

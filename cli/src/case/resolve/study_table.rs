@@ -17,6 +17,7 @@ pub const STUDY: &[&str] = &[
     "applied_field",
     "box",
     "reach_level",
+    "reach_from",
     "allow",
     "accuracy",
     "exposure",
