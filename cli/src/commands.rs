@@ -80,12 +80,27 @@ fn solve_inner(
         max_elements,
         ..Default::default()
     };
-    let mut variants = run::variants(&loaded, &overrides(set)?)?;
+    solve_loaded(&loaded, output, &overrides(set)?, &limits, shard, force, &progress)
+}
+
+/// `solve` on a case already read (from a file, or the Python package's
+/// text): a single study, a sweep, a seek, a tolerance study or an
+/// optimization, into its output folder; the exit code.
+pub fn solve_loaded(
+    loaded: &Loaded,
+    output: Option<PathBuf>,
+    overrides: &BTreeMap<String, f64>,
+    limits: &Limits,
+    shard: Option<&str>,
+    force: bool,
+    progress: &Progress,
+) -> Result<i32, Failure> {
+    let mut variants = run::variants(loaded, overrides)?;
     // Input errors that every variant shares (a misspelled name, a bad unit)
     // are found before any folder is made or mesh built.
     let (mut seek, mut tolerance, mut optimize) = (None, None, None);
     if let Some(first) = variants.first() {
-        let resolved = run::resolve(&loaded, &first.params, &limits)?;
+        let resolved = run::resolve(loaded, &first.params, limits)?;
         seek = crate::case::resolve::seek(&loaded.doc, &first.params, &resolved.model).map_err(|d| loaded.input(&d))?;
         tolerance = crate::case::resolve::tolerance(&loaded.doc, &first.params, &resolved.model).map_err(|d| loaded.input(&d))?;
         optimize = crate::case::resolve::optimize(&loaded.doc, &first.params, &resolved.model).map_err(|d| loaded.input(&d))?;
@@ -111,24 +126,24 @@ fn solve_inner(
             )));
         }
     }
-    let out = default_output(&loaded, output);
+    let out = default_output(loaded, output);
     let folder = OutputFolder::open(&out).map_err(|e| Failure::Input(format!("error: {e}\n")))?;
     if let Some(spec) = &seek {
-        return crate::seek::solve(&loaded, spec, &variants[0], &folder, &limits, &progress);
+        return crate::seek::solve(loaded, spec, &variants[0], &folder, limits, progress);
     }
     if let Some(tol) = &tolerance {
         let run = crate::tolerance::Run {
             shard: shard.map(|s| s.1),
             force,
         };
-        return crate::tolerance::solve(&loaded, tol, &variants[0], &folder, &limits, &progress, run);
+        return crate::tolerance::solve(loaded, tol, &variants[0], &folder, limits, progress, run);
     }
     if let Some(spec) = &optimize {
-        return crate::optimize::solve(&loaded, spec, &variants[0], &folder, &limits, &progress);
+        return crate::optimize::solve(loaded, spec, &variants[0], &folder, limits, progress);
     }
     let swept = variants.first().is_some_and(|v| !v.label.is_empty());
     if !swept {
-        let outcome = run::solve_variant(&loaded, &variants[0], &limits, &progress)?;
+        let outcome = run::solve_variant(loaded, &variants[0], limits, progress)?;
         progress.finish();
         folder
             .commit(Path::new(""), &outcome.files)
@@ -140,7 +155,7 @@ fn solve_inner(
             not_converged(&outcome, true)
         });
     }
-    solve_sweep(&loaded, &variants, &folder, &limits, force, &progress)
+    solve_sweep(loaded, &variants, &folder, limits, force, progress)
 }
 
 /// 1 when an expectation failed, else 0 (as `check` and the README have it).

@@ -4,10 +4,14 @@
 use std::io::{IsTerminal, Write};
 use std::sync::Mutex;
 
+/// Hears each progress line (the Python package's callback).
+pub type Listener = Box<dyn Fn(&str) + Send + Sync>;
+
 pub struct Progress {
     quiet: bool,
     terminal: bool,
     last_len: Mutex<usize>,
+    listener: Option<Listener>,
 }
 
 impl Progress {
@@ -16,10 +20,22 @@ impl Progress {
             quiet,
             terminal: std::io::stderr().is_terminal(),
             last_len: Mutex::new(0),
+            listener: None,
+        }
+    }
+
+    /// Progress that goes to `listener` instead of stderr.
+    pub fn to(listener: Listener) -> Progress {
+        Progress {
+            listener: Some(listener),
+            ..Progress::new(true)
         }
     }
 
     pub fn note(&self, msg: &str) {
+        if let Some(l) = &self.listener {
+            l(msg);
+        }
         if self.quiet {
             return;
         }

@@ -20,13 +20,13 @@ import json
 import math
 import os
 import re
-from typing import Any, Dict, List, Mapping, Optional, Sequence, Tuple, Union
+from typing import Any, Callable, Dict, List, Mapping, Optional, Sequence, Tuple, Union
 
 import numpy as np
 
 from . import _lodestone
 
-__all__ = ["solve", "Results", "CaseError"]
+__all__ = ["solve", "sweep", "optimize", "tolerance", "Results", "Study", "CaseError"]
 
 
 class CaseError(ValueError):
@@ -66,6 +66,87 @@ def solve(case: CaseLike, set: Optional[Mapping[str, float]] = None, accuracy: U
         raise CaseError(str(e)) from None
     results_json, field_map, field = answer
     return Results(results_json, field_map, field)
+
+
+class Study:
+    """A sweep, optimization or tolerance study run into ``folder``.
+
+    ``code`` is the command line's exit code (0 done, 1 an expectation or
+    constraint failed, 3 not converged). ``results`` is the case solved at
+    its nominal parameters or at the optimum (values and errors, without
+    the field), where the study writes one. ``table`` (sweeps) maps each
+    sweep.csv column to a numpy array; ``summary`` holds optimize.json or
+    tolerance.json.
+    """
+
+    def __init__(self, folder: str, code: int) -> None:
+        self.folder = folder
+        self.code = code
+        self.table: Dict[str, np.ndarray] = {}
+        self.summary: Dict[str, Any] = {}
+        self.results: Optional[Dict[str, Any]] = None
+        csv_path = os.path.join(folder, "sweep.csv")
+        if os.path.exists(csv_path):
+            import csv
+
+            with open(csv_path, newline="") as f:
+                rows = list(csv.reader(f))
+            if rows:
+                for i, name in enumerate(rows[0]):
+                    column = [r[i] for r in rows[1:]]
+                    try:
+                        self.table[name] = np.asarray([float(c) for c in column])
+                    except ValueError:
+                        self.table[name] = np.asarray(column)
+        for name in ("optimize.json", "tolerance.json"):
+            path = os.path.join(folder, name)
+            if os.path.exists(path):
+                with open(path) as f:
+                    self.summary = json.load(f)
+        path = os.path.join(folder, "results.json")
+        if os.path.exists(path):
+            with open(path) as f:
+                self.results = json.load(f)
+
+    def __repr__(self) -> str:
+        return f"<lodestone.Study in {self.folder}: exit code {self.code}>"
+
+
+ProgressCallback = Optional[Callable[[str], Any]]
+
+
+def _run(case: CaseLike, table: str, out: Optional[str], set: Optional[Mapping[str, float]], accuracy: Union[None, str, float], force: bool, progress: ProgressCallback) -> Study:
+    text, path = _case_text(case)
+    if not re.search(r"^\s*\[" + table + r"\]", text, re.M):
+        raise CaseError(f"error: {path}: lodestone.{table}() needs a [{table}] table in the case")
+    folder = out if out is not None else __import__("tempfile").mkdtemp(prefix=f"lodestone-{table}-")
+    try:
+        code = _lodestone.run_study(text, path, folder, dict(set) if set else None, _accuracy(accuracy), force, progress)
+    except ValueError as e:
+        raise CaseError(str(e)) from None
+    return Study(folder, code)
+
+
+def sweep(case: CaseLike, out: Optional[str] = None, set: Optional[Mapping[str, float]] = None, accuracy: Union[None, str, float] = None, force: bool = False, progress: ProgressCallback = None) -> Study:
+    """Run the case's ``[sweep]`` (every variant, on all cores, the GIL
+    released) into ``out`` (a new temporary folder by default); variants
+    already whole there are not solved again unless ``force``.
+    ``progress(line)`` hears each progress line."""
+    return _run(case, "sweep", out, set, accuracy, force, progress)
+
+
+def optimize(case: CaseLike, out: Optional[str] = None, set: Optional[Mapping[str, float]] = None, accuracy: Union[None, str, float] = None, progress: ProgressCallback = None) -> Study:
+    """Run the case's ``[optimize]``: ``summary`` is optimize.json
+    (``params``, ``values``, ``errors``), ``results`` the case at the
+    optimum."""
+    return _run(case, "optimize", out, set, accuracy, False, progress)
+
+
+def tolerance(case: CaseLike, out: Optional[str] = None, set: Optional[Mapping[str, float]] = None, accuracy: Union[None, str, float] = None, force: bool = False, progress: ProgressCallback = None) -> Study:
+    """Run the case's ``[tolerance]`` study (samples on all cores, kept in
+    ``out`` so that a rerun resumes): ``summary`` is tolerance.json
+    (statistics of every value, verdicts on statistics)."""
+    return _run(case, "tolerance", out, set, accuracy, force, progress)
 
 
 def _case_text(case: CaseLike) -> Tuple[str, str]:

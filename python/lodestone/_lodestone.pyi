@@ -1,6 +1,6 @@
 """Type hints of the native module (python/src/lib.rs)."""
 
-from typing import Dict, List, Optional, Tuple
+from typing import Callable, Dict, List, Optional, Tuple
 
 class Field:
     """The solved field of a case, kept after the solve."""
@@ -15,3 +15,14 @@ def solve_text(
 ) -> Tuple[str, Optional[str], Field]:
     """Solves a case given as text: results.json's text, the field map (SVG) and the field.
     Raises ValueError with the command line's message for a bad case."""
+
+def run_study(
+    text: str,
+    path: str,
+    out: str,
+    set: Optional[Dict[str, float]] = None,
+    accuracy: Optional[float] = None,
+    force: bool = False,
+    progress: Optional[Callable[[str], object]] = None,
+) -> int:
+    """Runs a case's sweep, seek, tolerance study or optimization into `out`; the exit code."""

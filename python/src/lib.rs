@@ -82,16 +82,7 @@ type Answer = (String, Option<String>, Field);
 #[pyfunction]
 #[pyo3(signature = (text, path, set=None, accuracy=None))]
 fn solve_text(py: Python<'_>, text: String, path: String, set: Option<Bound<'_, PyDict>>, accuracy: Option<f64>) -> PyResult<Answer> {
-    let mut overrides = BTreeMap::new();
-    if let Some(d) = set {
-        for (k, v) in d.iter() {
-            let name: String = k.extract().map_err(|_| PyValueError::new_err("set: parameter names must be strings"))?;
-            let value: f64 = v
-                .extract()
-                .map_err(|_| PyValueError::new_err(format!("set: '{name}' must be a plain number, in the units the case uses for it")))?;
-            overrides.insert(name, value);
-        }
-    }
+    let overrides = overrides(set)?;
     let outcome = py.detach(move || catch_unwind(AssertUnwindSafe(|| solve_inner(text, PathBuf::from(path), overrides, accuracy))));
     match outcome {
         Ok(Ok(answer)) => Ok(answer),
@@ -134,9 +125,72 @@ fn solve_inner(text: String, path: PathBuf, overrides: BTreeMap<String, f64>, ac
     ))
 }
 
+/// Runs a case's study as `lodestone solve` would (a sweep, a seek, a
+/// tolerance study or an optimization) into the folder `out`, with the
+/// GIL released and the cores in use; `progress`, if given, is called with
+/// each progress line. Returns the exit code (0 done, 1 an expectation or
+/// constraint failed, 3 not converged); a bad case raises ValueError with
+/// the command line's message.
+#[pyfunction]
+#[pyo3(signature = (text, path, out, set=None, accuracy=None, force=false, progress=None))]
+#[allow(clippy::too_many_arguments)]
+fn run_study(
+    py: Python<'_>,
+    text: String,
+    path: String,
+    out: String,
+    set: Option<Bound<'_, PyDict>>,
+    accuracy: Option<f64>,
+    force: bool,
+    progress: Option<Py<PyAny>>,
+) -> PyResult<i32> {
+    let overrides = overrides(set)?;
+    let result = py.detach(move || {
+        catch_unwind(AssertUnwindSafe(|| -> Result<i32, String> {
+            let loaded = lodestone::run::load_text(&PathBuf::from(path), text).map_err(|f| f.message().to_string())?;
+            let limits = lodestone::run::Limits {
+                accuracy: accuracy.map(|a| (a > 0.0).then_some(a)),
+                ..Default::default()
+            };
+            let listener = progress.map(|cb| -> lodestone::progress::Listener {
+                Box::new(move |line: &str| {
+                    // A callback's own error must not stop the study: it is ignored.
+                    Python::attach(|py| {
+                        let _ = cb.call1(py, (line,));
+                    })
+                })
+            });
+            let progress = listener.map_or_else(|| lodestone::progress::Progress::new(true), lodestone::progress::Progress::to);
+            lodestone::commands::solve_loaded(&loaded, Some(PathBuf::from(out)), &overrides, &limits, None, force, &progress)
+                .map_err(|f| f.message().to_string())
+        }))
+    });
+    match result {
+        Ok(Ok(code)) => Ok(code),
+        Ok(Err(message)) => Err(PyValueError::new_err(message)),
+        Err(_) => Err(PyRuntimeError::new_err("internal error while solving (a bug; please report it with the case)")),
+    }
+}
+
+/// `set` as parameter overrides.
+fn overrides(set: Option<Bound<'_, PyDict>>) -> PyResult<BTreeMap<String, f64>> {
+    let mut out = BTreeMap::new();
+    if let Some(d) = set {
+        for (k, v) in d.iter() {
+            let name: String = k.extract().map_err(|_| PyValueError::new_err("set: parameter names must be strings"))?;
+            let value: f64 = v
+                .extract()
+                .map_err(|_| PyValueError::new_err(format!("set: '{name}' must be a plain number, in the units the case uses for it")))?;
+            out.insert(name, value);
+        }
+    }
+    Ok(out)
+}
+
 #[pymodule]
 fn _lodestone(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(solve_text, m)?)?;
+    m.add_function(wrap_pyfunction!(run_study, m)?)?;
     m.add_class::<Field>()?;
     Ok(())
 }
