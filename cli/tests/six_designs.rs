@@ -5,8 +5,9 @@
 //! should raise and no others, engineering numbers in the summary, the
 //! cautions that fit, the exit code.
 
+mod common;
+
 use serde_json::Value;
-use std::process::Command;
 
 struct Run {
     code: i32,
@@ -14,23 +15,14 @@ struct Run {
     json: Value,
 }
 
-/// Solves a case text from the command line.
+/// Solves a case text from the command line (common::solve_text).
 fn solve(name: &str, text: &str) -> Run {
-    let dir = std::env::temp_dir().join(format!("lodestone-six-{}-{name}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&dir);
-    std::fs::create_dir_all(&dir).unwrap();
-    let case = dir.join("case.toml");
-    std::fs::write(&case, text).unwrap();
-    let out = dir.join("out");
-    let o = Command::new(env!("CARGO_BIN_EXE_lodestone"))
-        .args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()])
-        .output()
-        .unwrap();
+    let (code, summary, out) = common::solve_text(&format!("six-{name}"), text);
     let json = std::fs::read_to_string(out.join("results.json")).map_or(Value::Null, |t| serde_json::from_str(&t).unwrap());
-    let _ = std::fs::remove_dir_all(&dir);
+    let _ = std::fs::remove_dir_all(out.parent().unwrap());
     Run {
-        code: o.status.code().unwrap_or(-1),
-        summary: format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr)),
+        code: code.unwrap_or(-1),
+        summary,
         json,
     }
 }

@@ -182,34 +182,35 @@ fn check_temperature(study: &crate::case::document::Fields, temperature: f64, pa
     Ok(())
 }
 
-/// The case's `[seek]`, resolved against a model of the case (its value
-/// name and target unit are checked there).
-pub fn seek(doc: &Item, params: &BTreeMap<String, f64>, model: &Model) -> Result<Option<Seek>, Diagnostic> {
+/// Reads a design-question table of the case with the context of one
+/// resolved model (its parameters and length unit).
+fn with_model<T>(
+    doc: &Item,
+    params: &BTreeMap<String, f64>,
+    model: &Model,
+    read: impl FnOnce(&crate::case::document::Fields, &Context) -> Result<T, Diagnostic>,
+) -> Result<T, Diagnostic> {
     let top = doc.table("the case file", TOP)?;
     let ctx = Context {
         params,
         length_unit: model.length_unit.1,
     };
-    seek_table::seek(&top, &ctx, model)
+    read(&top, &ctx)
+}
+
+/// The case's `[seek]`, resolved against a model of the case (its value
+/// name and target unit are checked there).
+pub fn seek(doc: &Item, params: &BTreeMap<String, f64>, model: &Model) -> Result<Option<Seek>, Diagnostic> {
+    with_model(doc, params, model, |top, ctx| seek_table::seek(top, ctx, model))
 }
 
 /// The case's `[tolerance]`, with nominal values from `params`.
 pub fn tolerance(doc: &Item, params: &BTreeMap<String, f64>, model: &Model) -> Result<Option<Tolerance>, Diagnostic> {
-    let top = doc.table("the case file", TOP)?;
-    let ctx = Context {
-        params,
-        length_unit: model.length_unit.1,
-    };
-    tolerance_table::tolerance(&top, &ctx)
+    with_model(doc, params, model, tolerance_table::tolerance)
 }
 
 /// The case's `[optimize]`, resolved against a model of the case (value
 /// names and bound units are checked there).
 pub fn optimize(doc: &Item, params: &BTreeMap<String, f64>, model: &Model) -> Result<Option<Optimize>, Diagnostic> {
-    let top = doc.table("the case file", TOP)?;
-    let ctx = Context {
-        params,
-        length_unit: model.length_unit.1,
-    };
-    optimize_table::optimize(&top, &ctx, model)
+    with_model(doc, params, model, |top, ctx| optimize_table::optimize(top, ctx, model))
 }
