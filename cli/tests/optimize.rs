@@ -75,7 +75,11 @@ fn finds_the_fixed_volume_optimum_of_the_closed_form() {
     assert!((b / exact - 1.0).abs() < 1e-3, "{b} T against {exact} T");
     // The error optimize.json reports is held to the true error.
     let error = json["errors"]["probe.target.bz"].as_f64().unwrap();
-    assert!(error > 0.0 && (b - exact).abs() <= 2.0 * error, "true error {} against the estimate {error}", (b - exact).abs());
+    assert!(
+        error > 0.0 && (b - exact).abs() <= 2.0 * error,
+        "true error {} against the estimate {error}",
+        (b - exact).abs()
+    );
     assert_eq!(json["objective_error"].as_f64(), Some(error));
     // Every evaluation in the CSV, the history chart, the case at the optimum.
     let csv = std::fs::read_to_string(out.join("optimize.csv")).unwrap();
