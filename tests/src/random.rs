@@ -136,6 +136,16 @@ pub fn read_case(text: &str) -> bool {
         Ok((model, _spans)) => model,
         Err(d) => return refused(d),
     };
+    // The design-question tables, read against the model as `solve` reads them.
+    for read in [
+        |doc: &_, p: &_, m: &_| lodestone::case::resolve::seek(doc, p, m).map(|_| ()),
+        |doc: &_, p: &_, m: &_| lodestone::case::resolve::tolerance(doc, p, m).map(|_| ()),
+        |doc: &_, p: &_, m: &_| lodestone::case::resolve::optimize(doc, p, m).map(|_| ()),
+    ] {
+        if let Err(d) = read(&doc, &params, &model) {
+            refused(d);
+        }
+    }
     let mut spec = study::lower::mesh_spec(&model);
     spec.max_triangles = 20_000;
     match mesher::estimate_triangles(&spec) {
