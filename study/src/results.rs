@@ -254,7 +254,7 @@ pub struct StrayResult {
     pub reference_point_m: Option<[f64; 2]>,
     /// Distance along the axis where |B| falls to the reach level, m.
     pub reach_axis_m: Option<f64>,
-    /// The point the reach is measured from ([study] reach_from, or the
+    /// The point the reach is measured from (`[study] reach_from`, or the
     /// reference point), m.
     pub reach_from_m: Option<[f64; 2]>,
     /// The reach level, T.
