@@ -70,8 +70,9 @@ pub fn solve(loaded: &Loaded, spec: &Seek, base: &Variant, folder: &OutputFolder
     let error = outcome.results.errors.get(&spec.value).copied();
     outcome.files.push(("seek.json".into(), seek_json(spec, &found, &at.params, value, error)?));
     outcome.files.push(("seek.csv".into(), seek_csv(spec, &found).into_bytes()));
+    outcome.files.push(("seek.svg".into(), seek_chart(spec, &found).into_bytes()));
     let section = format!(
-        "## Goal seek\n\n`{}` reaches {} at {} = {:.6} \u{b1} {:.2e} (the case's own units), found in {} evaluations by a scan and Brent's method; the case above is solved there. Every evaluation is in seek.csv, the answer in seek.json.\n",
+        "## Goal seek\n\n`{}` reaches {} at {} = {:.6} \u{b1} {:.2e} (the case's own units), found in {} evaluations by a scan and Brent's method; the case above is solved there. Every evaluation is in seek.csv, the answer in seek.json.\n\n![goal seek](seek.svg)\n",
         spec.value,
         crate::output::engineering::eng(spec.target, spec.unit),
         spec.vary,
@@ -124,4 +125,26 @@ fn seek_csv(spec: &Seek, found: &study::seek::Found) -> String {
         s += &format!("{},{},{}\n", e.x, e.value, e.error);
     }
     s
+}
+
+/// seek.svg: the value at each evaluation against the parameter, in the
+/// value's SI prefix, with the target as a line.
+fn seek_chart(spec: &Seek, found: &study::seek::Found) -> String {
+    use crate::output::svg::{chart, Chart};
+    let top = found.evaluations.iter().map(|e| e.value.abs()).fold(spec.target.abs(), f64::max);
+    let (exponent, prefix) = crate::output::engineering::prefix_of(top, spec.unit);
+    let per = 10f64.powi(-exponent);
+    let mut pts: Vec<[f64; 2]> = found.evaluations.iter().map(|e| [e.x, e.value * per]).collect();
+    pts.sort_by(|a, b| a[0].total_cmp(&b[0]));
+    let title = format!("goal seek: {} against {}", spec.value, spec.vary);
+    let y = format!("{} ({prefix}{})", spec.value, spec.unit);
+    chart(&Chart {
+        title: &title,
+        x_label: &spec.vary,
+        y_label: &y,
+        series: vec![("evaluations".into(), pts.clone())],
+        scatter: vec![("evaluated".into(), pts)],
+        marks: vec![(spec.target * per, format!("target {}", crate::output::engineering::eng(spec.target, spec.unit)))],
+        ..Default::default()
+    })
 }

@@ -75,6 +75,7 @@ fn the_smallest_cylinder_for_5_mt_at_100_mm_matches_the_closed_form() {
     );
     assert!(json["evaluations"].as_array().unwrap().len() < 30);
     assert!(out.join("seek.csv").exists() && out.join("results.json").exists());
+    assert!(std::fs::read_to_string(out.join("seek.svg")).unwrap().contains("target 5 mT"), "no seek chart");
     assert!(text.contains("seek: d = "), "{text}");
     let _ = std::fs::remove_dir_all(out.parent().unwrap());
 }
