@@ -11,6 +11,7 @@ mod names;
 mod optimize_table;
 mod params;
 mod parts;
+mod pattern;
 mod seek_table;
 mod study_table;
 mod tolerance_table;
@@ -30,7 +31,7 @@ use materials_table::user_materials;
 use measures::{fluxes, forces, probes};
 use mesh_table::{mesh_settings, solver_settings};
 use names::{check_unique_names, TOP};
-use parts::part;
+use parts::parts_of;
 use std::collections::BTreeMap;
 use std::ops::Range;
 use std::path::Path;
@@ -115,8 +116,10 @@ pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> R
     let mut parts = Vec::new();
     let mut spans = Spans::default();
     for item in parts_items {
-        parts.push(part(item, &ctx, symmetry, &user_materials, &mesh, &parts)?);
-        spans.parts.push(item.span.clone());
+        for p in parts_of(item, &ctx, symmetry, &user_materials, &mesh, &parts)? {
+            parts.push(p);
+            spans.parts.push(item.span.clone());
+        }
     }
     check_temperature(&study, temperature, &parts, "temperature")?;
     let exposure = study_table::exposure(&study, &ctx, symmetry, temperature)?;

@@ -26,10 +26,35 @@ const PART: &[&str] = &[
     "fill_factor",
     "turn_length",
     "winding_temperature",
+    "transform",
+    "array",
 ];
 const SHAPES: &[&str] = &["polygon", "rect", "circle"];
 
-pub(super) fn part(
+/// A `[[part]]` table: the part, or its copies when it has an `array`
+/// (placed by its `transform` first); names unique among all parts.
+pub(super) fn parts_of(
+    item: &Item,
+    ctx: &Context,
+    symmetry: Symmetry,
+    user: &BTreeMap<String, (Entry, std::ops::Range<usize>)>,
+    mesh: &MeshSettings,
+    before: &[Part],
+) -> Result<Vec<Part>, Diagnostic> {
+    let one = part(item, ctx, symmetry, user, mesh, before)?;
+    let t = item.table("[[part]]", PART)?;
+    let what = format!("part '{}'", one.name);
+    let copies = super::pattern::copies(&t, ctx, symmetry, one, &what)?;
+    if let Some(c) = copies.iter().find(|c| before.iter().any(|p| p.name == c.name)) {
+        return Err(Diagnostic::new(
+            format!("{what}: its copy '{}' has the name of a part before it; part names must be unique", c.name),
+            t.get("array").map(|i| i.span.clone()),
+        ));
+    }
+    Ok(copies)
+}
+
+fn part(
     item: &Item,
     ctx: &Context,
     symmetry: Symmetry,
