@@ -15,6 +15,9 @@ use study::model::Part;
 const TRANSFORM: &[&str] = &["move", "rotate", "about", "mirror"];
 /// Keys of `array`.
 const ARRAY: &[&str] = &["count", "step", "about", "angle", "turn"];
+/// Where copy k of a part goes.
+type Placement = Box<dyn Fn(&Part, f64) -> Part>;
+
 /// Most copies one array makes.
 const MOST_COPIES: f64 = 1000.0;
 
@@ -39,7 +42,7 @@ pub(super) fn copies(t: &Fields, ctx: &Context, symmetry: Symmetry, part: Part, 
         Some(i) => Some((ctx.quantity(i, Kind::Angle, &format!("{what} array.turn"))?, i)),
         None => None,
     };
-    let place: Box<dyn Fn(&Part, f64) -> Part> = match (a.get("step"), a.get("angle")) {
+    let place: Placement = match (a.get("step"), a.get("angle")) {
         (Some(s), None) => {
             let step = ctx.point(s, &format!("{what} array.step"))?;
             if symmetry == Symmetry::Axisymmetric && step[0] != 0.0 {
