@@ -19,6 +19,7 @@
 
 #![warn(missing_docs)]
 
+mod crossings;
 mod domain;
 mod error;
 mod exterior;

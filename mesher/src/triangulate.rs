@@ -75,8 +75,9 @@ pub fn mesh_domain(spec: &MeshSpec, polygons: &[Vec<[f64; 2]>], domain: &Domain)
     };
     work.add_polyline(&outline, true)?;
     work.constrained_axis = true;
-    for poly in polygons {
-        work.add_polyline(poly, true)?;
+    // Crossings of two parts' outlines are vertices of both (crossings.rs).
+    for poly in crate::crossings::with_crossings(polygons) {
+        work.add_polyline(&poly, true)?;
     }
     let max_vertices = spec.max_triangles / 2 + 1000;
     work.refine_to_size(max_vertices, spec.max_triangles)?;
