@@ -182,18 +182,19 @@ fn evaluations_csv(spec: &Optimize, o: &Optimum) -> String {
 /// optimize.svg: the objective of each evaluation, feasible ones as dots,
 /// and the best so far as a line.
 fn history_chart(spec: &Optimize, o: &Optimum) -> String {
-    let sign = if spec.objective.maximize { -1.0 } else { 1.0 };
-    let mut best = f64::INFINITY;
+    let mut best: Option<&Point> = None;
     let mut line = Vec::new();
     let mut dots = Vec::new();
     for (i, p) in o.evaluations.iter().enumerate() {
         let x = (i + 1) as f64;
         if p.violation() == 0.0 {
-            best = best.min(p.objective);
-            dots.push([x, sign * p.objective]);
+            if best.is_none_or(|b| p.objective < b.objective) {
+                best = Some(p);
+            }
+            dots.push([x, natural(spec, p)]);
         }
-        if best.is_finite() {
-            line.push([x, sign * best]);
+        if let Some(b) = best {
+            line.push([x, natural(spec, b)]);
         }
     }
     let title = format!("{}: {}", if spec.objective.maximize { "maximize" } else { "minimize" }, spec.objective.text);

@@ -260,14 +260,19 @@ pub fn judge(model: &study::model::Model, stats: &BTreeMap<String, Statistics>) 
 }
 
 impl Judged {
+    /// The judged figures as people read them ("49.33 mT", or both ends).
+    fn figures_text(&self) -> String {
+        let figs: Vec<String> = self.figures.iter().map(|v| crate::output::engineering::eng(*v, self.unit)).collect();
+        figs.join(" .. ")
+    }
+
     /// The line `solve` and `check` print.
     pub fn line(&self) -> String {
-        let figs: Vec<String> = self.figures.iter().map(|v| crate::output::engineering::eng(*v, self.unit)).collect();
         format!(
             "{:<36} {:<24} {:>24}  {}",
             self.name,
             self.bound,
-            figs.join(" .. "),
+            self.figures_text(),
             if self.pass { "pass" } else { "FAIL" }
         )
     }
@@ -342,12 +347,11 @@ pub fn solve(loaded: &Loaded, tol: &Tolerance, base: &Variant, folder: &OutputFo
         println!("  WARNING: {name}: a face centre of the tolerance box goes past the corners' extremes, so its worst case is not at a corner; use method = \"monte-carlo\"");
     }
     for j in &judged {
-        let figs: Vec<String> = j.figures.iter().map(|v| crate::output::engineering::eng(*v, j.unit)).collect();
         println!(
             "  expect {} {}: {} ({})",
             j.name,
             j.bound,
-            figs.join(" .. "),
+            j.figures_text(),
             if j.pass { "pass" } else { "FAIL" }
         );
     }
@@ -454,12 +458,11 @@ fn report_section(
     if !judged.is_empty() {
         s += "\n| expectation | bound | over the samples | result |\n|---|---|---|---|\n";
         for j in judged {
-            let figs: Vec<String> = j.figures.iter().map(|v| crate::output::engineering::eng(*v, j.unit)).collect();
             s += &format!(
                 "| {} | {} | {} | {} |\n",
                 j.name,
                 j.bound,
-                figs.join(" .. "),
+                j.figures_text(),
                 if j.pass { "pass" } else { "FAIL" }
             );
         }

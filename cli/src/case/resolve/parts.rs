@@ -41,8 +41,8 @@ pub(super) fn parts_of(
     mesh: &MeshSettings,
     before: &[Part],
 ) -> Result<Vec<Part>, Diagnostic> {
-    let one = part(item, ctx, symmetry, user, mesh, before)?;
     let t = item.table("[[part]]", PART)?;
+    let one = part(&t, ctx, symmetry, user, mesh, before)?;
     let what = format!("part '{}'", one.name);
     let copies = super::pattern::copies(&t, ctx, symmetry, one, &what)?;
     if let Some(c) = copies.iter().find(|c| before.iter().any(|p| p.name == c.name)) {
@@ -54,15 +54,15 @@ pub(super) fn parts_of(
     Ok(copies)
 }
 
+/// One part from its table (an array's copies are made from it).
 fn part(
-    item: &Item,
+    t: &Fields,
     ctx: &Context,
     symmetry: Symmetry,
     user: &BTreeMap<String, (Entry, std::ops::Range<usize>)>,
     mesh: &MeshSettings,
     before: &[Part],
 ) -> Result<Part, Diagnostic> {
-    let t = item.table("[[part]]", PART)?;
     let name = super::names::name(t.require("name")?, "part.name")?;
     if before.iter().any(|p| p.name == name) {
         return Err(Diagnostic::new(
@@ -123,7 +123,7 @@ fn part(
             t.get("current").or(t.get("current_density")).map(|i| i.span.clone()),
         ));
     }
-    let winding = winding(&t, ctx, &what, current.is_some(), shape.exact_area(symmetry), symmetry)?;
+    let winding = winding(t, ctx, &what, current.is_some(), shape.exact_area(symmetry), symmetry)?;
     Ok(Part {
         name,
         material,
