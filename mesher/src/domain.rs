@@ -2,7 +2,7 @@
 
 use crate::error::MeshError;
 use crate::geometry::{bbox, dist, Symmetry};
-use crate::spec::{MeshSpec, OuterBoundary, Refinement};
+use crate::spec::{BoxSides, MeshSpec, OuterBoundary, Refinement, SideKind, LEFT};
 
 /// The closed outline of the physical domain, counter-clockwise.
 #[derive(Clone, Debug)]
@@ -13,6 +13,8 @@ pub struct Domain {
     pub kelvin: Option<([f64; 2], f64)>,
     /// Largest element size anywhere in the domain.
     pub max_size: f64,
+    /// The box of a flux-parallel study (lower left, upper right) and what its sides are.
+    pub sides: Option<([f64; 2], [f64; 2], BoxSides)>,
 }
 
 /// Number of chords of the open boundary's circle.
@@ -39,9 +41,10 @@ impl Domain {
                     outline,
                     kelvin: Some((c, radius)),
                     max_size: radius / 6.0,
+                    sides: None,
                 })
             }
-            OuterBoundary::FluxParallel { from_to } => {
+            OuterBoundary::FluxParallel { from_to, sides } => {
                 let (b0, b1) = match from_to {
                     Some((a, b)) => ([a[0].min(b[0]), a[1].min(b[1])], [a[0].max(b[0]), a[1].max(b[1])]),
                     None => {
@@ -56,12 +59,22 @@ impl Domain {
                         "the flux-parallel box must contain every part (and start at r = 0 when axisymmetric)".into(),
                     ));
                 }
+                check_sides(sides, axisym)?;
                 let outline = vec![b0, [b1[0], b0[1]], b1, [b0[0], b1[1]]];
-                let size = (b1[0] - b0[0]).max(b1[1] - b0[1]);
+                let (w, h) = (b1[0] - b0[0], b1[1] - b0[1]);
+                // Across a periodic pair no triangle may reach from one side to
+                // the other (its two nodes would be one unknown twice).
+                let periodic = |k: usize| matches!(sides[k], SideKind::Periodic { .. });
+                let across = [(periodic(LEFT), w), (periodic(crate::spec::BOTTOM), h)]
+                    .iter()
+                    .filter(|(p, _)| *p)
+                    .map(|(_, d)| d / 4.0)
+                    .fold(f64::INFINITY, f64::min);
                 Ok(Domain {
                     outline,
                     kelvin: None,
-                    max_size: size / 6.0,
+                    max_size: (w.max(h) / 6.0).min(across),
+                    sides: Some((b0, b1, *sides)),
                 })
             }
         }
@@ -71,6 +84,27 @@ impl Domain {
     pub fn area(&self) -> f64 {
         crate::geometry::signed_area(&self.outline).abs()
     }
+}
+
+/// Periodic sides come in opposite pairs of one kind; the axis of an
+/// axisymmetric box (its left side) stays the axis.
+fn check_sides(sides: &BoxSides, axisymmetric: bool) -> Result<(), MeshError> {
+    for k in 0..2 {
+        let (a, b) = (sides[k], sides[k + 2]);
+        let pa = matches!(a, SideKind::Periodic { .. });
+        let pb = matches!(b, SideKind::Periodic { .. });
+        if (pa || pb) && a != b {
+            return Err(MeshError::Triangulation(
+                "periodic sides come in pairs: the opposite side must be periodic of the same kind".into(),
+            ));
+        }
+    }
+    if axisymmetric && sides[LEFT] != SideKind::Far {
+        return Err(MeshError::Triangulation(
+            "the left side of an axisymmetric box is the axis r = 0; it takes no other kind".into(),
+        ));
+    }
+    Ok(())
 }
 
 fn refinement_points(refinements: &[Refinement]) -> impl Iterator<Item = [f64; 2]> + Clone + '_ {

@@ -36,7 +36,10 @@ pub use error::{MeshError, BYTES_PER_TRIANGLE};
 pub use exterior::ExteriorDisk;
 pub use mesh::{BoundaryTag, Mesh, MeshQuality, Region};
 pub use refine::BoundaryCircle;
-pub use spec::{MeshSpec, OuterBoundary, PartSpec, Refinement, Shape, Symmetry, DEFAULT_GRADING, DEFAULT_MIN_ANGLE, GRADING_RANGE, MIN_ANGLE_RANGE};
+pub use spec::{
+    BoxSides, MeshSpec, OuterBoundary, PartSpec, Refinement, Shape, SideKind, Symmetry, BOTTOM, DEFAULT_GRADING, DEFAULT_MIN_ANGLE, GRADING_RANGE, LEFT,
+    MIN_ANGLE_RANGE, RIGHT, TOP,
+};
 
 /// Builds the mesh of a study: validate shapes, triangulate, refine, tag.
 pub fn build_mesh(spec: &MeshSpec) -> Result<Mesh, MeshError> {

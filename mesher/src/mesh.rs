@@ -21,6 +21,20 @@ pub enum BoundaryTag {
     Outer,
     /// The circle where the Kelvin-mapped exterior joins the domain.
     Rim,
+    /// A side of the box named a symmetry plane (`flux_normal`: nothing
+    /// imposed; otherwise zero potential).
+    Mirror {
+        /// flux crosses it at right angles
+        flux_normal: bool,
+    },
+    /// A side of the box in a periodic pair: `side` is its index in
+    /// `BoxSides` (the right side repeats the left, the top the bottom).
+    Periodic {
+        /// bottom, right, top or left (0 to 3)
+        side: u8,
+        /// the potential changes sign across the period
+        anti: bool,
+    },
     /// An edge between two different regions.
     Interface(Region, Region),
 }

@@ -49,13 +49,49 @@ pub enum OuterBoundary {
     /// Unbounded space: a disk (half-disk when axisymmetric) whose exterior is
     /// mapped by the Kelvin transformation onto a second disk.
     Open,
-    /// A = 0 on a box. `None` picks a box twice the size of the parts.
-    /// Zero potential (flux parallel) on a box.
+    /// A box: zero potential (flux parallel) on its sides, unless a side
+    /// is named a symmetry plane or one of a periodic pair.
     FluxParallel {
         /// two corners of the box; None picks twice the parts' extent
         from_to: Option<([f64; 2], [f64; 2])>,
+        /// what each side is, in the order bottom, right, top, left
+        sides: BoxSides,
     },
 }
+
+/// What one side of a flux-parallel box is.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Default)]
+pub enum SideKind {
+    /// A far wall: zero potential, flux parallel to it (the default).
+    #[default]
+    Far,
+    /// A symmetry plane of the assembly: flux parallel to it (zero
+    /// potential) or normal to it (the natural condition, nothing imposed).
+    /// Unlike a far wall, a force's stress band may reach it.
+    Mirror {
+        /// flux crosses at right angles (true) or runs along it (false)
+        flux_normal: bool,
+    },
+    /// One of two opposite sides on which the potential repeats (`anti`:
+    /// repeats with its sign turned, as over half a period of alternating poles).
+    Periodic {
+        /// the potential changes sign from one side to the other
+        anti: bool,
+    },
+}
+
+/// The four sides of a box: bottom, right, top, left (counter-clockwise
+/// from the lower left corner, the order of the box's outline).
+pub type BoxSides = [SideKind; 4];
+
+/// Index of the bottom side in [`BoxSides`].
+pub const BOTTOM: usize = 0;
+/// Index of the right side in [`BoxSides`].
+pub const RIGHT: usize = 1;
+/// Index of the top side in [`BoxSides`].
+pub const TOP: usize = 2;
+/// Index of the left side in [`BoxSides`].
+pub const LEFT: usize = 3;
 
 /// One part to be meshed: a shape and the target edge length in and near it.
 #[derive(Clone, Debug)]

@@ -13,6 +13,9 @@ use rayon::prelude::*;
 use spade::handles::{FixedFaceHandle, FixedVertexHandle, InnerTag};
 use spade::{AngleLimit, ConstrainedDelaunayTriangulation, Point2, RefinementParameters, Triangulation};
 
+#[path = "periodic.rs"]
+mod periodic;
+
 type Cdt = ConstrainedDelaunayTriangulation<Point2<f64>>;
 
 /// The working state of the mesher: the triangulation and a target size per vertex.
@@ -82,6 +85,9 @@ pub fn mesh_domain(spec: &MeshSpec, polygons: &[Vec<[f64; 2]>], domain: &Domain)
     let max_vertices = spec.max_triangles / 2 + 1000;
     work.refine_to_size(max_vertices, spec.max_triangles)?;
     work.refine_angles(spec.min_angle_deg, max_vertices, spec.max_triangles)?;
+    if let Some((b0, b1, sides)) = &domain.sides {
+        work.match_periodic_sides(*b0, *b1, sides, spec.min_angle_deg, max_vertices, spec.max_triangles)?;
+    }
     let mut mesh = work.extract(spec.symmetry, domain);
     if let Some((c, radius)) = domain.kelvin {
         attach_exterior(&mut mesh, c, radius)?;
@@ -336,7 +342,7 @@ impl Work<'_> {
             } else if domain.kelvin.is_some() {
                 BoundaryTag::Rim
             } else {
-                BoundaryTag::Outer
+                box_side_tag(domain, nodes[a], nodes[b])
             };
             boundary.push(([a, b], tag));
         }
@@ -365,6 +371,21 @@ impl Work<'_> {
             boundary,
             exterior: None,
         }
+    }
+}
+
+/// The tag of a box edge: what the side it lies on was named.
+fn box_side_tag(domain: &Domain, a: [f64; 2], b: [f64; 2]) -> BoundaryTag {
+    let Some((b0, b1, sides)) = &domain.sides else { return BoundaryTag::Outer };
+    // Bottom, right, top, left: the coordinate each holds fixed, and its value.
+    let lines = [(1, b0[1]), (0, b1[0]), (1, b1[1]), (0, b0[0])];
+    let Some(side) = lines.iter().position(|&(c, v)| a[c] == v && b[c] == v) else {
+        return BoundaryTag::Outer;
+    };
+    match sides[side] {
+        crate::spec::SideKind::Far => BoundaryTag::Outer,
+        crate::spec::SideKind::Mirror { flux_normal } => BoundaryTag::Mirror { flux_normal },
+        crate::spec::SideKind::Periodic { anti } => BoundaryTag::Periodic { side: side as u8, anti },
     }
 }
 

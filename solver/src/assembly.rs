@@ -27,6 +27,9 @@ pub struct System {
     pub dof_of_node: Vec<usize>,
     /// Number of unknowns.
     pub n_dofs: usize,
+    /// Sign of each node's potential against its unknown (-1 across an
+    /// anti-periodic pair); empty when every sign is +1.
+    pub sign_of_node: Vec<f64>,
     /// Lower triangle of the tangent, compressed by columns.
     pub matrix: CscMatrix<f64>,
     /// For element e, node pair i <= j: the slot in `matrix` values, or NO_SLOT.
@@ -52,12 +55,19 @@ impl System {
             || Elements::from_mesh(mesh, order),
             || if quadratic { ordering::corner_ranks(mesh) } else { None },
         );
-        let DofMap { mut dof_of_node, n_dofs } = DofMap::new(&Constraints::of_mesh(mesh, &elements));
+        let constraints = Constraints::of_mesh(mesh, &elements);
+        let tied = !constraints.ties.is_empty();
+        let DofMap {
+            mut dof_of_node,
+            n_dofs,
+            sign_of_node,
+        } = DofMap::new(&constraints);
         // Linear elements (or no workspace for the ordering) leave the
         // ordering to AMD of the matrix: their corner graph is the matrix
-        // graph, and its fixed corners made the factor 4 % larger.
+        // graph, and its fixed corners made the factor 4 % larger. Tied
+        // nodes share an unknown, which the corner graph does not know.
         let elimination = match ranks {
-            Some(ranks) if ordering::number_for_elimination(&elements, &ranks, &mut dof_of_node) => Elimination::AsNumbered,
+            Some(ranks) if !tied && ordering::number_for_elimination(&elements, &ranks, &mut dof_of_node) => Elimination::AsNumbered,
             _ => Elimination::MinimumDegree,
         };
         let (pattern, scatter) = build_pattern(&elements, &dof_of_node, n_dofs)?;
@@ -68,6 +78,7 @@ impl System {
             elements,
             dof_of_node,
             n_dofs,
+            sign_of_node,
             matrix,
             scatter,
             blocks: [Vec::new(), Vec::new()],
@@ -105,6 +116,7 @@ impl System {
             els: &self.elements,
             scatter: &self.scatter,
             dof_of_node: &self.dof_of_node,
+            sign_of_node: &self.sign_of_node,
         };
         let how = Kernel { air: &self.air, tangent };
         target.accumulate(problem, a, &self.nonlinear, how, &mut self.blocks, values, &mut residual);
@@ -124,18 +136,23 @@ impl System {
         let mut residual = affine_residual;
         let els = &self.elements;
         let m = els.order.n_nodes();
+        let signs = &self.sign_of_node;
         let local: Vec<[f64; MAX_NODES]> = self
             .nonlinear
             .par_iter()
             .map(|&e| {
-                element_residual(
+                let mut r = element_residual(
                     &els.coords[e],
                     &els.gather(e, a),
                     els.order,
                     problem.mesh.symmetry,
                     els.placement(e),
                     element_load(e, els.kinds[e], problem, &self.air),
-                )
+                );
+                if let Some(s) = element_signs(els, signs, e) {
+                    r.iter_mut().zip(s).for_each(|(r, s)| *r *= s);
+                }
+                r
             })
             .collect();
         for (&e, r) in self.nonlinear.iter().zip(&local) {
@@ -175,6 +192,7 @@ impl System {
             els: &self.elements,
             scatter: &self.scatter,
             dof_of_node: &self.dof_of_node,
+            sign_of_node: &self.sign_of_node,
         };
         let how = Kernel {
             air: &self.air,
@@ -196,7 +214,7 @@ impl System {
         let mut x = vec![0.0; self.n_dofs];
         for (n, &d) in self.dof_of_node.iter().enumerate() {
             if d != NONE {
-                x[d] = a[n];
+                x[d] = a[n] * self.sign_of_node.get(n).copied().unwrap_or(1.0);
             }
         }
         let mut y = self.affine_product(&x);
@@ -227,6 +245,7 @@ struct Target<'s> {
     els: &'s Elements,
     scatter: &'s [u32],
     dof_of_node: &'s [usize],
+    sign_of_node: &'s [f64],
 }
 
 impl Target<'_> {
@@ -254,7 +273,11 @@ impl Target<'_> {
                         tangent: how.tangent,
                         ..element_load(e, els.kinds[e], problem, how.air)
                     };
-                    element_system(&els.coords[e], &els.gather(e, a), els.order, symmetry, els.placement(e), load)
+                    let mut local = element_system(&els.coords[e], &els.gather(e, a), els.order, symmetry, els.placement(e), load);
+                    if let Some(s) = element_signs(els, self.sign_of_node, e) {
+                        signed(&mut local, &s);
+                    }
+                    local
                 })
                 .collect_into_vec(out)
         };
@@ -292,6 +315,31 @@ impl Target<'_> {
                     residual[d] += r[i];
                 }
             }
+        }
+    }
+}
+
+/// The signs of element e's node potentials against their unknowns, when
+/// one of them is -1 (a node tied across an anti-periodic pair).
+fn element_signs(els: &Elements, sign_of_node: &[f64], e: usize) -> Option<[f64; MAX_NODES]> {
+    if sign_of_node.is_empty() {
+        return None;
+    }
+    let mut s = [1.0; MAX_NODES];
+    for (k, &n) in els.element_nodes(e).iter().enumerate() {
+        s[k] = sign_of_node[n];
+    }
+    s.contains(&-1.0).then_some(s)
+}
+
+/// An element system in its nodes' potentials turned into one in their
+/// unknowns: row i and column j scale by the signs s_i and s_j.
+fn signed(local: &mut LocalSystem, s: &[f64; MAX_NODES]) {
+    let (k, r) = local;
+    for i in 0..MAX_NODES {
+        r[i] *= s[i];
+        for j in 0..MAX_NODES {
+            k[i][j] *= s[i] * s[j];
         }
     }
 }

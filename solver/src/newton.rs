@@ -296,7 +296,7 @@ fn shifted(system: &System, a: &[f64], step: &[f64], alpha: f64) -> Vec<f64> {
     let mut trial = a.to_vec();
     for (n, &d) in system.dof_of_node.iter().enumerate() {
         if d != NONE {
-            trial[n] += alpha * step[d];
+            trial[n] += alpha * step[d] * system.sign_of_node.get(n).copied().unwrap_or(1.0);
         }
     }
     trial

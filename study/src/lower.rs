@@ -226,7 +226,7 @@ pub fn problem<'m>(model: &Model, mesh: &'m mesher::Mesh) -> Result<Problem<'m>,
 /// Probes that the mesh cannot reach are input errors, found before solving.
 pub fn check_probes_inside(model: &Model) -> Result<(), StudyError> {
     let box_bounds = match model.boundary {
-        OuterBoundary::FluxParallel { from_to: Some((a, b)) } => Some(([a[0].min(b[0]), a[1].min(b[1])], [a[0].max(b[0]), a[1].max(b[1])])),
+        OuterBoundary::FluxParallel { from_to: Some((a, b)), .. } => Some(([a[0].min(b[0]), a[1].min(b[1])], [a[0].max(b[0]), a[1].max(b[1])])),
         _ => None,
     };
     for (i, probe) in model.probes.iter().enumerate() {

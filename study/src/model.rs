@@ -54,6 +54,22 @@ pub struct Model {
     pub accuracy: Option<f64>,
     /// An earlier state the magnets went through (`[study] exposure`).
     pub exposure: Option<Exposure>,
+    /// How the modelled section stands for the whole assembly, when forces
+    /// and energies are to be reported for the whole (`[study] scale_to_whole`).
+    pub whole: Option<WholeAssembly>,
+}
+
+/// The whole assembly as copies of the modelled section: mirrored on its
+/// symmetry planes, repeated over its periodic cells.
+#[derive(Clone, Debug, PartialEq)]
+pub struct WholeAssembly {
+    /// Forces, torques and energies of the whole over those of the section:
+    /// 2 per symmetry plane, times the number of cells.
+    pub factor: f64,
+    /// The symmetry planes: (the axis normal to the plane, 0 for x or r and
+    /// 1 for y or z; the plane's coordinate on that axis). The whole's force
+    /// has no component along that axis.
+    pub mirrors: Vec<(usize, f64)>,
 }
 
 /// An exposure: the magnets are solved first at this temperature and

@@ -43,9 +43,10 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
     let forces = force_results(model, sol, depth, &mut values);
     let flux = flux_results(model, sol, depth, &mut values);
     let e = energy::stored_energy(sol);
+    let whole = model.whole.as_ref().map_or(1.0, |w| w.factor);
     let energy = EnergyResult {
-        stored_j: e.stored * depth,
-        coenergy_j: e.coenergy * depth,
+        stored_j: e.stored * depth * whole,
+        coenergy_j: e.coenergy * depth * whole,
     };
     values.insert("energy".into(), energy.stored_j);
     values.insert("coenergy".into(), energy.coenergy_j);
@@ -184,13 +185,13 @@ fn force_results(model: &Model, sol: &Solution, depth: f64, values: &mut BTreeMa
     let mut out = BTreeMap::new();
     for f in &model.forces {
         let r = force::force_on(sol, &f.parts, f.torque_about);
-        let v = [r.vector[0] * depth, r.vector[1] * depth];
+        let (v, t) = to_whole(model, [r.vector[0] * depth, r.vector[1] * depth], r.torque * depth, f.torque_about);
         let planar = model.symmetry == Symmetry::Planar;
         let names = if planar { ["x", "y"] } else { ["r", "z"] };
         values.insert(format!("force.{}.{}", f.name, names[0]), v[0]);
         values.insert(format!("force.{}.{}", f.name, names[1]), v[1]);
         values.insert(format!("force.{}.magnitude", f.name), v[0].hypot(v[1]));
-        let torque = planar.then_some(r.torque * depth);
+        let torque = planar.then_some(t);
         if let Some(t) = torque {
             values.insert(format!("force.{}.torque", f.name), t);
         }
@@ -206,6 +207,25 @@ fn force_results(model: &Model, sol: &Solution, depth: f64, values: &mut BTreeMa
         );
     }
     out
+}
+
+/// The section's force and torque (about `about`) turned into the whole
+/// assembly's when the case asks for it: times the copies; on each symmetry
+/// plane the mirrored halves' normal components cancel, and the whole's
+/// torque is that of its force acting on the plane (the symmetric stress
+/// has no torque about a point of the plane).
+fn to_whole(model: &Model, v: [f64; 2], torque: f64, about: [f64; 2]) -> ([f64; 2], f64) {
+    let Some(w) = &model.whole else { return (v, torque) };
+    let mut f = v.map(|c| c * w.factor);
+    if w.mirrors.is_empty() {
+        return (f, torque * w.factor);
+    }
+    let mut arm = [0.0; 2];
+    for &(axis, at) in &w.mirrors {
+        f[axis] = 0.0;
+        arm[axis] = at - about[axis];
+    }
+    (f, arm[0] * f[1] - arm[1] * f[0])
 }
 
 fn flux_results(model: &Model, sol: &Solution, depth: f64, values: &mut BTreeMap<String, f64>) -> BTreeMap<String, FluxResult> {

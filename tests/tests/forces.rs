@@ -315,6 +315,7 @@ fn bar_magnet_is_pushed_off_a_flux_parallel_wall_by_its_image() {
     let bar = magnet(rect(-w, gap, w, gap + 2.0 * h), 0.0005, [0.0, BR]);
     let outer = OuterBoundary::FluxParallel {
         from_to: Some(([-0.2, 0.0], [0.2, 0.2])),
+        sides: Default::default(),
     };
     let f = solve_with(Symmetry::Planar, vec![bar], face_line(-w, w, gap), outer, [0.0; 2], |sol| {
         force_on(sol, &[0], [0.0; 2]).vector[1]
@@ -329,6 +330,7 @@ fn a_magnet_against_the_box_is_flagged_as_unreliable() {
     // the force is flagged. A gap clears the flag.
     let outer = || OuterBoundary::FluxParallel {
         from_to: Some(([-0.05, 0.0], [0.05, 0.05])),
+        sides: Default::default(),
     };
     let contact = |gap: f64| {
         let bar = magnet(rect(-0.005, gap, 0.005, gap + 0.005), 0.0008, [0.0, BR]);
@@ -350,6 +352,7 @@ fn disk_magnet_is_pushed_off_a_flux_parallel_wall_by_its_image() {
     let disk = magnet(rect(0.0, -gap - l, a, -gap), 0.0005, [0.0, BR]);
     let outer = OuterBoundary::FluxParallel {
         from_to: Some(([0.0, -0.2], [0.2, 0.0])),
+        sides: Default::default(),
     };
     let f = solve_with(Symmetry::Axisymmetric, vec![disk], face_line(0.0, a, gap), outer, [0.0; 2], |sol| {
         force_on(sol, &[0], [0.0; 2]).vector[1]

@@ -15,7 +15,10 @@ fn geometries() -> Vec<(&'static str, MeshSpec)> {
     let axi = Symmetry::Axisymmetric;
     let pl = Symmetry::Planar;
     let open = || OuterBoundary::Open;
-    let boxed = || OuterBoundary::FluxParallel { from_to: None };
+    let boxed = || OuterBoundary::FluxParallel {
+        from_to: None,
+        sides: Default::default(),
+    };
     vec![
         (
             "single rect, axisymmetric",

@@ -218,7 +218,10 @@ fn domain_edge(mesh: &mesher::Mesh, tx: &dyn Fn([f64; 2]) -> (f64, f64), pw: f64
 fn outline_loops(mesh: &mesher::Mesh) -> Vec<Vec<usize>> {
     let mut next: std::collections::HashMap<usize, Vec<usize>> = std::collections::HashMap::new();
     for (e, tag) in &mesh.boundary {
-        if matches!(tag, BoundaryTag::Rim | BoundaryTag::Outer | BoundaryTag::Axis) {
+        if matches!(
+            tag,
+            BoundaryTag::Rim | BoundaryTag::Outer | BoundaryTag::Axis | BoundaryTag::Mirror { .. } | BoundaryTag::Periodic { .. }
+        ) {
             next.entry(e[0]).or_default().push(e[1]);
             next.entry(e[1]).or_default().push(e[0]);
         }

@@ -131,7 +131,7 @@ fn band_weight(solution: &Solution, in_set_node: &[bool], other: &[bool], in_set
     let extent = (bhi[0] - blo[0]).max(bhi[1] - blo[1]).max(0.0);
     let wanted = (BAND_LAYERS * lengths.get(lengths.len() / 2).copied().unwrap_or(0.0)).max(BAND_FRACTION * extent);
     let grid = crate::segment_grid::SegmentGrid::new(boundary.iter().map(|&(a, b)| [pos[a], pos[b]]).collect());
-    let width = within_domain(solution, &grid, wanted);
+    let width = within_domain(solution, &grid, wanted, in_set_node);
     let mut weight: Vec<f64> = in_set_node.iter().map(|&s| if s { 1.0 } else { 0.0 }).collect();
     if width <= 0.0 {
         return weight;
@@ -169,14 +169,20 @@ fn band_weight(solution: &Solution, in_set_node: &[bool], other: &[bool], in_set
 /// box drawn against a part): g cannot fall to 0 there, so no band closes
 /// around the set in air.
 fn touches_outer_boundary(solution: &Solution, in_set_node: &[bool]) -> bool {
-    outer_boundary_nodes(solution.problem.mesh).any(|n| in_set_node[n])
+    outer_boundary_nodes(solution.problem.mesh, false).any(|n| in_set_node[n])
 }
 
-/// Nodes of the outer boundary's edges: the rim of an open study, a flux-parallel box.
-fn outer_boundary_nodes(mesh: &mesher::Mesh) -> impl Iterator<Item = usize> + '_ {
+/// Nodes of the outer boundary's edges: the rim of an open study, a
+/// flux-parallel box, periodic sides (the band's weight is not periodic, so
+/// it must fall to 0 before them), and with `mirrors` the symmetry planes.
+fn outer_boundary_nodes(mesh: &mesher::Mesh, mirrors: bool) -> impl Iterator<Item = usize> + '_ {
     mesh.boundary
         .iter()
-        .filter(|(_, tag)| matches!(tag, BoundaryTag::Rim | BoundaryTag::Outer))
+        .filter(move |(_, tag)| match tag {
+            BoundaryTag::Rim | BoundaryTag::Outer | BoundaryTag::Periodic { .. } => true,
+            BoundaryTag::Mirror { .. } => mirrors,
+            _ => false,
+        })
         .flat_map(|(edge, _)| *edge)
 }
 
@@ -186,9 +192,19 @@ fn outer_boundary_nodes(mesh: &mesher::Mesh) -> impl Iterator<Item = usize> + '_
 /// rim: a band cut off there left the stress on the cut surface out (a
 /// magnet's torque in a uniform field came out 11 % low when its band
 /// reached the rim).
-fn within_domain(solution: &Solution, set_boundary: &crate::segment_grid::SegmentGrid, wanted: f64) -> f64 {
+///
+/// A symmetry plane bounds the band too, unless the set reaches it: a set
+/// cut by the plane is half of a set whose band mirrors across it, so the
+/// band may cross and the section's force is the exact share of the
+/// whole's; a set clear of the plane would have its band enclose part of
+/// its mirror image.
+fn within_domain(solution: &Solution, set_boundary: &crate::segment_grid::SegmentGrid, wanted: f64, in_set_node: &[bool]) -> f64 {
     let mesh = solution.problem.mesh;
-    outer_boundary_nodes(mesh)
+    let cut_by_mirror = mesh
+        .boundary
+        .iter()
+        .any(|(e, tag)| matches!(tag, BoundaryTag::Mirror { .. }) && (in_set_node[e[0]] || in_set_node[e[1]]));
+    outer_boundary_nodes(mesh, !cut_by_mirror)
         .filter_map(|n| set_boundary.nearest(mesh.nodes[n], wanted))
         .fold(wanted, f64::min)
 }

@@ -3,6 +3,7 @@
 //! expectation kept beside it for messages. One file per table, each with
 //! its allowed keys beside its reader.
 
+mod boundary_table;
 mod expects;
 mod materials_table;
 mod measures;
@@ -156,7 +157,9 @@ pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> R
         allow: study_table::allowed(&study)?,
         accuracy,
         exposure,
+        whole: None,
     };
+    model.whole = boundary_table::boundaries(&top, &study, &ctx, symmetry, &mut model.boundary)?;
     (model.probes, spans.probes) = probes(&top, &ctx)?.into_iter().unzip();
     model.forces = forces(&top, &ctx, &model)?;
     model.fluxes = fluxes(&top, &ctx, &model)?;

@@ -20,6 +20,7 @@ pub(super) const TOP: &[&str] = &[
     "force",
     "flux",
     "expect",
+    "boundary",
     "output",
     "solver",
 ];

@@ -21,6 +21,7 @@ pub const STUDY: &[&str] = &[
     "allow",
     "accuracy",
     "exposure",
+    "scale_to_whole",
 ];
 
 /// Keys of `[study] exposure = { ... }`.
@@ -89,7 +90,10 @@ pub(super) fn boundary(study: &Fields, ctx: &Context) -> Result<OuterBoundary, D
                     Some((ctx.point(t.require("from")?, "study.box.from")?, ctx.point(t.require("to")?, "study.box.to")?))
                 }
             };
-            Ok(OuterBoundary::FluxParallel { from_to })
+            Ok(OuterBoundary::FluxParallel {
+                from_to,
+                sides: Default::default(),
+            })
         }
         other => {
             let span = study.get("boundary").map(|b| b.span.clone());
