@@ -9,6 +9,12 @@ use std::path::Path;
 /// The text of a regular file of at most `max_bytes`, or a message naming
 /// `what` it was and why it cannot be read.
 pub fn read_text(path: &Path, what: &str, max_bytes: u64) -> Result<String, String> {
+    let bytes = read_bytes(path, what, max_bytes)?;
+    String::from_utf8(bytes).map_err(|_| format!("{} is not UTF-8 text (is it a binary file?)", path.display()))
+}
+
+/// The bytes of a regular file of at most `max_bytes` (see `read_text`).
+pub fn read_bytes(path: &Path, what: &str, max_bytes: u64) -> Result<Vec<u8>, String> {
     let shown = path.display();
     let meta = std::fs::metadata(path).map_err(|e| format!("cannot read the {what} {shown}: {e}"))?;
     if meta.is_dir() {
@@ -34,7 +40,7 @@ pub fn read_text(path: &Path, what: &str, max_bytes: u64) -> Result<String, Stri
     if bytes.len() as u64 > max_bytes {
         return Err(format!("{shown} grew past {} while it was read", size_text(max_bytes)));
     }
-    String::from_utf8(bytes).map_err(|_| format!("{shown} is not UTF-8 text (is it a binary file?)"))
+    Ok(bytes)
 }
 
 fn size_text(bytes: u64) -> String {

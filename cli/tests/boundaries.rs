@@ -197,3 +197,52 @@ fn boundary_mistakes_are_refused_clearly() {
         assert!(said.contains("case.toml:"), "the message points into the file: {said}");
     }
 }
+
+/// The linear coupling of cases/ cut to one pole pair: its mover runs
+/// through the periodic sides, so the force band runs on into the next
+/// cell. Its thrust equals the derivative of the coenergy along the shift
+/// (virtual work, the principle the stress tensor rests on: J. L. Coulomb,
+/// IEEE Trans. Magn. 19(6), 1983), by a central difference over +-0.25 mm
+/// (within 0.3 %: the difference's own error is of order h^2 F'''/6); and
+/// the same coupling solved on two periods gives the same whole forces.
+#[test]
+fn a_periodic_cells_force_is_its_coenergys_derivative() {
+    let case = std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/../cases/linear-coupling-pole-pair.toml")).unwrap();
+    let at = |s: f64| values(&format!("coupling-{s}"), &case.replace("shift = 2.5", &format!("shift = {s}")));
+    let (mid, lo, hi) = (at(2.5), at(2.25), at(2.75));
+    let thrust = get(&mid, "force.mover.x");
+    let derivative = (get(&hi, "coenergy") - get(&lo, "coenergy")) / 0.5e-3;
+    assert!(thrust < -100.0, "the mover is pulled back: {thrust} N");
+    assert!(((derivative - thrust) / thrust).abs() < 3e-3, "thrust {thrust} N, dW'/dx {derivative} N");
+    // Two periods, three cells of them: the mover's blocks repeated 20 mm on.
+    let mut two = case
+        .replace("to = [20, 20] }\nscale", "to = [40, 20] }\nscale")
+        .replace("{ from = [20, -20], to = [20, 20] }", "{ from = [40, -20], to = [40, 20] }")
+        .replace("cells = 6", "cells = 3");
+    let second = [
+        ("lower-iron2", "DC01", "[20, -9]", "[40, -5]", ""),
+        ("lower-n2", "N42", "[20, -5]", "[30, -1]", "+y"),
+        ("lower-s2", "N42", "[30, -5]", "[40, -1]", "-y"),
+        ("upper-iron2", "DC01", "[20, 5]", "[40, 9]", ""),
+        ("upper-a2", "N42", "[20, 1]", "[\"shift + 20\", 5]", "-y"),
+        ("upper-b2", "N42", "[\"shift + 20\", 1]", "[\"shift + 30\", 5]", "+y"),
+        ("upper-c2", "N42", "[\"shift + 30\", 1]", "[40, 5]", "-y"),
+    ];
+    let mut parts = String::new();
+    for (name, material, from, to, m) in second {
+        parts += &format!("[[part]]\nname = \"{name}\"\nmaterial = \"{material}\"\nrect = {{ from = {from}, to = {to} }}\n");
+        if !m.is_empty() {
+            parts += &format!("magnetization = \"{m}\"\n");
+        }
+    }
+    two = two.replacen("[[boundary]]", &format!("{parts}[[boundary]]"), 1);
+    two = two.replace(
+        "parts = [\"upper-iron\", \"upper-a\", \"upper-b\", \"upper-c\"]",
+        "parts = [\"upper-iron\", \"upper-a\", \"upper-b\", \"upper-c\", \"upper-iron2\", \"upper-a2\", \"upper-b2\", \"upper-c2\"]",
+    );
+    let both = values("coupling-two-periods", &two);
+    for name in ["force.mover.x", "force.mover.y"] {
+        let (one, two) = (get(&mid, name), get(&both, name));
+        assert!(((one - two) / one).abs() < 1e-3, "{name}: one period {one} N, two periods {two} N");
+    }
+}

@@ -26,6 +26,13 @@ pub enum MeshError {
         /// the crossing edges, by their first point
         edges: [usize; 2],
     },
+    /// A hole is not inside its part's outline, or touches it or another hole.
+    HoleOutside {
+        /// part index in the spec
+        part: usize,
+        /// the hole, counted from 0
+        hole: usize,
+    },
     /// An outline encloses no area.
     ZeroArea {
         /// part index in the spec
@@ -80,6 +87,7 @@ impl fmt::Display for MeshError {
             RepeatedPoint { part, index } => write!(f, "part {part}: point {index} repeats the point before it"),
             SelfIntersection { part, edges } => write!(f, "part {part}: the polygon crosses itself (edges {} and {})", edges[0], edges[1]),
             ZeroArea { part } => write!(f, "part {part}: the shape has zero area"),
+            HoleOutside { part, hole } => write!(f, "part {part}: hole {} is not inside the outline, or touches the outline or another hole", hole + 1),
             AcrossAxis { part } => write!(f, "part {part}: the shape crosses the symmetry axis (axisymmetric shapes must lie in r >= 0; only a circle centred on the axis may cross it, as a sphere)"),
             NotFinite { part } => write!(f, "part {part}: a coordinate is not a finite number"),
             BadSize { part, size } => write!(f, "part {part}: mesh size must be a positive finite length, got {size}"),

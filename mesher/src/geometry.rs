@@ -25,33 +25,130 @@ impl Shape {
                     full
                 }
             }
+            Shape::Rings(rings) => {
+                let mut areas = rings.iter().map(|r| crate::outline::ring_area(r).abs());
+                let outline = areas.next().unwrap_or(0.0);
+                outline - areas.sum::<f64>()
+            }
         }
     }
+}
+
+impl Shape {
+    /// Lower-left and upper-right corners of the shape's box.
+    pub fn bounds(&self) -> ([f64; 2], [f64; 2]) {
+        match self {
+            Shape::Rect { from, to } => ([from[0].min(to[0]), from[1].min(to[1])], [from[0].max(to[0]), from[1].max(to[1])]),
+            Shape::Circle { center, radius } => ([center[0] - radius, center[1] - radius], [center[0] + radius, center[1] + radius]),
+            Shape::Polygon(p) => bbox(p.iter().copied()),
+            Shape::Rings(rings) => bbox(rings.iter().flat_map(|r| crate::outline::ring_polygon(r, f64::INFINITY))),
+        }
+    }
+
+    /// The outlines whose vertices may be corners (where the field is
+    /// singular): the polygon's, the rectangle's, each ring's with its arcs
+    /// in short chords (so that a corner is where a chord turns sharply); none
+    /// for a circle.
+    pub fn corner_outlines(&self) -> Vec<Vec<[f64; 2]>> {
+        match self {
+            Shape::Rect { from, to } => vec![vec![*from, [to[0], from[1]], *to, [from[0], to[1]]]],
+            Shape::Polygon(points) => vec![points.clone()],
+            Shape::Circle { .. } => Vec::new(),
+            Shape::Rings(rings) => rings.iter().map(|r| crate::outline::ring_polygon(r, f64::INFINITY)).collect(),
+        }
+    }
+}
+
+/// Every part's rings as closed polygons: outlines counter-clockwise, holes
+/// clockwise, each with the index of its part.
+#[derive(Clone, Debug)]
+pub struct PartRings {
+    /// The rings, a part's outline before its holes, parts in order.
+    pub rings: Vec<Vec<[f64; 2]>>,
+    /// The part of each ring.
+    pub part_of: Vec<usize>,
 }
 
 /// Closed counter-clockwise polygons of every part, validated, with circles
 /// split so that each chord is no longer than the part's size and its sagitta
 /// stays below `CHORD_FRACTION` of that size.
-pub fn part_polygons(spec: &MeshSpec) -> Result<Vec<Vec<[f64; 2]>>, MeshError> {
+pub fn part_polygons(spec: &MeshSpec) -> Result<PartRings, MeshError> {
     if spec.parts.is_empty() {
         return Err(MeshError::NoParts);
     }
-    spec.parts
-        .iter()
-        .enumerate()
-        .map(|(i, part)| {
-            if !(part.mesh_size.is_finite() && part.mesh_size > 0.0) {
-                return Err(MeshError::BadSize { part: i, size: part.mesh_size });
+    let mut out = PartRings {
+        rings: Vec::with_capacity(spec.parts.len()),
+        part_of: Vec::with_capacity(spec.parts.len()),
+    };
+    for (i, part) in spec.parts.iter().enumerate() {
+        if !(part.mesh_size.is_finite() && part.mesh_size > 0.0) {
+            return Err(MeshError::BadSize { part: i, size: part.mesh_size });
+        }
+        let rings = match &part.shape {
+            Shape::Rings(rings) => rings_polygons(i, rings, part.mesh_size)?,
+            shape => vec![shape_polygon(i, shape, part.mesh_size, spec.symmetry)?],
+        };
+        for poly in &rings {
+            validate_polygon(i, poly, spec.symmetry)?;
+        }
+        check_holes(i, &rings)?;
+        for (k, mut poly) in rings.into_iter().enumerate() {
+            // Holes run clockwise, so that signed areas net out.
+            if k > 0 {
+                poly.reverse();
             }
-            let poly = shape_polygon(i, &part.shape, part.mesh_size, spec.symmetry)?;
-            validate_polygon(i, &poly, spec.symmetry)?;
+            out.rings.push(poly);
+            out.part_of.push(i);
+        }
+    }
+    Ok(out)
+}
+
+/// A part's rings as counter-clockwise polygons, arcs split into chords.
+fn rings_polygons(part: usize, rings: &[Vec<crate::outline::Vertex>], size: f64) -> Result<Vec<Vec<[f64; 2]>>, MeshError> {
+    if rings.is_empty() {
+        return Err(MeshError::TooFewPoints { part, count: 0 });
+    }
+    rings
+        .iter()
+        .map(|ring| {
+            if ring.iter().any(|v| !(v.at[0].is_finite() && v.at[1].is_finite() && v.bulge.is_finite())) {
+                return Err(MeshError::NotFinite { part });
+            }
+            if ring.iter().any(|v| v.bulge.abs() > crate::outline::MAX_BULGE) {
+                return Err(MeshError::ZeroArea { part });
+            }
+            let mut poly = crate::outline::ring_polygon(ring, size);
+            if poly.len() >= 3 && signed_area(&poly) < 0.0 {
+                poly.reverse();
+            }
             Ok(poly)
         })
         .collect()
 }
 
+/// Each hole lies inside the outline, clear of it and of the other holes.
+fn check_holes(part: usize, rings: &[Vec<[f64; 2]>]) -> Result<(), MeshError> {
+    let Some((outline, holes)) = rings.split_first() else { return Ok(()) };
+    for (k, hole) in holes.iter().enumerate() {
+        let inside = hole.iter().all(|&p| point_in_polygon(outline, p));
+        let crossing = rings.iter().enumerate().filter(|&(j, _)| j != k + 1).any(|(_, other)| rings_touch(hole, other));
+        if !inside || crossing {
+            return Err(MeshError::HoleOutside { part, hole: k });
+        }
+    }
+    Ok(())
+}
+
+/// Whether two closed polygons' edges meet (brute force: holes are few and small).
+fn rings_touch(a: &[[f64; 2]], b: &[[f64; 2]]) -> bool {
+    let (na, nb) = (a.len(), b.len());
+    (0..na).any(|i| (0..nb).any(|j| segments_intersect(a[i], a[(i + 1) % na], b[j], b[(j + 1) % nb])))
+}
+
 fn shape_polygon(part: usize, shape: &Shape, size: f64, symmetry: Symmetry) -> Result<Vec<[f64; 2]>, MeshError> {
     let mut poly = match shape {
+        Shape::Rings(rings) => rings_polygons(part, rings, size)?.swap_remove(0),
         Shape::Polygon(p) => p.clone(),
         Shape::Rect { from, to } => {
             let (x0, x1) = (from[0].min(to[0]), from[0].max(to[0]));

@@ -25,6 +25,7 @@ mod error;
 mod exterior;
 pub mod geometry;
 mod mesh;
+pub mod outline;
 mod refine;
 mod size_field;
 mod spatial;
@@ -43,15 +44,15 @@ pub use spec::{
 
 /// Builds the mesh of a study: validate shapes, triangulate, refine, tag.
 pub fn build_mesh(spec: &MeshSpec) -> Result<Mesh, MeshError> {
-    let polygons = geometry::part_polygons(spec)?;
-    let domain = Domain::enclosing(spec, &polygons)?;
-    size_field::check_estimate(spec, &polygons, &domain)?;
-    triangulate::mesh_domain(spec, &polygons, &domain)
+    let rings = geometry::part_polygons(spec)?;
+    let domain = Domain::enclosing(spec, &rings.rings)?;
+    size_field::check_estimate(spec, &rings, &domain)?;
+    triangulate::mesh_domain(spec, &rings, &domain)
 }
 
 /// Estimated number of triangles the spec would produce (before meshing).
 pub fn estimate_triangles(spec: &MeshSpec) -> Result<f64, MeshError> {
-    let polygons = geometry::part_polygons(spec)?;
-    let domain = Domain::enclosing(spec, &polygons)?;
-    Ok(size_field::estimate(spec, &polygons, &domain))
+    let rings = geometry::part_polygons(spec)?;
+    let domain = Domain::enclosing(spec, &rings.rings)?;
+    Ok(size_field::estimate(spec, &rings, &domain))
 }

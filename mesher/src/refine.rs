@@ -50,6 +50,37 @@ pub struct BoundaryCircle {
     /// How far inside the circle the meshed outline may lie: the sagitta of
     /// its chords (`geometry::circle_sagitta`).
     pub sagitta: f64,
+    /// For an arc of an outline, the arc: only edges along it follow the
+    /// circle (a straight edge of the same part may end on the circle too).
+    pub arc: Option<crate::outline::Arc>,
+}
+
+impl BoundaryCircle {
+    /// The circles that refinement must follow for a part's shape: a
+    /// circle's, and every arc of its rings.
+    pub fn of_shape(part: usize, shape: &crate::spec::Shape, size: f64) -> Vec<BoundaryCircle> {
+        match shape {
+            crate::spec::Shape::Circle { center, radius } => vec![BoundaryCircle {
+                part,
+                center: *center,
+                radius: *radius,
+                sagitta: crate::geometry::circle_sagitta(*radius, size),
+                arc: None,
+            }],
+            crate::spec::Shape::Rings(rings) => rings
+                .iter()
+                .flat_map(|r| crate::outline::ring_arcs(r))
+                .map(|arc| BoundaryCircle {
+                    part,
+                    center: arc.center,
+                    radius: arc.radius,
+                    sagitta: arc.radius * (1.0 - (0.5 * arc.sweep.abs() / arc.chords(size) as f64).cos()),
+                    arc: Some(arc),
+                })
+                .collect(),
+            _ => Vec::new(),
+        }
+    }
 }
 
 /// The circle an edge lies on, if it is an outline edge of a round part:
@@ -59,8 +90,19 @@ fn circle_of_edge(tag: BoundaryTag, a: [f64; 2], b: [f64; 2], circles: &[Boundar
     let BoundaryTag::Interface(r1, r2) = tag else { return None };
     circles.iter().copied().find(|c| {
         let on = |p: [f64; 2]| ((p[0] - c.center[0]).hypot(p[1] - c.center[1]) - c.radius).abs() <= 1.01 * c.sagitta + 1e-12 * c.radius;
-        [r1, r2].contains(&crate::mesh::Region::Part(c.part)) && on(a) && on(b)
+        [r1, r2].contains(&crate::mesh::Region::Part(c.part)) && on(a) && on(b) && along_arc(c, a, b)
     })
+}
+
+/// Whether the edge ab runs along the circle's arc (always, for a full
+/// circle): its middle is within the arc's angles and no further inside the
+/// circle than a chord of the outline's own (a straight edge between two
+/// points of the circle is a longer chord, its middle deeper inside).
+fn along_arc(c: &BoundaryCircle, a: [f64; 2], b: [f64; 2]) -> bool {
+    let Some(arc) = c.arc else { return true };
+    let m = midpoint(a, b);
+    let depth = c.radius - (m[0] - c.center[0]).hypot(m[1] - c.center[1]);
+    arc.spans(m) && depth <= 1.01 * c.sagitta + 1e-12 * c.radius
 }
 
 /// Moves the ends of the edges on circles onto them.
@@ -295,6 +337,7 @@ mod tests {
             center: [0.0, 0.0],
             radius,
             sagitta: crate::geometry::circle_sagitta(radius, size),
+            arc: None,
         }];
         let exact = std::f64::consts::PI * radius * radius;
         let mut mesh = crate::build_mesh(&s).unwrap();

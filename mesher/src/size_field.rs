@@ -5,6 +5,7 @@ use crate::domain::Domain;
 use crate::error::MeshError;
 #[cfg(test)]
 use crate::geometry::point_segment_distance;
+use crate::geometry::PartRings;
 use crate::geometry::{dist, signed_area};
 use crate::spec::{MeshSpec, Refinement};
 
@@ -20,14 +21,14 @@ pub struct SizeSource {
 }
 
 /// All size sources of a spec: part edges and probe refinements.
-pub fn sources(spec: &MeshSpec, polygons: &[Vec<[f64; 2]>]) -> Vec<SizeSource> {
+pub fn sources(spec: &MeshSpec, rings: &PartRings) -> Vec<SizeSource> {
     let mut out = Vec::new();
-    for (poly, part) in polygons.iter().zip(&spec.parts) {
+    for (poly, &part) in rings.rings.iter().zip(&rings.part_of) {
         for i in 0..poly.len() {
             out.push(SizeSource {
                 a: poly[i],
                 b: poly[(i + 1) % poly.len()],
-                size: part.mesh_size,
+                size: spec.parts[part].mesh_size,
             });
         }
     }
@@ -52,14 +53,15 @@ pub fn size_at(p: [f64; 2], sources: &[SizeSource], grading: f64, max_size: f64)
 
 /// Rough triangle count: part interiors at their size plus the graded air around
 /// each source edge (integral of 1/h^2 over a band growing away from it).
-pub fn estimate(spec: &MeshSpec, polygons: &[Vec<[f64; 2]>], domain: &Domain) -> f64 {
+pub fn estimate(spec: &MeshSpec, rings: &PartRings, domain: &Domain) -> f64 {
     let g = (spec.grading - 1.0).max(0.05);
     let mut n = 0.0;
-    for (poly, part) in polygons.iter().zip(&spec.parts) {
-        let h = part.mesh_size.min(domain.max_size);
-        n += signed_area(poly).abs() / (EQUILATERAL * h * h);
+    // Outlines run counter-clockwise and holes clockwise: their signed areas net out.
+    for (poly, &part) in rings.rings.iter().zip(&rings.part_of) {
+        let h = spec.parts[part].mesh_size.min(domain.max_size);
+        n += signed_area(poly) / (EQUILATERAL * h * h);
     }
-    for s in sources(spec, polygons) {
+    for s in sources(spec, rings) {
         let h = s.size.min(domain.max_size);
         let len = dist(s.a, s.b).max(h);
         n += 2.0 * len / (EQUILATERAL * g * h);
@@ -68,8 +70,8 @@ pub fn estimate(spec: &MeshSpec, polygons: &[Vec<[f64; 2]>], domain: &Domain) ->
     2.0 * n
 }
 
-pub fn check_estimate(spec: &MeshSpec, polygons: &[Vec<[f64; 2]>], domain: &Domain) -> Result<(), MeshError> {
-    let estimate = estimate(spec, polygons, domain);
+pub fn check_estimate(spec: &MeshSpec, rings: &PartRings, domain: &Domain) -> Result<(), MeshError> {
+    let estimate = estimate(spec, rings, domain);
     if !estimate.is_finite() || estimate > spec.max_triangles as f64 {
         return Err(MeshError::TooManyTriangles {
             estimate,

@@ -185,6 +185,8 @@ pub struct PolygonIndex {
     /// Row bands of each large outline's edges, for a point-in-polygon test
     /// that reads only the edges at the point's height.
     bands: Vec<Option<Bands>>,
+    /// The part each ring belongs to (a part's outline and its holes).
+    part_of: Vec<usize>,
 }
 
 /// Outlines with more vertices than this get row bands.
@@ -222,8 +224,8 @@ impl Bands {
 }
 
 impl PolygonIndex {
-    /// Indexes the outlines by their boxes.
-    pub fn new(polygons: &[Vec<[f64; 2]>]) -> PolygonIndex {
+    /// Indexes the rings (outlines and holes, each with its part) by their boxes.
+    pub fn new(polygons: &[Vec<[f64; 2]>], part_of: &[usize]) -> PolygonIndex {
         let boxes: Vec<_> = polygons.iter().map(|p| crate::geometry::bbox(p.iter().copied())).collect();
         let bands = polygons
             .iter()
@@ -234,11 +236,30 @@ impl PolygonIndex {
             grid: Grid::new(&boxes),
             boxes,
             bands,
+            part_of: part_of.to_vec(),
         }
     }
 
-    /// Indices of the outlines that hold p (on the outline counts), ascending.
+    /// The parts that hold p, ascending: those with an odd number of their
+    /// rings around p (inside the outline and in none of its holes; on a
+    /// ring counts as inside it).
     pub fn containing(&self, polygons: &[Vec<[f64; 2]>], p: [f64; 2]) -> Vec<usize> {
+        let mut rings = self.rings_containing(polygons, p);
+        for r in &mut rings {
+            *r = self.part_of[*r];
+        }
+        rings.sort_unstable();
+        let mut parts = Vec::with_capacity(rings.len());
+        for chunk in rings.chunk_by(|a, b| a == b) {
+            if chunk.len() % 2 == 1 {
+                parts.push(chunk[0]);
+            }
+        }
+        parts
+    }
+
+    /// Indices of the rings that hold p (on the ring counts), ascending.
+    fn rings_containing(&self, polygons: &[Vec<[f64; 2]>], p: [f64; 2]) -> Vec<usize> {
         if self.grid.outside_distance(p) > 0.0 {
             return Vec::new();
         }
@@ -326,7 +347,7 @@ mod tests {
                     .collect(),
             );
         }
-        let index = PolygonIndex::new(&outlines);
+        let index = PolygonIndex::new(&outlines, &(0..outlines.len()).collect::<Vec<_>>());
         for q in points(3000, 25.0) {
             let want: Vec<usize> = (0..outlines.len()).filter(|&i| point_in_polygon(&outlines[i], q)).collect();
             assert_eq!(index.containing(&outlines, q), want, "{q:?}");

@@ -41,6 +41,9 @@ pub enum Shape {
         /// its radius
         radius: f64,
     },
+    /// Rings of straight and arc segments: the outline first, then its
+    /// holes (each arc split into chords bounded by a sagitta, as circles are).
+    Rings(Vec<Vec<crate::outline::Vertex>>),
 }
 
 /// How the outside of the model is closed.

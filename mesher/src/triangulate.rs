@@ -51,13 +51,14 @@ fn snap(v: f64) -> f64 {
     }
 }
 
-pub fn mesh_domain(spec: &MeshSpec, polygons: &[Vec<[f64; 2]>], domain: &Domain) -> Result<Mesh, MeshError> {
+pub fn mesh_domain(spec: &MeshSpec, rings: &crate::geometry::PartRings, domain: &Domain) -> Result<Mesh, MeshError> {
+    let polygons = &rings.rings;
     let mut work = Work {
         cdt: Cdt::new(),
         size: Vec::new(),
-        sources: SourceIndex::new(size_field::sources(spec, polygons)),
-        probe_sources: SourceIndex::new(size_field::sources(spec, polygons).split_off(polygons.iter().map(Vec::len).sum())),
-        parts: PolygonIndex::new(polygons),
+        sources: SourceIndex::new(size_field::sources(spec, rings)),
+        probe_sources: SourceIndex::new(size_field::sources(spec, rings).split_off(polygons.iter().map(Vec::len).sum())),
+        parts: PolygonIndex::new(polygons, &rings.part_of),
         grading: spec.grading.clamp(GRADING_RANGE.0, GRADING_RANGE.1),
         max_size: domain.max_size,
         polygons,

@@ -86,11 +86,7 @@ pub fn figures(model: &Model, part: &Part) -> Option<CoilFigures> {
 
 /// The bounding box of a part's outline.
 fn part_box(part: &Part) -> ([f64; 2], [f64; 2]) {
-    match &part.shape {
-        mesher::Shape::Rect { from, to } => ([from[0].min(to[0]), from[1].min(to[1])], [from[0].max(to[0]), from[1].max(to[1])]),
-        mesher::Shape::Circle { center, radius } => ([center[0] - radius, center[1] - radius], [center[0] + radius, center[1] + radius]),
-        mesher::Shape::Polygon(p) => mesher::geometry::bbox(p.iter().copied()),
-    }
+    part.shape.bounds()
 }
 
 #[cfg(test)]

@@ -24,12 +24,7 @@ const CORNER_TURN_DEG: f64 = 10.0;
 fn corner_refinements(model: &Model) -> Vec<Refinement> {
     let axisymmetric = model.symmetry == Symmetry::Axisymmetric;
     let mut out = Vec::new();
-    for p in &model.parts {
-        let outline: Vec<[f64; 2]> = match &p.shape {
-            mesher::Shape::Rect { from, to } => vec![*from, [to[0], from[1]], *to, [from[0], to[1]]],
-            mesher::Shape::Polygon(points) => points.clone(),
-            mesher::Shape::Circle { .. } => continue,
-        };
+    for (p, outline) in model.parts.iter().flat_map(|p| p.shape.corner_outlines().into_iter().map(move |o| (p, o))) {
         let n = outline.len();
         for i in 0..n {
             let (a, b, c) = (outline[(i + n - 1) % n], outline[i], outline[(i + 1) % n]);
@@ -123,6 +118,7 @@ pub fn mesh_error(model: &Model, e: &MeshError) -> StudyError {
         | MeshError::RepeatedPoint { part, .. }
         | MeshError::SelfIntersection { part, .. }
         | MeshError::ZeroArea { part }
+        | MeshError::HoleOutside { part, .. }
         | MeshError::AcrossAxis { part }
         | MeshError::NotFinite { part }
         | MeshError::BadSize { part, .. }

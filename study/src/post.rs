@@ -276,14 +276,8 @@ fn thin_parts(model: &Model) -> Vec<String> {
         .parts
         .iter()
         .filter_map(|p| {
-            let thickness = match &p.shape {
-                mesher::Shape::Rect { from, to } => (to[0] - from[0]).abs().min((to[1] - from[1]).abs()),
-                mesher::Shape::Circle { radius, .. } => 2.0 * radius,
-                mesher::Shape::Polygon(pts) => {
-                    let (lo, hi) = mesher::geometry::bbox(pts.iter().copied());
-                    (hi[0] - lo[0]).min(hi[1] - lo[1])
-                }
-            };
+            let (lo, hi) = p.shape.bounds();
+            let thickness = (hi[0] - lo[0]).min(hi[1] - lo[1]);
             (thickness < MIN_ELEMENTS_ACROSS * p.mesh_size).then(|| {
                 let f = model.length_unit.1;
                 format!(

@@ -180,14 +180,6 @@ fn round_parts(model: &Model) -> Vec<mesher::BoundaryCircle> {
         .parts
         .iter()
         .enumerate()
-        .filter_map(|(part, p)| match p.shape {
-            mesher::Shape::Circle { center, radius } => Some(mesher::BoundaryCircle {
-                part,
-                center,
-                radius,
-                sagitta: mesher::geometry::circle_sagitta(radius, p.mesh_size),
-            }),
-            _ => None,
-        })
+        .flat_map(|(part, p)| mesher::BoundaryCircle::of_shape(part, &p.shape, p.mesh_size))
         .collect()
 }

@@ -156,6 +156,7 @@ fn polygons(spec: &MeshSpec) -> Vec<Vec<[f64; 2]>> {
                     })
                     .collect()
             }
+            Shape::Rings(rings) => mesher::outline::ring_polygon(&rings[0], p.mesh_size),
         })
         .collect()
 }

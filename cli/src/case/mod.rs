@@ -7,6 +7,7 @@
 
 pub mod diagnostic;
 pub mod document;
+pub mod dxf;
 pub mod expr;
 pub mod material_names;
 mod quantity;

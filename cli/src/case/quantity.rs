@@ -11,6 +11,9 @@ pub struct Context<'a> {
     pub params: &'a BTreeMap<String, f64>,
     /// SI factor of the study's length unit (bare lengths are in it).
     pub length_unit: f64,
+    /// The case file's folder, where files it names are found (None where
+    /// a table names no files).
+    pub case_dir: Option<&'a std::path::Path>,
 }
 
 impl Context<'_> {

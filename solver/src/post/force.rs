@@ -48,7 +48,8 @@ pub fn force_on(solution: &Solution, parts: &[usize], torque_center: [f64; 2]) -
             }
         }
     }
-    let weight = band_weight(solution, &in_set_node, &other, &in_set);
+    let mut weight = band_weight(solution, &in_set_node, &other, &in_set);
+    periodic_weight(solution, &mut weight);
     // Shared nodes are cheap to test; the interface edges are found only then.
     let across = (0..n_nodes)
         .any(|n| in_set_node[n] && other[n])
@@ -113,6 +114,10 @@ fn band_weight(solution: &Solution, in_set_node: &[bool], other: &[bool], in_set
         }
     }
     edges.sort_unstable();
+    // Edges on a symmetry plane or periodic side are not where the set ends:
+    // it goes on in its mirror image or the next cell.
+    let open_sides = open_side_edges(solution.problem.mesh);
+    edges.retain(|e| !open_sides.contains(e));
     let mut boundary = Vec::new();
     let mut i = 0;
     while i < edges.len() {
@@ -167,23 +172,16 @@ fn band_weight(solution: &Solution, in_set_node: &[bool], other: &[bool], in_set
 
 /// True when a node of the set lies on the outer boundary (a flux-parallel
 /// box drawn against a part): g cannot fall to 0 there, so no band closes
-/// around the set in air.
+/// around the set in air. Symmetry planes and periodic sides do not count:
+/// the set goes on beyond them.
 fn touches_outer_boundary(solution: &Solution, in_set_node: &[bool]) -> bool {
-    outer_boundary_nodes(solution.problem.mesh, false).any(|n| in_set_node[n])
-}
-
-/// Nodes of the outer boundary's edges: the rim of an open study, a
-/// flux-parallel box, periodic sides (the band's weight is not periodic, so
-/// it must fall to 0 before them), and with `mirrors` the symmetry planes.
-fn outer_boundary_nodes(mesh: &mesher::Mesh, mirrors: bool) -> impl Iterator<Item = usize> + '_ {
-    mesh.boundary
+    solution
+        .problem
+        .mesh
+        .boundary
         .iter()
-        .filter(move |(_, tag)| match tag {
-            BoundaryTag::Rim | BoundaryTag::Outer | BoundaryTag::Periodic { .. } => true,
-            BoundaryTag::Mirror { .. } => mirrors,
-            _ => false,
-        })
-        .flat_map(|(edge, _)| *edge)
+        .filter(|(_, tag)| matches!(tag, BoundaryTag::Rim | BoundaryTag::Outer))
+        .any(|(e, _)| in_set_node[e[0]] || in_set_node[e[1]])
 }
 
 /// The band's width, no wider than the distance from the set to the outer
@@ -198,15 +196,51 @@ fn outer_boundary_nodes(mesh: &mesher::Mesh, mirrors: bool) -> impl Iterator<Ite
 /// band may cross and the section's force is the exact share of the
 /// whole's; a set clear of the plane would have its band enclose part of
 /// its mirror image.
+///
+/// Periodic sides likewise: a set that reaches them (a back iron running
+/// through the cell) has a band that runs on into the next cell, its weight
+/// made the same on both sides (`periodic_weight`); a set clear of them has
+/// its band stop short.
 fn within_domain(solution: &Solution, set_boundary: &crate::segment_grid::SegmentGrid, wanted: f64, in_set_node: &[bool]) -> f64 {
     let mesh = solution.problem.mesh;
-    let cut_by_mirror = mesh
-        .boundary
+    let reaches = |kind: fn(&BoundaryTag) -> bool| mesh.boundary.iter().any(|(e, tag)| kind(tag) && (in_set_node[e[0]] || in_set_node[e[1]]));
+    let cut_by_mirror = reaches(|t| matches!(t, BoundaryTag::Mirror { .. }));
+    let through_cell = reaches(|t| matches!(t, BoundaryTag::Periodic { .. }));
+    mesh.boundary
         .iter()
-        .any(|(e, tag)| matches!(tag, BoundaryTag::Mirror { .. }) && (in_set_node[e[0]] || in_set_node[e[1]]));
-    outer_boundary_nodes(mesh, !cut_by_mirror)
+        .filter(|(_, tag)| match tag {
+            BoundaryTag::Rim | BoundaryTag::Outer => true,
+            BoundaryTag::Mirror { .. } => !cut_by_mirror,
+            BoundaryTag::Periodic { .. } => !through_cell,
+            _ => false,
+        })
+        .flat_map(|(edge, _)| *edge)
         .filter_map(|n| set_boundary.nearest(mesh.nodes[n], wanted))
         .fold(wanted, f64::min)
+}
+
+/// The mesh's edges on symmetry planes and periodic sides, by sorted corner pair.
+fn open_side_edges(mesh: &mesher::Mesh) -> std::collections::HashSet<(usize, usize)> {
+    mesh.boundary
+        .iter()
+        .filter(|(_, tag)| matches!(tag, BoundaryTag::Mirror { .. } | BoundaryTag::Periodic { .. }))
+        .map(|(e, _)| (e[0].min(e[1]), e[0].max(e[1])))
+        .collect()
+}
+
+/// The weight made periodic: each tied node takes its image's weight, so
+/// that g is one continuous function over the repeated cells (a weight
+/// that jumped at the seam would add the seam's stress to the force).
+fn periodic_weight(solution: &Solution, weight: &mut [f64]) {
+    if !solution.problem.mesh.boundary.iter().any(|(_, t)| matches!(t, BoundaryTag::Periodic { .. })) {
+        return;
+    }
+    let ties = crate::constraints::Constraints::of_mesh(solution.problem.mesh, &solution.elements).ties;
+    for (n, image, _) in ties {
+        if n < weight.len() && image < weight.len() {
+            weight[n] = weight[image];
+        }
+    }
 }
 
 fn dist(a: [f64; 2], b: [f64; 2]) -> f64 {

@@ -4,12 +4,14 @@
 //! its allowed keys beside its reader.
 
 mod boundary_table;
+mod dxf_shape;
 mod expects;
 mod materials_table;
 mod measures;
 mod mesh_table;
 mod names;
 mod optimize_table;
+mod outline_table;
 mod params;
 mod parts;
 mod pattern;
@@ -82,7 +84,11 @@ pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> R
     };
     let study = top.get("study").unwrap_or(&empty).table("[study]", STUDY)?;
     let (unit_name, unit) = length_unit(&study)?;
-    let ctx = Context { params, length_unit: unit };
+    let ctx = Context {
+        params,
+        length_unit: unit,
+        case_dir: Some(case_dir),
+    };
     let symmetry = geometry(&study)?;
     let user_materials = user_materials(&top, &ctx, case_dir)?;
     let temperature = match study.get("temperature") {
@@ -200,6 +206,7 @@ fn with_model<T>(
     let ctx = Context {
         params,
         length_unit: model.length_unit.1,
+        case_dir: None,
     };
     read(&top, &ctx)
 }

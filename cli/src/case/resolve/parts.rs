@@ -17,6 +17,7 @@ const PART: &[&str] = &[
     "polygon",
     "rect",
     "circle",
+    "dxf",
     "magnetization",
     "mesh_size",
     "current",
@@ -28,8 +29,9 @@ const PART: &[&str] = &[
     "winding_temperature",
     "transform",
     "array",
+    "holes",
 ];
-const SHAPES: &[&str] = &["polygon", "rect", "circle"];
+const SHAPES: &[&str] = &["polygon", "rect", "circle", "dxf"];
 
 /// A `[[part]]` table: the part, or its copies when it has an `array`
 /// (placed by its `transform` first); names unique among all parts.
@@ -75,13 +77,18 @@ fn part(
     let shapes = t.present(SHAPES);
     if shapes.len() != 1 {
         let msg = if shapes.is_empty() {
-            format!("{what} needs a shape: one of rect, polygon or circle")
+            format!("{what} needs a shape: one of rect, polygon, circle or dxf")
         } else {
             format!("{what} has {} shapes ({}); give exactly one", shapes.len(), shapes.join(", "))
         };
         return Err(Diagnostic::new(msg, Some(t.span.start..t.span.start + 1)));
     }
-    let shape = shape(shapes[0], t.require(shapes[0])?, ctx, &what)?;
+    let mut shape = shape(shapes[0], t.require(shapes[0])?, ctx, &what)?;
+    if let Some(h) = t.get("holes") {
+        let mut rings = vec![super::outline_table::ring_of(&shape)];
+        rings.extend(super::outline_table::holes(h, ctx, &what)?);
+        shape = Shape::Rings(rings);
+    }
     let mesh_size = match t.get("mesh_size") {
         Some(m) => ctx.positive(m, Kind::Length, &format!("{what} mesh_size"))?,
         None => mesh.size,
@@ -218,17 +225,38 @@ fn wire_area(item: &Item, ctx: &Context, what: &str) -> Result<f64, Diagnostic> 
     Ok(std::f64::consts::PI * diameter * diameter / 4.0)
 }
 
-fn shape(kind: &str, item: &Item, ctx: &Context, what: &str) -> Result<Shape, Diagnostic> {
+pub(super) fn shape(kind: &str, item: &Item, ctx: &Context, what: &str) -> Result<Shape, Diagnostic> {
     match kind {
         "rect" => {
-            let t = item.table(&format!("{what} rect"), &["from", "to"])?;
+            let t = item.table(&format!("{what} rect"), super::outline_table::RECT)?;
             let from = ctx.point(t.require("from")?, &format!("{what} rect.from"))?;
             let to = ctx.point(t.require("to")?, &format!("{what} rect.to"))?;
             if from[0] == to[0] || from[1] == to[1] {
                 return Err(Diagnostic::new(format!("{what}: the rectangle has zero area"), Some(item.span.clone())));
             }
-            Ok(Shape::Rect { from, to })
+            let corner = match (t.get("fillet"), t.get("chamfer")) {
+                (None, None) => return Ok(Shape::Rect { from, to }),
+                (Some(f), None) => mesher::outline::Corner::Fillet(ctx.positive(f, Kind::Length, &format!("{what} rect.fillet"))?),
+                (None, Some(c)) => mesher::outline::Corner::Chamfer(ctx.positive(c, Kind::Length, &format!("{what} rect.chamfer"))?),
+                (Some(f), Some(_)) => {
+                    return Err(Diagnostic::new(
+                        format!("{what}: give the rectangle a fillet or a chamfer, not both"),
+                        Some(f.span.clone()),
+                    ))
+                }
+            };
+            let lo = [from[0].min(to[0]), from[1].min(to[1])];
+            let hi = [from[0].max(to[0]), from[1].max(to[1])];
+            Ok(Shape::Rings(vec![super::outline_table::rect_ring(
+                lo,
+                hi,
+                corner,
+                item.span.clone(),
+                ctx,
+                what,
+            )?]))
         }
+        "dxf" => super::dxf_shape::section(item, ctx, what),
         "circle" => {
             let t = item.table(&format!("{what} circle"), &["center", "radius"])?;
             Ok(Shape::Circle {
@@ -237,16 +265,11 @@ fn shape(kind: &str, item: &Item, ctx: &Context, what: &str) -> Result<Shape, Di
             })
         }
         _ => {
-            let pts = item.array(&format!("{what} polygon"))?;
-            if pts.len() < 3 {
-                return Err(Diagnostic::new(
-                    format!("{what}: a polygon needs at least 3 points, found {}", pts.len()),
-                    Some(item.span.clone()),
-                ));
+            let ring = super::outline_table::polygon_ring(item, ctx, what)?;
+            if ring.iter().all(|v| v.bulge == 0.0) {
+                return Ok(Shape::Polygon(ring.into_iter().map(|v| v.at).collect()));
             }
-            Ok(Shape::Polygon(
-                pts.iter().map(|p| ctx.point(p, &format!("{what} polygon"))).collect::<Result<_, _>>()?,
-            ))
+            Ok(Shape::Rings(vec![ring]))
         }
     }
 }

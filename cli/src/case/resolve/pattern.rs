@@ -167,6 +167,20 @@ fn map_shape(shape: &Shape, f: &dyn Fn([f64; 2]) -> [f64; 2], keep_rect: bool, r
             center: f(*center),
             radius: *radius,
         },
+        // A mirror turns every arc the other way.
+        Shape::Rings(rings) => Shape::Rings(
+            rings
+                .iter()
+                .map(|r| {
+                    r.iter()
+                        .map(|v| mesher::outline::Vertex {
+                            at: f(v.at),
+                            bulge: if reverse { -v.bulge } else { v.bulge },
+                        })
+                        .collect()
+                })
+                .collect(),
+        ),
     }
 }
 
