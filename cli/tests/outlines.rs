@@ -144,3 +144,34 @@ fn outline_mistakes_are_refused_clearly() {
         assert!(said.contains(says), "expected '{says}' in:\n{said}");
     }
 }
+
+/// A half ring (radii 10 and 20 mm, recoil permeability 1) magnetized
+/// radially outwards, drawn with centre arcs. In the charge model its
+/// outer face carries +M, its inner face -M and its volume -M/r; each
+/// charge's line field at the centre, summed over the half turn, gives
+/// B = (Br / pi) ln(b / a) along the half ring's axis of symmetry (the
+/// two faces' shares cancel, the volume's remains; the charge model of
+/// E. P. Furlani, Permanent Magnet and Electromechanical Devices, 2001,
+/// ch. 4, integrated here). A uniformly magnetized half ring would give
+/// a different field, so this checks each element's own direction.
+#[test]
+fn a_radially_magnetized_half_ring_gives_the_charge_models_field() {
+    let text = format!(
+        "[study]\ngeometry = \"planar\"\n[materials.ideal]\nbr = \"1.0 T\"\nmur = 1.0\n[[part]]\nname = \"arc\"\nmaterial = \"ideal\"\n\
+         polygon = [{{ at = [20, 0], center = [0, 0] }}, [-20, 0], {{ at = [-10, 0], center = [0, 0], turn = \"cw\" }}, [10, 0]]\n\
+         magnetization = {{ radial = \"outward\", center = [0, 0] }}\n[[probe]]\nname = \"centre\"\npoint = [0, 0]\n{OUTPUT}"
+    );
+    let (v, e) = solved("radial-half-ring", &text);
+    let exact = 2f64.ln() / std::f64::consts::PI;
+    let (by, bx, err) = (num(&v, "probe.centre.by"), num(&v, "probe.centre.bx"), num(&e, "probe.centre.b"));
+    assert!((by - exact).abs() < 1e-3 * exact, "B_y {by} T against {exact} T");
+    assert!(bx.abs() < 1e-3 * exact, "B_x {bx} T: the field lies on the axis of symmetry");
+    assert!(
+        (by - exact).abs() <= 2.0 * err.max(1e-4 * exact),
+        "true error {} within twice the estimate {err}",
+        (by - exact).abs()
+    );
+    // Inwards, the field turns round.
+    let (v, _) = solved("radial-half-ring-in", &text.replace("\"outward\"", "\"inward\""));
+    assert!((num(&v, "probe.centre.by") + exact).abs() < 1e-3 * exact);
+}

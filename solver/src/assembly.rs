@@ -362,7 +362,7 @@ pub fn element_load<'a>(e: usize, kind: ElementKind, problem: &'a Problem, air: 
             share: 1.0,
         },
         ElementKind::Part(i) => ElementLoad {
-            law: &problem.laws[i],
+            law: &problem.laws[problem.law_index(e, i)],
             current_density: problem.current_density[i],
             background: problem.applied_field,
             tangent: Tangent::Exact,

@@ -62,7 +62,7 @@ pub mod space;
 pub use bh_curve::{BhCurve, CurveError};
 pub use material::Law;
 pub use newton::{SolveError, SolveReport};
-pub use problem::{NewtonSettings, Problem};
+pub use problem::{NewtonSettings, Problem, OWN_LAW_NONE};
 pub use solution::{solve, PointField, Solution};
 
 /// Permeability of free space, H/m (CODATA 2018: 1.25663706212e-6).

@@ -60,7 +60,15 @@ pub struct Problem<'m> {
     /// Per physical element, the share of a magnet's remanence left after an
     /// earlier exposure drove it past its knee (1 = unharmed); None: all 1.
     pub remanence: Option<std::sync::Arc<[f64]>>,
+    /// Per physical element, the index in `laws` of a law of its own
+    /// (`OWN_LAW_NONE` for its part's): the elements of a radially
+    /// magnetized ring each point their own way. None: every element takes
+    /// its part's law.
+    pub element_law: Option<std::sync::Arc<[u32]>>,
 }
+
+/// Marks an element that takes its part's law (`Problem::element_law`).
+pub const OWN_LAW_NONE: u32 = u32::MAX;
 
 impl<'m> Problem<'m> {
     /// A problem with no applied field, quadratic elements and default Newton settings.
@@ -74,6 +82,15 @@ impl<'m> Problem<'m> {
             newton: NewtonSettings::default(),
             initial: None,
             remanence: None,
+            element_law: None,
+        }
+    }
+
+    /// The index in `laws` of element e's law, part `part`'s unless the element has its own.
+    pub fn law_index(&self, e: usize, part: usize) -> usize {
+        match self.element_law.as_ref().and_then(|l| l.get(e).copied()) {
+            Some(k) if k != OWN_LAW_NONE => k as usize,
+            _ => part,
         }
     }
 

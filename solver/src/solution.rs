@@ -56,6 +56,7 @@ impl Solution<'_> {
                 newton: p.newton,
                 initial: p.initial.clone(),
                 remanence: p.remanence.clone(),
+                element_law: p.element_law.clone(),
             },
             elements: self.elements.clone(),
             reduced: self.reduced.clone(),
@@ -98,6 +99,11 @@ impl<'m> Solution<'m> {
     /// The law of an element kind.
     pub fn law(&self, kind: ElementKind) -> &Law {
         element_load(0, kind, &self.problem, &self.air).law
+    }
+
+    /// The law of element e (its own where it has one, as a radial magnet's elements do).
+    pub fn element_law(&self, e: usize) -> &Law {
+        element_load(e, self.elements.kinds[e], &self.problem, &self.air).law
     }
 
     /// H in element e at flux density b (a magnet's remaining share applied).

@@ -162,6 +162,44 @@ pub fn laws(model: &Model) -> Result<Vec<Law>, StudyError> {
         .collect()
 }
 
+/// The laws of radially magnetized parts' elements, appended to `laws`:
+/// each element's remanence points from the centre through its centroid
+/// (or towards the centre). None when no part is radial.
+fn radial_laws(model: &Model, mesh: &mesher::Mesh, laws: &mut Vec<Law>) -> Option<Arc<[u32]>> {
+    if model.parts.iter().all(|p| p.radial.is_none()) {
+        return None;
+    }
+    let mut own = vec![solver::OWN_LAW_NONE; mesh.triangles.len()];
+    for (t, region) in mesh.regions.iter().enumerate() {
+        let mesher::Region::Part(i) = *region else { continue };
+        let (
+            Some(radial),
+            Law::Magnet {
+                recoil_permeability,
+                br,
+                knee,
+                table,
+            },
+        ) = (model.parts[i].radial, &laws[i])
+        else {
+            continue;
+        };
+        let [a, b, c] = mesh.triangle_points(t);
+        let centroid = [(a[0] + b[0] + c[0]) / 3.0, (a[1] + b[1] + c[1]) / 3.0];
+        let size = br[0].hypot(br[1]);
+        let dir = radial.direction_at(centroid);
+        let law = Law::Magnet {
+            recoil_permeability: *recoil_permeability,
+            br: [size * dir[0], size * dir[1]],
+            knee: *knee,
+            table: table.clone(),
+        };
+        own[t] = laws.len() as u32;
+        laws.push(law);
+    }
+    Some(own.into())
+}
+
 /// Current density of each part: ampere-turns over the meshed area (every
 /// part has area: `check_parts_visible` refuses a covered one first).
 fn current_densities(model: &Model, mesh: &mesher::Mesh) -> Vec<f64> {
@@ -208,7 +246,10 @@ pub fn check_parts_visible(model: &Model, mesh: &mesher::Mesh) -> Result<(), Stu
 /// The solver's problem for a model on its mesh.
 pub fn problem<'m>(model: &Model, mesh: &'m mesher::Mesh) -> Result<Problem<'m>, StudyError> {
     check_parts_visible(model, mesh)?;
-    let mut problem = Problem::new(mesh, laws(model)?, current_densities(model, mesh));
+    let mut laws = laws(model)?;
+    let element_law = radial_laws(model, mesh, &mut laws);
+    let mut problem = Problem::new(mesh, laws, current_densities(model, mesh));
+    problem.element_law = element_law;
     problem.applied_field = model.applied_field;
     problem.newton = model.newton;
     problem.order = if model.mesh.order == 1 {

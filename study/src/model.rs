@@ -109,12 +109,40 @@ pub struct Part {
     pub shape: Shape,
     /// Target edge length in and near it, m.
     pub mesh_size: f64,
-    /// Unit vector of magnetization (magnets only).
+    /// Unit vector of magnetization (magnets only); for a radial magnet,
+    /// its direction at the part's first outline point.
     pub magnetization: Option<[f64; 2]>,
+    /// A planar magnet magnetized radially about a centre (a ring's
+    /// magnetization pointing away from or towards it everywhere).
+    pub radial: Option<Radial>,
     /// Ampere-turns through the cross-section, A.
     pub current: Option<f64>,
     /// The winding's wire, for its resistance, power and temperature rise.
     pub winding: Option<Winding>,
+}
+
+/// Radial magnetization about a centre, planar (about the axis, `+r` and
+/// `-r` are radial already).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Radial {
+    /// The centre, m.
+    pub center: [f64; 2],
+    /// Away from the centre (true) or towards it.
+    pub outward: bool,
+}
+
+impl Radial {
+    /// The magnetization's unit direction at a point.
+    pub fn direction_at(&self, p: [f64; 2]) -> [f64; 2] {
+        let (dx, dy) = (p[0] - self.center[0], p[1] - self.center[1]);
+        let r = dx.hypot(dy);
+        let sign = if self.outward { 1.0 } else { -1.0 };
+        if r > 0.0 {
+            [sign * dx / r, sign * dy / r]
+        } else {
+            [0.0, sign]
+        }
+    }
 }
 
 /// A winding's turns and wire, given on a part that carries a current.

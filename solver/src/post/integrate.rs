@@ -44,7 +44,7 @@ impl FieldPoint<'_> {
 pub fn for_each_field_point(solution: &Solution, e: usize, mut f: impl FnMut(&FieldPoint)) {
     let els = &solution.elements;
     let kind = els.kinds[e];
-    let law = solution.law(kind);
+    let law = solution.element_law(e);
     let share = solution.problem.remanence_share(e);
     let a = els.gather(e, &solution.reduced);
     let background = solution.background(e);

@@ -94,7 +94,12 @@ fn part(
         None => mesh.size,
     };
     let is_magnet = matches!(material.material, Material::Magnet(_));
+    let radial = match t.get("magnetization") {
+        Some(m @ Item { value: Value::Table(_), .. }) if is_magnet => Some(radial(m, ctx, symmetry, &shape, &what)?),
+        _ => None,
+    };
     let magnetization = match (t.get("magnetization"), is_magnet) {
+        (Some(_), true) if radial.is_some() => radial.map(|r| r.direction_at(first_point(&shape))),
         (Some(m), true) => Some(direction(m, ctx, symmetry, &what)?),
         (None, true) => {
             return Err(Diagnostic::new(
@@ -137,6 +142,7 @@ fn part(
         shape,
         mesh_size,
         magnetization,
+        radial,
         current,
         winding,
     })
@@ -272,6 +278,61 @@ pub(super) fn shape(kind: &str, item: &Item, ctx: &Context, what: &str) -> Resul
             Ok(Shape::Rings(vec![ring]))
         }
     }
+}
+
+/// `magnetization = { radial = "outward" | "inward", center = [x, y] }`
+/// (planar): the centre defaults to a circle's, or to a ring's round outline's.
+fn radial(item: &Item, ctx: &Context, symmetry: Symmetry, shape: &Shape, what: &str) -> Result<Radial, Diagnostic> {
+    let t = item.table(&format!("{what} magnetization"), &["radial", "center"])?;
+    if symmetry == Symmetry::Axisymmetric {
+        return Err(Diagnostic::new(
+            format!("{what}: about the axis a radial magnetization is \"+r\" (outward) or \"-r\" (inward)"),
+            Some(item.span.clone()),
+        ));
+    }
+    let way = t.require("radial")?;
+    let outward = match way.str(&format!("{what} magnetization.radial"))? {
+        "outward" => true,
+        "inward" => false,
+        other => {
+            return Err(Diagnostic::new(
+                format!("{what} magnetization.radial: '{other}'; expected \"outward\" or \"inward\""),
+                Some(way.span.clone()),
+            )
+            .suggest(other, ["outward", "inward"]))
+        }
+    };
+    let center = match (t.get("center"), round_center(shape)) {
+        (Some(c), _) => ctx.point(c, &format!("{what} magnetization.center"))?,
+        (None, Some(c)) => c,
+        (None, None) => {
+            return Err(Diagnostic::new(
+                format!("{what}: give the centre of the radial magnetization: center = [x, y]"),
+                Some(item.span.clone()),
+            ))
+        }
+    };
+    Ok(Radial { center, outward })
+}
+
+/// The centre of a round part: a circle's, or that of a ring's outline drawn as a full circle.
+fn round_center(shape: &Shape) -> Option<[f64; 2]> {
+    match shape {
+        Shape::Circle { center, .. } => Some(*center),
+        Shape::Rings(rings) => match rings.first()?.as_slice() {
+            [a, b] if a.bulge == b.bulge && a.bulge.abs() == 1.0 => Some([0.5 * (a.at[0] + b.at[0]), 0.5 * (a.at[1] + b.at[1])]),
+            _ => None,
+        },
+        _ => None,
+    }
+}
+
+/// A point of the part's outline (where a radial magnetization's summary direction is taken).
+fn first_point(shape: &Shape) -> [f64; 2] {
+    shape.corner_outlines().first().and_then(|o| o.first().copied()).unwrap_or_else(|| {
+        let (lo, hi) = shape.bounds();
+        [hi[0], 0.5 * (lo[1] + hi[1])]
+    })
 }
 
 fn direction(item: &Item, ctx: &Context, symmetry: Symmetry, what: &str) -> Result<[f64; 2], Diagnostic> {

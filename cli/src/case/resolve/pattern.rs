@@ -9,7 +9,7 @@ use crate::case::document::{Fields, Item};
 use crate::case::quantity::Context;
 use crate::case::units::Kind;
 use mesher::{Shape, Symmetry};
-use study::model::Part;
+use study::model::{Part, Radial};
 
 /// Keys of `transform`.
 const TRANSFORM: &[&str] = &["move", "rotate", "about", "mirror"];
@@ -79,6 +79,12 @@ pub(super) fn copies(t: &Fields, ctx: &Context, symmetry: Symmetry, part: Part, 
     for k in 0..count as usize {
         let mut copy = place(&part, k as f64);
         copy.name = format!("{}-{}", part.name, k + 1);
+        if let (Some((_, i)), Some(_)) = (turn, copy.radial) {
+            return Err(Diagnostic::new(
+                format!("{what} array.turn: a radial magnetization turns with each copy already"),
+                Some(i.span.clone()),
+            ));
+        }
         if let (Some((turn, i)), Some(m)) = (turn, copy.magnetization) {
             copy.magnetization = Some(turned(m, k as f64 * turn, symmetry).ok_or_else(|| {
                 Diagnostic::new(
@@ -187,6 +193,10 @@ fn map_shape(shape: &Shape, f: &dyn Fn([f64; 2]) -> [f64; 2], keep_rect: bool, r
 fn moved(p: &Part, d: [f64; 2]) -> Part {
     Part {
         shape: map_shape(&p.shape, &|q| [q[0] + d[0], q[1] + d[1]], true, false),
+        radial: p.radial.map(|r| Radial {
+            center: [r.center[0] + d[0], r.center[1] + d[1]],
+            ..r
+        }),
         ..p.clone()
     }
 }
@@ -202,6 +212,7 @@ fn rotated(p: &Part, angle: f64, about: [f64; 2]) -> Part {
     Part {
         shape: map_shape(&p.shape, &f, angle == 0.0, false),
         magnetization: p.magnetization.map(turn),
+        radial: p.radial.map(|r| Radial { center: f(r.center), ..r }),
         ..p.clone()
     }
 }
@@ -220,6 +231,7 @@ fn mirrored(p: &Part, across_x: bool, about: [f64; 2]) -> Part {
     Part {
         shape: map_shape(&p.shape, &f, true, true),
         magnetization: p.magnetization.map(arrow),
+        radial: p.radial.map(|r| Radial { center: f(r.center), ..r }),
         ..p.clone()
     }
 }
