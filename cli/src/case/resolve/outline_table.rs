@@ -94,17 +94,24 @@ fn point(p: &Item, ctx: &Context, what: &str) -> Result<Written, Diagnostic> {
             }
             w.vertex.bulge = v;
         }
-        Some(&"fillet") => w.corner = Some(Corner::Fillet(ctx.positive(t.require("fillet")?, Kind::Length, &format!("{what} fillet"))?)),
-        Some(&"chamfer") => {
-            w.corner = Some(Corner::Chamfer(ctx.positive(
-                t.require("chamfer")?,
-                Kind::Length,
-                &format!("{what} chamfer"),
-            )?))
-        }
+        Some(&"fillet") => w.corner = cut_size(t.require("fillet")?, ctx, &format!("{what} fillet"))?.map(Corner::Fillet),
+        Some(&"chamfer") => w.corner = cut_size(t.require("chamfer")?, ctx, &format!("{what} chamfer"))?.map(Corner::Chamfer),
         _ => {}
     }
     Ok(w)
+}
+
+/// A fillet's radius or a chamfer's length: zero leaves the corner sharp
+/// (so that a sweep can start from the plain corner), negative is refused.
+pub(super) fn cut_size(item: &Item, ctx: &Context, what: &str) -> Result<Option<f64>, Diagnostic> {
+    let v = ctx.quantity(item, Kind::Length, what)?;
+    if v < 0.0 {
+        return Err(Diagnostic::new(
+            format!("{what} must be zero (a sharp corner) or more, got {v}"),
+            Some(item.span.clone()),
+        ));
+    }
+    Ok((v > 0.0).then_some(v))
 }
 
 /// Arcs given by a centre (`{ at, center, turn }`) as bulges, now that the next point is known.

@@ -240,10 +240,12 @@ pub(super) fn shape(kind: &str, item: &Item, ctx: &Context, what: &str) -> Resul
             if from[0] == to[0] || from[1] == to[1] {
                 return Err(Diagnostic::new(format!("{what}: the rectangle has zero area"), Some(item.span.clone())));
             }
+            use super::outline_table::cut_size;
+            use mesher::outline::Corner;
             let corner = match (t.get("fillet"), t.get("chamfer")) {
-                (None, None) => return Ok(Shape::Rect { from, to }),
-                (Some(f), None) => mesher::outline::Corner::Fillet(ctx.positive(f, Kind::Length, &format!("{what} rect.fillet"))?),
-                (None, Some(c)) => mesher::outline::Corner::Chamfer(ctx.positive(c, Kind::Length, &format!("{what} rect.chamfer"))?),
+                (None, None) => None,
+                (Some(f), None) => cut_size(f, ctx, &format!("{what} rect.fillet"))?.map(Corner::Fillet),
+                (None, Some(c)) => cut_size(c, ctx, &format!("{what} rect.chamfer"))?.map(Corner::Chamfer),
                 (Some(f), Some(_)) => {
                     return Err(Diagnostic::new(
                         format!("{what}: give the rectangle a fillet or a chamfer, not both"),
@@ -251,6 +253,7 @@ pub(super) fn shape(kind: &str, item: &Item, ctx: &Context, what: &str) -> Resul
                     ))
                 }
             };
+            let Some(corner) = corner else { return Ok(Shape::Rect { from, to }) };
             let lo = [from[0].min(to[0]), from[1].min(to[1])];
             let hi = [from[0].max(to[0]), from[1].max(to[1])];
             Ok(Shape::Rings(vec![super::outline_table::rect_ring(
