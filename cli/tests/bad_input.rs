@@ -100,7 +100,12 @@ fn a_misspelled_expectation_is_refused_at_its_line_before_any_mesh() {
     // Every example case with one misspelled [[expect]] value appended: exit 2
     // at that table's line and column, and no output folder (nothing meshed).
     let work = std::env::temp_dir().join(format!("lodestone-typo-{}", std::process::id()));
-    std::fs::create_dir_all(&work).unwrap();
+    std::fs::create_dir_all(work.join("sections")).unwrap();
+    // The drawings the examples read, beside the copies.
+    let sections = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/sections");
+    for f in std::fs::read_dir(&sections).unwrap().flatten() {
+        std::fs::copy(f.path(), work.join("sections").join(f.file_name())).unwrap();
+    }
     for case in common::example_cases() {
         let text = std::fs::read_to_string(&case).unwrap();
         let typo = format!("{text}\n\n[[expect]]\nvalue = \"force.pul.z\"\nmax = \"1 N\"\n");

@@ -1,14 +1,9 @@
 //! Part shapes, their conversion to closed polygons, and plane geometry helpers.
 
 use crate::error::MeshError;
+pub use crate::plane::{bbox, circle_sagitta, circle_segments, dist, orient, signed_area, CHORD_FRACTION, MIN_CIRCLE_SEGMENTS};
 use crate::spec::MeshSpec;
 pub use crate::spec::{Shape, Symmetry};
-
-/// Largest sagitta of a circle's chords, as a fraction of the local size.
-pub const CHORD_FRACTION: f64 = 0.02;
-
-/// Fewest chords of any circle.
-pub const MIN_CIRCLE_SEGMENTS: f64 = 48.0;
 
 impl Shape {
     /// Exact area of the shape as the study sees it (the r >= 0 half of an
@@ -195,21 +190,6 @@ fn circle_polygon(part: usize, c: [f64; 2], radius: f64, size: f64, symmetry: Sy
         .collect())
 }
 
-/// Largest distance inside a circle of its meshed outline (chords for a
-/// part of this size): the sagitta of its chords.
-pub fn circle_sagitta(radius: f64, size: f64) -> f64 {
-    radius * (1.0 - (std::f64::consts::PI / circle_segments(radius, size) as f64).cos())
-}
-
-/// Number of chords for a circle: chord <= size, sagitta <= CHORD_FRACTION * size,
-/// and at least MIN_CIRCLE_SEGMENTS (area within 0.3 % of the circle's).
-pub fn circle_segments(radius: f64, size: f64) -> usize {
-    let by_length = (2.0 * std::f64::consts::PI * radius / size).ceil();
-    let sag = (CHORD_FRACTION * size).min(radius);
-    let by_sagitta = (std::f64::consts::PI / (1.0 - sag / radius).acos()).ceil();
-    (by_length.max(by_sagitta).max(MIN_CIRCLE_SEGMENTS) as usize).min(1 << 16)
-}
-
 fn validate_polygon(part: usize, poly: &[[f64; 2]], symmetry: Symmetry) -> Result<(), MeshError> {
     if poly.len() < 3 {
         return Err(MeshError::TooFewPoints { part, count: poly.len() });
@@ -271,23 +251,6 @@ pub fn segments_intersect(a: [f64; 2], b: [f64; 2], c: [f64; 2], d: [f64; 2]) ->
     on(c, d, a, d1) || on(c, d, b, d2) || on(a, b, c, d3) || on(a, b, d, d4)
 }
 
-/// Twice the signed area of triangle (a, b, c); positive when counter-clockwise.
-pub fn orient(a: [f64; 2], b: [f64; 2], c: [f64; 2]) -> f64 {
-    (b[0] - a[0]) * (c[1] - a[1]) - (b[1] - a[1]) * (c[0] - a[0])
-}
-
-/// Signed area of a closed polygon (shoelace formula).
-pub fn signed_area(poly: &[[f64; 2]]) -> f64 {
-    let n = poly.len();
-    (0..n)
-        .map(|i| {
-            let (p, q) = (poly[i], poly[(i + 1) % n]);
-            p[0] * q[1] - q[0] * p[1]
-        })
-        .sum::<f64>()
-        / 2.0
-}
-
 /// Even-odd point-in-polygon test; points on an edge count as inside.
 pub fn point_in_polygon(poly: &[[f64; 2]], p: [f64; 2]) -> bool {
     point_in_edges(poly, 0..poly.len(), p)
@@ -340,24 +303,6 @@ pub fn point_segment_distance_squared(p: [f64; 2], a: [f64; 2], b: [f64; 2]) -> 
     };
     let d = [p[0] - a[0] - t * ab[0], p[1] - a[1] - t * ab[1]];
     d[0] * d[0] + d[1] * d[1]
-}
-
-/// Euclidean distance.
-pub fn dist(a: [f64; 2], b: [f64; 2]) -> f64 {
-    (a[0] - b[0]).hypot(a[1] - b[1])
-}
-
-/// Lower-left and upper-right corners of the points.
-pub fn bbox(points: impl IntoIterator<Item = [f64; 2]>) -> ([f64; 2], [f64; 2]) {
-    let mut lo = [f64::INFINITY; 2];
-    let mut hi = [f64::NEG_INFINITY; 2];
-    for p in points {
-        for k in 0..2 {
-            lo[k] = lo[k].min(p[k]);
-            hi[k] = hi[k].max(p[k]);
-        }
-    }
-    (lo, hi)
 }
 
 fn bbox_extent(poly: &[[f64; 2]]) -> f64 {

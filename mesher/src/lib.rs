@@ -26,6 +26,7 @@ mod exterior;
 pub mod geometry;
 mod mesh;
 pub mod outline;
+mod plane;
 mod refine;
 mod size_field;
 mod spatial;

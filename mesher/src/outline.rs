@@ -7,17 +7,9 @@
 //! The mesher splits each arc into chords with a bounded sagitta, and the
 //! uniform refinement puts new points back on the arc (`refine.rs`).
 
-use crate::geometry::{circle_segments, dist, signed_area};
+use crate::plane::{circle_segments, dist, signed_area};
 
-/// A vertex of a ring and the bulge of the segment from it to the next
-/// vertex (0 for a straight segment).
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub struct Vertex {
-    /// The point.
-    pub at: [f64; 2],
-    /// tan(theta / 4) of the arc to the next vertex; positive: counter-clockwise.
-    pub bulge: f64,
-}
+pub use crate::spec::Vertex;
 
 /// The circle an arc segment lies on and the angles it spans.
 #[derive(Clone, Copy, Debug, PartialEq)]

@@ -43,7 +43,17 @@ pub enum Shape {
     },
     /// Rings of straight and arc segments: the outline first, then its
     /// holes (each arc split into chords bounded by a sagitta, as circles are).
-    Rings(Vec<Vec<crate::outline::Vertex>>),
+    Rings(Vec<Vec<Vertex>>),
+}
+
+/// A vertex of a ring and the bulge of the segment from it to the next
+/// vertex (0 for a straight segment).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Vertex {
+    /// The point.
+    pub at: [f64; 2],
+    /// tan(theta / 4) of the arc to the next vertex; positive: counter-clockwise.
+    pub bulge: f64,
 }
 
 /// How the outside of the model is closed.

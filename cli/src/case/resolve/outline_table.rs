@@ -219,7 +219,7 @@ pub(super) fn holes(item: &Item, ctx: &Context, what: &str) -> Result<Vec<Vec<Ve
                 Some(h.span.clone()),
             ));
         }
-        let shape = super::parts::shape(shapes[0], t.require(shapes[0])?, ctx, &format!("{what} hole"))?;
+        let shape = shape(shapes[0], t.require(shapes[0])?, ctx, &format!("{what} hole"))?;
         out.push(ring_of(&shape));
     }
     Ok(out)
@@ -233,5 +233,51 @@ pub(super) fn ring_of(shape: &Shape) -> Vec<Vertex> {
         Shape::Polygon(p) => straight(p),
         Shape::Circle { center, radius } => circle_ring(*center, *radius),
         Shape::Rings(r) => r.first().cloned().unwrap_or_default(),
+    }
+}
+
+/// A part's (or a hole's) shape from its `rect`, `circle`, `polygon` or `dxf` item.
+pub(super) fn shape(kind: &str, item: &Item, ctx: &Context, what: &str) -> Result<Shape, Diagnostic> {
+    match kind {
+        "rect" => {
+            let t = item.table(&format!("{what} rect"), RECT)?;
+            let from = ctx.point(t.require("from")?, &format!("{what} rect.from"))?;
+            let to = ctx.point(t.require("to")?, &format!("{what} rect.to"))?;
+            if from[0] == to[0] || from[1] == to[1] {
+                return Err(Diagnostic::new(format!("{what}: the rectangle has zero area"), Some(item.span.clone())));
+            }
+            use cut_size;
+            use mesher::outline::Corner;
+            let corner = match (t.get("fillet"), t.get("chamfer")) {
+                (None, None) => None,
+                (Some(f), None) => cut_size(f, ctx, &format!("{what} rect.fillet"))?.map(Corner::Fillet),
+                (None, Some(c)) => cut_size(c, ctx, &format!("{what} rect.chamfer"))?.map(Corner::Chamfer),
+                (Some(f), Some(_)) => {
+                    return Err(Diagnostic::new(
+                        format!("{what}: give the rectangle a fillet or a chamfer, not both"),
+                        Some(f.span.clone()),
+                    ))
+                }
+            };
+            let Some(corner) = corner else { return Ok(Shape::Rect { from, to }) };
+            let lo = [from[0].min(to[0]), from[1].min(to[1])];
+            let hi = [from[0].max(to[0]), from[1].max(to[1])];
+            Ok(Shape::Rings(vec![rect_ring(lo, hi, corner, item.span.clone(), ctx, what)?]))
+        }
+        "dxf" => super::dxf_shape::section(item, ctx, what),
+        "circle" => {
+            let t = item.table(&format!("{what} circle"), &["center", "radius"])?;
+            Ok(Shape::Circle {
+                center: ctx.point(t.require("center")?, &format!("{what} circle.center"))?,
+                radius: ctx.positive(t.require("radius")?, Kind::Length, &format!("{what} circle.radius"))?,
+            })
+        }
+        _ => {
+            let ring = polygon_ring(item, ctx, what)?;
+            if ring.iter().all(|v| v.bulge == 0.0) {
+                return Ok(Shape::Polygon(ring.into_iter().map(|v| v.at).collect()));
+            }
+            Ok(Shape::Rings(vec![ring]))
+        }
     }
 }

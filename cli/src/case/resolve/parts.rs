@@ -83,7 +83,7 @@ fn part(
         };
         return Err(Diagnostic::new(msg, Some(t.span.start..t.span.start + 1)));
     }
-    let mut shape = shape(shapes[0], t.require(shapes[0])?, ctx, &what)?;
+    let mut shape = super::outline_table::shape(shapes[0], t.require(shapes[0])?, ctx, &what)?;
     if let Some(h) = t.get("holes") {
         let mut rings = vec![super::outline_table::ring_of(&shape)];
         rings.extend(super::outline_table::holes(h, ctx, &what)?);
@@ -229,58 +229,6 @@ fn wire_area(item: &Item, ctx: &Context, what: &str) -> Result<f64, Diagnostic> 
         None => ctx.positive(item, Kind::Length, &format!("{what} wire diameter"))?,
     };
     Ok(std::f64::consts::PI * diameter * diameter / 4.0)
-}
-
-pub(super) fn shape(kind: &str, item: &Item, ctx: &Context, what: &str) -> Result<Shape, Diagnostic> {
-    match kind {
-        "rect" => {
-            let t = item.table(&format!("{what} rect"), super::outline_table::RECT)?;
-            let from = ctx.point(t.require("from")?, &format!("{what} rect.from"))?;
-            let to = ctx.point(t.require("to")?, &format!("{what} rect.to"))?;
-            if from[0] == to[0] || from[1] == to[1] {
-                return Err(Diagnostic::new(format!("{what}: the rectangle has zero area"), Some(item.span.clone())));
-            }
-            use super::outline_table::cut_size;
-            use mesher::outline::Corner;
-            let corner = match (t.get("fillet"), t.get("chamfer")) {
-                (None, None) => None,
-                (Some(f), None) => cut_size(f, ctx, &format!("{what} rect.fillet"))?.map(Corner::Fillet),
-                (None, Some(c)) => cut_size(c, ctx, &format!("{what} rect.chamfer"))?.map(Corner::Chamfer),
-                (Some(f), Some(_)) => {
-                    return Err(Diagnostic::new(
-                        format!("{what}: give the rectangle a fillet or a chamfer, not both"),
-                        Some(f.span.clone()),
-                    ))
-                }
-            };
-            let Some(corner) = corner else { return Ok(Shape::Rect { from, to }) };
-            let lo = [from[0].min(to[0]), from[1].min(to[1])];
-            let hi = [from[0].max(to[0]), from[1].max(to[1])];
-            Ok(Shape::Rings(vec![super::outline_table::rect_ring(
-                lo,
-                hi,
-                corner,
-                item.span.clone(),
-                ctx,
-                what,
-            )?]))
-        }
-        "dxf" => super::dxf_shape::section(item, ctx, what),
-        "circle" => {
-            let t = item.table(&format!("{what} circle"), &["center", "radius"])?;
-            Ok(Shape::Circle {
-                center: ctx.point(t.require("center")?, &format!("{what} circle.center"))?,
-                radius: ctx.positive(t.require("radius")?, Kind::Length, &format!("{what} circle.radius"))?,
-            })
-        }
-        _ => {
-            let ring = super::outline_table::polygon_ring(item, ctx, what)?;
-            if ring.iter().all(|v| v.bulge == 0.0) {
-                return Ok(Shape::Polygon(ring.into_iter().map(|v| v.at).collect()));
-            }
-            Ok(Shape::Rings(vec![ring]))
-        }
-    }
 }
 
 /// `magnetization = { radial = "outward" | "inward", center = [x, y] }`

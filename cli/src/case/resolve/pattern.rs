@@ -25,7 +25,7 @@ const MOST_COPIES: f64 = 1000.0;
 /// itself, or its copies named NAME-1 ... NAME-N.
 pub(super) fn copies(t: &Fields, ctx: &Context, symmetry: Symmetry, part: Part, what: &str) -> Result<Vec<Part>, Diagnostic> {
     let part = match t.get("transform") {
-        Some(item) => transform(item, ctx, symmetry, part, what)?,
+        Some(item) => tidied(&transform(item, ctx, symmetry, part, what)?, ctx.length_unit),
         None => part,
     };
     let Some(item) = t.get("array") else { return Ok(vec![part]) };
@@ -77,7 +77,7 @@ pub(super) fn copies(t: &Fields, ctx: &Context, symmetry: Symmetry, part: Part, 
     };
     let mut out = Vec::with_capacity(count as usize);
     for k in 0..count as usize {
-        let mut copy = place(&part, k as f64);
+        let mut copy = tidied(&place(&part, k as f64), ctx.length_unit);
         copy.name = format!("{}-{}", part.name, k + 1);
         if let (Some((_, i)), Some(_)) = (turn, copy.radial) {
             return Err(Diagnostic::new(
@@ -232,6 +232,34 @@ fn mirrored(p: &Part, across_x: bool, about: [f64; 2]) -> Part {
         shape: map_shape(&p.shape, &f, true, true),
         magnetization: p.magnetization.map(arrow),
         radial: p.radial.map(|r| Radial { center: f(r.center), ..r }),
+        ..p.clone()
+    }
+}
+
+/// The part with its placed coordinates rounded to 12 significant digits
+/// of its size in the case's length unit: a block moved by k times 10 mm
+/// lands where one typed at 10 k mm lies, to the bit (the metre
+/// arithmetic differed in the last bits, and so did the meshes), and a
+/// quarter turn leaves no 1e-17 behind.
+fn tidied(p: &Part, unit: f64) -> Part {
+    let (lo, hi) = p.shape.bounds();
+    let size = (hi[0] - lo[0])
+        .max(hi[1] - lo[1])
+        .max(lo[0].abs().max(hi[0].abs()))
+        .max(lo[1].abs().max(hi[1].abs()))
+        / unit;
+    let decimals = (11 - size.log10().floor() as i32).clamp(0, 17) as usize;
+    let tidy = |x: f64| {
+        let c: f64 = format!("{:.*}", decimals, x / unit).parse().unwrap_or(x / unit);
+        // (+ 0.0: no -0.0 where the typed part has 0.)
+        c * unit + 0.0
+    };
+    Part {
+        shape: map_shape(&p.shape, &|q| q.map(tidy), true, false),
+        radial: p.radial.map(|r| Radial {
+            center: r.center.map(tidy),
+            ..r
+        }),
         ..p.clone()
     }
 }
