@@ -30,6 +30,11 @@ pub enum DxfError {
     Malformed(String),
     /// Nothing on the layer; the layers that have entities are listed.
     EmptyLayer(Vec<String>),
+    /// A loop closes on itself with no area (a line drawn there and back).
+    NoArea {
+        /// the entity that closes it
+        entity: String,
+    },
     /// A loop does not close: the last entity reached, and the gap to the nearest free end.
     Gap {
         /// the entity at the open end
@@ -46,6 +51,7 @@ impl std::fmt::Display for DxfError {
             DxfError::EmptyLayer(layers) if layers.is_empty() => write!(f, "the drawing has no LINE, ARC, CIRCLE, LWPOLYLINE or POLYLINE entities"),
             DxfError::EmptyLayer(layers) => write!(f, "no entities on that layer; the layers drawn on are: {}", layers.join(", ")),
             DxfError::Gap { entity, gap } => write!(f, "a loop does not close: {entity} ends {gap:.6} drawing units from the nearest free end"),
+            DxfError::NoArea { entity } => write!(f, "a loop closed by {entity} encloses no area"),
         }
     }
 }
@@ -207,7 +213,7 @@ fn layer_contents(entities: &[Entity], layer: &str) -> Result<Layer, DxfError> {
                 entity: e.name(),
             }),
             "ARC" => {
-                let (c, r) = ([e.num(10)?, e.num(20)?], e.num(40)?);
+                let (c, r) = ([e.num(10)?, e.num(20)?], radius(e)?);
                 let (t0, t1) = (e.num(50)?.to_radians(), e.num(51)?.to_radians());
                 let sweep = (t1 - t0).rem_euclid(std::f64::consts::TAU);
                 let at = |t: f64| [c[0] + r * t.cos(), c[1] + r * t.sin()];
@@ -218,7 +224,7 @@ fn layer_contents(entities: &[Entity], layer: &str) -> Result<Layer, DxfError> {
                     entity: e.name(),
                 });
             }
-            "CIRCLE" => out.loops.push(mesher::outline::circle_ring([e.num(10)?, e.num(20)?], e.num(40)?)),
+            "CIRCLE" => out.loops.push(mesher::outline::circle_ring([e.num(10)?, e.num(20)?], radius(e)?)),
             "LWPOLYLINE" | "POLYLINE" => {
                 let closed = e.get(70).and_then(|f| f.trim().parse::<i64>().ok()).is_some_and(|f| f & 1 == 1);
                 let mut vertices = lw_vertices(e)?;
@@ -245,6 +251,16 @@ fn layer_contents(entities: &[Entity], layer: &str) -> Result<Layer, DxfError> {
         }
     }
     Ok(out)
+}
+
+/// An arc's or circle's radius (group 40), which must be positive.
+fn radius(e: &Entity) -> Result<f64, DxfError> {
+    let r = e.num(40)?;
+    if r > 0.0 {
+        Ok(r)
+    } else {
+        Err(DxfError::Malformed(format!("{}: radius {r}; a radius is positive", e.name())))
+    }
 }
 
 fn dist(a: [f64; 2], b: [f64; 2]) -> f64 {
@@ -281,7 +297,7 @@ fn join(mut pieces: Vec<Piece>, tol: f64) -> Result<Vec<Vec<Vertex>>, DxfError> 
             last = p.entity;
         }
         if ring.len() < 2 || (ring.len() == 2 && ring.iter().all(|v| v.bulge == 0.0)) {
-            return Err(DxfError::Gap { entity: last, gap: 0.0 });
+            return Err(DxfError::NoArea { entity: last });
         }
         loops.push(ring);
     }

@@ -39,6 +39,18 @@ pub(super) fn section(item: &Item, ctx: &Context, what: &str) -> Result<Shape, D
     let area = |r: &Vec<mesher::outline::Vertex>| mesher::outline::ring_area(r).abs();
     let k = (0..loops.len()).fold(0, |m, i| if area(&loops[i]) > area(&loops[m]) { i } else { m });
     loops.swap(0, k);
+    let outline = mesher::outline::ring_polygon(&loops[0], f64::INFINITY);
+    let apart = loops[1..].iter().filter(|r| !mesher::geometry::point_in_polygon(&outline, r[0].at)).count();
+    if apart > 0 {
+        return Err(Diagnostic::new(
+            format!(
+                "{what} dxf: {} layer {layer}: {} closed loops lie apart; a part is one outline with its holes: put each outline on a layer of its own, one part per layer",
+                path.display(),
+                apart + 1
+            ),
+            Some(item.span.clone()),
+        ));
+    }
     Ok(Shape::Rings(loops))
 }
 

@@ -15,6 +15,8 @@ use mesher::Shape;
 const POINT: &[&str] = &["at", "bulge", "center", "turn", "fillet", "chamfer"];
 /// Keys of `rect`.
 pub(super) const RECT: &[&str] = &["from", "to", "fillet", "chamfer"];
+/// Most holes in one part (each is checked against every other).
+const MOST_HOLES: usize = 200;
 /// Shapes a hole takes.
 const HOLE_SHAPES: &[&str] = &["rect", "circle", "polygon"];
 
@@ -209,6 +211,12 @@ fn corner_error(e: CornerError, w: &Written, ctx: &Context, what: &str) -> Diagn
 /// `holes = [{ circle = .. }, { rect = .. }, { polygon = [..] }]`: the rings of the holes.
 pub(super) fn holes(item: &Item, ctx: &Context, what: &str) -> Result<Vec<Vec<Vertex>>, Diagnostic> {
     let list = item.tables(&format!("{what} holes"))?;
+    if list.len() > MOST_HOLES {
+        return Err(Diagnostic::new(
+            format!("{what}: {} holes; at most {MOST_HOLES} in one part", list.len()),
+            Some(item.span.clone()),
+        ));
+    }
     let mut out = Vec::with_capacity(list.len());
     for h in list {
         let t = h.table(&format!("{what} hole"), HOLE_SHAPES)?;
