@@ -15,6 +15,10 @@ pub struct Domain {
     pub max_size: f64,
     /// The box of a flux-parallel study (lower left, upper right) and what its sides are.
     pub sides: Option<([f64; 2], [f64; 2], BoxSides)>,
+    /// The open disk is cut on x = 0 (axisymmetric, or a planar symmetry
+    /// plane): a half disk, the line x = 0 its diameter; Some(flux_normal)
+    /// for a planar plane.
+    pub cut: Option<Option<bool>>,
 }
 
 /// Number of chords of the open boundary's circle.
@@ -26,9 +30,19 @@ impl Domain {
         let part_points = polygons.iter().flatten().copied();
         let (lo, hi) = bbox(part_points.clone());
         let axisym = spec.symmetry == Symmetry::Axisymmetric;
+        let half_plane = match spec.outer {
+            OuterBoundary::OpenHalf { flux_normal } if !axisym => Some(flux_normal),
+            _ => None,
+        };
         match &spec.outer {
-            OuterBoundary::Open => {
-                let c = if axisym {
+            OuterBoundary::Open | OuterBoundary::OpenHalf { .. } => {
+                let cut = half_plane.is_some() || axisym;
+                if half_plane.is_some() && (lo[0] < 0.0 || refinement_points(&spec.refinements).any(|p| p[0] < 0.0)) {
+                    return Err(MeshError::Triangulation(
+                        "with a symmetry plane on x = 0 the model is the half x >= 0: every part and probe must lie there".into(),
+                    ));
+                }
+                let c = if cut {
                     [0.0, 0.5 * (lo[1] + hi[1])]
                 } else {
                     [0.5 * (lo[0] + hi[0]), 0.5 * (lo[1] + hi[1])]
@@ -36,12 +50,13 @@ impl Domain {
                 let r_parts = part_points.map(|p| dist(p, c)).fold(0.0, f64::max);
                 let r_all = refinement_points(&spec.refinements).map(|p| dist(p, c)).fold(0.0, f64::max);
                 let radius = (1.5 * r_parts).max(1.1 * r_all);
-                let outline = circle_outline(c, radius, axisym, f64::INFINITY);
+                let outline = circle_outline(c, radius, cut, f64::INFINITY);
                 Ok(Domain {
                     outline,
                     kelvin: Some((c, radius)),
                     max_size: radius / 6.0,
                     sides: None,
+                    cut: cut.then_some(half_plane),
                 })
             }
             OuterBoundary::FluxParallel { from_to, sides } => {
@@ -75,6 +90,7 @@ impl Domain {
                     kelvin: None,
                     max_size: (w.max(h) / 6.0).min(across),
                     sides: Some((b0, b1, *sides)),
+                    cut: None,
                 })
             }
         }

@@ -62,6 +62,13 @@ pub enum OuterBoundary {
     /// Unbounded space: a disk (half-disk when axisymmetric) whose exterior is
     /// mapped by the Kelvin transformation onto a second disk.
     Open,
+    /// Unbounded space cut by a symmetry plane on the line x = 0 (planar),
+    /// the half x >= 0 modelled: a half disk and its half Kelvin exterior,
+    /// the plane flux-normal (nothing imposed) or flux-parallel (zero potential).
+    OpenHalf {
+        /// flux crosses the plane at right angles
+        flux_normal: bool,
+    },
     /// A box: zero potential (flux parallel) on its sides, unless a side
     /// is named a symmetry plane or one of a periodic pair.
     FluxParallel {

@@ -63,7 +63,7 @@ pub fn mesh_domain(spec: &MeshSpec, rings: &crate::geometry::PartRings, domain: 
         max_size: domain.max_size,
         polygons,
         part_sizes: spec.parts.iter().map(|p| p.mesh_size).collect(),
-        axisymmetric: spec.symmetry == Symmetry::Axisymmetric,
+        axisymmetric: spec.symmetry == Symmetry::Axisymmetric || domain.cut.is_some(),
         constrained_axis: false,
     };
     let outline = match domain.kelvin {
@@ -73,7 +73,7 @@ pub fn mesh_domain(spec: &MeshSpec, rings: &crate::geometry::PartRings, domain: 
             let samples = crate::domain::circle_outline(c, radius, false, 2.0 * std::f64::consts::PI * radius / 4096.0);
             let rim_size = samples.iter().map(|&p| work.size_at(p)).fold(f64::INFINITY, f64::min);
             // 0.9: chords a little shorter than the size, so that no chord is bisected.
-            crate::domain::circle_outline(c, radius, spec.symmetry == Symmetry::Axisymmetric, 0.9 * rim_size)
+            crate::domain::circle_outline(c, radius, domain.cut.is_some(), 0.9 * rim_size)
         }
         None => domain.outline.clone(),
     };
@@ -91,7 +91,7 @@ pub fn mesh_domain(spec: &MeshSpec, rings: &crate::geometry::PartRings, domain: 
     }
     let mut mesh = work.extract(spec.symmetry, domain);
     if let Some((c, radius)) = domain.kelvin {
-        attach_exterior(&mut mesh, c, radius)?;
+        attach_exterior(&mut mesh, c, radius, domain.cut.is_some())?;
     }
     Ok(mesh)
 }
@@ -337,9 +337,12 @@ impl Work<'_> {
         let mut boundary = Vec::new();
         for edge in self.cdt.convex_hull() {
             let [a, b] = edge.vertices().map(|v| v.fix().index());
-            let on_axis = symmetry == Symmetry::Axisymmetric && nodes[a][0].abs() <= 0.0 && nodes[b][0].abs() <= 0.0;
+            let on_axis = (symmetry == Symmetry::Axisymmetric || domain.cut.is_some()) && nodes[a][0].abs() <= 0.0 && nodes[b][0].abs() <= 0.0;
             let tag = if on_axis {
-                BoundaryTag::Axis
+                match domain.cut {
+                    Some(Some(flux_normal)) => BoundaryTag::Mirror { flux_normal },
+                    _ => BoundaryTag::Axis,
+                }
             } else if domain.kelvin.is_some() {
                 BoundaryTag::Rim
             } else {
@@ -423,13 +426,16 @@ fn face_regions(cdt: &Cdt, polygons: &[Vec<[f64; 2]>], parts: &PolygonIndex) -> 
     region
 }
 
-fn attach_exterior(mesh: &mut Mesh, c: [f64; 2], radius: f64) -> Result<(), MeshError> {
+/// The Kelvin-mapped exterior joined at the rim; `half`: the disk is cut
+/// on x = 0 (the axis, or a planar symmetry plane), and the cut's ends on
+/// the circle are rim nodes too.
+fn attach_exterior(mesh: &mut Mesh, c: [f64; 2], radius: f64, half: bool) -> Result<(), MeshError> {
     let mut rim: Vec<usize> = mesh.boundary.iter().filter(|(_, t)| *t == BoundaryTag::Rim).flat_map(|(e, _)| *e).collect();
-    if mesh.symmetry == Symmetry::Axisymmetric {
+    if half {
         rim.extend(
             mesh.boundary
                 .iter()
-                .filter(|(_, t)| *t == BoundaryTag::Axis)
+                .filter(|(_, t)| matches!(t, BoundaryTag::Axis | BoundaryTag::Mirror { .. }))
                 .flat_map(|(e, _)| *e)
                 .filter(|&n| (dist(mesh.nodes[n], c) - radius).abs() <= 1e-9 * radius),
         );
@@ -445,7 +451,6 @@ fn attach_exterior(mesh: &mut Mesh, c: [f64; 2], radius: f64) -> Result<(), Mesh
         mesh.nodes[n] = exterior::onto_circle(mesh.nodes[n], c, radius);
     }
     let rim: Vec<(usize, [f64; 2])> = rim.into_iter().map(|n| (n, mesh.nodes[n])).collect();
-    let half = mesh.symmetry == Symmetry::Axisymmetric;
     let disk = exterior::build(c, radius, &rim, half, mesh.nodes.len())?;
     for local in rim.len()..disk.mapped.len() {
         mesh.nodes.push(disk.mapped[local]);

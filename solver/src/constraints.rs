@@ -46,7 +46,11 @@ fn fixed_nodes(mesh: &Mesh, els: &Elements) -> Vec<bool> {
             fixed_edges.insert((edge[0].min(edge[1]), edge[0].max(edge[1])));
         }
     }
-    let axisym = mesh.symmetry == Symmetry::Axisymmetric;
+    // Zero potential on the line x = 0 throughout: the axis, or a planar
+    // open disk cut there by a flux-parallel plane (its exterior's diameter
+    // included, which the domain's edges do not reach).
+    let cut_at_zero = mesh.exterior.is_some() && mesh.boundary.iter().any(|(_, t)| *t == BoundaryTag::Mirror { flux_normal: false });
+    let axisym = mesh.symmetry == Symmetry::Axisymmetric || cut_at_zero;
     for e in 0..els.len() {
         let x = els.coords[e];
         for k in 0..3 {

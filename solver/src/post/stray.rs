@@ -56,9 +56,15 @@ pub fn exterior_series(solution: &Solution, center: [f64; 2], rho: f64) -> Optio
             }
         }
         Symmetry::Planar => {
+            let mirror = half_plane_sign(solution);
             for k in 0..SAMPLES {
                 let t = 2.0 * PI * (k as f64 + 0.5) / SAMPLES as f64;
-                let a = solution.reduced_potential_at([center[0] + rho * t.cos(), center[1] + rho * t.sin()])?;
+                let p = [center[0] + rho * t.cos(), center[1] + rho * t.sin()];
+                let a = match mirror {
+                    // The modelled half is x >= 0: the other half by the plane's symmetry.
+                    Some(s) if p[0] < 0.0 => s * solution.reduced_potential_at([-p[0], p[1]])?,
+                    _ => solution.reduced_potential_at(p)?,
+                };
                 for (n, c) in terms.iter_mut().enumerate() {
                     let m = (n + 1) as f64;
                     c[0] += a * (m * t).cos() * 2.0 / SAMPLES as f64;
@@ -214,6 +220,18 @@ fn interpolate(prev: Option<(f64, f64)>, cur: (f64, f64), level: f64) -> f64 {
         Some((d0, b0)) if b0 > level => d0 + (cur.0 - d0) * (b0 - level) / (b0 - cur.1),
         _ => cur.0,
     }
+}
+
+/// For a planar open study cut by a symmetry plane on x = 0, A(-x, y) =
+/// s A(x, y): s = 1 for a flux-normal plane (A even), -1 for a
+/// flux-parallel one (A odd). None for a whole model.
+fn half_plane_sign(solution: &Solution) -> Option<f64> {
+    let mesh = solution.problem.mesh;
+    mesh.exterior.as_ref()?;
+    mesh.boundary.iter().find_map(|(_, t)| match t {
+        mesher::BoundaryTag::Mirror { flux_normal } => Some(if *flux_normal { 1.0 } else { -1.0 }),
+        _ => None,
+    })
 }
 
 /// |H| (A/m) of a point dipole of moment m at distance d on its axis and in its equatorial plane.

@@ -40,9 +40,20 @@ pub(super) fn boundaries(
             _ => Ok(None),
         };
     };
+    if *outer == OuterBoundary::Open {
+        let flux_normal = open_cut(items, ctx, symmetry)?;
+        *outer = OuterBoundary::OpenHalf { flux_normal };
+        return Ok(match scale {
+            Some((true, _)) => Some(WholeAssembly {
+                factor: 2.0,
+                mirrors: vec![(0, 0.0)],
+            }),
+            _ => None,
+        });
+    }
     let OuterBoundary::FluxParallel { from_to: Some((a, b)), sides } = outer else {
         return Err(Diagnostic::new(
-            "[[boundary]] names sides of the box: set [study] boundary = \"flux-parallel\" and box = { from = [..], to = [..] } (the open boundary cannot be cut)",
+            "[[boundary]] names sides of the box: with boundary = \"flux-parallel\" give box = { from = [..], to = [..] }",
             Some(first.span.start..first.span.start + 1),
         ));
     };
@@ -55,6 +66,44 @@ pub(super) fn boundaries(
         Some((true, _)) => Some(whole(sides, (lo, hi), cells)),
         _ => None,
     })
+}
+
+/// The open boundary cut by one symmetry plane, which must be the line
+/// x = 0 of a planar study (the model is the half x >= 0); its kind.
+fn open_cut(items: &[Item], ctx: &Context, symmetry: Symmetry) -> Result<bool, Diagnostic> {
+    let here = |i: &Item| Some(i.span.start..i.span.start + 1);
+    let [item] = items else {
+        return Err(Diagnostic::new(
+            "the open boundary takes one [[boundary]], a symmetry plane on x = 0; for more, use boundary = \"flux-parallel\" with a box",
+            here(&items[1]),
+        ));
+    };
+    if symmetry == Symmetry::Axisymmetric {
+        return Err(Diagnostic::new(
+            "about the axis the open boundary is cut by the axis already; a plane z = const needs boundary = \"flux-parallel\" with a box",
+            here(item),
+        ));
+    }
+    let t = item.table("[[boundary]]", BOUNDARY)?;
+    let kind_item = t.require("kind")?;
+    let kind = kind_item.str("boundary.kind")?;
+    if kind != "flux-normal" && kind != "flux-parallel" {
+        return Err(Diagnostic::new(
+            format!("boundary.kind: the open boundary is cut by a symmetry plane only (\"flux-normal\" or \"flux-parallel\"); '{kind}' needs boundary = \"flux-parallel\" with a box"),
+            Some(kind_item.span.clone()),
+        ));
+    }
+    let line = t.require("line")?;
+    let l = line.table("boundary.line", &["from", "to"])?;
+    let p = ctx.point(l.require("from")?, "boundary.line.from")?;
+    let q = ctx.point(l.require("to")?, "boundary.line.to")?;
+    if p[0] != 0.0 || q[0] != 0.0 || p[1] == q[1] {
+        return Err(Diagnostic::new(
+            "boundary.line: the open boundary is cut on the line x = 0 (give from = [0, y1], to = [0, y2]; the model is the half x >= 0)",
+            Some(line.span.clone()),
+        ));
+    }
+    Ok(kind == "flux-normal")
 }
 
 /// One `[[boundary]]` put into `sides`; returns its cell count (1 for a symmetry plane).
