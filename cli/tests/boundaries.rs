@@ -7,12 +7,8 @@ mod common;
 
 use serde_json::Value;
 
-fn values(name: &str, text: &str) -> serde_json::Map<String, Value> {
-    let (code, said, out) = common::solve_text(name, text);
-    assert_eq!(code, Some(0), "{said}");
-    let j: Value = serde_json::from_str(&std::fs::read_to_string(out.join("results.json")).unwrap()).unwrap();
-    let _ = std::fs::remove_dir_all(out.parent().unwrap());
-    j["values"].as_object().unwrap().clone()
+fn values(name: &str, text: &str) -> common::ValueMap {
+    common::solved(name, text).0
 }
 
 fn get(v: &serde_json::Map<String, Value>, name: &str) -> f64 {

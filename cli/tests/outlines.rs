@@ -4,15 +4,6 @@ mod common;
 
 use serde_json::Value;
 
-/// Values and errors of a solved case.
-fn solved(name: &str, text: &str) -> (serde_json::Map<String, Value>, serde_json::Map<String, Value>) {
-    let (code, said, out) = common::solve_text(name, text);
-    assert_eq!(code, Some(0), "{said}");
-    let j: Value = serde_json::from_str(&std::fs::read_to_string(out.join("results.json")).unwrap()).unwrap();
-    let _ = std::fs::remove_dir_all(out.parent().unwrap());
-    (j["values"].as_object().unwrap().clone(), j["errors"].as_object().cloned().unwrap_or_default())
-}
-
 fn num(v: &serde_json::Map<String, Value>, name: &str) -> f64 {
     v.get(name).and_then(Value::as_f64).unwrap_or_else(|| panic!("{name} missing"))
 }
@@ -34,7 +25,7 @@ fn a_ring_with_a_hole_is_a_line_dipole_outside_and_field_free_inside() {
                 circle = { center = [0, 0], radius = 20 }\nholes = [{ circle = { center = [0, 0], radius = 10 } }]\nmagnetization = \"+x\"\n";
     let outside =
         format!("[study]\ngeometry = \"planar\"\n{ring}[[probe]]\nname = \"east\"\npoint = [30, 0]\n[[probe]]\nname = \"north\"\npoint = [0, 35]\n{OUTPUT}");
-    let (v, e) = solved("ring-outside", &outside);
+    let (v, e) = common::solved("ring-outside", &outside);
     for (name, r) in [("east", 30e-3), ("north", 35e-3)] {
         let exact = 1.0 * (20e-3f64.powi(2) - 10e-3f64.powi(2)) / (2.0 * r * r);
         let (got, err) = (num(&v, &format!("probe.{name}.b")), num(&e, &format!("probe.{name}.b")));
@@ -48,7 +39,7 @@ fn a_ring_with_a_hole_is_a_line_dipole_outside_and_field_free_inside() {
     // The bore's field is zero, so a relative accuracy means nothing there:
     // solve a fixed fine mesh and bound it against Br.
     let bore = format!("[study]\ngeometry = \"planar\"\naccuracy = \"off\"\n[mesh]\nsize = 0.5\n{ring}[[probe]]\nname = \"bore\"\npoint = [3, 2]\n{OUTPUT}");
-    let (v, _) = solved("ring-bore", &bore);
+    let (v, _) = common::solved("ring-bore", &bore);
     assert!(num(&v, "probe.bore.b") < 1e-4, "bore {} T", num(&v, "probe.bore.b"));
 }
 
@@ -76,7 +67,7 @@ fn a_fillet_is_the_same_written_three_ways() {
         .iter()
         .enumerate()
         .map(|(k, f)| {
-            let (v, e) = solved(&format!("fillet-{k}"), &case(f));
+            let (v, e) = common::solved(&format!("fillet-{k}"), &case(f));
             (num(&v, "force.pull.y"), num(&e, "force.pull.y"))
         })
         .collect();
@@ -84,7 +75,7 @@ fn a_fillet_is_the_same_written_three_ways() {
         let (f0, e0) = pulls[0];
         assert!((f - f0).abs() <= 2.0 * (e + e0), "form {k}: {f} N against {f0} N (errors {e}, {e0})");
     }
-    let (sharp, es) = solved("fillet-sharp", &case("rect = { from = [-10, 1], to = [10, 6] }"));
+    let (sharp, es) = common::solved("fillet-sharp", &case("rect = { from = [-10, 1], to = [10, 6] }"));
     let (s, se) = (num(&sharp, "force.pull.y"), num(&es, "force.pull.y"));
     assert!(
         (s - pulls[0].0).abs() > 2.0 * (se + pulls[0].1),
@@ -102,8 +93,8 @@ fn a_chamfer_is_the_polygon_of_its_cut_corners() {
              [[part]]\nname = \"pole\"\nmaterial = \"DC01\"\n{shape}\n[[force]]\nname = \"pull\"\nparts = [\"pole\"]\n{OUTPUT}"
         )
     };
-    let (a, ea) = solved("chamfer-rect", &case("rect = { from = [0, 1], to = [12, 6], chamfer = 1.5 }"));
-    let (c, ec) = solved(
+    let (a, ea) = common::solved("chamfer-rect", &case("rect = { from = [0, 1], to = [12, 6], chamfer = 1.5 }"));
+    let (c, ec) = common::solved(
         "chamfer-polygon",
         &case("polygon = [[0, 2.5], [1.5, 1], [10.5, 1], [12, 2.5], [12, 4.5], [10.5, 6], [1.5, 6], [0, 4.5]]"),
     );
@@ -161,7 +152,7 @@ fn a_radially_magnetized_half_ring_gives_the_charge_models_field() {
          polygon = [{{ at = [20, 0], center = [0, 0] }}, [-20, 0], {{ at = [-10, 0], center = [0, 0], turn = \"cw\" }}, [10, 0]]\n\
          magnetization = {{ radial = \"outward\", center = [0, 0] }}\n[[probe]]\nname = \"centre\"\npoint = [0, 0]\n{OUTPUT}"
     );
-    let (v, e) = solved("radial-half-ring", &text);
+    let (v, e) = common::solved("radial-half-ring", &text);
     let exact = 2f64.ln() / std::f64::consts::PI;
     let (by, bx, err) = (num(&v, "probe.centre.by"), num(&v, "probe.centre.bx"), num(&e, "probe.centre.b"));
     assert!((by - exact).abs() < 1e-3 * exact, "B_y {by} T against {exact} T");
@@ -172,6 +163,6 @@ fn a_radially_magnetized_half_ring_gives_the_charge_models_field() {
         (by - exact).abs()
     );
     // Inwards, the field turns round.
-    let (v, _) = solved("radial-half-ring-in", &text.replace("\"outward\"", "\"inward\""));
+    let (v, _) = common::solved("radial-half-ring-in", &text.replace("\"outward\"", "\"inward\""));
     assert!((num(&v, "probe.centre.by") + exact).abs() < 1e-3 * exact);
 }

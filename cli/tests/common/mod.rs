@@ -43,3 +43,16 @@ pub fn solve_text(name: &str, text: &str) -> (Option<i32>, String, PathBuf) {
     let said = format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr));
     (o.status.code(), said, out)
 }
+
+/// A results.json map: values or errors by name.
+pub type ValueMap = serde_json::Map<String, serde_json::Value>;
+
+/// Solves a case text that must succeed (exit 0): its results.json
+/// `values` and `errors`, the folder removed.
+pub fn solved(name: &str, text: &str) -> (ValueMap, ValueMap) {
+    let (code, said, out) = solve_text(name, text);
+    assert_eq!(code, Some(0), "{said}");
+    let j: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(out.join("results.json")).unwrap()).unwrap();
+    let _ = std::fs::remove_dir_all(out.parent().unwrap());
+    (j["values"].as_object().unwrap().clone(), j["errors"].as_object().cloned().unwrap_or_default())
+}
