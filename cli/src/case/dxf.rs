@@ -389,4 +389,58 @@ mod tests {
         );
         assert!(matches!(read_loops(&dxf(body), "COIL", 1.0, 1e-6), Err(DxfError::EmptyLayer(l)) if l == ["POLE"]));
     }
+
+    /// Mutated drawings (lines dropped, repeated, swapped, numbers
+    /// replaced by extremes or junk) never panic the reader: each is read
+    /// or refused.
+    #[test]
+    fn mutated_drawings_are_read_or_refused() {
+        let text = std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/../cases/sections/lifting-yoke.dxf")).unwrap();
+        let lines: Vec<&str> = text.lines().collect();
+        let junk = [
+            "nan",
+            "-1e308",
+            "1e308",
+            "0",
+            "-0",
+            "abc",
+            "",
+            "999999999999",
+            "LINE",
+            "ARC",
+            "CIRCLE",
+            "VERTEX",
+            "SEQEND",
+            "42",
+            "70",
+            "1",
+        ];
+        let mut state = 0x2545_f491_4f6c_dd1d_u64;
+        let mut next = |n: usize| {
+            state ^= state << 13;
+            state ^= state >> 7;
+            state ^= state << 17;
+            (state % n as u64) as usize
+        };
+        for _ in 0..3000 {
+            let mut l: Vec<String> = lines.iter().map(|s| s.to_string()).collect();
+            for _ in 0..1 + next(6) {
+                let i = next(l.len());
+                match next(4) {
+                    0 => {
+                        l.remove(i);
+                    }
+                    1 => l.insert(i, l[i].clone()),
+                    2 => {
+                        let j = next(l.len());
+                        l.swap(i, j)
+                    }
+                    _ => l[i] = junk[next(junk.len())].to_string(),
+                }
+            }
+            let mutated = l.join("\n");
+            let unit = drawing_unit(&mutated, 1e-3);
+            let _ = read_loops(&mutated, "YOKE", unit, 1e-3);
+        }
+    }
 }
