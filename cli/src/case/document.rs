@@ -129,6 +129,17 @@ impl Item {
         }
     }
 
+    /// One of two words, as true (`words[0]`) or false (`words[1]`); any
+    /// other is refused with `meaning` (what the two words do) and the
+    /// nearer word suggested.
+    pub fn either(&self, what: &str, words: [&str; 2], meaning: &str) -> Result<bool, Diagnostic> {
+        match self.str(what)? {
+            w if w == words[0] => Ok(true),
+            w if w == words[1] => Ok(false),
+            other => Err(Diagnostic::new(format!("{what}: '{other}'; {meaning}"), Some(self.span.clone())).suggest(other, words)),
+        }
+    }
+
     pub fn bool(&self, what: &str) -> Result<bool, Diagnostic> {
         match &self.value {
             Value::Bool(b) => Ok(*b),

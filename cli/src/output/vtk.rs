@@ -112,8 +112,9 @@ pub fn field_vtu(model: &Model, sol: &Solution) -> Result<Vec<u8>, String> {
         .into_par_iter()
         .map(|e| {
             let be = sol.element_b(e);
-            let law = sol.law(sol.elements.kinds[e]);
-            (be, law.response(be).h, law.relative_permeability(be))
+            // The element's own law: a radial magnet's elements point their own ways.
+            let law = sol.element_law(e);
+            (be, sol.element_h(e, be), law.relative_permeability(be))
         })
         .collect();
     let b: Vec<f64> = per.iter().flat_map(|p| [p.0[0], p.0[1], 0.0]).collect();

@@ -126,17 +126,7 @@ fn resolve_centres(written: &mut [Written], pts: &[Item], ctx: &Context, what: &
         let c = ctx.point(c_item, &format!("{what} center"))?;
         let ccw = match t.get("turn") {
             None => true,
-            Some(turn) => match turn.str(&format!("{what} turn"))? {
-                "ccw" => true,
-                "cw" => false,
-                other => {
-                    return Err(Diagnostic::new(
-                        format!("{what} turn: '{other}'; expected \"ccw\" (counter-clockwise) or \"cw\""),
-                        Some(turn.span.clone()),
-                    )
-                    .suggest(other, ["ccw", "cw"]))
-                }
-            },
+            Some(turn) => turn.either(&format!("{what} turn"), ["ccw", "cw"], "expected \"ccw\" (counter-clockwise) or \"cw\"")?,
         };
         let (a, b) = (written[i].vertex.at, written[(i + 1) % n].vertex.at);
         let (ra, rb) = ((a[0] - c[0]).hypot(a[1] - c[1]), (b[0] - c[0]).hypot(b[1] - c[1]));

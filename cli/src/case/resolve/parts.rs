@@ -242,17 +242,11 @@ fn radial(item: &Item, ctx: &Context, symmetry: Symmetry, shape: &Shape, what: &
         ));
     }
     let way = t.require("radial")?;
-    let outward = match way.str(&format!("{what} magnetization.radial"))? {
-        "outward" => true,
-        "inward" => false,
-        other => {
-            return Err(Diagnostic::new(
-                format!("{what} magnetization.radial: '{other}'; expected \"outward\" or \"inward\""),
-                Some(way.span.clone()),
-            )
-            .suggest(other, ["outward", "inward"]))
-        }
-    };
+    let outward = way.either(
+        &format!("{what} magnetization.radial"),
+        ["outward", "inward"],
+        "expected \"outward\" or \"inward\"",
+    )?;
     let center = match (t.get("center"), round_center(shape)) {
         (Some(c), _) => ctx.point(c, &format!("{what} magnetization.center"))?,
         (None, Some(c)) => c,

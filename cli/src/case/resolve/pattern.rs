@@ -110,18 +110,11 @@ fn transform(item: &Item, ctx: &Context, symmetry: Symmetry, part: Part, what: &
         .unwrap_or([0.0, 0.0]);
     let mut part = part;
     if let Some(m) = t.get("mirror") {
-        let axis = m.str(&format!("{what} transform.mirror"))?;
-        let across_x = match axis {
-            "x" => true,
-            "y" => false,
-            other => {
-                return Err(Diagnostic::new(
-                    format!("{what} transform.mirror: '{other}' is not an axis; \"x\" mirrors across the line y = about.y, \"y\" across x = about.x"),
-                    Some(m.span.clone()),
-                )
-                .suggest(other, ["x", "y"]))
-            }
-        };
+        let across_x = m.either(
+            &format!("{what} transform.mirror"),
+            ["x", "y"],
+            "it is not an axis; \"x\" mirrors across the line y = about.y, \"y\" across x = about.x",
+        )?;
         if symmetry == Symmetry::Axisymmetric && !across_x {
             return Err(Diagnostic::new(
                 format!("{what} transform.mirror: about the axis only \"x\" (across a plane z = about.z) keeps the part on its side of the axis"),
