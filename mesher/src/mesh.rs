@@ -59,6 +59,9 @@ pub struct Mesh {
     pub boundary: Vec<([usize; 2], BoundaryTag)>,
     /// The Kelvin-mapped exterior disk of an open study.
     pub exterior: Option<ExteriorDisk>,
+    /// The circles that round parts' outlines follow (elements with an edge
+    /// on one are curved onto it); empty until `follow` or `snap_onto` sets them.
+    pub circles: Vec<crate::refine::BoundaryCircle>,
 }
 
 /// Summary figures of a mesh.
@@ -166,6 +169,7 @@ mod tests {
             regions: vec![Region::Air],
             boundary: Vec::new(),
             exterior: None,
+            circles: Vec::new(),
         }
     }
 

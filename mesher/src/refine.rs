@@ -116,7 +116,7 @@ fn snap(nodes: &mut [[f64; 2]], on_circle: &HashMap<(usize, usize), BoundaryCirc
 
 impl Mesh {
     /// The outline edges of round parts, with their circles.
-    fn edges_on_circles(&self, circles: &[BoundaryCircle]) -> HashMap<(usize, usize), BoundaryCircle> {
+    pub fn edges_on_circles(&self, circles: &[BoundaryCircle]) -> HashMap<(usize, usize), BoundaryCircle> {
         self.boundary
             .iter()
             .filter_map(|&([a, b], tag)| Some((key(a, b), circle_of_edge(tag, self.nodes[a], self.nodes[b], circles)?)))
@@ -130,6 +130,13 @@ impl Mesh {
     pub fn snap_onto(&mut self, circles: &[BoundaryCircle]) {
         let on_circle = self.edges_on_circles(circles);
         snap(&mut self.nodes, &on_circle);
+        self.circles = circles.to_vec();
+    }
+
+    /// Records the circles that round parts' outlines follow, leaving the
+    /// nodes where they are (the elements along them are curved onto them).
+    pub fn follow(&mut self, circles: &[BoundaryCircle]) {
+        self.circles = circles.to_vec();
     }
 
     /// This mesh with every triangle split into four (physical domain and
@@ -190,6 +197,7 @@ impl Mesh {
             regions,
             boundary,
             exterior: None,
+            circles: circles.to_vec(),
         };
         if let Some(disk) = &self.exterior {
             mesh.exterior = Some(refine_exterior(disk, self.n_physical, &mids, &rim_edges, &mut mesh.nodes));

@@ -374,6 +374,7 @@ impl Work<'_> {
             regions,
             boundary,
             exterior: None,
+            circles: Vec::new(),
         }
     }
 }

@@ -9,7 +9,7 @@ use crate::linear_system::symmetric_product;
 use crate::linear_system::Elimination;
 use crate::material::{Law, Tangent};
 use crate::ordering;
-use crate::pattern::{build_pattern, SystemTooLarge, NO_SLOT, PAIRS};
+use crate::pattern::{build_pattern, pairs, SystemTooLarge, NO_SLOT};
 use crate::problem::Problem;
 use crate::space::{ElementKind, Elements, NONE};
 use mesher::Mesh;
@@ -50,11 +50,8 @@ impl System {
     pub fn new(mesh: &Mesh, order: ElementOrder) -> Result<System, SystemTooLarge> {
         // The corner graph's ordering needs only the mesh: it is made on one
         // core while the element table is built on the other.
-        let quadratic = order == ElementOrder::Quadratic;
-        let (elements, ranks) = rayon::join(
-            || Elements::from_mesh(mesh, order),
-            || if quadratic { ordering::corner_ranks(mesh) } else { None },
-        );
+        let higher = order != ElementOrder::Linear;
+        let (elements, ranks) = rayon::join(|| Elements::from_mesh(mesh, order), || if higher { ordering::corner_ranks(mesh) } else { None });
         let constraints = Constraints::of_mesh(mesh, &elements);
         let tied = !constraints.ties.is_empty();
         let DofMap {
@@ -142,7 +139,7 @@ impl System {
             .par_iter()
             .map(|&e| {
                 let mut r = element_residual(
-                    &els.coords[e],
+                    els.geometry(e),
                     &els.gather(e, a),
                     els.order,
                     problem.mesh.symmetry,
@@ -273,7 +270,7 @@ impl Target<'_> {
                         tangent: how.tangent,
                         ..element_load(e, els.kinds[e], problem, how.air)
                     };
-                    let mut local = element_system(&els.coords[e], &els.gather(e, a), els.order, symmetry, els.placement(e), load);
+                    let mut local = element_system(els.geometry(e), &els.gather(e, a), els.order, symmetry, els.placement(e), load);
                     if let Some(s) = element_signs(els, self.sign_of_node, e) {
                         signed(&mut local, &s);
                     }
@@ -302,8 +299,9 @@ impl Target<'_> {
     /// Adds computed element systems into the matrix values and the residual.
     fn scatter_block(&self, chunk: &[usize], locals: &[LocalSystem], values: &mut [f64], residual: &mut [f64]) {
         let m = self.els.order.n_nodes();
+        let stride = pairs(m);
         for (&e, (k, r)) in chunk.iter().zip(locals) {
-            let mut slots = self.scatter[PAIRS * e..PAIRS * (e + 1)].iter();
+            let mut slots = self.scatter[stride * e..stride * (e + 1)].iter();
             for i in 0..m {
                 for (j, &s) in (i..m).zip(&mut slots) {
                     if s != NO_SLOT {

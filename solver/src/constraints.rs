@@ -5,7 +5,7 @@
 //! turned across an anti-periodic pair). The dof map numbers the free
 //! nodes that are tied to nothing; a tied node shares its image's unknown.
 
-use crate::element::{ElementOrder, EDGES};
+use crate::element::EDGES;
 use crate::space::Elements;
 use mesher::{BoundaryTag, Mesh, Symmetry};
 use std::collections::{HashMap, HashSet};
@@ -58,12 +58,12 @@ fn fixed_nodes(mesh: &Mesh, els: &Elements) -> Vec<bool> {
                 fixed[els.nodes[e][k]] = true;
             }
         }
-        if els.order == ElementOrder::Quadratic {
-            for (k, [a, b]) in EDGES.iter().enumerate() {
-                let (na, nb) = (els.nodes[e][*a], els.nodes[e][*b]);
-                let on_axis = axisym && x[*a][0] <= 0.0 && x[*b][0] <= 0.0;
-                if on_axis || (e < els.n_physical && fixed[na] && fixed[nb] && fixed_edges.contains(&(na.min(nb), na.max(nb)))) {
-                    fixed[els.nodes[e][3 + k]] = true;
+        for (k, [a, b]) in EDGES.iter().enumerate() {
+            let (na, nb) = (els.nodes[e][*a], els.nodes[e][*b]);
+            let on_axis = axisym && x[*a][0] <= 0.0 && x[*b][0] <= 0.0;
+            if on_axis || (e < els.n_physical && fixed[na] && fixed[nb] && fixed_edges.contains(&(na.min(nb), na.max(nb)))) {
+                for &n in els.edge_nodes(e, k) {
+                    fixed[n] = true;
                 }
             }
         }
@@ -74,8 +74,7 @@ fn fixed_nodes(mesh: &Mesh, els: &Elements) -> Vec<bool> {
     fixed
 }
 
-/// The nodes (corners and, for quadratic elements, edge midpoints) on each
-/// periodic side, by side index, with whether the pair is anti-periodic.
+/// The nodes (corners and the nodes inside edges) on each periodic side, by side index, with whether the pair is anti-periodic.
 fn nodes_on_periodic_sides(mesh: &Mesh, els: &Elements) -> ([Vec<usize>; 4], bool) {
     let mut by_edge: HashMap<(usize, usize), u8> = HashMap::new();
     let mut anti = false;
@@ -95,9 +94,7 @@ fn nodes_on_periodic_sides(mesh: &Mesh, els: &Elements) -> ([Vec<usize>; 4], boo
             if let Some(&side) = by_edge.get(&(na.min(nb), na.max(nb))) {
                 let list = &mut on[side as usize];
                 list.extend([na, nb]);
-                if els.order == ElementOrder::Quadratic {
-                    list.push(els.nodes[e][3 + k]);
-                }
+                list.extend_from_slice(els.edge_nodes(e, k));
             }
         }
     }

@@ -1,19 +1,25 @@
-//! Triangle kernels of order 1 (3 nodes) and 2 (6 nodes): B = B_bg + G a at
-//! each quadrature point, and the element residual and Newton tangent.
+//! Lagrange triangles of order 1 to 4 (3, 6, 10 or 15 nodes): B = B_bg + G a
+//! at each quadrature point, and the element residual and Newton tangent.
 //!
 //! Planar: B = (dA/dy, -dA/dx), weight = area (per metre of depth).
 //! Axisymmetric: B = (-dA/dz, dA/dr + A/r), weight = 2 pi r area.
 //! Kelvin exterior (axisymmetric only): the weight gains |x' - c|^2 / R^2.
 //!
-//! Node order: the three corners, then the midpoints of edges 0-1, 1-2, 2-0.
+//! Node order: the three corners, then the p - 1 nodes of each edge 0-1,
+//! 1-2, 2-0 (from the edge's first corner to its second), then the interior
+//! nodes (`LATTICE`). Lagrange nodes rather than a hierarchical basis: a
+//! nodal value is the potential at a place, so the constraints (by position
+//! on the axis, the box and periodic sides), the transfer to a refined mesh
+//! and the output need nothing but each node's position at every order.
 
+use crate::element_map::ElementGeometry;
 use crate::material::{Law, Tangent};
-use crate::quadrature::{DEGREE2, DEGREE5};
+use crate::quadrature::{rule, Rule};
 use crate::NU0;
 use mesher::Symmetry;
 
-/// Most nodes an element has.
-pub const MAX_NODES: usize = 6;
+/// Most nodes an element has (order 4).
+pub const MAX_NODES: usize = 15;
 
 /// Polynomial order of the potential in each triangle.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -22,17 +28,92 @@ pub enum ElementOrder {
     Linear,
     /// Six-node triangles, potential quadratic.
     Quadratic,
+    /// Ten-node triangles, potential cubic.
+    Cubic,
+    /// Fifteen-node triangles, potential quartic.
+    Quartic,
 }
 
 impl ElementOrder {
-    /// Nodes per element: 3 or 6.
-    pub fn n_nodes(self) -> usize {
-        match self {
-            ElementOrder::Linear => 3,
-            ElementOrder::Quadratic => 6,
+    /// The order of degree p (1 to 4).
+    pub fn of_degree(p: u32) -> Option<ElementOrder> {
+        match p {
+            1 => Some(ElementOrder::Linear),
+            2 => Some(ElementOrder::Quadratic),
+            3 => Some(ElementOrder::Cubic),
+            4 => Some(ElementOrder::Quartic),
+            _ => None,
         }
     }
+
+    /// The polynomial degree p.
+    pub fn degree(self) -> usize {
+        match self {
+            ElementOrder::Linear => 1,
+            ElementOrder::Quadratic => 2,
+            ElementOrder::Cubic => 3,
+            ElementOrder::Quartic => 4,
+        }
+    }
+
+    /// Nodes per element: (p + 1)(p + 2) / 2.
+    pub fn n_nodes(self) -> usize {
+        let p = self.degree();
+        (p + 1) * (p + 2) / 2
+    }
+
+    /// Nodes inside each edge: p - 1.
+    pub fn per_edge(self) -> usize {
+        self.degree() - 1
+    }
+
+    /// The barycentric lattice index (i, j, k), i + j + k = p, of each node.
+    pub fn lattice(self) -> &'static [[u8; 3]] {
+        LATTICE[self.degree() - 1]
+    }
+
+    /// Barycentric coordinates of local node j.
+    pub fn node_point(self, j: usize) -> [f64; 3] {
+        let p = self.degree() as f64;
+        self.lattice()[j].map(|i| i as f64 / p)
+    }
 }
+
+/// Lattice indices of the nodes of each order, in node order. Edge (a, b)'s
+/// node k (k = 1 .. p - 1) has index p - k on corner a and k on corner b.
+pub const LATTICE: [&[[u8; 3]]; 4] = [
+    &[[1, 0, 0], [0, 1, 0], [0, 0, 1]],
+    &[[2, 0, 0], [0, 2, 0], [0, 0, 2], [1, 1, 0], [0, 1, 1], [1, 0, 1]],
+    &[
+        [3, 0, 0],
+        [0, 3, 0],
+        [0, 0, 3],
+        [2, 1, 0],
+        [1, 2, 0],
+        [0, 2, 1],
+        [0, 1, 2],
+        [1, 0, 2],
+        [2, 0, 1],
+        [1, 1, 1],
+    ],
+    &[
+        [4, 0, 0],
+        [0, 4, 0],
+        [0, 0, 4],
+        [3, 1, 0],
+        [2, 2, 0],
+        [1, 3, 0],
+        [0, 3, 1],
+        [0, 2, 2],
+        [0, 1, 3],
+        [1, 0, 3],
+        [2, 0, 2],
+        [3, 0, 1],
+        [2, 1, 1],
+        [1, 2, 1],
+        [1, 1, 2],
+    ],
+];
 
 /// Corner pairs of the three edges, in midpoint-node order.
 pub const EDGES: [[usize; 2]; 3] = [[0, 1], [1, 2], [2, 0]];
@@ -60,23 +141,40 @@ pub struct PointOp {
     pub g: [[f64; MAX_NODES]; 2],
     /// Shape function values.
     pub n: [f64; MAX_NODES],
-    /// Number of nodes in use (3 or 6).
+    /// Number of nodes in use (3, 6, 10 or 15).
     pub len: usize,
     /// Position of the point.
     pub x: [f64; 2],
+    /// Its barycentric coordinates in the reference triangle.
+    pub lam: [f64; 3],
 }
 
 /// Calls `f` at every quadrature point of the triangle with corners `x`.
-pub fn for_each_point(x: &[[f64; 2]; 3], order: ElementOrder, symmetry: Symmetry, placement: Placement, mut f: impl FnMut(&PointOp)) {
-    // Axisymmetric integrands carry 1/r and r and need the higher rule.
-    let rule = match symmetry {
-        Symmetry::Planar => &DEGREE2,
-        Symmetry::Axisymmetric => &DEGREE5,
-    };
-    let geometry = barycentric_gradients(x);
-    for (lam, w) in rule.points.iter().zip(rule.weights) {
-        f(&point_op_in(x, geometry, order, symmetry, placement, *lam, *w));
+pub fn for_each_point(geom: ElementGeometry, order: ElementOrder, symmetry: Symmetry, placement: Placement, mut f: impl FnMut(&PointOp)) {
+    let rule: &Rule = rule(order, symmetry);
+    match geom.curve {
+        None => {
+            let (grad_lam, area) = barycentric_gradients(geom.corners);
+            for (lam, w) in rule.points.iter().zip(rule.weights) {
+                let p = affine_point(geom.corners, *lam);
+                f(&point_op_in(p, grad_lam, area, order, symmetry, placement, *lam, *w));
+            }
+        }
+        Some(_) => {
+            for (lam, w) in rule.points.iter().zip(rule.weights) {
+                let (p, grad_lam, area) = geom.gradients_at(*lam);
+                f(&point_op_in(p, grad_lam, area, order, symmetry, placement, *lam, *w));
+            }
+        }
     }
+}
+
+/// The point at barycentric `lam` of a straight triangle.
+fn affine_point(x: &[[f64; 2]; 3], lam: [f64; 3]) -> [f64; 2] {
+    [
+        lam[0] * x[0][0] + lam[1] * x[1][0] + lam[2] * x[2][0],
+        lam[0] * x[0][1] + lam[1] * x[1][1] + lam[2] * x[2][1],
+    ]
 }
 
 /// Shape functions and their gradients at barycentric point `lam`
@@ -104,8 +202,40 @@ fn shape(order: ElementOrder, lam: [f64; 3], grad_lam: [[f64; 2]; 3]) -> ([f64; 
                 ];
             }
         }
+        ElementOrder::Cubic | ElementOrder::Quartic => lagrange(order, lam, grad_lam, &mut n, &mut dn),
     }
     (n, dn)
+}
+
+/// Lagrange shape functions of order p on the barycentric lattice
+/// (P. Silvester, High-order polynomial triangular finite elements for
+/// potential problems, Int. J. Eng. Sci. 7, 1969): node (i, j, k) has
+/// N = P_i(l0) P_j(l1) P_k(l2) with P_m(l) = prod_{s<m} (p l - s) / (s + 1),
+/// one at its own node and zero at every other.
+fn lagrange(order: ElementOrder, lam: [f64; 3], grad_lam: [[f64; 2]; 3], n: &mut [f64; MAX_NODES], dn: &mut [[f64; 2]; MAX_NODES]) {
+    let p = order.degree();
+    // values[c][m] = P_m(lam[c]) and its derivative in lam[c].
+    let mut values = [[1.0; 5]; 3];
+    let mut slopes = [[0.0; 5]; 3];
+    for c in 0..3 {
+        for m in 1..=p {
+            let s = (m - 1) as f64;
+            let f = (p as f64 * lam[c] - s) / (s + 1.0);
+            let df = p as f64 / (s + 1.0);
+            slopes[c][m] = slopes[c][m - 1] * f + values[c][m - 1] * df;
+            values[c][m] = values[c][m - 1] * f;
+        }
+    }
+    for (j, idx) in order.lattice().iter().enumerate() {
+        let [i0, i1, i2] = idx.map(usize::from);
+        let v = [values[0][i0], values[1][i1], values[2][i2]];
+        let d = [slopes[0][i0] * v[1] * v[2], v[0] * slopes[1][i1] * v[2], v[0] * v[1] * slopes[2][i2]];
+        n[j] = v[0] * v[1] * v[2];
+        dn[j] = [
+            d[0] * grad_lam[0][0] + d[1] * grad_lam[1][0] + d[2] * grad_lam[2][0],
+            d[0] * grad_lam[0][1] + d[1] * grad_lam[1][1] + d[2] * grad_lam[2][1],
+        ];
+    }
 }
 
 /// Gradients of the barycentric coordinates and the (signed) area.
@@ -120,14 +250,23 @@ pub fn barycentric_gradients(x: &[[f64; 2]; 3]) -> ([[f64; 2]; 3], f64) {
 
 /// The operator at barycentric point `lam`, with integration weight `w` (a
 /// fraction of the area; pass 1 to get the density per unit area).
-pub fn point_op(x: &[[f64; 2]; 3], order: ElementOrder, symmetry: Symmetry, placement: Placement, lam: [f64; 3], w: f64) -> PointOp {
-    point_op_in(x, barycentric_gradients(x), order, symmetry, placement, lam, w)
+pub fn point_op(geom: ElementGeometry, order: ElementOrder, symmetry: Symmetry, placement: Placement, lam: [f64; 3], w: f64) -> PointOp {
+    let (p, grad_lam, area) = match geom.curve {
+        None => {
+            let (g, area) = barycentric_gradients(geom.corners);
+            (affine_point(geom.corners, lam), g, area)
+        }
+        Some(_) => geom.gradients_at(lam),
+    };
+    point_op_in(p, grad_lam, area, order, symmetry, placement, lam, w)
 }
 
-/// `point_op` with the element's barycentric gradients and area already known.
+/// `point_op` with the point, the barycentric gradients there and the area element known.
+#[allow(clippy::too_many_arguments)]
 fn point_op_in(
-    x: &[[f64; 2]; 3],
-    (grad_lam, area): ([[f64; 2]; 3], f64),
+    p: [f64; 2],
+    grad_lam: [[f64; 2]; 3],
+    area: f64,
     order: ElementOrder,
     symmetry: Symmetry,
     placement: Placement,
@@ -136,10 +275,6 @@ fn point_op_in(
 ) -> PointOp {
     let (n, dn) = shape(order, lam, grad_lam);
     let len = order.n_nodes();
-    let p = [
-        lam[0] * x[0][0] + lam[1] * x[1][0] + lam[2] * x[2][0],
-        lam[0] * x[0][1] + lam[1] * x[1][1] + lam[2] * x[2][1],
-    ];
     let mut g = [[0.0; MAX_NODES]; 2];
     match symmetry {
         Symmetry::Planar => {
@@ -153,6 +288,7 @@ fn point_op_in(
                 n,
                 len,
                 x: p,
+                lam,
             }
         }
         Symmetry::Axisymmetric => {
@@ -172,6 +308,7 @@ fn point_op_in(
                 n,
                 len,
                 x: p,
+                lam,
             }
         }
     }
@@ -186,11 +323,21 @@ pub fn barycentric(x: &[[f64; 2]; 3], p: [f64; 2]) -> [f64; 3] {
 }
 
 /// B at a point from the element's nodal potentials.
-#[allow(clippy::needless_range_loop)]
 pub fn flux_density(op: &PointOp, a: &[f64; MAX_NODES], background: [f64; 2]) -> [f64; 2] {
+    match op.len {
+        3 => flux_density_n::<3>(op, a, background),
+        6 => flux_density_n::<6>(op, a, background),
+        10 => flux_density_n::<10>(op, a, background),
+        _ => flux_density_n::<MAX_NODES>(op, a, background),
+    }
+}
+
+/// `flux_density` for N nodes: fixed loop bounds, so the loops unroll
+/// (G is zero past op.len, so a larger N gives the same sum).
+#[allow(clippy::needless_range_loop)]
+fn flux_density_n<const N: usize>(op: &PointOp, a: &[f64; MAX_NODES], background: [f64; 2]) -> [f64; 2] {
     let mut b = background;
-    // Fixed bounds: G is zero past op.len.
-    for i in 0..MAX_NODES {
+    for i in 0..N {
         b[0] += op.g[0][i] * a[i];
         b[1] += op.g[1][i] * a[i];
     }
@@ -221,25 +368,42 @@ pub struct ElementLoad<'a> {
 pub type LocalSystem = ([[f64; MAX_NODES]; MAX_NODES], [f64; MAX_NODES]);
 
 /// H at a quadrature point, less the background's nu0 B_bg, with the law's response.
-fn point_field(op: &PointOp, a: &[f64; MAX_NODES], load: &ElementLoad) -> ([f64; 2], crate::material::FieldResponse) {
-    let b = flux_density(op, a, load.background);
+fn point_field<const N: usize>(op: &PointOp, a: &[f64; MAX_NODES], load: &ElementLoad) -> ([f64; 2], crate::material::FieldResponse) {
+    let b = flux_density_n::<N>(op, a, load.background);
     let resp = load.law.response_of(b, load.tangent, load.share);
     ([resp.h[0] - NU0 * load.background[0], resp.h[1] - NU0 * load.background[1]], resp)
 }
 
 /// Adds w (G^T h - N J) at one point to the element residual.
 #[allow(clippy::needless_range_loop)]
-fn add_residual(r: &mut [f64; MAX_NODES], op: &PointOp, h: [f64; 2], load: &ElementLoad) {
-    // Fixed bounds: G and N are zero past op.len.
-    for i in 0..MAX_NODES {
+fn add_residual<const N: usize>(r: &mut [f64; MAX_NODES], op: &PointOp, h: [f64; 2], load: &ElementLoad) {
+    for i in 0..N {
         r[i] += op.weight * (op.g[0][i] * h[0] + op.g[1][i] * h[1] - op.n[i] * load.current_density);
     }
 }
 
 /// Element residual r_i = sum w (G^T (H - nu0 B_bg) - N_i J) and tangent K = sum w G^T dH/dB G.
-#[allow(non_snake_case, clippy::needless_range_loop)]
 pub fn element_system(
-    x: &[[f64; 2]; 3],
+    x: ElementGeometry,
+    a: &[f64; MAX_NODES],
+    order: ElementOrder,
+    symmetry: Symmetry,
+    placement: Placement,
+    load: ElementLoad,
+) -> LocalSystem {
+    match order {
+        ElementOrder::Linear => system_n::<3>(x, a, order, symmetry, placement, load),
+        ElementOrder::Quadratic => system_n::<6>(x, a, order, symmetry, placement, load),
+        ElementOrder::Cubic => system_n::<10>(x, a, order, symmetry, placement, load),
+        ElementOrder::Quartic => system_n::<15>(x, a, order, symmetry, placement, load),
+    }
+}
+
+/// `element_system` for N nodes: the loops have fixed bounds, so they
+/// unroll (this is the hot loop of every assembly).
+#[allow(non_snake_case, clippy::needless_range_loop)]
+fn system_n<const N: usize>(
+    x: ElementGeometry,
     a: &[f64; MAX_NODES],
     order: ElementOrder,
     symmetry: Symmetry,
@@ -249,11 +413,10 @@ pub fn element_system(
     let mut K = [[0.0; MAX_NODES]; MAX_NODES];
     let mut r = [0.0; MAX_NODES];
     for_each_point(x, order, symmetry, placement, |op| {
-        let (h, resp) = point_field(op, a, &load);
-        add_residual(&mut r, op, h, &load);
+        let (h, resp) = point_field::<N>(op, a, &load);
+        add_residual::<N>(&mut r, op, h, &load);
         // K is symmetric (dH/dB is): accumulate the lower triangle, mirror once.
-        // Fixed bounds (G is zero past op.len), so the loops unroll.
-        for i in 0..MAX_NODES {
+        for i in 0..N {
             let tg = [
                 op.weight * (resp.dh_db[0][0] * op.g[0][i] + resp.dh_db[0][1] * op.g[1][i]),
                 op.weight * (resp.dh_db[1][0] * op.g[0][i] + resp.dh_db[1][1] * op.g[1][i]),
@@ -263,7 +426,7 @@ pub fn element_system(
             }
         }
     });
-    for i in 0..MAX_NODES {
+    for i in 0..N {
         for j in 0..i {
             K[j][i] = K[i][j];
         }
@@ -273,7 +436,7 @@ pub fn element_system(
 
 /// The element residual alone (line-search trials need no tangent).
 pub fn element_residual(
-    x: &[[f64; 2]; 3],
+    x: ElementGeometry,
     a: &[f64; MAX_NODES],
     order: ElementOrder,
     symmetry: Symmetry,
@@ -281,6 +444,11 @@ pub fn element_residual(
     load: ElementLoad,
 ) -> [f64; MAX_NODES] {
     let mut r = [0.0; MAX_NODES];
-    for_each_point(x, order, symmetry, placement, |op| add_residual(&mut r, op, point_field(op, a, &load).0, &load));
+    for_each_point(x, order, symmetry, placement, |op| match order {
+        ElementOrder::Linear => add_residual::<3>(&mut r, op, point_field::<3>(op, a, &load).0, &load),
+        ElementOrder::Quadratic => add_residual::<6>(&mut r, op, point_field::<6>(op, a, &load).0, &load),
+        ElementOrder::Cubic => add_residual::<10>(&mut r, op, point_field::<10>(op, a, &load).0, &load),
+        ElementOrder::Quartic => add_residual::<15>(&mut r, op, point_field::<15>(op, a, &load).0, &load),
+    });
     r
 }

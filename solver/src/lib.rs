@@ -41,6 +41,7 @@ mod buffer;
 pub mod constraints;
 pub mod dofs;
 pub mod element;
+pub mod element_map;
 pub mod intrinsic_table;
 pub mod linear_system;
 mod locate;

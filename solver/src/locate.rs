@@ -1,6 +1,5 @@
 //! Point location in the physical triangles with a uniform bucket grid.
 
-use crate::element::barycentric;
 use crate::space::Elements;
 
 /// A bucket grid over the physical triangles.
@@ -32,15 +31,17 @@ impl Locator {
         let cell = (area / n as f64).sqrt().max(extent / 2048.0) * 2.0;
         let dims = [((hi[0] - lo[0]) / cell) as usize + 1, ((hi[1] - lo[1]) / cell) as usize + 1];
         let mut count = vec![0usize; dims[0] * dims[1] + 1];
-        let range = |x: &[[f64; 2]; 3]| {
-            let ix0 = ((x.iter().map(|p| p[0]).fold(f64::INFINITY, f64::min) - lo[0]) / cell) as usize;
-            let ix1 = ((x.iter().map(|p| p[0]).fold(f64::NEG_INFINITY, f64::max) - lo[0]) / cell) as usize;
-            let iy0 = ((x.iter().map(|p| p[1]).fold(f64::INFINITY, f64::min) - lo[1]) / cell) as usize;
-            let iy1 = ((x.iter().map(|p| p[1]).fold(f64::NEG_INFINITY, f64::max) - lo[1]) / cell) as usize;
-            (ix0, ix1.min(dims[0] - 1), iy0, iy1.min(dims[1] - 1))
+        // A curved element reaches past its corners' box by its arc's bulge.
+        let range = |e: usize| {
+            let (x, out) = (&els.coords[e], els.geometry(e).bulge());
+            let ix0 = ((x.iter().map(|p| p[0]).fold(f64::INFINITY, f64::min) - out - lo[0]).max(0.0) / cell) as usize;
+            let ix1 = ((x.iter().map(|p| p[0]).fold(f64::NEG_INFINITY, f64::max) + out - lo[0]).max(0.0) / cell) as usize;
+            let iy0 = ((x.iter().map(|p| p[1]).fold(f64::INFINITY, f64::min) - out - lo[1]).max(0.0) / cell) as usize;
+            let iy1 = ((x.iter().map(|p| p[1]).fold(f64::NEG_INFINITY, f64::max) + out - lo[1]).max(0.0) / cell) as usize;
+            (ix0.min(dims[0] - 1), ix1.min(dims[0] - 1), iy0.min(dims[1] - 1), iy1.min(dims[1] - 1))
         };
-        for x in &els.coords[..els.n_physical] {
-            let (x0, x1, y0, y1) = range(x);
+        for e in 0..els.n_physical {
+            let (x0, x1, y0, y1) = range(e);
             for iy in y0..=y1 {
                 for ix in x0..=x1 {
                     count[iy * dims[0] + ix + 1] += 1;
@@ -53,8 +54,8 @@ impl Locator {
         let start = count.clone();
         let mut fill = count;
         let mut items = vec![0; start[start.len() - 1]];
-        for (e, x) in els.coords[..els.n_physical].iter().enumerate() {
-            let (x0, x1, y0, y1) = range(x);
+        for e in 0..els.n_physical {
+            let (x0, x1, y0, y1) = range(e);
             for iy in y0..=y1 {
                 for ix in x0..=x1 {
                     let c = iy * dims[0] + ix;
@@ -87,7 +88,7 @@ impl Locator {
         self.items[self.start[c]..self.start[c + 1]]
             .iter()
             .filter_map(|&e| {
-                let lam = barycentric(&els.coords[e], p);
+                let lam = els.geometry(e).barycentric(p);
                 lam.iter().all(|&l| l >= -INSIDE_TOLERANCE).then(|| (e, lam.map(|l| l.max(0.0))))
             })
             .collect()

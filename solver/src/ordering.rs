@@ -35,27 +35,36 @@ pub fn corner_ranks(mesh: &Mesh) -> Option<Vec<u32>> {
 /// when a corner has no rank.
 pub fn number_for_elimination(els: &Elements, corner_rank: &[u32], dof_of_node: &mut [usize]) -> bool {
     let rank = |n: usize| corner_rank.get(n).map(|&r| r as u64);
-    // Key of each unknown: twice its corner's rank (+1), or twice the rank of
-    // the earlier of an edge's two corners (the edge goes first).
+    // Key of each unknown: twice its corner's rank (+3), or twice the rank of
+    // the earlier of an edge's two corners (+2: the edge goes first), or 0
+    // for a triangle's interior node.
+    let (m, per_edge) = (els.order.n_nodes(), els.order.per_edge());
     let mut keyed: Vec<(u64, usize)> = Vec::with_capacity(dof_of_node.len());
     let mut seen = vec![false; dof_of_node.len()];
     for t in &els.nodes {
         for &n in &t[..3] {
             if !seen[n] && dof_of_node[n] != NONE {
                 let Some(r) = rank(n) else { return false };
-                keyed.push((2 * r + 1, n));
+                keyed.push((2 * r + 3, n));
             }
             seen[n] = true;
         }
         for (k, [a, b]) in EDGES.iter().enumerate() {
-            let n = t[3 + k];
-            if n != NONE && !seen[n] && dof_of_node[n] != NONE {
-                let (Some(ra), Some(rb)) = (rank(t[*a]), rank(t[*b])) else { return false };
-                keyed.push((2 * ra.min(rb), n));
-            }
-            if n != NONE {
+            for &n in &t[3 + k * per_edge..3 + (k + 1) * per_edge] {
+                if !seen[n] && dof_of_node[n] != NONE {
+                    let (Some(ra), Some(rb)) = (rank(t[*a]), rank(t[*b])) else { return false };
+                    keyed.push((2 * ra.min(rb) + 2, n));
+                }
                 seen[n] = true;
             }
+        }
+        // Interior nodes couple only within their triangle, whose nodes are
+        // already coupled: eliminated first, they add no fill.
+        for &n in &t[3 + 3 * per_edge..m] {
+            if dof_of_node[n] != NONE {
+                keyed.push((0, n));
+            }
+            seen[n] = true;
         }
     }
     if keyed.len() != dof_of_node.iter().filter(|&&d| d != NONE).count() {

@@ -4,7 +4,7 @@
 //! midpoints that refinement moves onto the circle; it serves as the first
 //! guess of the fine solve.
 
-use crate::element::{point_op, potential, EDGES, MAX_NODES};
+use crate::element::{point_op, potential, ElementOrder, MAX_NODES};
 use crate::space::Elements;
 use crate::Solution;
 
@@ -17,14 +17,11 @@ const CHILD_CORNERS: [[[f64; 3]; 3]; 4] = [
     [[0.5, 0.5, 0.0], [0.0, 0.5, 0.5], [0.5, 0.0, 0.5]],
 ];
 
-/// Parent barycentrics of a child's node `j` (corners, then edge midpoints).
-fn node_in_parent(child: usize, j: usize) -> [f64; 3] {
+/// Parent barycentrics of a child's node `j` (of an element of `order`).
+fn node_in_parent(order: ElementOrder, child: usize, j: usize) -> [f64; 3] {
     let c = &CHILD_CORNERS[child];
-    if j < 3 {
-        return c[j];
-    }
-    let [a, b] = EDGES[j - 3];
-    [0, 1, 2].map(|i| 0.5 * (c[a][i] + c[b][i]))
+    let l = order.node_point(j);
+    [0, 1, 2].map(|i| l[0] * c[0][i] + l[1] * c[1][i] + l[2] * c[2][i])
 }
 
 /// The reduced potential of `coarse` at every node of `fine`, whose element
@@ -41,7 +38,14 @@ pub fn to_refined(coarse: &Solution, fine: &Elements) -> Option<Vec<f64>> {
         for k in 0..4 {
             let f = 4 * e + k;
             for (j, &node) in fine.element_nodes(f).iter().enumerate() {
-                let op = point_op(&els.coords[e], els.order, coarse.symmetry(), els.placement(e), node_in_parent(k, j), 1.0);
+                let op = point_op(
+                    els.geometry(e),
+                    els.order,
+                    coarse.symmetry(),
+                    els.placement(e),
+                    node_in_parent(els.order, k, j),
+                    1.0,
+                );
                 out[node] = potential(&op, &a);
             }
         }

@@ -123,7 +123,7 @@ impl<'m> Solution<'m> {
     /// B in element e at barycentric point lam.
     pub fn element_b_at(&self, e: usize, lam: [f64; 3]) -> [f64; 2] {
         let op = point_op(
-            &self.elements.coords[e],
+            self.elements.geometry(e),
             self.elements.order,
             self.symmetry(),
             self.elements.placement(e),
@@ -173,7 +173,7 @@ impl<'m> Solution<'m> {
     /// The reaction potential alone (applied field left out) at a physical point, or None outside.
     pub fn reduced_potential_at(&self, p: [f64; 2]) -> Option<f64> {
         let (e, lam) = self.element_at(p)?;
-        let op = point_op(&self.elements.coords[e], self.elements.order, self.symmetry(), Placement::Physical, lam, 1.0);
+        let op = point_op(self.elements.geometry(e), self.elements.order, self.symmetry(), Placement::Physical, lam, 1.0);
         Some(potential(&op, &self.elements.gather(e, &self.reduced)))
     }
 

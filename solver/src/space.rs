@@ -1,11 +1,13 @@
-//! The function space: the element table (corners, and edge midpoints for
-//! quadratic elements, numbered once per mesh) of the element order asked
-//! for. Constraints, the dof map, pattern, ordering and assembly read it;
+//! The function space: the element table (corners, the nodes inside each
+//! edge and inside each triangle, numbered once per mesh) of the element
+//! order asked for. Constraints, the dof map, pattern, ordering and assembly read it;
 //! it depends on none of them.
 
 use crate::element::{ElementOrder, Placement, EDGES, MAX_NODES};
-use mesher::{Mesh, Region};
+use crate::element_map::{CurvedEdge, ElementGeometry};
+use mesher::{BoundaryTag, Mesh, Region};
 use rayon::prelude::*;
+use std::collections::HashMap;
 
 /// Marks a fixed node.
 pub const NONE: usize = usize::MAX;
@@ -23,9 +25,9 @@ pub enum ElementKind {
 /// The flat element table: physical triangles first, then the exterior disk.
 #[derive(Clone, Debug)]
 pub struct Elements {
-    /// Linear or quadratic.
+    /// Order 1 to 4.
     pub order: ElementOrder,
-    /// Global node ids: corners, then edge midpoints (quadratic only).
+    /// Global node ids: corners, then each edge's inner nodes, then the interior ones.
     pub nodes: Vec<[usize; MAX_NODES]>,
     /// Corner coordinates in the element's own frame (mapped for the exterior).
     pub coords: Vec<[[f64; 2]; 3]>,
@@ -35,14 +37,21 @@ pub struct Elements {
     pub n_physical: usize,
     /// Centre and radius of the Kelvin disk of an open study.
     pub exterior: Option<([f64; 2], f64)>,
-    /// Total node count (mesh nodes plus edge midpoints).
+    /// Total node count (mesh nodes plus edge and interior nodes).
     pub n_nodes: usize,
     /// Physical position of every node; exterior-only nodes keep their mapped position.
     pub positions: Vec<[f64; 2]>,
+    /// The edges that follow a circle (the Kelvin rim, round parts' outlines).
+    pub curves: Vec<CurvedEdge>,
+    /// For each element, its index in `curves`, or `STRAIGHT`; empty when none is curved.
+    pub curve_of: Vec<u32>,
 }
 
+/// Marks a straight element in `Elements::curve_of`.
+pub const STRAIGHT: u32 = u32::MAX;
+
 impl Elements {
-    /// The element table of a mesh at an order: midpoints numbered once per edge.
+    /// The element table of a mesh at an order: edge nodes numbered once per edge.
     pub fn from_mesh(mesh: &Mesh, order: ElementOrder) -> Elements {
         let mut corners: Vec<[usize; 3]> = mesh.triangles.clone();
         let mut coords: Vec<[[f64; 2]; 3]> = mesh.triangles.iter().map(|t| t.map(|n| mesh.nodes[n])).collect();
@@ -63,20 +72,38 @@ impl Elements {
             }
             exterior = Some((disk.center, disk.radius));
         }
-        let mut positions = mesh.nodes.clone();
-        let nodes = match order {
-            ElementOrder::Linear => corners.iter().map(|c| [c[0], c[1], c[2], NONE, NONE, NONE]).collect(),
-            ElementOrder::Quadratic => add_midpoints(&corners, &coords, &mut positions),
-        };
-        Elements {
+        let (curves, curve_of) = curved_edges(mesh, &corners, &coords);
+        let mut els = Elements {
             order,
-            nodes,
+            nodes: Vec::new(),
             coords,
             kinds,
             n_physical: mesh.triangles.len(),
             exterior,
-            n_nodes: positions.len(),
-            positions,
+            n_nodes: 0,
+            positions: mesh.nodes.clone(),
+            curves,
+            curve_of,
+        };
+        let mut positions = std::mem::take(&mut els.positions);
+        els.nodes = match order {
+            ElementOrder::Linear => corners.iter().map(with_corners).collect(),
+            _ => add_inner_nodes(&els, &corners, &mut positions),
+        };
+        els.n_nodes = positions.len();
+        els.positions = positions;
+        els
+    }
+
+    /// The geometry of element e: corners, and its curved edge if it has one.
+    pub fn geometry(&self, e: usize) -> ElementGeometry<'_> {
+        let curve = match self.curve_of.get(e) {
+            Some(&c) if c != STRAIGHT => self.curves.get(c as usize),
+            _ => None,
+        };
+        ElementGeometry {
+            corners: &self.coords[e],
+            curve,
         }
     }
 
@@ -98,9 +125,16 @@ impl Elements {
         self.nodes.is_empty()
     }
 
-    /// The element's nodes that exist (3 or 6).
+    /// The element's nodes that exist (3, 6, 10 or 15).
     pub fn element_nodes(&self, e: usize) -> &[usize] {
         &self.nodes[e][..self.order.n_nodes()]
+    }
+
+    /// The nodes inside edge k of element e (none for linear elements), from
+    /// its first corner (`EDGES[k][0]`) to its second.
+    pub fn edge_nodes(&self, e: usize, k: usize) -> &[usize] {
+        let m = self.order.per_edge();
+        &self.nodes[e][3 + k * m..3 + (k + 1) * m]
     }
 
     /// Nodal values of a global vector gathered for element e.
@@ -113,9 +147,54 @@ impl Elements {
     }
 }
 
-/// Numbers the edge midpoints: one node per distinct edge, shared by the
-/// triangles on both sides (rim edges join the domain and the exterior).
-fn add_midpoints(corners: &[[usize; 3]], coords: &[[[f64; 2]; 3]], positions: &mut Vec<[f64; 2]>) -> Vec<[usize; MAX_NODES]> {
+/// The element edges that follow a circle: physical edges on a round
+/// part's outline (`Mesh::circles`) or on the Kelvin rim, and the exterior
+/// disk's edges on the rim (the inversion fixes the circle point by point,
+/// so both sides follow the same arc). An element takes its first such edge.
+fn curved_edges(mesh: &Mesh, corners: &[[usize; 3]], coords: &[[[f64; 2]; 3]]) -> (Vec<CurvedEdge>, Vec<u32>) {
+    let mut centre_of: HashMap<(usize, usize), [f64; 2]> = mesh.edges_on_circles(&mesh.circles).into_iter().map(|(k, c)| (k, c.center)).collect();
+    if let Some(disk) = &mesh.exterior {
+        for (e, tag) in &mesh.boundary {
+            if *tag == BoundaryTag::Rim {
+                centre_of.insert((e[0].min(e[1]), e[0].max(e[1])), disk.center);
+            }
+        }
+    }
+    if centre_of.is_empty() {
+        return (Vec::new(), Vec::new());
+    }
+    let mut curves = Vec::new();
+    let mut curve_of = vec![STRAIGHT; corners.len()];
+    for (e, c) in corners.iter().enumerate() {
+        let found = EDGES
+            .iter()
+            .enumerate()
+            .find_map(|(k, [a, b])| centre_of.get(&(c[*a].min(c[*b]), c[*a].max(c[*b]))).map(|&o| (k, o)));
+        if let Some((k, centre)) = found {
+            curve_of[e] = curves.len() as u32;
+            curves.push(CurvedEdge::new(k, &coords[e], centre));
+        }
+    }
+    (curves, curve_of)
+}
+
+/// A node row holding the three corners only.
+fn with_corners(c: &[usize; 3]) -> [usize; MAX_NODES] {
+    let mut row = [NONE; MAX_NODES];
+    row[..3].copy_from_slice(c);
+    row
+}
+
+/// Numbers the nodes inside the edges, once per distinct edge and shared
+/// by the triangles on both sides (rim edges join the domain and the
+/// exterior), and those inside each triangle, placed by each element's map
+/// (on the arc along a curved edge). An edge's nodes are numbered from its
+/// lower corner id to its higher, so both triangles agree on them whichever
+/// way each runs along the edge.
+fn add_inner_nodes(els: &Elements, corners: &[[usize; 3]], positions: &mut Vec<[f64; 2]>) -> Vec<[usize; MAX_NODES]> {
+    let order = els.order;
+    let per_edge = order.per_edge();
+    let p = order.degree() as f64;
     let mut keys: Vec<(usize, usize, u32)> = Vec::with_capacity(3 * corners.len());
     for (e, c) in corners.iter().enumerate() {
         for (k, [a, b]) in EDGES.iter().enumerate() {
@@ -124,7 +203,8 @@ fn add_midpoints(corners: &[[usize; 3]], coords: &[[[f64; 2]; 3]], positions: &m
         }
     }
     keys.par_sort_unstable();
-    let mut mid = vec![NONE; 3 * corners.len()];
+    // First node id of each element edge's run, numbered from lo to hi.
+    let mut first = vec![NONE; 3 * corners.len()];
     let mut prev = (NONE, NONE);
     let mut id = positions.len();
     for &(lo, hi, slot) in &keys {
@@ -133,15 +213,38 @@ fn add_midpoints(corners: &[[usize; 3]], coords: &[[[f64; 2]; 3]], positions: &m
             id = positions.len();
             let e = slot as usize / 3;
             let [a, b] = EDGES[slot as usize % 3];
-            let x = coords[e];
-            // Physical elements come first, so a shared edge takes its physical midpoint.
-            positions.push([0.5 * (x[a][0] + x[b][0]), 0.5 * (x[a][1] + x[b][1])]);
+            // Physical elements come first, so a shared edge takes its physical position.
+            let geom = els.geometry(e);
+            for k in 1..=per_edge {
+                let t = if corners[e][a] == lo { k as f64 / p } else { 1.0 - k as f64 / p };
+                let mut lam = [0.0; 3];
+                lam[a] = 1.0 - t;
+                lam[b] = t;
+                positions.push(geom.map(lam).0);
+            }
         }
-        mid[slot as usize] = id;
+        first[slot as usize] = id;
     }
+    let interior = 3 + 3 * per_edge..order.n_nodes();
     corners
         .iter()
         .enumerate()
-        .map(|(e, c)| [c[0], c[1], c[2], mid[3 * e], mid[3 * e + 1], mid[3 * e + 2]])
+        .map(|(e, c)| {
+            let mut row = with_corners(c);
+            for (k, [a, b]) in EDGES.iter().enumerate() {
+                let forward = c[*a] < c[*b];
+                for j in 0..per_edge {
+                    // Local node j runs from corner a to b; the global run from lo to hi.
+                    let g = if forward { j } else { per_edge - 1 - j };
+                    row[3 + k * per_edge + j] = first[3 * e + k] + g;
+                }
+            }
+            let geom = els.geometry(e);
+            for j in interior.clone() {
+                row[j] = positions.len();
+                positions.push(geom.map(order.node_point(j)).0);
+            }
+            row
+        })
         .collect()
 }

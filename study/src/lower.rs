@@ -252,11 +252,7 @@ pub fn problem<'m>(model: &Model, mesh: &'m mesher::Mesh) -> Result<Problem<'m>,
     problem.element_law = element_law;
     problem.applied_field = model.applied_field;
     problem.newton = model.newton;
-    problem.order = if model.mesh.order == 1 {
-        ElementOrder::Linear
-    } else {
-        ElementOrder::Quadratic
-    };
+    problem.order = ElementOrder::of_degree(model.mesh.order).unwrap_or(ElementOrder::Quadratic);
     Ok(problem)
 }
 

@@ -47,7 +47,9 @@ pub enum Stage {
 pub fn mesh(model: &Model) -> Result<mesher::Mesh, StudyError> {
     lower::check_probes_inside(model)?;
     lower::check_sources(model)?;
-    mesher::build_mesh(&lower::mesh_spec(model)).map_err(|e| lower::mesh_error(model, &e))
+    let mut mesh = mesher::build_mesh(&lower::mesh_spec(model)).map_err(|e| lower::mesh_error(model, &e))?;
+    mesh.follow(&round_parts(model));
+    Ok(mesh)
 }
 
 /// Solves a model on its mesh.

@@ -13,7 +13,7 @@
 //! material gives) misses the surface force of the magnetization jump:
 //! inside steel of mu_r 1e4 the normal stress is 1e4 times too small.
 
-use crate::element::{barycentric, EDGES};
+use crate::element::EDGES;
 use crate::solution::Solution;
 use crate::space::ElementKind;
 use crate::{MU0, NU0};
@@ -92,7 +92,7 @@ pub fn interface_force(solution: &Solution, in_set: &dyn Fn(ElementKind) -> bool
         for (s, w) in GAUSS {
             let x = [pa[0] + s * d[0], pa[1] + s * d[1]];
             let side = |e: usize| {
-                let b = solution.element_b_at(e, barycentric(&els.coords[e], x));
+                let b = solution.element_b_at(e, els.geometry(e).barycentric(x));
                 let h = solution.element_h(e, b);
                 (b[0] * n[0] + b[1] * n[1], h[0] * t[0] + h[1] * t[1])
             };

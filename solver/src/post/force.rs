@@ -64,10 +64,18 @@ pub fn force_on(solution: &Solution, parts: &[usize], torque_center: [f64; 2]) -
         if els.kinds[e] != ElementKind::Air || g.iter().all(|&v| v == 0.0) {
             return sum;
         }
-        let (dn, _) = crate::element::barycentric_gradients(&els.coords[e]);
-        let grad = [0, 1].map(|k| g[0] * dn[0][k] + g[1] * dn[1][k] + g[2] * dn[2][k]);
+        // g is linear in the reference triangle: its gradient is constant
+        // on a straight element and follows the map on a curved one.
+        let geom = els.geometry(e);
+        let grad_at = |dn: [[f64; 2]; 3]| [0, 1].map(|k| g[0] * dn[0][k] + g[1] * dn[1][k] + g[2] * dn[2][k]);
+        let straight = grad_at(crate::element::barycentric_gradients(&els.coords[e]).0);
         for_each_field_point(solution, e, |p| {
             let (b, op) = (p.b, p);
+            let grad = if geom.curve.is_some() {
+                grad_at(geom.gradients_at(p.lam).1)
+            } else {
+                straight
+            };
             let half = 0.5 * (b[0] * b[0] + b[1] * b[1]);
             let t = [[b[0] * b[0] - half, b[0] * b[1]], [b[0] * b[1], b[1] * b[1] - half]];
             let tg = [0, 1].map(|i| -NU0 * (t[i][0] * grad[0] + t[i][1] * grad[1]) * op.weight);

@@ -17,6 +17,8 @@ pub struct FieldPoint<'s> {
     pub kind: ElementKind,
     /// Position (in the mapped disk for exterior elements).
     pub x: [f64; 2],
+    /// Its barycentric coordinates in the element's reference triangle.
+    pub lam: [f64; 3],
     /// Integration weight: area, times 2 pi r when axisymmetric, times the
     /// Kelvin factor in the exterior.
     pub weight: f64,
@@ -48,11 +50,12 @@ pub fn for_each_field_point(solution: &Solution, e: usize, mut f: impl FnMut(&Fi
     let share = solution.problem.remanence_share(e);
     let a = els.gather(e, &solution.reduced);
     let background = solution.background(e);
-    for_each_point(&els.coords[e], els.order, solution.symmetry(), solution.placement(e), |op| {
+    for_each_point(els.geometry(e), els.order, solution.symmetry(), solution.placement(e), |op| {
         f(&FieldPoint {
             element: e,
             kind,
             x: op.x,
+            lam: op.lam,
             weight: op.weight,
             b: flux_density(op, &a, background),
             law,
@@ -70,7 +73,7 @@ pub fn for_each_potential_point(solution: &Solution, e: usize, mut f: impl FnMut
     for (k, &n) in els.element_nodes(e).iter().enumerate() {
         a[k] = solution.node_potential(n);
     }
-    for_each_point(&els.coords[e], els.order, solution.symmetry(), solution.placement(e), |op| {
+    for_each_point(els.geometry(e), els.order, solution.symmetry(), solution.placement(e), |op| {
         f(op.x, op.weight, potential(op, &a))
     });
 }

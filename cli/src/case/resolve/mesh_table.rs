@@ -41,7 +41,7 @@ pub(super) fn mesh_settings(top: &Fields, ctx: &Context, parts: &[Item]) -> Resu
         min_angle: number("min_angle", DEFAULT_MIN_ANGLE, MIN_ANGLE_RANGE.0, MIN_ANGLE_RANGE.1)?,
         grading: number("grading", DEFAULT_GRADING, GRADING_RANGE.0, GRADING_RANGE.1)?,
         max_elements: number("max_elements", DEFAULT_MAX_ELEMENTS as f64, 100.0, 1e9)? as usize,
-        order: number("order", 2.0, 1.0, 2.0)?.round() as u32,
+        order: number("order", 2.0, 1.0, 4.0)?.round() as u32,
     })
 }
 
