@@ -69,7 +69,7 @@ impl ElementOrder {
 
     /// The barycentric lattice index (i, j, k), i + j + k = p, of each node.
     pub fn lattice(self) -> &'static [[u8; 3]] {
-        LATTICE[self.degree() - 1]
+        crate::lagrange::LATTICE[self.degree() - 1]
     }
 
     /// Barycentric coordinates of local node j.
@@ -78,42 +78,6 @@ impl ElementOrder {
         self.lattice()[j].map(|i| i as f64 / p)
     }
 }
-
-/// Lattice indices of the nodes of each order, in node order. Edge (a, b)'s
-/// node k (k = 1 .. p - 1) has index p - k on corner a and k on corner b.
-pub const LATTICE: [&[[u8; 3]]; 4] = [
-    &[[1, 0, 0], [0, 1, 0], [0, 0, 1]],
-    &[[2, 0, 0], [0, 2, 0], [0, 0, 2], [1, 1, 0], [0, 1, 1], [1, 0, 1]],
-    &[
-        [3, 0, 0],
-        [0, 3, 0],
-        [0, 0, 3],
-        [2, 1, 0],
-        [1, 2, 0],
-        [0, 2, 1],
-        [0, 1, 2],
-        [1, 0, 2],
-        [2, 0, 1],
-        [1, 1, 1],
-    ],
-    &[
-        [4, 0, 0],
-        [0, 4, 0],
-        [0, 0, 4],
-        [3, 1, 0],
-        [2, 2, 0],
-        [1, 3, 0],
-        [0, 3, 1],
-        [0, 2, 2],
-        [0, 1, 3],
-        [1, 0, 3],
-        [2, 0, 2],
-        [3, 0, 1],
-        [2, 1, 1],
-        [1, 2, 1],
-        [1, 1, 2],
-    ],
-];
 
 /// Corner pairs of the three edges, in midpoint-node order.
 pub const EDGES: [[usize; 2]; 3] = [[0, 1], [1, 2], [2, 0]];
@@ -151,22 +115,37 @@ pub struct PointOp {
 
 /// Calls `f` at every quadrature point of the triangle with corners `x`.
 pub fn for_each_point(geom: ElementGeometry, order: ElementOrder, symmetry: Symmetry, placement: Placement, mut f: impl FnMut(&PointOp)) {
-    let rule: &Rule = rule(order, symmetry);
+    let exterior = geom.curve.is_some() || boosted_rule(geom.corners, symmetry, placement);
+    let rule: &Rule = rule(order, symmetry, exterior);
     match geom.curve {
         None => {
             let (grad_lam, area) = barycentric_gradients(geom.corners);
-            for (lam, w) in rule.points.iter().zip(rule.weights) {
+            for (i, (lam, w)) in rule.points.iter().zip(rule.weights).enumerate() {
                 let p = affine_point(geom.corners, *lam);
-                f(&point_op_in(p, grad_lam, area, order, symmetry, placement, *lam, *w));
+                let shaped = shape_at_rule_point(order, (symmetry, exterior), i, *lam, grad_lam);
+                f(&point_op_in(p, shaped, area, order, symmetry, placement, *lam, *w));
             }
         }
         Some(_) => {
-            for (lam, w) in rule.points.iter().zip(rule.weights) {
+            for (i, (lam, w)) in rule.points.iter().zip(rule.weights).enumerate() {
                 let (p, grad_lam, area) = geom.gradients_at(*lam);
-                f(&point_op_in(p, grad_lam, area, order, symmetry, placement, *lam, *w));
+                let shaped = shape_at_rule_point(order, (symmetry, exterior), i, *lam, grad_lam);
+                f(&point_op_in(p, shaped, area, order, symmetry, placement, *lam, *w));
             }
         }
     }
+}
+
+/// Whether a straight element takes the higher of its order's two rules
+/// (see `quadrature::rule`; a curved one always does, its map not being
+/// polynomial): the Kelvin-mapped exterior, and about the axis the elements
+/// within one and a half of their own widths of it.
+fn boosted_rule(x: &[[f64; 2]; 3], symmetry: Symmetry, placement: Placement) -> bool {
+    if symmetry == Symmetry::Planar {
+        return false;
+    }
+    let (lo, hi) = (x[0][0].min(x[1][0]).min(x[2][0]), x[0][0].max(x[1][0]).max(x[2][0]));
+    matches!(placement, Placement::Exterior { .. }) || lo <= 1.5 * (hi - lo)
 }
 
 /// The point at barycentric `lam` of a straight triangle.
@@ -202,39 +181,45 @@ fn shape(order: ElementOrder, lam: [f64; 3], grad_lam: [[f64; 2]; 3]) -> ([f64; 
                 ];
             }
         }
-        ElementOrder::Cubic | ElementOrder::Quartic => lagrange(order, lam, grad_lam, &mut n, &mut dn),
+        ElementOrder::Cubic | ElementOrder::Quartic => {
+            let (values, dl) = crate::lagrange::values_and_slopes(order, lam);
+            n = values;
+            contract(&dl, grad_lam, order.n_nodes(), &mut dn);
+        }
     }
     (n, dn)
 }
 
-/// Lagrange shape functions of order p on the barycentric lattice
-/// (P. Silvester, High-order polynomial triangular finite elements for
-/// potential problems, Int. J. Eng. Sci. 7, 1969): node (i, j, k) has
-/// N = P_i(l0) P_j(l1) P_k(l2) with P_m(l) = prod_{s<m} (p l - s) / (s + 1),
-/// one at its own node and zero at every other.
-fn lagrange(order: ElementOrder, lam: [f64; 3], grad_lam: [[f64; 2]; 3], n: &mut [f64; MAX_NODES], dn: &mut [[f64; 2]; MAX_NODES]) {
-    let p = order.degree();
-    // values[c][m] = P_m(lam[c]) and its derivative in lam[c].
-    let mut values = [[1.0; 5]; 3];
-    let mut slopes = [[0.0; 5]; 3];
-    for c in 0..3 {
-        for m in 1..=p {
-            let s = (m - 1) as f64;
-            let f = (p as f64 * lam[c] - s) / (s + 1.0);
-            let df = p as f64 / (s + 1.0);
-            slopes[c][m] = slopes[c][m - 1] * f + values[c][m - 1] * df;
-            values[c][m] = values[c][m - 1] * f;
-        }
-    }
-    for (j, idx) in order.lattice().iter().enumerate() {
-        let [i0, i1, i2] = idx.map(usize::from);
-        let v = [values[0][i0], values[1][i1], values[2][i2]];
-        let d = [slopes[0][i0] * v[1] * v[2], v[0] * slopes[1][i1] * v[2], v[0] * v[1] * slopes[2][i2]];
-        n[j] = v[0] * v[1] * v[2];
+/// dN_j/dx = sum_c dN_j/dl_c grad l_c for the first `len` nodes.
+fn contract(dl: &[[f64; 3]; MAX_NODES], grad_lam: [[f64; 2]; 3], len: usize, dn: &mut [[f64; 2]; MAX_NODES]) {
+    for j in 0..len {
+        let d = dl[j];
         dn[j] = [
             d[0] * grad_lam[0][0] + d[1] * grad_lam[1][0] + d[2] * grad_lam[2][0],
             d[0] * grad_lam[0][1] + d[1] * grad_lam[1][1] + d[2] * grad_lam[2][1],
         ];
+    }
+}
+
+/// Shape values and gradients at point `i` of the element's rule, at `lam`:
+/// the higher orders read their values and slopes from a table made once
+/// per rule (evaluating the lattice products at every point of every
+/// element took a fifth of an order-4 run).
+fn shape_at_rule_point(
+    order: ElementOrder,
+    (symmetry, exterior): (Symmetry, bool),
+    i: usize,
+    lam: [f64; 3],
+    grad_lam: [[f64; 2]; 3],
+) -> ([f64; MAX_NODES], [[f64; 2]; MAX_NODES]) {
+    match order {
+        ElementOrder::Linear | ElementOrder::Quadratic => shape(order, lam, grad_lam),
+        ElementOrder::Cubic | ElementOrder::Quartic => {
+            let table = crate::lagrange::table(order, symmetry, exterior);
+            let mut dn = [[0.0; 2]; MAX_NODES];
+            contract(&table.slopes[i], grad_lam, order.n_nodes(), &mut dn);
+            (table.values[i], dn)
+        }
     }
 }
 
@@ -258,14 +243,14 @@ pub fn point_op(geom: ElementGeometry, order: ElementOrder, symmetry: Symmetry, 
         }
         Some(_) => geom.gradients_at(lam),
     };
-    point_op_in(p, grad_lam, area, order, symmetry, placement, lam, w)
+    point_op_in(p, shape(order, lam, grad_lam), area, order, symmetry, placement, lam, w)
 }
 
-/// `point_op` with the point, the barycentric gradients there and the area element known.
+/// `point_op` with the point, the shape values and gradients there and the area element known.
 #[allow(clippy::too_many_arguments)]
 fn point_op_in(
     p: [f64; 2],
-    grad_lam: [[f64; 2]; 3],
+    (n, dn): ([f64; MAX_NODES], [[f64; 2]; MAX_NODES]),
     area: f64,
     order: ElementOrder,
     symmetry: Symmetry,
@@ -273,7 +258,6 @@ fn point_op_in(
     lam: [f64; 3],
     w: f64,
 ) -> PointOp {
-    let (n, dn) = shape(order, lam, grad_lam);
     let len = order.n_nodes();
     let mut g = [[0.0; MAX_NODES]; 2];
     match symmetry {

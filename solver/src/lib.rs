@@ -43,6 +43,7 @@ pub mod dofs;
 pub mod element;
 pub mod element_map;
 pub mod intrinsic_table;
+pub mod lagrange;
 pub mod linear_system;
 mod locate;
 pub mod magnet_law;

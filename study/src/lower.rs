@@ -34,9 +34,13 @@ fn corner_refinements(model: &Model) -> Vec<Refinement> {
             if turn < CORNER_TURN_DEG || (axisymmetric && b[0] <= 0.0) {
                 continue;
             }
+            let share = std::env::var("LODESTONE_CORNER_SHARE")
+                .ok()
+                .and_then(|v| v.parse().ok())
+                .unwrap_or(CORNER_SHARE); // EXPERIMENT
             out.push(Refinement::Point {
                 at: b,
-                size: CORNER_SHARE * p.mesh_size,
+                size: share * p.mesh_size,
             });
         }
     }

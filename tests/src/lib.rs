@@ -123,11 +123,18 @@ pub fn solve_nested<T>(
         refinements,
         OuterBoundary::Open,
     );
+    // Round outlines are followed: their nodes on the circle, their elements curved onto it.
+    let circles: Vec<mesher::BoundaryCircle> = parts
+        .iter()
+        .enumerate()
+        .flat_map(|(i, p)| mesher::BoundaryCircle::of_shape(i, &p.shape, p.size))
+        .collect();
     let mut m = mesh(&s);
+    m.snap_onto(&circles);
     let mut out = Vec::new();
     for level in 0..levels {
         if level > 0 {
-            m = m.refined();
+            m = m.refined_onto(&circles);
         }
         let mut problem = Problem::new(
             &m,

@@ -119,6 +119,8 @@ pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> R
         .is_some_and(|m| m.get("size").is_some());
     if let (Some(target), false) = (accuracy, size_given) {
         mesh.size *= mesh_table::first_mesh_scale(target);
+        mesh.size *= std::env::var("LODESTONE_SIZE_SCALE").ok().and_then(|v| v.parse::<f64>().ok()).unwrap_or(1.0);
+        // EXPERIMENT
     }
     let mut parts = Vec::new();
     let mut spans = Spans::default();
