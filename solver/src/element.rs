@@ -115,10 +115,10 @@ pub struct PointOp {
 
 /// Calls `f` at every quadrature point of the triangle with corners `x`.
 pub fn for_each_point(geom: ElementGeometry, order: ElementOrder, symmetry: Symmetry, placement: Placement, mut f: impl FnMut(&PointOp)) {
-    let exterior = geom.curve.is_some() || boosted_rule(geom.corners, symmetry, placement);
+    let exterior = geom.is_curved() || boosted_rule(geom.corners, symmetry, placement);
     let rule: &Rule = rule(order, symmetry, exterior);
-    match geom.curve {
-        None => {
+    match geom.is_curved() {
+        false => {
             let (grad_lam, area) = barycentric_gradients(geom.corners);
             for (i, (lam, w)) in rule.points.iter().zip(rule.weights).enumerate() {
                 let p = affine_point(geom.corners, *lam);
@@ -126,7 +126,7 @@ pub fn for_each_point(geom: ElementGeometry, order: ElementOrder, symmetry: Symm
                 f(&point_op_in(p, shaped, area, order, symmetry, placement, *lam, *w));
             }
         }
-        Some(_) => {
+        true => {
             for (i, (lam, w)) in rule.points.iter().zip(rule.weights).enumerate() {
                 let (p, grad_lam, area) = geom.gradients_at(*lam);
                 let shaped = shape_at_rule_point(order, (symmetry, exterior), i, *lam, grad_lam);
@@ -236,12 +236,12 @@ pub fn barycentric_gradients(x: &[[f64; 2]; 3]) -> ([[f64; 2]; 3], f64) {
 /// The operator at barycentric point `lam`, with integration weight `w` (a
 /// fraction of the area; pass 1 to get the density per unit area).
 pub fn point_op(geom: ElementGeometry, order: ElementOrder, symmetry: Symmetry, placement: Placement, lam: [f64; 3], w: f64) -> PointOp {
-    let (p, grad_lam, area) = match geom.curve {
-        None => {
+    let (p, grad_lam, area) = match geom.is_curved() {
+        false => {
             let (g, area) = barycentric_gradients(geom.corners);
             (affine_point(geom.corners, lam), g, area)
         }
-        Some(_) => geom.gradients_at(lam),
+        true => geom.gradients_at(lam),
     };
     point_op_in(p, shape(order, lam, grad_lam), area, order, symmetry, placement, lam, w)
 }

@@ -61,8 +61,8 @@ pub const DEGREE2: Rule = Rule {
 pub fn rule(order: ElementOrder, symmetry: Symmetry, boosted: bool) -> &'static Rule {
     static RULES: [OnceLock<Rule>; 4] = [const { OnceLock::new() }; 4];
     let degree = match (order, symmetry) {
-        (ElementOrder::Linear | ElementOrder::Quadratic, Symmetry::Planar) => return &DEGREE2,
-        (ElementOrder::Linear | ElementOrder::Quadratic, Symmetry::Axisymmetric) => return &DEGREE5,
+        (ElementOrder::Linear | ElementOrder::Quadratic, Symmetry::Planar) if !boosted => return &DEGREE2,
+        (ElementOrder::Linear | ElementOrder::Quadratic, _) => return &DEGREE5,
         (ElementOrder::Cubic, Symmetry::Planar) => 4 + 2 * usize::from(boosted),
         (ElementOrder::Quartic, Symmetry::Planar) => 6 + 2 * usize::from(boosted),
         (ElementOrder::Cubic, Symmetry::Axisymmetric) => 6 + 2 * usize::from(boosted),

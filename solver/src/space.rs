@@ -41,14 +41,12 @@ pub struct Elements {
     pub n_nodes: usize,
     /// Physical position of every node; exterior-only nodes keep their mapped position.
     pub positions: Vec<[f64; 2]>,
-    /// The edges that follow a circle (the Kelvin rim, round parts' outlines).
+    /// The edges that follow a circle (the Kelvin rim, round parts' outlines), by element.
     pub curves: Vec<CurvedEdge>,
-    /// For each element, its index in `curves`, or `STRAIGHT`; empty when none is curved.
-    pub curve_of: Vec<u32>,
+    /// Element e's curved edges are `curves[curve_start[e]..curve_start[e + 1]]`;
+    /// empty when no element is curved.
+    pub curve_start: Vec<u32>,
 }
-
-/// Marks a straight element in `Elements::curve_of`.
-pub const STRAIGHT: u32 = u32::MAX;
 
 impl Elements {
     /// The element table of a mesh at an order: edge nodes numbered once per edge.
@@ -72,7 +70,7 @@ impl Elements {
             }
             exterior = Some((disk.center, disk.radius));
         }
-        let (curves, curve_of) = curved_edges(mesh, &corners, &coords);
+        let (curves, curve_start) = curved_edges(mesh, &corners, &coords);
         let mut els = Elements {
             order,
             nodes: Vec::new(),
@@ -83,7 +81,7 @@ impl Elements {
             n_nodes: 0,
             positions: mesh.nodes.clone(),
             curves,
-            curve_of,
+            curve_start,
         };
         let mut positions = std::mem::take(&mut els.positions);
         els.nodes = match order {
@@ -95,15 +93,15 @@ impl Elements {
         els
     }
 
-    /// The geometry of element e: corners, and its curved edge if it has one.
+    /// The geometry of element e: corners, and its curved edges.
     pub fn geometry(&self, e: usize) -> ElementGeometry<'_> {
-        let curve = match self.curve_of.get(e) {
-            Some(&c) if c != STRAIGHT => self.curves.get(c as usize),
-            _ => None,
+        let curves = match (self.curve_start.get(e), self.curve_start.get(e + 1)) {
+            (Some(&a), Some(&b)) => &self.curves[a as usize..b as usize],
+            _ => &[],
         };
         ElementGeometry {
             corners: &self.coords[e],
-            curve,
+            curves,
         }
     }
 
@@ -150,7 +148,7 @@ impl Elements {
 /// The element edges that follow a circle: physical edges on a round
 /// part's outline (`Mesh::circles`) or on the Kelvin rim, and the exterior
 /// disk's edges on the rim (the inversion fixes the circle point by point,
-/// so both sides follow the same arc). An element takes its first such edge.
+/// so both sides follow the same arc).
 fn curved_edges(mesh: &Mesh, corners: &[[usize; 3]], coords: &[[[f64; 2]; 3]]) -> (Vec<CurvedEdge>, Vec<u32>) {
     let mut centre_of: HashMap<(usize, usize), [f64; 2]> = mesh.edges_on_circles(&mesh.circles).into_iter().map(|(k, c)| (k, c.center)).collect();
     if let Some(disk) = &mesh.exterior {
@@ -164,18 +162,17 @@ fn curved_edges(mesh: &Mesh, corners: &[[usize; 3]], coords: &[[[f64; 2]; 3]]) -
         return (Vec::new(), Vec::new());
     }
     let mut curves = Vec::new();
-    let mut curve_of = vec![STRAIGHT; corners.len()];
+    let mut curve_start = Vec::with_capacity(corners.len() + 1);
     for (e, c) in corners.iter().enumerate() {
-        let found = EDGES
-            .iter()
-            .enumerate()
-            .find_map(|(k, [a, b])| centre_of.get(&(c[*a].min(c[*b]), c[*a].max(c[*b]))).map(|&o| (k, o)));
-        if let Some((k, centre)) = found {
-            curve_of[e] = curves.len() as u32;
-            curves.push(CurvedEdge::new(k, &coords[e], centre));
+        curve_start.push(curves.len() as u32);
+        for (k, [a, b]) in EDGES.iter().enumerate() {
+            if let Some(&centre) = centre_of.get(&(c[*a].min(c[*b]), c[*a].max(c[*b]))) {
+                curves.push(CurvedEdge::new(k, &coords[e], centre));
+            }
         }
     }
-    (curves, curve_of)
+    curve_start.push(curves.len() as u32);
+    (curves, curve_start)
 }
 
 /// A node row holding the three corners only.

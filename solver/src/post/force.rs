@@ -69,11 +69,7 @@ pub fn force_on(solution: &Solution, parts: &[usize], torque_center: [f64; 2]) -
         let straight = grad_at(crate::element::barycentric_gradients(&els.coords[e]).0);
         for_each_field_point(solution, e, |p| {
             let (b, op) = (p.b, p);
-            let grad = if geom.curve.is_some() {
-                grad_at(geom.gradients_at(p.lam).1)
-            } else {
-                straight
-            };
+            let grad = if geom.is_curved() { grad_at(geom.gradients_at(p.lam).1) } else { straight };
             let half = 0.5 * (b[0] * b[0] + b[1] * b[1]);
             let t = [[b[0] * b[0] - half, b[0] * b[1]], [b[0] * b[1], b[1] * b[1] - half]];
             let tg = [0, 1].map(|i| -NU0 * (t[i][0] * grad[0] + t[i][1] * grad[1]) * op.weight);
