@@ -34,10 +34,7 @@ fn corner_refinements(model: &Model) -> Vec<Refinement> {
             if turn < CORNER_TURN_DEG || (axisymmetric && b[0] <= 0.0) {
                 continue;
             }
-            let share = std::env::var("LODESTONE_CORNER_SHARE")
-                .ok()
-                .and_then(|v| v.parse().ok())
-                .unwrap_or(CORNER_SHARE); // EXPERIMENT
+            let share = CORNER_SHARE;
             out.push(Refinement::Point {
                 at: b,
                 size: share * p.mesh_size,

@@ -147,15 +147,9 @@ pub fn solve_to_accuracy<R>(
             worst_value: (!first_step).then(|| name.clone()),
             seconds: start.elapsed().as_secs_f64(),
         });
-        // Two meshes give only the change, whose ratio to the error depends
-        // on the unknown rate (3 at h^2, 255 at h^8); a third gives the
-        // observed rate and a sharp tail. So the study stops after two only
-        // when even the change is far below the target.
-        let sharp = steps.len() >= 3 || rel <= target / 10.0;
-        let reached = !first_step && rel <= target && sharp && !undecided(model, &results.values, &history.estimate);
+        let reached = !first_step && rel <= target && !undecided(model, &results.values, &history.estimate);
         let total = mesh.triangles.len() + mesh.exterior.as_ref().map_or(0, |d| d.triangles.len());
-        let room =
-            4 * total <= model.mesh.max_elements && steps.len() < std::env::var("LODESTONE_MAX_STEPS").ok().and_then(|v| v.parse().ok()).unwrap_or(usize::MAX); // EXPERIMENT
+        let room = 4 * total <= model.mesh.max_elements;
         if !first_step {
             progress(Stage::Refined {
                 step: steps.len() - 1,

@@ -90,6 +90,31 @@ pub fn first_mesh_scale(target: f64) -> f64 {
     (target / 1e-3).powf(0.25).clamp(0.25, 2.0)
 }
 
+/// The element order when `[mesh] order` is not given: quadratic down to
+/// the default 0.1 %, quartic for tighter targets. On P1 and P2 (a
+/// cylinder's axis field, the pull of two cylinders) quartic elements
+/// reached 0.01 % in 0.3 s and 1.0 s where quadratic ones took 4.7 s and
+/// 0.9 s; at 0.1 % quadratic elements were as fast on forces and the
+/// saturating examples (docs/measurement-log.md).
+pub fn default_order(accuracy: Option<f64>) -> u32 {
+    match accuracy {
+        Some(t) if t < 0.999e-3 => 4,
+        _ => 2,
+    }
+}
+
+/// How much coarser the first mesh is for elements of order p than for
+/// quadratic ones when `[mesh] size` is not given: about the same
+/// unknowns for p = 3, and for p = 4 a quarter of the element size (P1
+/// and P2 at 0.01 % took 0.3 s and 1.9 s with it, 2.2 s and 1.9 s at half).
+pub fn order_scale(order: u32) -> f64 {
+    match order {
+        3 => 2.0,
+        4 => 4.0,
+        _ => 1.0,
+    }
+}
+
 /// A twentieth of the largest part extent when [mesh] size is not given.
 fn default_size(parts: &[Item], ctx: &Context) -> f64 {
     let mut extent: f64 = 0.0;

@@ -117,10 +117,15 @@ pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> R
         .get("mesh")
         .and_then(|m| m.table("[mesh]", mesh_table::MESH).ok())
         .is_some_and(|m| m.get("size").is_some());
+    let order_given = top
+        .get("mesh")
+        .and_then(|m| m.table("[mesh]", mesh_table::MESH).ok())
+        .is_some_and(|m| m.get("order").is_some());
+    if !order_given {
+        mesh.order = mesh_table::default_order(accuracy);
+    }
     if let (Some(target), false) = (accuracy, size_given) {
-        mesh.size *= mesh_table::first_mesh_scale(target);
-        mesh.size *= std::env::var("LODESTONE_SIZE_SCALE").ok().and_then(|v| v.parse::<f64>().ok()).unwrap_or(1.0);
-        // EXPERIMENT
+        mesh.size *= mesh_table::first_mesh_scale(target) * mesh_table::order_scale(mesh.order);
     }
     let mut parts = Vec::new();
     let mut spans = Spans::default();
