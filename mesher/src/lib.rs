@@ -19,6 +19,7 @@
 
 #![warn(missing_docs)]
 
+mod boundary_circle;
 mod crossings;
 mod domain;
 mod error;

@@ -61,7 +61,7 @@ pub struct Mesh {
     pub exterior: Option<ExteriorDisk>,
     /// The circles that round parts' outlines follow (elements with an edge
     /// on one are curved onto it); empty until `follow` or `snap_onto` sets them.
-    pub circles: Vec<crate::refine::BoundaryCircle>,
+    pub circles: Vec<crate::boundary_circle::BoundaryCircle>,
 }
 
 /// Summary figures of a mesh.

@@ -18,69 +18,8 @@ use crate::quadrature::{rule, Rule};
 use crate::NU0;
 use mesher::Symmetry;
 
-/// Most nodes an element has (order 4).
-pub const MAX_NODES: usize = 15;
-
-/// Polynomial order of the potential in each triangle.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub enum ElementOrder {
-    /// Three-node triangles, potential linear.
-    Linear,
-    /// Six-node triangles, potential quadratic.
-    Quadratic,
-    /// Ten-node triangles, potential cubic.
-    Cubic,
-    /// Fifteen-node triangles, potential quartic.
-    Quartic,
-}
-
-impl ElementOrder {
-    /// The order of degree p (1 to 4).
-    pub fn of_degree(p: u32) -> Option<ElementOrder> {
-        match p {
-            1 => Some(ElementOrder::Linear),
-            2 => Some(ElementOrder::Quadratic),
-            3 => Some(ElementOrder::Cubic),
-            4 => Some(ElementOrder::Quartic),
-            _ => None,
-        }
-    }
-
-    /// The polynomial degree p.
-    pub fn degree(self) -> usize {
-        match self {
-            ElementOrder::Linear => 1,
-            ElementOrder::Quadratic => 2,
-            ElementOrder::Cubic => 3,
-            ElementOrder::Quartic => 4,
-        }
-    }
-
-    /// Nodes per element: (p + 1)(p + 2) / 2.
-    pub fn n_nodes(self) -> usize {
-        let p = self.degree();
-        (p + 1) * (p + 2) / 2
-    }
-
-    /// Nodes inside each edge: p - 1.
-    pub fn per_edge(self) -> usize {
-        self.degree() - 1
-    }
-
-    /// The barycentric lattice index (i, j, k), i + j + k = p, of each node.
-    pub fn lattice(self) -> &'static [[u8; 3]] {
-        crate::lagrange::LATTICE[self.degree() - 1]
-    }
-
-    /// Barycentric coordinates of local node j.
-    pub fn node_point(self, j: usize) -> [f64; 3] {
-        let p = self.degree() as f64;
-        self.lattice()[j].map(|i| i as f64 / p)
-    }
-}
-
-/// Corner pairs of the three edges, in midpoint-node order.
-pub const EDGES: [[usize; 2]; 3] = [[0, 1], [1, 2], [2, 0]];
+pub use crate::element_map::barycentric;
+pub use crate::element_order::{ElementOrder, EDGES, MAX_NODES};
 
 /// Where a triangle lives, which fixes its weight and background field.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -296,14 +235,6 @@ fn point_op_in(
             }
         }
     }
-}
-
-/// Barycentric coordinates of p in triangle x.
-pub fn barycentric(x: &[[f64; 2]; 3], p: [f64; 2]) -> [f64; 3] {
-    let d = (x[1][0] - x[0][0]) * (x[2][1] - x[0][1]) - (x[2][0] - x[0][0]) * (x[1][1] - x[0][1]);
-    let l1 = ((p[0] - x[0][0]) * (x[2][1] - x[0][1]) - (x[2][0] - x[0][0]) * (p[1] - x[0][1])) / d;
-    let l2 = ((x[1][0] - x[0][0]) * (p[1] - x[0][1]) - (p[0] - x[0][0]) * (x[1][1] - x[0][1])) / d;
-    [1.0 - l1 - l2, l1, l2]
 }
 
 /// B at a point from the element's nodal potentials.

@@ -16,7 +16,7 @@
 //! C. A. Hall, Transfinite element methods, Numer. Math. 21, 1973, whose
 //! s phi(l_b / s) is not differentiable at the opposite corner).
 
-use crate::element::EDGES;
+use crate::element_order::EDGES;
 
 /// An element edge that follows a circle.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -121,6 +121,14 @@ impl CurvedEdge {
     }
 }
 
+/// Barycentric coordinates of p in triangle x.
+pub fn barycentric(x: &[[f64; 2]; 3], p: [f64; 2]) -> [f64; 3] {
+    let d = (x[1][0] - x[0][0]) * (x[2][1] - x[0][1]) - (x[2][0] - x[0][0]) * (x[1][1] - x[0][1]);
+    let l1 = ((p[0] - x[0][0]) * (x[2][1] - x[0][1]) - (x[2][0] - x[0][0]) * (p[1] - x[0][1])) / d;
+    let l2 = ((x[1][0] - x[0][0]) * (p[1] - x[0][1]) - (p[0] - x[0][0]) * (x[1][1] - x[0][1])) / d;
+    [1.0 - l1 - l2, l1, l2]
+}
+
 /// The geometry of one element: its corners, and the edge that follows a circle if one does.
 #[derive(Clone, Copy, Debug)]
 pub struct ElementGeometry<'a> {
@@ -180,7 +188,7 @@ impl ElementGeometry<'_> {
     /// straight triangle, by Newton's method on the map for a curved one
     /// (started from the straight triangle's answer).
     pub fn barycentric(&self, p: [f64; 2]) -> [f64; 3] {
-        let mut lam = crate::element::barycentric(self.corners, p);
+        let mut lam = barycentric(self.corners, p);
         if self.curves.is_empty() {
             return lam;
         }
@@ -234,14 +242,14 @@ mod tests {
             let (q, _) = g.map([1.0 - t, t, 0.0]);
             assert!(q[1].abs() < 1e-15 && (q[0] - t).abs() < 1e-15);
         }
-        let rule = crate::quadrature::rule(crate::element::ElementOrder::Quartic, mesher::Symmetry::Axisymmetric, true);
+        let rule = crate::quadrature::rule(crate::element_order::ElementOrder::Quartic, mesher::Symmetry::Axisymmetric, true);
         let area: f64 = rule.points.iter().zip(rule.weights).map(|(l, w)| w * g.gradients_at(*l).2).sum();
         assert!((area - std::f64::consts::FRAC_PI_4).abs() < 1e-7, "area {area}");
         // The inverse map finds a point in the bulge outside the chord.
         let lam = g.barycentric([0.69, 0.69]);
         let (back, _) = g.map(lam);
         assert!((back[0] - 0.69).abs() < 1e-12 && (back[1] - 0.69).abs() < 1e-12);
-        assert!(lam.iter().all(|&l| l >= 0.0) && crate::element::barycentric(&x, [0.69, 0.69])[0] < 0.0);
+        assert!(lam.iter().all(|&l| l >= 0.0) && barycentric(&x, [0.69, 0.69])[0] < 0.0);
     }
 }
 #[cfg(test)]
@@ -265,9 +273,9 @@ mod area_tests {
                 let g = ElementGeometry { corners: &x, curves: &curves };
                 let chord_triangle = 0.5 * ((x[1][0] - x[0][0]) * (x[2][1] - x[0][1]) - (x[2][0] - x[0][0]) * (x[1][1] - x[0][1]));
                 for order in [
-                    crate::element::ElementOrder::Quadratic,
-                    crate::element::ElementOrder::Cubic,
-                    crate::element::ElementOrder::Quartic,
+                    crate::element_order::ElementOrder::Quadratic,
+                    crate::element_order::ElementOrder::Cubic,
+                    crate::element_order::ElementOrder::Quartic,
                 ] {
                     let rule = crate::quadrature::rule(order, mesher::Symmetry::Planar, true);
                     let area: f64 = rule.points.iter().zip(rule.weights).map(|(l, w)| w * g.gradients_at(*l).2).sum();

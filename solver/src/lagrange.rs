@@ -5,45 +5,9 @@
 //! P_m(l) = prod_{s<m} (p l - s) / (s + 1), one at its own node and zero at
 //! every other. Orders 1 and 2 are written out in `element.rs`.
 
-use crate::element::{ElementOrder, MAX_NODES};
+use crate::element_order::{ElementOrder, MAX_NODES};
 use mesher::Symmetry;
 use std::sync::OnceLock;
-
-/// Lattice indices of the nodes of each order, in node order. Edge (a, b)'s
-/// node k (k = 1 .. p - 1) has index p - k on corner a and k on corner b.
-pub const LATTICE: [&[[u8; 3]]; 4] = [
-    &[[1, 0, 0], [0, 1, 0], [0, 0, 1]],
-    &[[2, 0, 0], [0, 2, 0], [0, 0, 2], [1, 1, 0], [0, 1, 1], [1, 0, 1]],
-    &[
-        [3, 0, 0],
-        [0, 3, 0],
-        [0, 0, 3],
-        [2, 1, 0],
-        [1, 2, 0],
-        [0, 2, 1],
-        [0, 1, 2],
-        [1, 0, 2],
-        [2, 0, 1],
-        [1, 1, 1],
-    ],
-    &[
-        [4, 0, 0],
-        [0, 4, 0],
-        [0, 0, 4],
-        [3, 1, 0],
-        [2, 2, 0],
-        [1, 3, 0],
-        [0, 3, 1],
-        [0, 2, 2],
-        [0, 1, 3],
-        [1, 0, 3],
-        [2, 0, 2],
-        [3, 0, 1],
-        [2, 1, 1],
-        [1, 2, 1],
-        [1, 1, 2],
-    ],
-];
 
 /// Values N_j and slopes dN_j/dl_c (c = 0, 1, 2, the barycentrics taken
 /// as independent) at `lam`.

@@ -42,6 +42,7 @@ pub mod constraints;
 pub mod dofs;
 pub mod element;
 pub mod element_map;
+pub mod element_order;
 pub mod intrinsic_table;
 pub mod lagrange;
 pub mod linear_system;

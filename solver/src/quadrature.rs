@@ -1,6 +1,6 @@
 //! Triangle quadrature rules in barycentric coordinates.
 
-use crate::element::ElementOrder;
+use crate::element_order::ElementOrder;
 use mesher::Symmetry;
 use std::sync::OnceLock;
 

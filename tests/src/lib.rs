@@ -191,8 +191,19 @@ static COUNTER: std::sync::atomic::AtomicUsize = std::sync::atomic::AtomicUsize:
 /// variable LODESTONE_VALIDATION_LOG names a file, appends one JSON line with
 /// the check, its source, the tolerance and the measured error (relative).
 pub fn record(check: &str, source: &str, tolerance: f64, measured: f64) {
+    append_record(serde_json::json!({ "check": check, "source": source, "tolerance": tolerance, "measured": measured }));
+}
+
+/// `record` for a value that carries an error estimate: also its estimated
+/// relative error, so the table shows the true error, the estimate and
+/// their ratio.
+pub fn record_estimated(check: &str, source: &str, tolerance: f64, measured: f64, estimated: f64) {
+    append_record(serde_json::json!({ "check": check, "source": source, "tolerance": tolerance, "measured": measured, "estimated": estimated }));
+}
+
+/// Appends one record line to the log named by LODESTONE_VALIDATION_LOG, if set.
+fn append_record(line: serde_json::Value) {
     let Ok(path) = std::env::var("LODESTONE_VALIDATION_LOG") else { return };
-    let line = serde_json::json!({ "check": check, "source": source, "tolerance": tolerance, "measured": measured });
     use std::io::Write;
     // One write of the whole line: tests record from several threads at once, and a line
     // written in pieces could interleave with another's (lines went missing from the table).
