@@ -55,12 +55,20 @@ fn main() {
     println!("Where a check's values carry error estimates (default settings, `[study] accuracy`), the estimate of the worst sub-case and the largest ratio of true to estimated error over the sub-cases follow (honest when at most 2); the checks on meshes given by hand have none.\n");
     println!("| check | source | tolerance | worst measured | its estimate | true / estimated (largest) | sub-cases |\n|---|---|---|---|---|---|---|");
     let percent = |x: Option<f64>| x.map_or("-".to_string(), |v| format!("{:.4} %", 100.0 * v));
+    // Tolerances below 0.01 % (a 1e-6 check) would print as 0.00 %.
+    let tolerance = |t: f64| {
+        if t < 1e-4 {
+            format!("{:.0e} %", 100.0 * t)
+        } else {
+            format!("{:.2} %", 100.0 * t)
+        }
+    };
     for (check, r) in rows {
         let ratio = r.ratio.map_or("-".to_string(), |q| format!("{q:.2}"));
         println!(
-            "| {check} | {} | {:.2} % | {:.4} % | {} | {ratio} | {} |",
+            "| {check} | {} | {} | {:.4} % | {} | {ratio} | {} |",
             r.source,
-            100.0 * r.tolerance,
+            tolerance(r.tolerance),
             100.0 * r.worst,
             percent(r.estimate_of_worst),
             r.count
