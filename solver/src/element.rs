@@ -52,26 +52,30 @@ pub struct PointOp {
     pub lam: [f64; 3],
 }
 
-/// Calls `f` at every quadrature point of the triangle with corners `x`.
+/// Calls `f` at every quadrature point of the element. Orders 3 and 4 read
+/// their shape values and slopes from a table made once per rule
+/// (evaluating the lattice products at every point of every element took a
+/// fifth of an order-4 run); a straight element's barycentric gradients are
+/// found once, a curved one's at each point through its map.
 pub fn for_each_point(geom: ElementGeometry, order: ElementOrder, symmetry: Symmetry, placement: Placement, mut f: impl FnMut(&PointOp)) {
-    let exterior = geom.is_curved() || boosted_rule(geom.corners, symmetry, placement);
-    let rule: &Rule = rule(order, symmetry, exterior);
-    match geom.is_curved() {
-        false => {
-            let (grad_lam, area) = barycentric_gradients(geom.corners);
-            for (i, (lam, w)) in rule.points.iter().zip(rule.weights).enumerate() {
-                let p = affine_point(geom.corners, *lam);
-                let shaped = shape_at_rule_point(order, (symmetry, exterior), i, *lam, grad_lam);
-                f(&point_op_in(p, shaped, area, order, symmetry, placement, *lam, *w));
+    let boosted = geom.is_curved() || boosted_rule(geom.corners, symmetry, placement);
+    let rule: &Rule = rule(order, symmetry, boosted);
+    let table = matches!(order, ElementOrder::Cubic | ElementOrder::Quartic).then(|| crate::lagrange::table(order, symmetry, boosted));
+    let straight = (!geom.is_curved()).then(|| barycentric_gradients(geom.corners));
+    for (i, (lam, w)) in rule.points.iter().zip(rule.weights).enumerate() {
+        let (p, grad_lam, area) = match straight {
+            Some((grad_lam, area)) => (affine_point(geom.corners, *lam), grad_lam, area),
+            None => geom.gradients_at(*lam),
+        };
+        let shaped = match table {
+            Some(t) => {
+                let mut dn = [[0.0; 2]; MAX_NODES];
+                contract(&t.slopes[i], grad_lam, order.n_nodes(), &mut dn);
+                (t.values[i], dn)
             }
-        }
-        true => {
-            for (i, (lam, w)) in rule.points.iter().zip(rule.weights).enumerate() {
-                let (p, grad_lam, area) = geom.gradients_at(*lam);
-                let shaped = shape_at_rule_point(order, (symmetry, exterior), i, *lam, grad_lam);
-                f(&point_op_in(p, shaped, area, order, symmetry, placement, *lam, *w));
-            }
-        }
+            None => shape(order, *lam, grad_lam),
+        };
+        f(&point_op_in(p, shaped, area, order, symmetry, placement, *lam, *w));
     }
 }
 
@@ -137,28 +141,6 @@ fn contract(dl: &[[f64; 3]; MAX_NODES], grad_lam: [[f64; 2]; 3], len: usize, dn:
             d[0] * grad_lam[0][0] + d[1] * grad_lam[1][0] + d[2] * grad_lam[2][0],
             d[0] * grad_lam[0][1] + d[1] * grad_lam[1][1] + d[2] * grad_lam[2][1],
         ];
-    }
-}
-
-/// Shape values and gradients at point `i` of the element's rule, at `lam`:
-/// the higher orders read their values and slopes from a table made once
-/// per rule (evaluating the lattice products at every point of every
-/// element took a fifth of an order-4 run).
-fn shape_at_rule_point(
-    order: ElementOrder,
-    (symmetry, exterior): (Symmetry, bool),
-    i: usize,
-    lam: [f64; 3],
-    grad_lam: [[f64; 2]; 3],
-) -> ([f64; MAX_NODES], [[f64; 2]; MAX_NODES]) {
-    match order {
-        ElementOrder::Linear | ElementOrder::Quadratic => shape(order, lam, grad_lam),
-        ElementOrder::Cubic | ElementOrder::Quartic => {
-            let table = crate::lagrange::table(order, symmetry, exterior);
-            let mut dn = [[0.0; 2]; MAX_NODES];
-            contract(&table.slopes[i], grad_lam, order.n_nodes(), &mut dn);
-            (table.values[i], dn)
-        }
     }
 }
 

@@ -139,11 +139,6 @@ pub struct ElementGeometry<'a> {
 }
 
 impl ElementGeometry<'_> {
-    /// A straight triangle.
-    pub fn straight(corners: &[[f64; 2]; 3]) -> ElementGeometry<'_> {
-        ElementGeometry { corners, curves: &[] }
-    }
-
     /// The position at barycentric point `lam` and the Jacobian's columns
     /// (dx/dxi1, dx/dxi2), xi = (l1, l2).
     pub fn map(&self, lam: [f64; 3]) -> ([f64; 2], [[f64; 2]; 2]) {

@@ -34,10 +34,9 @@ fn corner_refinements(model: &Model) -> Vec<Refinement> {
             if turn < CORNER_TURN_DEG || (axisymmetric && b[0] <= 0.0) {
                 continue;
             }
-            let share = CORNER_SHARE;
             out.push(Refinement::Point {
                 at: b,
-                size: share * p.mesh_size,
+                size: CORNER_SHARE * p.mesh_size,
             });
         }
     }
