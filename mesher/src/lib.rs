@@ -19,6 +19,7 @@
 
 #![warn(missing_docs)]
 
+mod bisect;
 mod boundary_circle;
 mod crossings;
 mod domain;
@@ -34,6 +35,7 @@ mod spatial;
 mod spec;
 mod triangulate;
 
+pub use bisect::Split;
 pub use domain::Domain;
 pub use error::{MeshError, BYTES_PER_TRIANGLE};
 pub use exterior::ExteriorDisk;

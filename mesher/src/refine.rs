@@ -14,17 +14,19 @@ use std::collections::HashMap;
 /// Midpoint node of each edge, keyed by its sorted end nodes.
 type EdgeMidpoints = HashMap<(usize, usize), usize>;
 
-fn key(a: usize, b: usize) -> (usize, usize) {
+/// An edge's key: its end nodes sorted.
+pub(crate) fn key(a: usize, b: usize) -> (usize, usize) {
     (a.min(b), a.max(b))
 }
 
-fn midpoint(a: [f64; 2], b: [f64; 2]) -> [f64; 2] {
+/// The middle of ab.
+pub(crate) fn midpoint(a: [f64; 2], b: [f64; 2]) -> [f64; 2] {
     [0.5 * (a[0] + b[0]), 0.5 * (a[1] + b[1])]
 }
 
 /// The point at the same angle on the circle (centre, radius); on the axis
 /// side of an axisymmetric half-disk r stays non-negative.
-fn onto_circle(p: [f64; 2], center: [f64; 2], radius: f64) -> [f64; 2] {
+pub(crate) fn onto_circle(p: [f64; 2], center: [f64; 2], radius: f64) -> [f64; 2] {
     let d = (p[0] - center[0]).hypot(p[1] - center[1]);
     if d == 0.0 {
         return p;
@@ -61,7 +63,7 @@ fn along_arc(c: &BoundaryCircle, a: [f64; 2], b: [f64; 2]) -> bool {
 }
 
 /// Moves the ends of the edges on circles onto them.
-fn snap(nodes: &mut [[f64; 2]], on_circle: &HashMap<(usize, usize), BoundaryCircle>) {
+pub(crate) fn snap(nodes: &mut [[f64; 2]], on_circle: &HashMap<(usize, usize), BoundaryCircle>) {
     for (&(a, b), c) in on_circle {
         for n in [a, b] {
             nodes[n] = onto_circle(nodes[n], c.center, c.radius);

@@ -1,8 +1,10 @@
-//! Point location in the physical triangles with a uniform bucket grid.
+//! Point location in the physical triangles (or, for carrying a solution
+//! to a refined mesh, the exterior's) with a uniform bucket grid.
 
 use crate::space::Elements;
+use std::ops::Range;
 
-/// A bucket grid over the physical triangles.
+/// A bucket grid over a range of elements (the physical triangles unless told).
 #[derive(Clone, Debug)]
 pub struct Locator {
     origin: [f64; 2],
@@ -16,9 +18,16 @@ pub struct Locator {
 const INSIDE_TOLERANCE: f64 = 1e-9;
 
 impl Locator {
+    /// The grid over the physical triangles.
     pub fn new(els: &Elements) -> Locator {
-        let n = els.n_physical.max(1);
-        let pts = els.coords[..els.n_physical].iter().flatten();
+        Locator::over(els, 0..els.n_physical)
+    }
+
+    /// The grid over the elements `elements` (in their own frame: mapped
+    /// coordinates for the exterior).
+    pub fn over(els: &Elements, elements: Range<usize>) -> Locator {
+        let n = elements.len().max(1);
+        let pts = els.coords[elements.clone()].iter().flatten();
         let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
         for p in pts {
             for k in 0..2 {
@@ -40,7 +49,7 @@ impl Locator {
             let iy1 = ((x.iter().map(|p| p[1]).fold(f64::NEG_INFINITY, f64::max) + out - lo[1]).max(0.0) / cell) as usize;
             (ix0.min(dims[0] - 1), ix1.min(dims[0] - 1), iy0.min(dims[1] - 1), iy1.min(dims[1] - 1))
         };
-        for e in 0..els.n_physical {
+        for e in elements.clone() {
             let (x0, x1, y0, y1) = range(e);
             for iy in y0..=y1 {
                 for ix in x0..=x1 {
@@ -54,7 +63,7 @@ impl Locator {
         let start = count.clone();
         let mut fill = count;
         let mut items = vec![0; start[start.len() - 1]];
-        for e in 0..els.n_physical {
+        for e in elements {
             let (x0, x1, y0, y1) = range(e);
             for iy in y0..=y1 {
                 for ix in x0..=x1 {
@@ -73,7 +82,7 @@ impl Locator {
         }
     }
 
-    /// Every physical triangle that contains p (on an edge: several), with barycentrics.
+    /// Every triangle of the grid that contains p (on an edge: several), with barycentrics.
     pub fn containing(&self, els: &Elements, p: [f64; 2]) -> Vec<(usize, [f64; 3])> {
         let fx = (p[0] - self.origin[0]) / self.cell;
         let fy = (p[1] - self.origin[1]) / self.cell;

@@ -52,3 +52,38 @@ pub fn to_refined(coarse: &Solution, fine: &Elements) -> Option<Vec<f64>> {
     }
     Some(out)
 }
+
+/// The reduced potential of `coarse` at every node of `fine`, a mesh nested
+/// in it by any pattern (the bisection of local refinement included): each
+/// fine node is located in the coarse elements of its own side (physical,
+/// or the exterior in mapped coordinates) and the coarse field evaluated
+/// there. None when more than a thousandth of the nodes cannot be located
+/// (not a refinement of the coarse mesh); a node that is not found keeps 0.
+pub fn to_nested(coarse: &Solution, fine: &Elements) -> Option<Vec<f64>> {
+    use crate::locate::Locator;
+    let els = &coarse.elements;
+    if fine.order != els.order {
+        return None;
+    }
+    let physical = Locator::new(els);
+    let exterior = Locator::over(els, els.n_physical..els.len());
+    let mut out = vec![0.0; fine.n_nodes];
+    let mut done = vec![false; fine.n_nodes];
+    let mut missing = 0usize;
+    for f in 0..fine.len() {
+        let grid = if f < fine.n_physical { &physical } else { &exterior };
+        for &node in fine.element_nodes(f) {
+            if std::mem::replace(&mut done[node], true) {
+                continue;
+            }
+            let p = fine.positions[node];
+            let Some((e, lam)) = grid.containing(els, p).into_iter().next() else {
+                missing += 1;
+                continue;
+            };
+            let op = point_op(els.geometry(e), els.order, coarse.symmetry(), els.placement(e), lam, 1.0);
+            out[node] = potential(&op, &els.gather(e, &coarse.reduced));
+        }
+    }
+    (missing * 1000 <= fine.n_nodes).then_some(out)
+}

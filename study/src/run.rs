@@ -105,6 +105,11 @@ fn exposure_state(model: &Model, exposure: &Exposure, mesh: &mesher::Mesh, progr
     Ok(solver::post::magnet_check::remaining_shares(&sol))
 }
 
+/// The share of the squared error indicators whose elements a refinement
+/// step after the first splits once more than the rest (the bulk
+/// criterion's theta, see `solver::post::error_indicator::bulk_marking`).
+const BULK_SHARE: f64 = 0.5;
+
 /// Meshes, solves (refining to the model's accuracy) and post-processes a
 /// model: its typed results, with the error of each value.
 pub fn run(model: &Model, progress: &(dyn Fn(Stage) + Sync)) -> Result<Results, StudyError> {
@@ -137,7 +142,7 @@ pub fn solve_to_accuracy<R>(
         let sol = solve_from(model, &mesh, guess.take(), progress)?;
         let results = crate::post::results(model, &sol, 0.0);
         let first_step = steps.is_empty();
-        history.update(&results.values);
+        history.update(&results.values, sol.report.n_dofs);
         let names = driving(model, &results);
         let (rel, name) = worst(&names, &results.values, &history.estimate);
         steps.push(Step {
@@ -148,8 +153,6 @@ pub fn solve_to_accuracy<R>(
             seconds: start.elapsed().as_secs_f64(),
         });
         let reached = !first_step && rel <= target && !undecided(model, &results.values, &history.estimate);
-        let total = mesh.triangles.len() + mesh.exterior.as_ref().map_or(0, |d| d.triangles.len());
-        let room = 4 * total <= model.mesh.max_elements;
         if !first_step {
             progress(Stage::Refined {
                 step: steps.len() - 1,
@@ -158,22 +161,50 @@ pub fn solve_to_accuracy<R>(
                 worst_value: name,
             });
         }
-        if reached || !room || !sol.report.converged {
+        // Four times the triangles at least: a mesh past the limit is not even built.
+        let room = 4 * elements(&mesh) <= model.mesh.max_elements;
+        let next = (!reached && sol.report.converged && room)
+            .then(|| next_mesh(&mesh, &sol, steps.len(), &round))
+            .filter(|next| elements(next) <= model.mesh.max_elements);
+        let Some(next) = next else {
             let estimate = Estimate {
                 errors: history.estimate.clone(),
                 adaptive: Some(Adaptive { target, reached, steps }),
                 results: Some(results),
             };
             return Ok(finish(&sol, estimate));
-        }
-        let next = mesh.refined_onto(&round);
+        };
         if sol.problem.is_nonlinear() {
             let fine = solver::space::Elements::from_mesh(&next, sol.elements.order);
-            guess = solver::prolong::to_refined(&sol, &fine).map(std::sync::Arc::from);
+            guess = solver::prolong::to_refined(&sol, &fine)
+                .or_else(|| solver::prolong::to_nested(&sol, &fine))
+                .map(std::sync::Arc::from);
         }
         drop(sol);
         mesh = next;
     }
+}
+
+/// Triangles of a mesh, the exterior's included (what `max_elements` counts).
+fn elements(mesh: &mesher::Mesh) -> usize {
+    mesh.triangles.len() + mesh.exterior.as_ref().map_or(0, |d| d.triangles.len())
+}
+
+/// The mesh after `mesh` (the `steps`-th solved): every triangle split into
+/// four; from the third mesh on, the triangles holding half the squared
+/// error indicators split into four by bisection first (the singular
+/// corners refined twice as fast; every element still at least halved, so
+/// the change between the meshes measures the whole error).
+fn next_mesh(mesh: &mesher::Mesh, sol: &Solution, steps: usize, round: &[mesher::BoundaryCircle]) -> mesher::Mesh {
+    if steps < 2 {
+        return mesh.refined_onto(round);
+    }
+    let eta = solver::post::error_indicator::element_indicators(sol);
+    let splits: Vec<mesher::Split> = solver::post::error_indicator::bulk_marking(&eta, BULK_SHARE)
+        .into_iter()
+        .map(|m| if m { mesher::Split::Quarter } else { mesher::Split::Keep })
+        .collect();
+    mesh.bisected(&splits, round).refined_onto(round)
 }
 
 /// The parts whose outline is a circle, for refinement to follow.

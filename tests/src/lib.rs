@@ -201,6 +201,31 @@ pub fn record_estimated(check: &str, source: &str, tolerance: f64, measured: f64
     append_record(serde_json::json!({ "check": check, "source": source, "tolerance": tolerance, "measured": measured, "estimated": estimated }));
 }
 
+/// Asserts what an error estimate claims, for a value with an exact answer:
+/// the value within `target` of it (relative to `scale`: the value, or the
+/// magnitude of the vector it is a component of), the true error at most
+/// twice the estimate, and the estimate at most 20 times the true error or
+/// below a tenth of the target.
+pub fn assert_honest(what: &str, value: f64, error: f64, exact: f64, scale: f64, target: f64) {
+    let truth = (value - exact).abs();
+    eprintln!(
+        "{what}: value {value:.9e} exact {exact:.9e} true {:.2e} estimated {:.2e} ratio {:.2}",
+        truth / scale,
+        error / scale,
+        truth / error
+    );
+    assert!(
+        truth <= target * scale,
+        "{what}: true relative error {:.2e} above the target {target:e}",
+        truth / scale
+    );
+    assert!(truth <= 2.0 * error, "{what}: true error {truth:.3e} more than twice the estimate {error:.3e}");
+    assert!(
+        error <= 20.0 * truth || error <= 0.1 * target * scale,
+        "{what}: estimate {error:.3e} more than 20 times the true error {truth:.3e} and above a tenth of the target"
+    );
+}
+
 /// Appends one record line to the log named by LODESTONE_VALIDATION_LOG, if set.
 fn append_record(line: serde_json::Value) {
     let Ok(path) = std::env::var("LODESTONE_VALIDATION_LOG") else { return };

@@ -14,26 +14,9 @@ fn value_and_error(r: &study::Results, name: &str) -> (f64, f64) {
     (r.values[name], r.errors[name])
 }
 
-/// Asserts the two honesty bounds for one value and records its ratio.
+/// The honesty bounds at the default target, relative to the exact value.
 fn assert_honest(what: &str, value: f64, error: f64, exact: f64) {
-    let truth = (value - exact).abs();
-    let scale = exact.abs();
-    eprintln!(
-        "{what}: value {value:.9e} exact {exact:.9e} true {:.2e} estimated {:.2e} ratio {:.2}",
-        truth / scale,
-        error / scale,
-        truth / error
-    );
-    assert!(
-        truth <= TARGET * scale,
-        "{what}: true relative error {:.2e} above the 0.1 % target",
-        truth / scale
-    );
-    assert!(truth <= 2.0 * error, "{what}: true error {truth:.3e} more than twice the estimate {error:.3e}");
-    assert!(
-        error <= 20.0 * truth || error <= 0.1 * TARGET * scale,
-        "{what}: estimate {error:.3e} more than 20 times the true error {truth:.3e} and above a tenth of the target"
-    );
+    validation::assert_honest(what, value, error, exact, exact.abs(), TARGET);
 }
 
 const RIGID: &str = r#"

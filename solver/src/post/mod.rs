@@ -5,6 +5,7 @@
 
 pub mod contact;
 pub mod energy;
+pub mod error_indicator;
 pub mod flux;
 pub mod force;
 pub mod integrate;

@@ -1,0 +1,170 @@
+//! Checks with exact answers run as a user would run them: a case with no
+//! mesh key and the default `[study] accuracy` (0.1 %). Each value must be
+//! within 0.1 % of its closed form and within twice its own error
+//! estimate, and the estimate at most 20 times the true error or below a
+//! tenth of the target (the estimate is a claim too). The hand-meshed
+//! versions of these checks (linear_fields.rs, forces.rs) test the solver
+//! apart from the refinement; these test what a case file gets.
+
+use validation::reference::{bar_field_2d, bar_pair_force_2d, cylinder_axis_bz, thick_solenoid_axis_bz};
+use validation::{assert_honest, record_estimated, solve_case_text};
+
+const TARGET: f64 = 1e-3;
+const OUTPUT: &str = "[output]\nvtk = false\nplots = false\nreport = false\ncsv = false\n";
+
+/// The value and estimate of `name`, checked and recorded against `exact`
+/// (`scale`: what the error is relative to, the value itself or its
+/// vector's magnitude).
+fn check(check: &str, source: &str, r: &study::Results, name: &str, exact: f64, scale: f64) {
+    let (v, e) = (r.values[name], r.errors[name]);
+    assert_honest(&format!("{check}: {name}"), v, e, exact, scale, TARGET);
+    record_estimated(check, source, TARGET, (v - exact).abs() / scale, e / scale);
+}
+
+/// A long bar magnet (20 x 10 mm, Br 1.2 T, recoil permeability 1) in the
+/// plane: B at three points outside it against the two charged sheets of
+/// its poles (E. P. Furlani, Permanent Magnet and Electromechanical
+/// Devices, 2001, sec. 4.2).
+#[test]
+fn planar_bar_field_at_default_settings() {
+    let (w, h) = (0.01, 0.005);
+    let mut text = format!(
+        "[study]\ntitle = \"bar\"\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = \"1 m\"\n\
+         [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet\"\n{OUTPUT}\
+         [[part]]\nname = \"bar\"\nmaterial = \"rigid\"\nmagnetization = \"+y\"\nrect = {{ from = [-10, -5], to = [10, 5] }}\n"
+    );
+    let points = [[0.0, 8.0], [14.0, 3.0], [25.0, 20.0]];
+    for (i, p) in points.iter().enumerate() {
+        text += &format!("[[probe]]\nname = \"p{i}\"\npoint = [{}, {}]\n", p[0], p[1]);
+    }
+    let r = solve_case_text(&text, &[]);
+    let what = "planar bar magnet B at default settings, within its error";
+    for (i, p) in points.iter().enumerate() {
+        let b = bar_field_2d(1.2, w, h, p[0] * 1e-3, p[1] * 1e-3);
+        let magnitude = b[0].hypot(b[1]);
+        check(what, "Furlani 2001, charged sheets", &r, &format!("probe.p{i}.b"), magnitude, magnitude);
+        // A component is held to honesty and to the target only: one can be
+        // exact by chance where the field's error is not (at (14, 3) mm B_x was
+        // within 9e-7 of |B| while B_y was 2.3e-4 off), and its estimate is
+        // then sized by the field's error, not by its own.
+        for (k, axis) in ["bx", "by"].iter().enumerate() {
+            let name = format!("probe.p{i}.{axis}");
+            let (v, e) = (r.values[&name], r.errors[&name]);
+            let truth = (v - b[k]).abs();
+            assert!(
+                truth <= TARGET * magnitude && truth <= 2.0 * e,
+                "{name}: true {truth:e}, estimate {e:e}, |B| {magnitude}"
+            );
+            record_estimated(what, "Furlani 2001, charged sheets", TARGET, truth / magnitude, e / magnitude);
+        }
+    }
+}
+
+/// Two long bars (20 x 10 mm, Br 1.2 T, recoil permeability 1) magnetized
+/// alike, 2 mm apart: the pull per metre against the charge model
+/// integrated over the upper bar's faces (Furlani 2001 sec. 4.2).
+#[test]
+fn planar_bar_pair_pull_at_default_settings() {
+    let text = format!(
+        "[study]\ntitle = \"bars\"\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = \"1 m\"\n\
+         [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet\"\n{OUTPUT}\
+         [[part]]\nname = \"lower\"\nmaterial = \"rigid\"\nmagnetization = \"+y\"\nrect = {{ from = [-10, -5], to = [10, 5] }}\n\
+         [[part]]\nname = \"upper\"\nmaterial = \"rigid\"\nmagnetization = \"+y\"\nrect = {{ from = [-10, 7], to = [10, 17] }}\n\
+         [[force]]\nname = \"pull\"\nparts = [\"upper\"]\n"
+    );
+    let r = solve_case_text(&text, &[]);
+    let exact = bar_pair_force_2d(1.2, 0.01, 0.005, 0.005, 0.012);
+    check(
+        "planar bar magnets attracting at default settings, within its error",
+        "Furlani 2001 charged sheets, integrated",
+        &r,
+        "force.pull.y",
+        exact,
+        exact.abs(),
+    );
+}
+
+/// A thick solenoid (radii 10 and 15 mm, length 30 mm, 1e7 A/m2) in air:
+/// B_z on its axis at its centre, its end and beyond (D. B. Montgomery,
+/// Solenoid Magnet Design, 1969, ch. 1).
+#[test]
+fn thick_solenoid_axis_field_at_default_settings() {
+    let mut text = format!(
+        "[study]\ntitle = \"solenoid\"\ngeometry = \"axisymmetric\"\nunit = \"mm\"\n{OUTPUT}\
+         [[part]]\nname = \"winding\"\nmaterial = \"air\"\ncurrent_density = \"1e7 A/m2\"\nrect = {{ from = [10, -15], to = [15, 15] }}\n"
+    );
+    let zs = [0.0, 15.0, 40.0];
+    for (i, z) in zs.iter().enumerate() {
+        text += &format!("[[probe]]\nname = \"z{i}\"\npoint = [0, {z}]\n");
+    }
+    let r = solve_case_text(&text, &[]);
+    for (i, z) in zs.iter().enumerate() {
+        let exact = thick_solenoid_axis_bz(1e7, 0.01, 0.015, 0.03, z * 1e-3);
+        check(
+            "thick solenoid on-axis B_z at default settings, within its error",
+            "Montgomery 1969",
+            &r,
+            &format!("probe.z{i}.bz"),
+            exact,
+            exact.abs(),
+        );
+    }
+}
+
+/// A permeable body in a uniform field B0 is uniformly magnetized: inside
+/// a sphere B = 3 mu_r / (mu_r + 2) B0, inside a long round cylinder
+/// across its axis B = 2 mu_r / (mu_r + 1) B0 (J. D. Jackson, Classical
+/// Electrodynamics, 3rd ed., 1999, sec. 5.11 and problem 5.29 in 2D).
+#[test]
+fn permeable_sphere_and_cylinder_in_a_uniform_field_at_default_settings() {
+    let mu_r: f64 = 100.0;
+    for (geometry, applied, exact, axis) in [
+        ("axisymmetric", "\"0.1 T\"", 3.0 * mu_r / (mu_r + 2.0) * 0.1, "bz"),
+        ("planar", "[\"0 T\", \"0.1 T\"]", 2.0 * mu_r / (mu_r + 1.0) * 0.1, "by"),
+    ] {
+        let depth = if geometry == "planar" { "depth = \"1 m\"\n" } else { "" };
+        let text = format!(
+            "[study]\ntitle = \"permeable body\"\ngeometry = \"{geometry}\"\nunit = \"mm\"\n{depth}applied_field = {applied}\n\
+             [materials.soft]\nmur = {mu_r}\ndescription = \"linear soft material\"\n{OUTPUT}\
+             [[part]]\nname = \"body\"\nmaterial = \"soft\"\ncircle = {{ center = [0, 0], radius = 10 }}\n\
+             [[probe]]\nname = \"inside\"\npoint = [0, 4]\n"
+        );
+        let r = solve_case_text(&text, &[]);
+        check(
+            "permeable sphere and cylinder in a uniform field at default settings, within its error",
+            "Jackson 3rd ed. sec. 5.11",
+            &r,
+            &format!("probe.inside.{axis}"),
+            exact,
+            exact,
+        );
+    }
+}
+
+/// The axial field of rigid cylinders from a thin disk to a long rod
+/// (length over diameter 0.1, 1 and 4; Br 1.2 T): B_z one radius above
+/// the face (E. P. Derby, S. Olbert, Am. J. Phys. 78, 2010).
+#[test]
+fn cylinder_axis_field_from_disk_to_rod_at_default_settings() {
+    for l_over_d in [0.1, 1.0, 4.0] {
+        let radius = 5.0;
+        let length = 2.0 * radius * l_over_d;
+        let text = format!(
+            "[study]\ntitle = \"cylinder\"\ngeometry = \"axisymmetric\"\nunit = \"mm\"\n\
+             [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet\"\n{OUTPUT}\
+             [[part]]\nname = \"magnet\"\nmaterial = \"rigid\"\nmagnetization = \"+z\"\nrect = {{ from = [0, 0], to = [{radius}, {length}] }}\n\
+             [[probe]]\nname = \"above\"\npoint = [0, {}]\n",
+            length + radius
+        );
+        let r = solve_case_text(&text, &[]);
+        let exact = cylinder_axis_bz(1.2, radius * 1e-3, length * 1e-3, (length + radius) * 1e-3);
+        check(
+            "cylinder on-axis B_z, L/D 0.1 to 4, at default settings, within its error",
+            "Derby & Olbert 2010",
+            &r,
+            "probe.above.bz",
+            exact,
+            exact,
+        );
+    }
+}
