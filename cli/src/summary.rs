@@ -138,14 +138,13 @@ fn accuracy_line(r: &study::Results) -> String {
     let Some(a) = &r.adaptive else {
         return "  accuracy: off (mesh as given, no error estimates)\n".into();
     };
-    let last = a.steps.last();
-    let worst = last.and_then(|s| s.worst_relative_error).unwrap_or(f64::NAN);
-    let which = last.and_then(|s| s.worst_value.clone()).unwrap_or_default();
-    format!(
-        "  accuracy: {} {} % after {} mesh(es), largest estimated error {:.3} % ({which})\n",
-        if a.reached { "reached" } else { "NOT REACHED:" },
-        100.0 * a.target,
-        a.steps.len(),
-        100.0 * worst
-    )
+    let state = if a.reached { "reached" } else { "NOT REACHED:" };
+    let (target, meshes) = (100.0 * a.target, a.steps.len());
+    match a.worst() {
+        Some((worst, which)) => format!(
+            "  accuracy: {state} {target} % after {meshes} mesh(es), largest estimated error {:.3} % ({which})\n",
+            100.0 * worst
+        ),
+        None => format!("  accuracy: {state} {target} % after {meshes} mesh(es), no error estimate (one mesh only)\n"),
+    }
 }

@@ -234,3 +234,19 @@ fn steel_designations_resolve_or_name_the_closest_sourced_grade() {
     let (code, text, _) = solve("s12L14", &plate("12L14"));
     assert_eq!(code, 0, "{text}");
 }
+
+/// A study whose first mesh cannot be refined within max_elements has no
+/// error estimate at all: the summary and the warning say so in words (they
+/// once printed "NaN %" and an empty value name).
+#[test]
+fn a_single_mesh_says_it_has_no_estimate() {
+    let (code, text, json) = solve(
+        "onemesh",
+        &format!("[study]\ngeometry = \"planar\"\ndepth = \"10 mm\"\n[mesh]\nsize = 2\nmax_elements = 4000\n{MAGNET}[[probe]]\nname = \"p\"\npoint = [5, 10]\n{OUTPUT}"),
+    );
+    assert_eq!(code, 0, "{text}");
+    assert!(!text.contains("NaN") && !json.contains("NaN"), "{text}\n{json}");
+    assert!(json.contains("no value has an error estimate"), "{json}");
+    let parsed: serde_json::Value = serde_json::from_str(&json).unwrap();
+    assert_eq!(parsed["errors"], serde_json::json!({}), "no value has an error entry: {json}");
+}

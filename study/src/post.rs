@@ -19,15 +19,18 @@ pub fn results_with_errors(model: &Model, sol: &Solution, estimate: crate::estim
     r.errors = estimate.errors;
     r.errors.retain(|k, e| e.is_finite() && r.values.contains_key(k));
     if let Some(a) = estimate.adaptive.as_ref().filter(|a| !a.reached) {
-        let last = a.steps.last();
-        r.warnings.push(format!(
-            "the accuracy asked ({} %) was not reached: the largest estimated error is {:.3} % ({}) on {} triangles, and the next refinement would pass [mesh] max_elements ({}) or the solution did not converge",
-            100.0 * a.target,
-            100.0 * last.and_then(|s| s.worst_relative_error).unwrap_or(f64::NAN),
-            last.and_then(|s| s.worst_value.clone()).unwrap_or_default(),
-            last.map_or(0, |s| s.elements),
-            model.mesh.max_elements
-        ));
+        let target = 100.0 * a.target;
+        let (elements, limit) = (a.steps.last().map_or(0, |s| s.elements), model.mesh.max_elements);
+        r.warnings.push(match a.worst() {
+            Some((e, name)) => format!(
+                "the accuracy asked ({target} %) was not reached: the largest estimated error is {:.3} % ({name}) on {elements} triangles, and the next refinement would pass [mesh] max_elements ({limit}) or the solution did not converge",
+                100.0 * e
+            ),
+            // One mesh only: there was no second one to compare with.
+            None => format!(
+                "the accuracy asked ({target} %) was not reached and no value has an error estimate: the first mesh ({elements} triangles) could not be refined without passing [mesh] max_elements ({limit}), or its solution did not converge; raise max_elements or coarsen [mesh] size"
+            ),
+        });
     }
     r.adaptive = estimate.adaptive;
     r.expect = evaluate(model, &r.values, &r.errors);

@@ -334,3 +334,12 @@ pub struct Adaptive {
     /// The meshes solved, coarsest first; the values are from the last.
     pub steps: Vec<Step>,
 }
+
+impl Adaptive {
+    /// The last mesh's largest estimated relative error and the value it
+    /// belongs to; None after a single mesh (nothing to compare with).
+    pub fn worst(&self) -> Option<(f64, &str)> {
+        let last = self.steps.last()?;
+        Some((last.worst_relative_error?, last.worst_value.as_deref()?))
+    }
+}

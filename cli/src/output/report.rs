@@ -29,15 +29,16 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
     );
     match &r.adaptive {
         Some(a) => {
-            let last = a.steps.last();
+            let worst = match a.worst() {
+                Some((e, name)) => format!("largest estimated error {:.3} % ({name})", 100.0 * e),
+                None => "no error estimate (one mesh only)".into(),
+            };
             let _ = writeln!(
                 s,
-                "Accuracy: {} % asked, {} after {} nested mesh(es); largest estimated error {:.3} % ({}). Every value below carries its estimated error (\u{b1}); results.json has them all under `errors`.\n",
+                "Accuracy: {} % asked, {} after {} nested mesh(es); {worst}. Every value below carries its estimated error (\u{b1}); results.json has them all under `errors`.\n",
                 100.0 * a.target,
                 if a.reached { "reached" } else { "NOT reached" },
                 a.steps.len(),
-                100.0 * last.and_then(|x| x.worst_relative_error).unwrap_or(f64::NAN),
-                last.and_then(|x| x.worst_value.clone()).unwrap_or_default()
             );
         }
         None => {
