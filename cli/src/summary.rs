@@ -140,9 +140,12 @@ fn accuracy_line(r: &study::Results) -> String {
     };
     let state = if a.reached { "reached" } else { "NOT REACHED:" };
     let (target, meshes) = (100.0 * a.target, a.steps.len());
+    let field = a
+        .energy_norm
+        .map_or(String::new(), |e| format!("; the whole field: {:.3} % in the energy norm", 100.0 * e));
     match a.worst() {
         Some((worst, which)) => format!(
-            "  accuracy: {state} {target} % after {meshes} mesh(es), largest estimated error {:.3} % ({which})\n",
+            "  accuracy: {state} {target} % after {meshes} mesh(es), largest estimated error {:.3} % ({which}){field}\n",
             100.0 * worst
         ),
         None => format!("  accuracy: {state} {target} % after {meshes} mesh(es), no error estimate (one mesh only)\n"),

@@ -160,6 +160,22 @@ impl History {
     }
 }
 
+/// The global error in the energy norm, relative to the field's energy
+/// norm, from the estimate of the coenergy (else the energy): the
+/// Galerkin solution minimizes a functional whose value at the solution is
+/// minus the coenergy, and on nested meshes the functional's error is half
+/// the squared energy norm of the field's error (W_h - W = ||u - u_h||^2 /
+/// 2, S. C. Brenner, L. R. Scott, The Mathematical Theory of Finite Element
+/// Methods, 3rd ed., 2008, sec. 0.3 and 2.5; exact for a linear study, to
+/// first order for a saturating one). So ||e|| / ||u|| = sqrt(e_W / |W|),
+/// with ||u||^2 = 2 |W|.
+pub(crate) fn energy_norm(values: &BTreeMap<String, f64>, errors: &BTreeMap<String, f64>) -> Option<f64> {
+    ["coenergy", "energy"].iter().find_map(|name| {
+        let (w, e) = (values.get(*name)?.abs(), *errors.get(*name)?);
+        (w > 0.0 && e.is_finite()).then(|| (e / w).sqrt())
+    })
+}
+
 /// The values that drive refinement: those asked for, else the energy.
 /// A force on parts that touch the outer boundary is left out: no surface
 /// closes around them, it does not converge, and a warning already says so.

@@ -333,6 +333,9 @@ pub struct Adaptive {
     pub reached: bool,
     /// The meshes solved, coarsest first; the values are from the last.
     pub steps: Vec<Step>,
+    /// The estimated error of the whole field in the energy norm, relative
+    /// to the field's own (`estimate::energy_norm`); None after one mesh.
+    pub energy_norm: Option<f64>,
 }
 
 impl Adaptive {

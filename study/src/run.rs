@@ -1,7 +1,7 @@
 //! Running one study: mesh, solve and post-process a model. Progress goes
 //! to a callback; nothing here prints.
 
-use crate::estimate::{driving, undecided, worst, Estimate, History};
+use crate::estimate::{driving, energy_norm, undecided, worst, Estimate, History};
 use crate::lower::{self, StudyError};
 use crate::model::{Exposure, Model};
 use crate::results::Results;
@@ -169,7 +169,12 @@ pub fn solve_to_accuracy<R>(
         let Some(next) = next else {
             let estimate = Estimate {
                 errors: history.estimate.clone(),
-                adaptive: Some(Adaptive { target, reached, steps }),
+                adaptive: Some(Adaptive {
+                    target,
+                    reached,
+                    steps,
+                    energy_norm: energy_norm(&results.values, &history.estimate),
+                }),
                 results: Some(results),
             };
             return Ok(finish(&sol, estimate));

@@ -168,3 +168,50 @@ fn cylinder_axis_field_from_disk_to_rod_at_default_settings() {
         );
     }
 }
+
+/// The global energy-norm estimate against an exact field energy: a
+/// uniformly magnetized sphere (Br 1.2 T, radius 10 mm, recoil
+/// permeability one) and a long round bar across its axis store W = mu0 N M^2 V / 2 with
+/// demagnetizing factors N = 1/3 and 1/2 (J. A. Osborn, Demagnetizing
+/// factors of the general ellipsoid, Phys. Rev. 67, 1945). The field's
+/// error in the energy norm is sqrt(2 |W_h - W|) (Galerkin: the
+/// functional's error is half the squared error norm), relative to
+/// sqrt(2 W); it must lie within twice the estimate, and the estimate
+/// within 20 times it.
+#[test]
+fn energy_norm_estimate_against_the_exact_energy_of_round_magnets() {
+    let mu0 = 4e-7 * std::f64::consts::PI;
+    let m = 1.2 / mu0;
+    for (geometry, n, volume) in [
+        ("axisymmetric", 1.0 / 3.0, 4.0 / 3.0 * std::f64::consts::PI * 1e-6),
+        ("planar", 0.5, std::f64::consts::PI * 1e-4),
+    ] {
+        let depth = if geometry == "planar" { "depth = \"1 m\"\n" } else { "" };
+        let text = format!(
+            "[study]\ntitle = \"round magnet\"\ngeometry = \"{geometry}\"\nunit = \"mm\"\n{depth}\
+             [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet\"\n{OUTPUT}\
+             [[part]]\nname = \"ball\"\nmaterial = \"rigid\"\nmagnetization = \"+{}\"\ncircle = {{ center = [0, 0], radius = 10 }}\n",
+            if geometry == "planar" { "y" } else { "z" }
+        );
+        let r = solve_case_text(&text, &[]);
+        let exact = 0.5 * mu0 * n * m * m * volume;
+        let w = r.values["energy"];
+        let truth = ((w - exact).abs() / exact).sqrt();
+        let estimate = r.adaptive.as_ref().and_then(|a| a.energy_norm).expect("an energy-norm estimate");
+        eprintln!("{geometry}: energy {w:.9e} exact {exact:.9e}; energy norm true {truth:.2e} estimated {estimate:.2e}");
+        assert!((w - exact).abs() <= TARGET * exact, "{geometry}: energy {w} against {exact}");
+        assert!(truth <= 2.0 * estimate, "{geometry}: true {truth:e} more than twice the estimate {estimate:e}");
+        assert!(
+            estimate <= 20.0 * truth,
+            "{geometry}: estimate {estimate:e} more than 20 times the true {truth:e}"
+        );
+        // The table records the energy (its error is the squared energy norm's half).
+        record_estimated(
+            "field energy of round magnets at default settings, within its error (and the energy norm within its estimate)",
+            "demagnetizing factors 1/3 and 1/2 (Osborn 1945)",
+            TARGET,
+            (w - exact).abs() / exact,
+            r.errors["energy"] / exact,
+        );
+    }
+}
