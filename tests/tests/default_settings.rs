@@ -215,3 +215,50 @@ fn energy_norm_estimate_against_the_exact_energy_of_round_magnets() {
         );
     }
 }
+
+/// Two long round conductors (radius 2 mm, 1 kA each, the same way, 10 mm
+/// apart) attract with mu0 I^2 / (2 pi d) per metre, exactly: the field
+/// outside a round conductor is a line current's (Ampere's force law; J. D.
+/// Jackson, Classical Electrodynamics, 3rd ed., 1999, sec. 5.2). A rigid
+/// round magnet (Br 1.2 T, radius 5 mm, recoil permeability one) magnetized
+/// at 30 degrees to a uniform 0.1 T field feels the torque m x B0 with
+/// m = Br A / mu0 per metre (Jackson sec. 5.7).
+#[test]
+fn conductor_pull_and_magnet_torque_at_default_settings() {
+    let mu0 = 4e-7 * std::f64::consts::PI;
+    let text = format!(
+        "[study]\ntitle = \"conductors\"\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = \"1 m\"\n{OUTPUT}\
+         [[part]]\nname = \"left\"\nmaterial = \"air\"\ncurrent = \"1000 A\"\ncircle = {{ center = [-5, 0], radius = 2 }}\n\
+         [[part]]\nname = \"right\"\nmaterial = \"air\"\ncurrent = \"1000 A\"\ncircle = {{ center = [5, 0], radius = 2 }}\n\
+         [[force]]\nname = \"pull\"\nparts = [\"right\"]\n"
+    );
+    let r = solve_case_text(&text, &[]);
+    let exact = -mu0 * 1e6 / (2.0 * std::f64::consts::PI * 0.01);
+    check(
+        "parallel conductors attracting at default settings, within its error",
+        "Ampere's force law",
+        &r,
+        "force.pull.x",
+        exact,
+        exact.abs(),
+    );
+
+    let text = format!(
+        "[study]\ntitle = \"torque\"\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = \"1 m\"\napplied_field = [\"0.1 T\", \"0 T\"]\n\
+         [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet\"\n{OUTPUT}\
+         [[part]]\nname = \"magnet\"\nmaterial = \"rigid\"\nmagnetization = \"30 deg\"\ncircle = {{ center = [0, 0], radius = 5 }}\n\
+         [[force]]\nname = \"turn\"\nparts = [\"magnet\"]\n"
+    );
+    let r = solve_case_text(&text, &[]);
+    let m = 1.2 / mu0 * std::f64::consts::PI * 25e-6;
+    // m at 30 degrees, B0 along +x: the torque m x B0 is -m B0 sin 30 about +z.
+    let exact = -m * 0.1 * 0.5;
+    check(
+        "magnet torque in a uniform field at default settings, within its error",
+        "N = m x B (Jackson 1999 sec. 5.7)",
+        &r,
+        "force.turn.torque",
+        exact,
+        exact.abs(),
+    );
+}
