@@ -250,14 +250,7 @@ impl SplitExterior<'_> {
     /// ids, refinement edge first.
     fn apply(&self, corners: &[[usize; 3]], nodes: &mut Vec<[f64; 2]>) -> ExteriorDisk {
         let disk = self.disk;
-        let first_free = nodes.len();
-        let shift = |g: usize| if g < self.old_physical { g } else { g - self.old_physical + first_free };
-        let mut global: Vec<usize> = disk.global.iter().map(|&g| shift(g)).collect();
-        for (local, &g) in global.iter().enumerate() {
-            if g >= first_free {
-                nodes.push(disk.mapped[local]);
-            }
-        }
+        let mut global = disk.renumbered(self.old_physical, nodes);
         let mut mapped = disk.mapped.clone();
         // Old global id -> local id, for the corners handed in as global ids.
         let local_of: HashMap<usize, usize> = disk.global.iter().enumerate().map(|(l, &g)| (g, l)).collect();
@@ -304,26 +297,11 @@ impl SplitExterior<'_> {
 mod tests {
     use super::Split;
     use crate::mesh::{BoundaryTag, Mesh};
-    use crate::spec::{MeshSpec, OuterBoundary, PartSpec, Shape, Symmetry};
+    use crate::spec::Symmetry;
     use std::collections::HashMap;
 
     fn magnet(symmetry: Symmetry) -> Mesh {
-        let spec = MeshSpec {
-            symmetry,
-            parts: vec![PartSpec {
-                shape: Shape::Rect {
-                    from: [0.0, 0.0],
-                    to: [0.01, 0.02],
-                },
-                mesh_size: 0.002,
-            }],
-            refinements: Vec::new(),
-            outer: OuterBoundary::Open,
-            min_angle_deg: 28.0,
-            grading: 1.3,
-            max_triangles: 1_000_000,
-        };
-        crate::build_mesh(&spec).unwrap()
+        crate::build_mesh(&crate::refine::tests::spec(symmetry)).unwrap()
     }
 
     /// Conformity: an edge used by one triangle only lies on a boundary

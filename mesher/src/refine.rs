@@ -163,6 +163,28 @@ impl Mesh {
     }
 }
 
+impl ExteriorDisk {
+    /// The disk's global node ids once the physical nodes (the first
+    /// `old_physical` of `nodes`) have grown to all of `nodes`: its
+    /// exterior-only nodes move after them, appended to `nodes` at their
+    /// mapped positions, in their old order.
+    pub(crate) fn renumbered(&self, old_physical: usize, nodes: &mut Vec<[f64; 2]>) -> Vec<usize> {
+        let first_free = nodes.len();
+        let global: Vec<usize> = self
+            .global
+            .iter()
+            .map(|&g| if g < old_physical { g } else { g - old_physical + first_free })
+            .collect();
+        for (local, &g) in global.iter().enumerate() {
+            if g >= first_free {
+                debug_assert_eq!(g, nodes.len());
+                nodes.push(self.mapped[local]);
+            }
+        }
+        global
+    }
+}
+
 /// The exterior disk refined: rim edges share the domain's rim midpoints,
 /// every other edge gets an exterior-only node (numbered after all
 /// physical nodes, whose count grew, so old exterior-only ids shift too).
@@ -173,20 +195,8 @@ fn refine_exterior(
     rim_edges: &std::collections::HashSet<(usize, usize)>,
     nodes: &mut Vec<[f64; 2]>,
 ) -> ExteriorDisk {
-    let first_free = nodes.len();
-    let global: Vec<usize> = disk
-        .global
-        .iter()
-        .map(|&g| if g < old_physical { g } else { g - old_physical + first_free })
-        .collect();
-    for (local, &g) in global.iter().enumerate() {
-        if g >= first_free {
-            debug_assert_eq!(g, nodes.len());
-            nodes.push(disk.mapped[local]);
-        }
-    }
+    let mut global = disk.renumbered(old_physical, nodes);
     let mut mapped = disk.mapped.clone();
-    let mut global = global;
     let mut local_mids: HashMap<(usize, usize), usize> = HashMap::new();
     let mut triangles = Vec::with_capacity(4 * disk.triangles.len());
     for t in &disk.triangles {
@@ -222,10 +232,11 @@ fn refine_exterior(
 }
 
 #[cfg(test)]
-mod tests {
+pub(crate) mod tests {
     use crate::spec::{MeshSpec, OuterBoundary, PartSpec, Shape, Symmetry};
 
-    fn spec(symmetry: Symmetry) -> MeshSpec {
+    /// A 10 x 20 mm part in open space, 2 mm elements.
+    pub(crate) fn spec(symmetry: Symmetry) -> MeshSpec {
         MeshSpec {
             symmetry,
             parts: vec![PartSpec {
