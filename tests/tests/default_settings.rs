@@ -262,3 +262,40 @@ fn conductor_pull_and_magnet_torque_at_default_settings() {
         exact.abs(),
     );
 }
+
+/// Action and reaction: the forces on two magnets of unlike size, offset and
+/// magnetized at an angle to each other, cancel exactly (Newton's third law
+/// for magnetostatic forces between bodies in air; J. D. Jackson, Classical
+/// Electrodynamics, 3rd ed., 1999, sec. 5.7). Each comes from its own
+/// stress band, so their discretization errors differ, and the sum, whose
+/// exact value is zero, must lie within twice the sum of their estimates.
+#[test]
+fn forces_on_two_magnets_cancel_within_their_errors_at_default_settings() {
+    let text = format!(
+        "[study]\ntitle = \"third law\"\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = \"1 m\"\n\
+         [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet\"\n{OUTPUT}\
+         [[part]]\nname = \"big\"\nmaterial = \"rigid\"\nmagnetization = \"+y\"\nrect = {{ from = [-10, -5], to = [10, 5] }}\n\
+         [[part]]\nname = \"small\"\nmaterial = \"rigid\"\nmagnetization = \"30 deg\"\nrect = {{ from = [4, 8], to = [12, 12] }}\n\
+         [[force]]\nname = \"on_big\"\nparts = [\"big\"]\n[[force]]\nname = \"on_small\"\nparts = [\"small\"]\n"
+    );
+    let r = solve_case_text(&text, &[]);
+    let scale = r.values["force.on_small.magnitude"];
+    for axis in ["x", "y"] {
+        let (a, b) = (format!("force.on_big.{axis}"), format!("force.on_small.{axis}"));
+        let sum = r.values[&a] + r.values[&b];
+        let estimate = r.errors[&a] + r.errors[&b];
+        eprintln!("{axis}: {} + {} = {sum:e}, estimates {estimate:e}", r.values[&a], r.values[&b]);
+        assert!(
+            sum.abs() <= 2.0 * estimate,
+            "{axis}: the forces miss cancelling by {sum:e} against estimates {estimate:e}"
+        );
+        assert!(sum.abs() <= TARGET * scale, "{axis}: {sum:e} against |F| {scale}");
+        record_estimated(
+            "Newton's third law at default settings, within the forces' errors",
+            "action and reaction (Jackson 1999 sec. 5.7)",
+            TARGET,
+            sum.abs() / scale,
+            estimate / scale,
+        );
+    }
+}
