@@ -195,8 +195,13 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
         if !rel.is_finite() {
             return Err(SolveError::NotFinite { iteration: it });
         }
-        let recoil_exact = exact_first && rel < 1e-2 * settings.residual_tolerance;
-        if (linear && rel < 1e-6) || recoil_exact || (rel < settings.residual_tolerance && error < settings.update_tolerance.max(1e-14)) || rel < 1e-14 {
+        // A residual a hundredth of the tolerance has converged whatever
+        // the update monitor says: the cold recoil-line step of a magnet
+        // far from its knee ends there, and so does any later step, since
+        // Newton's next one would only square that residual (measured: a
+        // bare knee magnet took a third step from 2.6e-13 to 1.9e-14).
+        let tiny = rel < 1e-2 * settings.residual_tolerance || rel < 1e-14;
+        if (linear && rel < 1e-6) || tiny || (rel < settings.residual_tolerance && error < settings.update_tolerance.max(1e-14)) {
             report.converged = true;
             break;
         }
