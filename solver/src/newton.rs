@@ -170,7 +170,7 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
         // (a single-precision factor and conjugate gradients to the forcing
         // term). Linear studies and exact Newton take exact steps.
         let eta = forcing.next(rel_now);
-        let exact_first = knee_only && it == 1 && !warm;
+        let exact_first = knee_only && it == 1;
         let inexact = settings.reuse_factorization && !linear && !exact_first;
         let reuse = inexact && kind(rel_now) == Tangent::Exact;
         let eta = if inexact { eta } else { 0.0 };
