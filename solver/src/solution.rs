@@ -170,6 +170,25 @@ impl<'m> Solution<'m> {
         Some(self.reduced_potential_at(p)? + self.problem.applied_potential(p))
     }
 
+    /// B and the total potential at a physical point from one search, or
+    /// None outside: for pictures that sample both on a grid.
+    pub fn b_and_potential_at(&self, p: [f64; 2]) -> Option<([f64; 2], f64)> {
+        let (e, lam) = self.element_at(p)?;
+        let op = point_op(
+            self.elements.geometry(e),
+            self.elements.order,
+            self.symmetry(),
+            self.elements.placement(e),
+            lam,
+            1.0,
+        );
+        let a = self.elements.gather(e, &self.reduced);
+        Some((
+            flux_density(&op, &a, self.background(e)),
+            potential(&op, &a) + self.problem.applied_potential(p),
+        ))
+    }
+
     /// The reaction potential alone (applied field left out) at a physical point, or None outside.
     pub fn reduced_potential_at(&self, p: [f64; 2]) -> Option<f64> {
         let (e, lam) = self.element_at(p)?;

@@ -5,6 +5,7 @@
 use super::svg::escape;
 use crate::case::Model;
 use mesher::{BoundaryTag, Symmetry};
+use rayon::prelude::*;
 use solver::Solution;
 
 /// Perceptually uniform sequential map (viridis, the CC0 colour map of
@@ -54,20 +55,21 @@ pub fn field_map(model: &Model, sol: &Solution) -> String {
     let scale = w / (hi[0] - lo[0]).max(hi[1] - lo[1]);
     let (pw, ph) = ((hi[0] - lo[0]) * scale, (hi[1] - lo[1]) * scale);
     let tx = |p: [f64; 2]| ((p[0] - lo[0]) * scale, ph - (p[1] - lo[1]) * scale);
-    let inside = |x: &[[f64; 2]; 3]| x.iter().any(|p| p[0] >= lo[0] && p[0] <= hi[0] && p[1] >= lo[1] && p[1] <= hi[1]);
-    let shown: Vec<usize> = (0..mesh.triangles.len()).filter(|&t| inside(&mesh.triangle_points(t))).collect();
-    // |B| on a grid of CELL-pixel squares, runs of equal colour merged: far
-    // smaller than one polygon per triangle, and the same picture.
+    // |B| and the flux function on a grid of CELL-pixel squares (runs of
+    // equal colour merged below): far smaller than one polygon per
+    // triangle, and the same picture. Tens of thousands of point searches,
+    // so the rows are sampled in parallel.
     let (nx, ny) = ((pw / CELL).ceil() as usize, (ph / CELL).ceil() as usize);
-    let mut grid = vec![f64::NAN; nx * ny];
-    for j in 0..ny {
-        for i in 0..nx {
-            let p = [lo[0] + (i as f64 + 0.5) * CELL / scale, hi[1] - (j as f64 + 0.5) * CELL / scale];
-            if let Some(f) = sol.field_at(p) {
-                grid[j * nx + i] = f.b[0].hypot(f.b[1]);
-            }
-        }
-    }
+    let axisymmetric = model.symmetry == Symmetry::Axisymmetric;
+    let samples: Vec<Option<([f64; 2], f64)>> = (0..nx * ny)
+        .into_par_iter()
+        .map(|k| {
+            let p = [lo[0] + ((k % nx) as f64 + 0.5) * CELL / scale, hi[1] - ((k / nx) as f64 + 0.5) * CELL / scale];
+            sol.b_and_potential_at(p).map(|(b, a)| (b, if axisymmetric { a * p[0] } else { a }))
+        })
+        .collect();
+    let mut grid: Vec<f64> = samples.iter().map(|s| s.map_or(f64::NAN, |(b, _)| b[0].hypot(b[1]))).collect();
+    let psi: Vec<f64> = samples.iter().map(|s| s.map_or(f64::NAN, |(_, a)| a)).collect();
     let mut sorted: Vec<f64> = grid.iter().copied().filter(|v| v.is_finite()).collect();
     spread_into_empty_cells(&mut grid, nx, ny);
     sorted.sort_by(f64::total_cmp);
@@ -114,7 +116,7 @@ pub fn field_map(model: &Model, sol: &Solution) -> String {
     }
     s += "</g>";
     s += &domain_edge(mesh, &tx, pw, ph);
-    s += &flux_lines(model, sol, &shown, &tx);
+    s += &flux_lines(&psi, nx, ny);
     s += "<g class=\"outlines\" stroke=\"white\" stroke-width=\"1.2\">";
     for (e, tag) in &mesh.boundary {
         if let BoundaryTag::Interface(..) = tag {
@@ -327,46 +329,50 @@ fn colour_bar(x: f64, y: f64, h: f64, scale: &ColourScale, peak: f64) -> String 
     s + "</g>"
 }
 
-/// Flux lines: contours of the flux function (A_z planar, r A_phi axisymmetric).
-fn flux_lines(model: &Model, sol: &Solution, shown: &[usize], tx: &dyn Fn([f64; 2]) -> (f64, f64)) -> String {
-    let mesh = sol.problem.mesh;
-    let axisym = model.symmetry == Symmetry::Axisymmetric;
-    let psi: Vec<f64> = (0..mesh.n_physical)
-        .map(|n| {
-            let a = sol.node_potential(n);
-            if axisym {
-                a * mesh.nodes[n][0]
-            } else {
-                a
-            }
-        })
-        .collect();
-    let vals = shown.iter().flat_map(|&t| mesh.triangles[t].map(|n| psi[n]));
-    let (lo, hi) = vals.fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), v| (a.min(v), b.max(v)));
+/// Flux lines: 23 contours of the flux function (A_z planar, r A_phi
+/// axisymmetric) by marching squares over the grid of cell centres, one
+/// path per level. Per-triangle segments were most of the picture's bytes
+/// on fine meshes, where a triangle is smaller than a pixel.
+fn flux_lines(psi: &[f64], nx: usize, ny: usize) -> String {
+    let (lo, hi) = psi
+        .iter()
+        .filter(|v| v.is_finite())
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &v| (a.min(v), b.max(v)));
     let mut s = String::from("<g class=\"fluxlines\" stroke=\"black\" stroke-width=\"0.8\" fill=\"none\">");
-    if hi.is_nan() || lo.is_nan() || hi <= lo {
+    // Also false when no sample was finite (lo and hi still infinite).
+    if hi.partial_cmp(&lo) != Some(std::cmp::Ordering::Greater) {
         return s + "</g>";
     }
     let levels = 24;
+    let at = |i: usize, j: usize| psi[j * nx + i];
+    let centre = |i: f64, j: f64| ((i + 0.5) * CELL, (j + 0.5) * CELL);
     for k in 1..levels {
         let level = lo + (hi - lo) * k as f64 / levels as f64;
-        for &t in shown {
-            let tri = mesh.triangles[t];
-            let mut cut = Vec::new();
-            for (i, j) in [(0, 1), (1, 2), (2, 0)] {
-                let (va, vb) = (psi[tri[i]], psi[tri[j]]);
-                if (va - level) * (vb - level) < 0.0 {
-                    let f = (level - va) / (vb - va);
-                    let (pa, pb) = (mesh.nodes[tri[i]], mesh.nodes[tri[j]]);
-                    cut.push(tx([pa[0] + f * (pb[0] - pa[0]), pa[1] + f * (pb[1] - pa[1])]));
+        let mut d = String::new();
+        for j in 0..ny.saturating_sub(1) {
+            for i in 0..nx.saturating_sub(1) {
+                // Corners counter-clockwise from the top left; each edge cut once at most.
+                let c = [(i, j), (i + 1, j), (i + 1, j + 1), (i, j + 1)];
+                let v = c.map(|(a, b)| at(a, b));
+                if v.iter().any(|x| !x.is_finite()) {
+                    continue;
+                }
+                let mut cuts = Vec::with_capacity(4);
+                for e in 0..4 {
+                    let (va, vb) = (v[e], v[(e + 1) % 4]);
+                    if (va - level) * (vb - level) < 0.0 {
+                        let f = (level - va) / (vb - va);
+                        let ((ia, ja), (ib, jb)) = (c[e], c[(e + 1) % 4]);
+                        cuts.push(centre(ia as f64 + f * (ib as f64 - ia as f64), ja as f64 + f * (jb as f64 - ja as f64)));
+                    }
+                }
+                for pair in cuts.chunks_exact(2) {
+                    d += &format!("M{:.1} {:.1}L{:.1} {:.1}", pair[0].0, pair[0].1, pair[1].0, pair[1].1);
                 }
             }
-            if cut.len() == 2 {
-                s += &format!(
-                    "<line x1=\"{:.1}\" y1=\"{:.1}\" x2=\"{:.1}\" y2=\"{:.1}\"/>",
-                    cut[0].0, cut[0].1, cut[1].0, cut[1].1
-                );
-            }
+        }
+        if !d.is_empty() {
+            s += &format!("<path d=\"{d}\"/>");
         }
     }
     s + "</g>"

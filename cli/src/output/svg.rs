@@ -2,6 +2,7 @@
 
 use crate::case::Model;
 use mesher::{Mesh, Region};
+use std::fmt::Write as _;
 
 /// Colour of region `i` (air is light grey), from a qualitative palette.
 pub fn part_colour(i: Option<usize>) -> &'static str {
@@ -67,22 +68,27 @@ pub fn mesh_svg(model: &Model, mesh: &Mesh) -> String {
         "<title>{}</title><clipPath id=\"window\"><rect width=\"{w:.0}\" height=\"{hgt:.0}\"/></clipPath><g stroke=\"#555\" stroke-width=\"0.3\" clip-path=\"url(#window)\">",
         escape(&model.title)
     );
+    // One path per region, a closed subpath per triangle: the same
+    // picture as a polygon per triangle, in fewer bytes and allocations
+    // (a final mesh has tens of thousands of triangles).
+    let mut paths: Vec<String> = vec![String::new(); model.parts.len() + 1];
     for (t, tri) in mesh.triangles.iter().enumerate() {
         if !meets(tri) {
             continue;
         }
-        let pts: Vec<String> = tri
-            .iter()
-            .map(|&n| {
-                let (x, y) = tx(mesh.nodes[n]);
-                format!("{x:.2},{y:.2}")
-            })
-            .collect();
-        let part = match mesh.regions[t] {
-            Region::Part(i) => Some(i),
-            Region::Air => None,
+        let slot = match mesh.regions[t] {
+            Region::Part(i) => i + 1,
+            Region::Air => 0,
         };
-        s += &format!("<polygon points=\"{}\" fill=\"{}\"/>", pts.join(" "), part_colour(part));
+        let Some(d) = paths.get_mut(slot) else { continue };
+        for (k, &n) in tri.iter().enumerate() {
+            let (x, y) = tx(mesh.nodes[n]);
+            let _ = write!(d, "{}{x:.2} {y:.2}", if k == 0 { 'M' } else { 'L' });
+        }
+        d.push('Z');
+    }
+    for (slot, d) in paths.iter().enumerate().filter(|(_, d)| !d.is_empty()) {
+        s += &format!("<path d=\"{d}\" fill=\"{}\"/>", part_colour(slot.checked_sub(1)));
     }
     s += "</g><g font-family=\"sans-serif\" font-size=\"13\">";
     let mut y = hgt + 18.0;
