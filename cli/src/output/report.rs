@@ -65,8 +65,8 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
             let _ = writeln!(
                 s,
                 "| {n} | {} | {} | {} | {} |",
-                eng(fr.vector[0], "N"),
-                eng(fr.vector[1], "N"),
+                crate::summary::force_component(r, n, fr, 0, model.symmetry),
+                crate::summary::force_component(r, n, fr, 1, model.symmetry),
                 eng_pm(fr.magnitude, r.errors.get(&format!("force.{n}.magnitude")).copied(), "N"),
                 if fr.unreliable {
                     "touches the outer boundary: unreliable"
