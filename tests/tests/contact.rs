@@ -9,21 +9,25 @@
 //! J. Vokoun et al., J. Magn. Magn. Mater. 321, 2009, 3758.
 
 use validation::reference::coaxial_cylinders_force;
-use validation::{record, rel, solve_case_text};
+use validation::{assert_honest_against, record_estimated, rel, solve_case_text};
 
 /// A rigid magnet (R 10 mm, L 5 mm, Br 1.2 T) above a plate of mu_r 1e4,
 /// 160 mm across and 40 mm thick. Against the image of a perfect magnet
 /// every gap came out 2.1e-4 low; with the image scaled by the factor
 /// (mu_r - 1)/(mu_r + 1) for mu_r 1e4 the gaps agree within 1e-4 and
-/// contact within 0.16 %, so the plate's finite size adds nothing visible.
-/// The test asks 0.3 % accuracy (the check is 1 %) to stay short, and holds
-/// each estimate to the true error.
+/// contact within 0.16 % (at 0.3 % accuracy), so the plate's finite size
+/// adds nothing visible. At default settings (0.1 %) each pull must be
+/// within 0.1 % and within twice its estimate, and the estimate is held
+/// loose only against the reference's own 1e-4 (`assert_honest_against`).
+/// How well the image method stands for this plate: agreement within 1e-4
+/// on hand-set meshes (above), so a smaller true error is not resolved.
+const REFERENCE: f64 = 1e-4;
+
 const CASE: &str = r#"
 [study]
 title = "magnet on a thick plate"
 geometry = "axisymmetric"
 unit = "mm"
-accuracy = "0.3 %"
 
 [params]
 gap = 0
@@ -71,17 +75,15 @@ fn the_pull_at_contact_and_across_a_closing_gap_matches_the_image_method() {
         let image = (1e4 - 1.0) / (1e4 + 1.0);
         let exact = -image * coaxial_cylinders_force(1.2, 1.2, 0.01, 0.01, 0.005, 0.005, 2.0 * gap_mm * 1e-3);
         let e = rel(f, exact);
-        eprintln!(
-            "gap {gap_mm} mm: pull {f:.5} N, image method {exact:.5} N, error {e:.2e}, estimated {:.2e}",
-            r.errors["force.pull.z"] / exact.abs()
-        );
-        record(
-            &format!("pull of a magnet on steel at gap {gap_mm} mm"),
+        let estimated = r.errors["force.pull.z"];
+        record_estimated(
+            &format!("pull of a magnet on steel at gap {gap_mm} mm, default settings, within its error"),
             "image method, Vokoun et al. 2009",
-            0.01,
+            1e-3,
             e,
+            estimated / exact.abs(),
         );
-        assert!(e < 0.01, "gap {gap_mm} mm: {f} N against {exact} N");
+        assert_honest_against(&format!("gap {gap_mm} mm"), f, estimated, exact, exact.abs(), 1e-3, REFERENCE);
         pulls.push(f);
     }
     // Without a jump: the pull grows steadily as the gap closes.

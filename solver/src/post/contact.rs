@@ -113,3 +113,70 @@ pub fn interface_force(solution: &Solution, in_set: &dyn Fn(ElementKind) -> bool
     }
     Some(sum)
 }
+
+/// The stress the band's weight g picks up on other parts' faces towards
+/// air, to be added back (force [x, y] and torque about `torque_center`).
+///
+/// The band gives F = -integral over air of T grad g = the set's air faces
+/// minus the integral of g T n over the other parts' air faces (n out of
+/// the air). g is 0 on other parts, but a node where the set touches one
+/// is the set's (g = 1), so on the other part's face next to a contact g
+/// falls from 1 to 0 across one edge. That edge's g T n is no force on the
+/// set, and leaving it in made the pull of a magnet resting flat on steel
+/// converge as h (errors 0.60, 0.69, 0.31, 0.16 % on four nested meshes).
+pub fn band_face_term(solution: &Solution, weight: &[f64], in_set: &dyn Fn(ElementKind) -> bool, torque_center: [f64; 2]) -> [f64; 3] {
+    let els = &solution.elements;
+    let axisym = solution.symmetry() == Symmetry::Axisymmetric;
+    let is_other = |k: ElementKind| matches!(k, ElementKind::Part(_)) && !in_set(k);
+    // Edges with g > 0 at an end, each with the elements on either side.
+    let mut edges: Vec<((usize, usize), usize)> = Vec::new();
+    for e in 0..els.n_physical {
+        for [a, b] in EDGES {
+            let (na, nb) = (els.nodes[e][a], els.nodes[e][b]);
+            if weight[na] > 0.0 || weight[nb] > 0.0 {
+                edges.push(((na.min(nb), na.max(nb)), e));
+            }
+        }
+    }
+    edges.sort_unstable();
+    let mut sum = [0.0; 3];
+    for w in edges.windows(2).filter(|w| w[0].0 == w[1].0) {
+        let (e1, e2) = (w[0].1, w[1].1);
+        let (air, wall) = match (els.kinds[e1], els.kinds[e2]) {
+            (ElementKind::Air, k) if is_other(k) => (e1, e2),
+            (k, ElementKind::Air) if is_other(k) => (e2, e1),
+            _ => continue,
+        };
+        let (na, nb) = w[0].0;
+        let (pa, pb) = (els.positions[na], els.positions[nb]);
+        let d = [pb[0] - pa[0], pb[1] - pa[1]];
+        let length = d[0].hypot(d[1]);
+        if length <= 0.0 {
+            continue;
+        }
+        // n out of the air: towards the other part's element.
+        let c = els.coords[wall];
+        let centroid = [(c[0][0] + c[1][0] + c[2][0]) / 3.0, (c[0][1] + c[1][1] + c[2][1]) / 3.0];
+        let mut n = [d[1] / length, -d[0] / length];
+        if (centroid[0] - pa[0]) * n[0] + (centroid[1] - pa[1]) * n[1] < 0.0 {
+            n = [-n[0], -n[1]];
+        }
+        for (s, q) in GAUSS {
+            let x = [pa[0] + s * d[0], pa[1] + s * d[1]];
+            let g = weight[na] + s * (weight[nb] - weight[na]);
+            let b = solution.element_b_at(air, els.geometry(air).barycentric(x));
+            let half = 0.5 * (b[0] * b[0] + b[1] * b[1]);
+            let bn = b[0] * n[0] + b[1] * n[1];
+            let mut dl = q * length * g;
+            if axisym {
+                dl *= 2.0 * std::f64::consts::PI * x[0];
+            }
+            let traction = [NU0 * (bn * b[0] - half * n[0]) * dl, NU0 * (bn * b[1] - half * n[1]) * dl];
+            let arm = [x[0] - torque_center[0], x[1] - torque_center[1]];
+            sum[0] += traction[0];
+            sum[1] += traction[1];
+            sum[2] += arm[0] * traction[1] - arm[1] * traction[0];
+        }
+    }
+    sum
+}

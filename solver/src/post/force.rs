@@ -52,7 +52,13 @@ pub fn force_on(solution: &Solution, parts: &[usize], torque_center: [f64; 2]) -
     let touching = (0..n_nodes).any(|n| in_set_node[n] && other[n]);
     let mut weight = band_weight(solution, &in_set_node, &other, &in_set, touching);
     periodic_weight(solution, &mut weight);
-    let across = touching.then(|| super::contact::interface_force(solution, &in_set, torque_center)).flatten();
+    let across = touching
+        .then(|| super::contact::interface_force(solution, &in_set, torque_center))
+        .flatten()
+        .map(|f| {
+            let face = super::contact::band_face_term(solution, &weight, &in_set, torque_center);
+            [f[0] + face[0], f[1] + face[1], f[2] + face[2]]
+        });
     let contact = across.is_some();
     let at_boundary = touches_outer_boundary(solution, &in_set_node);
     let axisym = solution.symmetry() == Symmetry::Axisymmetric;
