@@ -159,9 +159,29 @@ impl History {
             change.insert(name.clone(), d);
             estimate.insert(name.clone(), e.max(PRECISION * scale(name, values)));
         }
+        pollution_floor(values, &mut estimate);
         self.previous = values.clone();
         self.change = change;
         self.estimate = estimate;
+    }
+}
+
+/// No field value at a point is claimed more accurate than the square of
+/// the field's relative error in the energy norm. A point far from the
+/// sources is set by the field's moments, which err as integrals do, as
+/// that square (the error of a smooth functional is bounded by the energy
+/// norms of the errors of the solution and of its dual problem; R. Becker,
+/// R. Rannacher, Acta Numerica 10, 2001), while its change between two
+/// meshes can pass near zero by chance. Measured on P1 (a cylinder's axis
+/// field, 1 % asked, a hand-set 3.2 mm mesh): at 47.4 mm a change of
+/// 1.6e-5 against an error of 1.8e-4, with the energy norm at 1.1e-2 (floor
+/// 1.3e-4). Integrals keep their own estimates: their errors are of that
+/// order already, and a floor would only loosen them.
+fn pollution_floor(values: &BTreeMap<String, f64>, estimate: &mut BTreeMap<String, f64>) {
+    let Some(norm) = energy_norm(values, estimate) else { return };
+    let floor = norm * norm;
+    for (name, e) in estimate.iter_mut().filter(|(n, _)| !is_integral(n)) {
+        *e = e.max(floor * scale(name, values));
     }
 }
 

@@ -96,6 +96,10 @@ pub struct MeshSettings {
     pub max_elements: usize,
     /// 1 (linear) or 2 (quadratic) triangles.
     pub order: u32,
+    /// Meshes refined before any enters an error estimate: a hand-set
+    /// first mesh far coarser than the default one is not yet in the
+    /// range where a value's change between meshes measures its error.
+    pub pilot_meshes: u32,
 }
 
 /// One part: outline, material, magnetization, current.

@@ -172,8 +172,13 @@ pub fn solve_to_accuracy<R>(
         let start = Instant::now();
         let Solved { field: sol, exposure } = solve_from(model, &mesh, std::mem::take(&mut guess), progress)?;
         let results = crate::post::results(model, &sol, 0.0);
-        let first_step = steps.is_empty();
-        history.update(&results.values, sol.report.n_dofs);
+        // Pilot meshes (a hand-set first mesh far coarser than the
+        // default) are refined before any value's change is trusted.
+        let pilots = model.mesh.pilot_meshes as usize;
+        let first_step = steps.len() <= pilots;
+        if steps.len() >= pilots {
+            history.update(&results.values, sol.report.n_dofs);
+        }
         let names = driving(model, &results);
         let (rel, name) = worst(&names, &results.values, &history.estimate);
         steps.push(Step {
@@ -195,7 +200,7 @@ pub fn solve_to_accuracy<R>(
         // Four times the triangles at least: a mesh past the limit is not even built.
         let room = 4 * elements(&mesh) <= model.mesh.max_elements;
         let next = (!reached && sol.report.converged && room)
-            .then(|| next_mesh(&mesh, &sol, steps.len(), &round))
+            .then(|| next_mesh(&mesh, &sol, steps.len().saturating_sub(pilots), &round))
             .filter(|next| elements(next) <= model.mesh.max_elements);
         let Some(next) = next else {
             let estimate = Estimate {

@@ -42,6 +42,7 @@ pub(super) fn mesh_settings(top: &Fields, ctx: &Context, parts: &[Item]) -> Resu
         grading: number("grading", DEFAULT_GRADING, GRADING_RANGE.0, GRADING_RANGE.1)?,
         max_elements: number("max_elements", DEFAULT_MAX_ELEMENTS as f64, 100.0, 1e9)? as usize,
         order: number("order", 2.0, 1.0, 4.0)?.round() as u32,
+        pilot_meshes: 0,
     })
 }
 
@@ -124,8 +125,24 @@ pub fn order_scale(order: u32) -> f64 {
     }
 }
 
+/// Meshes solved before the first that enters an error estimate, for a
+/// hand-set `[mesh] size` of `given` where the default first mesh would
+/// have `default_first`: one per halving that brings it within twice the
+/// default. On P1 (a cylinder's axis field, 1 % asked) a hand-set 9 mm,
+/// four times the default, stopped after two meshes with errors of 1.1 %
+/// and 0.17 % under estimates of 0.14 % and 0.0055 %: the values had
+/// barely moved on the first step. From 4.5 mm every estimate held.
+pub fn pilot_meshes(given: f64, default_first: f64) -> u32 {
+    let halvings = (given / (2.0 * default_first)).log2().ceil();
+    if halvings.is_finite() {
+        halvings.clamp(0.0, 4.0) as u32
+    } else {
+        0
+    }
+}
+
 /// A twentieth of the largest part extent when [mesh] size is not given.
-fn default_size(parts: &[Item], ctx: &Context) -> f64 {
+pub(super) fn default_size(parts: &[Item], ctx: &Context) -> f64 {
     let mut extent: f64 = 0.0;
     for p in parts {
         let Value::Table(entries) = &p.value else {

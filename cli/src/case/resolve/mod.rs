@@ -124,10 +124,16 @@ pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> R
     if !order_given {
         mesh.order = mesh_table::default_order(accuracy);
     }
-    if let (Some(target), false) = (accuracy, size_given) {
+    if let Some(target) = accuracy {
         // Quartic elements already start four times coarser (`order_scale`).
         let integrals_only = top.get("probe").is_none() && top.get("expect").is_none() && mesh.order <= 2;
-        mesh.size *= mesh_table::first_mesh_scale(target, integrals_only) * mesh_table::order_scale(mesh.order);
+        let default_first =
+            mesh_table::default_size(parts_items, &ctx) * mesh_table::first_mesh_scale(target, integrals_only) * mesh_table::order_scale(mesh.order);
+        if size_given {
+            mesh.pilot_meshes = mesh_table::pilot_meshes(mesh.size, default_first);
+        } else {
+            mesh.size = default_first;
+        }
     }
     let mut parts = Vec::new();
     let mut spans = Spans::default();
