@@ -120,17 +120,21 @@ impl<'m> Solution<'m> {
         }
     }
 
-    /// B in element e at barycentric point lam.
-    pub fn element_b_at(&self, e: usize, lam: [f64; 3]) -> [f64; 2] {
-        let op = point_op(
+    /// Shape values and gradients of element e at barycentric point lam, in its own placement.
+    fn op_at(&self, e: usize, lam: [f64; 3]) -> crate::element::PointOp {
+        point_op(
             self.elements.geometry(e),
             self.elements.order,
             self.symmetry(),
             self.elements.placement(e),
             lam,
             1.0,
-        );
-        flux_density(&op, &self.elements.gather(e, &self.reduced), self.background(e))
+        )
+    }
+
+    /// B in element e at barycentric point lam.
+    pub fn element_b_at(&self, e: usize, lam: [f64; 3]) -> [f64; 2] {
+        flux_density(&self.op_at(e, lam), &self.elements.gather(e, &self.reduced), self.background(e))
     }
 
     /// B at the centroid of element e.
@@ -174,14 +178,7 @@ impl<'m> Solution<'m> {
     /// None outside: for pictures that sample both on a grid.
     pub fn b_and_potential_at(&self, p: [f64; 2]) -> Option<([f64; 2], f64)> {
         let (e, lam) = self.element_at(p)?;
-        let op = point_op(
-            self.elements.geometry(e),
-            self.elements.order,
-            self.symmetry(),
-            self.elements.placement(e),
-            lam,
-            1.0,
-        );
+        let op = self.op_at(e, lam);
         let a = self.elements.gather(e, &self.reduced);
         Some((
             flux_density(&op, &a, self.background(e)),

@@ -63,6 +63,59 @@ fn interfaces(solution: &Solution, in_set: &dyn Fn(ElementKind) -> bool) -> Vec<
         .collect()
 }
 
+/// A straight edge from `pa` to `pb` with its unit normal pointing away
+/// from `element`'s centroid when `away`, towards it otherwise; None for a
+/// degenerate edge.
+struct Edge {
+    pa: [f64; 2],
+    d: [f64; 2],
+    length: f64,
+    t: [f64; 2],
+    n: [f64; 2],
+}
+
+impl Edge {
+    fn new(solution: &Solution, pa: [f64; 2], pb: [f64; 2], element: usize, away: bool) -> Option<Edge> {
+        let d = [pb[0] - pa[0], pb[1] - pa[1]];
+        let length = d[0].hypot(d[1]);
+        if length <= 0.0 {
+            return None;
+        }
+        let t = [d[0] / length, d[1] / length];
+        let c = solution.elements.coords[element];
+        let centroid = [(c[0][0] + c[1][0] + c[2][0]) / 3.0, (c[0][1] + c[1][1] + c[2][1]) / 3.0];
+        let mut n = [t[1], -t[0]];
+        let towards = (centroid[0] - pa[0]) * n[0] + (centroid[1] - pa[1]) * n[1] > 0.0;
+        if towards == away {
+            n = [-n[0], -n[1]];
+        }
+        Some(Edge { pa, d, length, t, n })
+    }
+
+    /// Adds the air-side stress nu0 ((B.n) B - |B|^2 n / 2) over the edge to
+    /// `sum` (force x, y and torque about `center`): three Gauss points,
+    /// times 2 pi r when axisymmetric; `field(x, s)` gives B at the point x
+    /// (at s along the edge) and a weight to scale the stress by.
+    fn add_stress(&self, sum: &mut [f64; 3], axisym: bool, center: [f64; 2], field: impl Fn([f64; 2], f64) -> ([f64; 2], f64)) {
+        let n = self.n;
+        for (s, q) in GAUSS {
+            let x = [self.pa[0] + s * self.d[0], self.pa[1] + s * self.d[1]];
+            let (b, weight) = field(x, s);
+            let half = 0.5 * (b[0] * b[0] + b[1] * b[1]);
+            let bn = b[0] * n[0] + b[1] * n[1];
+            let mut dl = q * self.length * weight;
+            if axisym {
+                dl *= 2.0 * std::f64::consts::PI * x[0];
+            }
+            let traction = [NU0 * (bn * b[0] - half * n[0]) * dl, NU0 * (bn * b[1] - half * n[1]) * dl];
+            let arm = [x[0] - center[0], x[1] - center[1]];
+            sum[0] += traction[0];
+            sum[1] += traction[1];
+            sum[2] += arm[0] * traction[1] - arm[1] * traction[0];
+        }
+    }
+}
+
 /// Force [Fx, Fy] (per metre of depth when planar) and torque about
 /// `torque_center` from the air-gap stress on the set's contact interfaces;
 /// None where the set touches no other part.
@@ -75,22 +128,12 @@ pub fn interface_force(solution: &Solution, in_set: &dyn Fn(ElementKind) -> bool
     }
     let mut sum = [0.0; 3];
     for f in found {
-        let [pa, pb] = f.ends;
-        let d = [pb[0] - pa[0], pb[1] - pa[1]];
-        let length = d[0].hypot(d[1]);
-        if length <= 0.0 {
-            continue;
-        }
-        let t = [d[0] / length, d[1] / length];
         // The normal out of the set: away from the inside element's centroid.
-        let c = els.coords[f.inside];
-        let centroid = [(c[0][0] + c[1][0] + c[2][0]) / 3.0, (c[0][1] + c[1][1] + c[2][1]) / 3.0];
-        let mut n = [t[1], -t[0]];
-        if (centroid[0] - pa[0]) * n[0] + (centroid[1] - pa[1]) * n[1] > 0.0 {
-            n = [-n[0], -n[1]];
-        }
-        for (s, w) in GAUSS {
-            let x = [pa[0] + s * d[0], pa[1] + s * d[1]];
+        let Some(edge) = Edge::new(solution, f.ends[0], f.ends[1], f.inside, true) else {
+            continue;
+        };
+        let (n, t) = (edge.n, edge.t);
+        edge.add_stress(&mut sum, axisym, torque_center, |x, _| {
             let side = |e: usize| {
                 let b = solution.element_b_at(e, els.geometry(e).barycentric(x));
                 let h = solution.element_h(e, b);
@@ -98,18 +141,8 @@ pub fn interface_force(solution: &Solution, in_set: &dyn Fn(ElementKind) -> bool
             };
             let ((bn1, ht1), (bn2, ht2)) = (side(f.inside), side(f.outside));
             let (bn, bt) = (0.5 * (bn1 + bn2), MU0 * 0.5 * (ht1 + ht2));
-            let gap = [bn * n[0] + bt * t[0], bn * n[1] + bt * t[1]];
-            let half = 0.5 * (gap[0] * gap[0] + gap[1] * gap[1]);
-            let mut dl = w * length;
-            if axisym {
-                dl *= 2.0 * std::f64::consts::PI * x[0];
-            }
-            let traction = [NU0 * (bn * gap[0] - half * n[0]) * dl, NU0 * (bn * gap[1] - half * n[1]) * dl];
-            let arm = [x[0] - torque_center[0], x[1] - torque_center[1]];
-            sum[0] += traction[0];
-            sum[1] += traction[1];
-            sum[2] += arm[0] * traction[1] - arm[1] * traction[0];
-        }
+            ([bn * n[0] + bt * t[0], bn * n[1] + bt * t[1]], 1.0)
+        });
     }
     Some(sum)
 }
@@ -148,35 +181,14 @@ pub fn band_face_term(solution: &Solution, weight: &[f64], in_set: &dyn Fn(Eleme
             _ => continue,
         };
         let (na, nb) = w[0].0;
-        let (pa, pb) = (els.positions[na], els.positions[nb]);
-        let d = [pb[0] - pa[0], pb[1] - pa[1]];
-        let length = d[0].hypot(d[1]);
-        if length <= 0.0 {
-            continue;
-        }
         // n out of the air: towards the other part's element.
-        let c = els.coords[wall];
-        let centroid = [(c[0][0] + c[1][0] + c[2][0]) / 3.0, (c[0][1] + c[1][1] + c[2][1]) / 3.0];
-        let mut n = [d[1] / length, -d[0] / length];
-        if (centroid[0] - pa[0]) * n[0] + (centroid[1] - pa[1]) * n[1] < 0.0 {
-            n = [-n[0], -n[1]];
-        }
-        for (s, q) in GAUSS {
-            let x = [pa[0] + s * d[0], pa[1] + s * d[1]];
-            let g = weight[na] + s * (weight[nb] - weight[na]);
+        let Some(edge) = Edge::new(solution, els.positions[na], els.positions[nb], wall, false) else {
+            continue;
+        };
+        edge.add_stress(&mut sum, axisym, torque_center, |x, s| {
             let b = solution.element_b_at(air, els.geometry(air).barycentric(x));
-            let half = 0.5 * (b[0] * b[0] + b[1] * b[1]);
-            let bn = b[0] * n[0] + b[1] * n[1];
-            let mut dl = q * length * g;
-            if axisym {
-                dl *= 2.0 * std::f64::consts::PI * x[0];
-            }
-            let traction = [NU0 * (bn * b[0] - half * n[0]) * dl, NU0 * (bn * b[1] - half * n[1]) * dl];
-            let arm = [x[0] - torque_center[0], x[1] - torque_center[1]];
-            sum[0] += traction[0];
-            sum[1] += traction[1];
-            sum[2] += arm[0] * traction[1] - arm[1] * traction[0];
-        }
+            (b, weight[na] + s * (weight[nb] - weight[na]))
+        });
     }
     sum
 }
