@@ -165,7 +165,7 @@ pub fn solve_to_accuracy<R>(
     let mut mesh = first;
     let round = round_parts(model);
     mesh.snap_onto(&round);
-    let mut history = History::new(model.mesh.order);
+    let mut history = History::new(model.mesh.order, target);
     let mut steps = Vec::new();
     let mut guess = FirstGuess::default();
     loop {
