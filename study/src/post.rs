@@ -18,10 +18,18 @@ pub fn results_with_errors(model: &Model, sol: &Solution, estimate: crate::estim
     let mut r = estimate.results.unwrap_or_else(|| results(model, sol, 0.0));
     r.errors = estimate.errors;
     r.errors.retain(|k, e| e.is_finite() && r.values.contains_key(k));
+    r.expect = evaluate(model, &r.values, &r.errors);
     if let Some(a) = estimate.adaptive.as_ref().filter(|a| !a.reached) {
         let target = 100.0 * a.target;
         let (elements, limit) = (a.steps.last().map_or(0, |s| s.elements), model.mesh.max_elements);
+        let undecided: Vec<&str> = r.expect.iter().filter(|e| e.verdict == Verdict::Undecided).map(|e| e.value.as_str()).collect();
         r.warnings.push(match a.worst() {
+            // Every value met the target: refinement went on only to decide an expectation.
+            Some((e, name)) if a.undecided_at_target(&r.expect) => format!(
+                "every value reached the accuracy asked ({target} %; the largest estimated error is {:.3} %, {name}), but the expectation on {} stays undecided: its bound lies within the value's error, and refining to {elements} triangles did not separate them (the next refinement would pass [mesh] max_elements ({limit})); move the design off the bound",
+                100.0 * e,
+                undecided.join(", ")
+            ),
             Some((e, name)) => format!(
                 "the accuracy asked ({target} %) was not reached: the largest estimated error is {:.3} % ({name}) on {elements} triangles, and the next refinement would pass [mesh] max_elements ({limit}) or the solution did not converge",
                 100.0 * e
@@ -33,7 +41,6 @@ pub fn results_with_errors(model: &Model, sol: &Solution, estimate: crate::estim
         });
     }
     r.adaptive = estimate.adaptive;
-    r.expect = evaluate(model, &r.values, &r.errors);
     r
 }
 

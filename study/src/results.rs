@@ -345,4 +345,11 @@ impl Adaptive {
         let last = self.steps.last()?;
         Some((last.worst_relative_error?, last.worst_value.as_deref()?))
     }
+
+    /// Refinement stopped short of "reached" only because an expectation
+    /// stays undecided: every value met the target, and the expectation's
+    /// bound lies within its value's error at the finest mesh allowed.
+    pub fn undecided_at_target(&self, expect: &[ExpectResult]) -> bool {
+        !self.reached && self.worst().is_some_and(|(w, _)| w <= self.target) && expect.iter().any(|e| e.verdict == Verdict::Undecided)
+    }
 }

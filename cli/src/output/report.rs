@@ -37,7 +37,13 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
                 s,
                 "Accuracy: {} % asked, {} after {} nested mesh(es); {worst}. Every value below carries its estimated error (\u{b1}); results.json has them all under `errors`.\n",
                 100.0 * a.target,
-                if a.reached { "reached" } else { "NOT reached" },
+                if a.reached {
+                    "reached"
+                } else if a.undecided_at_target(&r.expect) {
+                    "reached by every value (an expectation stays undecided at the finest mesh allowed)"
+                } else {
+                    "NOT reached"
+                },
                 a.steps.len(),
             );
         }
