@@ -299,3 +299,41 @@ fn forces_on_two_magnets_cancel_within_their_errors_at_default_settings() {
         );
     }
 }
+
+/// A coaxial line (inner conductor of radius 2 mm, return shell from 6 to
+/// 7 mm, 10 A, planar, 1 m long): its field energy against L' I^2 / 2 with
+/// the inductance per length of a coax with both conductors' internal
+/// inductance (S. Ramo, J. R. Whinnery, T. Van Duzer, Fields and Waves in
+/// Communication Electronics, 3rd ed., 1994), and its flux linkage, whose
+/// inductance is the same L'. The field outside the shell is zero, so the
+/// open boundary adds nothing.
+#[test]
+fn coaxial_line_energy_and_linkage_at_default_settings() {
+    let (a, b, c, current) = (0.002, 0.006, 0.007, 10.0);
+    let text = format!(
+        "[study]\ntitle = \"coax\"\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = \"1 m\"\n{OUTPUT}\
+         [[part]]\nname = \"shell\"\nmaterial = \"copper\"\ncurrent = \"-10 A\"\ncircle = {{ center = [0, 0], radius = 7 }}\n\
+         holes = [{{ circle = {{ center = [0, 0], radius = 6 }} }}]\n\
+         [[part]]\nname = \"core\"\nmaterial = \"copper\"\ncurrent = \"10 A\"\ncircle = {{ center = [0, 0], radius = 2 }}\n\
+         [[flux]]\nname = \"loop\"\nwinding = [\"core\", \"shell\"]\nturns = 1\n"
+    );
+    let r = solve_case_text(&text, &[]);
+    let inductance = validation::reference::coax_inductance_per_length(a, b, c);
+    let energy = 0.5 * inductance * current * current;
+    check(
+        "coaxial line energy and linkage at default settings, within its error",
+        "Ramo, Whinnery, Van Duzer 1994",
+        &r,
+        "energy",
+        energy,
+        energy,
+    );
+    check(
+        "coaxial line energy and linkage at default settings, within its error",
+        "Ramo, Whinnery, Van Duzer 1994",
+        &r,
+        "flux.loop",
+        inductance * current,
+        inductance * current,
+    );
+}
