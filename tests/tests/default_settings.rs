@@ -337,3 +337,34 @@ fn coaxial_line_energy_and_linkage_at_default_settings() {
         inductance * current,
     );
 }
+
+/// A saturating study: a ring core (10 to 20 mm radius) of a smooth
+/// saturating law around a straight conductor (3 mm radius), planar, 1 m
+/// deep, at ampere-turns from the linear range to deep saturation. By
+/// Ampere's law H = NI / (2 pi r) in the core whatever the material, so
+/// the flux through a radial cut of the core is the integral of B(H(r)) dr
+/// (`toroidal_core_flux`). The law is given as a 400-point table; the
+/// solver's monotone cubic through it stays within 1e-5 of the law
+/// (nonlinear.rs checks it), far below the target.
+#[test]
+fn saturating_ring_core_flux_at_default_settings() {
+    use validation::reference::{arctan_saturation_b, arctan_saturation_table, toroidal_core_flux};
+    let table: Vec<String> = arctan_saturation_table().iter().map(|[h, b]| format!("[{h:e}, {b:e}]")).collect();
+    for ni in [30.0, 300.0, 3000.0, 30000.0] {
+        let text = format!(
+            "[study]\ntitle = \"ring core\"\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = \"1 m\"\n{OUTPUT}\
+             [materials.core]\nbh = [{}]\ndescription = \"arctangent test law\"\n\
+             [[part]]\nname = \"core\"\nmaterial = \"core\"\ncircle = {{ center = [0, 0], radius = 20 }}\n\
+             holes = [{{ circle = {{ center = [0, 0], radius = 10 }} }}]\n\
+             [[part]]\nname = \"wire\"\nmaterial = \"copper\"\ncurrent = \"{ni} A\"\ncircle = {{ center = [0, 0], radius = 3 }}\n\
+             [[flux]]\nname = \"cut\"\nline = {{ from = [10, 0], to = [20, 0] }}\n",
+            table.join(", ")
+        );
+        let r = solve_case_text(&text, &[]);
+        let exact = toroidal_core_flux(arctan_saturation_b, ni, 0.01, 0.02);
+        let (v, e) = (r.values["flux.cut"].abs(), r.errors["flux.cut"]);
+        let what = "saturating ring core flux at default settings, NI 30 to 30 000 A, within its error";
+        assert_honest(&format!("{what}: NI {ni}"), v, e, exact, exact, TARGET);
+        record_estimated(what, "Ampere's law", TARGET, (v - exact).abs() / exact, e / exact);
+    }
+}
