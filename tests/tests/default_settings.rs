@@ -368,3 +368,34 @@ fn saturating_ring_core_flux_at_default_settings() {
         record_estimated(what, "Ampere's law", TARGET, (v - exact).abs() / exact, e / exact);
     }
 }
+
+/// Rigid round magnets (Br 1.2 T, radius 10 mm, recoil permeability one)
+/// from a thin disk to a long rod, L/D 0.1 to 4: the field energy
+/// W = mu0 N M^2 V / 2 with the magnetometric demagnetizing factor N of a
+/// cylinder (D.-X. Chen, J. A. Brug, R. B. Goldfarb, Demagnetizing factors
+/// for cylinders, IEEE Trans. Magn. 27(4), 1991; `cylinder_demag_factor`).
+#[test]
+fn cylinder_field_energy_at_default_settings() {
+    let mu0 = 4e-7 * std::f64::consts::PI;
+    let (a, m) = (0.01, 1.2 / mu0);
+    for ratio in [0.1, 0.5, 1.0, 2.0, 4.0] {
+        let l = 2.0 * a * ratio;
+        let text = format!(
+            "[study]\ntitle = \"cylinder\"\ngeometry = \"axisymmetric\"\nunit = \"mm\"\n\
+             [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet\"\n{OUTPUT}\
+             [[part]]\nname = \"magnet\"\nmaterial = \"rigid\"\nmagnetization = \"+z\"\nrect = {{ from = [0, 0], to = [10, {}] }}\n",
+            l * 1e3
+        );
+        let r = solve_case_text(&text, &[]);
+        let n = validation::reference::cylinder_demag_factor(a, l);
+        let exact = 0.5 * mu0 * n * m * m * std::f64::consts::PI * a * a * l;
+        check(
+            "cylinder field energy, L/D 0.1 to 4, at default settings, within its error",
+            "demagnetizing factors (Chen, Brug, Goldfarb 1991)",
+            &r,
+            "energy",
+            exact,
+            exact,
+        );
+    }
+}
