@@ -399,3 +399,37 @@ fn cylinder_field_energy_at_default_settings() {
         );
     }
 }
+
+/// A long bar magnet (10 mm across the plane x = 0, 5 mm thick along x,
+/// Br 1.2 T, recoil permeability one) 2 mm from a symmetry plane on x = 0
+/// that cuts the open boundary, magnetized along x. By the method of
+/// images a flux-parallel plane (A = 0) mirrors magnetic charge with its
+/// own sign, so the bar is pushed off by a reversed image; a flux-normal
+/// plane mirrors it with the opposite sign, so the bar is pulled on by a
+/// like image: either way with the force between two bars at twice the
+/// centre's distance, from the charged sheets (Furlani 2001 sec. 4.2,
+/// integrated in `bar_pair_force_2d`).
+#[test]
+fn bar_magnet_by_a_symmetry_plane_at_default_settings() {
+    let (w, h, gap) = (0.005, 0.0025, 0.002);
+    // bar_pair_force_2d: the pull on the second bar along the line of centres (negative: towards the first).
+    let pair = validation::reference::bar_pair_force_2d(1.2, w, h, h, 2.0 * (gap + h));
+    for (kind, exact) in [("flux-parallel", -pair), ("flux-normal", pair)] {
+        let text = format!(
+            "[study]\ntitle = \"bar by a plane\"\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = \"1 m\"\n\
+             [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet\"\n{OUTPUT}\
+             [[part]]\nname = \"bar\"\nmaterial = \"rigid\"\nmagnetization = \"+x\"\nrect = {{ from = [2, -5], to = [7, 5] }}\n\
+             [[force]]\nname = \"push\"\nparts = [\"bar\"]\n\
+             [[boundary]]\nkind = \"{kind}\"\nline = {{ from = [0, -10], to = [0, 10] }}\n"
+        );
+        let r = solve_case_text(&text, &[]);
+        check(
+            "bar magnet by a symmetry plane at default settings, within its error",
+            "method of images; Furlani 2001 charged sheets, integrated",
+            &r,
+            "force.push.x",
+            exact,
+            exact.abs(),
+        );
+    }
+}

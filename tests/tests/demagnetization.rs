@@ -91,7 +91,13 @@ fn a_round_magnet_driven_into_its_knee_follows_its_load_line() {
         eprintln!("applied {applied} T: H {h:.0} A/m, B {b:.6} T against {exact:.6} T, error {e:.2e}");
         let what = format!("round magnet on its load line at default settings, within its error, applied {applied} T");
         let estimate = r.errors["probe.centre.by"];
-        record_estimated(&what, "uniform state, demagnetizing factor 1/2 (Osborn 1945); error relative to Br", 0.001, e, estimate / GRADE.0);
+        record_estimated(
+            &what,
+            "uniform state, demagnetizing factor 1/2 (Osborn 1945); error relative to Br",
+            0.001,
+            e,
+            estimate / GRADE.0,
+        );
         assert_honest(&what, b, estimate, exact, GRADE.0, 0.001);
         let loss_expected = 1.0 - (major_j(h) - (GRADE.2 - 1.0) * MU0 * h) / GRADE.0;
         let loss = r.values["magnet.magnet.loss"];
@@ -123,7 +129,13 @@ fn an_exposure_leaves_the_magnet_on_its_recoil_line() {
     );
     let what = "round magnet after an opposing field, at default settings, within its error";
     let estimate = r.errors["probe.centre.by"];
-    record_estimated(what, "recoil line from the lowest point (closed form); error relative to Br", 0.001, e, estimate / br);
+    record_estimated(
+        what,
+        "recoil line from the lowest point (closed form); error relative to Br",
+        0.001,
+        e,
+        estimate / br,
+    );
     assert_honest(what, b, estimate, exact, br, 0.001);
     let loss = r.values["magnet.magnet.loss"];
     assert!((loss - (1.0 - f)).abs() < 0.001, "loss {loss} against {}", 1.0 - f);
@@ -223,7 +235,13 @@ fn a_tabulated_intrinsic_curve_is_followed_into_its_knee() {
         eprintln!("table, applied {applied} T: H {h:.0} A/m, B {b:.6} T against {exact:.6} T, error {e:.2e}");
         let what = format!("tabulated curve on its load line at default settings, within its error, applied {applied} T");
         let estimate = r.errors["probe.centre.by"];
-        record_estimated(&what, "uniform state, demagnetizing factor 1/2 (Osborn 1945); error relative to Br", 0.001, e, estimate / 1.219);
+        record_estimated(
+            &what,
+            "uniform state, demagnetizing factor 1/2 (Osborn 1945); error relative to Br",
+            0.001,
+            e,
+            estimate / 1.219,
+        );
         assert_honest(&what, b, estimate, exact, 1.219, 0.001);
         let loss = r.values["magnet.magnet.loss"];
         // The share kept never exceeds 1 (this table is a little flatter than its recoil slope near 0).
