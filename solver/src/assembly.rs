@@ -35,7 +35,7 @@ pub struct System {
     /// For element e, node pair i <= j: the slot in `matrix` values, or NO_SLOT.
     scatter: Vec<u32>,
     /// Two buffers of element systems: one filled while the other is scattered.
-    blocks: [Vec<LocalSystem>; 2],
+    blocks: [Vec<f64>; 2],
     air: Law,
     affine: Option<AffinePart>,
     /// Elements with a saturating law, evaluated at every assembly.
@@ -250,33 +250,23 @@ impl Target<'_> {
     /// parallel blocks, each block scattered (in order, so sums are
     /// reproducible) on one core while the next is computed on the other.
     #[allow(clippy::too_many_arguments)]
-    fn accumulate(
-        &self,
-        problem: &Problem,
-        a: &[f64],
-        which: &[usize],
-        how: Kernel,
-        blocks: &mut [Vec<LocalSystem>; 2],
-        values: &mut [f64],
-        residual: &mut [f64],
-    ) {
+    fn accumulate(&self, problem: &Problem, a: &[f64], which: &[usize], how: Kernel, blocks: &mut [Vec<f64>; 2], values: &mut [f64], residual: &mut [f64]) {
         let symmetry = problem.mesh.symmetry;
         let els = self.els;
-        let compute = |chunk: &[usize], out: &mut Vec<LocalSystem>| {
-            chunk
-                .par_iter()
-                .map(|&e| {
-                    let load = ElementLoad {
-                        tangent: how.tangent,
-                        ..element_load(e, els.kinds[e], problem, how.air)
-                    };
-                    let mut local = element_system(els.geometry(e), &els.gather(e, a), els.order, symmetry, els.placement(e), load);
-                    if let Some(s) = element_signs(els, self.sign_of_node, e) {
-                        signed(&mut local, &s);
-                    }
-                    local
-                })
-                .collect_into_vec(out)
+        let stride = packed_len(els.order.n_nodes());
+        let compute = |chunk: &[usize], out: &mut Vec<f64>| {
+            out.resize(chunk.len() * stride, 0.0);
+            out.par_chunks_mut(stride).zip(chunk.par_iter()).for_each(|(packed, &e)| {
+                let load = ElementLoad {
+                    tangent: how.tangent,
+                    ..element_load(e, els.kinds[e], problem, how.air)
+                };
+                let mut local = element_system(els.geometry(e), &els.gather(e, a), els.order, symmetry, els.placement(e), load);
+                if let Some(s) = element_signs(els, self.sign_of_node, e) {
+                    signed(&mut local, &s);
+                }
+                pack(&local, els.order.n_nodes(), packed);
+            })
         };
         let chunks: Vec<&[usize]> = which.chunks(BLOCK).collect();
         let [current, spare] = blocks;
@@ -296,25 +286,44 @@ impl Target<'_> {
         }
     }
 
-    /// Adds computed element systems into the matrix values and the residual.
-    fn scatter_block(&self, chunk: &[usize], locals: &[LocalSystem], values: &mut [f64], residual: &mut [f64]) {
+    /// Adds computed element systems (packed) into the matrix values and the residual.
+    fn scatter_block(&self, chunk: &[usize], packed: &[f64], values: &mut [f64], residual: &mut [f64]) {
         let m = self.els.order.n_nodes();
         let stride = pairs(m);
-        for (&e, (k, r)) in chunk.iter().zip(locals) {
-            let mut slots = self.scatter[stride * e..stride * (e + 1)].iter();
-            for i in 0..m {
-                for (j, &s) in (i..m).zip(&mut slots) {
-                    if s != NO_SLOT {
-                        values[s as usize] += k[i][j];
-                    }
+        for (&e, local) in chunk.iter().zip(packed.chunks_exact(packed_len(m))) {
+            let (k, r) = local.split_at(stride);
+            for (&s, &v) in self.scatter[stride * e..stride * (e + 1)].iter().zip(k) {
+                if s != NO_SLOT {
+                    values[s as usize] += v;
                 }
+            }
+            for (i, &v) in r.iter().enumerate() {
                 let d = self.dof_of_node[self.els.nodes[e][i]];
                 if d != NONE {
-                    residual[d] += r[i];
+                    residual[d] += v;
                 }
             }
         }
     }
+}
+
+/// Numbers an element system packs into: its upper triangle by rows, then
+/// its residual. Blocks of full `LocalSystem`s (sized for quartic
+/// elements) took 1.9 kB per element whatever the order, nine times what a
+/// quadratic one needs; the fresh pages cost more than computing them.
+fn packed_len(m: usize) -> usize {
+    pairs(m) + m
+}
+
+/// Packs the first m rows of an element system into `out` (`packed_len(m)` long).
+fn pack(local: &LocalSystem, m: usize, out: &mut [f64]) {
+    let (k, r) = local;
+    let mut slot = 0;
+    for (i, row) in k.iter().enumerate().take(m) {
+        out[slot..slot + m - i].copy_from_slice(&row[i..m]);
+        slot += m - i;
+    }
+    out[slot..slot + m].copy_from_slice(&r[..m]);
 }
 
 /// The signs of element e's node potentials against their unknowns, when
