@@ -315,6 +315,29 @@ pub fn toroidal_core_flux(b_of_h: impl Fn(f64) -> f64, ni: f64, r1: f64, r2: f64
         .sum()
 }
 
+/// Axial force on a ring winding (current density j, +phi, section r0..r1 by z0..z1) beside a
+/// uniformly magnetized cylinder (Br along +z, radius a, length l, centred at z = 0):
+/// F_z = - integral of j B_r 2 pi r dA with B_r the magnet's field (`cylinder_field`, Derby and
+/// Olbert 2010; the winding's self-field gives no net force), by 8 x 8 panels of 8 x 8-point
+/// Gauss-Legendre over the section.
+pub fn ring_winding_force(br: f64, a: f64, l: f64, j: f64, (r0, r1): (f64, f64), (z0, z1): (f64, f64)) -> f64 {
+    let (g, w) = gauss_legendre_8();
+    let (n, dr, dz) = (8, (r1 - r0) / 8.0, (z1 - z0) / 8.0);
+    let mut f = 0.0;
+    for ir in 0..n {
+        for iz in 0..n {
+            for (&gr, &wr) in g.iter().zip(&w) {
+                for (&gz, &wz) in g.iter().zip(&w) {
+                    let r = r0 + dr * (ir as f64 + 0.5 * (gr + 1.0));
+                    let z = z0 + dz * (iz as f64 + 0.5 * (gz + 1.0));
+                    f -= j * cylinder_field(br, a, l / 2.0, r, z)[0] * 2.0 * PI * r * 0.25 * dr * dz * wr * wz;
+                }
+            }
+        }
+    }
+    f
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -433,3 +433,28 @@ fn bar_magnet_by_a_symmetry_plane_at_default_settings() {
         );
     }
 }
+
+/// A ring winding (r 7 to 9 mm, z 4 to 6 mm, 2 A/mm^2) beside a rigid
+/// disk magnet (radius 5 mm, 5 mm long, Br 1.2 T, centred at z = 0): the
+/// axial force on the winding, F_z = - integral of J B_r 2 pi r dA with the
+/// magnet's exact field (Derby and Olbert 2010; `ring_winding_force`).
+#[test]
+fn ring_winding_force_at_default_settings() {
+    let text = format!(
+        "[study]\ntitle = \"winding\"\ngeometry = \"axisymmetric\"\nunit = \"mm\"\n\
+         [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet\"\n{OUTPUT}\
+         [[part]]\nname = \"disk\"\nmaterial = \"rigid\"\nmagnetization = \"+z\"\nrect = {{ from = [0, -2.5], to = [5, 2.5] }}\n\
+         [[part]]\nname = \"ring\"\nmaterial = \"copper\"\ncurrent_density = \"2 A/mm2\"\nrect = {{ from = [7, 4], to = [9, 6] }}\n\
+         [[force]]\nname = \"lorentz\"\nparts = [\"ring\"]\n"
+    );
+    let r = solve_case_text(&text, &[]);
+    let exact = validation::reference::ring_winding_force(1.2, 0.005, 0.005, 2e6, (0.007, 0.009), (0.004, 0.006));
+    check(
+        "ring winding over a magnet at default settings, within its error",
+        "F = J x B (Derby and Olbert 2010 field)",
+        &r,
+        "force.lorentz.z",
+        exact,
+        exact.abs(),
+    );
+}

@@ -375,23 +375,7 @@ fn ring_coil_over_a_magnet_feels_the_lorentz_force() {
     let f = solve_with(Symmetry::Axisymmetric, vec![disk, ring], vec![], OuterBoundary::Open, [0.0; 2], |sol| {
         force_on(sol, &[1], [0.0; 2]).vector[1]
     });
-    let (g, w) = gauss_legendre_8();
-    let (nr, nz) = (8, 8);
-    let mut exact = 0.0;
-    for ir in 0..nr {
-        for iz in 0..nz {
-            for (&gr, &wr) in g.iter().zip(&w) {
-                for (&gz, &wz) in g.iter().zip(&w) {
-                    let dr = (r1 - r0) / nr as f64;
-                    let dz = (z1 - z0) / nz as f64;
-                    let r = r0 + dr * (ir as f64 + 0.5 * (gr + 1.0));
-                    let z = z0 + dz * (iz as f64 + 0.5 * (gz + 1.0));
-                    let b_r = cylinder_field(BR, a, l / 2.0, r, z)[0];
-                    exact -= j * b_r * 2.0 * std::f64::consts::PI * r * 0.25 * dr * dz * wr * wz;
-                }
-            }
-        }
-    }
+    let exact = validation::reference::ring_winding_force(BR, a, l, j, (r0, r1), (z0, z1));
     check_force("ring winding over a magnet", "F = J x B (Derby and Olbert 2010 field)", 0.01, f, exact);
 }
 
