@@ -243,6 +243,23 @@ fn conductor_pull_and_magnet_torque_at_default_settings() {
         exact.abs(),
     );
 
+    // One of them alone in a uniform 0.1 T field along +y: F = I L x B0,
+    // -I B0 along x per metre (current out of the plane), whatever its shape.
+    let text = format!(
+        "[study]\ntitle = \"conductor in a field\"\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = \"1 m\"\napplied_field = [\"0 T\", \"0.1 T\"]\n{OUTPUT}\
+         [[part]]\nname = \"wire\"\nmaterial = \"air\"\ncurrent = \"1000 A\"\ncircle = {{ center = [0, 0], radius = 2 }}\n\
+         [[force]]\nname = \"push\"\nparts = [\"wire\"]\n"
+    );
+    let r = solve_case_text(&text, &[]);
+    check(
+        "conductor in a uniform field at default settings, within its error",
+        "F = I L x B",
+        &r,
+        "force.push.x",
+        -100.0,
+        100.0,
+    );
+
     let text = format!(
         "[study]\ntitle = \"torque\"\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = \"1 m\"\napplied_field = [\"0.1 T\", \"0 T\"]\n\
          [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet\"\n{OUTPUT}\
