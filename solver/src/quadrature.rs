@@ -96,6 +96,18 @@ fn collapsed_gauss(degree: usize) -> Rule {
     }
 }
 
+/// Gauss-Legendre points on [0, 1] with their weights (summing to 1), n
+/// of them (1 to 8), made once: the rule along an edge for the stress on a
+/// face (3 points) and the error indicator's jumps (4 points).
+pub fn edge_rule(n: usize) -> &'static [(f64, f64)] {
+    static RULES: [OnceLock<Vec<(f64, f64)>>; 8] = [const { OnceLock::new() }; 8];
+    let n = n.clamp(1, 8);
+    RULES[n - 1].get_or_init(|| {
+        let (x, w) = gauss_legendre(n);
+        x.into_iter().zip(w).collect()
+    })
+}
+
 /// Gauss-Legendre points and weights on [0, 1] (weights summing to 1), by
 /// Newton's method on the Legendre polynomial from Chebyshev starting points.
 fn gauss_legendre(n: usize) -> (Vec<f64>, Vec<f64>) {
@@ -136,6 +148,25 @@ fn legendre(n: usize, t: f64) -> (f64, f64) {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn edge_rules_are_the_tabulated_gauss_legendre_rules() {
+        // Abramowitz and Stegun, table 25.4, mapped to [0, 1]: three points at 1/2 and
+        // 1/2 -+ sqrt(15)/10 with weights 5/18, 8/18, 5/18.
+        let r = edge_rule(3);
+        let x = 0.5 - 15f64.sqrt() / 10.0;
+        let expected = [(x, 5.0 / 18.0), (0.5, 8.0 / 18.0), (1.0 - x, 5.0 / 18.0)];
+        for (a, b) in r.iter().zip(expected) {
+            assert!((a.0 - b.0).abs() < 1e-15 && (a.1 - b.1).abs() < 1e-15, "{r:?}");
+        }
+        // Exact to degree 2n - 1 on [0, 1]: the mean of s^k is 1 / (k + 1).
+        for n in 1..=8 {
+            for k in 0..2 * n {
+                let q: f64 = edge_rule(n).iter().map(|&(s, w)| w * s.powi(k as i32)).sum();
+                assert!((q - 1.0 / (k as f64 + 1.0)).abs() < 1e-14, "n {n}, degree {k}: {q}");
+            }
+        }
+    }
 
     /// The mean of l0^a l1^b l2^c over a triangle, 2 a! b! c! / (a + b + c + 2)!.
     fn exact_mean(a: u32, b: u32, c: u32) -> f64 {

@@ -19,10 +19,6 @@ use crate::space::ElementKind;
 use crate::{MU0, NU0};
 use mesher::Symmetry;
 
-/// Gauss-Legendre points and weights on [0, 1] (three points: exact for the
-/// degree-5 polynomials of quadratic elements' stress times radius).
-const GAUSS: [(f64, f64); 3] = [(0.112_701_665_379_258_3, 5.0 / 18.0), (0.5, 8.0 / 18.0), (0.887_298_334_620_741_7, 5.0 / 18.0)];
-
 /// One edge between an element of the set and an element of another part.
 struct Interface {
     inside: usize,
@@ -94,12 +90,13 @@ impl Edge {
     }
 
     /// Adds the air-side stress nu0 ((B.n) B - |B|^2 n / 2) over the edge to
-    /// `sum` (force x, y and torque about `center`): three Gauss points,
+    /// `sum` (force x, y and torque about `center`): three Gauss points (exact
+    /// for degree 5, a quadratic element's stress times the radius),
     /// times 2 pi r when axisymmetric; `field(x, s)` gives B at the point x
     /// (at s along the edge) and a weight to scale the stress by.
     fn add_stress(&self, sum: &mut [f64; 3], axisym: bool, center: [f64; 2], field: impl Fn([f64; 2], f64) -> ([f64; 2], f64)) {
         let n = self.n;
-        for (s, q) in GAUSS {
+        for &(s, q) in crate::quadrature::edge_rule(3) {
             let x = [self.pa[0] + s * self.d[0], self.pa[1] + s * self.d[1]];
             let (b, weight) = field(x, s);
             let half = 0.5 * (b[0] * b[0] + b[1] * b[1]);

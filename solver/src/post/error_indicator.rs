@@ -30,15 +30,6 @@ use rayon::prelude::*;
 /// Vacuum permeability, H/m.
 const MU0: f64 = 4e-7 * std::f64::consts::PI;
 
-/// Gauss-Legendre points on [0, 1] and weights: exact to degree 7, enough
-/// for the square of a quartic element's field along an edge to rank edges.
-const GAUSS: [(f64, f64); 4] = [
-    (0.069_431_844_202_973_71, 0.173_927_422_568_726_93),
-    (0.330_009_478_207_571_87, 0.326_072_577_431_273_07),
-    (0.669_990_521_792_428_1, 0.326_072_577_431_273_07),
-    (0.930_568_155_797_026_3, 0.173_927_422_568_726_93),
-];
-
 /// The squared indicator of every element (physical, then exterior: 0),
 /// in J (planar: per metre of depth).
 pub fn element_indicators(sol: &Solution) -> Vec<f64> {
@@ -83,7 +74,9 @@ fn edge_jump(sol: &Solution, (e1, k1): (usize, usize), (e2, k2): (usize, usize))
     }
     let t = [(b[0] - a[0]) / length, (b[1] - a[1]) / length];
     let mut sum = 0.0;
-    for (s, w) in GAUSS {
+    // Four points, exact to degree 7: enough for the square of a quartic
+    // element's field along an edge to rank edges.
+    for &(s, w) in crate::quadrature::edge_rule(4) {
         let lam1 = on_edge(k1, s);
         let lam2 = on_edge(k2, if same_way { s } else { 1.0 - s });
         let (h1, nu1) = strength(sol, e1, lam1);
