@@ -66,7 +66,7 @@ pub use bh_curve::{BhCurve, CurveError};
 pub use material::Law;
 pub use newton::{SolveError, SolveReport};
 pub use problem::{NewtonSettings, Problem, OWN_LAW_NONE};
-pub use solution::{solve, PointField, Solution};
+pub use solution::{solve, solve_on, PointField, Solution};
 
 /// Permeability of free space, H/m (CODATA 2018: 1.25663706212e-6).
 pub const MU0: f64 = 1.256_637_062_12e-6;

@@ -66,6 +66,8 @@ pub struct FirstGuess {
     pub field: Option<std::sync::Arc<[f64]>>,
     /// For the exposure (the hot solve that sets the magnets' state).
     pub exposure: Option<std::sync::Arc<[f64]>>,
+    /// The study's system structure for this mesh, when made beforehand.
+    pub structure: Option<solver::assembly::System>,
 }
 
 /// A model solved on one mesh: the field, and the exposure's field when
@@ -94,14 +96,19 @@ pub fn solve_from<'m>(model: &Model, mesh: &'m mesher::Mesh, guess: FirstGuess, 
         None => None,
     };
     Ok(Solved {
-        field: solve_problem(&problem, progress)?,
+        field: solve_problem(&problem, guess.structure, progress)?,
         exposure,
     })
 }
 
-/// Solves a lowered problem, reporting Newton's progress.
-fn solve_problem<'m>(problem: &Problem<'m>, progress: &(dyn Fn(Stage) + Sync)) -> Result<Solution<'m>, StudyError> {
-    solver::solve(problem, &|iteration, residual| progress(Stage::Newton { iteration, residual })).map_err(|e| StudyError {
+/// Solves a lowered problem (on its system structure when one is given),
+/// reporting Newton's progress.
+fn solve_problem<'m>(
+    problem: &Problem<'m>,
+    structure: Option<solver::assembly::System>,
+    progress: &(dyn Fn(Stage) + Sync),
+) -> Result<Solution<'m>, StudyError> {
+    solver::solve_on(problem, structure, &|iteration, residual| progress(Stage::Newton { iteration, residual })).map_err(|e| StudyError {
         message: e.to_string(),
         origin: None,
         help: None,
@@ -126,7 +133,7 @@ fn exposure_field<'m>(
     exposed.exposure = None;
     let mut problem = lower::problem(&exposed, mesh)?;
     problem.initial = guess;
-    let sol = solve_problem(&problem, progress)?;
+    let sol = solve_problem(&problem, None, progress)?;
     if !sol.report.converged {
         return Err(StudyError::new(
             "the exposure (study.exposure) did not converge, so the state it leaves in the magnets is unknown".into(),
@@ -170,7 +177,9 @@ pub fn solve_to_accuracy<R>(
     let mut guess = FirstGuess::default();
     loop {
         let start = Instant::now();
-        let Solved { field: sol, exposure } = solve_from(model, &mesh, std::mem::take(&mut guess), progress)?;
+        let (solved, ahead) = solve_looking_ahead(model, &mesh, std::mem::take(&mut guess), steps.is_empty(), &round, progress);
+        let (mut mesh_ahead, structure_ahead) = ahead.map_or((None, None), |(m, s)| (Some(m), s));
+        let Solved { field: sol, exposure } = solved?;
         let results = crate::post::results(model, &sol, 0.0);
         // Pilot meshes (a hand-set first mesh far coarser than the
         // default) are refined before any value's change is trusted.
@@ -200,7 +209,11 @@ pub fn solve_to_accuracy<R>(
         // Four times the triangles at least: a mesh past the limit is not even built.
         let room = 4 * elements(&mesh) <= model.mesh.max_elements;
         let next = (!reached && sol.report.converged && room)
-            .then(|| next_mesh(&mesh, &sol, steps.len().saturating_sub(pilots), &round))
+            .then(|| {
+                mesh_ahead
+                    .take()
+                    .unwrap_or_else(|| next_mesh(&mesh, &sol, steps.len().saturating_sub(pilots), &round))
+            })
             .filter(|next| elements(next) <= model.mesh.max_elements);
         let Some(next) = next else {
             let estimate = Estimate {
@@ -220,11 +233,43 @@ pub fn solve_to_accuracy<R>(
             guess = FirstGuess {
                 field: prolonged(&sol, &fine),
                 exposure: exposure.as_ref().and_then(|hot| prolonged(hot, &fine)),
+                structure: None,
             };
         }
+        guess.structure = structure_ahead;
         drop((sol, exposure));
         mesh = next;
     }
+}
+
+/// Solves the model on `mesh`; for the first mesh (`first`), whose
+/// successor is its uniform refinement whatever its solution, that mesh and
+/// its system structure are made on the other core meanwhile (the
+/// structure of the second mesh was a fifth of its step, and the first
+/// mesh's factorization runs on one core). The mesh ahead is not made when
+/// it would pass `max_elements`.
+#[allow(clippy::type_complexity)]
+fn solve_looking_ahead<'m>(
+    model: &Model,
+    mesh: &'m mesher::Mesh,
+    guess: FirstGuess,
+    first: bool,
+    round: &[mesher::BoundaryCircle],
+    progress: &(dyn Fn(Stage) + Sync),
+) -> (Result<Solved<'m>, StudyError>, Option<(mesher::Mesh, Option<solver::assembly::System>)>) {
+    if !first || 4 * elements(mesh) > model.mesh.max_elements {
+        return (solve_from(model, mesh, guess, progress), None);
+    }
+    let order = solver::element_order::ElementOrder::of_degree(model.mesh.order).unwrap_or(solver::element_order::ElementOrder::Quadratic);
+    let (solved, ahead) = rayon::join(
+        || solve_from(model, mesh, guess, progress),
+        || {
+            let next = mesh.refined_onto(round);
+            let structure = solver::assembly::System::new(&next, order).ok();
+            (next, structure)
+        },
+    );
+    (solved, Some(ahead))
 }
 
 /// A nonlinear solution carried onto the next (nested) mesh as Newton's
