@@ -252,8 +252,13 @@ pub fn problem<'m>(model: &Model, mesh: &'m mesher::Mesh) -> Result<Problem<'m>,
     problem.element_law = element_law;
     problem.applied_field = model.applied_field;
     problem.newton = model.newton;
-    problem.order = ElementOrder::of_degree(model.mesh.order).unwrap_or(ElementOrder::Quadratic);
+    problem.order = element_order(model);
     Ok(problem)
+}
+
+/// The model's element order (quadratic where its degree has none).
+pub fn element_order(model: &Model) -> ElementOrder {
+    ElementOrder::of_degree(model.mesh.order).unwrap_or(ElementOrder::Quadratic)
 }
 
 /// Probes that the mesh cannot reach are input errors, found before solving.

@@ -260,7 +260,7 @@ fn solve_looking_ahead<'m>(
     if !first || 4 * elements(mesh) > model.mesh.max_elements {
         return (solve_from(model, mesh, guess, progress), None);
     }
-    let order = solver::element_order::ElementOrder::of_degree(model.mesh.order).unwrap_or(solver::element_order::ElementOrder::Quadratic);
+    let order = lower::element_order(model);
     let (solved, ahead) = rayon::join(
         || solve_from(model, mesh, guess, progress),
         || {
