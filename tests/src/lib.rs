@@ -201,6 +201,20 @@ pub fn record_estimated(check: &str, source: &str, tolerance: f64, measured: f64
     append_record(serde_json::json!({ "check": check, "source": source, "tolerance": tolerance, "measured": measured, "estimated": estimated }));
 }
 
+/// The default `[study] accuracy` (0.1 %), what cases without an accuracy key are held to.
+pub const DEFAULT_TARGET: f64 = 1e-3;
+
+/// Holds the value `name` of results `r` to `exact` within the default
+/// target and within twice its own error estimate (the estimate at most 20
+/// times the true error or below a tenth of the target; `assert_honest`),
+/// relative to `scale` (the value itself, or the magnitude it is a part of),
+/// and records it for docs/validation.md under `check` with its `source`.
+pub fn check_at_default(check: &str, source: &str, r: &study::Results, name: &str, exact: f64, scale: f64) {
+    let (v, e) = (r.values[name], r.errors[name]);
+    assert_honest(&format!("{check}: {name}"), v, e, exact, scale, DEFAULT_TARGET);
+    record_estimated(check, source, DEFAULT_TARGET, (v - exact).abs() / scale, e / scale);
+}
+
 /// Asserts what an error estimate claims, for a value with an exact answer:
 /// the value within `target` of it (relative to `scale`: the value, or the
 /// magnitude of the vector it is a component of), the true error at most

@@ -2,19 +2,7 @@
 //! margin against temperature.
 
 use validation::reference::{cylinder_demag_factor, MU0};
-use validation::{assert_honest, assert_honest_against, record, record_estimated, rel, solve_case_text};
-
-/// The default accuracy these cases run at (no mesh key, no accuracy key).
-const TARGET: f64 = 1e-3;
-
-/// Holds `name` of `r` to `exact` within the default target and within
-/// twice its own error estimate (the estimate at most 20 times the true
-/// error or below a tenth of the target), and records it.
-fn honest(check: &str, source: &str, r: &study::Results, name: &str, exact: f64) {
-    let (v, e) = (r.values[name], r.errors[name]);
-    assert_honest(&format!("{check}: {name}"), v, e, exact, exact.abs(), TARGET);
-    record_estimated(check, source, TARGET, rel(v, exact), e / exact.abs());
-}
+use validation::{assert_honest_against, check_at_default, record, record_estimated, rel, solve_case_text, DEFAULT_TARGET as TARGET};
 
 fn bare_cylinder(radius_mm: f64, length_mm: f64, material: &str, extra: &str) -> String {
     format!(
@@ -44,12 +32,13 @@ fn dipole_moment_and_far_field_of_a_bare_cylinder() {
     let (a, l) = (0.01, 0.02);
     let r = solve_case_text(&bare_cylinder(10.0, 20.0, "ideal", ""), &[]);
     let exact = 1.2 * std::f64::consts::PI * a * a * l / MU0;
-    honest(
+    check_at_default(
         "dipole moment of a bare cylinder at default settings, within its error",
         "m = Br V / mu0 (Jackson sec. 5.6)",
         &r,
         "stray.moment",
         exact,
+        exact.abs(),
     );
     let (h21, e21) = (r.values["stray.h_at_2100mm"], r.errors["stray.h_at_2100mm"]);
     let dipole = 2.0 * exact / (4.0 * std::f64::consts::PI * 2.1f64.powi(3));
@@ -144,8 +133,8 @@ fn implant_distances_of_a_bare_cylinder_match_its_exact_field() {
     let plane = fall_to(level, |d| cylinder_field(1.2, a, 0.5 * l, d, 0.0)[1].abs(), a, 100.0);
     let what = "implant distances of a bare cylinder at default settings, within their errors";
     let source = "exact cylinder field (Furlani 2001; Derby & Olbert 2010)";
-    honest(what, source, &r, "stray.implant_distance.axis", axis);
-    honest(what, source, &r, "stray.implant_distance.plane", plane);
+    check_at_default(what, source, &r, "stray.implant_distance.axis", axis, axis.abs());
+    check_at_default(what, source, &r, "stray.implant_distance.plane", plane, plane.abs());
 }
 
 #[test]
@@ -169,12 +158,13 @@ rect = { from = [-5, -2.5], to = [5, 2.5] }"#,
     let r = solve_case_text(&case, &[]);
     let (w, h) = (0.005, 0.0025);
     let exact = fall_to(5e-3, |d| bar_field_2d(1.2, w, h, 0.0, d)[1].abs(), h, 100.0);
-    honest(
+    check_at_default(
         "reach of a planar bar at default settings, within its error",
         "exact bar field (Furlani 2001)",
         &r,
         "reach.axis",
         exact,
+        exact.abs(),
     );
 }
 
@@ -194,12 +184,13 @@ circle = { center = [0, 0], radius = 5 }"#,
     );
     let r = solve_case_text(&case, &[]);
     let exact = MU0 * 2000.0 / (2.0 * std::f64::consts::PI * 1e-3);
-    honest(
+    check_at_default(
         "reach of a long conductor at default settings, within its error",
         "Ampere's law",
         &r,
         "reach.axis",
         exact,
+        exact.abs(),
     );
 }
 
