@@ -166,13 +166,11 @@ fn run_text(text: &str) -> Row {
     let mesh_s = t.elapsed().as_secs_f64();
     let problem = study::lower::problem(&model, &mesh).unwrap();
     let sol = solver::solve(&problem, &|_, _| {}).unwrap();
-    // Post-processing and the field file's encoding run side by side, as in `lodestone solve`.
+    // Post-processing, the pictures and the field file's encoding, side by side as in `lodestone solve`.
     let t = Instant::now();
-    let (results, field) = lodestone::run::results_and_field(&model, &sol, Default::default());
+    let (_, files) = lodestone::run::results_and_files(&model, &sol, Default::default(), |_| {}).unwrap_or_else(|f| panic!("{}", f.message()));
     let post_s = t.elapsed().as_secs_f64();
     let t = Instant::now();
-    let field = field.unwrap_or_else(|f| panic!("{}", f.message()));
-    let files = lodestone::run::collect_files(&model, &sol, &results, field).unwrap_or_else(|f| panic!("{}", f.message()));
     lodestone::output::write_all(&dir.join("out"), &files).unwrap();
     let output_s = t.elapsed().as_secs_f64();
     let r = &sol.report;
