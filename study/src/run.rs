@@ -229,10 +229,18 @@ pub fn solve_to_accuracy<R>(
             return Ok(finish(&sol, estimate));
         };
         if sol.problem.is_nonlinear() || exposure.is_some() {
-            let fine = solver::space::Elements::from_mesh(&next, sol.elements.order);
+            // The element table of the structure made ahead is the next mesh's (it was built a second time here).
+            let built;
+            let fine = match &structure_ahead {
+                Some(structure) if structure.elements.order == sol.elements.order => &structure.elements,
+                _ => {
+                    built = solver::space::Elements::from_mesh(&next, sol.elements.order);
+                    &built
+                }
+            };
             guess = FirstGuess {
-                field: prolonged(&sol, &fine),
-                exposure: exposure.as_ref().and_then(|hot| prolonged(hot, &fine)),
+                field: prolonged(&sol, fine),
+                exposure: exposure.as_ref().and_then(|hot| prolonged(hot, fine)),
                 structure: None,
             };
         }
