@@ -42,12 +42,16 @@ pub struct System {
     nonlinear: Vec<usize>,
     /// Whether the unknowns are numbered in a fill-reducing elimination order.
     pub elimination: Elimination,
+    /// Seconds this structure took to build (reported as the pattern time
+    /// even when it was built ahead, beside another solve).
+    pub seconds_built: f64,
 }
 
 impl System {
     /// The structure for `mesh`; refused when the matrix would have more
     /// entries than the scatter map's 32-bit slots can address.
     pub fn new(mesh: &Mesh, order: ElementOrder) -> Result<System, SystemTooLarge> {
+        let start = std::time::Instant::now();
         // The corner graph's ordering needs only the mesh: it is made on one
         // core while the element table is built on the other.
         let higher = order != ElementOrder::Linear;
@@ -83,6 +87,7 @@ impl System {
             affine: None,
             nonlinear: Vec::new(),
             elimination,
+            seconds_built: start.elapsed().as_secs_f64(),
         })
     }
 

@@ -22,7 +22,8 @@ pub struct SolveReport {
     pub residual_history: Vec<f64>,
     /// Number of unknowns.
     pub n_dofs: usize,
-    /// Seconds spent building the matrix pattern.
+    /// Seconds spent building the matrix pattern (on the other core during
+    /// the previous mesh's solve when the structure was made ahead).
     pub seconds_pattern: f64,
     /// Seconds spent assembling.
     pub seconds_assembly: f64,
