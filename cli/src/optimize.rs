@@ -28,9 +28,14 @@ fn evaluate(loaded: &Loaded, base: &Variant, spec: &Optimize, x: &[f64], limits:
             .collect::<Vec<_>>()
             .join(", ")
     };
-    let resolved = run::resolve(loaded, &params, limits)?;
-    let mut model = resolved.model;
-    model.accuracy = Some(spec.accuracy);
+    // Resolved at the search's accuracy, as if the case asked for it: the
+    // default element order and first mesh follow it.
+    let searched = Limits {
+        accuracy: Some(Some(spec.accuracy)),
+        ..*limits
+    };
+    let resolved = run::resolve(loaded, &params, &searched)?;
+    let model = resolved.model;
     let results = study::run::run(&model, &|_| {}).map_err(|e| match e.origin {
         Some(_) => loaded.study_error(&resolved.spans, &e),
         None => Failure::Input(format!("error: {}: at {}: {e}\n", loaded.path.display(), at())),

@@ -167,12 +167,9 @@ impl Loaded {
 
 /// Resolves the case for one set of parameter values.
 pub fn resolve(loaded: &Loaded, params: &BTreeMap<String, f64>, limits: &Limits) -> Result<Resolved, Failure> {
-    let (mut model, spans) = case::resolve::resolve(&loaded.doc, params, &loaded.dir()).map_err(|d| loaded.input(&d))?;
+    let (mut model, spans) = case::resolve::resolve_with(&loaded.doc, params, &loaded.dir(), limits.accuracy).map_err(|d| loaded.input(&d))?;
     if let Some(m) = limits.max_elements {
         model.mesh.max_elements = m;
-    }
-    if let Some(a) = limits.accuracy {
-        model.accuracy = a;
     }
     Ok(Resolved { model, spans })
 }

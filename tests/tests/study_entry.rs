@@ -21,3 +21,34 @@ fn a_study_run_without_files_gives_the_command_lines_values() {
     assert_eq!(stages.first(), Some(&study::run::Stage::Meshing));
     assert!(stages.iter().any(|s| matches!(s, study::run::Stage::Newton { .. })));
 }
+
+/// An accuracy given beside the case (the Python package's `accuracy=`, a
+/// goal seek's scan) resolves to the model the same key in the case gives:
+/// the default element order and first mesh follow it (set on the model
+/// after resolving, 0.01 % kept quadratic elements on a mesh for 0.1 %).
+#[test]
+fn an_accuracy_given_beside_the_case_sizes_the_model_as_the_key_does() {
+    let case = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/magnet-bare.toml");
+    let text = std::fs::read_to_string(&case).unwrap();
+    let resolve = |text: &str, accuracy| {
+        let doc = lodestone::case::document::parse(text).unwrap();
+        let params = lodestone::case::resolve::params(&doc, &Default::default()).unwrap();
+        lodestone::case::resolve::resolve_with(&doc, &params, case.parent().unwrap(), accuracy)
+            .unwrap()
+            .0
+    };
+    let keyed = resolve(&text.replace("[study]\n", "[study]\naccuracy = \"0.01 %\"\n"), None);
+    let beside = resolve(&text, Some(Some(1e-4)));
+    let default = resolve(&text, None);
+    assert_eq!(keyed.accuracy, Some(1e-4));
+    assert_eq!(
+        (beside.accuracy, beside.mesh.order, beside.mesh.size),
+        (keyed.accuracy, keyed.mesh.order, keyed.mesh.size)
+    );
+    assert_eq!((keyed.mesh.order, default.mesh.order), (4, 2));
+    let parts = |m: &study::model::Model| m.parts.iter().map(|p| p.mesh_size).collect::<Vec<_>>();
+    assert_eq!(parts(&beside), parts(&keyed));
+    assert_ne!(beside.mesh.size, default.mesh.size);
+    let off = resolve(&text, Some(None));
+    assert_eq!(off.accuracy, None);
+}
