@@ -9,13 +9,31 @@ use crate::progress::Progress;
 use crate::run::{self, Failure, Limits, Loaded, Variant};
 use std::collections::BTreeMap;
 use std::path::Path;
-use study::seek::{Evaluation, SeekError};
+use study::seek::{Evaluation, Need, SeekError};
+
+/// How much looser than the study's accuracy the scan's points are solved
+/// (they need only their side of the target; one whose value lies within
+/// its error of the target is solved again in full), and the loosest.
+const SCAN_LOOSENESS: f64 = 10.0;
+const SCAN_LOOSEST: f64 = 0.05;
 
 /// One evaluation: the study at `x`, its value and estimated error.
-fn evaluate(loaded: &Loaded, base: &Variant, spec: &Seek, x: f64, limits: &Limits, progress: &Progress) -> Result<Evaluation, Failure> {
+fn evaluate(loaded: &Loaded, base: &Variant, spec: &Seek, x: f64, need: Need, limits: &Limits, progress: &Progress) -> Result<Evaluation, Failure> {
     let mut params = base.params.clone();
     params.insert(spec.vary.clone(), x);
-    let resolved = run::resolve(loaded, &params, limits)?;
+    let mut resolved = run::resolve(loaded, &params, limits)?;
+    let mut side_only = false;
+    if let (Need::Side, Some(accuracy)) = (need, resolved.model.accuracy) {
+        let loose = (SCAN_LOOSENESS * accuracy).min(SCAN_LOOSEST);
+        if loose > accuracy {
+            let scan = Limits {
+                accuracy: Some(Some(loose)),
+                ..*limits
+            };
+            resolved = run::resolve(loaded, &params, &scan)?;
+            side_only = true;
+        }
+    }
     let model = resolved.model;
     let results = study::run::run(&model, &|_| {}).map_err(|e| match e.origin {
         Some(_) => loaded.study_error(&resolved.spans, &e),
@@ -31,19 +49,22 @@ fn evaluate(loaded: &Loaded, base: &Variant, spec: &Seek, x: f64, limits: &Limit
     let value = results.values.get(&spec.value).copied().unwrap_or(f64::NAN);
     let error = results.errors.get(&spec.value).copied().unwrap_or(0.0);
     progress.note(&format!(
-        "{}: seek {} = {x:.6}: {} = {value:.6e} {} (target {:.6e})",
+        "{}: seek {} = {x:.6}: {} = {value:.6e} {} (target {:.6e}){}",
         loaded.stem(),
         spec.vary,
         spec.value,
         spec.unit,
-        spec.target
+        spec.target,
+        if side_only { ", scan" } else { "" }
     ));
-    Ok(Evaluation { x, value, error })
+    Ok(Evaluation { x, value, error, side_only })
 }
 
 /// Runs the seek, then the full case at the answer; exit code as `solve`.
 pub fn solve(loaded: &Loaded, spec: &Seek, base: &Variant, folder: &OutputFolder, limits: &Limits, progress: &Progress) -> Result<i32, Failure> {
-    let found = study::seek::seek(spec.range[0], spec.range[1], spec.target, |x| evaluate(loaded, base, spec, x, limits, progress));
+    let found = study::seek::seek(spec.range[0], spec.range[1], spec.target, |x, need| {
+        evaluate(loaded, base, spec, x, need, limits, progress)
+    });
     let found = match found {
         Ok(f) => f,
         Err(SeekError::Evaluation(f)) => return Err(f),
@@ -72,7 +93,7 @@ pub fn solve(loaded: &Loaded, spec: &Seek, base: &Variant, folder: &OutputFolder
     outcome.files.push(("seek.csv".into(), seek_csv(spec, &found).into_bytes()));
     outcome.files.push(("seek.svg".into(), seek_chart(spec, &found).into_bytes()));
     let section = format!(
-        "## Goal seek\n\n`{}` reaches {} at {} = {:.6} \u{b1} {:.2e} (the case's own units), found in {} evaluations by a scan and Brent's method; the case above is solved there. Every evaluation is in seek.csv, the answer in seek.json.\n\n![goal seek](seek.svg)\n",
+        "## Goal seek\n\n`{}` reaches {} at {} = {:.6} \u{b1} {:.2e} (the case's own units), found in {} evaluations by a scan (at a looser accuracy: it needs only the side of the target each point lies on) and Brent's method; the case above is solved there. Every evaluation is in seek.csv, the answer in seek.json.\n\n![goal seek](seek.svg)\n",
         spec.value,
         crate::output::engineering::eng(spec.target, spec.unit),
         spec.vary,
@@ -102,7 +123,7 @@ fn seek_json(spec: &Seek, found: &study::seek::Found, params: &BTreeMap<String, 
     let evaluations: Vec<_> = found
         .evaluations
         .iter()
-        .map(|e| serde_json::json!({ "x": e.x, "value": e.value, "error": e.error }))
+        .map(|e| serde_json::json!({ "x": e.x, "value": e.value, "error": e.error, "scan": e.side_only }))
         .collect();
     let json = serde_json::json!({
         "vary": spec.vary,
@@ -114,7 +135,7 @@ fn seek_json(spec: &Seek, found: &study::seek::Found, params: &BTreeMap<String, 
         "error": error,
         "params": params,
         "evaluations": evaluations,
-        "note": "SI units for value, error and target; the parameter in the case's own units. The uncertainty is the value's estimated error over the slope, plus what is left of the final bracket."
+        "note": "SI units for value, error and target; the parameter in the case's own units. The uncertainty is the value's estimated error over the slope, plus what is left of the final bracket. Evaluations marked scan were solved to a looser accuracy (ten times the study's, at most 5 %) only to find which side of the target they lie on; the answer is never one of them."
     });
     serde_json::to_vec_pretty(&json).map_err(|e| Failure::Input(format!("error: cannot encode seek.json: {e}\n")))
 }

@@ -9,6 +9,12 @@
 //! with its own error estimate, so the search stops once the bracket is
 //! narrower than what that error allows: the parameter's uncertainty is the
 //! value's estimated error over the slope, plus what is left of the bracket.
+//!
+//! The scan needs only the side of the target each point lies on, so its
+//! points are asked at a looser accuracy (`Need::Side`); a point whose value
+//! lies within its error of the target is asked again in full. Points of
+//! the scan may close the bracket's ends, but the answer is never one of
+//! them and their errors do not widen the stopping test.
 
 /// One evaluation: the parameter, the value there and its estimated error.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -19,6 +25,18 @@ pub struct Evaluation {
     pub value: f64,
     /// Its estimated absolute error (0 when not estimated).
     pub error: f64,
+    /// Whether it was asked only for its side of the target (`Need::Side`).
+    pub side_only: bool,
+}
+
+/// What an evaluation is asked for.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Need {
+    /// Which side of the target the value lies on (the scan): a looser
+    /// accuracy will do when the value is not near the target.
+    Side,
+    /// The value to the study's own accuracy.
+    Value,
 }
 
 /// The answer of a seek.
@@ -70,11 +88,11 @@ fn scan(lo: f64, hi: f64) -> Vec<f64> {
 }
 
 /// Finds x in [lo, hi] where value(x) = target, the smallest such x when
-/// there are several. `evaluate` solves the study at x.
-pub fn seek<E>(lo: f64, hi: f64, target: f64, mut evaluate: impl FnMut(f64) -> Result<Evaluation, E>) -> Result<Found, SeekError<E>> {
+/// there are several. `evaluate` solves the study at x to what is needed.
+pub fn seek<E>(lo: f64, hi: f64, target: f64, mut evaluate: impl FnMut(f64, Need) -> Result<Evaluation, E>) -> Result<Found, SeekError<E>> {
     let mut evaluations = Vec::new();
-    let mut eval = |x: f64, evaluations: &mut Vec<Evaluation>| -> Result<Evaluation, SeekError<E>> {
-        let e = evaluate(x).map_err(SeekError::Evaluation)?;
+    let mut eval = |x: f64, need: Need, evaluations: &mut Vec<Evaluation>| -> Result<Evaluation, SeekError<E>> {
+        let e = evaluate(x, need).map_err(SeekError::Evaluation)?;
         evaluations.push(e);
         Ok(e)
     };
@@ -82,7 +100,11 @@ pub fn seek<E>(lo: f64, hi: f64, target: f64, mut evaluate: impl FnMut(f64) -> R
     let mut previous: Option<Evaluation> = None;
     let mut bracket = None;
     for x in scan(lo, hi) {
-        let e = eval(x, &mut evaluations)?;
+        let mut e = eval(x, Need::Side, &mut evaluations)?;
+        if e.side_only && (e.value - target).abs() <= e.error {
+            // Its side is not known at the looser accuracy.
+            e = eval(x, Need::Value, &mut evaluations)?;
+        }
         if let Some(p) = previous {
             if (p.value - target).signum() != (e.value - target).signum() || e.value == target {
                 bracket = Some((p, e));
@@ -101,7 +123,7 @@ pub fn seek<E>(lo: f64, hi: f64, target: f64, mut evaluate: impl FnMut(f64) -> R
             high: values.fold(f64::NEG_INFINITY, f64::max),
         });
     };
-    let (x, uncertainty) = brent(a, b, target, &mut |x| eval(x, &mut evaluations))?;
+    let (x, uncertainty) = brent(a, b, target, &mut |x| eval(x, Need::Value, &mut evaluations))?;
     Ok(Found { x, uncertainty, evaluations })
 }
 
@@ -120,19 +142,21 @@ fn brent<E>(a: Evaluation, b: Evaluation, target: f64, eval: &mut dyn FnMut(f64)
     let floor = 1e-9 * (b.x - a.x).abs();
     let uncertainty = |a: &Evaluation, b: &Evaluation| {
         let slope = (f(b) - f(a)) / (b.x - a.x);
-        let allowed = if slope != 0.0 && slope.is_finite() {
-            a.error.max(b.error) / slope.abs()
-        } else {
-            0.0
+        // A scan point's looser error says nothing of the answer's.
+        let error = match (a.side_only, b.side_only) {
+            (true, false) => b.error,
+            (false, true) => a.error,
+            _ => a.error.max(b.error),
         };
+        let allowed = if slope != 0.0 && slope.is_finite() { error / slope.abs() } else { 0.0 };
         (allowed, 0.5 * (b.x - a.x).abs())
     };
     for _ in 0..MOST_STEPS {
         let (allowed, half) = uncertainty(&a, &b);
-        if f(&b) == 0.0 {
+        if f(&b) == 0.0 && !b.side_only {
             return Ok((b.x, allowed));
         }
-        if 2.0 * half <= allowed.max(floor) {
+        if 2.0 * half <= allowed.max(floor) && !b.side_only {
             return Ok((b.x, allowed + half));
         }
         let (fa, fb, fc) = (f(&a), f(&b), f(&c));
@@ -151,6 +175,16 @@ fn brent<E>(a: Evaluation, b: Evaluation, target: f64, eval: &mut dyn FnMut(f64)
         bisected = outside || slow || !s.is_finite();
         if bisected {
             s = 0.5 * (a.x + b.x);
+        }
+        // A step shorter than the resolution the value's error allows is
+        // lengthened to half of it, towards the other end (Brent's own
+        // rule, ch. 4): the next point then usually lands past the root and
+        // the bracket closes, where interpolation kept landing on the same
+        // side (the 5 mT seek evaluated d = 37.381749 twice, then bisected
+        // five times from the far end).
+        let resolution = 0.5 * allowed.max(floor);
+        if (s - b.x).abs() < resolution {
+            s = b.x + resolution.copysign(a.x - b.x);
         }
         let e = eval(s)?;
         d = c.x;
@@ -172,11 +206,12 @@ fn brent<E>(a: Evaluation, b: Evaluation, target: f64, eval: &mut dyn FnMut(f64)
 mod tests {
     use super::*;
 
-    fn exact(x: f64) -> Result<Evaluation, ()> {
+    fn exact(x: f64, _: Need) -> Result<Evaluation, ()> {
         Ok(Evaluation {
             x,
             value: x * x * x,
             error: 0.0,
+            side_only: false,
         })
     }
 
@@ -190,23 +225,55 @@ mod tests {
     #[test]
     fn the_smallest_root_is_taken() {
         // sin crosses 0.5 at pi/6 and 5 pi/6 in [0, 3]: the scan from the low end takes pi/6.
-        let found = seek(0.0, 3.0, 0.5, |x| Ok::<_, ()>(Evaluation { x, value: x.sin(), error: 0.0 })).unwrap();
+        let found = seek(0.0, 3.0, 0.5, |x, _| {
+            Ok::<_, ()>(Evaluation {
+                x,
+                value: x.sin(),
+                error: 0.0,
+                side_only: false,
+            })
+        })
+        .unwrap();
         assert!((found.x - std::f64::consts::FRAC_PI_6).abs() < 1e-8, "{found:?}");
     }
 
     #[test]
     fn an_error_on_the_value_becomes_the_parameters_uncertainty() {
         // value 10 x with error 0.01: x is known to 0.001.
-        let found = seek(0.0, 1.0, 4.0, |x| {
+        let found = seek(0.0, 1.0, 4.0, |x, _| {
             Ok::<_, ()>(Evaluation {
                 x,
                 value: 10.0 * x,
                 error: 0.01,
+                side_only: false,
             })
         })
         .unwrap();
         assert!((found.x - 0.4).abs() <= found.uncertainty, "{found:?}");
         assert!(found.uncertainty < 0.003 && found.uncertainty >= 0.001, "{found:?}");
+    }
+
+    /// Scan points asked at a looser accuracy, each off by 0.9 of its
+    /// (honest) error: those whose side is unsure are asked again in full,
+    /// and the answer and its uncertainty come from full evaluations.
+    #[test]
+    fn scan_points_at_a_looser_accuracy_do_not_set_the_answer() {
+        let found = seek(0.1, 10.0, 2.0, |x, need| {
+            let (error, side_only) = if need == Need::Side { (3.0, true) } else { (1e-9, false) };
+            Ok::<_, ()>(Evaluation {
+                x,
+                value: x * x * x + 0.9 * error,
+                error,
+                side_only,
+            })
+        })
+        .unwrap();
+        let root = 2f64.cbrt();
+        assert!((found.x - root).abs() <= found.uncertainty && found.uncertainty < 1e-6, "{found:?}");
+        assert!(found.evaluations.iter().any(|e| e.x == found.x && !e.side_only), "{found:?}");
+        // x = 1 (value 1 + 2.7 against 2, error 3) was unsure at the looser accuracy.
+        let at_one: Vec<bool> = found.evaluations.iter().filter(|e| e.x == 1.0).map(|e| e.side_only).collect();
+        assert_eq!(at_one, vec![true, false], "{found:?}");
     }
 
     #[test]
