@@ -2,7 +2,7 @@
 //! irreversible loss after an exposure, and the design checks built on them.
 
 use validation::reference::MU0;
-use validation::{assert_honest, record_estimated, solve_case_text};
+use validation::{check_at_default, solve_case_text};
 
 /// The user grade of the closed-form checks: Br 1.2 T, HcJ 800 kA/m,
 /// recoil permeability 1.05, squareness 0.95.
@@ -89,16 +89,14 @@ fn a_round_magnet_driven_into_its_knee_follows_its_load_line() {
         // Against Br: B itself passes near zero as the field grows.
         let e = (b - exact).abs() / GRADE.0;
         eprintln!("applied {applied} T: H {h:.0} A/m, B {b:.6} T against {exact:.6} T, error {e:.2e}");
-        let what = format!("round magnet on its load line at default settings, within its error, applied {applied} T");
-        let estimate = r.errors["probe.centre.by"];
-        record_estimated(
-            &what,
+        check_at_default(
+            &format!("round magnet on its load line at default settings, within its error, applied {applied} T"),
             "uniform state, demagnetizing factor 1/2 (Osborn 1945); error relative to Br",
-            0.001,
-            e,
-            estimate / GRADE.0,
+            &r,
+            "probe.centre.by",
+            exact,
+            GRADE.0,
         );
-        assert_honest(&what, b, estimate, exact, GRADE.0, 0.001);
         let loss_expected = 1.0 - (major_j(h) - (GRADE.2 - 1.0) * MU0 * h) / GRADE.0;
         let loss = r.values["magnet.magnet.loss"];
         assert!((loss - loss_expected).abs() < 0.001, "applied {applied} T: loss {loss} against {loss_expected}");
@@ -127,16 +125,14 @@ fn an_exposure_leaves_the_magnet_on_its_recoil_line() {
         "after {exposed} T: share kept {f:.4}, B {b:.6} T against {exact:.6} T, error {e:.2e}, loss {}",
         r.values["magnet.magnet.loss"]
     );
-    let what = "round magnet after an opposing field, at default settings, within its error";
-    let estimate = r.errors["probe.centre.by"];
-    record_estimated(
-        what,
+    check_at_default(
+        "round magnet after an opposing field, at default settings, within its error",
         "recoil line from the lowest point (closed form); error relative to Br",
-        0.001,
-        e,
-        estimate / br,
+        &r,
+        "probe.centre.by",
+        exact,
+        br,
     );
-    assert_honest(what, b, estimate, exact, br, 0.001);
     let loss = r.values["magnet.magnet.loss"];
     assert!((loss - (1.0 - f)).abs() < 0.001, "loss {loss} against {}", 1.0 - f);
     assert!(r.warnings.iter().any(|w| w.contains("irreversibly")), "{:?}", r.warnings);
@@ -233,16 +229,14 @@ fn a_tabulated_intrinsic_curve_is_followed_into_its_knee() {
         let b = r.values["probe.centre.by"];
         let e = (b - exact).abs() / 1.219;
         eprintln!("table, applied {applied} T: H {h:.0} A/m, B {b:.6} T against {exact:.6} T, error {e:.2e}");
-        let what = format!("tabulated curve on its load line at default settings, within its error, applied {applied} T");
-        let estimate = r.errors["probe.centre.by"];
-        record_estimated(
-            &what,
+        check_at_default(
+            &format!("tabulated curve on its load line at default settings, within its error, applied {applied} T"),
             "uniform state, demagnetizing factor 1/2 (Osborn 1945); error relative to Br",
-            0.001,
-            e,
-            estimate / 1.219,
+            &r,
+            "probe.centre.by",
+            exact,
+            1.219,
         );
-        assert_honest(&what, b, estimate, exact, 1.219, 0.001);
         let loss = r.values["magnet.magnet.loss"];
         // The share kept never exceeds 1 (this table is a little flatter than its recoil slope near 0).
         let expected = (1.0 - (j(h) - 0.043 * MU0 * h) / j(0.0)).max(0.0);
