@@ -57,7 +57,8 @@ def solve(case: CaseLike, set: Optional[Mapping[str, float]] = None, accuracy: U
     of the same tables. ``set`` overrides parameters of ``[params]`` (plain
     numbers, in the units the case uses for them). ``accuracy`` replaces
     ``[study] accuracy``: ``"0.1 %"``, a fraction such as ``1e-3``, or
-    ``"off"``. The GIL is released while the study solves.
+    ``"off"``, as if the case said it (the default element order and first
+    mesh follow it). The GIL is released while the study solves.
     """
     text, path = _case_text(case)
     try:
