@@ -442,6 +442,40 @@ fn bar_magnet_by_a_symmetry_plane_at_default_settings() {
     }
 }
 
+/// A disk magnet (radius 5 mm, 5 mm long, Br 1.2 T, recoil permeability
+/// one, magnetized along the axis) 2 mm below the top side of a
+/// flux-parallel box (z = 0; the box reaches 200 mm, 40 radii, out and
+/// down). By the method of images a flux-parallel plane mirrors magnetic
+/// charge with its own sign, so the disk is pushed off by a reversed image;
+/// named flux-normal, the side mirrors it with the opposite sign and the
+/// disk is pulled on by a like image: either way with the pull of two
+/// coaxial disks 4 mm apart (J. Vokoun et al., J. Magn. Magn. Mater. 321,
+/// 2009, charge model; `coaxial_cylinders_force`). The far walls' images
+/// lie 400 mm off and change the force by about (14 / 400)^4, 1.5e-6.
+#[test]
+fn disk_magnet_by_a_symmetry_plane_at_default_settings() {
+    let pair = validation::reference::coaxial_cylinders_force(1.2, 1.2, 0.005, 0.005, 0.005, 0.005, 0.004);
+    let top = "line = { from = [0, 0], to = [200, 0] }";
+    for (named, exact) in [(String::new(), -pair), (format!("[[boundary]]\nkind = \"flux-normal\"\n{top}\n"), pair)] {
+        let text = format!(
+            "[study]\ntitle = \"disk by a plane\"\ngeometry = \"axisymmetric\"\nunit = \"mm\"\n\
+             boundary = \"flux-parallel\"\nbox = {{ from = [0, -200], to = [200, 0] }}\n\
+             [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet\"\n{OUTPUT}\
+             [[part]]\nname = \"disk\"\nmaterial = \"rigid\"\nmagnetization = \"+z\"\nrect = {{ from = [0, -7], to = [5, -2] }}\n\
+             [[force]]\nname = \"push\"\nparts = [\"disk\"]\n{named}"
+        );
+        let r = solve_case_text(&text, &[]);
+        check_at_default(
+            "disk magnet by a symmetry plane at default settings, within its error",
+            "method of images; Vokoun et al. 2009 (charge model)",
+            &r,
+            "force.push.z",
+            exact,
+            exact.abs(),
+        );
+    }
+}
+
 /// A ring winding (r 7 to 9 mm, z 4 to 6 mm, 2 A/mm^2) beside a rigid
 /// disk magnet (radius 5 mm, 5 mm long, Br 1.2 T, centred at z = 0): the
 /// axial force on the winding, F_z = - integral of J B_r 2 pi r dA with the
