@@ -293,9 +293,10 @@ pub fn results_and_files(
     Ok((results, files))
 }
 
-/// Every output file of a solved variant but the field. The mesh picture and the other pictures are drawn side by
-/// side (on magnet-on-back-plate's 60 000 triangles they took 45 and 60 ms
-/// of the 0.25 s between the last solve and the end of the run).
+/// Every output file of a solved variant but the field. The mesh picture
+/// and the other pictures are drawn side by side (on magnet-on-back-plate's
+/// 60 000 triangles they took 45 and 60 ms of the 0.25 s between the last
+/// solve and the end of the run).
 fn collect_files(model: &Model, sol: &solver::Solution, results: &Results) -> Result<FileSet, Failure> {
     let plots = model.output.plots;
     let ((json, mesh_svg), pictures) = rayon::join(
