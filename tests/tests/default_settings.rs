@@ -308,6 +308,45 @@ fn forces_on_two_magnets_cancel_within_their_errors_at_default_settings() {
     }
 }
 
+/// Angular momentum in statics: the Maxwell stress tensor is symmetric, so
+/// the torques of two magnets on each other about any common point are
+/// equal and opposite (the stress tensor and the conservation laws: J. D.
+/// Jackson, Classical Electrodynamics, 3rd ed., 1999, ch. 6). Two bars magnetized at 0 and 70 degrees, offset; each
+/// torque comes from its own stress band, so the sum, whose exact value is
+/// zero, must lie within twice the sum of their estimates, about the
+/// origin and about a point far to one side.
+#[test]
+fn torques_on_two_magnets_cancel_within_their_errors_at_default_settings() {
+    for about in ["[0, 0]", "[20, -10]"] {
+        let text = format!(
+            "[study]\ntitle = \"torques\"\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = \"1 m\"\n\
+             [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet\"\n{OUTPUT}\
+             [[part]]\nname = \"left\"\nmaterial = \"rigid\"\nmagnetization = \"0 deg\"\nrect = {{ from = [-13, -5], to = [-3, 5] }}\n\
+             [[part]]\nname = \"right\"\nmaterial = \"rigid\"\nmagnetization = \"70 deg\"\nrect = {{ from = [3, -2], to = [13, 8] }}\n\
+             [[force]]\nname = \"on_left\"\nparts = [\"left\"]\ntorque_about = {about}\n\
+             [[force]]\nname = \"on_right\"\nparts = [\"right\"]\ntorque_about = {about}\n"
+        );
+        let r = solve_case_text(&text, &[]);
+        let (a, b) = ("force.on_left.torque", "force.on_right.torque");
+        let scale = r.values[a].abs().max(r.values[b].abs());
+        let sum = r.values[a] + r.values[b];
+        let estimate = r.errors[a] + r.errors[b];
+        eprintln!("about {about}: {} + {} = {sum:e}, estimates {estimate:e}", r.values[a], r.values[b]);
+        assert!(
+            sum.abs() <= 2.0 * estimate,
+            "about {about}: the torques miss cancelling by {sum:e} against estimates {estimate:e}"
+        );
+        assert!(sum.abs() <= TARGET * scale, "about {about}: {sum:e} against {scale}");
+        record_estimated(
+            "torques of two magnets cancel at default settings, within their errors",
+            "symmetric Maxwell stress, angular momentum (Jackson 1999 ch. 6)",
+            TARGET,
+            sum.abs() / scale,
+            estimate / scale,
+        );
+    }
+}
+
 /// A coaxial line (inner conductor of radius 2 mm, return shell from 6 to
 /// 7 mm, 10 A, planar, 1 m long): its field energy against L' I^2 / 2 with
 /// the inductance per length of a coax with both conductors' internal
