@@ -311,10 +311,11 @@ fn forces_on_two_magnets_cancel_within_their_errors_at_default_settings() {
 /// Angular momentum in statics: the Maxwell stress tensor is symmetric, so
 /// the torques of two magnets on each other about any common point are
 /// equal and opposite (the stress tensor and the conservation laws: J. D.
-/// Jackson, Classical Electrodynamics, 3rd ed., 1999, ch. 6). Two bars magnetized at 0 and 70 degrees, offset; each
-/// torque comes from its own stress band, so the sum, whose exact value is
-/// zero, must lie within twice the sum of their estimates, about the
-/// origin and about a point far to one side.
+/// Jackson, Classical Electrodynamics, 3rd ed., 1999, ch. 6). Two bars
+/// magnetized at 0 and 70 degrees, offset; each torque comes from its own
+/// stress band, so the sum, whose exact value is zero, must lie within
+/// twice the sum of their estimates, about the origin and about a point
+/// far to one side.
 #[test]
 fn torques_on_two_magnets_cancel_within_their_errors_at_default_settings() {
     for about in ["[0, 0]", "[20, -10]"] {
