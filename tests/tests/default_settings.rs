@@ -289,23 +289,29 @@ fn forces_on_two_magnets_cancel_within_their_errors_at_default_settings() {
     let r = solve_case_text(&text, &[]);
     let scale = r.values["force.on_small.magnitude"];
     for axis in ["x", "y"] {
-        let (a, b) = (format!("force.on_big.{axis}"), format!("force.on_small.{axis}"));
-        let sum = r.values[&a] + r.values[&b];
-        let estimate = r.errors[&a] + r.errors[&b];
-        eprintln!("{axis}: {} + {} = {sum:e}, estimates {estimate:e}", r.values[&a], r.values[&b]);
-        assert!(
-            sum.abs() <= 2.0 * estimate,
-            "{axis}: the forces miss cancelling by {sum:e} against estimates {estimate:e}"
-        );
-        assert!(sum.abs() <= TARGET * scale, "{axis}: {sum:e} against |F| {scale}");
-        record_estimated(
+        assert_cancel(
             "Newton's third law at default settings, within the forces' errors",
             "action and reaction (Jackson 1999 sec. 5.7)",
-            TARGET,
-            sum.abs() / scale,
-            estimate / scale,
+            &r,
+            [&format!("force.on_big.{axis}"), &format!("force.on_small.{axis}")],
+            scale,
         );
     }
+}
+
+/// Two values whose exact sum is zero (action and reaction): the sum within
+/// twice the sum of their estimates and within the target of `scale`;
+/// recorded for the validation table under `check` with its `source`.
+fn assert_cancel(check: &str, source: &str, r: &study::Results, [a, b]: [&str; 2], scale: f64) {
+    let sum = r.values[a] + r.values[b];
+    let estimate = r.errors[a] + r.errors[b];
+    eprintln!("{check}: {a} + {b}: {} + {} = {sum:e}, estimates {estimate:e}", r.values[a], r.values[b]);
+    assert!(
+        sum.abs() <= 2.0 * estimate,
+        "{a} and {b} miss cancelling by {sum:e} against estimates {estimate:e}"
+    );
+    assert!(sum.abs() <= TARGET * scale, "{a} + {b}: {sum:e} against {scale}");
+    record_estimated(check, source, TARGET, sum.abs() / scale, estimate / scale);
 }
 
 /// Angular momentum in statics: the Maxwell stress tensor is symmetric, so
@@ -329,21 +335,12 @@ fn torques_on_two_magnets_cancel_within_their_errors_at_default_settings() {
         );
         let r = solve_case_text(&text, &[]);
         let (a, b) = ("force.on_left.torque", "force.on_right.torque");
-        let scale = r.values[a].abs().max(r.values[b].abs());
-        let sum = r.values[a] + r.values[b];
-        let estimate = r.errors[a] + r.errors[b];
-        eprintln!("about {about}: {} + {} = {sum:e}, estimates {estimate:e}", r.values[a], r.values[b]);
-        assert!(
-            sum.abs() <= 2.0 * estimate,
-            "about {about}: the torques miss cancelling by {sum:e} against estimates {estimate:e}"
-        );
-        assert!(sum.abs() <= TARGET * scale, "about {about}: {sum:e} against {scale}");
-        record_estimated(
+        assert_cancel(
             "torques of two magnets cancel at default settings, within their errors",
             "symmetric Maxwell stress, angular momentum (Jackson 1999 ch. 6)",
-            TARGET,
-            sum.abs() / scale,
-            estimate / scale,
+            &r,
+            [a, b],
+            r.values[a].abs().max(r.values[b].abs()),
         );
     }
 }
