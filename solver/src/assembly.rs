@@ -91,6 +91,12 @@ impl System {
         })
     }
 
+    /// Whether this structure was made for `mesh` at `order` (one made
+    /// ahead is used for the solve and the prolongation only then).
+    pub fn fits(&self, mesh: &Mesh, order: ElementOrder) -> bool {
+        self.elements.n_physical == mesh.triangles.len() && self.elements.order == order
+    }
+
     /// Fills the tangent and returns the residual at nodal potentials `a` (all nodes).
     ///
     /// Elements whose law is affine in B (air, magnets, linear materials) are

@@ -77,7 +77,7 @@ pub fn solve<'m>(problem: &Problem<'m>, progress: &dyn Fn(usize, f64)) -> Result
 /// nested mesh's structure on the other core while it solves a mesh.
 pub fn solve_on<'m>(problem: &Problem<'m>, structure: Option<System>, progress: &dyn Fn(usize, f64)) -> Result<Solution<'m>, SolveError> {
     let mut system = match structure {
-        Some(s) if s.elements.n_physical == problem.mesh.triangles.len() && s.elements.order == problem.order => s,
+        Some(s) if s.fits(problem.mesh, problem.order) => s,
         _ => System::new(problem.mesh, problem.order)?,
     };
     let (reduced, mut report) = newton_solve(problem, &mut system, progress)?;

@@ -232,7 +232,7 @@ pub fn solve_to_accuracy<R>(
             // The element table of the structure made ahead is the next mesh's (it was built a second time here).
             let built;
             let fine = match &structure_ahead {
-                Some(structure) if structure.elements.order == sol.elements.order => &structure.elements,
+                Some(structure) if structure.fits(&next, sol.elements.order) => &structure.elements,
                 _ => {
                     built = solver::space::Elements::from_mesh(&next, sol.elements.order);
                     &built
