@@ -290,7 +290,7 @@ fn non_convergence_exits_3_with_the_history_and_writes_the_last_iterate() {
 }
 
 /// A small study whose refinement stops at its element limit after two
-/// meshes (14 612 triangles, the next would be 58 448), with expectations.
+/// meshes (10 424 triangles, the next would be 41 696), with expectations.
 fn limited_case(expects: &str) -> String {
     format!(
         r#"[study]
@@ -300,7 +300,7 @@ unit = "mm"
 accuracy = "1 %"
 
 [mesh]
-max_elements = 40000
+max_elements = 20000
 
 [output]
 vtk = false

@@ -71,6 +71,15 @@ pub fn rule(order: ElementOrder, symmetry: Symmetry, boosted: bool) -> &'static 
     RULES[degree / 2 - 2].get_or_init(|| collapsed_gauss(degree))
 }
 
+/// The conical product rule of an even `degree` from 4 to 16 (made once):
+/// for integrands that are not an element's own (the extraction of a
+/// probe's field weights B with a smooth bump).
+pub fn rule_of_degree(degree: usize) -> &'static Rule {
+    static RULES: [OnceLock<Rule>; 7] = [const { OnceLock::new() }; 7];
+    let d = degree.clamp(4, 16).div_ceil(2) * 2;
+    RULES[d / 2 - 2].get_or_init(|| collapsed_gauss(d))
+}
+
 /// The conical product rule exact for polynomials of degree `degree` (even)
 /// on the triangle (A. H. Stroud, Approximate Calculation of Multiple Integrals,
 /// 1971, sec. 2.7): Gauss-Legendre points in the square mapped onto the

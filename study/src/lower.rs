@@ -17,6 +17,9 @@ use std::sync::Arc;
 const CORNER_SHARE: f64 = 0.25;
 /// Turns sharper than this make a corner, degrees.
 const CORNER_TURN_DEG: f64 = 10.0;
+/// The mesh size at a point probe near a part, as a share of its distance to
+/// the part (`point_probe_size`).
+const PROBE_SHARE: f64 = 0.5;
 
 /// The corners of the model's rectangles and polygons that want a finer
 /// mesh: not those on the axis of an axisymmetric study (a face meeting
@@ -43,6 +46,31 @@ fn corner_refinements(model: &Model) -> Vec<Refinement> {
     out
 }
 
+/// The mesh size at a point probe: the study's, and finer where the probe
+/// lies close to a part, so that the ball its field is extracted from
+/// (`solver::post::extraction`, at most 0.9 of the distance to the nearest
+/// part) spans a few elements there (two elements of the longest allowed
+/// edge across the distance; distances are to the parts' bounding boxes,
+/// never more than the distance to the parts themselves). A probe inside a
+/// box keeps the study's size.
+fn point_probe_size(model: &Model, at: [f64; 2]) -> f64 {
+    let clearance = model
+        .parts
+        .iter()
+        .map(|p| {
+            let (lo, hi) = p.shape.bounds();
+            let dx = (lo[0] - at[0]).max(at[0] - hi[0]).max(0.0);
+            let dy = (lo[1] - at[1]).max(at[1] - hi[1]).max(0.0);
+            dx.hypot(dy)
+        })
+        .fold(f64::INFINITY, f64::min);
+    if clearance > 0.0 {
+        model.mesh.size.min(PROBE_SHARE * clearance)
+    } else {
+        model.mesh.size
+    }
+}
+
 /// The mesh spec of a model: every part, every probe as a refinement, and
 /// the parts' corners graded.
 pub fn mesh_spec(model: &Model) -> MeshSpec {
@@ -50,7 +78,10 @@ pub fn mesh_spec(model: &Model) -> MeshSpec {
         .probes
         .iter()
         .map(|p| match p.shape {
-            ProbeShape::Point(at) => Refinement::Point { at, size: model.mesh.size },
+            ProbeShape::Point(at) => Refinement::Point {
+                at,
+                size: point_probe_size(model, at),
+            },
             ProbeShape::Line { from, to, .. } => Refinement::Line {
                 from,
                 to,

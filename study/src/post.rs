@@ -169,12 +169,33 @@ pub fn probe_points(shape: &ProbeShape) -> Vec<[f64; 2]> {
     }
 }
 
+/// The field at a point probe: B extracted from a ball around it where it
+/// lies in current-free vacuum (`solver::post::extraction`), which converges
+/// like an integral; elsewhere B in the element that holds it.
+fn point_field(sol: &Solution, x: [f64; 2]) -> Option<solver::PointField> {
+    let field = sol.field_at(x)?;
+    match solver::post::extraction::extracted_b(sol, x) {
+        Some((b, _)) => {
+            let (e, _) = sol.element_at(x)?;
+            Some(solver::PointField {
+                b,
+                h: sol.element_h(e, b),
+                part: field.part,
+            })
+        }
+        None => Some(field),
+    }
+}
+
 fn probe_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f64>) -> BTreeMap<String, ProbeResult> {
     let mut out = BTreeMap::new();
     let (c0, c1) = if model.symmetry == Symmetry::Planar { ("bx", "by") } else { ("br", "bz") };
     for p in &model.probes {
         let points = probe_points(&p.shape);
-        let fields: Vec<_> = points.iter().map(|&x| sol.field_at(x)).collect();
+        let fields: Vec<_> = match p.shape {
+            ProbeShape::Point(x) => vec![point_field(sol, x)],
+            ProbeShape::Line { .. } => points.iter().map(|&x| sol.field_at(x)).collect(),
+        };
         let b: Vec<[f64; 2]> = fields.iter().map(|f| f.map_or([f64::NAN; 2], |f| f.b)).collect();
         let h: Vec<[f64; 2]> = fields.iter().map(|f| f.map_or([f64::NAN; 2], |f| f.h)).collect();
         let bmag: Vec<f64> = b.iter().map(|v| v[0].hypot(v[1])).collect();

@@ -6,6 +6,7 @@
 pub mod contact;
 pub mod energy;
 pub mod error_indicator;
+pub mod extraction;
 pub mod flux;
 pub mod force;
 pub mod integrate;

@@ -137,9 +137,8 @@ pub fn resolve_with(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path,
     }
     if let Some(target) = accuracy {
         // Quartic elements already start four times coarser (`order_scale`).
-        let integrals_only = top.get("probe").is_none() && top.get("expect").is_none() && mesh.order <= 2;
-        let default_first =
-            mesh_table::default_size(parts_items, &ctx) * mesh_table::first_mesh_scale(target, integrals_only) * mesh_table::order_scale(mesh.order);
+        let asked = if mesh.order <= 2 { asked_values(&top) } else { mesh_table::Asked::Points };
+        let default_first = mesh_table::default_size(parts_items, &ctx) * mesh_table::first_mesh_scale(target, asked) * mesh_table::order_scale(mesh.order);
         if size_given {
             mesh.pilot_meshes = mesh_table::pilot_meshes(mesh.size, default_first);
         } else {
@@ -198,6 +197,41 @@ pub fn resolve_with(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path,
     check_unique_names(&top)?;
     (model.expects, spans.expects) = expects(&top, &ctx, &model)?.into_iter().unzip();
     Ok((model, spans))
+}
+
+/// What kind of values the case asks for, as the first mesh's size goes
+/// (`mesh_table::first_mesh_scale`): integrals only (no probe and no
+/// expectation), or also point probes, whose field is extracted from a ball
+/// around them (`solver::post::extraction`; no line probe, whose peak is
+/// read element by element, and expectations on point probes only), or
+/// anything else. Expectations on forces keep the finest start: a force on
+/// saturating steel converges more slowly (the plunger sweep's pull took a
+/// third mesh in three of five variants from a coarser one, 4 s against
+/// 8 s; docs/measurement-log.md).
+fn asked_values(top: &crate::case::document::Fields) -> mesh_table::Asked {
+    let items = |key: &str| -> Vec<&Item> {
+        match top.get(key).map(|i| &i.value) {
+            Some(Value::Array(a)) => a.iter().collect(),
+            Some(_) => top.get(key).into_iter().collect(),
+            None => Vec::new(),
+        }
+    };
+    let field = |i: &Item, key: &str| -> Option<Value> {
+        match &i.value {
+            Value::Table(t) => t.iter().find(|(k, _)| k.name == key).map(|(_, v)| v.value.clone()),
+            _ => None,
+        }
+    };
+    let (probes, expects) = (items("probe"), items("expect"));
+    let no_lines = probes.iter().all(|p| field(p, "line").is_none());
+    let on_probes = expects
+        .iter()
+        .all(|e| matches!(field(e, "value"), Some(Value::Str(s)) if s.starts_with("probe.")));
+    match (probes.is_empty() && expects.is_empty(), no_lines && on_probes) {
+        (true, _) => mesh_table::Asked::Integrals,
+        (false, true) => mesh_table::Asked::Extracted,
+        _ => mesh_table::Asked::Points,
+    }
 }
 
 /// Refuses a study temperature outside a magnet grade's temperature range.
