@@ -65,7 +65,9 @@ fn point_probe_size(model: &Model, at: [f64; 2]) -> f64 {
         })
         .fold(f64::INFINITY, f64::min);
     if clearance > 0.0 {
-        model.mesh.size.min(PROBE_SHARE * clearance)
+        // Higher orders resolve the ball with fewer, larger elements.
+        let order = f64::from(model.mesh.order.max(2)) / 2.0;
+        model.mesh.size.min(PROBE_SHARE * order * clearance)
     } else {
         model.mesh.size
     }

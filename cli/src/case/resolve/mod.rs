@@ -136,8 +136,12 @@ pub fn resolve_with(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path,
         mesh.order = mesh_table::default_order(accuracy);
     }
     if let Some(target) = accuracy {
-        // Quartic elements already start four times coarser (`order_scale`).
-        let asked = if mesh.order <= 2 { asked_values(&top) } else { mesh_table::Asked::Points };
+        // Quartic elements already start four times coarser (`order_scale`);
+        // forces on them took a third mesh from twice that.
+        let asked = match asked_values(&top) {
+            mesh_table::Asked::Integrals if mesh.order > 2 => mesh_table::Asked::Points,
+            a => a,
+        };
         let default_first = mesh_table::default_size(parts_items, &ctx) * mesh_table::first_mesh_scale(target, asked) * mesh_table::order_scale(mesh.order);
         if size_given {
             mesh.pilot_meshes = mesh_table::pilot_meshes(mesh.size, default_first);
