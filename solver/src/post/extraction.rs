@@ -33,6 +33,7 @@ use crate::material::Law;
 use crate::quadrature::{edge_rule, rule_of_degree};
 use crate::solution::Solution;
 use crate::space::ElementKind;
+use mesher::geometry::point_segment_distance;
 use mesher::{BoundaryTag, Symmetry};
 use rayon::prelude::*;
 
@@ -105,25 +106,13 @@ fn dist(a: [f64; 2], b: [f64; 2]) -> f64 {
     (a[0] - b[0]).hypot(a[1] - b[1])
 }
 
-/// Distance from p to the segment ab.
-fn segment_distance(p: [f64; 2], a: [f64; 2], b: [f64; 2]) -> f64 {
-    let d = [b[0] - a[0], b[1] - a[1]];
-    let len2 = d[0] * d[0] + d[1] * d[1];
-    let t = if len2 > 0.0 {
-        (((p[0] - a[0]) * d[0] + (p[1] - a[1]) * d[1]) / len2).clamp(0.0, 1.0)
-    } else {
-        0.0
-    };
-    dist(p, [a[0] + t * d[0], a[1] + t * d[1]])
-}
-
 /// Distance from p to a straight triangle (zero inside).
 fn triangle_distance(p: [f64; 2], x: &[[f64; 2]; 3]) -> f64 {
     let lam = crate::element::barycentric(x, p);
     if lam.iter().all(|&l| l >= 0.0) {
         return 0.0;
     }
-    (0..3).map(|i| segment_distance(p, x[i], x[(i + 1) % 3])).fold(f64::INFINITY, f64::min)
+    (0..3).map(|i| point_segment_distance(p, x[i], x[(i + 1) % 3])).fold(f64::INFINITY, f64::min)
 }
 
 /// How far x0 is from anything the field is not harmonic across: elements
@@ -146,7 +135,7 @@ fn clearance(sol: &Solution, x0: [f64; 2]) -> f64 {
                 BoundaryTag::Outer | BoundaryTag::Rim | BoundaryTag::Mirror { .. } | BoundaryTag::Periodic { .. }
             )
         })
-        .map(|([a, b], _)| segment_distance(x0, mesh.nodes[*a], mesh.nodes[*b]))
+        .map(|([a, b], _)| point_segment_distance(x0, mesh.nodes[*a], mesh.nodes[*b]))
         .fold(f64::INFINITY, f64::min);
     parts.min(sides)
 }
