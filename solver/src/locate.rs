@@ -82,6 +82,24 @@ impl Locator {
         }
     }
 
+    /// Every element whose box (arcs' bulge included) may overlap the box
+    /// `lo`..`hi`, once each, in ascending order: the candidates of a local
+    /// search without a scan of the whole mesh.
+    pub fn overlapping(&self, lo: [f64; 2], hi: [f64; 2]) -> Vec<usize> {
+        let cell = |v: f64, k: usize| (((v - self.origin[k]) / self.cell).max(0.0) as usize).min(self.dims[k] - 1);
+        if !(lo.iter().chain(&hi).all(|v| v.is_finite())) {
+            return Vec::new();
+        }
+        let (x0, x1, y0, y1) = (cell(lo[0], 0), cell(hi[0], 0), cell(lo[1], 1), cell(hi[1], 1));
+        let mut out: Vec<usize> = (y0..=y1)
+            .flat_map(|iy| (x0..=x1).map(move |ix| iy * self.dims[0] + ix))
+            .flat_map(|c| self.items[self.start[c]..self.start[c + 1]].iter().copied())
+            .collect();
+        out.sort_unstable();
+        out.dedup();
+        out
+    }
+
     /// Every triangle of the grid that contains p (on an edge: several), with barycentrics.
     pub fn containing(&self, els: &Elements, p: [f64; 2]) -> Vec<(usize, [f64; 3])> {
         let fx = (p[0] - self.origin[0]) / self.cell;

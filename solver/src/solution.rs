@@ -177,6 +177,11 @@ impl<'m> Solution<'m> {
         self.locator.containing(&self.elements, p).into_iter().max_by_key(|(e, _)| rank(*e))
     }
 
+    /// The physical elements that may reach into the box `lo`..`hi`, in ascending order.
+    pub fn elements_near(&self, lo: [f64; 2], hi: [f64; 2]) -> Vec<usize> {
+        self.locator.overlapping(lo, hi)
+    }
+
     /// Total potential at a physical point (A_z or A_phi), or None outside.
     pub fn potential_at(&self, p: [f64; 2]) -> Option<f64> {
         Some(self.reduced_potential_at(p)? + self.problem.applied_potential(p))

@@ -65,7 +65,7 @@ pub fn extracted_b(sol: &Solution, x0: [f64; 2]) -> Option<([f64; 2], f64)> {
         return None;
     }
     let width = element_width(&sol.elements.coords[e0]);
-    let rho = (MARGIN * clearance(sol, x0)).min(SPAN * width);
+    let rho = (MARGIN * clearance(sol, x0, SPAN * width / MARGIN)).min(SPAN * width);
     if rho.is_nan() || rho <= 1e-6 * width {
         return None;
     }
@@ -75,7 +75,8 @@ pub fn extracted_b(sol: &Solution, x0: [f64; 2]) -> Option<([f64; 2], f64)> {
         symmetry: sol.symmetry(),
     };
     // Summed in element order, so the value is the same to the bit on every run.
-    let per_element: Vec<[f64; 3]> = (0..sol.elements.n_physical)
+    let near = sol.elements_near([x0[0] - rho, x0[1] - rho], [x0[0] + rho, x0[1] + rho]);
+    let per_element: Vec<[f64; 3]> = near
         .into_par_iter()
         .filter(|&e| ball.reaches(&sol.elements.coords[e], sol.elements.geometry(e).bulge()))
         .map(|e| element_sums(sol, &ball, e))
@@ -117,10 +118,12 @@ fn triangle_distance(p: [f64; 2], x: &[[f64; 2]; 3]) -> f64 {
 
 /// How far x0 is from anything the field is not harmonic across: elements
 /// that are not vacuum (less their arcs' bulge), and the domain's sides
-/// and rim (not the axis).
-fn clearance(sol: &Solution, x0: [f64; 2]) -> f64 {
+/// and rim (not the axis); `reach` or more when nothing is nearer (only
+/// the elements within `reach` are searched).
+fn clearance(sol: &Solution, x0: [f64; 2], reach: f64) -> f64 {
     let els = &sol.elements;
-    let parts = (0..els.n_physical)
+    let near = sol.elements_near([x0[0] - reach, x0[1] - reach], [x0[0] + reach, x0[1] + reach]);
+    let parts = near
         .into_par_iter()
         .filter(|&e| !is_vacuum(sol, e))
         .map(|e| (triangle_distance(x0, &els.coords[e]) - els.geometry(e).bulge()).max(0.0))
@@ -137,7 +140,7 @@ fn clearance(sol: &Solution, x0: [f64; 2]) -> f64 {
         })
         .map(|([a, b], _)| point_segment_distance(x0, mesh.nodes[*a], mesh.nodes[*b]))
         .fold(f64::INFINITY, f64::min);
-    parts.min(sides)
+    parts.min(sides).min(reach)
 }
 
 /// The ball (a disk in the plane; about the axis, the ball in space whose
