@@ -174,17 +174,14 @@ pub fn probe_points(shape: &ProbeShape) -> Vec<[f64; 2]> {
 /// like an integral; elsewhere B in the element that holds it.
 fn point_field(sol: &Solution, x: [f64; 2]) -> Option<solver::PointField> {
     let field = sol.field_at(x)?;
-    match solver::post::extraction::extracted_b(sol, x) {
-        Some((b, _)) => {
-            let (e, _) = sol.element_at(x)?;
-            Some(solver::PointField {
-                b,
-                h: sol.element_h(e, b),
-                part: field.part,
-            })
-        }
-        None => Some(field),
-    }
+    Some(match solver::post::extraction::extracted_b(sol, x) {
+        Some(ex) => solver::PointField {
+            b: ex.b,
+            h: sol.element_h(ex.element, ex.b),
+            part: field.part,
+        },
+        None => field,
+    })
 }
 
 fn probe_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f64>) -> BTreeMap<String, ProbeResult> {

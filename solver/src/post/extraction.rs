@@ -56,10 +56,20 @@ const RING_POINTS: usize = 6;
 /// Deepest subdivision of an element.
 const DEPTH: u32 = 12;
 
-/// B at `x0` by extraction, with the ball's radius; None where the point
-/// is not in current-free vacuum (in a part, a coil, the exterior) or no
-/// ball fits.
-pub fn extracted_b(sol: &Solution, x0: [f64; 2]) -> Option<([f64; 2], f64)> {
+/// B at a point by extraction.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Extracted {
+    /// Flux density, T.
+    pub b: [f64; 2],
+    /// The ball's radius, m.
+    pub radius: f64,
+    /// The element that holds the point.
+    pub element: usize,
+}
+
+/// B at `x0` by extraction; None where the point is not in current-free
+/// vacuum (in a part, a coil, the exterior) or no ball fits.
+pub fn extracted_b(sol: &Solution, x0: [f64; 2]) -> Option<Extracted> {
     let (e0, _) = sol.element_at(x0)?;
     if !is_vacuum(sol, e0) {
         return None;
@@ -82,7 +92,11 @@ pub fn extracted_b(sol: &Solution, x0: [f64; 2]) -> Option<([f64; 2], f64)> {
         .map(|e| element_sums(sol, &ball, e))
         .collect();
     let sums = per_element.iter().fold([0.0; 3], |a, b| [a[0] + b[0], a[1] + b[1], a[2] + b[2]]);
-    (sums[2] > 0.0).then(|| ([sums[0] / sums[2], sums[1] / sums[2]], rho))
+    (sums[2] > 0.0).then(|| Extracted {
+        b: [sums[0] / sums[2], sums[1] / sums[2]],
+        radius: rho,
+        element: e0,
+    })
 }
 
 /// Whether element e is vacuum without current (air, or a part of a
