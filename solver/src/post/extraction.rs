@@ -86,11 +86,7 @@ pub fn extracted_b(sol: &Solution, x0: [f64; 2]) -> Option<Extracted> {
     };
     // Summed in element order, so the value is the same to the bit on every run.
     let near = sol.elements_near([x0[0] - rho, x0[1] - rho], [x0[0] + rho, x0[1] + rho]);
-    let per_element: Vec<[f64; 3]> = near
-        .into_par_iter()
-        .filter(|&e| ball.reaches(&sol.elements.coords[e], sol.elements.geometry(e).bulge()))
-        .map(|e| element_sums(sol, &ball, e))
-        .collect();
+    let per_element: Vec<[f64; 3]> = near.into_par_iter().map(|e| element_sums(sol, &ball, e)).collect();
     let sums = per_element.iter().fold([0.0; 3], |a, b| [a[0] + b[0], a[1] + b[1], a[2] + b[2]]);
     (sums[2] > 0.0).then(|| Extracted {
         b: [sums[0] / sums[2], sums[1] / sums[2]],
@@ -166,13 +162,6 @@ struct Ball {
 }
 
 impl Ball {
-    /// Whether a triangle (its corners, and how far its arcs bulge) can meet the ball.
-    fn reaches(&self, x: &[[f64; 2]; 3], bulge: f64) -> bool {
-        let lo = [0, 1].map(|k| x[0][k].min(x[1][k]).min(x[2][k]) - bulge);
-        let hi = [0, 1].map(|k| x[0][k].max(x[1][k]).max(x[2][k]) + bulge);
-        (0..2).all(|k| lo[k] <= self.x0[k] + self.rho && hi[k] >= self.x0[k] - self.rho) && triangle_distance(self.x0, x) <= self.rho + bulge
-    }
-
     /// The weights of B's two components at x per unit of the element's
     /// integration weight (area in the plane; 2 pi r times area about the axis).
     fn weights(&self, x: [f64; 2]) -> [f64; 2] {
@@ -228,20 +217,21 @@ impl Ball {
 }
 
 /// Element e's share of the weighted integrals of B's two components and of
-/// the weight itself.
+/// the weight itself (zero for an element the ball does not reach).
 fn element_sums(sol: &Solution, ball: &Ball, e: usize) -> [f64; 3] {
     let els = &sol.elements;
     let geom = els.geometry(e);
     let a = els.gather(e, &sol.reduced);
     let background = sol.background(e);
     let rule = rule_of_degree(RULE_DEGREE);
+    let bulge = geom.bulge();
     let mut sums = [0.0; 3];
     let mut stack = vec![([[1.0, 0.0, 0.0], [0.0, 1.0, 0.0], [0.0, 0.0, 1.0]], 0u32)];
     while let Some((lams, depth)) = stack.pop() {
         let corners = lams.map(|l| geom.map(l).0);
         let width = element_width(&corners);
         let far = corners.iter().map(|&c| dist(c, ball.x0)).fold(0.0, f64::max);
-        if triangle_distance(ball.x0, &corners) > ball.rho + geom.bulge() {
+        if triangle_distance(ball.x0, &corners) > ball.rho + bulge {
             continue;
         }
         let inside = far <= ball.rho;
