@@ -82,9 +82,9 @@ pub(super) fn solver_settings(top: &Fields) -> Result<solver::NewtonSettings, Di
 }
 
 /// How much the default size is scaled for the first of the nested meshes
-/// that `[study] accuracy` refines: for targets tighter than 0.1 %,
-/// (target / 0.1 %)^(1/4), at least 1/4; for looser ones
-/// (target / 0.1 %)^(1/2), at most 4. The first two meshes are always
+/// that `[study] accuracy` refines: for targets looser than 0.1 %,
+/// (target / 0.1 %)^(1/2), at most 4; for tighter ones
+/// (target / 0.01 %)^(1/2) within [1/4, 1]. The first two meshes are always
 /// solved, so a looser target starts coarser and a tighter one finer (a
 /// step of four times the triangles saved). Above 0.1 % the step follows
 /// the slowest regular convergence, h^2 (a field at a point on quadratic
@@ -93,9 +93,14 @@ pub(super) fn solver_settings(top: &Fields) -> Result<solver::NewtonSettings, Di
 /// first estimate lands at the same share of any looser target: with the
 /// fourth root P2 at 1 % came out at 0.01 to 0.04 % in 0.28 s for its
 /// three gaps, with the square root at 0.003 to 0.04 % (estimates 0.02 to
-/// 0.18 %) in 0.18 to 0.23 s (docs/measurement-log.md). Below 0.1 % the
-/// fourth root stays: there values on quartic elements converge far faster
-/// than h^2 and a finer start saves a third mesh.
+/// 0.18 %) in 0.18 to 0.23 s (docs/measurement-log.md). Below 0.1 %, where
+/// elements are quartic, the same square root holds from 0.001 % (the size
+/// measured there; a start twice as coarse took a third mesh) up to 0.01 %,
+/// and no coarser above: with the fourth root P2 at 0.01 % came out at
+/// 1e-7 to 5e-7 under estimates of 2e-7 to 2.5e-6, 40 times below the
+/// target, in 1.9 s; from the square root's 1.78 times coarser start at
+/// 2.5e-6 to 5.9e-6 under 7.7e-6 to 1.9e-5 in 1.1 s (1.5 times as coarse
+/// again, one gap took a third mesh).
 ///
 /// A case on quadratic elements that asks for integrals only (forces,
 /// torques, fluxes, the energy: no probe and no expectation) starts twice
@@ -118,7 +123,11 @@ pub fn first_mesh_scale(target: f64, asked: Asked) -> f64 {
         Asked::Points => 1.0,
     };
     let ratio = target / 1e-3;
-    let by_target = if ratio > 1.0 { ratio.sqrt().min(4.0) } else { ratio.powf(0.25).max(0.25) };
+    let by_target = if ratio > 1.0 {
+        ratio.sqrt().min(4.0)
+    } else {
+        (10.0 * ratio).sqrt().clamp(0.25, 1.0)
+    };
     kind * by_target
 }
 
