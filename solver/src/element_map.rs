@@ -179,6 +179,19 @@ impl ElementGeometry<'_> {
         (p, [[-g1[0] - g2[0], -g1[1] - g2[1]], g1, g2], 0.5 * det)
     }
 
+    /// True when p lies beyond one of the element's straight edges by more
+    /// than `margin` (in barycentric units of the straight triangle): then
+    /// it is outside, whatever its curved edges do, since a straight edge
+    /// is the element's own and an arc between two corners stays within
+    /// the angle of the third (its turn is far below the smallest angle).
+    /// Lets point location skip the Newton iteration of `barycentric` on
+    /// curved elements that cannot hold the point (the stray field's 720
+    /// samples near the Kelvin rim spent a fifth of a small run there).
+    pub fn clearly_outside(&self, p: [f64; 2], margin: f64) -> bool {
+        let lam = barycentric(self.corners, p);
+        (0..3).any(|v| lam[v] < -margin && self.curves.iter().all(|c| EDGES[c.edge].contains(&v)))
+    }
+
     /// Barycentric coordinates of the physical point p: exact for a
     /// straight triangle, by Newton's method on the map for a curved one
     /// (started from the straight triangle's answer).

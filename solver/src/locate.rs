@@ -16,6 +16,11 @@ pub struct Locator {
 
 /// Barycentric coordinates may fall this far below zero and still count as inside.
 const INSIDE_TOLERANCE: f64 = 1e-9;
+/// A curved element is skipped without its Newton iteration when the point
+/// lies this far beyond one of its straight edges (a hundredth of the
+/// triangle's height: far past any rounding, so the elements kept and
+/// their coordinates are those of the full test).
+const OUTSIDE_MARGIN: f64 = 1e-2;
 
 impl Locator {
     /// The grid over the physical triangles.
@@ -115,7 +120,11 @@ impl Locator {
         self.items[self.start[c]..self.start[c + 1]]
             .iter()
             .filter_map(|&e| {
-                let lam = els.geometry(e).barycentric(p);
+                let geometry = els.geometry(e);
+                if !geometry.curves.is_empty() && geometry.clearly_outside(p, OUTSIDE_MARGIN) {
+                    return None;
+                }
+                let lam = geometry.barycentric(p);
                 lam.iter().all(|&l| l >= -INSIDE_TOLERANCE).then(|| (e, lam.map(|l| l.max(0.0))))
             })
             .collect()
