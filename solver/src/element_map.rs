@@ -259,6 +259,32 @@ mod tests {
         assert!((back[0] - 0.69).abs() < 1e-12 && (back[1] - 0.69).abs() < 1e-12);
         assert!(lam.iter().all(|&l| l >= 0.0) && barycentric(&x, [0.69, 0.69])[0] < 0.0);
     }
+
+    /// The quick rejection of point location: a point beyond a straight
+    /// edge of the quarter disk is clearly outside, one in the arc's bulge
+    /// beyond the chord is not (only the Newton inversion decides there),
+    /// and on a grid around the element every point it rejects the full
+    /// inversion also puts outside.
+    #[test]
+    fn only_points_beyond_a_straight_edge_are_clearly_outside() {
+        let x = [[0.0, 0.0], [1.0, 0.0], [0.0, 1.0]];
+        let curves = [CurvedEdge::new(1, &x, [0.0, 0.0])];
+        let g = ElementGeometry { corners: &x, curves: &curves };
+        assert!(g.clearly_outside([0.5, -0.1], 1e-2) && g.clearly_outside([-0.1, 0.5], 1e-2));
+        assert!(!g.clearly_outside([0.69, 0.69], 1e-2) && !g.clearly_outside([0.3, 0.3], 1e-2));
+        let mut rejected = 0;
+        for i in -20..=30 {
+            for j in -20..=30 {
+                let p = [i as f64 * 0.05, j as f64 * 0.05];
+                if g.clearly_outside(p, 1e-2) {
+                    rejected += 1;
+                    let inside = p[0] >= 0.0 && p[1] >= 0.0 && p[0].hypot(p[1]) <= 1.0;
+                    assert!(!inside, "{p:?} is in the quarter disk but was rejected");
+                }
+            }
+        }
+        assert!(rejected > 1000, "only {rejected} of 2601 points rejected");
+    }
 }
 #[cfg(test)]
 mod area_tests {
