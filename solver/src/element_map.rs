@@ -263,8 +263,8 @@ mod tests {
     /// The quick rejection of point location: a point beyond a straight
     /// edge of the quarter disk is clearly outside, one in the arc's bulge
     /// beyond the chord is not (only the Newton inversion decides there),
-    /// and on a grid around the element every point it rejects the full
-    /// inversion also puts outside.
+    /// and on a grid around the element every point it rejects lies
+    /// outside the quarter disk.
     #[test]
     fn only_points_beyond_a_straight_edge_are_clearly_outside() {
         let x = [[0.0, 0.0], [1.0, 0.0], [0.0, 1.0]];
