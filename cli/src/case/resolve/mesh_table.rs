@@ -217,3 +217,28 @@ pub(super) fn default_size(parts: &[Item], ctx: &Context) -> f64 {
         ctx.length_unit
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A looser target never starts on a finer first mesh, the scale stays
+    /// within [1/4, 4] of its kind's, and it has no jump at the default
+    /// 0.1 % where the two branches meet.
+    #[test]
+    fn the_first_mesh_coarsens_steadily_with_the_target() {
+        for asked in [Asked::Integrals, Asked::Extracted, Asked::Points] {
+            let kind = first_mesh_scale(1e-3, asked);
+            let mut last = 0.0;
+            for k in 0..=80 {
+                let target = 10f64.powf(-7.0 + 0.08 * f64::from(k));
+                let s = first_mesh_scale(target, asked);
+                assert!(s >= last, "{asked:?}: {s} at {target:e} below {last}");
+                assert!((0.25 * kind..=4.0 * kind).contains(&s), "{asked:?}: {s} at {target:e}");
+                last = s;
+            }
+            let (below, above) = (first_mesh_scale(0.999_999e-3, asked), first_mesh_scale(1.000_001e-3, asked));
+            assert!((above - below).abs() < 1e-5 * kind, "{asked:?}: {below} | {above}");
+        }
+    }
+}
