@@ -121,7 +121,7 @@ impl Locator {
             .iter()
             .filter_map(|&e| {
                 let geometry = els.geometry(e);
-                if !geometry.curves.is_empty() && geometry.clearly_outside(p, OUTSIDE_MARGIN) {
+                if geometry.is_curved() && geometry.clearly_outside(p, OUTSIDE_MARGIN) {
                     return None;
                 }
                 let lam = geometry.barycentric(p);
