@@ -232,10 +232,11 @@ pub fn solve_variant_keeping<T>(
         Stage::Refined {
             step,
             unknowns,
+            order,
             worst_relative_error,
             worst_value,
         } => progress.note(&format!(
-            "{tag}: refinement {step}: {unknowns} unknowns, largest estimated error {:.3} % ({worst_value})",
+            "{tag}: refinement {step}: {unknowns} unknowns (order {order}), largest estimated error {:.3} % ({worst_value})",
             100.0 * worst_relative_error
         )),
     };

@@ -100,6 +100,11 @@ pub(crate) struct History {
     growth: f64,
     previous: BTreeMap<String, f64>,
     change: BTreeMap<String, f64>,
+    /// The next update's change is an order step's (same mesh, order raised).
+    raising: bool,
+    /// The last change was an order step's: the next mesh step's estimate
+    /// is its own change (the rate of an order step says nothing of a mesh step's).
+    after_raise: bool,
     pub(crate) estimate: BTreeMap<String, f64>,
 }
 
@@ -113,8 +118,16 @@ impl History {
             growth: 4.0,
             previous: BTreeMap::new(),
             change: BTreeMap::new(),
+            raising: false,
+            after_raise: false,
             estimate: BTreeMap::new(),
         }
+    }
+
+    /// The next values come from the same mesh at element order `order`.
+    pub(crate) fn raise_order(&mut self, order: u32) {
+        self.order = order;
+        self.raising = true;
     }
 
     /// The estimates for `values` (the finer mesh's, with `unknowns`) against the previous mesh's.
@@ -137,7 +150,7 @@ impl History {
             // The error after the previous change d0 was at least d0 rho_before / (1 - rho_before),
             // and this step took at most the factor rho_min off it.
             let floor = |d0: f64| SAFETY * d0.abs() * rho_before * rho_min / (1.0 - rho_before);
-            let e = match self.change.get(name) {
+            let e = match self.change.get(name).filter(|_| !self.after_raise) {
                 // Changes of one sign: the asymptotic range, where the tail applies.
                 Some(&d0) if d0 != 0.0 && d0.signum() == d.signum() => {
                     let rho = (d / d0).abs().clamp(rho_min, RHO_MAX);
@@ -163,6 +176,7 @@ impl History {
             estimate.insert(name.clone(), e.max(PRECISION * scale(name, values)));
         }
         pollution_floor(values, &mut estimate, self.target);
+        self.after_raise = std::mem::take(&mut self.raising);
         self.previous = values.clone();
         self.change = change;
         self.estimate = estimate;

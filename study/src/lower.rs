@@ -233,10 +233,11 @@ fn radial_laws(model: &Model, mesh: &mesher::Mesh, laws: &mut Vec<Law>) -> Optio
     Some(own.into())
 }
 
-/// Current density of each part: ampere-turns over the meshed area (every
+/// Current density of each part: ampere-turns over the meshed area with
+/// round outlines curved (`Mesh::part_areas_curved`; every
 /// part has area: `check_parts_visible` refuses a covered one first).
 fn current_densities(model: &Model, mesh: &mesher::Mesh) -> Vec<f64> {
-    let areas = mesh.part_areas(model.parts.len());
+    let areas = mesh.part_areas_curved(model.parts.len());
     model.parts.iter().zip(areas).map(|(p, area)| p.current.map_or(0.0, |i| i / area)).collect()
 }
 

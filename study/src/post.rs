@@ -125,7 +125,7 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
             nodes: sol.elements.n_nodes,
             elements: mesh.triangles.len(),
             unknowns: r.n_dofs,
-            element_order: model.mesh.order,
+            element_order: sol.elements.order.degree() as u32,
             min_angle_deg: mesh.quality().min_angle_deg,
         },
         solve: SolveInfo {
@@ -418,7 +418,7 @@ fn modelling_warnings(model: &Model, sol: &Solution) -> Vec<String> {
             }
         }
     }
-    let meshed = sol.problem.mesh.part_areas(model.parts.len());
+    let meshed = sol.problem.mesh.part_areas_curved(model.parts.len());
     for (i, (p, area)) in model.parts.iter().zip(meshed).enumerate() {
         let source = matches!(p.material.material, Material::Magnet(_)) || p.current.is_some();
         let exact = p.shape.exact_area(model.symmetry);

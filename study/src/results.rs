@@ -314,6 +314,10 @@ pub struct Step {
     pub elements: usize,
     /// Unknowns solved for.
     pub unknowns: usize,
+    /// Element order of this step's solve (the first estimate of a case on
+    /// cubic or quartic elements compares it with the order below on the
+    /// same mesh).
+    pub order: u32,
     /// Largest estimated relative error of an asked value (None on the
     /// first mesh, which has nothing to compare with).
     pub worst_relative_error: Option<f64>,
@@ -339,6 +343,21 @@ pub struct Adaptive {
 }
 
 impl Adaptive {
+    /// The solves that led to the values, for the summary and the report:
+    /// "2 nested meshes, order 2", or "2 solves on 1 mesh, order 2 then 3"
+    /// when the first estimate came from an order step.
+    pub fn route(&self) -> String {
+        let solves = self.steps.len();
+        let meshes = 1 + self.steps.windows(2).filter(|w| w[1].order == w[0].order).count();
+        let (first, last) = (self.steps.first().map_or(0, |s| s.order), self.steps.last().map_or(0, |s| s.order));
+        let plural = |n: usize, word: &str| format!("{n} {word}{}", if n == 1 { "" } else { "es" });
+        if first == last {
+            format!("{}, order {last}", plural(meshes, "nested mesh"))
+        } else {
+            format!("{solves} solves on {}, order {first} then {last}", plural(meshes, "nested mesh"))
+        }
+    }
+
     /// The last mesh's largest estimated relative error and the value it
     /// belongs to; None after a single mesh (nothing to compare with).
     pub fn worst(&self) -> Option<(f64, &str)> {

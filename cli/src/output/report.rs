@@ -35,7 +35,7 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
             };
             let _ = writeln!(
                 s,
-                "Accuracy: {} % asked, {} after {} nested mesh(es); {worst}. Every value below carries its estimated error (\u{b1}); results.json has them all under `errors`.\n",
+                "Accuracy: {} % asked, {} after {}; {worst}. Every value below carries its estimated error (\u{b1}); results.json has them all under `errors`.\n",
                 100.0 * a.target,
                 if a.reached {
                     "reached"
@@ -44,7 +44,7 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
                 } else {
                     "NOT reached"
                 },
-                a.steps.len(),
+                a.route(),
             );
         }
         None => {

@@ -151,10 +151,10 @@ fn associated_legendre(x: f64) -> [(f64, f64); TERMS] {
 }
 
 /// Net current out of the plane (planar), A: each part's current density
-/// times its meshed area.
+/// times its meshed area (round outlines curved, as for the densities).
 fn net_current(solution: &Solution) -> f64 {
     let densities = &solution.problem.current_density;
-    let areas = solution.problem.mesh.part_areas(densities.len());
+    let areas = solution.problem.mesh.part_areas_curved(densities.len());
     densities.iter().zip(&areas).map(|(j, a)| j * a).sum()
 }
 

@@ -139,7 +139,7 @@ pub fn resolve_with(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path,
         // Quartic elements already start four times coarser (`order_scale`);
         // forces on them took a third mesh from twice that.
         let asked = match asked_values(&top) {
-            mesh_table::Asked::Integrals if mesh.order > 2 => mesh_table::Asked::Points,
+            mesh_table::Asked::Integrals if mesh.order > 3 => mesh_table::Asked::Points,
             a => a,
         };
         let default_first = mesh_table::default_size(parts_items, &ctx) * mesh_table::first_mesh_scale(target, asked) * mesh_table::order_scale(mesh.order);
