@@ -342,13 +342,18 @@ pub struct Adaptive {
     pub energy_norm: Option<f64>,
 }
 
+/// Distinct meshes among the steps solved: an order step solves its mesh again.
+pub fn meshes_solved(steps: &[Step]) -> usize {
+    1 + steps.windows(2).filter(|w| w[1].order == w[0].order).count()
+}
+
 impl Adaptive {
     /// The solves that led to the values, for the summary and the report:
     /// "2 nested meshes, order 2", or "2 solves on 1 mesh, order 2 then 3"
     /// when the first estimate came from an order step.
     pub fn route(&self) -> String {
         let solves = self.steps.len();
-        let meshes = 1 + self.steps.windows(2).filter(|w| w[1].order == w[0].order).count();
+        let meshes = meshes_solved(&self.steps);
         let (first, last) = (self.steps.first().map_or(0, |s| s.order), self.steps.last().map_or(0, |s| s.order));
         let plural = |n: usize, word: &str| format!("{n} {word}{}", if n == 1 { "" } else { "es" });
         if first == last {

@@ -265,7 +265,8 @@ pub fn solve_to_accuracy<R>(
                     if raise {
                         mesh.clone()
                     } else {
-                        next_mesh(&mesh, &sol, steps.len().saturating_sub(pilots), &round)
+                        // Meshes, not solves: the first mesh step after an order step is uniform, as the second mesh is without one.
+                        next_mesh(&mesh, &sol, crate::results::meshes_solved(&steps).saturating_sub(pilots), &round)
                     }
                 })
             })
