@@ -47,8 +47,23 @@ fn circle_of_edge(tag: BoundaryTag, a: [f64; 2], b: [f64; 2], circles: &[Boundar
     let BoundaryTag::Interface(r1, r2) = tag else { return None };
     circles.iter().copied().find(|c| {
         let on = |p: [f64; 2]| ((p[0] - c.center[0]).hypot(p[1] - c.center[1]) - c.radius).abs() <= 1.01 * c.sagitta + 1e-12 * c.radius;
-        [r1, r2].contains(&crate::mesh::Region::Part(c.part)) && on(a) && on(b) && along_arc(c, a, b)
+        [r1, r2].contains(&crate::mesh::Region::Part(c.part)) && on(a) && on(b) && along_arc(c, a, b) && tangential(c.center, a, b)
     })
+}
+
+/// Whether the edge ab runs along its circle rather than across it: a
+/// chord is square to the radius through its middle (a piece of a chord
+/// that angle refinement split turns from it by at most half the chord's
+/// angle). A short straight edge leaving an arc's end along the radius
+/// (a half ring's flat end) has both ends within the outline's sagitta of
+/// the circle and its middle on the arc's last angle; taken for the arc,
+/// its midpoint went onto the circle, onto the arc's end node, and after
+/// a few bisections at the corner two nodes coincided (a half ring at 0.01
+/// % stopped with "the system matrix is not positive definite").
+fn tangential(center: [f64; 2], a: [f64; 2], b: [f64; 2]) -> bool {
+    let m = midpoint(a, b);
+    let (u, v) = ([b[0] - a[0], b[1] - a[1]], [m[0] - center[0], m[1] - center[1]]);
+    (u[0] * v[0] + u[1] * v[1]).abs() <= 0.5 * u[0].hypot(u[1]) * v[0].hypot(v[1])
 }
 
 /// Whether the edge ab runs along the circle's arc (always, for a full
@@ -376,6 +391,27 @@ pub(crate) mod tests {
         }
         let plain = crate::build_mesh(&s).unwrap().refined().refined();
         assert!(1.0 - plain.part_areas(1)[0] / exact > 10.0 * deficits[2], "plain refinement keeps the polygon");
+    }
+
+    /// A short edge leaving an arc's end along the radius is not on the
+    /// circle, however close to it both its ends lie; a short chord there is.
+    #[test]
+    fn an_edge_across_a_circle_does_not_follow_it() {
+        use crate::mesh::BoundaryTag;
+        use crate::refine::{circle_of_edge, BoundaryCircle};
+        let circle = BoundaryCircle {
+            part: 0,
+            center: [0.0, 0.0],
+            radius: 0.01,
+            sagitta: 3e-4,
+            arc: crate::outline::Arc::of_segment([-0.01, 0.0], [0.01, 0.0], -1.0),
+        };
+        let tag = BoundaryTag::Interface(crate::mesh::Region::Air, crate::mesh::Region::Part(0));
+        let radial = circle_of_edge(tag, [0.01, 0.0], [0.01002, 0.0], &[circle]);
+        assert!(radial.is_none(), "a radial edge taken for the arc");
+        let (t, r) = (1e-3f64, 0.01);
+        let chord = circle_of_edge(tag, [r, 0.0], [r * t.cos(), r * t.sin()], &[circle]);
+        assert!(chord.is_some(), "a chord at the arc's end not taken for it");
     }
 
     /// With its outline edges curved onto the circle, a round part whose
