@@ -357,26 +357,30 @@ pub(crate) mod tests {
         }
     }
 
-    /// A round part's area converges to pi R^2 at the rate of the chords'
-    /// sagitta, h^2, once refinement follows the circle (without it, it stays
-    /// at the first outline's deficit).
-    #[test]
-    fn refinement_follows_round_outlines() {
-        use crate::refine::BoundaryCircle;
+    /// A round part of radius 5 mm meshed at 1 mm, its circle, and the disk's area.
+    fn round_part() -> (MeshSpec, [crate::refine::BoundaryCircle; 1], f64) {
         let (radius, size) = (0.005, 0.001);
         let mut s = spec(Symmetry::Planar);
         s.parts[0] = PartSpec {
             shape: Shape::Circle { center: [0.0, 0.0], radius },
             mesh_size: size,
         };
-        let circle = [BoundaryCircle {
+        let circle = [crate::refine::BoundaryCircle {
             part: 0,
             center: [0.0, 0.0],
             radius,
             sagitta: crate::geometry::circle_sagitta(radius, size),
             arc: None,
         }];
-        let exact = std::f64::consts::PI * radius * radius;
+        (s, circle, std::f64::consts::PI * radius * radius)
+    }
+
+    /// A round part's area converges to pi R^2 at the rate of the chords'
+    /// sagitta, h^2, once refinement follows the circle (without it, it stays
+    /// at the first outline's deficit).
+    #[test]
+    fn refinement_follows_round_outlines() {
+        let (s, circle, exact) = round_part();
         let mut mesh = crate::build_mesh(&s).unwrap();
         mesh.snap_onto(&circle);
         let mut deficits = Vec::new();
@@ -419,21 +423,7 @@ pub(crate) mod tests {
     /// chord triangles alone fall short by about the sagitta's share.
     #[test]
     fn curved_areas_of_a_round_part_are_the_disks() {
-        use crate::refine::BoundaryCircle;
-        let (radius, size) = (0.005, 0.001);
-        let mut s = spec(Symmetry::Planar);
-        s.parts[0] = PartSpec {
-            shape: Shape::Circle { center: [0.0, 0.0], radius },
-            mesh_size: size,
-        };
-        let circle = [BoundaryCircle {
-            part: 0,
-            center: [0.0, 0.0],
-            radius,
-            sagitta: crate::geometry::circle_sagitta(radius, size),
-            arc: None,
-        }];
-        let exact = std::f64::consts::PI * radius * radius;
+        let (s, circle, exact) = round_part();
         let mut mesh = crate::build_mesh(&s).unwrap();
         mesh.follow(&circle);
         let chord_deficit = 1.0 - mesh.part_areas(1)[0] / exact;

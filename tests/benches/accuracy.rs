@@ -16,42 +16,23 @@
 //! `[mesh] order` (default: the case default).
 
 use std::time::Instant;
-use validation::reference::{coaxial_cylinders_force, cylinder_axis_bz};
+use validation::peer_problems::{self, CaseWithExact};
 
-const RIGID: &str = "[materials.rigid]\nbr = \"1.26 T\"\nmur = 1\ndescription = \"rigid magnet\"\n";
-const OUTPUT: &str = "[output]\nvtk = false\nplots = false\nreport = false\ncsv = false\n";
-const R: f64 = 9.525e-3;
-const L: f64 = 25.4e-3;
-
+/// The head of a case at `accuracy`, with `[mesh] order` when `--order P` is given.
 fn head(title: &str, accuracy: &str) -> String {
     let order = std::env::args()
         .skip_while(|a| a != "--order")
         .nth(1)
         .map_or(String::new(), |p| format!("[mesh]\norder = {p}\n"));
-    format!("[study]\ntitle = \"{title}\"\ngeometry = \"axisymmetric\"\nunit = \"mm\"\naccuracy = \"{accuracy}\"\n{RIGID}{OUTPUT}{order}")
+    peer_problems::head(title, accuracy, &order)
 }
 
-fn p1(accuracy: &str) -> (String, Vec<(String, f64)>) {
-    let mut text = head("P1", accuracy);
-    text += "[[part]]\nname = \"magnet\"\nmaterial = \"rigid\"\nmagnetization = \"+z\"\nrect = { from = [0, 0], to = [9.525, 25.4] }\n";
-    let mut exact = Vec::new();
-    for (i, d) in [1.0, 5.0, 23.7, 47.4].iter().enumerate() {
-        text += &format!("[[probe]]\nname = \"d{i}\"\npoint = [0, {}]\n", 25.4 + d);
-        exact.push((format!("probe.d{i}.bz"), cylinder_axis_bz(1.26, R, L, L + d * 1e-3)));
-    }
-    (text, exact)
+fn p1(accuracy: &str) -> CaseWithExact {
+    peer_problems::p1(&head("P1", accuracy))
 }
 
-fn p2(accuracy: &str, gap: f64) -> (String, Vec<(String, f64)>) {
-    let mut text = head("P2", accuracy);
-    text += "[[part]]\nname = \"lower\"\nmaterial = \"rigid\"\nmagnetization = \"+z\"\nrect = { from = [0, -25.4], to = [9.525, 0] }\n";
-    text += &format!(
-        "[[part]]\nname = \"upper\"\nmaterial = \"rigid\"\nmagnetization = \"+z\"\nrect = {{ from = [0, {gap}], to = [9.525, {}] }}\n",
-        gap + 25.4
-    );
-    text += "[[force]]\nname = \"pull\"\nparts = [\"upper\"]\n";
-    let exact = -coaxial_cylinders_force(1.26, 1.26, R, R, L, L, gap * 1e-3);
-    (text, vec![("force.pull.z".into(), exact)])
+fn p2(accuracy: &str, gap: f64) -> CaseWithExact {
+    peer_problems::p2(&head("P2", accuracy), gap)
 }
 
 /// Seconds, worst true relative error, worst estimated relative error,

@@ -2,6 +2,7 @@
 //! closed-form reference fields with their sources.
 
 pub mod module_graph;
+pub mod peer_problems;
 pub mod reference;
 
 use mesher::{build_mesh, Mesh, MeshSpec, OuterBoundary, PartSpec, Refinement, Shape, Symmetry};

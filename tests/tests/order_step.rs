@@ -5,47 +5,22 @@
 //! the estimate, and the estimate at most 20 times the true error or below
 //! a tenth of the target.
 
-use validation::reference::{coaxial_cylinders_force, cylinder_axis_bz};
+use validation::peer_problems::{head, CaseWithExact, OUTPUT};
 use validation::{assert_honest, record_estimated, rel, solve_case_text};
 
-const RIGID: &str = "[materials.rigid]\nbr = \"1.26 T\"\nmur = 1\ndescription = \"rigid magnet, recoil permeability 1\"\n";
-const OUTPUT: &str = "[output]\nvtk = false\nplots = false\nreport = false\n";
-const R: f64 = 9.525e-3;
-const L: f64 = 25.4e-3;
-
-/// P1 of docs/benchmarks.md at `accuracy`: a rigid cylinder's axis field at
-/// 1, 5, 23.7 and 47.4 mm above its face (Derby and Olbert, Am. J. Phys.
-/// 78, 2010), with the exact values.
-fn p1(accuracy: &str) -> (String, Vec<(String, f64)>) {
-    let mut text = format!("[study]\ntitle = \"P1\"\ngeometry = \"axisymmetric\"\nunit = \"mm\"\naccuracy = \"{accuracy}\"\n{RIGID}{OUTPUT}");
-    text += "[[part]]\nname = \"magnet\"\nmaterial = \"rigid\"\nmagnetization = \"+z\"\nrect = { from = [0, 0], to = [9.525, 25.4] }\n";
-    let mut exact = Vec::new();
-    for (i, d) in [1.0, 5.0, 23.7, 47.4].iter().enumerate() {
-        text += &format!("[[probe]]\nname = \"d{i}\"\npoint = [0, {}]\n", 25.4 + d);
-        exact.push((format!("probe.d{i}.bz"), cylinder_axis_bz(1.26, R, L, L + d * 1e-3)));
-    }
-    (text, exact)
+/// P1 of docs/benchmarks.md at `accuracy` (Derby and Olbert 2010).
+fn p1(accuracy: &str) -> CaseWithExact {
+    validation::peer_problems::p1(&head("P1", accuracy, ""))
 }
 
-/// P2 at `accuracy` (with `mesh`, a `[mesh]` table or nothing): two such
-/// cylinders, coaxial, magnetized alike, `gap` mm apart; the pull (charge
-/// model, Vokoun, Beleggia, Heller, Sittner, J. Magn. Magn. Mater. 321, 2009).
-fn p2(accuracy: &str, gap: f64, mesh: &str) -> (String, Vec<(String, f64)>) {
-    let mut text = format!("[study]\ntitle = \"P2\"\ngeometry = \"axisymmetric\"\nunit = \"mm\"\naccuracy = \"{accuracy}\"\n{RIGID}{OUTPUT}{mesh}");
-    text += "[[part]]\nname = \"lower\"\nmaterial = \"rigid\"\nmagnetization = \"+z\"\nrect = { from = [0, -25.4], to = [9.525, 0] }\n";
-    text += &format!(
-        "[[part]]\nname = \"upper\"\nmaterial = \"rigid\"\nmagnetization = \"+z\"\nrect = {{ from = [0, {gap}], to = [9.525, {}] }}\n",
-        gap + 25.4
-    );
-    text += "[[force]]\nname = \"pull\"\nparts = [\"upper\"]\n";
-    (
-        text,
-        vec![("force.pull.z".into(), -coaxial_cylinders_force(1.26, 1.26, R, R, L, L, gap * 1e-3))],
-    )
+/// P2 at `accuracy` and a gap of `gap` mm, with `mesh` (a `[mesh]` table or
+/// nothing) (Vokoun et al. 2009).
+fn p2(accuracy: &str, gap: f64, mesh: &str) -> CaseWithExact {
+    validation::peer_problems::p2(&head("P2", accuracy, mesh), gap)
 }
 
 /// Solves a case and holds each value to its exact one; returns the solve steps' (elements, order).
-fn held_to_exact(what: &str, source: &str, target: f64, (text, exact): (String, Vec<(String, f64)>)) -> Vec<(usize, u32)> {
+fn held_to_exact(what: &str, source: &str, target: f64, (text, exact): CaseWithExact) -> Vec<(usize, u32)> {
     let r = solve_case_text(&text, &[]);
     for (name, x) in &exact {
         let (v, e) = (r.values[name], r.errors[name]);
