@@ -68,7 +68,7 @@ pub fn scale(name: &str, values: &BTreeMap<String, f64>) -> f64 {
 
 /// Whether a value is an integral over the field (energy, force, flux),
 /// which converges twice as fast as a field at a point or a peak.
-fn is_integral(name: &str) -> bool {
+pub(crate) fn is_integral(name: &str) -> bool {
     ["energy", "coenergy", "force.", "flux.", "torque"].iter().any(|p| name.starts_with(p))
 }
 
