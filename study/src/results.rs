@@ -349,7 +349,7 @@ pub fn meshes_solved(steps: &[Step]) -> usize {
 
 impl Adaptive {
     /// The solves that led to the values, for the summary and the report:
-    /// "2 nested meshes, order 2", or "2 solves on 1 mesh, order 2 then 3"
+    /// "2 nested meshes, order 2", or "2 solves on 1 nested mesh, order 3 then 4"
     /// when the first estimate came from an order step.
     pub fn route(&self) -> String {
         let solves = self.steps.len();

@@ -32,7 +32,7 @@ pub enum Stage {
     },
     /// A refinement step finished with this error estimate.
     Refined {
-        /// its number (1 for the first mesh that has a coarser one to compare with)
+        /// its number (1 for the first solve that has one to compare with: a coarser mesh's, or the order below's)
         step: usize,
         /// unknowns of its mesh
         unknowns: usize,
