@@ -192,7 +192,7 @@ fn magnet_in_uniform_field(shape: mesher::Shape, size: f64, recoil: f64, angle_d
     };
     solve_with(Symmetry::Planar, vec![part], vec![], OuterBoundary::Open, [0.0, b0], |sol| {
         let r = force_on(sol, &[0], [0.0; 2]);
-        (r.torque, r.vector, sol.problem.mesh.part_areas(1)[0])
+        (r.torque, r.vector, sol.problem.mesh.part_areas_curved(1)[0])
     })
 }
 
@@ -278,11 +278,11 @@ fn conductors_feel_the_lorentz_and_ampere_forces() {
     // Source: the force on a current in a field, F = I L x B, per metre of a straight conductor
     // in a uniform field (its own field gives no net force), and Ampere's force law between two
     // long parallel round conductors, F = mu0 I1 I2 / (2 pi d) per metre (e.g. Jackson 1999,
-    // sec. 5.2); the current is J times the conductor's meshed area. Within 1 %.
+    // sec. 5.2); the current is J times the conductor's meshed area with its outline curved as the elements are. Within 1 %.
     let (radius, j, b0) = (0.002, 5e6, 0.1);
     let wire = |x: f64| coil(mesher::Shape::Circle { center: [x, 0.0], radius }, 0.0003, j);
     let (force, area) = solve_with(Symmetry::Planar, vec![wire(0.0)], vec![], OuterBoundary::Open, [0.0, b0], |sol| {
-        (force_on(sol, &[0], [0.0; 2]).vector, sol.problem.mesh.part_areas(1)[0])
+        (force_on(sol, &[0], [0.0; 2]).vector, sol.problem.mesh.part_areas_curved(1)[0])
     });
     // Current along +z, field along +y: F = I z x B0 y = -I B0 along x.
     let exact = -j * area * b0;
@@ -294,7 +294,7 @@ fn conductors_feel_the_lorentz_and_ampere_forces() {
         (
             force_on(sol, &[0], [0.0; 2]).vector[0],
             force_on(sol, &[1], [0.0; 2]).vector[0],
-            sol.problem.mesh.part_areas(2),
+            sol.problem.mesh.part_areas_curved(2),
         )
     });
     // Currents the same way attract: the right conductor is pulled towards -x.

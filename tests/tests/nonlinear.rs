@@ -39,8 +39,9 @@ fn toroidal_core_flux_matches_amperes_law() {
             ni / (std::f64::consts::PI * rc * rc),
         );
         let fe = solve_with(Symmetry::Planar, vec![core, hole, wire], vec![], OuterBoundary::Open, [0.0; 2], |sol| {
-            // The wire's polygon area differs from pi rc^2 by the chord error: scale to the meshed current.
-            let meshed = sol.problem.mesh.part_areas(3)[2] * sol.problem.current_density[2];
+            // The current the curved elements carry: the density over the wire's area with its
+            // outline curved (pi rc^2 once its nodes are on the circle), not over the chord triangles'.
+            let meshed = sol.problem.mesh.part_areas_curved(3)[2] * sol.problem.current_density[2];
             (solver::post::flux::line_flux(sol, [r1, 0.0], [r2, 0.0]).unwrap().abs(), meshed)
         });
         let exact = toroidal_core_flux(arctan_saturation_b, fe.1, r1, r2);

@@ -162,7 +162,12 @@ pub fn default_order(accuracy: Option<f64>) -> u32 {
 /// to meet the target there; for p = 4 four times the element size (P1
 /// and P2 at 0.01 % took 0.3 s and 1.9 s with it, 2.2 s and 1.9 s at half,
 /// by mesh steps; with the order step from cubic on it 0.08 s and 0.33 s,
-/// the cubic solve meeting 0.01 % by a factor 2 to 4 on P2's pulls).
+/// the cubic solve meeting 0.01 % by a factor 2 to 4 on P2's pulls). The
+/// size is chosen before the study knows whether it may take the order
+/// step (`study::run::order_step_is_trusted` needs the mesh), so a cubic
+/// case that takes mesh steps instead (steel, a knee, a line probe) starts
+/// on the quadratic size too, twice as fine as before the order step
+/// (integrals-only cases, twice as coarse for the kind, are unchanged).
 pub fn order_scale(order: u32) -> f64 {
     match order {
         3 => 1.0,
