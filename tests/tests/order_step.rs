@@ -1,6 +1,7 @@
 //! The order step (`study::run::ORDER_STEP_FROM`): at targets tighter than
-//! 0.1 % the elements are quartic, and the first estimate compares a cubic
-//! and a quartic solve on one mesh. Held to exact answers like every
+//! 0.1 %, and at every target for a linear, ideal study that leaves the
+//! order and the first mesh to the study, the elements are quartic, and the
+//! first estimate compares a cubic and a quartic solve on one mesh. Held to exact answers like every
 //! estimate: each value within its target, the true error at most twice
 //! the estimate, and the estimate at most 20 times the true error or below
 //! a tenth of the target.
@@ -125,4 +126,44 @@ fn a_magnet_with_a_knee_takes_mesh_steps_only() {
     let r = solve_case_text(&text, &[]);
     let steps = r.adaptive.expect("accuracy is on").steps;
     assert!(!steps.is_empty() && steps.iter().all(|s| s.order == 4), "{steps:?}");
+}
+
+/// A linear, ideal study that leaves the element order and the first mesh
+/// to the study takes the order step at loose targets too (quartic
+/// elements, first estimated against cubic ones on the same mesh): P1 and
+/// P2 at 1 % and 0.1 %, held to their exact values.
+#[test]
+fn loose_targets_of_a_linear_ideal_study_take_the_order_step() {
+    for (accuracy, target) in [("1 %", 1e-2), ("0.1 %", 1e-3)] {
+        let cases = [
+            ("cylinder on-axis B_z at 1 % and 0.1 %, within its error", "Derby & Olbert 2010", p1(accuracy)),
+            (
+                "coaxial magnets attracting (5 mm) at 1 % and 0.1 %, within its error",
+                "Vokoun et al. 2009 (charge model)",
+                p2(accuracy, 5.0, ""),
+            ),
+        ];
+        for (what, source, case) in cases {
+            let steps = held_to_exact(what, source, target, case);
+            assert_eq!((steps[0].1, steps.get(1).map(|s| s.1)), (3, Some(4)), "{what} at {accuracy}: {steps:?}");
+            assert_eq!(steps[0].0, steps[1].0, "{what} at {accuracy}: the order step keeps the mesh");
+        }
+    }
+}
+
+/// At 0.1 % a case keeps quadratic elements and mesh steps when it gives a
+/// mesh size, or when a point probe lies within a part's box (here inside
+/// the magnet): the order is chosen before the mesh can tell air from part.
+#[test]
+fn a_hand_set_size_or_a_probe_in_a_part_keeps_quadratic_elements() {
+    let (text, _) = p1("0.1 %");
+    let sized = text.replace("[[part]]", "[mesh]\nsize = 2\n[[part]]");
+    let inside = text.clone() + "[[probe]]\nname = \"inside\"\npoint = [4, 12]\n";
+    for (what, case) in [("a hand-set size", sized), ("a probe inside the magnet", inside)] {
+        let r = solve_case_text(&case, &[]);
+        let steps = r.adaptive.expect("accuracy is on").steps;
+        assert!(steps.len() >= 2 && steps.iter().all(|s| s.order == 2), "{what}: {steps:?}");
+    }
+    let plain = solve_case_text(&text, &[]).adaptive.expect("accuracy is on").steps;
+    assert_eq!(plain[0].order, 3, "without either, the order step: {plain:?}");
 }

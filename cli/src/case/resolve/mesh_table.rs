@@ -142,6 +142,15 @@ pub enum Asked {
     Points,
 }
 
+/// The element order a linear, ideal study takes when the case gives
+/// neither `[mesh] order` nor `size` (`study::run::order_step_is_trusted_unmeshed`):
+/// quartic, its first estimate from the cubic solve on the same mesh (the
+/// order step). P1 and P2 (a cylinder's axis field, the pull of two
+/// cylinders) at 1 % took 0.043 and 0.139 s against 0.096 and 0.205 s
+/// on quadratic elements, at 0.1 % 0.055 and 0.21 s against 0.155 and
+/// 0.44 s, the estimates as honest (docs/measurement-log.md).
+pub const ORDER_STEP_ORDER: u32 = 4;
+
 /// The element order when `[mesh] order` is not given: quadratic down to
 /// the default 0.1 %, quartic for tighter targets. On P1 and P2 (a
 /// cylinder's axis field, the pull of two cylinders) quartic elements
@@ -173,6 +182,28 @@ pub fn order_scale(order: u32) -> f64 {
         3 => 1.0,
         4 => 4.0,
         _ => 1.0,
+    }
+}
+
+/// The growth of the element size away from parts, sources and corners
+/// (`[mesh] grading`) when the case does not give it and accuracy is on:
+/// quartic elements follow a smooth field over longer elements, so their
+/// mesh may coarsen faster away from where the field varies sharply.
+/// Measured on P1 and P2 (a cylinder's axis field, the pull of two
+/// cylinders; docs/measurement-log.md): at 1.45, P1 and P2 at 0.01 % in
+/// 0.073 and 0.26 s against 0.096 and 0.35 s at 1.3, at 0.001 % in 0.15
+/// and 0.61 s against 0.19 and 0.91 s, every estimate as honest. Steeper
+/// was faster still (2.0: P1 at 0.001 % in 0.12 s) but the order step's
+/// estimate of a far point (23.7 mm above the magnet) came out 68 times
+/// its true error at 0.001 %, above a tenth of the target: the cubic solve
+/// it compares with falls behind the quartic one on long elements.
+/// Other orders keep the default (cubic at 1.6 left P1's estimates as
+/// loose as at 1.3; quadratic at 1.45 and 1.6 was no faster beyond the
+/// machine's noise).
+pub fn adaptive_grading(order: u32) -> f64 {
+    match order {
+        4 => 1.45,
+        _ => DEFAULT_GRADING,
     }
 }
 

@@ -85,6 +85,25 @@ pub fn resolve(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path) -> R
 /// first mesh follow it too. (Set on the model afterwards, an accuracy of
 /// 0.01 % kept the quadratic elements and first mesh sized for 0.1 %.)
 pub fn resolve_with(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path, accuracy: Option<Option<f64>>) -> Result<(Model, Spans), Diagnostic> {
+    let (model, spans, order_chosen) = resolve_at(doc, params, case_dir, accuracy, None)?;
+    if order_chosen && model.mesh.order < mesh_table::ORDER_STEP_ORDER && study::run::order_step_is_trusted_unmeshed(&model) {
+        let (model, spans, _) = resolve_at(doc, params, case_dir, accuracy, Some(mesh_table::ORDER_STEP_ORDER))?;
+        return Ok((model, spans));
+    }
+    Ok((model, spans))
+}
+
+/// `resolve_with` at element order `order` when the case gives none
+/// (None: `mesh_table::default_order`), and whether the order and the
+/// first mesh were left to the study (accuracy on, neither `[mesh] order`
+/// nor `size` given).
+fn resolve_at(
+    doc: &Item,
+    params: &BTreeMap<String, f64>,
+    case_dir: &Path,
+    accuracy: Option<Option<f64>>,
+    order: Option<u32>,
+) -> Result<(Model, Spans, bool), Diagnostic> {
     let top = doc.table("the case file", TOP)?;
     let empty = Item {
         value: Value::Table(Vec::new()),
@@ -124,16 +143,19 @@ pub fn resolve_with(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path,
         None => study_table::accuracy(&study)?,
     };
     let mut mesh = mesh_settings(&top, &ctx, parts_items)?;
-    let size_given = top
-        .get("mesh")
-        .and_then(|m| m.table("[mesh]", mesh_table::MESH).ok())
-        .is_some_and(|m| m.get("size").is_some());
-    let order_given = top
-        .get("mesh")
-        .and_then(|m| m.table("[mesh]", mesh_table::MESH).ok())
-        .is_some_and(|m| m.get("order").is_some());
-    if !order_given {
-        mesh.order = mesh_table::default_order(accuracy);
+    let mesh_key_given = |key: &str| {
+        top.get("mesh")
+            .and_then(|m| m.table("[mesh]", mesh_table::MESH).ok())
+            .is_some_and(|m| m.get(key).is_some())
+    };
+    let size_given = mesh_key_given("size");
+    let order_chosen = accuracy.is_some() && !size_given && !mesh_key_given("order");
+    if !mesh_key_given("order") {
+        mesh.order = order.unwrap_or_else(|| mesh_table::default_order(accuracy));
+    }
+    let grading_given = mesh_key_given("grading");
+    if accuracy.is_some() && !grading_given {
+        mesh.grading = mesh_table::adaptive_grading(mesh.order);
     }
     if let Some(target) = accuracy {
         // Quartic elements already start four times coarser (`order_scale`);
@@ -200,7 +222,7 @@ pub fn resolve_with(doc: &Item, params: &BTreeMap<String, f64>, case_dir: &Path,
     model.fluxes = fluxes(&top, &ctx, &model)?;
     check_unique_names(&top)?;
     (model.expects, spans.expects) = expects(&top, &ctx, &model)?.into_iter().unzip();
-    Ok((model, spans))
+    Ok((model, spans, order_chosen))
 }
 
 /// What kind of values the case asks for, as the first mesh's size goes
