@@ -326,7 +326,7 @@ impl Work<'_> {
     }
 
     fn extract(&self, symmetry: Symmetry, domain: &Domain) -> Mesh {
-        let nodes: Vec<[f64; 2]> = self.cdt.vertices().map(|v| [v.position().x, v.position().y]).collect();
+        let nodes: Vec<[f64; 2]> = self.cdt.vertices().map(|v| onto_box_sides([v.position().x, v.position().y], domain)).collect();
         let regions_by_face = face_regions(&self.cdt, self.polygons, &self.parts);
         let mut triangles = Vec::with_capacity(self.cdt.num_inner_faces());
         let mut regions = Vec::with_capacity(self.cdt.num_inner_faces());
@@ -377,6 +377,26 @@ impl Work<'_> {
             circles: Vec::new(),
         }
     }
+}
+
+/// A point within a billionth of the box's extent of a box side, put on it
+/// exactly: the angle refinement splits a side's edges at blends of their
+/// ends, which can land a rounding error off x = const, and an edge so
+/// placed was tagged as no side at all (`box_side_tag` compares exactly):
+/// on a periodic array's right side it held the potential at zero, and the
+/// field came out 30 % off.
+fn onto_box_sides(mut p: [f64; 2], domain: &Domain) -> [f64; 2] {
+    if let Some((b0, b1, _)) = &domain.sides {
+        for c in 0..2 {
+            let tol = 1e-9 * (b1[c] - b0[c]);
+            for v in [b0[c], b1[c]] {
+                if (p[c] - v).abs() <= tol {
+                    p[c] = v;
+                }
+            }
+        }
+    }
+    p
 }
 
 /// The tag of a box edge: what the side it lies on was named.
