@@ -164,7 +164,8 @@ fn resolve_at(
             mesh_table::Asked::Integrals if mesh.order > 3 => mesh_table::Asked::Points,
             a => a,
         };
-        let default_first = mesh_table::default_size(parts_items, &ctx) * mesh_table::first_mesh_scale(target, asked) * mesh_table::order_scale(mesh.order);
+        let default_first =
+            mesh_table::default_size(parts_items, &ctx) * mesh_table::first_mesh_scale(target, asked, mesh.order) * mesh_table::order_scale(mesh.order);
         if size_given {
             mesh.pilot_meshes = mesh_table::pilot_meshes(mesh.size, default_first);
         } else {
