@@ -4,6 +4,7 @@
 use crate::solution::Solution;
 use crate::MU0;
 use mesher::Symmetry;
+use rayon::prelude::*;
 use std::f64::consts::PI;
 
 /// Terms of the exterior multipole series fitted by `exterior_series`.
@@ -162,15 +163,24 @@ fn net_current(solution: &Solution) -> f64 {
 /// exceeds `level`: from the solution up to `limit`, then (if still above)
 /// from the exterior series `far` beyond it. None when the field never
 /// reaches the level at the origin side, or the series is missing.
+/// The 800 samples are taken on every core (each is a point search and an
+/// element evaluation; the scan after them is the same as one by one).
 pub fn fall_distance(solution: &Solution, origin: [f64; 2], dir: [f64; 2], limit: f64, level: f64, far: Option<&ExteriorSeries>) -> Option<f64> {
     let n = 800;
+    let at = |k: usize| limit * k as f64 / n as f64;
+    let samples: Vec<Option<f64>> = (1..=n)
+        .into_par_iter()
+        .map(|k| {
+            let d = at(k);
+            let f = solution.field_at([origin[0] + d * dir[0], origin[1] + d * dir[1]])?;
+            Some(f.b[0].hypot(f.b[1]))
+        })
+        .collect();
     let mut last: Option<(f64, f64)> = None;
     let mut crossing = None;
-    for k in 1..=n {
-        let d = limit * k as f64 / n as f64;
-        let p = [origin[0] + d * dir[0], origin[1] + d * dir[1]];
-        let Some(f) = solution.field_at(p) else { break };
-        let b = f.b[0].hypot(f.b[1]);
+    for (k, sample) in (1..=n).zip(samples) {
+        let d = at(k);
+        let Some(b) = sample else { break };
         if b >= level {
             crossing = None;
         } else if crossing.is_none() {
@@ -193,14 +203,13 @@ fn beyond(series: &ExteriorSeries, origin: [f64; 2], dir: [f64; 2], from: f64, l
         let v = series.b_at([origin[0] + d * dir[0], origin[1] + d * dir[1]]);
         v[0].hypot(v[1])
     };
-    let mut last_above = None;
+    let mut steps = Vec::new();
     let mut d = from;
     while d < 1e6 * from {
-        if b(d) >= level {
-            last_above = Some(d);
-        }
+        steps.push(d);
         d *= 1.02;
     }
+    let last_above = steps.into_par_iter().filter(|&d| b(d) >= level).max_by(f64::total_cmp);
     // Above at the rim by the mesh but below by the series: the crossing is at the rim.
     let Some(above) = last_above else { return Some(from) };
     let (mut lo, mut hi) = (above, above * 1.02);
