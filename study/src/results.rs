@@ -323,7 +323,9 @@ pub struct Step {
     pub worst_relative_error: Option<f64>,
     /// The value it belongs to.
     pub worst_value: Option<String>,
-    /// Seconds for this step's solve and estimate.
+    /// Seconds for this step's solve and estimate (when the two orders of
+    /// an order step ran at once, the lower's own and the higher's from
+    /// the start of both).
     pub seconds: f64,
 }
 
