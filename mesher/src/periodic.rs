@@ -8,6 +8,7 @@
 use super::Work;
 use crate::error::MeshError;
 use crate::spec::{BoxSides, SideKind, BOTTOM, LEFT};
+use crate::triangulate::BOX_TOLERANCE;
 use spade::Triangulation;
 
 /// Rounds of inserting images and refining again before giving up.
@@ -65,8 +66,8 @@ impl Work<'_> {
     /// matrix not positive definite).
     fn missing_images(&self, c: usize, b0: [f64; 2], b1: [f64; 2]) -> Vec<[f64; 2]> {
         let along = 1 - c;
-        let tol = 1e-9 * (b1[along] - b0[along]);
-        let across = 1e-9 * (b1[c] - b0[c]);
+        let tol = BOX_TOLERANCE * (b1[along] - b0[along]);
+        let across = BOX_TOLERANCE * (b1[c] - b0[c]);
         let on = |x: f64| -> Vec<f64> {
             let mut v: Vec<f64> = self
                 .cdt
@@ -97,7 +98,7 @@ impl Work<'_> {
         for face in self.cdt.inner_faces() {
             let p = face.positions();
             for &c in fixed_axes {
-                let across = 1e-9 * (b1[c] - b0[c]);
+                let across = BOX_TOLERANCE * (b1[c] - b0[c]);
                 let at = |x: f64| p.iter().any(|q| ([q.x, q.y][c] - x).abs() <= across);
                 if at(b0[c]) && at(b1[c]) {
                     return Err(MeshError::Triangulation(

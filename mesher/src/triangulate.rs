@@ -379,6 +379,10 @@ impl Work<'_> {
     }
 }
 
+/// Points within this share of the box's extent of a box side lie on it
+/// (`onto_box_sides`, the periodic matching).
+pub(crate) const BOX_TOLERANCE: f64 = 1e-9;
+
 /// A point within a billionth of the box's extent of a box side, put on it
 /// exactly: the angle refinement splits a side's edges at blends of their
 /// ends, which can land a rounding error off x = const, and an edge so
@@ -388,7 +392,7 @@ impl Work<'_> {
 fn onto_box_sides(mut p: [f64; 2], domain: &Domain) -> [f64; 2] {
     if let Some((b0, b1, _)) = &domain.sides {
         for c in 0..2 {
-            let tol = 1e-9 * (b1[c] - b0[c]);
+            let tol = BOX_TOLERANCE * (b1[c] - b0[c]);
             for v in [b0[c], b1[c]] {
                 if (p[c] - v).abs() <= tol {
                     p[c] = v;
