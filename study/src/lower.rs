@@ -54,7 +54,20 @@ fn corner_refinements(model: &Model) -> Vec<Refinement> {
 /// never more than the distance to the parts themselves). A probe inside a
 /// box keeps the study's size.
 fn point_probe_size(model: &Model, at: [f64; 2]) -> f64 {
-    let clearance = model
+    let clearance = box_clearance(model, at);
+    if clearance > 0.0 {
+        // Higher orders resolve the ball with fewer, larger elements.
+        let order = f64::from(model.mesh.order.max(2)) / 2.0;
+        model.mesh.size.min(PROBE_SHARE * order * clearance)
+    } else {
+        model.mesh.size
+    }
+}
+
+/// Distance from `at` to the nearest part's bounding box (zero inside or
+/// on one): never more than the distance to the parts themselves.
+pub(crate) fn box_clearance(model: &Model, at: [f64; 2]) -> f64 {
+    model
         .parts
         .iter()
         .map(|p| {
@@ -63,14 +76,7 @@ fn point_probe_size(model: &Model, at: [f64; 2]) -> f64 {
             let dy = (lo[1] - at[1]).max(at[1] - hi[1]).max(0.0);
             dx.hypot(dy)
         })
-        .fold(f64::INFINITY, f64::min);
-    if clearance > 0.0 {
-        // Higher orders resolve the ball with fewer, larger elements.
-        let order = f64::from(model.mesh.order.max(2)) / 2.0;
-        model.mesh.size.min(PROBE_SHARE * order * clearance)
-    } else {
-        model.mesh.size
-    }
+        .fold(f64::INFINITY, f64::min)
 }
 
 /// The mesh spec of a model: every part, every probe as a refinement, and

@@ -185,21 +185,13 @@ fn order_step_is_trusted(model: &Model, mesh: &mesher::Mesh) -> bool {
 /// probe in a ring's hole is in air, but only the mesh can tell). Whatever
 /// passes here passes on the mesh too.
 pub fn order_step_is_trusted_unmeshed(model: &Model) -> bool {
-    is_linear_and_ideal(model) && asks_only_integrals_and_points(model, |at| clear_of_parts(model, at))
+    is_linear_and_ideal(model) && asks_only_integrals_and_points(model, |at| lower::box_clearance(model, at) > 0.0)
 }
 
 /// Linear materials, magnets without a knee to reach and no data set per
 /// element: what the order step's estimate was held to exact answers on.
 fn is_linear_and_ideal(model: &Model) -> bool {
     !has_elementwise_data(model) && !has_working_point_statistics(model)
-}
-
-/// Whether `at` lies outside every part's bounding box (on its edge counts as inside).
-fn clear_of_parts(model: &Model, at: [f64; 2]) -> bool {
-    model.parts.iter().all(|p| {
-        let (lo, hi) = p.shape.bounds();
-        at[0] < lo[0] || at[0] > hi[0] || at[1] < lo[1] || at[1] > hi[1]
-    })
 }
 
 /// Whether the model reports shares and percentiles of its quadrature

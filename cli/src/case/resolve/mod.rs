@@ -149,8 +149,9 @@ fn resolve_at(
             .is_some_and(|m| m.get(key).is_some())
     };
     let size_given = mesh_key_given("size");
-    let order_chosen = accuracy.is_some() && !size_given && !mesh_key_given("order");
-    if !mesh_key_given("order") {
+    let order_given = mesh_key_given("order");
+    let order_chosen = accuracy.is_some() && !size_given && !order_given;
+    if !order_given {
         mesh.order = order.unwrap_or_else(|| mesh_table::default_order(accuracy));
     }
     let grading_given = mesh_key_given("grading");
