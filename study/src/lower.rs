@@ -65,12 +65,18 @@ fn point_probe_size(model: &Model, at: [f64; 2]) -> f64 {
     let box_distance = box_clearance(model, at);
     let clearance = if box_distance > 0.0 { box_distance } else { outline_clearance(model, at) };
     if clearance > 0.0 {
-        // Higher orders resolve the ball with fewer, larger elements.
-        let order = f64::from(model.mesh.order.max(2)) / 2.0;
-        model.mesh.size.min(PROBE_SHARE * order * clearance).max(PROBE_FLOOR * model.mesh.size)
+        size_for_room(model, clearance)
     } else {
         model.mesh.size
     }
+}
+
+/// The mesh size at a probe with `room` to the nearest part, outline or rim:
+/// `PROBE_SHARE` of it, scaled by the order (higher orders resolve the ball
+/// with fewer, larger elements), within [`PROBE_FLOOR`, 1] of the study's size.
+fn size_for_room(model: &Model, room: f64) -> f64 {
+    let order = f64::from(model.mesh.order.max(2)) / 2.0;
+    model.mesh.size.min(PROBE_SHARE * order * room).max(PROBE_FLOOR * model.mesh.size)
 }
 
 /// Distance from `at` to the nearest part outline, inside or outside it.
@@ -154,12 +160,12 @@ pub fn mesh_spec(model: &Model) -> MeshSpec {
 /// its neighbours' (6.6e-6; docs/measurement-log.md, tenth session).
 fn near_the_rim(model: &Model, spec: &mut MeshSpec) {
     let Ok(Some((c, radius))) = mesher::open_rim(spec) else { return };
-    let order = f64::from(model.mesh.order.max(2)) / 2.0;
+    // The probes' refinements come first, in the probes' order (`mesh_spec`).
     for r in spec.refinements.iter_mut().take(model.probes.len()) {
         if let Refinement::Point { at, size } = r {
             let room = radius - (at[0] - c[0]).hypot(at[1] - c[1]);
             if room > 0.0 {
-                *size = size.min((PROBE_SHARE * order * room).max(PROBE_FLOOR * model.mesh.size));
+                *size = size.min(size_for_room(model, room));
             }
         }
     }
