@@ -54,14 +54,6 @@ pub fn build_mesh(spec: &MeshSpec) -> Result<Mesh, MeshError> {
     triangulate::mesh_domain(spec, &rings, &domain)
 }
 
-/// The open boundary's circle (centre, radius) for an open study, None for
-/// a box: a probe's field is extracted from a ball that stays inside it,
-/// so the study sizes the mesh at a probe near it by its distance to it.
-pub fn open_rim(spec: &MeshSpec) -> Result<Option<([f64; 2], f64)>, MeshError> {
-    let rings = geometry::part_polygons(spec)?;
-    Ok(Domain::enclosing(spec, &rings.rings)?.kelvin)
-}
-
 /// Estimated number of triangles the spec would produce (before meshing).
 pub fn estimate_triangles(spec: &MeshSpec) -> Result<f64, MeshError> {
     let rings = geometry::part_polygons(spec)?;

@@ -65,18 +65,12 @@ fn point_probe_size(model: &Model, at: [f64; 2]) -> f64 {
     let box_distance = box_clearance(model, at);
     let clearance = if box_distance > 0.0 { box_distance } else { outline_clearance(model, at) };
     if clearance > 0.0 {
-        size_for_room(model, clearance)
+        // Higher orders resolve the ball with fewer, larger elements.
+        let order = f64::from(model.mesh.order.max(2)) / 2.0;
+        model.mesh.size.min(PROBE_SHARE * order * clearance).max(PROBE_FLOOR * model.mesh.size)
     } else {
         model.mesh.size
     }
-}
-
-/// The mesh size at a probe with `room` to the nearest part, outline or rim:
-/// `PROBE_SHARE` of it, scaled by the order (higher orders resolve the ball
-/// with fewer, larger elements), within [`PROBE_FLOOR`, 1] of the study's size.
-fn size_for_room(model: &Model, room: f64) -> f64 {
-    let order = f64::from(model.mesh.order.max(2)) / 2.0;
-    model.mesh.size.min(PROBE_SHARE * order * room).max(PROBE_FLOOR * model.mesh.size)
 }
 
 /// Distance from `at` to the nearest part outline, inside or outside it.
@@ -132,7 +126,7 @@ pub fn mesh_spec(model: &Model) -> MeshSpec {
     if model.accuracy.is_some() {
         refinements.extend(corner_refinements(model));
     }
-    let mut spec = MeshSpec {
+    MeshSpec {
         symmetry: model.symmetry,
         parts: model
             .parts
@@ -147,27 +141,6 @@ pub fn mesh_spec(model: &Model) -> MeshSpec {
         min_angle_deg: model.mesh.min_angle,
         grading: model.mesh.grading,
         max_triangles: model.mesh.max_elements,
-    };
-    near_the_rim(model, &mut spec);
-    spec
-}
-
-/// Point probes near the open boundary's rim sized by their distance to it
-/// as to a part (`point_probe_size`): the ball their field is extracted
-/// from stays inside the rim, and with the rim at 1.1 times the farthest
-/// probe a probe beside a cylinder sat 1.4 mm from it in 5 mm elements;
-/// its ball a fifth of their width, its quartic error came out 300 times
-/// its neighbours' (6.6e-6; docs/measurement-log.md, tenth session).
-fn near_the_rim(model: &Model, spec: &mut MeshSpec) {
-    let Ok(Some((c, radius))) = mesher::open_rim(spec) else { return };
-    // The probes' refinements come first, in the probes' order (`mesh_spec`).
-    for r in spec.refinements.iter_mut().take(model.probes.len()) {
-        if let Refinement::Point { at, size } = r {
-            let room = radius - (at[0] - c[0]).hypot(at[1] - c[1]);
-            if room > 0.0 {
-                *size = size.min(size_for_room(model, room));
-            }
-        }
     }
 }
 
