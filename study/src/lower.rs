@@ -64,7 +64,36 @@ fn corner_refinements(model: &Model) -> Vec<Refinement> {
 fn point_probe_size(model: &Model, at: [f64; 2]) -> f64 {
     let box_distance = box_clearance(model, at);
     let clearance = if box_distance > 0.0 { box_distance } else { outline_clearance(model, at) };
-    if clearance > 0.0 {
+    size_at_clearance(model, clearance)
+}
+
+/// The mesh size along a line probe: as at a point probe outside the
+/// parts' boxes, for the nearest of its points. Its values are read in
+/// the elements holding them, and the field there varies on the scale of
+/// its distance to the parts: a row of blocks with its line probe 3 mm
+/// from the magnets' faces on a mesh of the study's 4 mm (a twentieth of
+/// its 80 mm steel backing) took four meshes for the line's peak, and
+/// 1.5 mm had to be set by hand; a row whose line probe lies 5 mm away
+/// started, on a twentieth of one block, on a mesh eight times finer than
+/// 0.1 % needed (docs/measurement-log.md, eleventh session). A line that
+/// touches or crosses a part's box keeps the study's size.
+fn line_probe_size(model: &Model, from: [f64; 2], to: [f64; 2], points: usize) -> f64 {
+    let last = points.saturating_sub(1).max(1) as f64;
+    let clearance = (0..points.max(2))
+        .map(|i| {
+            let t = i as f64 / last;
+            box_clearance(model, [from[0] + t * (to[0] - from[0]), from[1] + t * (to[1] - from[1])])
+        })
+        .fold(f64::INFINITY, f64::min);
+    size_at_clearance(model, clearance)
+}
+
+/// The mesh size at a probe `clearance` from the nearest part (zero on a
+/// part's outline): two elements of the longest allowed edge across the
+/// distance, never coarser than the study's size nor finer than
+/// `PROBE_FLOOR` of it.
+fn size_at_clearance(model: &Model, clearance: f64) -> f64 {
+    if clearance > 0.0 && clearance.is_finite() {
         // Higher orders resolve the ball with fewer, larger elements.
         let order = f64::from(model.mesh.order.max(2)) / 2.0;
         model.mesh.size.min(PROBE_SHARE * order * clearance).max(PROBE_FLOOR * model.mesh.size)
@@ -116,10 +145,10 @@ pub fn mesh_spec(model: &Model) -> MeshSpec {
                 at,
                 size: point_probe_size(model, at),
             },
-            ProbeShape::Line { from, to, .. } => Refinement::Line {
+            ProbeShape::Line { from, to, points } => Refinement::Line {
                 from,
                 to,
-                size: model.mesh.size,
+                size: line_probe_size(model, from, to, points),
             },
         })
         .collect();

@@ -25,7 +25,7 @@ pub const SOLVER: &[&str] = &[
     "stiffen_tangent_above",
 ];
 
-pub(super) fn mesh_settings(top: &Fields, ctx: &Context, parts: &[Item]) -> Result<MeshSettings, Diagnostic> {
+pub(super) fn mesh_settings(top: &Fields, ctx: &Context) -> Result<MeshSettings, Diagnostic> {
     let empty = Item {
         value: Value::Table(Vec::new()),
         span: 0..0,
@@ -33,7 +33,8 @@ pub(super) fn mesh_settings(top: &Fields, ctx: &Context, parts: &[Item]) -> Resu
     let m = top.get("mesh").unwrap_or(&empty).table("[mesh]", MESH)?;
     let size = match m.get("size") {
         Some(s) => ctx.positive(s, Kind::Length, "mesh.size")?,
-        None => default_size(parts, ctx),
+        // Set from the parts once they are resolved (`default_size`).
+        None => ctx.length_unit,
     };
     let number = |key: &str, default: f64, lo: f64, hi: f64| bounded_number(&m, "mesh", key, default, lo, hi);
     Ok(MeshSettings {
@@ -255,38 +256,26 @@ pub fn pilot_meshes(given: f64, default_first: f64) -> u32 {
     }
 }
 
-/// A twentieth of the largest part extent when [mesh] size is not given.
-pub(super) fn default_size(parts: &[Item], ctx: &Context) -> f64 {
-    let mut extent: f64 = 0.0;
-    for p in parts {
-        let Value::Table(entries) = &p.value else {
-            continue;
-        };
-        for (k, v) in entries {
-            let pts: Vec<[f64; 2]> = match (k.name.as_str(), &v.value) {
-                ("rect", Value::Table(t)) => t.iter().filter_map(|(_, x)| ctx.point(x, "rect").ok()).collect(),
-                ("polygon", Value::Array(a)) => a.iter().filter_map(|x| ctx.point(x, "polygon").ok()).collect(),
-                ("circle", Value::Table(t)) => {
-                    let r = t
-                        .iter()
-                        .find(|(k, _)| k.name == "radius")
-                        .and_then(|(_, x)| ctx.quantity(x, Kind::Length, "radius").ok())
-                        .unwrap_or(0.0);
-                    extent = extent.max(2.0 * r);
-                    Vec::new()
-                }
-                _ => Vec::new(),
-            };
-            let (lo, hi) = mesher::geometry::bbox(pts);
-            if lo[0].is_finite() {
-                extent = extent.max(hi[0] - lo[0]).max(hi[1] - lo[1]);
-            }
-        }
-    }
+/// A twentieth of the largest part's extent when `[mesh] size` is not
+/// given, measured on the parts as resolved (placed, copied by an array,
+/// read from a drawing: a part drawn in a DXF file used to count for
+/// nothing). Parts whose boxes touch were tried as one body (a row of
+/// blocks, a plunger in its frame): the eight-block Halbach row then
+/// started on 4 mm and the plunger sweep on 2.5 mm, and both took a third
+/// mesh at 0.1 % (docs/measurement-log.md, eleventh session).
+pub(super) fn default_size(parts: &[study::model::Part], length_unit: f64) -> f64 {
+    let extent = parts
+        .iter()
+        .map(|p| {
+            let (lo, hi) = p.shape.bounds();
+            (hi[0] - lo[0]).max(hi[1] - lo[1])
+        })
+        .filter(|e| e.is_finite())
+        .fold(0.0, f64::max);
     if extent > 0.0 {
         extent / 20.0
     } else {
-        ctx.length_unit
+        length_unit
     }
 }
 

@@ -142,7 +142,7 @@ fn resolve_at(
         Some(given) => given,
         None => study_table::accuracy(&study)?,
     };
-    let mut mesh = mesh_settings(&top, &ctx, parts_items)?;
+    let mut mesh = mesh_settings(&top, &ctx)?;
     let mesh_key_given = |key: &str| {
         top.get("mesh")
             .and_then(|m| m.table("[mesh]", mesh_table::MESH).ok())
@@ -158,6 +158,18 @@ fn resolve_at(
     if accuracy.is_some() && !grading_given {
         mesh.grading = mesh_table::adaptive_grading(mesh.order);
     }
+    let mut parts = Vec::new();
+    let mut spans = Spans::default();
+    let mut size_defaulted = Vec::new();
+    for item in parts_items {
+        let own_size = matches!(&item.value, Value::Table(t) if t.iter().any(|(k, _)| k.name == "mesh_size"));
+        for p in parts_of(item, &ctx, symmetry, &user_materials, &mesh, &parts)? {
+            parts.push(p);
+            spans.parts.push(item.span.clone());
+            size_defaulted.push(!own_size);
+        }
+    }
+    let default = mesh_table::default_size(&parts, ctx.length_unit);
     if let Some(target) = accuracy {
         // Quartic elements already start four times coarser (`order_scale`);
         // forces on them took a third mesh from twice that.
@@ -165,21 +177,18 @@ fn resolve_at(
             mesh_table::Asked::Integrals if mesh.order > 3 => mesh_table::Asked::Points,
             a => a,
         };
-        let default_first =
-            mesh_table::default_size(parts_items, &ctx) * mesh_table::first_mesh_scale(target, asked, mesh.order) * mesh_table::order_scale(mesh.order);
+        let default_first = default * mesh_table::first_mesh_scale(target, asked, mesh.order) * mesh_table::order_scale(mesh.order);
         if size_given {
             mesh.pilot_meshes = mesh_table::pilot_meshes(mesh.size, default_first);
         } else {
             mesh.size = default_first;
         }
+    } else if !size_given {
+        mesh.size = default;
     }
-    let mut parts = Vec::new();
-    let mut spans = Spans::default();
-    for item in parts_items {
-        for p in parts_of(item, &ctx, symmetry, &user_materials, &mesh, &parts)? {
-            parts.push(p);
-            spans.parts.push(item.span.clone());
-        }
+    // Parts without their own mesh_size take the study's, known only now.
+    for (p, _) in parts.iter_mut().zip(&size_defaulted).filter(|(_, d)| **d) {
+        p.mesh_size = mesh.size;
     }
     check_temperature(&study, temperature, &parts, "temperature")?;
     let exposure = study_table::exposure(&study, &ctx, symmetry, temperature)?;
