@@ -62,7 +62,10 @@ fn evaluate(loaded: &Loaded, base: &Variant, spec: &Seek, x: f64, need: Need, li
 
 /// Runs the seek, then the full case at the answer; exit code as `solve`.
 pub fn solve(loaded: &Loaded, spec: &Seek, base: &Variant, folder: &OutputFolder, limits: &Limits, progress: &Progress) -> Result<i32, Failure> {
-    let found = study::seek::seek(spec.range[0], spec.range[1], spec.target, |x, need| {
+    // The value is asked to the study's accuracy, and the seek no closer.
+    let accuracy = run::resolve(loaded, &base.params, limits)?.model.accuracy;
+    let tolerance = accuracy.map_or(0.0, |a| a * spec.target.abs());
+    let found = study::seek::seek(spec.range[0], spec.range[1], spec.target, tolerance, |x, need| {
         evaluate(loaded, base, spec, x, need, limits, progress)
     });
     let found = match found {
@@ -135,7 +138,7 @@ fn seek_json(spec: &Seek, found: &study::seek::Found, params: &BTreeMap<String, 
         "error": error,
         "params": params,
         "evaluations": evaluations,
-        "note": "SI units for value, error and target; the parameter in the case's own units. The uncertainty is the value's estimated error over the slope, plus what is left of the final bracket. Evaluations marked scan were solved to a looser accuracy (ten times the study's, at most 5 %) only to find which side of the target they lie on; the answer is never one of them."
+        "note": "SI units for value, error and target; the parameter in the case's own units. The uncertainty is the value's estimated error over the slope, plus what is left of the final bracket; when the seek stopped at a point within the study's accuracy of the target, the value's distance from the target and its error over the slope. Evaluations marked scan were solved to a looser accuracy (ten times the study's, at most 5 %) only to find which side of the target they lie on; the answer is never one of them."
     });
     serde_json::to_vec_pretty(&json).map_err(|e| Failure::Input(format!("error: cannot encode seek.json: {e}\n")))
 }

@@ -3,11 +3,6 @@
 
 mod common;
 
-/// B_z at z from the face of a cylinder with L = D = d (common::cylinder_axis_field, Furlani 2001).
-fn axis_field(br: f64, d: f64, z: f64) -> f64 {
-    common::cylinder_axis_field(br, d / 2.0, d, z)
-}
-
 const CASE: &str = r#"
 [study]
 geometry = "axisymmetric"
@@ -54,17 +49,7 @@ fn the_smallest_cylinder_for_5_mt_at_100_mm_matches_the_closed_form() {
     );
     let json: serde_json::Value = serde_json::from_slice(&std::fs::read(out.join("seek.json")).unwrap()).unwrap();
     let (found, uncertainty) = (json["found"].as_f64().unwrap(), json["uncertainty"].as_f64().unwrap());
-    // The closed form's root, by bisection (the field rises with d here).
-    let (mut lo, mut hi) = (5.0, 100.0);
-    for _ in 0..100 {
-        let mid = 0.5 * (lo + hi);
-        if axis_field(1.2, mid * 1e-3, 0.1) < 5e-3 {
-            lo = mid;
-        } else {
-            hi = mid;
-        }
-    }
-    let exact = 0.5 * (lo + hi);
+    let exact = 1e3 * common::cylinder_for_axis_field(1.2, 0.1, 5e-3);
     let e = (found - exact).abs() / exact;
     eprintln!("found d = {found} mm +- {uncertainty}, closed form {exact} mm, error {e:.2e}");
     assert!(e < 0.005, "{found} against {exact}");

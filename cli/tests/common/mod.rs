@@ -26,6 +26,22 @@ pub fn cylinder_axis_field(br: f64, a: f64, l: f64, z: f64) -> f64 {
     0.5 * br * (f(z + l) - f(z))
 }
 
+/// The side d (m) of the cylinder with L = D = d whose axial field at z
+/// from its face is `b` (`cylinder_axis_field`), by bisection within
+/// [5 mm, 100 mm], where the field rises with d.
+pub fn cylinder_for_axis_field(br: f64, z: f64, b: f64) -> f64 {
+    let (mut lo, mut hi) = (5e-3, 0.1);
+    for _ in 0..100 {
+        let mid = 0.5 * (lo + hi);
+        if cylinder_axis_field(br, mid / 2.0, mid, z) < b {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+    }
+    0.5 * (lo + hi)
+}
+
 /// Runs `lodestone solve --quiet` on a case text in a fresh folder named
 /// after `name`: the exit code, the terminal text, and the output folder
 /// (the caller removes `dir`, its parent, when done).
