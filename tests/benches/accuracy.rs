@@ -13,7 +13,8 @@
 //! ratio of true to estimated error (honest when at most 2) and the largest
 //! ratio of estimated to true error among the estimates above a tenth of
 //! the target (sharp enough when at most 20). `--order P` sets
-//! `[mesh] order` (default: the case default).
+//! `[mesh] order` (default: the case default); `--target "1 %"` and
+//! `--problem P1` keep one target and one problem (for profiling).
 
 use std::time::Instant;
 use validation::peer_problems::{self, CaseWithExact};
@@ -66,13 +67,14 @@ fn main() {
         .and_then(|i| args.get(i + 1)?.parse().ok())
         .unwrap_or(3usize);
     let only = args.iter().position(|a| a == "--target").and_then(|i| args.get(i + 1).cloned());
+    let problem_only = args.iter().position(|a| a == "--problem").and_then(|i| args.get(i + 1).cloned());
     println!("| problem | accuracy | median time (s) | true error | estimated error | true / estimated | estimated / true |");
     println!("|---|---|---|---|---|---|---|");
     for (target, fraction) in [("1 %", 1e-2), ("0.1 %", 1e-3), ("0.01 %", 1e-4), ("0.001 %", 1e-5)]
         .into_iter()
         .filter(|t| only.as_ref().is_none_or(|o| o == t.0))
     {
-        for problem in ["P1", "P2"] {
+        for problem in ["P1", "P2"].into_iter().filter(|p| problem_only.as_ref().is_none_or(|o| o == p)) {
             let cases: Vec<_> = if problem == "P1" {
                 vec![p1(target)]
             } else {

@@ -186,9 +186,10 @@ fn resolve_at(
     } else if !size_given {
         mesh.size = default;
     }
-    // Parts without their own mesh_size take the study's, known only now.
+    // Parts without their own mesh_size take the study's, known only now;
+    // a default one no coarser than the part itself (`mesh_table::part_size`).
     for (p, _) in parts.iter_mut().zip(&size_defaulted).filter(|(_, d)| **d) {
-        p.mesh_size = mesh.size;
+        p.mesh_size = if size_given { mesh.size } else { mesh_table::part_size(mesh.size, &p.shape) };
     }
     check_temperature(&study, temperature, &parts, "temperature")?;
     let exposure = study_table::exposure(&study, &ctx, symmetry, temperature)?;
