@@ -125,7 +125,13 @@ pub fn stray_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String
     let limit = 0.98 * radius;
     let axisym = model.symmetry == Symmetry::Axisymmetric;
     let series = stray::exterior_series(sol, c, 0.95 * radius);
-    let along = |dir: [f64; 2], level: f64| stray::fall_distance(sol, c, dir, limit, level, series.as_ref());
+    // The rays from the centre, each scanned once (when first asked) for every level asked of it.
+    let rays: [([f64; 2], std::cell::OnceCell<stray::RayProfile>); 3] = [[0.0, 1.0], [0.0, -1.0], [1.0, 0.0]].map(|d| (d, std::cell::OnceCell::new()));
+    let along = |dir: [f64; 2], level: f64| {
+        let (_, ray) = rays.iter().find(|(d, _)| *d == dir)?;
+        ray.get_or_init(|| stray::RayProfile::along(sol, c, dir, limit))
+            .fall_distance(level, series.as_ref())
+    };
     let axis = |level: f64| {
         [along([0.0, 1.0], level), along([0.0, -1.0], level)]
             .into_iter()
@@ -145,7 +151,13 @@ pub fn stray_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String
     r.reach_axis_m = ways
         .iter()
         .copied()
-        .filter_map(|dir| stray::fall_distance(sol, from, dir, limit + (from[1] - c[1]).abs(), model.reach_level, series.as_ref()))
+        .filter_map(|dir| {
+            if from == c {
+                along(dir, model.reach_level)
+            } else {
+                stray::fall_distance(sol, from, dir, limit + (from[1] - c[1]).abs(), model.reach_level, series.as_ref())
+            }
+        })
         .fold(None, |m: Option<f64>, d| Some(m.map_or(d, |x| x.max(d))));
     if let Some(d) = r.reach_axis_m {
         values.insert("reach.axis".into(), d);

@@ -163,35 +163,56 @@ fn net_current(solution: &Solution) -> f64 {
 /// exceeds `level`: from the solution up to `limit`, then (if still above)
 /// from the exterior series `far` beyond it. None when the field never
 /// reaches the level at the origin side, or the series is missing.
-/// The 800 samples are taken on every core (each is a point search and an
-/// element evaluation; the scan after them is the same as one by one).
 pub fn fall_distance(solution: &Solution, origin: [f64; 2], dir: [f64; 2], limit: f64, level: f64, far: Option<&ExteriorSeries>) -> Option<f64> {
-    let n = 800;
-    let at = |k: usize| limit * k as f64 / n as f64;
-    let samples: Vec<Option<f64>> = (1..=n)
-        .into_par_iter()
-        .map(|k| {
-            let d = at(k);
-            let f = solution.field_at([origin[0] + d * dir[0], origin[1] + d * dir[1]])?;
-            Some(f.b[0].hypot(f.b[1]))
-        })
-        .collect();
-    let mut last: Option<(f64, f64)> = None;
-    let mut crossing = None;
-    for (k, sample) in (1..=n).zip(samples) {
-        let d = at(k);
-        let Some(b) = sample else { break };
-        if b >= level {
-            crossing = None;
-        } else if crossing.is_none() {
-            crossing = Some(interpolate(last, (d, b), level));
-        }
-        last = Some((d, b));
+    RayProfile::along(solution, origin, dir, limit).fall_distance(level, far)
+}
+
+/// |B| sampled along a ray inside the mesh: one scan serves every level
+/// asked of the same ray (the reach and the implant distances along the
+/// axis from the same point were two scans of 800 point searches each).
+pub struct RayProfile {
+    origin: [f64; 2],
+    dir: [f64; 2],
+    /// (distance, |B|) up to the last sample inside the mesh.
+    samples: Vec<(f64, f64)>,
+}
+
+impl RayProfile {
+    /// The 800 samples out to `limit`, taken on every core (each is a point
+    /// search and an element evaluation); the scan stops at the first
+    /// sample outside the mesh.
+    pub fn along(solution: &Solution, origin: [f64; 2], dir: [f64; 2], limit: f64) -> RayProfile {
+        let n = 800;
+        let at = |k: usize| limit * k as f64 / n as f64;
+        let b: Vec<Option<f64>> = (1..=n)
+            .into_par_iter()
+            .map(|k| {
+                let d = at(k);
+                let f = solution.field_at([origin[0] + d * dir[0], origin[1] + d * dir[1]])?;
+                Some(f.b[0].hypot(f.b[1]))
+            })
+            .collect();
+        let samples = (1..=n).zip(b).map_while(|(k, b)| Some((at(k), b?))).collect();
+        RayProfile { origin, dir, samples }
     }
-    match (crossing, last) {
-        (Some(c), _) => Some(c),
-        (None, Some((d, b))) if b > 0.0 => beyond(far?, origin, dir, d, level),
-        _ => None,
+
+    /// The distance at which |B| last exceeds `level` (see `fall_distance`).
+    pub fn fall_distance(&self, level: f64, far: Option<&ExteriorSeries>) -> Option<f64> {
+        let mut last: Option<(f64, f64)> = None;
+        let mut crossing = None;
+        for &(d, b) in &self.samples {
+            if b >= level {
+                crossing = None;
+            } else if crossing.is_none() {
+                crossing = Some(interpolate(last, (d, b), level));
+            }
+            last = Some((d, b));
+        }
+        match (crossing, last) {
+            (Some(c), _) => Some(c),
+            (None, Some((d, b))) if b > 0.0 => beyond(far?, self.origin, self.dir, d, level),
+            _ => None,
+        }
     }
 }
 
