@@ -164,7 +164,13 @@ impl<'m> Solution<'m> {
     }
 
     /// The element holding p and p's barycentrics: on an interface the
-    /// latest part wins; on the axis, an element with an edge on the axis.
+    /// vacuum side (air, or a part of a vacuum material without current),
+    /// else the latest part; on the axis, an element with an edge on the
+    /// axis. A point on a steel face is thus read where a sensor would
+    /// sit: in the steel element a shielding can's axis probe, starting on
+    /// the can's face, read 2.3 mT on one mesh and 1.2 mT on the next
+    /// (there B_r, a thousand times larger along the wall, is a small share
+    /// of its own error; docs/measurement-log.md, tenth session).
     pub fn element_at(&self, p: [f64; 2]) -> Option<(usize, [f64; 3])> {
         let axis_edge = |e: usize| self.symmetry() == Symmetry::Axisymmetric && self.elements.coords[e].iter().filter(|x| x[0] <= 0.0).count() >= 2;
         let rank = |e: usize| {
@@ -172,9 +178,22 @@ impl<'m> Solution<'m> {
                 ElementKind::Part(i) => i as i64,
                 _ => -1,
             };
-            (part, axis_edge(e), usize::MAX - e)
+            (self.is_vacuum(e), part, axis_edge(e), usize::MAX - e)
         };
         self.locator.containing(&self.elements, p).into_iter().max_by_key(|(e, _)| rank(*e))
+    }
+
+    /// Whether element e is vacuum without current (air, or a part of a
+    /// vacuum material that carries no current).
+    pub fn is_vacuum(&self, e: usize) -> bool {
+        match self.elements.kinds[e] {
+            ElementKind::Air => true,
+            ElementKind::Exterior => false,
+            ElementKind::Part(i) => {
+                let vacuum = matches!(self.element_law(e), Law::Linear { relative_permeability } if *relative_permeability == 1.0);
+                vacuum && self.problem.current_density.get(i).copied().unwrap_or(0.0) == 0.0
+            }
+        }
     }
 
     /// The physical elements that may reach into the box `lo`..`hi`, in ascending order.

@@ -136,3 +136,25 @@ fn no_extraction_where_the_field_is_not_harmonic() {
         },
     );
 }
+
+/// A point probe on a steel face has no room for a ball: it is read in an
+/// element, and on the face in the air-side one, where a sensor sits. There
+/// H = B / mu0 (the constitutive law of air; in the steel element H would
+/// be B / (mu0 mu_r), a thousand times smaller here). The probe lies at a
+/// mesh vertex on the face (the outline's corner of a second, air part),
+/// where every element around it holds it.
+#[test]
+fn a_probe_on_a_steel_face_reads_the_air_side() {
+    let text = "[study]\ntitle = \"face\"\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = \"1 m\"\naccuracy = \"off\"\n\
+        [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet\"\n\
+        [materials.soft]\nmur = 1000\ndescription = \"linear steel\"\n\
+        [output]\nvtk = false\nplots = false\nreport = false\ncsv = false\n\
+        [[part]]\nname = \"plate\"\nmaterial = \"soft\"\nrect = { from = [-30, -10], to = [30, 0] }\n\
+        [[part]]\nname = \"magnet\"\nmaterial = \"rigid\"\nmagnetization = \"+y\"\nrect = { from = [-5, 3], to = [5, 8] }\n\
+        [[probe]]\nname = \"face\"\npoint = [12, 0]\n";
+    let r = validation::solve_case_text(text, &[]);
+    let (b, h) = (r.values["probe.face.b"], r.values["probe.face.h"]);
+    let mu0 = 4e-7 * std::f64::consts::PI;
+    assert!(b > 1e-3, "no field at the face: {b} T");
+    assert!((h * mu0 / b - 1.0).abs() < 1e-9, "|H| mu0 / |B| = {} at the face (1 in air)", h * mu0 / b);
+}

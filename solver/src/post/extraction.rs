@@ -29,10 +29,8 @@
 //! w (times cos phi for B_r) over them (Gauss-Legendre in phi).
 
 use crate::element::{flux_density, point_op, Placement};
-use crate::material::Law;
 use crate::quadrature::{edge_rule, rule_of_degree};
 use crate::solution::Solution;
-use crate::space::ElementKind;
 use mesher::geometry::point_segment_distance;
 use mesher::{BoundaryTag, Symmetry};
 use rayon::prelude::*;
@@ -71,7 +69,7 @@ pub struct Extracted {
 /// vacuum (in a part, a coil, the exterior) or no ball fits.
 pub fn extracted_b(sol: &Solution, x0: [f64; 2]) -> Option<Extracted> {
     let (e0, _) = sol.element_at(x0)?;
-    if !is_vacuum(sol, e0) {
+    if !sol.is_vacuum(e0) {
         return None;
     }
     let width = element_width(&sol.elements.coords[e0]);
@@ -93,19 +91,6 @@ pub fn extracted_b(sol: &Solution, x0: [f64; 2]) -> Option<Extracted> {
         radius: rho,
         element: e0,
     })
-}
-
-/// Whether element e is vacuum without current (air, or a part of a
-/// vacuum material that carries no current).
-fn is_vacuum(sol: &Solution, e: usize) -> bool {
-    match sol.elements.kinds[e] {
-        ElementKind::Air => true,
-        ElementKind::Exterior => false,
-        ElementKind::Part(i) => {
-            let vacuum = matches!(sol.element_law(e), Law::Linear { relative_permeability } if *relative_permeability == 1.0);
-            vacuum && sol.problem.current_density.get(i).copied().unwrap_or(0.0) == 0.0
-        }
-    }
 }
 
 /// The longest edge of a triangle.
@@ -135,7 +120,7 @@ fn clearance(sol: &Solution, x0: [f64; 2], reach: f64) -> f64 {
     let near = sol.elements_near([x0[0] - reach, x0[1] - reach], [x0[0] + reach, x0[1] + reach]);
     let parts = near
         .into_par_iter()
-        .filter(|&e| !is_vacuum(sol, e))
+        .filter(|&e| !sol.is_vacuum(e))
         .map(|e| (triangle_distance(x0, &els.coords[e]) - els.geometry(e).bulge()).max(0.0))
         .reduce(|| f64::INFINITY, f64::min);
     let mesh = sol.problem.mesh;
