@@ -551,6 +551,39 @@ fn magnet_over_a_permeable_half_space_at_default_settings() {
     );
 }
 
+/// The planar counterpart: a long rigid bar (10 x 5 mm, Br 1.2 T) 2 mm
+/// above a linear half space of relative permeability 1000 is pulled as by
+/// its image scaled by (mu - 1)/(mu + 1) (Jackson 1999 sec. 4.4, as above),
+/// a bar the same way magnetized whose centre lies 2 (2 + 2.5) mm below its
+/// own (Furlani 2001 sec. 4.2 charged sheets, integrated:
+/// `bar_pair_force_2d`). The box's walls lie 500 mm off; in the plane a
+/// pair's pull falls as the cube of the distance, so their images change
+/// it by about (9 / 1000)^3, 7e-7. The hand-meshed check (forces.rs) has a
+/// finite plate and a 3 % tolerance.
+#[test]
+fn planar_bar_over_a_permeable_half_space_at_default_settings() {
+    let mu = 1000.0;
+    let text = format!(
+        "[study]\ntitle = \"bar over a half space\"\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = \"1 m\"\n\
+         boundary = \"flux-parallel\"\nbox = {{ from = [-500, -500], to = [500, 500] }}\n\
+         [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet\"\n\
+         [materials.soft]\nmur = {mu}\ndescription = \"linear permeable half space\"\n{OUTPUT}\
+         [[part]]\nname = \"plate\"\nmaterial = \"soft\"\nrect = {{ from = [-500, -500], to = [500, 0] }}\n\
+         [[part]]\nname = \"bar\"\nmaterial = \"rigid\"\nmagnetization = \"+y\"\nrect = {{ from = [-5, 2], to = [5, 7] }}\n\
+         [[force]]\nname = \"pull\"\nparts = [\"bar\"]\n"
+    );
+    let r = solve_case_text(&text, &[]);
+    let exact = (mu - 1.0) / (mu + 1.0) * bar_pair_force_2d(1.2, 0.005, 0.0025, 0.0025, 2.0 * (0.002 + 0.0025));
+    check_at_default(
+        "planar bar over a permeable half space at default settings, within its error",
+        "method of images (Jackson 1999 sec. 4.4); Furlani 2001 charged sheets, integrated",
+        &r,
+        "force.pull.y",
+        exact,
+        exact.abs(),
+    );
+}
+
 /// A ring winding (r 7 to 9 mm, z 4 to 6 mm, 2 A/mm^2) beside a rigid
 /// disk magnet (radius 5 mm, 5 mm long, Br 1.2 T, centred at z = 0): the
 /// axial force on the winding, F_z = - integral of J B_r 2 pi r dA with the
