@@ -51,6 +51,34 @@ fn planar_bar_field_at_default_settings() {
     }
 }
 
+/// A line probe at default settings: the peak and the mean of |B| over 101
+/// points 3 mm above a long flat bar (80 x 10 mm, Br 1.2 T, recoil
+/// permeability 1) against its charged sheets at the same points (Furlani
+/// 2001 sec. 4.2). A line is read in the elements that hold its points;
+/// it is sized by its distance to the parts (`lower::line_probe_size`:
+/// 1.5 mm here, where a twentieth of the bar is 4 mm).
+#[test]
+fn planar_bar_line_probe_at_default_settings() {
+    let text = format!(
+        "[study]\ntitle = \"bar line\"\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = \"1 m\"\n\
+         [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet\"\n{OUTPUT}\
+         [[part]]\nname = \"bar\"\nmaterial = \"rigid\"\nmagnetization = \"+y\"\nrect = {{ from = [-40, -5], to = [40, 5] }}\n\
+         [[probe]]\nname = \"over\"\nline = {{ from = [-50, 8], to = [50, 8], points = 101 }}\n"
+    );
+    let r = solve_case_text(&text, &[]);
+    let magnitudes: Vec<f64> = (0..101)
+        .map(|i| {
+            let b = bar_field_2d(1.2, 0.04, 0.005, (-50.0 + i as f64) * 1e-3, 8e-3);
+            b[0].hypot(b[1])
+        })
+        .collect();
+    let peak = magnitudes.iter().copied().fold(0.0, f64::max);
+    let mean = magnitudes.iter().sum::<f64>() / magnitudes.len() as f64;
+    let what = "planar bar line probe, peak and mean of |B|, at default settings, within its error";
+    check_at_default(what, "Furlani 2001, charged sheets", &r, "probe.over.b.max", peak, peak);
+    check_at_default(what, "Furlani 2001, charged sheets", &r, "probe.over.b.mean", mean, mean);
+}
+
 /// Two long bars (20 x 10 mm, Br 1.2 T, recoil permeability 1) magnetized
 /// alike, 2 mm apart: the pull per metre against the charge model
 /// integrated over the upper bar's faces (Furlani 2001 sec. 4.2).
