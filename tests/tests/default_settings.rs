@@ -604,16 +604,16 @@ fn disk_magnet_by_a_symmetry_plane_at_default_settings() {
 #[test]
 fn magnet_over_a_permeable_half_space_at_default_settings() {
     let mu = 1000.0;
-    let text = format!(
-        "[study]\ntitle = \"disk over a half space\"\ngeometry = \"axisymmetric\"\nunit = \"mm\"\n\
-         boundary = \"flux-parallel\"\nbox = {{ from = [0, -200], to = [200, 200] }}\n\
-         [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet\"\n\
-         [materials.soft]\nmur = {mu}\ndescription = \"linear permeable half space\"\n{OUTPUT}\
-         [[part]]\nname = \"plate\"\nmaterial = \"soft\"\nrect = {{ from = [0, -200], to = [200, 0] }}\n\
-         [[part]]\nname = \"disk\"\nmaterial = \"rigid\"\nmagnetization = \"+z\"\nrect = {{ from = [0, 2], to = [5, 7] }}\n\
-         [[force]]\nname = \"pull\"\nparts = [\"disk\"]\n"
+    let r = over_a_half_space(
+        "geometry = \"axisymmetric\"\n",
+        mu,
+        [
+            "from = [0, -200], to = [200, 200]",
+            "from = [0, -200], to = [200, 0]",
+            "from = [0, 2], to = [5, 7]",
+        ],
+        "+z",
     );
-    let r = solve_case_text(&text, &[]);
     let pair = validation::reference::coaxial_cylinders_force(1.2, 1.2, 0.005, 0.005, 0.005, 0.005, 0.004);
     let exact = -(mu - 1.0) / (mu + 1.0) * pair;
     check_at_default(
@@ -624,6 +624,23 @@ fn magnet_over_a_permeable_half_space_at_default_settings() {
         exact,
         exact.abs(),
     );
+}
+
+/// A rigid magnet (magnetized `up`) above a linear half space of relative
+/// permeability `mu` that fills the lower half of a flux-parallel box:
+/// the box, the half space and the magnet as rectangles' corners; the
+/// force on the magnet is `force.pull`.
+fn over_a_half_space(geometry: &str, mu: f64, [frame, plate, magnet]: [&str; 3], up: &str) -> study::Results {
+    let text = format!(
+        "[study]\ntitle = \"magnet over a half space\"\n{geometry}unit = \"mm\"\n\
+         boundary = \"flux-parallel\"\nbox = {{ {frame} }}\n\
+         [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet\"\n\
+         [materials.soft]\nmur = {mu}\ndescription = \"linear permeable half space\"\n{OUTPUT}\
+         [[part]]\nname = \"plate\"\nmaterial = \"soft\"\nrect = {{ {plate} }}\n\
+         [[part]]\nname = \"magnet\"\nmaterial = \"rigid\"\nmagnetization = \"{up}\"\nrect = {{ {magnet} }}\n\
+         [[force]]\nname = \"pull\"\nparts = [\"magnet\"]\n"
+    );
+    solve_case_text(&text, &[])
 }
 
 /// The planar counterpart: a long rigid bar (10 x 5 mm, Br 1.2 T) 2 mm
@@ -638,16 +655,16 @@ fn magnet_over_a_permeable_half_space_at_default_settings() {
 #[test]
 fn planar_bar_over_a_permeable_half_space_at_default_settings() {
     let mu = 1000.0;
-    let text = format!(
-        "[study]\ntitle = \"bar over a half space\"\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = \"1 m\"\n\
-         boundary = \"flux-parallel\"\nbox = {{ from = [-500, -500], to = [500, 500] }}\n\
-         [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet\"\n\
-         [materials.soft]\nmur = {mu}\ndescription = \"linear permeable half space\"\n{OUTPUT}\
-         [[part]]\nname = \"plate\"\nmaterial = \"soft\"\nrect = {{ from = [-500, -500], to = [500, 0] }}\n\
-         [[part]]\nname = \"bar\"\nmaterial = \"rigid\"\nmagnetization = \"+y\"\nrect = {{ from = [-5, 2], to = [5, 7] }}\n\
-         [[force]]\nname = \"pull\"\nparts = [\"bar\"]\n"
+    let r = over_a_half_space(
+        "geometry = \"planar\"\ndepth = \"1 m\"\n",
+        mu,
+        [
+            "from = [-500, -500], to = [500, 500]",
+            "from = [-500, -500], to = [500, 0]",
+            "from = [-5, 2], to = [5, 7]",
+        ],
+        "+y",
     );
-    let r = solve_case_text(&text, &[]);
     let exact = (mu - 1.0) / (mu + 1.0) * bar_pair_force_2d(1.2, 0.005, 0.0025, 0.0025, 2.0 * (0.002 + 0.0025));
     check_at_default(
         "planar bar over a permeable half space at default settings, within its error",
