@@ -12,6 +12,15 @@ use validation::{assert_honest, check_at_default, record_estimated, solve_case_t
 const TARGET: f64 = validation::DEFAULT_TARGET;
 const OUTPUT: &str = "[output]\nvtk = false\nplots = false\nreport = false\ncsv = false\n";
 
+/// The head of a planar case 1 m deep with a rigid magnet material
+/// (Br 1.2 T, recoil permeability 1) and no files but results.json.
+fn planar_rigid_head(title: &str) -> String {
+    format!(
+        "[study]\ntitle = \"{title}\"\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = \"1 m\"\n\
+         [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet\"\n{OUTPUT}"
+    )
+}
+
 /// A long bar magnet (20 x 10 mm, Br 1.2 T, recoil permeability 1) in the
 /// plane: B at three points outside it against the two charged sheets of
 /// its poles (E. P. Furlani, Permanent Magnet and Electromechanical
@@ -19,11 +28,8 @@ const OUTPUT: &str = "[output]\nvtk = false\nplots = false\nreport = false\ncsv 
 #[test]
 fn planar_bar_field_at_default_settings() {
     let (w, h) = (0.01, 0.005);
-    let mut text = format!(
-        "[study]\ntitle = \"bar\"\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = \"1 m\"\n\
-         [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet\"\n{OUTPUT}\
-         [[part]]\nname = \"bar\"\nmaterial = \"rigid\"\nmagnetization = \"+y\"\nrect = {{ from = [-10, -5], to = [10, 5] }}\n"
-    );
+    let head = planar_rigid_head("bar");
+    let mut text = format!("{head}[[part]]\nname = \"bar\"\nmaterial = \"rigid\"\nmagnetization = \"+y\"\nrect = {{ from = [-10, -5], to = [10, 5] }}\n");
     let points = [[0.0, 8.0], [14.0, 3.0], [25.0, 20.0]];
     for (i, p) in points.iter().enumerate() {
         text += &format!("[[probe]]\nname = \"p{i}\"\npoint = [{}, {}]\n", p[0], p[1]);
@@ -59,10 +65,9 @@ fn planar_bar_field_at_default_settings() {
 /// 1.5 mm here, where a twentieth of the bar is 4 mm).
 #[test]
 fn planar_bar_line_probe_at_default_settings() {
+    let head = planar_rigid_head("bar line");
     let text = format!(
-        "[study]\ntitle = \"bar line\"\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = \"1 m\"\n\
-         [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet\"\n{OUTPUT}\
-         [[part]]\nname = \"bar\"\nmaterial = \"rigid\"\nmagnetization = \"+y\"\nrect = {{ from = [-40, -5], to = [40, 5] }}\n\
+        "{head}[[part]]\nname = \"bar\"\nmaterial = \"rigid\"\nmagnetization = \"+y\"\nrect = {{ from = [-40, -5], to = [40, 5] }}\n\
          [[probe]]\nname = \"over\"\nline = {{ from = [-50, 8], to = [50, 8], points = 101 }}\n"
     );
     let r = solve_case_text(&text, &[]);
@@ -84,10 +89,9 @@ fn planar_bar_line_probe_at_default_settings() {
 /// integrated over the upper bar's faces (Furlani 2001 sec. 4.2).
 #[test]
 fn planar_bar_pair_pull_at_default_settings() {
+    let head = planar_rigid_head("bars");
     let text = format!(
-        "[study]\ntitle = \"bars\"\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = \"1 m\"\n\
-         [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet\"\n{OUTPUT}\
-         [[part]]\nname = \"lower\"\nmaterial = \"rigid\"\nmagnetization = \"+y\"\nrect = {{ from = [-10, -5], to = [10, 5] }}\n\
+        "{head}[[part]]\nname = \"lower\"\nmaterial = \"rigid\"\nmagnetization = \"+y\"\nrect = {{ from = [-10, -5], to = [10, 5] }}\n\
          [[part]]\nname = \"upper\"\nmaterial = \"rigid\"\nmagnetization = \"+y\"\nrect = {{ from = [-10, 7], to = [10, 17] }}\n\
          [[force]]\nname = \"pull\"\nparts = [\"upper\"]\n"
     );
@@ -307,10 +311,9 @@ fn conductor_pull_and_magnet_torque_at_default_settings() {
 /// exact value is zero, must lie within twice the sum of their estimates.
 #[test]
 fn forces_on_two_magnets_cancel_within_their_errors_at_default_settings() {
+    let head = planar_rigid_head("third law");
     let text = format!(
-        "[study]\ntitle = \"third law\"\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = \"1 m\"\n\
-         [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet\"\n{OUTPUT}\
-         [[part]]\nname = \"big\"\nmaterial = \"rigid\"\nmagnetization = \"+y\"\nrect = {{ from = [-10, -5], to = [10, 5] }}\n\
+        "{head}[[part]]\nname = \"big\"\nmaterial = \"rigid\"\nmagnetization = \"+y\"\nrect = {{ from = [-10, -5], to = [10, 5] }}\n\
          [[part]]\nname = \"small\"\nmaterial = \"rigid\"\nmagnetization = \"30 deg\"\nrect = {{ from = [4, 8], to = [12, 12] }}\n\
          [[force]]\nname = \"on_big\"\nparts = [\"big\"]\n[[force]]\nname = \"on_small\"\nparts = [\"small\"]\n"
     );
@@ -400,10 +403,9 @@ fn superposition_of_two_magnets_at_default_settings() {
 #[test]
 fn torques_on_two_magnets_cancel_within_their_errors_at_default_settings() {
     for about in ["[0, 0]", "[20, -10]"] {
+        let head = planar_rigid_head("torques");
         let text = format!(
-            "[study]\ntitle = \"torques\"\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = \"1 m\"\n\
-             [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet\"\n{OUTPUT}\
-             [[part]]\nname = \"left\"\nmaterial = \"rigid\"\nmagnetization = \"0 deg\"\nrect = {{ from = [-13, -5], to = [-3, 5] }}\n\
+            "{head}[[part]]\nname = \"left\"\nmaterial = \"rigid\"\nmagnetization = \"0 deg\"\nrect = {{ from = [-13, -5], to = [-3, 5] }}\n\
              [[part]]\nname = \"right\"\nmaterial = \"rigid\"\nmagnetization = \"70 deg\"\nrect = {{ from = [3, -2], to = [13, 8] }}\n\
              [[force]]\nname = \"on_left\"\nparts = [\"left\"]\ntorque_about = {about}\n\
              [[force]]\nname = \"on_right\"\nparts = [\"right\"]\ntorque_about = {about}\n"
@@ -535,10 +537,9 @@ fn bar_magnet_by_a_symmetry_plane_at_default_settings() {
     // bar_pair_force_2d: the pull on the second bar along the line of centres (negative: towards the first).
     let pair = validation::reference::bar_pair_force_2d(1.2, w, h, h, 2.0 * (gap + h));
     for (kind, exact) in [("flux-parallel", -pair), ("flux-normal", pair)] {
+        let head = planar_rigid_head("bar by a plane");
         let text = format!(
-            "[study]\ntitle = \"bar by a plane\"\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = \"1 m\"\n\
-             [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet\"\n{OUTPUT}\
-             [[part]]\nname = \"bar\"\nmaterial = \"rigid\"\nmagnetization = \"+x\"\nrect = {{ from = [2, -5], to = [7, 5] }}\n\
+            "{head}[[part]]\nname = \"bar\"\nmaterial = \"rigid\"\nmagnetization = \"+x\"\nrect = {{ from = [2, -5], to = [7, 5] }}\n\
              [[force]]\nname = \"push\"\nparts = [\"bar\"]\n\
              [[boundary]]\nkind = \"{kind}\"\nline = {{ from = [0, -10], to = [0, 10] }}\n"
         );
