@@ -166,11 +166,11 @@ impl<'m> Solution<'m> {
     /// The element holding p and p's barycentrics: on an interface the
     /// vacuum side (air, or a part of a vacuum material without current),
     /// else the latest part; on the axis, an element with an edge on the
-    /// axis. A point on a steel face is thus read where a sensor would
-    /// sit: in the steel element a shielding can's axis probe, starting on
-    /// the can's face, read 2.3 mT on one mesh and 1.2 mT on the next
-    /// (there B_r, a thousand times larger along the wall, is a small share
-    /// of its own error; docs/measurement-log.md, tenth session).
+    /// axis. A point on a steel face is thus read where a sensor would sit:
+    /// in the steel element B along the face is mu_r times the air's H (a
+    /// speaker motor's gap probe starting on its pole piece's face read a
+    /// peak of 1.258 T there, 1.067 T in the gap's air;
+    /// docs/measurement-log.md, eleventh session).
     pub fn element_at(&self, p: [f64; 2]) -> Option<(usize, [f64; 3])> {
         let axis_edge = |e: usize| self.symmetry() == Symmetry::Axisymmetric && self.elements.coords[e].iter().filter(|x| x[0] <= 0.0).count() >= 2;
         let rank = |e: usize| {

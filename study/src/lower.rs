@@ -73,10 +73,10 @@ fn point_probe_size(model: &Model, at: [f64; 2]) -> f64 {
 /// its distance to the parts: a row of blocks with its line probe 3 mm
 /// from the magnets' faces on a mesh of the study's 4 mm (a twentieth of
 /// its 80 mm steel backing) took four meshes for the line's peak, and
-/// 1.5 mm had to be set by hand; a row whose line probe lies 5 mm away
-/// started, on a twentieth of one block, on a mesh eight times finer than
-/// 0.1 % needed (docs/measurement-log.md, eleventh session). A line that
-/// touches or crosses a part's box keeps the study's size.
+/// 1.5 mm had to be set by hand; with this rule the line gets 1.5 mm by
+/// itself and two meshes reach 0.1 % (docs/measurement-log.md, eleventh
+/// session; tests/tests/default_settings.rs, the bar's line probe). A line
+/// that touches or crosses a part's box keeps the study's size.
 fn line_probe_size(model: &Model, from: [f64; 2], to: [f64; 2], points: usize) -> f64 {
     let last = points.saturating_sub(1).max(1) as f64;
     let clearance = (0..points.max(2))

@@ -460,6 +460,31 @@ fn coaxial_line_energy_and_linkage_at_default_settings() {
     );
 }
 
+/// A linear inductor's field energy is half its flux linkage times its
+/// current, W = L I^2 / 2 = lambda I / 2: a solenoid in air (radii 20 and
+/// 22 mm, 100 mm long, 1000 ampere-turns in 100 turns, so 10 A). Energy and
+/// linkage are integrals of one solution, each with its own estimate; the
+/// combination, exactly zero, must lie within their errors. The hand-meshed
+/// check (forces.rs) holds the same on a given mesh.
+#[test]
+fn solenoid_energy_is_half_its_linkage_times_its_current_at_default_settings() {
+    let (ampere_turns, turns) = (1000.0, 100.0);
+    let text = format!(
+        "[study]\ntitle = \"solenoid\"\ngeometry = \"axisymmetric\"\nunit = \"mm\"\n{OUTPUT}\
+         [[part]]\nname = \"coil\"\nmaterial = \"copper\"\ncurrent = \"{ampere_turns} A\"\nrect = {{ from = [20, -50], to = [22, 50] }}\n\
+         [[flux]]\nname = \"linkage\"\nwinding = \"coil\"\nturns = {turns}\n"
+    );
+    let r = solve_case_text(&text, &[]);
+    let current = ampere_turns / turns;
+    let term = |name: &str, c: f64| (name.to_string(), r.values[name], r.errors[name], c);
+    assert_vanishes(
+        "solenoid energy = L I^2 / 2 at default settings, within their errors",
+        "linear inductor energy",
+        &[term("energy", 1.0), term("flux.linkage", -0.5 * current)],
+        r.values["energy"],
+    );
+}
+
 /// A saturating study: a ring core (10 to 20 mm radius) of a smooth
 /// saturating law around a straight conductor (3 mm radius), planar, 1 m
 /// deep, at ampere-turns from the linear range to deep saturation. By
