@@ -264,14 +264,7 @@ pub fn pilot_meshes(given: f64, default_first: f64) -> u32 {
 /// started on 4 mm and the plunger sweep on 2.5 mm, and both took a third
 /// mesh at 0.1 % (docs/measurement-log.md, eleventh session).
 pub(super) fn default_size(parts: &[study::model::Part], length_unit: f64) -> f64 {
-    let extent = parts
-        .iter()
-        .map(|p| {
-            let (lo, hi) = p.shape.bounds();
-            (hi[0] - lo[0]).max(hi[1] - lo[1])
-        })
-        .filter(|e| e.is_finite())
-        .fold(0.0, f64::max);
+    let extent = parts.iter().map(|p| extent(&p.shape)).filter(|e| e.is_finite()).fold(0.0, f64::max);
     if extent > 0.0 {
         extent / 20.0
     } else {
@@ -289,13 +282,18 @@ pub(super) fn default_size(parts: &[study::model::Part], length_unit: f64) -> f6
 /// step gave 8.3e-5 under an estimate of 1.5e-4 (docs/measurement-log.md,
 /// eleventh session). A part at least as large as the size is unchanged.
 pub(super) fn part_size(size: f64, shape: &mesher::Shape) -> f64 {
-    let (lo, hi) = shape.bounds();
-    let extent = (hi[0] - lo[0]).max(hi[1] - lo[1]);
+    let extent = extent(shape);
     if extent > 0.0 && extent.is_finite() {
         size.min(extent)
     } else {
         size
     }
+}
+
+/// The larger side of a shape's bounding box.
+fn extent(shape: &mesher::Shape) -> f64 {
+    let (lo, hi) = shape.bounds();
+    (hi[0] - lo[0]).max(hi[1] - lo[1])
 }
 
 #[cfg(test)]
