@@ -140,9 +140,10 @@ fn no_extraction_where_the_field_is_not_harmonic() {
 /// A point probe on a steel face has no room for a ball: it is read in an
 /// element, and on the face in the air-side one, where a sensor sits. There
 /// H = B / mu0 (the constitutive law of air; in the steel element H would
-/// be B / (mu0 mu_r), a thousand times smaller here). The probe lies at a
-/// mesh vertex on the face (the outline's corner of a second, air part),
-/// where every element around it holds it.
+/// be B / (mu0 mu_r), a thousand times smaller here). The probe lies on
+/// the plate's top face, held by a steel element below it and an air
+/// element above (without the vacuum side's preference the steel one was
+/// read: |H| mu0 / |B| came out 1e-3).
 #[test]
 fn a_probe_on_a_steel_face_reads_the_air_side() {
     let text = "[study]\ntitle = \"face\"\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = \"1 m\"\naccuracy = \"off\"\n\
