@@ -125,13 +125,20 @@ pub fn stray_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String
     let limit = 0.98 * radius;
     let axisym = model.symmetry == Symmetry::Axisymmetric;
     let series = stray::exterior_series(sol, c, 0.95 * radius);
-    // The rays from the centre, each scanned once (when first asked) for every level asked of it.
-    let rays: [([f64; 2], std::cell::OnceCell<stray::RayProfile>); 3] = [[0.0, 1.0], [0.0, -1.0], [1.0, 0.0]].map(|d| (d, std::cell::OnceCell::new()));
-    let along = |dir: [f64; 2], level: f64| {
-        let (_, ray) = rays.iter().find(|(d, _)| *d == dir)?;
-        ray.get_or_init(|| stray::RayProfile::along(sol, c, dir, limit))
-            .fall_distance(level, series.as_ref())
+    // Each ray (from a point, along a direction) is scanned once, when first
+    // asked, for every level asked of it; from a point off the centre it
+    // reaches as far past the rim's limit as the point lies off the centre.
+    let rays = std::cell::RefCell::new(Vec::<(([f64; 2], [f64; 2]), std::rc::Rc<stray::RayProfile>)>::new());
+    let fall = |from: [f64; 2], dir: [f64; 2], level: f64| {
+        let cached = rays.borrow().iter().find(|(k, _)| *k == (from, dir)).map(|(_, ray)| ray.clone());
+        let ray = cached.unwrap_or_else(|| {
+            let ray = std::rc::Rc::new(stray::RayProfile::along(sol, from, dir, limit + (from[1] - c[1]).abs()));
+            rays.borrow_mut().push(((from, dir), ray.clone()));
+            ray
+        });
+        ray.fall_distance(level, series.as_ref())
     };
+    let along = |dir: [f64; 2], level: f64| fall(c, dir, level);
     let axis = |level: f64| {
         [along([0.0, 1.0], level), along([0.0, -1.0], level)]
             .into_iter()
@@ -151,13 +158,7 @@ pub fn stray_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String
     r.reach_axis_m = ways
         .iter()
         .copied()
-        .filter_map(|dir| {
-            if from == c {
-                along(dir, model.reach_level)
-            } else {
-                stray::fall_distance(sol, from, dir, limit + (from[1] - c[1]).abs(), model.reach_level, series.as_ref())
-            }
-        })
+        .filter_map(|dir| fall(from, dir, model.reach_level))
         .fold(None, |m: Option<f64>, d| Some(m.map_or(d, |x| x.max(d))));
     if let Some(d) = r.reach_axis_m {
         values.insert("reach.axis".into(), d);

@@ -68,24 +68,36 @@ fn point_probe_size(model: &Model, at: [f64; 2]) -> f64 {
 }
 
 /// The mesh size along a line probe: as at a point probe outside the
-/// parts' boxes, for the nearest of its points. Its values are read in
-/// the elements holding them, and the field there varies on the scale of
-/// its distance to the parts: a row of blocks with its line probe 3 mm
+/// parts' boxes, for the segment's distance to the nearest box. Its values
+/// are read in the elements holding them, and the field there varies on
+/// the scale of that distance: a row of blocks with its line probe 3 mm
 /// from the magnets' faces on a mesh of the study's 4 mm (a twentieth of
 /// its 80 mm steel backing) took four meshes for the line's peak, and
 /// 1.5 mm had to be set by hand; with this rule the line gets 1.5 mm by
 /// itself and two meshes reach 0.1 % (docs/measurement-log.md, eleventh
 /// session; tests/tests/default_settings.rs, the bar's line probe). A line
 /// that touches or crosses a part's box keeps the study's size.
-fn line_probe_size(model: &Model, from: [f64; 2], to: [f64; 2], points: usize) -> f64 {
-    let last = points.saturating_sub(1).max(1) as f64;
-    let clearance = (0..points.max(2))
-        .map(|i| {
-            let t = i as f64 / last;
-            box_clearance(model, [from[0] + t * (to[0] - from[0]), from[1] + t * (to[1] - from[1])])
-        })
+fn line_probe_size(model: &Model, from: [f64; 2], to: [f64; 2]) -> f64 {
+    let clearance = model
+        .parts
+        .iter()
+        .map(|p| segment_box_distance(p.shape.bounds(), from, to))
         .fold(f64::INFINITY, f64::min);
     size_at_clearance(model, clearance)
+}
+
+/// Distance from the segment a-b to the box (lo, hi): zero when it meets
+/// the box, else the nearest of its ends to the box and of the box's
+/// corners to it.
+fn segment_box_distance((lo, hi): ([f64; 2], [f64; 2]), a: [f64; 2], b: [f64; 2]) -> f64 {
+    use mesher::geometry::{point_segment_distance, segments_intersect};
+    let corners = [lo, [hi[0], lo[1]], hi, [lo[0], hi[1]]];
+    let crosses = (0..4).any(|i| segments_intersect(a, b, corners[i], corners[(i + 1) % 4]));
+    if crosses {
+        return 0.0;
+    }
+    let ends = point_box_distance((lo, hi), a).min(point_box_distance((lo, hi), b));
+    corners.iter().map(|&q| point_segment_distance(q, a, b)).fold(ends, f64::min)
 }
 
 /// The mesh size at a probe `clearance` from the nearest part (zero on a
@@ -125,13 +137,15 @@ pub(crate) fn box_clearance(model: &Model, at: [f64; 2]) -> f64 {
     model
         .parts
         .iter()
-        .map(|p| {
-            let (lo, hi) = p.shape.bounds();
-            let dx = (lo[0] - at[0]).max(at[0] - hi[0]).max(0.0);
-            let dy = (lo[1] - at[1]).max(at[1] - hi[1]).max(0.0);
-            dx.hypot(dy)
-        })
+        .map(|p| point_box_distance(p.shape.bounds(), at))
         .fold(f64::INFINITY, f64::min)
+}
+
+/// Distance from `at` to the box (lo, hi), zero inside or on it.
+fn point_box_distance((lo, hi): ([f64; 2], [f64; 2]), at: [f64; 2]) -> f64 {
+    let dx = (lo[0] - at[0]).max(at[0] - hi[0]).max(0.0);
+    let dy = (lo[1] - at[1]).max(at[1] - hi[1]).max(0.0);
+    dx.hypot(dy)
 }
 
 /// The mesh spec of a model: every part, every probe as a refinement, and
@@ -145,10 +159,10 @@ pub fn mesh_spec(model: &Model) -> MeshSpec {
                 at,
                 size: point_probe_size(model, at),
             },
-            ProbeShape::Line { from, to, points } => Refinement::Line {
+            ProbeShape::Line { from, to, .. } => Refinement::Line {
                 from,
                 to,
-                size: line_probe_size(model, from, to, points),
+                size: line_probe_size(model, from, to),
             },
         })
         .collect();
@@ -381,4 +395,23 @@ pub fn check_probes_inside(model: &Model) -> Result<(), StudyError> {
         }
     }
     Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::segment_box_distance;
+
+    /// A line probe's distance to a part's box: zero where it crosses the
+    /// box between its ends (a sampled line of two points missed that), the
+    /// nearest end or box corner otherwise.
+    #[test]
+    fn a_segment_is_as_far_from_a_box_as_its_nearest_point() {
+        let unit = ([0.0, 0.0], [1.0, 1.0]);
+        assert_eq!(segment_box_distance(unit, [-1.0, 0.5], [2.0, 0.5]), 0.0);
+        assert_eq!(segment_box_distance(unit, [0.2, 0.2], [0.8, 0.8]), 0.0);
+        assert!((segment_box_distance(unit, [-1.0, 3.0], [2.0, 3.0]) - 2.0).abs() < 1e-15);
+        // Past a corner: the corner (1, 1) to the line x + y = 3 is sqrt(2)/2 away.
+        assert!((segment_box_distance(unit, [3.0, 0.0], [0.0, 3.0]) - 0.5f64.sqrt()).abs() < 1e-12);
+        assert!((segment_box_distance(unit, [3.0, 0.5], [4.0, 0.5]) - 2.0).abs() < 1e-15);
+    }
 }

@@ -159,14 +159,6 @@ fn net_current(solution: &Solution) -> f64 {
     densities.iter().zip(&areas).map(|(j, a)| j * a).sum()
 }
 
-/// Distance from `origin` along the unit vector `dir` at which |B| last
-/// exceeds `level`: from the solution up to `limit`, then (if still above)
-/// from the exterior series `far` beyond it. None when the field never
-/// reaches the level at the origin side, or the series is missing.
-pub fn fall_distance(solution: &Solution, origin: [f64; 2], dir: [f64; 2], limit: f64, level: f64, far: Option<&ExteriorSeries>) -> Option<f64> {
-    RayProfile::along(solution, origin, dir, limit).fall_distance(level, far)
-}
-
 /// |B| sampled along a ray inside the mesh: one scan serves every level
 /// asked of the same ray (the reach and the implant distances along the
 /// axis from the same point were two scans of 800 point searches each).
@@ -196,7 +188,10 @@ impl RayProfile {
         RayProfile { origin, dir, samples }
     }
 
-    /// The distance at which |B| last exceeds `level` (see `fall_distance`).
+    /// The distance from the origin at which |B| last exceeds `level`: from
+    /// the samples, then (if still above at the last) from the exterior
+    /// series `far` beyond it. None when the field never reaches the level
+    /// at the origin side, or the series is missing.
     pub fn fall_distance(&self, level: f64, far: Option<&ExteriorSeries>) -> Option<f64> {
         let mut last: Option<(f64, f64)> = None;
         let mut crossing = None;
