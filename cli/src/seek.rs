@@ -62,10 +62,7 @@ fn evaluate(loaded: &Loaded, base: &Variant, spec: &Seek, x: f64, need: Need, li
 
 /// Runs the seek, then the full case at the answer; exit code as `solve`.
 pub fn solve(loaded: &Loaded, spec: &Seek, base: &Variant, folder: &OutputFolder, limits: &Limits, progress: &Progress) -> Result<i32, Failure> {
-    // The value is asked to the study's accuracy, and the seek no closer.
-    let accuracy = run::resolve(loaded, &base.params, limits)?.model.accuracy;
-    let tolerance = accuracy.map_or(0.0, |a| a * spec.target.abs());
-    let found = study::seek::seek(spec.range[0], spec.range[1], spec.target, tolerance, |x, need| {
+    let found = study::seek::seek(spec.range[0], spec.range[1], spec.target, spec.tolerance, |x, need| {
         evaluate(loaded, base, spec, x, need, limits, progress)
     });
     let found = match found {

@@ -23,6 +23,10 @@ pub struct Seek {
     pub unit: &'static str,
     /// The target, SI.
     pub target: f64,
+    /// How close to the target the value is sought, SI: the study's
+    /// accuracy times the target (0 with accuracy off: as closely as the
+    /// values' errors allow).
+    pub tolerance: f64,
 }
 
 /// The `[seek]` table, or None. `params` are the case's parameter names.
@@ -54,6 +58,7 @@ pub fn seek(top: &Fields, ctx: &Context, model: &Model) -> Result<Option<Seek>, 
         value: value.name.clone(),
         unit: value.unit.symbol(),
         target,
+        tolerance: model.accuracy.map_or(0.0, |a| a * target.abs()),
     }))
 }
 
