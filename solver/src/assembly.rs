@@ -219,17 +219,47 @@ impl System {
     /// `a` (K_aff held as a lower triangle on the tangent's pattern).
     pub fn affine_residual(&mut self, problem: &Problem, a: &[f64]) -> Vec<f64> {
         self.prepare_affine(problem);
+        let x = self.unknowns_of(a);
+        let mut y = self.affine_product(&x);
+        if let Some(affine) = &self.affine {
+            y.iter_mut().zip(&affine.rhs).for_each(|(y, r)| *y += r);
+        }
+        y
+    }
+
+    /// The parts of the stored energy that depend on the nodal potentials
+    /// `a`, when every element is affine: [x . r0 + x . K x / 2, x . (K x +
+    /// r0)], x the unknowns of `a`, K the matrix and r0 the residual at zero
+    /// potential. Each element's energy is quadratic in its potentials, with
+    /// r0 and K its first and second derivatives at zero, so at the
+    /// assembly's own quadrature points these are the integrals of w - w(0)
+    /// and of H . B, where the source is remanence alone (no current, no
+    /// applied field: the caller's test). None with a nonlinear element.
+    pub fn affine_energy_terms(&mut self, problem: &Problem, a: &[f64]) -> Option<[f64; 2]> {
+        self.prepare_affine(problem);
+        if !self.nonlinear.is_empty() {
+            return None;
+        }
+        let x = self.unknowns_of(a);
+        let rhs = &self.affine.as_ref()?.rhs;
+        let kx = self.affine_product(&x);
+        let (mut quadratic, mut hb) = (0.0, 0.0);
+        for d in 0..self.n_dofs {
+            quadratic += x[d] * (rhs[d] + 0.5 * kx[d]);
+            hb += x[d] * (rhs[d] + kx[d]);
+        }
+        Some([quadratic, hb])
+    }
+
+    /// The unknowns of nodal potentials `a` (each tied node gives its unknown the same value).
+    fn unknowns_of(&self, a: &[f64]) -> Vec<f64> {
         let mut x = vec![0.0; self.n_dofs];
         for (n, &d) in self.dof_of_node.iter().enumerate() {
             if d != NONE {
                 x[d] = a[n] * self.sign_of_node.get(n).copied().unwrap_or(1.0);
             }
         }
-        let mut y = self.affine_product(&x);
-        if let Some(affine) = &self.affine {
-            y.iter_mut().zip(&affine.rhs).for_each(|(y, r)| *y += r);
-        }
-        y
+        x
     }
 
     /// K_aff x for x given per unknown: how the affine residual changes along a step.

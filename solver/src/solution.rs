@@ -24,6 +24,9 @@ pub struct Solution<'m> {
     pub reduced: Vec<f64>,
     /// How the solve went.
     pub report: SolveReport,
+    /// For a linear study driven by remanence alone, the potential-dependent
+    /// parts of its energy from the system itself (`System::affine_energy_terms`).
+    pub affine_energy: Option<[f64; 2]>,
     locator: Locator,
     air: Law,
 }
@@ -61,6 +64,7 @@ impl Solution<'_> {
             elements: self.elements.clone(),
             reduced: self.reduced.clone(),
             report: self.report.clone(),
+            affine_energy: self.affine_energy,
             locator: self.locator.clone(),
             air: self.air.clone(),
         }
@@ -82,15 +86,26 @@ pub fn solve_on<'m>(problem: &Problem<'m>, structure: Option<System>, progress: 
     };
     let (reduced, mut report) = newton_solve(problem, &mut system, progress)?;
     report.seconds_pattern = system.seconds_built;
+    let affine_energy = driven_by_remanence_alone(problem)
+        .then(|| system.affine_energy_terms(problem, &reduced))
+        .flatten();
     let locator = Locator::new(&system.elements);
     Ok(Solution {
         problem: problem.clone(),
         elements: system.elements,
         reduced,
         report,
+        affine_energy,
         locator,
         air: Law::air(),
     })
+}
+
+/// No current, no applied field and no exposure: the energy at zero
+/// potential is then the magnets' alone, w(B = 0), and the rest of it is
+/// the system's quadratic form (`System::affine_energy_terms`).
+fn driven_by_remanence_alone(problem: &Problem) -> bool {
+    problem.applied_field == [0.0, 0.0] && problem.current_density.iter().all(|&j| j == 0.0) && problem.remanence.is_none()
 }
 
 impl<'m> Solution<'m> {

@@ -383,3 +383,72 @@ fn open_boundary_results_do_not_depend_on_the_rim_radius() {
     }
     assert!(radii[1] > 1.8 * radii[0] && radii[2] > 1.8 * radii[1], "the rim did not move: {radii:?}");
 }
+
+/// The energy and co-energy of a linear study driven by remanence alone,
+/// taken from its system (`System::affine_energy_terms`), against the same
+/// quantities integrated over every element: one quadratic form at the same
+/// quadrature points, so they agree to rounding. About the axis with the
+/// Kelvin exterior (quartic elements, a magnet over linear steel), and in
+/// the plane in a box whose sides repeat the potential with its sign turned
+/// (one pole pair of alternating magnets over steel).
+#[test]
+fn energy_from_the_system_is_the_integral_over_the_elements() {
+    let integrated = |sol: &solver::Solution| {
+        let mut plain = sol.rebind(sol.problem.mesh);
+        assert!(
+            sol.affine_energy.is_some(),
+            "a linear study driven by remanence takes its energy from its system"
+        );
+        plain.affine_energy = None;
+        (solver::post::energy::stored_energy(sol), solver::post::energy::stored_energy(&plain))
+    };
+    let axial = solve_with_order(
+        solver::element::ElementOrder::Quartic,
+        Symmetry::Axisymmetric,
+        vec![
+            magnet(rect(0.0, 0.0, 0.005, 0.004), 0.001, [0.0, BR]),
+            linear(rect(0.0, 0.005, 0.01, 0.007), 0.001, 800.0),
+        ],
+        vec![],
+        OuterBoundary::Open,
+        [0.0, 0.0],
+        integrated,
+    );
+    let mut sides = [mesher::SideKind::Far; 4];
+    sides[mesher::LEFT] = mesher::SideKind::Periodic { anti: true };
+    sides[mesher::RIGHT] = mesher::SideKind::Periodic { anti: true };
+    let planar = solve_with(
+        Symmetry::Planar,
+        vec![
+            magnet(rect(0.0, 0.0, 0.01, 0.004), 0.001, [0.0, BR]),
+            magnet(rect(0.01, 0.0, 0.02, 0.004), 0.001, [0.0, -BR]),
+            linear(rect(0.0, -0.004, 0.02, 0.0), 0.001, 1000.0),
+        ],
+        vec![],
+        OuterBoundary::FluxParallel {
+            from_to: Some(([0.0, -0.02], [0.02, 0.02])),
+            sides,
+        },
+        [0.0, 0.0],
+        integrated,
+    );
+    for (name, (system, plain)) in [("axisymmetric", axial), ("planar, anti-periodic", planar)] {
+        eprintln!(
+            "{name}: stored {} against {}, co-energy {} against {}",
+            system.stored, plain.stored, system.coenergy, plain.coenergy
+        );
+        assert!(plain.stored > 0.0, "{name}: a magnet's field stores energy");
+        assert!(
+            rel(system.stored, plain.stored) < 1e-10,
+            "{name}: stored {} against {}",
+            system.stored,
+            plain.stored
+        );
+        assert!(
+            (system.coenergy - plain.coenergy).abs() < 1e-10 * plain.stored,
+            "{name}: co-energy {} against {}",
+            system.coenergy,
+            plain.coenergy
+        );
+    }
+}
