@@ -106,9 +106,14 @@ impl ExteriorSeries {
                 // t from +z: (sin t, cos t) = (r, z - zc) / rho.
                 let (st, ct) = (dx / rho, dy / rho);
                 let (mut b_rho, mut b_t) = (0.0, 0.0);
+                // 1 / rho^(n + 2), one product a term (a power a term was
+                // most of this function's time in the stray-field scans).
+                let inverse = 1.0 / rho;
+                let mut falloff = inverse * inverse;
                 for (n, (pn, pn1)) in associated_legendre(ct).iter().enumerate() {
                     let m = (n + 1) as f64;
-                    let c = self.terms[n][0] / rho.powf(m + 2.0);
+                    falloff *= inverse;
+                    let c = self.terms[n][0] * falloff;
                     b_rho += c * m * (m + 1.0) * pn;
                     b_t += c * m * pn1;
                 }
@@ -119,10 +124,12 @@ impl ExteriorSeries {
                 let t = dy.atan2(dx);
                 // B_rho = (1/rho) dA/dt, B_t = -dA/drho.
                 let (mut b_rho, mut b_t) = (0.0, -self.log_term / rho);
+                let inverse = 1.0 / rho;
+                let mut r = inverse;
                 for (n, c) in self.terms.iter().enumerate() {
                     let m = (n + 1) as f64;
                     let (s, co) = (m * t).sin_cos();
-                    let r = rho.powf(-m - 1.0);
+                    r *= inverse;
                     b_rho += m * (-c[0] * s + c[1] * co) * r;
                     b_t += m * (c[0] * co + c[1] * s) * r;
                 }
