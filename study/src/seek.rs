@@ -6,8 +6,9 @@
 //! Brent, Algorithms for Minimization without Derivatives, 1973, ch. 4:
 //! inverse quadratic interpolation and secant steps, bisection whenever
 //! they do not shrink the bracket fast enough), interpolating in log-log
-//! coordinates where the parameter and the values are positive. Each evaluation is a solve
-//! with its own error estimate, so the search stops once the bracket is
+//! coordinates where the parameter and the values are positive. Each
+//! evaluation is a solve with its own error estimate, so the search stops
+//! once the bracket is
 //! narrower than what that error allows: the parameter's uncertainty is the
 //! value's estimated error over the slope, plus what is left of the bracket.
 //! It also stops at a point whose value, its error included, lies within

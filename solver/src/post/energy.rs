@@ -1,7 +1,8 @@
 //! Stored magnetic energy and co-energy: the integral over all space
 //! (the Kelvin-mapped exterior included) of w = integral of H dB.
 
-use super::integrate::{element_sum, for_each_field_point, integrate};
+use super::integrate::{element_sum, integrate};
+use crate::element::for_each_point;
 use crate::solution::Solution;
 
 /// Energy and co-energy, J (planar: per metre of depth).
@@ -33,13 +34,17 @@ pub fn stored_energy(solution: &Solution) -> Energy {
 }
 
 /// The stored energy at zero potential and no applied field: w(B = 0),
-/// nonzero in magnets only (the exterior is air).
+/// nonzero in magnets only (the exterior is air), times each magnet
+/// element's volume at the same quadrature points (no field is needed).
 fn energy_at_zero_potential(solution: &Solution) -> f64 {
-    let [w] = element_sum(solution.elements.n_physical, |e| {
+    let els = &solution.elements;
+    let [w] = element_sum(els.n_physical, |e| {
         let w0 = solution.element_law(e).energy_density_of([0.0, 0.0], solution.problem.remanence_share(e));
         let mut sum = 0.0;
         if w0 != 0.0 {
-            for_each_field_point(solution, e, |p| sum += p.weight * w0);
+            for_each_point(els.geometry(e), els.order, solution.symmetry(), solution.placement(e), |op| {
+                sum += op.weight * w0
+            });
         }
         [sum]
     });
