@@ -136,7 +136,7 @@ pub fn stray_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String
             rays.borrow_mut().push(((from, dir), ray.clone()));
             ray
         });
-        ray.fall_distance(level, series.as_ref())
+        ray.fall_distance(sol, level, series.as_ref())
     };
     let along = |dir: [f64; 2], level: f64| fall(c, dir, level);
     let axis = |level: f64| {

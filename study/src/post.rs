@@ -191,7 +191,10 @@ fn probe_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f6
         let points = probe_points(&p.shape);
         let fields: Vec<_> = match p.shape {
             ProbeShape::Point(x) => vec![point_field(sol, x)],
-            ProbeShape::Line { .. } => points.iter().map(|&x| sol.field_at(x)).collect(),
+            ProbeShape::Line { .. } => {
+                use rayon::prelude::*;
+                points.par_iter().map(|&x| point_field(sol, x)).collect()
+            }
         };
         let b: Vec<[f64; 2]> = fields.iter().map(|f| f.map_or([f64::NAN; 2], |f| f.b)).collect();
         let h: Vec<[f64; 2]> = fields.iter().map(|f| f.map_or([f64::NAN; 2], |f| f.h)).collect();
