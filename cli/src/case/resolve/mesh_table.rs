@@ -256,20 +256,43 @@ pub fn pilot_meshes(given: f64, default_first: f64) -> u32 {
     }
 }
 
-/// A twentieth of the largest part's extent when `[mesh] size` is not
+/// A twentieth of the largest body's extent when `[mesh] size` is not
 /// given, measured on the parts as resolved (placed, copied by an array,
 /// read from a drawing: a part drawn in a DXF file used to count for
-/// nothing). Parts whose boxes touch were tried as one body (a row of
-/// blocks, a plunger in its frame): the eight-block Halbach row then
-/// started on 4 mm and the plunger sweep on 2.5 mm, and both took a third
-/// mesh at 0.1 % (docs/measurement-log.md, eleventh session).
-pub(super) fn default_size(parts: &[study::model::Part], length_unit: f64) -> f64 {
-    let extent = parts.iter().map(|p| extent(&p.shape)).filter(|e| e.is_finite()).fold(0.0, f64::max);
+/// nothing). A body is one `[[part]]` table: a part, or all the copies of
+/// an array together (`bodies` holds each table's parts). An array is one
+/// assembly drawn once: the eight-block Halbach row started on a twentieth
+/// of one block, 0.5 mm, and reached 0.1 % on 55 590 and 222 360 triangles
+/// with its asked values' estimates 1e-5 to 3e-6; on the row's 4 mm, on
+/// 8 288 and 33 152, the largest 1e-4, every one of its 62 estimates
+/// within twice its difference from a 0.001 % solve where that solve's
+/// own error could tell (`cargo bench -p validation --bench honesty`;
+/// docs/measurement-log.md, thirteenth session). Its line probe's peak
+/// once kept it on three meshes from 4 mm; extracted from balls, it
+/// converges as the points do.
+/// Parts whose boxes touch were tried as one body (a plunger in its
+/// frame): the plunger sweep then started on 2.5 mm and took a third mesh
+/// at 0.1 % (docs/measurement-log.md, eleventh session).
+pub(super) fn default_size(bodies: &[&[study::model::Part]], length_unit: f64) -> f64 {
+    let extent = bodies.iter().map(|b| body_extent(b)).filter(|e| e.is_finite()).fold(0.0, f64::max);
     if extent > 0.0 {
         extent / 20.0
     } else {
         length_unit
     }
+}
+
+/// The larger side of the box around all the parts of a body.
+fn body_extent(parts: &[study::model::Part]) -> f64 {
+    let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
+    for p in parts {
+        let (a, b) = p.shape.bounds();
+        for k in 0..2 {
+            lo[k] = lo[k].min(a[k]);
+            hi[k] = hi[k].max(b[k]);
+        }
+    }
+    (hi[0] - lo[0]).max(hi[1] - lo[1])
 }
 
 /// The default mesh size of a part: the study's, but never more than the

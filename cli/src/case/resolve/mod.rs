@@ -161,15 +161,20 @@ fn resolve_at(
     let mut parts = Vec::new();
     let mut spans = Spans::default();
     let mut size_defaulted = Vec::new();
+    // Where each [[part]] table's parts start: an array's copies are one body.
+    let mut body_starts = Vec::new();
     for item in parts_items {
         let own_size = matches!(&item.value, Value::Table(t) if t.iter().any(|(k, _)| k.name == "mesh_size"));
+        body_starts.push(parts.len());
         for p in parts_of(item, &ctx, symmetry, &user_materials, &mesh, &parts)? {
             parts.push(p);
             spans.parts.push(item.span.clone());
             size_defaulted.push(!own_size);
         }
     }
-    let default = mesh_table::default_size(&parts, ctx.length_unit);
+    body_starts.push(parts.len());
+    let bodies: Vec<&[study::model::Part]> = body_starts.windows(2).map(|w| &parts[w[0]..w[1]]).collect();
+    let default = mesh_table::default_size(&bodies, ctx.length_unit);
     if let Some(target) = accuracy {
         // Quartic elements already start four times coarser (`order_scale`);
         // forces on them took a third mesh from twice that.
