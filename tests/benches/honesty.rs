@@ -12,13 +12,14 @@
 //!   to tell).
 //!
 //! A value is also `loose` when its estimate passes 20 times the largest
-//! true error the reference allows and a tenth of the study's target (the
-//! issue's bound on estimates). It prints one line per value that is not
-//! plainly honest, and a count per case. This is a self-convergence check
-//! against the same code's tighter solve, not against exact answers
-//! (those are the accuracy bench and tests/tests/error_estimates.rs); the
-//! reference's own estimate is only as good as the code under audit, so a
-//! case is worth a second look whenever its reference stops short.
+//! true error the reference allows and a tenth of the study's target (an
+//! estimate that loose asks for meshes no value needs). It prints one line
+//! per value that is not plainly honest, and a count per case. This is a
+//! self-convergence check against the same code's tighter solve, not
+//! against exact answers (those are the accuracy bench and
+//! tests/tests/error_estimates.rs); the reference's own estimate is only
+//! as good as the code under audit, so a case is worth a second look
+//! whenever its reference stops short.
 //!
 //! `--case NAME` keeps the cases whose file name contains NAME.
 
