@@ -6,6 +6,7 @@ use crate::materials::Material;
 use crate::model::{FluxSpec, Model, ProbeShape};
 use crate::results::*;
 use mesher::Symmetry;
+use rayon::prelude::*;
 use solver::post::{energy, flux, force};
 use solver::space::ElementKind;
 use solver::Solution;
@@ -191,10 +192,7 @@ fn probe_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f6
         let points = probe_points(&p.shape);
         let fields: Vec<_> = match p.shape {
             ProbeShape::Point(x) => vec![point_field(sol, x)],
-            ProbeShape::Line { .. } => {
-                use rayon::prelude::*;
-                points.par_iter().map(|&x| point_field(sol, x)).collect()
-            }
+            ProbeShape::Line { .. } => points.par_iter().map(|&x| point_field(sol, x)).collect(),
         };
         let b: Vec<[f64; 2]> = fields.iter().map(|f| f.map_or([f64::NAN; 2], |f| f.b)).collect();
         let h: Vec<[f64; 2]> = fields.iter().map(|f| f.map_or([f64::NAN; 2], |f| f.h)).collect();

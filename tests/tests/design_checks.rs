@@ -138,6 +138,28 @@ fn implant_distances_of_a_bare_cylinder_match_its_exact_field() {
 }
 
 #[test]
+fn reach_inside_the_mesh_of_a_bare_cylinder_matches_its_exact_field() {
+    // Source: the exact field of a uniformly magnetized cylinder on its axis (Furlani 2001 sec.
+    // 4.3), tests/src/reference.rs: the distance from the magnet's centre where |B| falls to
+    // 0.2 T, about 18 mm, inside the open boundary's rim (about 21 mm), so the crossing is found
+    // among the ray's samples and sharpened on the extracted field; at default settings, within
+    // the target and its estimate.
+    use validation::reference::cylinder_axis_bz;
+    let (a, l) = (0.01, 0.02);
+    let r = solve_case_text(&bare_cylinder(10.0, 20.0, "ideal", "reach_level = \"0.2 T\""), &[]);
+    let exact = fall_to(0.2, |d| cylinder_axis_bz(1.2, a, l, 0.5 * l + d), 0.5 * l, 100.0);
+    assert!(exact < 0.02, "the crossing must lie inside the mesh: {exact} m");
+    check_at_default(
+        "reach of a bare cylinder inside the mesh at default settings, within its error",
+        "exact cylinder field (Furlani 2001)",
+        &r,
+        "reach.axis",
+        exact,
+        exact.abs(),
+    );
+}
+
+#[test]
 fn reach_of_a_planar_bar_matches_its_exact_field() {
     // Source: the exact 2D field of a long bar magnetized across its width, two charged sheets
     // (Furlani 2001 sec. 4.2), tests/src/reference.rs: the distance from the bar's centre along
