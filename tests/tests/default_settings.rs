@@ -462,7 +462,9 @@ fn coaxial_line_energy_and_linkage_at_default_settings() {
 
 /// A linear inductor's field energy is half its flux linkage times its
 /// current, W = L I^2 / 2 = lambda I / 2: a solenoid in air (radii 20 and
-/// 22 mm, 100 mm long, 1000 ampere-turns in 100 turns, so 10 A). Energy and
+/// 22 mm, 100 mm long, 1000 ampere-turns in 100 turns, so 10 A). Its
+/// linkage is also held against the winding's exact inductance
+/// (`thick_coil_inductance`). Energy and
 /// linkage are integrals of one solution, each with its own estimate; the
 /// combination, exactly zero, must lie within their errors. The hand-meshed
 /// check (forces.rs) holds the same on a given mesh.
@@ -476,6 +478,16 @@ fn solenoid_energy_is_half_its_linkage_times_its_current_at_default_settings() {
     );
     let r = solve_case_text(&text, &[]);
     let current = ampere_turns / turns;
+    // The linkage itself against the winding's exact inductance.
+    let inductance = validation::reference::thick_coil_inductance(0.02, 0.022, 0.1, turns);
+    check_at_default(
+        "solenoid inductance at default settings, within its error",
+        "ring mutual inductance, Bessel form (Smythe 1968), integrated over the winding",
+        &r,
+        "flux.linkage",
+        inductance * current,
+        inductance * current,
+    );
     let term = |name: &str, c: f64| (name.to_string(), r.values[name], r.errors[name], c);
     assert_vanishes(
         "solenoid energy = L I^2 / 2 at default settings, within their errors",
