@@ -253,9 +253,12 @@ pub fn solve_variant_keeping<T>(
         })?;
         Ok((results, files, keep(sol)))
     };
+    // A study error without a place in the case names the parameter values
+    // it came at (a seek's or a sweep's), as the case alone cannot.
+    let at = variant.swept.iter().map(|(k, x)| format!("at {k} = {x}: ")).collect::<String>();
     let (results, files, kept) = study::run::solve_to_accuracy(&model, mesh, &report, finish).map_err(|e| match e.origin {
         Some(_) => loaded.study_error(&spans, &e),
-        None => Failure::Input(format!("error: {}: {e}\n", loaded.path.display())),
+        None => Failure::Input(format!("error: {}: {at}{e}\n", loaded.path.display())),
     })??;
     Ok((Outcome { model, results, files }, kept))
 }

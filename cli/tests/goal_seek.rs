@@ -60,6 +60,20 @@ fn the_smallest_cylinder_for_5_mt_at_100_mm_matches_the_closed_form() {
     );
     assert!(json["evaluations"].as_array().unwrap().len() < 30);
     assert!(out.join("seek.csv").exists() && out.join("results.json").exists());
+    // The case written out is the case at the answer (the seek's last full
+    // solve is kept, not solved again): its value is the answer's.
+    let results: serde_json::Value = serde_json::from_slice(&std::fs::read(out.join("results.json")).unwrap()).unwrap();
+    assert_eq!(
+        results["values"]["probe.sensor.b"].as_f64(),
+        json["value"].as_f64(),
+        "results.json is not the case at the answer"
+    );
+    let last = json["evaluations"].as_array().unwrap().iter().rev().find(|e| e["x"].as_f64() == Some(found));
+    assert_eq!(
+        last.and_then(|e| e["value"].as_f64()),
+        json["value"].as_f64(),
+        "the answer is not an evaluation's value"
+    );
     assert!(std::fs::read_to_string(out.join("seek.svg")).unwrap().contains("target 5 mT"), "no seek chart");
     assert!(text.contains("seek: d = "), "{text}");
     let _ = std::fs::remove_dir_all(out.parent().unwrap());
