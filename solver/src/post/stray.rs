@@ -219,8 +219,9 @@ impl RayProfile {
         }
     }
 
-    /// The crossing of `level` between a sample above it and the next one
-    /// below, by the Illinois variant of regula falsi on |B| extracted from
+    /// The crossing of `level` near a sample above it and the next one
+    /// below (bracketed again on the extracted field, `bracket_outwards`),
+    /// by the Illinois variant of regula falsi on |B| extracted from
     /// a ball (`extraction::extracted_b`; B in the element where no ball
     /// fits). The samples' own |B| is the element's at a point, whose error
     /// moves with the point's place in its element: a holding magnet's
@@ -237,14 +238,9 @@ impl RayProfile {
             b.map(|b| b[0].hypot(b[1]) - level)
         };
         let fallback = interpolate(Some(above), below, level);
-        let (Some(mut fa), Some(mut fb)) = (excess(above.0), excess(below.0)) else {
+        let Some(((mut a, mut fa), (mut b, mut fb))) = bracket_outwards(&excess, above.0, below.0) else {
             return fallback;
         };
-        let (mut a, mut b) = (above.0, below.0);
-        if fa < 0.0 || fb > 0.0 {
-            // The extracted field does not bracket the level where the samples did.
-            return fallback;
-        }
         let mut side = 0;
         for _ in 0..CROSSING_STEPS {
             let c = if fa == fb { 0.5 * (a + b) } else { b - fb * (b - a) / (fb - fa) };
@@ -273,6 +269,44 @@ impl RayProfile {
         }
     }
 }
+
+/// A bracket of the crossing on the extracted field, (distance, excess)
+/// above and below the level, from the samples' bracket [a, b]: where the
+/// extracted field does not bracket the level there, the bracket moves
+/// inwards or outwards by steps that double from the samples' spacing.
+/// The samples' element values err more than the extracted field on a
+/// coarse mesh: a bare disk's 5 mT reach downwards, where no probe refines
+/// the mesh, had its samples' bracket 0.3 % beyond the crossing (their
+/// |B| 1.2 % high) while the extracted field below it was right to 4e-4;
+/// the straight line between the samples gave a reach 0.4 % long, whose
+/// change to the next mesh became a forty-times loose estimate
+/// (docs/measurement-log.md, fourteenth session). None when no bracket
+/// is found within `EXPANSIONS` steps or the field cannot be extracted.
+fn bracket_outwards(excess: &dyn Fn(f64) -> Option<f64>, a: f64, b: f64) -> Option<((f64, f64), (f64, f64))> {
+    let (mut a, mut fa, mut b, mut fb) = (a, excess(a)?, b, excess(b)?);
+    let mut step = b - a;
+    for _ in 0..EXPANSIONS {
+        if fa >= 0.0 && fb <= 0.0 {
+            return Some(((a, fa), (b, fb)));
+        }
+        if fa < 0.0 {
+            // Below the level already at a: the crossing is nearer.
+            (b, fb) = (a, fa);
+            a = (a - step).max(0.5 * a);
+            fa = excess(a)?;
+        } else {
+            (a, fa) = (b, fb);
+            b += step;
+            fb = excess(b)?;
+        }
+        step *= 2.0;
+    }
+    (fa >= 0.0 && fb <= 0.0).then_some(((a, fa), (b, fb)))
+}
+
+/// Most steps `bracket_outwards` takes: from a bracket a sample (a
+/// 800th of the ray) wide, eight doublings reach a third of the ray.
+const EXPANSIONS: usize = 8;
 
 /// Most regula-falsi steps for a crossing: the Illinois variant converges
 /// superlinearly (order about 1.44; M. Dowell, P. Jarratt, BIT 11, 1971),
@@ -331,4 +365,24 @@ fn half_plane_sign(solution: &Solution) -> Option<f64> {
 pub fn dipole_h(m: f64, d: f64) -> (f64, f64) {
     let equator = m / (4.0 * PI * d.powi(3));
     (2.0 * equator, equator)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A dipole-like fall 1/d^3 through the level 1 at d = 2: a bracket
+    /// on either wrong side of it (the samples' error) moves to hold it,
+    /// a right one is kept, and a field that never falls gives None.
+    #[test]
+    fn a_bracket_on_the_wrong_side_moves_to_the_crossing() {
+        let excess = |d: f64| Some(8.0 / (d * d * d) - 1.0);
+        for (a, b) in [(2.1, 2.2), (1.7, 1.8), (1.95, 2.05)] {
+            let ((lo, flo), (hi, fhi)) = bracket_outwards(&excess, a, b).unwrap();
+            assert!(lo <= 2.0 && hi >= 2.0 && flo >= 0.0 && fhi <= 0.0, "{a} {b}: [{lo}, {hi}]");
+            assert!(hi - lo <= 0.1 * 2f64.powi(EXPANSIONS as i32), "{a} {b}: [{lo}, {hi}]");
+        }
+        assert_eq!(bracket_outwards(&excess, 1.95, 2.05).map(|(a, b)| (a.0, b.0)), Some((1.95, 2.05)));
+        assert!(bracket_outwards(&|_| Some(1.0), 1.0, 1.1).is_none());
+    }
 }
