@@ -1,7 +1,8 @@
 //! `lodestone solve` on a case with `[seek]`: the goal seek's evaluations
-//! (each a study solved to its accuracy, no files), then the case solved
-//! in full at the parameter found, written with seek.json and seek.csv as
-//! one set.
+//! (the scan's points at a looser accuracy and without files, the others
+//! the case solved in full), then the case at the answer written with
+//! seek.json and seek.csv as one set: the last full evaluation's when the
+//! answer is its point, else the case solved there again.
 
 use crate::case::resolve::Seek;
 use crate::output::folder::OutputFolder;
