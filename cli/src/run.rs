@@ -215,6 +215,32 @@ pub fn solve_variant_keeping<T>(
     progress: &Progress,
     keep: impl FnOnce(&solver::Solution) -> T,
 ) -> Result<(Outcome, T), Failure> {
+    solve_variant_with(loaded, variant, limits, progress, None, keep)
+}
+
+/// As [`solve_variant`], but the files are made only when `wanted` says so
+/// of the results (none otherwise): a seek's point needs them only if it
+/// may be the answer, and the pictures and the field file cost about what
+/// the study's solve does (smallest-magnet-for-5mT).
+pub fn solve_variant_files_when(
+    loaded: &Loaded,
+    variant: &Variant,
+    limits: &Limits,
+    progress: &Progress,
+    wanted: &dyn Fn(&Results) -> bool,
+) -> Result<Outcome, Failure> {
+    solve_variant_with(loaded, variant, limits, progress, Some(wanted), |_| ()).map(|(o, ())| o)
+}
+
+/// The one body of the two above: the files always, or when `wanted`.
+fn solve_variant_with<T>(
+    loaded: &Loaded,
+    variant: &Variant,
+    limits: &Limits,
+    progress: &Progress,
+    wanted: Option<&dyn Fn(&Results) -> bool>,
+    keep: impl FnOnce(&solver::Solution) -> T,
+) -> Result<(Outcome, T), Failure> {
     let start = Instant::now();
     let resolved = resolve(loaded, &variant.params, limits)?;
     let tag = if variant.label.is_empty() {
@@ -240,17 +266,26 @@ pub fn solve_variant_keeping<T>(
             100.0 * worst_relative_error
         )),
     };
+    let stamp = |results: &mut Results| {
+        results.solve.seconds = start.elapsed().as_secs_f64();
+        if !variant.label.is_empty() {
+            results.variant = Some(results::VariantInfo {
+                index: variant.index,
+                label: variant.label.clone(),
+                swept: variant.swept.clone(),
+            });
+        }
+    };
     let finish = |sol: &solver::Solution, estimate: study::estimate::Estimate| -> Result<(Results, FileSet, T), Failure> {
-        let (results, files) = results_and_files(&model, sol, estimate, |results| {
-            results.solve.seconds = start.elapsed().as_secs_f64();
-            if !variant.label.is_empty() {
-                results.variant = Some(results::VariantInfo {
-                    index: variant.index,
-                    label: variant.label.clone(),
-                    swept: variant.swept.clone(),
-                });
+        let (results, files) = match wanted {
+            None => results_and_files(&model, sol, estimate, stamp)?,
+            Some(wanted) => {
+                let mut results = study::post::results_with_errors(&model, sol, estimate);
+                stamp(&mut results);
+                let files = if wanted(&results) { files_of(&model, sol, &results)? } else { Vec::new() };
+                (results, files)
             }
-        })?;
+        };
         Ok((results, files, keep(sol)))
     };
     // A study error without a place in the case names the parameter values
@@ -276,13 +311,7 @@ pub fn results_and_files(
     stamp: impl FnOnce(&mut Results) + Send,
 ) -> Result<(Results, FileSet), Failure> {
     let (field, described) = rayon::join(
-        || {
-            model
-                .output
-                .vtk
-                .then(|| output::vtk::field_vtu(model, sol).map_err(|e| Failure::Input(format!("error: {e}\n"))))
-                .transpose()
-        },
+        || field_file(model, sol),
         || {
             let mut results = study::post::results_with_errors(model, sol, estimate);
             stamp(&mut results);
@@ -290,11 +319,32 @@ pub fn results_and_files(
             Ok::<_, Failure>((results, files))
         },
     );
-    let (results, mut files) = described?;
-    if let Some(vtu) = field? {
+    let (results, files) = described?;
+    Ok((results, with_field(files, field?)))
+}
+
+/// Every output file of a solved variant whose results are made: the
+/// field file encoded on one core, the rest on the other.
+fn files_of(model: &Model, sol: &solver::Solution, results: &Results) -> Result<FileSet, Failure> {
+    let (field, files) = rayon::join(|| field_file(model, sol), || collect_files(model, sol, results));
+    Ok(with_field(files?, field?))
+}
+
+/// The field file (VTK), when the case asks for it.
+fn field_file(model: &Model, sol: &solver::Solution) -> Result<Option<Vec<u8>>, Failure> {
+    model
+        .output
+        .vtk
+        .then(|| output::vtk::field_vtu(model, sol).map_err(|e| Failure::Input(format!("error: {e}\n"))))
+        .transpose()
+}
+
+/// The files with the field file second, after results.json.
+fn with_field(mut files: FileSet, field: Option<Vec<u8>>) -> FileSet {
+    if let Some(vtu) = field {
         files.insert(1, ("field.vtu".into(), vtu));
     }
-    Ok((results, files))
+    files
 }
 
 /// Every output file of a solved variant but the field. The mesh picture

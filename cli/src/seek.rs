@@ -10,6 +10,7 @@ use crate::progress::Progress;
 use crate::run::{self, Failure, Limits, Loaded, Variant};
 use std::collections::BTreeMap;
 use std::path::Path;
+use std::sync::Mutex;
 use study::seek::{Evaluation, Need, SeekError};
 
 /// How much looser than the study's accuracy the scan's points are solved
@@ -18,11 +19,11 @@ use study::seek::{Evaluation, Need, SeekError};
 const SCAN_LOOSENESS: f64 = 10.0;
 const SCAN_LOOSEST: f64 = 0.05;
 
-/// The case solved in full at a point of the seek, its files made. The
-/// answer is nearly always the last point solved in full (the seek stops
-/// there once its value is within the accuracy of the target), and that
-/// outcome is then the case at the answer: it is not solved there again
-/// (smallest-magnet-for-5mT: the final solve was 0.3 s of its 1.0 s).
+/// The case solved in full at a point of the seek where it may stop, its
+/// files made: the seek stops at a full evaluation within its tolerance of
+/// the target (the error included), and that outcome is then the case at
+/// the answer, not solved there again. Other points make no files (they
+/// cost about what a solve does).
 struct Kept {
     x: f64,
     outcome: run::Outcome,
@@ -40,8 +41,9 @@ struct Context<'a> {
 
 /// One evaluation: the study at `x`, its value and estimated error. A
 /// scan's point is solved at a looser accuracy and makes no files; any
-/// other is the case solved in full, kept in `kept`.
-fn evaluate(ctx: &Context, x: f64, need: Need, kept: &mut Option<Kept>) -> Result<Evaluation, Failure> {
+/// other is the case solved in full, kept in `kept` with its files when
+/// the seek may stop there.
+fn evaluate(ctx: &Context, x: f64, need: Need, kept: &Mutex<Option<Kept>>) -> Result<Evaluation, Failure> {
     let Context {
         loaded,
         base,
@@ -62,9 +64,18 @@ fn evaluate(ctx: &Context, x: f64, need: Need, kept: &mut Option<Kept>) -> Resul
             (results, true)
         }
         None => {
-            let outcome = run::solve_variant(loaded, &at, limits, progress)?;
+            // Files only for a point the seek may stop at (within its
+            // tolerance of the target, the error included).
+            let may_stop = |r: &study::Results| {
+                r.values
+                    .get(&spec.value)
+                    .is_some_and(|v| (v - spec.target).abs() + r.errors.get(&spec.value).copied().unwrap_or(0.0) <= spec.tolerance)
+            };
+            let outcome = run::solve_variant_files_when(loaded, &at, limits, progress, &may_stop)?;
             let results = outcome.results.clone();
-            *kept = Some(Kept { x, outcome });
+            if !outcome.files.is_empty() {
+                *kept.lock().unwrap_or_else(|e| e.into_inner()) = Some(Kept { x, outcome });
+            }
             (results, false)
         }
     };
@@ -108,7 +119,7 @@ fn scan_limits(need: Need, loaded: &Loaded, at: &Variant, limits: &Limits) -> Re
 
 /// Runs the seek, then the full case at the answer; exit code as `solve`.
 pub fn solve(loaded: &Loaded, spec: &Seek, base: &Variant, folder: &OutputFolder, limits: &Limits, progress: &Progress) -> Result<i32, Failure> {
-    let mut kept = None;
+    let kept = Mutex::new(None);
     let ctx = Context {
         loaded,
         base,
@@ -117,7 +128,7 @@ pub fn solve(loaded: &Loaded, spec: &Seek, base: &Variant, folder: &OutputFolder
         progress,
     };
     let found = study::seek::seek(spec.range[0], spec.range[1], spec.target, spec.tolerance, |x, need| {
-        evaluate(&ctx, x, need, &mut kept)
+        evaluate(&ctx, x, need, &kept)
     });
     let found = match found {
         Ok(f) => f,
@@ -139,7 +150,7 @@ pub fn solve(loaded: &Loaded, spec: &Seek, base: &Variant, folder: &OutputFolder
     };
     let mut at = base.clone();
     at.params.insert(spec.vary.clone(), found.x);
-    let mut outcome = match kept {
+    let mut outcome = match kept.into_inner().unwrap_or_else(|e| e.into_inner()) {
         Some(k) if k.x == found.x => k.outcome,
         _ => run::solve_variant(loaded, &at, limits, progress)?,
     };

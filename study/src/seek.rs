@@ -98,33 +98,55 @@ fn scan(lo: f64, hi: f64) -> Vec<f64> {
 /// Finds x in [lo, hi] where value(x) = target, the smallest such x when
 /// there are several, to within `tolerance` of the target in value (0:
 /// as closely as the values' errors allow). `evaluate` solves the study at
-/// x to what is needed.
-pub fn seek<E>(lo: f64, hi: f64, target: f64, tolerance: f64, mut evaluate: impl FnMut(f64, Need) -> Result<Evaluation, E>) -> Result<Found, SeekError<E>> {
+/// x to what is needed; the scan calls it for two points at once, one on
+/// each core.
+pub fn seek<E: Send>(
+    lo: f64,
+    hi: f64,
+    target: f64,
+    tolerance: f64,
+    evaluate: impl Fn(f64, Need) -> Result<Evaluation, E> + Sync,
+) -> Result<Found, SeekError<E>> {
     let mut evaluations = Vec::new();
-    let mut eval = |x: f64, need: Need, evaluations: &mut Vec<Evaluation>| -> Result<Evaluation, SeekError<E>> {
+    let eval = |x: f64, need: Need, evaluations: &mut Vec<Evaluation>| -> Result<Evaluation, SeekError<E>> {
         let e = evaluate(x, need).map_err(SeekError::Evaluation)?;
         evaluations.push(e);
         Ok(e)
     };
-    // The first sign change from the low end.
+    // The first sign change from the low end. The scan's points are solved
+    // two at a time: each is a small study at a looser accuracy, whose
+    // solve shares two cores poorly (smallest-magnet-for-5mT: seven such
+    // points, one after another, were half of its run). The second of a
+    // pair is spent when the first closes the bracket.
     let mut previous: Option<Evaluation> = None;
     let mut bracket = None;
-    for x in scan(lo, hi) {
-        let mut e = eval(x, Need::Side, &mut evaluations)?;
-        if e.side_only && (e.value - target).abs() <= e.error {
-            // Its side is not known at the looser accuracy.
-            e = eval(x, Need::Value, &mut evaluations)?;
-        }
-        if let Some(p) = previous {
-            if (p.value - target).signum() != (e.value - target).signum() || e.value == target {
-                bracket = Some((p, e));
-                break;
+    'scan: for pair in scan(lo, hi).chunks(2) {
+        let [a, rest @ ..] = pair else { continue };
+        let (first, second) = match rest.first() {
+            Some(&b) => {
+                let (ea, eb) = rayon::join(|| evaluate(*a, Need::Side), || evaluate(b, Need::Side));
+                (ea, Some(eb))
             }
-        } else if e.value == target {
-            bracket = Some((e, e));
-            break;
+            None => (evaluate(*a, Need::Side), None),
+        };
+        for e in std::iter::once(first).chain(second) {
+            let mut e = e.map_err(SeekError::Evaluation)?;
+            evaluations.push(e);
+            if e.side_only && (e.value - target).abs() <= e.error {
+                // Its side is not known at the looser accuracy.
+                e = eval(e.x, Need::Value, &mut evaluations)?;
+            }
+            if let Some(p) = previous {
+                if (p.value - target).signum() != (e.value - target).signum() || e.value == target {
+                    bracket = Some((p, e));
+                    break 'scan;
+                }
+            } else if e.value == target {
+                bracket = Some((e, e));
+                break 'scan;
+            }
+            previous = Some(e);
         }
-        previous = Some(e);
     }
     let Some((a, b)) = bracket else {
         let values = evaluations.iter().map(|e| e.value);
@@ -353,6 +375,29 @@ mod tests {
     /// Scan points asked at a looser accuracy, each off by 0.9 of its
     /// (honest) error: those whose side is unsure are asked again in full,
     /// and the answer and its uncertainty come from full evaluations.
+    /// The scan solves its points two at a time: a point past the one that
+    /// closes the bracket is spent, and its failure (a geometry that cannot
+    /// be built there) does not stop the seek. The scan's points from 0.1 to
+    /// 10 are 0.1 * 10^(k/4); x^3 = 0.5 closes its bracket at x = 1, paired
+    /// with 1.78.
+    #[test]
+    fn a_spent_scan_point_does_not_stop_the_seek() {
+        let found = seek(0.1, 10.0, 0.5, 0.0, |x, _| {
+            if x > 1.5 {
+                return Err("no geometry");
+            }
+            Ok(Evaluation {
+                x,
+                value: x * x * x,
+                error: 1e-12,
+                side_only: false,
+            })
+        })
+        .unwrap();
+        assert!((found.x - 0.5f64.cbrt()).abs() <= found.uncertainty.max(1e-9), "{found:?}");
+        assert!(found.evaluations.iter().all(|e| e.x <= 1.0), "{found:?}");
+    }
+
     #[test]
     fn scan_points_at_a_looser_accuracy_do_not_set_the_answer() {
         let found = seek(0.1, 10.0, 2.0, 0.0, |x, need| {
