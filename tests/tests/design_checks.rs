@@ -137,6 +137,20 @@ fn implant_distances_of_a_bare_cylinder_match_its_exact_field() {
     check_at_default(what, source, &r, "stray.implant_distance.plane", plane, plane.abs());
 }
 
+/// The reach of a rigid cylinder (10 mm radius, `length_mm` long, Br
+/// 1.2 T) along its axis from its centre to `level` T, at default
+/// settings, against the exact axis field (Furlani 2001 sec. 4.3,
+/// tests/src/reference.rs), `extra` added to the case's study table; the
+/// exact distance in metres.
+fn check_axis_reach(what: &str, length_mm: f64, level: f64, extra: &str) -> f64 {
+    use validation::reference::cylinder_axis_bz;
+    let (a, l) = (0.01, 1e-3 * length_mm);
+    let r = solve_case_text(&bare_cylinder(10.0, length_mm, "ideal", extra), &[]);
+    let exact = fall_to(level, |d| cylinder_axis_bz(1.2, a, l, 0.5 * l + d), 0.5 * l, 1.0);
+    check_at_default(what, "exact cylinder field (Furlani 2001)", &r, "reach.axis", exact, exact.abs());
+    exact
+}
+
 #[test]
 fn reach_inside_the_mesh_of_a_bare_cylinder_matches_its_exact_field() {
     // Source: the exact field of a uniformly magnetized cylinder on its axis (Furlani 2001 sec.
@@ -144,19 +158,9 @@ fn reach_inside_the_mesh_of_a_bare_cylinder_matches_its_exact_field() {
     // 0.2 T, about 18 mm, inside the open boundary's rim (about 21 mm), so the crossing is found
     // among the ray's samples and sharpened on the extracted field; at default settings, within
     // the target and its estimate.
-    use validation::reference::cylinder_axis_bz;
-    let (a, l) = (0.01, 0.02);
-    let r = solve_case_text(&bare_cylinder(10.0, 20.0, "ideal", "reach_level = \"0.2 T\""), &[]);
-    let exact = fall_to(0.2, |d| cylinder_axis_bz(1.2, a, l, 0.5 * l + d), 0.5 * l, 100.0);
+    let what = "reach of a bare cylinder inside the mesh at default settings, within its error";
+    let exact = check_axis_reach(what, 20.0, 0.2, "reach_level = \"0.2 T\"");
     assert!(exact < 0.02, "the crossing must lie inside the mesh: {exact} m");
-    check_at_default(
-        "reach of a bare cylinder inside the mesh at default settings, within its error",
-        "exact cylinder field (Furlani 2001)",
-        &r,
-        "reach.axis",
-        exact,
-        exact.abs(),
-    );
 }
 
 #[test]
@@ -168,19 +172,9 @@ fn reach_where_no_probe_refines_the_mesh_matches_its_exact_field() {
     // the straight line between them, the reach came out 0.4 % long there and its two-mesh
     // estimate 4e-3 against a true error of 2e-7 (docs/measurement-log.md, fourteenth session).
     // At default settings, within the target and twice its estimate, and the estimate sharp.
-    use validation::reference::cylinder_axis_bz;
-    let (a, l) = (0.01, 0.006);
+    let what = "reach of a disk along its axis, one side refined by a probe, at default settings, within its error";
     let probe = "[[probe]]\nname = \"above\"\nline = { from = [0, 6], to = [0, 60], points = 55 }";
-    let r = solve_case_text(&bare_cylinder(10.0, 6.0, "ideal", probe), &[]);
-    let exact = fall_to(5e-3, |d| cylinder_axis_bz(1.2, a, l, 0.5 * l + d), 0.5 * l, 1.0);
-    check_at_default(
-        "reach of a disk along its axis, one side refined by a probe, at default settings, within its error",
-        "exact cylinder field (Furlani 2001)",
-        &r,
-        "reach.axis",
-        exact,
-        exact.abs(),
-    );
+    check_axis_reach(what, 6.0, 5e-3, probe);
 }
 
 #[test]
