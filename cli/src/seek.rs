@@ -1,8 +1,9 @@
 //! `lodestone solve` on a case with `[seek]`: the goal seek's evaluations
-//! (the scan's points at a looser accuracy and without files, the others
-//! the case solved in full), then the case at the answer written with
-//! seek.json and seek.csv as one set: the last full evaluation's when the
-//! answer is its point, else the case solved there again.
+//! (the scan's points two at a time, at a looser accuracy and without
+//! files; the others the case solved in full, with files where the seek
+//! may stop), then the case at the answer written with seek.json and
+//! seek.csv as one set: the full evaluation it stopped at, else the case
+//! solved there again.
 
 use crate::case::resolve::Seek;
 use crate::output::folder::OutputFolder;
