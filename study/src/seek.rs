@@ -372,9 +372,6 @@ mod tests {
         assert!(found.uncertainty < 0.003 && found.uncertainty >= 0.001, "{found:?}");
     }
 
-    /// Scan points asked at a looser accuracy, each off by 0.9 of its
-    /// (honest) error: those whose side is unsure are asked again in full,
-    /// and the answer and its uncertainty come from full evaluations.
     /// The scan solves its points two at a time: a point past the one that
     /// closes the bracket is spent, and its failure (a geometry that cannot
     /// be built there) does not stop the seek. The scan's points from 0.1 to
@@ -398,6 +395,9 @@ mod tests {
         assert!(found.evaluations.iter().all(|e| e.x <= 1.0), "{found:?}");
     }
 
+    /// Scan points asked at a looser accuracy, each off by 0.9 of its
+    /// (honest) error: those whose side is unsure are asked again in full,
+    /// and the answer and its uncertainty come from full evaluations.
     #[test]
     fn scan_points_at_a_looser_accuracy_do_not_set_the_answer() {
         let found = seek(0.1, 10.0, 2.0, 0.0, |x, need| {
