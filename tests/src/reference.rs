@@ -264,7 +264,7 @@ pub fn thick_coil_inductance(r1: f64, r2: f64, l: f64, turns: f64) -> f64 {
         }
     };
     let kmax = 3000.0 / r1;
-    // Panels no wider than a quarter of J1(k r2)'s turn.
+    // Panels one radian of J1(k r2)'s phase wide (a sixth of its turn).
     let panels = (kmax * r2).ceil() as usize;
     let h = kmax / panels as f64;
     let mut total = 0.0;
