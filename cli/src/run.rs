@@ -290,7 +290,12 @@ fn solve_variant_with<T>(
     };
     // A study error without a place in the case names the parameter values
     // it came at (a seek's or a sweep's), as the case alone cannot.
-    let at = variant.swept.iter().map(|(k, x)| format!("at {k} = {x}: ")).collect::<String>();
+    let at = if variant.swept.is_empty() {
+        String::new()
+    } else {
+        let values: Vec<String> = variant.swept.iter().map(|(k, x)| format!("{k} = {x}")).collect();
+        format!("at {}: ", values.join(", "))
+    };
     let (results, files, kept) = study::run::solve_to_accuracy(&model, mesh, &report, finish).map_err(|e| match e.origin {
         Some(_) => loaded.study_error(&spans, &e),
         None => Failure::Input(format!("error: {}: {at}{e}\n", loaded.path.display())),

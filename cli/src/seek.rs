@@ -60,7 +60,7 @@ fn evaluate(ctx: &Context, x: f64, need: Need, kept: &Mutex<Option<Kept>>) -> Re
             let resolved = run::resolve(loaded, &at.params, &scan)?;
             let results = study::run::run(&resolved.model, &|_| {}).map_err(|e| match e.origin {
                 Some(_) => loaded.study_error(&resolved.spans, &e),
-                None => Failure::Input(format!("error: {}: {} = {x}: {e}\n", loaded.path.display(), spec.vary)),
+                None => Failure::Input(format!("error: {}: at {} = {x}: {e}\n", loaded.path.display(), spec.vary)),
             })?;
             (results, true)
         }
@@ -68,9 +68,10 @@ fn evaluate(ctx: &Context, x: f64, need: Need, kept: &Mutex<Option<Kept>>) -> Re
             // Files only for a point the seek may stop at (within its
             // tolerance of the target, the error included).
             let may_stop = |r: &study::Results| {
+                let error = r.errors.get(&spec.value).copied().unwrap_or(0.0);
                 r.values
                     .get(&spec.value)
-                    .is_some_and(|v| (v - spec.target).abs() + r.errors.get(&spec.value).copied().unwrap_or(0.0) <= spec.tolerance)
+                    .is_some_and(|&v| study::seek::stops_at(v, error, spec.target, spec.tolerance))
             };
             let outcome = run::solve_variant_files_when(loaded, &at, limits, progress, &may_stop)?;
             let results = outcome.results.clone();

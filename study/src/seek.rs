@@ -108,11 +108,12 @@ pub fn seek<E: Send>(
     evaluate: impl Fn(f64, Need) -> Result<Evaluation, E> + Sync,
 ) -> Result<Found, SeekError<E>> {
     let mut evaluations = Vec::new();
-    let eval = |x: f64, need: Need, evaluations: &mut Vec<Evaluation>| -> Result<Evaluation, SeekError<E>> {
-        let e = evaluate(x, need).map_err(SeekError::Evaluation)?;
+    let record = |e: Result<Evaluation, E>, evaluations: &mut Vec<Evaluation>| -> Result<Evaluation, SeekError<E>> {
+        let e = e.map_err(SeekError::Evaluation)?;
         evaluations.push(e);
         Ok(e)
     };
+    let eval = |x: f64, need: Need, evaluations: &mut Vec<Evaluation>| record(evaluate(x, need), evaluations);
     // The first sign change from the low end. The scan's points are solved
     // two at a time: each is a small study at a looser accuracy, whose
     // solve shares two cores poorly (smallest-magnet-for-5mT: seven such
@@ -130,8 +131,7 @@ pub fn seek<E: Send>(
             None => (evaluate(*a, Need::Side), None),
         };
         for e in std::iter::once(first).chain(second) {
-            let mut e = e.map_err(SeekError::Evaluation)?;
-            evaluations.push(e);
+            let mut e = record(e, &mut evaluations)?;
             if e.side_only && (e.value - target).abs() <= e.error {
                 // Its side is not known at the looser accuracy.
                 e = eval(e.x, Need::Value, &mut evaluations)?;
@@ -157,6 +157,13 @@ pub fn seek<E: Send>(
     };
     let (x, uncertainty) = brent(a, b, target, tolerance, &mut |x| eval(x, Need::Value, &mut evaluations))?;
     Ok(Found { x, uncertainty, evaluations })
+}
+
+/// Whether the seek stops at a full evaluation with this value and error:
+/// within `tolerance` of the target, the error included (Brent's loop
+/// below, and a caller that keeps only such a point's full outcome).
+pub fn stops_at(value: f64, error: f64, target: f64, tolerance: f64) -> bool {
+    (value - target).abs() + error <= tolerance
 }
 
 /// Brent's method on f(x) = value - target inside the bracket [a, b]
@@ -195,7 +202,7 @@ fn brent<E>(
         if f(&b) == 0.0 && !b.side_only {
             return Ok((b.x, allowed));
         }
-        if !b.side_only && f(&b).abs() + b.error <= tolerance {
+        if !b.side_only && stops_at(b.value, b.error, target, tolerance) {
             let slope = ((f(&b) - f(&a)) / (b.x - a.x)).abs();
             if slope > 0.0 && slope.is_finite() {
                 return Ok((b.x, (f(&b).abs() + b.error) / slope));
