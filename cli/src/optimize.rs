@@ -116,7 +116,7 @@ pub fn solve(loaded: &Loaded, spec: &Optimize, base: &Variant, folder: &OutputFo
         "evaluations": optimum.evaluations.len(),
         "stop": optimum.stop,
         "accuracy_of_evaluations": spec.accuracy,
-        "note": "values and errors in SI; params in the case's own units. The optimum is the best evaluation found by COBYLA after a parallel Latin-hypercube start; the search stops when its steps fall below the tolerance share of each range. Evaluations are solved to accuracy_of_evaluations, the case at the optimum to the case's own accuracy."
+        "note": "values and errors in SI; params in the case's own units. The optimum is the best evaluation found by COBYLA after a parallel Latin-hypercube start, then up to three steps of feasibility restoration where COBYLA's own best breaks a constraint by a hair; the search stops when its steps fall below the tolerance share of each range. Evaluations are solved to accuracy_of_evaluations, the case at the optimum to the case's own accuracy."
     });
     let encoded = serde_json::to_vec_pretty(&json).map_err(|e| Failure::Input(format!("error: cannot encode optimize.json: {e}\n")))?;
     outcome.files.push(("optimize.json".into(), encoded));

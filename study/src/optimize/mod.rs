@@ -16,6 +16,8 @@
 //! starts the search. This guards against a poor local start and uses the
 //! cores while the search itself, one point after another, cannot.
 
+mod restore;
+
 use crate::tolerance::{latin_hypercube, Distribution, Spread};
 use rayon::prelude::*;
 use std::cell::RefCell;
@@ -98,8 +100,12 @@ pub fn optimize<E: Send>(search: &Search, evaluate: impl Fn(&[f64]) -> Result<Po
         log.push(p?);
     }
     let start = best(&log).x.clone();
-    let budget = search.max_evaluations.saturating_sub(log.len()).max(n + 2);
-    let (log, stop) = cobyla_from(search, &start, budget, log, &evaluate)?;
+    let budget = search.max_evaluations.saturating_sub(log.len() + restore::RESTORE_STEPS).max(n + 2);
+    let (mut log, mut stop, last) = cobyla_from(search, &start, budget, log, &evaluate)?;
+    let restoring = restore::restore(search, &mut log, &last, &evaluate)?;
+    if restoring > 0 {
+        stop += &format!(", then {restoring} evaluation(s) stepped back across the constraints it broke by a hair");
+    }
     let best = best(&log).clone();
     Ok(Optimum {
         feasible: best.violation() == 0.0,
@@ -123,14 +129,15 @@ fn key(x: &[f64]) -> Vec<u64> {
 
 type Cached<E> = RefCell<(Vec<Point>, HashMap<Vec<u64>, usize>, Option<E>)>;
 
-/// COBYLA from `start` with `budget` evaluations; appends to `log`.
+/// COBYLA from `start` with `budget` evaluations; appends to `log`. Also
+/// returns why it stopped and its own best point.
 fn cobyla_from<E>(
     search: &Search,
     start: &[f64],
     budget: usize,
     log: Vec<Point>,
     evaluate: &impl Fn(&[f64]) -> Result<Point, E>,
-) -> Result<(Vec<Point>, String), E> {
+) -> Result<(Vec<Point>, String, Vec<f64>), E> {
     let index: HashMap<Vec<u64>, usize> = log.iter().enumerate().map(|(i, p)| (key(&p.x), i)).collect();
     let state: Cached<E> = RefCell::new((log, index, None));
     // One solve per point: the objective and each constraint read it from
@@ -178,10 +185,13 @@ fn cobyla_from<E>(
         Ok((status, _, _)) => format!("it stopped ({status:?})"),
         Err((status, _, _)) => format!("it failed ({status:?})"),
     };
+    let last = match outcome {
+        Ok((_, x, _)) | Err((_, x, _)) => x,
+    };
     let (log, _, error) = state.into_inner();
     match error {
         Some(e) => Err(e),
-        None => Ok((log, stop)),
+        None => Ok((log, stop, last)),
     }
 }
 
@@ -257,5 +267,75 @@ mod tests {
             }
         });
         assert_eq!(failed, Err("no"));
+    }
+}
+
+#[cfg(test)]
+mod holding_magnet_like {
+    use super::*;
+
+    /// A smooth stand-in for the cheapest holding magnet (cases/): the cost
+    /// r^2 (t + 0.1), the pull 40 r^2 / (r^2 + 25) (1 - exp(-t / 2)) at
+    /// least 20, with a remeshing-like wobble of 1e-4 on the pull.
+    fn pull(x: &[f64]) -> f64 {
+        let (r, t) = (x[0], x[1]);
+        40.0 * r * r / (r * r + 25.0) * (1.0 - (-t / 2.0).exp()) * (1.0 + 1e-4 * (1000.0 * r + 777.0 * t).sin())
+    }
+
+    fn cost(x: &[f64]) -> f64 {
+        x[0] * x[0] * (x[1] + 0.1)
+    }
+
+    /// The optimum along the constraint's boundary, by bisection on t for
+    /// each r of a fine grid (the wobble left out).
+    fn exact_optimum() -> f64 {
+        let smooth = |r: f64, t: f64| 40.0 * r * r / (r * r + 25.0) * (1.0 - (-t / 2.0).exp());
+        let mut best = f64::INFINITY;
+        for i in 0..=12_000 {
+            let r = 3.0 + 12.0 * f64::from(i) / 12_000.0;
+            let (mut lo, mut hi) = (1.0, 8.0);
+            if smooth(r, hi) < 20.0 {
+                continue;
+            }
+            for _ in 0..60 {
+                let mid = 0.5 * (lo + hi);
+                if smooth(r, mid) < 20.0 {
+                    lo = mid;
+                } else {
+                    hi = mid;
+                }
+            }
+            best = best.min(cost(&[r, hi]));
+        }
+        best
+    }
+
+    #[test]
+    fn the_reported_optimum_is_feasible_and_near_the_exact_one() {
+        let s = Search {
+            bounds: vec![[3.0, 15.0], [1.0, 8.0]],
+            start: vec![8.0, 3.0],
+            constraints: 1,
+            max_evaluations: 30,
+            design_points: 6,
+            x_tolerance: 0.01,
+            seed: 1,
+        };
+        let got = optimize::<()>(&s, |x| {
+            Ok(Point {
+                x: x.to_vec(),
+                objective: cost(x),
+                margins: vec![pull(x) - 20.0],
+            })
+        })
+        .unwrap();
+        let exact = exact_optimum();
+        assert!(got.feasible);
+        assert!(
+            got.best.objective < exact * 1.01,
+            "{} against {exact}, {:?}",
+            got.best.objective,
+            got.evaluations
+        );
     }
 }
