@@ -429,12 +429,16 @@ fn check_statistics(loaded: &Loaded, v: &Variant, o: &Outcome, limits: &Limits, 
     let mut code = 0;
     for j in crate::tolerance::judge(&o.model, &samples.stats) {
         println!("  {}", j.line());
-        if !j.pass {
+        if !j.pass() {
             code = 1;
         }
         suite.cases.push(crate::junit::Case {
             name: j.name.clone(),
-            message: (!j.pass).then(|| format!("{} over the tolerance samples is outside {}", j.name, j.bound)),
+            message: match j.verdict {
+                study::results::Verdict::Pass => None,
+                study::results::Verdict::Fail => Some(format!("{} over the tolerance samples is outside {}", j.name, j.bound)),
+                study::results::Verdict::Undecided => Some(format!("{} over the tolerance samples is undecided against {}: {}", j.name, j.bound, j.why)),
+            },
         });
     }
     Ok(code)

@@ -9,13 +9,24 @@ use crate::progress::Progress;
 use crate::run::{self, Failure, Limits, Loaded, Variant};
 use std::collections::BTreeMap;
 use std::path::Path;
-use study::tolerance::{corners, latin_hypercube, statistics, Statistics};
+use study::model::Statistic;
+use study::results::Verdict;
+use study::tolerance::{corners, judged_statistics, latin_hypercube, statistics, Statistics};
 
-/// The values of one sample, by name.
+/// Figures by value name.
 type Values = BTreeMap<String, f64>;
 
+/// One solved sample: its values and their estimated errors.
+#[derive(Clone, Debug, Default)]
+pub struct Sample {
+    /// Values by name, SI.
+    pub values: Values,
+    /// Estimated absolute errors by name, SI (not every value has one).
+    pub errors: Values,
+}
+
 /// Solves the study at one parameter set.
-fn sample(loaded: &Loaded, base: &Variant, tol: &Tolerance, at: &[f64], limits: &Limits) -> Result<Values, Failure> {
+fn sample(loaded: &Loaded, base: &Variant, tol: &Tolerance, at: &[f64], limits: &Limits) -> Result<Sample, Failure> {
     let mut params = base.params.clone();
     for (s, v) in tol.spreads.iter().zip(at) {
         params.insert(s.name.clone(), *v);
@@ -31,7 +42,10 @@ fn sample(loaded: &Loaded, base: &Variant, tol: &Tolerance, at: &[f64], limits: 
             loaded.path.display()
         )));
     }
-    Ok(results.values)
+    Ok(Sample {
+        values: results.values,
+        errors: results.errors,
+    })
 }
 
 /// How a tolerance run keeps its samples: each solved sample is committed
@@ -62,8 +76,9 @@ impl Store<'_> {
         format!("{h:016x}")
     }
 
-    /// A kept sample's values, when whole and of this case.
-    fn kept(&self, label: &str, key: &str) -> Option<Values> {
+    /// A kept sample's values and errors, when whole and of this case (a
+    /// sample kept before errors were, without errors.json, is solved again).
+    fn kept(&self, label: &str, key: &str) -> Option<Sample> {
         if self.run.force {
             return None;
         }
@@ -71,15 +86,27 @@ impl Store<'_> {
         if std::fs::read_to_string(dir.join("sample.hash")).ok()? != key {
             return None;
         }
-        let bits: BTreeMap<String, u64> = serde_json::from_str(&std::fs::read_to_string(dir.join("values.json")).ok()?).ok()?;
-        Some(bits.into_iter().map(|(k, b)| (k, f64::from_bits(b))).collect())
+        let read = |file: &str| -> Option<Values> {
+            let bits: BTreeMap<String, u64> = serde_json::from_str(&std::fs::read_to_string(dir.join(file)).ok()?).ok()?;
+            Some(bits.into_iter().map(|(k, b)| (k, f64::from_bits(b))).collect())
+        };
+        Some(Sample {
+            values: read("values.json")?,
+            errors: read("errors.json")?,
+        })
     }
 
-    /// Commits a solved sample (values as exact bits).
-    fn keep(&self, label: &str, key: &str, values: &Values) -> Result<(), Failure> {
-        let bits: BTreeMap<&String, u64> = values.iter().map(|(k, v)| (k, v.to_bits())).collect();
-        let json = serde_json::to_vec(&bits).map_err(|e| Failure::Input(format!("error: cannot encode a sample: {e}\n")))?;
-        let files: crate::output::FileSet = vec![("values.json".into(), json), ("sample.hash".into(), key.as_bytes().to_vec())];
+    /// Commits a solved sample (values and errors as exact bits).
+    fn keep(&self, label: &str, key: &str, sample: &Sample) -> Result<(), Failure> {
+        let encode = |m: &Values| {
+            let bits: BTreeMap<&String, u64> = m.iter().map(|(k, v)| (k, v.to_bits())).collect();
+            serde_json::to_vec(&bits).map_err(|e| Failure::Input(format!("error: cannot encode a sample: {e}\n")))
+        };
+        let files: crate::output::FileSet = vec![
+            ("values.json".into(), encode(&sample.values)?),
+            ("errors.json".into(), encode(&sample.errors)?),
+            ("sample.hash".into(), key.as_bytes().to_vec()),
+        ];
         self.folder
             .commit(&Path::new("samples").join(label), &files)
             .map_err(|e| Failure::Input(format!("error: {e}\n")))
@@ -101,7 +128,7 @@ struct Job<'a> {
 
 /// Solves every sample, several at a time on the cores, with progress:
 /// kept ones are read back, other shards' are left as None.
-fn solve_all(job: &Job, sets: &[Vec<f64>], progress: &Progress, what: &str, store: Option<&Store>) -> Result<Vec<Option<Values>>, Failure> {
+fn solve_all(job: &Job, sets: &[Vec<f64>], progress: &Progress, what: &str, store: Option<&Store>) -> Result<Vec<Option<Sample>>, Failure> {
     use rayon::prelude::*;
     let done = std::sync::atomic::AtomicUsize::new(0);
     sets.par_iter()
@@ -133,23 +160,27 @@ fn note(progress: &Progress, loaded: &Loaded, what: &str, done: &std::sync::atom
     progress.note(&format!("{}: tolerance {what} {k} of {n}", loaded.stem()));
 }
 
-/// Statistics of every value over the samples.
-fn all_statistics(values: &[Values]) -> BTreeMap<String, Statistics> {
-    let names: Vec<String> = values.first().map(|v| v.keys().cloned().collect()).unwrap_or_default();
+/// Statistics of every value over the samples (`sampled`: Monte Carlo,
+/// with the percentiles' sampling intervals).
+fn all_statistics(samples: &[Sample], sampled: bool) -> BTreeMap<String, Statistics> {
+    let names: Vec<String> = samples.first().map(|v| v.values.keys().cloned().collect()).unwrap_or_default();
     names
         .into_iter()
-        .filter_map(|n| statistics(&values.iter().filter_map(|v| v.get(&n).copied()).collect::<Vec<_>>()).map(|s| (n, s)))
+        .filter_map(|n| {
+            let pairs: Vec<(f64, Option<f64>)> = samples.iter().filter_map(|s| Some((*s.values.get(&n)?, s.errors.get(&n).copied()))).collect();
+            statistics(&pairs, sampled).map(|s| (n, s))
+        })
         .collect()
 }
 
 /// Values whose extremes over the face centres pass those over the corners:
 /// there the worst case is not at a corner, and the corner method misses it.
-fn not_at_corners(corner: &BTreeMap<String, Statistics>, inside: &[Values]) -> Vec<String> {
+fn not_at_corners(corner: &BTreeMap<String, Statistics>, inside: &[Sample]) -> Vec<String> {
     corner
         .iter()
         .filter(|(n, s)| {
             let slack = 1e-9 * s.max.abs().max(s.min.abs());
-            inside.iter().filter_map(|v| v.get(*n)).any(|&x| x > s.max + slack || x < s.min - slack)
+            inside.iter().filter_map(|v| v.values.get(*n)).any(|&x| x > s.max + slack || x < s.min - slack)
         })
         .map(|(n, _)| n.clone())
         .collect()
@@ -159,8 +190,8 @@ fn not_at_corners(corner: &BTreeMap<String, Statistics>, inside: &[Values]) -> V
 pub struct Samples {
     /// Each sample's parameter values, in the spreads' order.
     pub sets: Vec<Vec<f64>>,
-    /// Each sample's values.
-    pub values: Vec<Values>,
+    /// Each sample's values and errors.
+    pub values: Vec<Sample>,
     /// Statistics of every value.
     pub stats: BTreeMap<String, Statistics>,
     /// Values whose worst case is not at a corner (corners method).
@@ -179,7 +210,7 @@ fn samples_kept(
     store: Option<&Store>,
 ) -> Result<Result<Samples, usize>, Failure> {
     let job = Job { loaded, base, tol, limits };
-    let whole = |v: Vec<Option<Values>>| -> Result<Vec<Values>, usize> {
+    let whole = |v: Vec<Option<Sample>>| -> Result<Vec<Sample>, usize> {
         let missing = v.iter().filter(|x| x.is_none()).count();
         if missing > 0 {
             Err(missing)
@@ -204,11 +235,11 @@ fn samples_kept(
                 (Ok(v), Ok(i)) => (v, i),
                 (a, b) => return Ok(Err(a.err().unwrap_or(0) + b.err().unwrap_or(0))),
             };
-            let off = not_at_corners(&all_statistics(&values), &inside);
+            let off = not_at_corners(&all_statistics(&values, false), &inside);
             (corner_sets, values, off)
         }
     };
-    let stats = all_statistics(&values);
+    let stats = all_statistics(&values, matches!(tol.method, Method::MonteCarlo { .. }));
     Ok(Ok(Samples {
         sets,
         values,
@@ -230,10 +261,16 @@ pub struct Judged {
     pub bound: String,
     /// The figures judged (one, or both ends for "worst" on a range).
     pub figures: Vec<f64>,
+    /// Where each figure may lie: +- the numerical error, and for a Monte
+    /// Carlo percentile its 95 % sampling interval (an infinite end: the
+    /// samples cannot bound it).
+    pub ranges: Vec<(f64, f64)>,
     /// Unit symbol of the value.
     pub unit: &'static str,
-    /// Whether the bound holds for every figure.
-    pub pass: bool,
+    /// Pass, fail, or undecided where the bound lies within a range.
+    pub verdict: Verdict,
+    /// Why undecided, in words (empty otherwise).
+    pub why: String,
 }
 
 /// Judges every `[[expect]]` that names a statistic.
@@ -243,38 +280,103 @@ pub fn judge(model: &study::model::Model, stats: &BTreeMap<String, Statistics>) 
         .iter()
         .filter_map(|x| {
             let s = x.statistic?;
-            let figures = stats.get(&x.value.name).map_or_else(Vec::new, |st| st.judged(s, &x.bound));
-            let pass = !figures.is_empty()
-                && figures
-                    .iter()
-                    .all(|v| study::estimate::verdict(&x.bound, *v, 0.0) == study::results::Verdict::Pass);
+            let name = format!("{} {}", x.value.name, format!("{s:?}").to_lowercase());
+            let unit = x.value.unit.symbol();
+            let Some(st) = stats.get(&x.value.name) else {
+                return Some(Judged {
+                    name,
+                    bound: x.text.clone(),
+                    figures: Vec::new(),
+                    ranges: Vec::new(),
+                    unit,
+                    verdict: Verdict::Fail,
+                    why: String::new(),
+                });
+            };
+            let verdict = st.verdict(s, &x.bound);
+            let statistics = judged_statistics(s, &x.bound);
+            let why = if verdict == Verdict::Undecided {
+                undecided_why(st, &statistics, unit)
+            } else {
+                String::new()
+            };
             Some(Judged {
-                name: format!("{} {}", x.value.name, format!("{s:?}").to_lowercase()),
+                name,
                 bound: x.text.clone(),
-                figures,
-                unit: x.value.unit.symbol(),
-                pass,
+                figures: st.judged(s, &x.bound),
+                ranges: statistics.iter().map(|&k| st.range(k)).collect(),
+                unit,
+                verdict,
+                why,
             })
         })
         .collect()
 }
 
+/// Why a verdict on a statistic is undecided: the sampling of a Monte
+/// Carlo percentile (and how many samples would bound it), or the
+/// samples' numerical error.
+fn undecided_why(st: &Statistics, statistics: &[Statistic], unit: &str) -> String {
+    let q = statistics.iter().find_map(|s| match s {
+        Statistic::P1 => Some(0.01),
+        Statistic::P50 => Some(0.5),
+        Statistic::P99 => Some(0.99),
+        _ => None,
+    });
+    match (q, st.intervals) {
+        (Some(q), Some(_)) => format!(
+            "the bound lies within the {:.0} % interval that {} samples leave for this percentile; more samples would decide (both ends need at least {})",
+            100.0 * study::tolerance::CONFIDENCE,
+            st.samples,
+            study::tolerance::fewest_samples(q)
+        ),
+        _ => format!(
+            "the bound lies within the samples' numerical error ({}); a tighter [study] accuracy would decide",
+            crate::output::engineering::eng(st.error.unwrap_or(0.0), unit)
+        ),
+    }
+}
+
 impl Judged {
-    /// The judged figures as people read them ("49.33 mT", or both ends).
+    /// The judged figures as people read them: "49.33 mT ± 0.001 mT", or
+    /// both ends, with a percentile's 95 % interval where it is sampled.
     fn figures_text(&self) -> String {
-        let figs: Vec<String> = self.figures.iter().map(|v| crate::output::engineering::eng(*v, self.unit)).collect();
+        let eng = |v: f64| crate::output::engineering::eng(v, self.unit);
+        let figs: Vec<String> = self
+            .figures
+            .iter()
+            .zip(&self.ranges)
+            .map(|(&v, &(lo, hi))| {
+                let half = 0.5 * (hi - lo);
+                if lo.is_finite() && hi.is_finite() && ((lo + hi) * 0.5 - v).abs() <= 1e-9 * v.abs().max(half) {
+                    crate::output::engineering::eng_pm(v, Some(half), self.unit)
+                } else {
+                    let end = |x: f64, none: &str| if x.is_finite() { eng(x) } else { none.to_string() };
+                    format!("{} (95 %: {} .. {})", eng(v), end(lo, "unbounded"), end(hi, "unbounded"))
+                }
+            })
+            .collect();
         figs.join(" .. ")
+    }
+
+    /// The verdict as printed.
+    pub fn verdict_text(&self) -> &'static str {
+        match self.verdict {
+            Verdict::Pass => "pass",
+            Verdict::Fail => "FAIL",
+            Verdict::Undecided => "UNDECIDED",
+        }
+    }
+
+    /// Whether the bound holds (undecided does not).
+    pub fn pass(&self) -> bool {
+        self.verdict == Verdict::Pass
     }
 
     /// The line `solve` and `check` print.
     pub fn line(&self) -> String {
-        format!(
-            "{:<36} {:<24} {:>24}  {}",
-            self.name,
-            self.bound,
-            self.figures_text(),
-            if self.pass { "pass" } else { "FAIL" }
-        )
+        let why = if self.why.is_empty() { String::new() } else { format!(": {}", self.why) };
+        format!("{:<36} {:<24} {:>24}  {}{why}", self.name, self.bound, self.figures_text(), self.verdict_text())
     }
 }
 
@@ -336,10 +438,14 @@ pub fn solve(loaded: &Loaded, tol: &Tolerance, base: &Variant, folder: &OutputFo
         if let Some(s) = stats.get(name) {
             let unit = outcome.results.units.get(name).copied().unwrap_or("");
             let e = |v: f64| crate::output::engineering::eng(v, unit);
+            let pm = error_text(s, unit);
             if corners_only {
-                println!("    {name}: {} .. {}", e(s.min), e(s.max));
+                println!("    {name}: {} .. {}{pm}", e(s.min), e(s.max));
             } else {
-                println!("    {name}: {}, {}, {}, {}, {}", e(s.min), e(s.p1), e(s.p50), e(s.p99), e(s.max));
+                println!("    {name}: {}, {}, {}, {}, {}{pm}", e(s.min), e(s.p1), e(s.p50), e(s.p99), e(s.max));
+                if let Some(text) = intervals_text(s, unit) {
+                    println!("      95 % intervals: {text}");
+                }
             }
         }
     }
@@ -347,38 +453,42 @@ pub fn solve(loaded: &Loaded, tol: &Tolerance, base: &Variant, folder: &OutputFo
         println!("  WARNING: {name}: a face centre of the tolerance box goes past the corners' extremes, so its worst case is not at a corner; use method = \"monte-carlo\"");
     }
     for j in &judged {
-        println!(
-            "  expect {} {}: {} ({})",
-            j.name,
-            j.bound,
-            j.figures_text(),
-            if j.pass { "pass" } else { "FAIL" }
-        );
+        let why = if j.why.is_empty() { String::new() } else { format!(": {}", j.why) };
+        println!("  expect {} {}: {} ({}){why}", j.name, j.bound, j.figures_text(), j.verdict_text());
     }
     Ok(if outcome.results.solve.converged {
-        i32::from(outcome.results.expect.iter().any(|e| !e.pass) || judged.iter().any(|j| !j.pass))
+        i32::from(outcome.results.expect.iter().any(|e| !e.pass) || judged.iter().any(|j| !j.pass()))
     } else {
         3
     })
 }
 
-fn csv(tol: &Tolerance, sets: &[Vec<f64>], values: &[Values]) -> String {
-    let names: Vec<String> = values.first().map(|v| v.keys().cloned().collect()).unwrap_or_default();
+/// tolerance.csv: each sample's parameters, then each value and its
+/// estimated error (`NAME.error`, for values that have one), as sweep.csv.
+fn csv(tol: &Tolerance, sets: &[Vec<f64>], samples: &[Sample]) -> String {
+    let names: Vec<String> = samples.first().map(|v| v.values.keys().cloned().collect()).unwrap_or_default();
     let mut s = String::from("sample");
     for sp in &tol.spreads {
         s += &format!(",{}", sp.name);
     }
+    let with_error = |n: &String| samples.iter().any(|v| v.errors.contains_key(n));
     for n in &names {
         s += &format!(",{n}");
+        if with_error(n) {
+            s += &format!(",{n}.error");
+        }
     }
     s.push('\n');
-    for (i, (set, v)) in sets.iter().zip(values).enumerate() {
+    for (i, (set, v)) in sets.iter().zip(samples).enumerate() {
         s += &i.to_string();
         for x in set {
             s += &format!(",{x}");
         }
         for n in &names {
-            s += &format!(",{}", v.get(n).copied().unwrap_or(f64::NAN));
+            s += &format!(",{}", v.values.get(n).copied().unwrap_or(f64::NAN));
+            if with_error(n) {
+                s += &v.errors.get(n).map_or(",".to_string(), |e| format!(",{e}"));
+            }
         }
         s.push('\n');
     }
@@ -394,10 +504,13 @@ fn json(tol: &Tolerance, stats: &BTreeMap<String, Statistics>, off_corner: &[Str
     let statistics: BTreeMap<_, _> = stats
         .iter()
         .map(|(k, s)| {
-            (
-                k.clone(),
-                serde_json::json!({ "min": s.min, "p1": s.p1, "p50": s.p50, "p99": s.p99, "max": s.max }),
-            )
+            (k.clone(), {
+                let mut j = serde_json::json!({ "min": s.min, "p1": s.p1, "p50": s.p50, "p99": s.p99, "max": s.max, "error": s.error });
+                if let Some(i) = &s.intervals {
+                    j["interval_95"] = serde_json::json!({ "p1": [i[0].low, i[0].high], "p50": [i[1].low, i[1].high], "p99": [i[2].low, i[2].high] });
+                }
+                j
+            })
         })
         .collect();
     let method = match tol.method {
@@ -406,10 +519,34 @@ fn json(tol: &Tolerance, stats: &BTreeMap<String, Statistics>, off_corner: &[Str
     };
     let expect: Vec<_> = judged
         .iter()
-        .map(|j| serde_json::json!({ "value": j.name, "bound": j.bound, "figures": j.figures, "pass": j.pass }))
+        .map(|j| {
+            let ranges: Vec<[Option<f64>; 2]> = j.ranges.iter().map(|&(lo, hi)| [lo.is_finite().then_some(lo), hi.is_finite().then_some(hi)]).collect();
+            serde_json::json!({ "value": j.name, "bound": j.bound, "figures": j.figures, "ranges": ranges, "verdict": j.verdict_text().to_lowercase(), "why": j.why, "pass": j.pass() })
+        })
         .collect();
-    let json = serde_json::json!({ "method": method, "samples": n, "spreads": spreads, "statistics": statistics, "expect": expect, "note": "values in SI; percentiles interpolate between order statistics (Hyndman and Fan type 7); a normal spread's plus_minus is three standard deviations" });
+    let json = serde_json::json!({ "method": method, "samples": n, "spreads": spreads, "statistics": statistics, "expect": expect, "note": "values in SI; percentiles interpolate between order statistics (Hyndman and Fan type 7); error: the samples' largest estimated numerical error, which bounds every statistic's; interval_95 (Monte Carlo): the distribution-free 95 % interval of each percentile between two order statistics (null: the samples cannot bound that end), before the numerical error; an expectation on a statistic is undecided where the bound lies within these; a normal spread's plus_minus is three standard deviations" });
     serde_json::to_vec_pretty(&json).map_err(|e| Failure::Input(format!("error: cannot encode tolerance.json: {e}\n")))
+}
+
+/// " (each +- E)" for a statistics' numerical error, empty where unknown.
+fn error_text(s: &Statistics, unit: &str) -> String {
+    s.error
+        .map_or(String::new(), |e| format!(" (each \u{b1} {})", crate::output::engineering::eng(e, unit)))
+}
+
+/// The percentiles' 95 % sampling intervals as read: "p1 unbounded ..
+/// 49.4 mT, p50 ..., p99 ..."; None without sampling (corners).
+fn intervals_text(s: &Statistics, unit: &str) -> Option<String> {
+    let end = |x: Option<f64>| x.map_or("unbounded".to_string(), |v| crate::output::engineering::eng(v, unit));
+    let i = s.intervals?;
+    Some(
+        ["p1", "p50", "p99"]
+            .iter()
+            .zip(i)
+            .map(|(k, i)| format!("{k} {} .. {}", end(i.low), end(i.high)))
+            .collect::<Vec<_>>()
+            .join(", "),
+    )
 }
 
 /// The report's section: the spreads, each asked value's statistics, and
@@ -434,9 +571,9 @@ fn report_section(
     // Percentiles of a handful of corners mean nothing: corners give the range.
     let corners = tol.method == Method::Corners;
     let head = if corners {
-        "| value | min | max |\n|---|---|---|"
+        "| value | min | max | numerical error |\n|---|---|---|---|"
     } else {
-        "| value | min | p1 | p50 | p99 | max |\n|---|---|---|---|---|---|"
+        "| value | min | p1 | p50 | p99 | max | numerical error | 95 % intervals (sampling) |\n|---|---|---|---|---|---|---|---|"
     };
     let mut s = format!(
         "## Tolerances\n\n{n} {method}; {}. The tables above are the nominal design's; over the samples:\n\n{head}\n",
@@ -446,10 +583,19 @@ fn report_section(
         let Some(st) = stats.get(name) else { continue };
         let unit = results.units.get(name).copied().unwrap_or("");
         let e = |v: f64| crate::output::engineering::eng(v, unit);
+        let err = st.error.map_or("-".to_string(), |x| format!("\u{b1} {}", e(x)));
         s += &if corners {
-            format!("| {name} | {} | {} |\n", e(st.min), e(st.max))
+            format!("| {name} | {} | {} | {err} |\n", e(st.min), e(st.max))
         } else {
-            format!("| {name} | {} | {} | {} | {} | {} |\n", e(st.min), e(st.p1), e(st.p50), e(st.p99), e(st.max))
+            let intervals = intervals_text(st, unit).unwrap_or_default();
+            format!(
+                "| {name} | {} | {} | {} | {} | {} | {err} | {intervals} |\n",
+                e(st.min),
+                e(st.p1),
+                e(st.p50),
+                e(st.p99),
+                e(st.max)
+            )
         };
     }
     for name in off_corner {
@@ -458,20 +604,14 @@ fn report_section(
     if !judged.is_empty() {
         s += "\n| expectation | bound | over the samples | result |\n|---|---|---|---|\n";
         for j in judged {
-            s += &format!(
-                "| {} | {} | {} | {} |\n",
-                j.name,
-                j.bound,
-                j.figures_text(),
-                if j.pass { "pass" } else { "FAIL" }
-            );
+            s += &format!("| {} | {} | {} | {} |\n", j.name, j.bound, j.figures_text(), j.verdict_text());
         }
     }
     s + "\nEvery sample is in tolerance.csv, the statistics in tolerance.json.\n"
 }
 
 /// `merge` of tolerance shards: every kept sample of the folders, each a
-/// whole set (values and key), copied into `out/samples`; a sample found
+/// whole set (values, errors and key), copied into `out/samples`; a sample found
 /// twice must be the same. The number gathered.
 pub fn gather(folders: &[std::path::PathBuf], out: &Path) -> Result<usize, String> {
     let folder = OutputFolder::open(out)?;
@@ -480,9 +620,10 @@ pub fn gather(folders: &[std::path::PathBuf], out: &Path) -> Result<usize, Strin
         let Ok(entries) = std::fs::read_dir(f.join("samples")) else { continue };
         for e in entries.flatten() {
             let label = e.file_name().to_string_lossy().into_owned();
-            let (Ok(key), Ok(values)) = (
+            let (Ok(key), Ok(values), Ok(errors)) = (
                 std::fs::read_to_string(e.path().join("sample.hash")),
                 std::fs::read(e.path().join("values.json")),
+                std::fs::read(e.path().join("errors.json")),
             ) else {
                 continue;
             };
@@ -491,7 +632,11 @@ pub fn gather(folders: &[std::path::PathBuf], out: &Path) -> Result<usize, Strin
                 Some(_) => return Err(format!("{} holds sample {label} of another case or run than the other folders", f.display())),
                 None => {}
             }
-            let files: crate::output::FileSet = vec![("values.json".into(), values), ("sample.hash".into(), key.clone().into_bytes())];
+            let files: crate::output::FileSet = vec![
+                ("values.json".into(), values),
+                ("errors.json".into(), errors),
+                ("sample.hash".into(), key.clone().into_bytes()),
+            ];
             folder.commit(&Path::new("samples").join(&label), &files)?;
             seen.insert(label, key);
         }

@@ -319,6 +319,13 @@ pub(crate) fn worst(names: &[String], values: &BTreeMap<String, f64>, errors: &B
 
 /// Whether a bound holds for every, no, or some value within v +- e.
 pub fn verdict(bound: &Bound, v: f64, e: f64) -> crate::results::Verdict {
+    verdict_within(bound, v - e, v + e)
+}
+
+/// Whether a bound holds for every, no, or some value in [low, high] (an
+/// end may be infinite). The bounds are intervals, so the ends decide,
+/// except for a target interval that sits inside [low, high].
+pub fn verdict_within(bound: &Bound, low: f64, high: f64) -> crate::results::Verdict {
     use crate::results::Verdict;
     let holds = |x: f64| match *bound {
         Bound::Min(lo) => x >= lo,
@@ -326,16 +333,14 @@ pub fn verdict(bound: &Bound, v: f64, e: f64) -> crate::results::Verdict {
         Bound::Between(lo, hi) => x >= lo && x <= hi,
         Bound::Near(t, tol) => (x - t).abs() <= tol,
     };
-    // The bounds are intervals, so the ends of [v - e, v + e] decide,
-    // except for a target interval that sits inside it.
     let inside = match *bound {
-        Bound::Between(lo, hi) => v - e <= lo && hi <= v + e,
-        Bound::Near(t, tol) => v - e <= t - tol && t + tol <= v + e,
+        Bound::Between(lo, hi) => low <= lo && hi <= high,
+        Bound::Near(t, tol) => low <= t - tol && t + tol <= high,
         _ => false,
     };
-    match (holds(v - e), holds(v + e), holds(v)) {
-        (true, true, true) => Verdict::Pass,
-        (false, false, false) if !inside => Verdict::Fail,
+    match (holds(low), holds(high)) {
+        (true, true) => Verdict::Pass,
+        (false, false) if !inside => Verdict::Fail,
         _ => Verdict::Undecided,
     }
 }

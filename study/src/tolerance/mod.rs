@@ -2,7 +2,12 @@
 //! Monte Carlo by Latin-hypercube sampling) and the statistics of each value
 //! over them. Numerics only: the cli solves each sample and writes files.
 
+mod interval;
+
+pub use interval::{fewest_samples, quantile_interval, Interval, CONFIDENCE};
+
 use crate::model::{Bound, Statistic};
+use crate::results::Verdict;
 
 /// How a parameter spreads about its nominal value.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -40,6 +45,17 @@ pub struct Statistics {
     pub p99: f64,
     /// Largest.
     pub max: f64,
+    /// Numerical error of every figure above: the largest estimated error
+    /// of the samples (None where a sample's value has no estimate).
+    /// Sorting moves no order statistic by more than the largest change of
+    /// any one value (of each value's bracket v +- e, at least n - k + 1 lie
+    /// above the k-th largest lower end), so it bounds the percentiles too.
+    pub error: Option<f64>,
+    /// The 95 % intervals of p1, p50 and p99 that the sampling leaves
+    /// (Monte Carlo only; `quantile_interval`), before the numerical error.
+    pub intervals: Option<[Interval; 3]>,
+    /// The number of samples.
+    pub samples: usize,
 }
 
 /// A small deterministic generator (SplitMix64, G. Steele, D. Lea and
@@ -140,22 +156,74 @@ pub fn latin_hypercube(spreads: &[Spread], n: usize, seed: u64) -> Vec<Vec<f64>>
     (0..n).map(|i| columns.iter().map(|c| c[i]).collect()).collect()
 }
 
+/// The statistics an expectation on `statistic` is judged by: "worst" is
+/// the end of the spread the bound faces (both ends for a range).
+pub fn judged_statistics(statistic: Statistic, bound: &Bound) -> Vec<Statistic> {
+    match statistic {
+        Statistic::Worst => match bound {
+            Bound::Min(_) => vec![Statistic::Min],
+            Bound::Max(_) => vec![Statistic::Max],
+            Bound::Between(..) | Bound::Near(..) => vec![Statistic::Min, Statistic::Max],
+        },
+        s => vec![s],
+    }
+}
+
 impl Statistics {
     /// The figures an expectation on `statistic` is judged by: one
     /// percentile, or for "worst" the end (or both ends) of the spread that
     /// the bound faces.
     pub fn judged(&self, statistic: Statistic, bound: &Bound) -> Vec<f64> {
-        match statistic {
-            Statistic::Min => vec![self.min],
-            Statistic::P1 => vec![self.p1],
-            Statistic::P50 => vec![self.p50],
-            Statistic::P99 => vec![self.p99],
-            Statistic::Max => vec![self.max],
-            Statistic::Worst => match bound {
-                Bound::Min(_) => vec![self.min],
-                Bound::Max(_) => vec![self.max],
-                Bound::Between(..) | Bound::Near(..) => vec![self.min, self.max],
-            },
+        judged_statistics(statistic, bound).iter().map(|&s| self.figure(s)).collect()
+    }
+
+    /// One statistic's figure.
+    fn figure(&self, s: Statistic) -> f64 {
+        match s {
+            Statistic::Min => self.min,
+            Statistic::P1 => self.p1,
+            Statistic::P50 => self.p50,
+            Statistic::P99 => self.p99,
+            Statistic::Max | Statistic::Worst => self.max,
+        }
+    }
+
+    /// Where one statistic may lie: its figure +- the numerical error, and
+    /// for a Monte Carlo percentile its sampling interval widened by that
+    /// error (an end the samples cannot bound is infinite).
+    pub fn range(&self, s: Statistic) -> (f64, f64) {
+        let e = self.error.unwrap_or(0.0);
+        let interval = match (s, &self.intervals) {
+            (Statistic::P1, Some(i)) => Some(i[0]),
+            (Statistic::P50, Some(i)) => Some(i[1]),
+            (Statistic::P99, Some(i)) => Some(i[2]),
+            _ => None,
+        };
+        match interval {
+            Some(i) => (i.low.map_or(f64::NEG_INFINITY, |l| l - e), i.high.map_or(f64::INFINITY, |h| h + e)),
+            None => (self.figure(s) - e, self.figure(s) + e),
+        }
+    }
+
+    /// The verdict on a bound of `statistic`: pass where every figure's
+    /// range holds it, fail where one's range breaks it throughout,
+    /// undecided otherwise (the bound lies within a figure's numerical
+    /// error or, for a Monte Carlo percentile, within what the sampling
+    /// leaves open: more samples would decide).
+    pub fn verdict(&self, statistic: Statistic, bound: &Bound) -> Verdict {
+        let verdicts: Vec<Verdict> = judged_statistics(statistic, bound)
+            .into_iter()
+            .map(|s| {
+                let (low, high) = self.range(s);
+                crate::estimate::verdict_within(bound, low, high)
+            })
+            .collect();
+        if verdicts.contains(&Verdict::Fail) {
+            Verdict::Fail
+        } else if verdicts.contains(&Verdict::Undecided) {
+            Verdict::Undecided
+        } else {
+            Verdict::Pass
         }
     }
 }
@@ -204,12 +272,19 @@ fn percentile(sorted: &[f64], q: f64) -> f64 {
     }
 }
 
-/// Statistics of a value over the samples; None for no samples.
-pub fn statistics(values: &[f64]) -> Option<Statistics> {
-    let mut v: Vec<f64> = values.iter().copied().filter(|x| x.is_finite()).collect();
+/// Statistics of a value over the samples, each given as (value, its
+/// estimated error if any); with `sampled`, the percentiles' sampling
+/// intervals too (Monte Carlo). None for no finite value.
+pub fn statistics(samples: &[(f64, Option<f64>)], sampled: bool) -> Option<Statistics> {
+    let finite: Vec<&(f64, Option<f64>)> = samples.iter().filter(|(x, _)| x.is_finite()).collect();
+    let mut v: Vec<f64> = finite.iter().map(|(x, _)| *x).collect();
     if v.is_empty() {
         return None;
     }
+    let error = finite
+        .iter()
+        .map(|(_, e)| e.filter(|e| e.is_finite()))
+        .try_fold(0.0f64, |m, e| e.map(|e| m.max(e)));
     v.sort_by(f64::total_cmp);
     Some(Statistics {
         min: v[0],
@@ -217,6 +292,9 @@ pub fn statistics(values: &[f64]) -> Option<Statistics> {
         p50: percentile(&v, 0.5),
         p99: percentile(&v, 0.99),
         max: v[v.len() - 1],
+        error,
+        intervals: sampled.then(|| [0.01, 0.5, 0.99].map(|q| quantile_interval(&v, q))),
+        samples: v.len(),
     })
 }
 
@@ -264,8 +342,14 @@ mod tests {
 
     #[test]
     fn percentiles_interpolate_between_order_statistics() {
-        let v: Vec<f64> = (0..101).map(f64::from).collect();
-        let s = statistics(&v).unwrap();
+        let v: Vec<(f64, Option<f64>)> = (0..101).map(|i| (f64::from(i), Some(0.01 * f64::from(i % 7)))).collect();
+        let s = statistics(&v, false).unwrap();
         assert_eq!((s.min, s.p1, s.p50, s.p99, s.max), (0.0, 1.0, 50.0, 99.0, 100.0));
+        // The numerical error is the largest sample's, 0.06; one sample
+        // without an estimate leaves it unknown.
+        assert_eq!(s.error, Some(0.06));
+        let mut w = v.clone();
+        w[3].1 = None;
+        assert_eq!(statistics(&w, false).unwrap().error, None);
     }
 }
