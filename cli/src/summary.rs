@@ -17,6 +17,15 @@ pub fn force_component(r: &study::Results, name: &str, fr: &study::results::Forc
     }
 }
 
+/// A share as a percentage with its error: "0.0 %" where the error is
+/// below a hundredth of a percent, "2.31 % ± 0.12 %" otherwise.
+pub fn percent_pm(share: f64, error: Option<f64>) -> String {
+    match error.filter(|e| *e >= 1e-4) {
+        Some(e) => eng_pm(100.0 * share, Some(100.0 * e), "%"),
+        None => format!("{:.1} %", 100.0 * share),
+    }
+}
+
 /// The summary: mesh and solve figures, forces, fluxes, probes, parts,
 /// energy, expectations, and the warnings, in engineering notation.
 pub fn summary(o: &Outcome, out: &Path) -> String {
@@ -81,8 +90,13 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
                 eng_pm(p.bmag[0], err(format!("probe.{name}.b")), "T")
             );
         } else {
-            let max = p.bmag.iter().copied().fold(0.0, f64::max);
-            s += &format!("  probe {name}: {} points, |B| max {}\n", p.points.len(), eng(max, "T"));
+            let sampled = p.bmag.iter().copied().fold(0.0, f64::max);
+            let max = r.values.get(&format!("probe.{name}.b.max")).copied().unwrap_or(sampled);
+            s += &format!(
+                "  probe {name}: {} points, |B| max {}\n",
+                p.points.len(),
+                eng_pm(max, err(format!("probe.{name}.b.max")), "T")
+            );
         }
     }
     for (name, p) in &r.parts {
@@ -93,18 +107,18 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
         s += &format!(
             "  part {name} ({}): |B| mean {}, peak {} (local){sat}\n",
             p.material,
-            eng(p.b_mean, "T"),
+            eng_pm(p.b_mean, err(format!("part.{name}.b.mean")), "T"),
             eng(p.b_max, "T")
         );
     }
     for (name, m) in &r.magnets {
         s += &format!(
-            "  magnet {name} ({} at {} degC): margin {:.2} over its worst 1 %, {:.1} % past the knee, irreversible loss {:.1} %{}\n",
+            "  magnet {name} ({} at {} degC): margin {} over its worst 1 %, {:.1} % past the knee, irreversible loss {}{}\n",
             m.grade,
             m.temperature_c,
-            m.margin,
+            eng_pm(m.margin, err(format!("magnet.{name}.margin")), ""),
             100.0 * m.share_past_knee,
-            100.0 * m.irreversible_loss,
+            percent_pm(m.irreversible_loss, err(format!("magnet.{name}.loss"))),
             if m.irreversible_loss > study::checks::LOSS_WARNING {
                 "  DEMAGNETIZED"
             } else {
@@ -166,5 +180,17 @@ fn accuracy_line(r: &study::Results) -> String {
             100.0 * worst
         ),
         None => format!("  accuracy: {state} {target} % after {meshes}, no error estimate (one mesh only)\n"),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::percent_pm;
+
+    #[test]
+    fn shares_show_their_error_above_a_hundredth_of_a_percent() {
+        assert_eq!(percent_pm(0.5953, Some(0.0011)), "59.53 % \u{b1} 0.11 %");
+        assert_eq!(percent_pm(0.003, Some(5e-5)), "0.3 %");
+        assert_eq!(percent_pm(0.003, None), "0.3 %");
     }
 }

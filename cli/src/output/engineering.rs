@@ -49,6 +49,21 @@ pub fn eng_pm(value: f64, error: Option<f64>, unit: &str) -> String {
         return eng(value, unit);
     }
     let (exponent, prefix) = prefix_of(if value != 0.0 { value.abs() } else { e }, unit);
+    pm_scaled(value, e, exponent, prefix, unit)
+}
+
+/// As `eng_pm`, in `unit` as given, without an SI prefix (lengths in the
+/// case's own unit, such as "mm").
+pub fn plain_pm(value: f64, error: Option<f64>, unit: &str) -> String {
+    match error.filter(|e| e.is_finite() && *e > 1e-9 * value.abs()) {
+        Some(e) if value.is_finite() => pm_scaled(value, e, 0, "", unit),
+        _ => format!("{} {unit}", significant(value)).trim_end().to_string(),
+    }
+}
+
+/// `value +- e` divided by 10^exponent, to the error's second significant
+/// digit, in `prefix` `unit`.
+fn pm_scaled(value: f64, e: f64, exponent: i32, prefix: &str, unit: &str) -> String {
     let (v, e) = (value / 10f64.powi(exponent), e / 10f64.powi(exponent));
     let decimals = if e > 0.0 { (1 - e.log10().floor() as i32).clamp(0, 9) as usize } else { 4 };
     let u = format!("{prefix}{unit}");
@@ -76,7 +91,7 @@ pub fn prefix_of(reference: f64, unit: &str) -> (i32, &'static str) {
 
 #[cfg(test)]
 mod tests {
-    use super::{eng, eng_pm};
+    use super::{eng, eng_pm, plain_pm};
 
     #[test]
     fn values_with_errors_show_the_errors_digits() {
@@ -85,6 +100,13 @@ mod tests {
         assert_eq!(eng_pm(0.527, Some(0.012), "T"), "527 mT \u{b1} 12 mT");
         assert_eq!(eng_pm(0.4279, Some(0.0012), ""), "0.4279 \u{b1} 0.0012");
         assert_eq!(eng_pm(5.0, None, "N"), "5 N");
+    }
+
+    /// Lengths in the case's own unit keep it: no "kmm" past 1000 mm.
+    #[test]
+    fn plain_values_take_no_prefix() {
+        assert_eq!(plain_pm(1234.567, Some(0.012), "mm"), "1234.567 mm \u{b1} 0.012 mm");
+        assert_eq!(plain_pm(45.1846, None, "mm"), "45.18 mm");
     }
 
     #[test]

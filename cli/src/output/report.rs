@@ -1,7 +1,8 @@
 //! report.md: the study in tables and pictures, with the cautions.
 
-use super::engineering::{eng, eng_pm};
+use super::engineering::{eng, eng_pm, plain_pm};
 use crate::case::Model;
+use crate::summary::percent_pm;
 use std::fmt::Write;
 use study::results::Results;
 
@@ -105,17 +106,19 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
     );
     let _ = writeln!(
         s,
-        "## Parts\n\n| part | material | peak B (T) | mean B (T) | knee (T) | share above knee |\n|---|---|---|---|---|---|"
+        "## Parts\n\n| part | material | peak B (T, local) | mean B | knee (T) | share above knee |\n|---|---|---|---|---|---|"
     );
+    let err = |name: String| r.errors.get(&name).copied();
     for (n, p) in &r.parts {
         let _ = writeln!(
             s,
-            "| {n} | {} | {:.3} | {:.3} | {} | {} |",
+            "| {n} | {} | {:.3} | {} | {} | {} |",
             p.material,
             p.b_max,
-            p.b_mean,
+            eng_pm(p.b_mean, err(format!("part.{n}.b.mean")), "T"),
             opt(p.knee_t, 1.0, 2),
-            p.saturated_share.map_or("-".into(), |x| format!("{:.1} %", 100.0 * x))
+            p.saturated_share
+                .map_or("-".into(), |x| percent_pm(x, err(format!("part.{n}.saturated_share"))))
         );
     }
     s.push('\n');
@@ -124,19 +127,21 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
         for (n, m) in &r.magnets {
             let _ = writeln!(
                 s,
-                "| {n} | {} | {:.3} | {:.0} | {:.3} | {:.1} % | {:.2} | {} |",
+                "| {n} | {} | {:.3} | {:.0} | {} | {} | {} | {} |",
                 m.grade,
                 m.br_t,
                 m.hcj_a_per_m / 1e3,
-                m.margin,
-                100.0 * m.share_past_knee,
-                m.permeance,
+                eng_pm(m.margin, err(format!("magnet.{n}.margin")), ""),
+                percent_pm(m.share_past_knee, err(format!("magnet.{n}.share_past_knee"))),
+                eng_pm(m.permeance, err(format!("magnet.{n}.permeance")), ""),
                 opt(m.knee_onset_c, 1.0, 0)
             );
         }
         s.push('\n');
     }
     let st = &r.stray;
+    // A distance in the case's unit, with its error.
+    let length = |v: Option<f64>, name: &str| v.map_or("-".into(), |v| plain_pm(v / f, err(name.into()).map(|e| e / f), u));
     let _ = writeln!(s, "## Stray field\n");
     if let Some(c) = st.reference_point_m {
         let _ = writeln!(
@@ -152,23 +157,28 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
     };
     let _ = writeln!(
         s,
-        "- reach along the axis to {:.1} mT (a common rule of thumb for picking up small steel items), {from}: {} {u}",
+        "- reach along the axis to {:.1} mT (a common rule of thumb for picking up small steel items), {from}: {}",
         st.reach_level_t * 1e3,
-        opt(st.reach_axis_m, 1.0 / f, 1)
+        length(st.reach_axis_m, "reach.axis")
     );
     if let Some(m) = st.moment_a_m2 {
-        let _ = writeln!(s, "- dipole moment (multipole projection of the solution): {}", eng(m, "A m2"));
         let _ = writeln!(
             s,
-            "- |B| falls to 0.5 mT (implanted devices, ICNIRP 2009) at {} {u} on the axis and {} {u} in the mid-plane, from the assembly's centre",
-            opt(st.implant_distance_axis_m, 1.0 / f, 1),
-            opt(st.implant_distance_plane_m, 1.0 / f, 1)
+            "- dipole moment (multipole projection of the solution): {}",
+            eng_pm(m, err("stray.moment".into()), "A m2")
         );
         let _ = writeln!(
             s,
-            "- |H| at 2.1 m: {} A/m; at 4.6 m: {} A/m",
-            opt(st.h_at_2100mm_a_per_m, 1.0, 4),
-            opt(st.h_at_4600mm_a_per_m, 1.0, 5)
+            "- |B| falls to 0.5 mT (implanted devices, ICNIRP 2009) at {} on the axis and {} in the mid-plane, from the assembly's centre",
+            length(st.implant_distance_axis_m, "stray.implant_distance.axis"),
+            length(st.implant_distance_plane_m, "stray.implant_distance.plane")
+        );
+        let h = |v: Option<f64>, name: &str| v.map_or("-".into(), |v| eng_pm(v, err(name.into()), "A/m"));
+        let _ = writeln!(
+            s,
+            "- |H| at 2.1 m: {}; at 4.6 m: {}",
+            h(st.h_at_2100mm_a_per_m, "stray.h_at_2100mm"),
+            h(st.h_at_4600mm_a_per_m, "stray.h_at_4600mm")
         );
     }
     if let Some(a) = &st.air_transport {
