@@ -77,7 +77,7 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
     for (name, fl) in &r.flux {
         s += &format!("  flux {name}: {}", eng_pm(fl.wb, err(format!("flux.{name}")), "Wb"));
         if let Some(l) = fl.inductance_h {
-            s += &format!(", inductance {}", eng(l, "H"));
+            s += &format!(", inductance {}", eng_pm(l, err(format!("flux.{name}.inductance")), "H"));
         }
         s.push('\n');
     }

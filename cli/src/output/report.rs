@@ -93,7 +93,8 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
                 s,
                 "| {n} | {} | {} |",
                 eng_pm(fl.wb, r.errors.get(&format!("flux.{n}")).copied(), "Wb"),
-                fl.inductance_h.map_or("-".into(), |l| eng(l, "H"))
+                fl.inductance_h
+                    .map_or("-".into(), |l| eng_pm(l, r.errors.get(&format!("flux.{n}.inductance")).copied(), "H"))
             );
         }
         s.push('\n');
