@@ -1,6 +1,6 @@
 //! report.md: the study in tables and pictures, with the cautions.
 
-use super::engineering::{eng, eng_pm, plain_pm};
+use super::engineering::{eng_pm, plain_pm};
 use crate::case::Model;
 use crate::summary::percent_pm;
 use std::fmt::Write;
