@@ -113,11 +113,11 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
     }
     for (name, m) in &r.magnets {
         s += &format!(
-            "  magnet {name} ({} at {} degC): margin {} over its worst 1 %, {:.1} % past the knee, irreversible loss {}{}\n",
+            "  magnet {name} ({} at {} degC): margin {} over its worst 1 %, {} past the knee, irreversible loss {}{}\n",
             m.grade,
             m.temperature_c,
             eng_pm(m.margin, err(format!("magnet.{name}.margin")), ""),
-            100.0 * m.share_past_knee,
+            percent_pm(m.share_past_knee, err(format!("magnet.{name}.share_past_knee"))),
             percent_pm(m.irreversible_loss, err(format!("magnet.{name}.loss"))),
             if m.irreversible_loss > study::checks::LOSS_WARNING {
                 "  DEMAGNETIZED"
