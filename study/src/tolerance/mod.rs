@@ -47,9 +47,11 @@ pub struct Statistics {
     pub max: f64,
     /// Numerical error of every figure above: the largest estimated error
     /// of the samples (None where a sample's value has no estimate).
-    /// Sorting moves no order statistic by more than the largest change of
-    /// any one value (of each value's bracket v +- e, at least n - k + 1 lie
-    /// above the k-th largest lower end), so it bounds the percentiles too.
+    /// It bounds every order statistic's error, so the percentiles' too:
+    /// if no computed value is further than E from its exact one, at least
+    /// n - k + 1 computed values lie at or above the exact k-th smallest
+    /// less E (those whose exact values lie at or above it), so the
+    /// computed k-th smallest does too; and the same from above.
     pub error: Option<f64>,
     /// The 95 % intervals of p1, p50 and p99 that the sampling leaves
     /// (Monte Carlo only; `quantile_interval`), before the numerical error.
