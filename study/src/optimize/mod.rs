@@ -16,50 +16,16 @@
 //! starts the search. This guards against a poor local start and uses the
 //! cores while the search itself, one point after another, cannot.
 
+mod problem;
 mod restore;
 
+pub use problem::{Point, Search};
+
 use crate::tolerance::{latin_hypercube, Distribution, Spread};
+use problem::best;
 use rayon::prelude::*;
 use std::cell::RefCell;
 use std::collections::HashMap;
-
-/// One evaluation: where, the objective there (to be minimized) and each
-/// constraint's margin (feasible where every margin is at least 0).
-#[derive(Clone, Debug, PartialEq)]
-pub struct Point {
-    /// Parameter values.
-    pub x: Vec<f64>,
-    /// The objective, as minimized (a maximized value enters negated).
-    pub objective: f64,
-    /// Constraint margins: at least 0 where the constraint holds.
-    pub margins: Vec<f64>,
-}
-
-impl Point {
-    /// The largest constraint violation (0 when feasible).
-    pub fn violation(&self) -> f64 {
-        self.margins.iter().map(|m| (-m).max(0.0)).fold(0.0, f64::max)
-    }
-}
-
-/// What the search is asked.
-#[derive(Clone, Debug, PartialEq)]
-pub struct Search {
-    /// Bounds of each parameter, low below high.
-    pub bounds: Vec<[f64; 2]>,
-    /// Where to start (inside the bounds): the case's own values.
-    pub start: Vec<f64>,
-    /// Number of constraints.
-    pub constraints: usize,
-    /// Most evaluations in all, the parallel design included.
-    pub max_evaluations: usize,
-    /// Candidates of the parallel design (0: none).
-    pub design_points: usize,
-    /// The search stops when its steps fall below this share of each range.
-    pub x_tolerance: f64,
-    /// Seed of the design.
-    pub seed: u64,
-}
 
 /// The result: the best feasible point (or the least infeasible one) and
 /// every evaluation in order.
@@ -113,13 +79,6 @@ pub fn optimize<E: Send>(search: &Search, evaluate: impl Fn(&[f64]) -> Result<Po
         evaluations: log,
         stop,
     })
-}
-
-/// The best point of a log: least violation first, then least objective.
-fn best(log: &[Point]) -> &Point {
-    log.iter()
-        .min_by(|a, b| a.violation().total_cmp(&b.violation()).then(a.objective.total_cmp(&b.objective)))
-        .expect("a log is never empty")
 }
 
 /// Key of a point for the cache: its bits.

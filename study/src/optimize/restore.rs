@@ -15,7 +15,7 @@
 //! objective moves by its gradient times that step: little, as the step is
 //! the size of the violation. Up to `RESTORE_STEPS` evaluations.
 
-use super::{best, Point, Search};
+use super::problem::{best, Point, Search};
 
 /// Evaluations kept for restoring feasibility after COBYLA.
 pub const RESTORE_STEPS: usize = 3;
