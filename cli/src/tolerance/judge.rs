@@ -19,6 +19,9 @@ pub struct Judged {
     /// Carlo percentile its 95 % sampling interval (an infinite end: the
     /// samples cannot bound it).
     pub ranges: Vec<(f64, f64)>,
+    /// Whether each range is a Monte Carlo percentile's sampling interval
+    /// (else the figure +- its numerical error).
+    pub sampled: Vec<bool>,
     /// Unit symbol of the value.
     pub unit: &'static str,
     /// Pass, fail, or undecided where the bound lies within a range.
@@ -42,6 +45,7 @@ pub fn judge(model: &study::model::Model, stats: &BTreeMap<String, Statistics>) 
                     bound: x.text.clone(),
                     figures: Vec::new(),
                     ranges: Vec::new(),
+                    sampled: Vec::new(),
                     unit,
                     verdict: Verdict::Fail,
                     why: String::new(),
@@ -59,6 +63,7 @@ pub fn judge(model: &study::model::Model, stats: &BTreeMap<String, Statistics>) 
                 bound: x.text.clone(),
                 figures: st.judged(s, &x.bound),
                 ranges: statistics.iter().map(|&k| st.range(k)).collect(),
+                sampled: statistics.iter().map(|&k| st.intervals.is_some() && percentile(k).is_some()).collect(),
                 unit,
                 verdict,
                 why,
@@ -71,12 +76,7 @@ pub fn judge(model: &study::model::Model, stats: &BTreeMap<String, Statistics>) 
 /// Carlo percentile (and how many samples would bound it), or the
 /// samples' numerical error.
 fn undecided_why(st: &Statistics, statistics: &[Statistic], unit: &str) -> String {
-    let q = statistics.iter().find_map(|s| match s {
-        Statistic::P1 => Some(0.01),
-        Statistic::P50 => Some(0.5),
-        Statistic::P99 => Some(0.99),
-        _ => None,
-    });
+    let q = statistics.iter().find_map(|&s| percentile(s));
     match (q, st.intervals) {
         (Some(q), Some(_)) => format!(
             "the bound lies within the {:.0} % interval that {} samples leave for this percentile; more samples would decide (both ends need at least {})",
@@ -91,6 +91,16 @@ fn undecided_why(st: &Statistics, statistics: &[Statistic], unit: &str) -> Strin
     }
 }
 
+/// The quantile a percentile statistic stands for; None for the others.
+fn percentile(s: Statistic) -> Option<f64> {
+    match s {
+        Statistic::P1 => Some(0.01),
+        Statistic::P50 => Some(0.5),
+        Statistic::P99 => Some(0.99),
+        _ => None,
+    }
+}
+
 impl Judged {
     /// The judged figures as people read them: "49.33 mT ± 0.001 mT", or
     /// both ends, with a percentile's 95 % interval where it is sampled.
@@ -99,11 +109,10 @@ impl Judged {
         let figs: Vec<String> = self
             .figures
             .iter()
-            .zip(&self.ranges)
-            .map(|(&v, &(lo, hi))| {
-                let half = 0.5 * (hi - lo);
-                if lo.is_finite() && hi.is_finite() && ((lo + hi) * 0.5 - v).abs() <= 1e-9 * v.abs().max(half) {
-                    crate::output::engineering::eng_pm(v, Some(half), self.unit)
+            .zip(self.ranges.iter().zip(&self.sampled))
+            .map(|(&v, (&(lo, hi), &sampled))| {
+                if !sampled {
+                    crate::output::engineering::eng_pm(v, Some(0.5 * (hi - lo)), self.unit)
                 } else {
                     let end = |x: f64, none: &str| if x.is_finite() { eng(x) } else { none.to_string() };
                     format!("{} (95 %: {} .. {})", eng(v), end(lo, "unbounded"), end(hi, "unbounded"))
