@@ -12,6 +12,7 @@ use std::collections::BTreeMap;
 use std::path::Path;
 use std::sync::atomic::{AtomicUsize, Ordering};
 use study::optimize::{Optimum, Point, Search};
+use study::results::Verdict;
 
 /// One evaluation: the study at `x` solved to the search's accuracy; the
 /// objective (negated when maximized) and each constraint's margin.
@@ -55,10 +56,13 @@ fn evaluate(loaded: &Loaded, base: &Variant, spec: &Optimize, x: &[f64], limits:
             at()
         )));
     };
+    // A constraint counts as met where it holds for every value within the
+    // evaluation's estimated error, so the search does not settle on a
+    // point whose constraint its own accuracy cannot confirm.
     let margins = spec
         .constraints
         .iter()
-        .map(|c| c.margin(results.values.get(&c.value).copied().unwrap_or(f64::NAN)))
+        .map(|c| c.margin(results.values.get(&c.value).copied().unwrap_or(f64::NAN)) - results.errors.get(&c.value).copied().unwrap_or(0.0))
         .collect::<Vec<_>>();
     let k = count.fetch_add(1, Ordering::Relaxed) + 1;
     progress.note(&format!(
@@ -103,6 +107,7 @@ pub fn solve(loaded: &Loaded, spec: &Optimize, base: &Variant, folder: &OutputFo
     let pick = |m: &BTreeMap<String, f64>| -> BTreeMap<String, f64> { asked.iter().filter_map(|n| m.get(n).map(|v| (n.clone(), *v))).collect() };
     let (values, errors) = (pick(&outcome.results.values), pick(&outcome.results.errors));
     let objective = spec.objective.evaluate(&outcome.results.values, &outcome.results.errors);
+    let at_optimum = constraints_at_optimum(spec, &outcome.results);
     let json = serde_json::json!({
         "objective": spec.objective.text,
         "sense": if spec.objective.maximize { "maximize" } else { "minimize" },
@@ -113,17 +118,18 @@ pub fn solve(loaded: &Loaded, spec: &Optimize, base: &Variant, folder: &OutputFo
         "values": values,
         "errors": errors,
         "subject_to": spec.constraints.iter().map(|c| c.text.clone()).collect::<Vec<_>>(),
+        "constraints_at_optimum": at_optimum.iter().map(|c| serde_json::json!({ "constraint": c.text, "value": c.value, "error": c.error, "verdict": verdict_word(c.verdict) })).collect::<Vec<_>>(),
         "evaluations": optimum.evaluations.len(),
         "stop": optimum.stop,
         "accuracy_of_evaluations": spec.accuracy,
-        "note": "values and errors in SI; params in the case's own units. The optimum is the best evaluation found by COBYLA after a parallel Latin-hypercube start, then up to three steps of feasibility restoration where COBYLA's own best breaks a constraint by a hair; the search stops when its steps fall below the tolerance share of each range. Evaluations are solved to accuracy_of_evaluations, the case at the optimum to the case's own accuracy."
+        "note": "values and errors in SI; params in the case's own units. The optimum is the best evaluation found by COBYLA after a parallel Latin-hypercube start, then up to three steps of feasibility restoration where COBYLA's own best breaks a constraint by a hair; the search stops when its steps fall below the tolerance share of each range. Evaluations are solved to accuracy_of_evaluations, and a constraint counts as met there where it holds within the evaluation's estimated error; the case at the optimum is solved to the case's own accuracy, and constraints_at_optimum judges each constraint there within that solve's error."
     });
     let encoded = serde_json::to_vec_pretty(&json).map_err(|e| Failure::Input(format!("error: cannot encode optimize.json: {e}\n")))?;
     outcome.files.push(("optimize.json".into(), encoded));
     outcome.files.push(("optimize.csv".into(), evaluations_csv(spec, &optimum).into_bytes()));
     outcome.files.push(("optimize.svg".into(), history_chart(spec, &optimum).into_bytes()));
     outcome.files.push(("optimum.toml".into(), optimum_case(&loaded.text, &params).into_bytes()));
-    crate::output::report::add_section(&mut outcome.files, &report_section(spec, &optimum, &params, objective));
+    crate::output::report::add_section(&mut outcome.files, &report_section(spec, &optimum, &params, objective, &at_optimum));
     folder
         .commit(Path::new(""), &outcome.files)
         .map_err(|e| Failure::Input(format!("error: {e}\n")))?;
@@ -135,18 +141,67 @@ pub fn solve(loaded: &Loaded, spec: &Optimize, base: &Variant, folder: &OutputFo
         spec.objective.text,
         objective.map_or("-".into(), |o| crate::output::engineering::eng_pm(o.0, Some(o.1), spec.objective.unit)),
         p.join(", "),
-        if optimum.feasible {
-            "every constraint met"
-        } else {
+        if !optimum.feasible {
             "NO candidate met every constraint"
+        } else if at_optimum.iter().all(|c| c.verdict == Verdict::Pass) {
+            "every constraint met within its error"
+        } else {
+            "a constraint is NOT MET within its error at the optimum's accuracy"
         },
         optimum.evaluations.len(),
         optimum.stop
     );
-    if !optimum.feasible {
+    for c in at_optimum.iter().filter(|c| c.verdict != Verdict::Pass) {
+        println!(
+            "  constraint {}: {} at the optimum ({}); a tighter [study] accuracy would decide an undecided one",
+            c.text,
+            verdict_word(c.verdict),
+            c.value.map_or("no value".into(), |v| crate::output::engineering::eng_pm(v, c.error, c.unit))
+        );
+    }
+    if !optimum.feasible || at_optimum.iter().any(|c| c.verdict != Verdict::Pass) {
         return Ok(1);
     }
     Ok(i32::from(!outcome.results.solve.converged) * 3)
+}
+
+/// A constraint at the optimum's full solve (the case's own accuracy).
+struct AtOptimum {
+    text: String,
+    value: Option<f64>,
+    error: Option<f64>,
+    unit: &'static str,
+    /// Within the value's estimated error there, as an `[[expect]]` is judged.
+    verdict: Verdict,
+}
+
+/// Each constraint judged at the optimum's full solve: the search's
+/// evaluations were solved to the search's accuracy, the answer to the
+/// case's, and its constraints must hold within that answer's error.
+fn constraints_at_optimum(spec: &Optimize, results: &study::Results) -> Vec<AtOptimum> {
+    spec.constraints
+        .iter()
+        .map(|c| {
+            let value = results.values.get(&c.value).copied();
+            let error = results.errors.get(&c.value).copied();
+            AtOptimum {
+                text: c.text.clone(),
+                value,
+                error,
+                unit: results.units.get(&c.value).copied().unwrap_or(""),
+                verdict: value.map_or(Verdict::Fail, |v| study::estimate::verdict(&c.as_bound(), v, error.unwrap_or(0.0))),
+            }
+        })
+        .collect()
+}
+
+/// A verdict as optimize.json writes it.
+fn verdict_word(v: Verdict) -> &'static str {
+    match v {
+        Verdict::Pass => "pass",
+        Verdict::Fail => "fail",
+        Verdict::Undecided => "undecided",
+    }
 }
 
 /// Natural-sign objective of a point.
@@ -245,7 +300,7 @@ fn optimum_case(text: &str, params: &BTreeMap<String, f64>) -> String {
 }
 
 /// The report's section on the optimization.
-fn report_section(spec: &Optimize, o: &Optimum, params: &BTreeMap<String, f64>, objective: Option<(f64, f64)>) -> String {
+fn report_section(spec: &Optimize, o: &Optimum, params: &BTreeMap<String, f64>, objective: Option<(f64, f64)>, at_optimum: &[AtOptimum]) -> String {
     let mut s = format!(
         "## Optimization\n\n{} `{}`{} over {}: {} evaluations ({} in the parallel start), each solved to {} %; the search stopped because {}; {}.\n\n| parameter | range | optimum |\n|---|---|---|\n",
         if spec.objective.maximize { "Maximize" } else { "Minimize" },
@@ -256,7 +311,13 @@ fn report_section(spec: &Optimize, o: &Optimum, params: &BTreeMap<String, f64>, 
         spec.design + 1,
         100.0 * spec.accuracy,
         o.stop,
-        if o.feasible { "every constraint met at the optimum" } else { "NO evaluation met every constraint" }
+        if !o.feasible {
+            "NO evaluation met every constraint"
+        } else if at_optimum.iter().all(|c| c.verdict == Verdict::Pass) {
+            "every constraint met at the optimum within its error"
+        } else {
+            "a constraint is NOT MET within its error at the optimum"
+        }
     );
     for (n, b) in &spec.vary {
         s += &format!("| {n} | {} .. {} | {:.6} |\n", b[0], b[1], params[n]);
@@ -266,6 +327,14 @@ fn report_section(spec: &Optimize, o: &Optimum, params: &BTreeMap<String, f64>, 
             "\nObjective at the optimum: {}. The history is optimize.svg, every evaluation optimize.csv, the case at the optimum optimum.toml.\n\n",
             crate::output::engineering::eng_pm(v, Some(e), spec.objective.unit)
         );
+    }
+    if !at_optimum.is_empty() {
+        s += "| constraint | at the optimum | result |\n|---|---|---|\n";
+        for c in at_optimum {
+            let v = c.value.map_or("-".into(), |v| crate::output::engineering::eng_pm(v, c.error, c.unit));
+            s += &format!("| {} | {v} | {} |\n", c.text, verdict_word(c.verdict));
+        }
+        s.push('\n');
     }
     s += "![optimization history](optimize.svg)\n";
     s

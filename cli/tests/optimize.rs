@@ -97,8 +97,9 @@ fn finds_the_fixed_volume_optimum_of_the_closed_form() {
 /// A cost of part volumes minimized under a field constraint: the smallest
 /// volume of the same magnet family that still gives 10 mT at the target.
 /// The field falls as the volume falls, so the optimum sits on the
-/// constraint: the field there is 10 mT within the search's tolerance, and
-/// the cost is the magnet's volume times its price.
+/// constraint: the field there is 10 mT within the search's tolerance (and
+/// at least 10 mT within its estimated error), and the cost is the
+/// magnet's volume times its price.
 #[test]
 fn minimizes_a_cost_of_volumes_subject_to_a_field() {
     let case = CASE
@@ -113,6 +114,10 @@ fn minimizes_a_cost_of_volumes_subject_to_a_field() {
     assert_eq!(code, Some(0), "{said}");
     let json: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(out.join("optimize.json")).unwrap()).unwrap();
     assert_eq!(json["feasible"], true, "{json}");
+    // The constraint holds at the optimum's own solve within its error.
+    let at = &json["constraints_at_optimum"][0];
+    assert_eq!(at["verdict"], "pass", "{json}");
+    assert!(at["value"].as_f64().unwrap() - at["error"].as_f64().unwrap() >= 0.01, "{json}");
     let b = json["values"]["probe.target.bz"].as_f64().unwrap();
     assert!((0.01 * (1.0 - 1e-3)..0.0101).contains(&b), "{b} T: not on the constraint");
     let cost = json["objective_value"].as_f64().unwrap();

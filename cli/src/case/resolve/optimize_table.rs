@@ -72,6 +72,15 @@ pub struct Constraint {
 }
 
 impl Constraint {
+    /// The constraint as an expectation's bound.
+    pub fn as_bound(&self) -> study::model::Bound {
+        if self.at_most {
+            study::model::Bound::Max(self.bound)
+        } else {
+            study::model::Bound::Min(self.bound)
+        }
+    }
+
     /// The margin (at least 0 where the constraint holds), in SI.
     pub fn margin(&self, v: f64) -> f64 {
         if self.at_most {
