@@ -141,13 +141,7 @@ pub fn solve(loaded: &Loaded, spec: &Optimize, base: &Variant, folder: &OutputFo
         spec.objective.text,
         objective.map_or("-".into(), |o| crate::output::engineering::eng_pm(o.0, Some(o.1), spec.objective.unit)),
         p.join(", "),
-        if !optimum.feasible {
-            "NO candidate met every constraint"
-        } else if at_optimum.iter().all(|c| c.verdict == Verdict::Pass) {
-            "every constraint met within its error"
-        } else {
-            "a constraint is NOT MET within its error at the optimum's accuracy"
-        },
+        constraints_state(optimum.feasible, &at_optimum),
         optimum.evaluations.len(),
         optimum.stop
     );
@@ -193,6 +187,18 @@ fn constraints_at_optimum(spec: &Optimize, results: &study::Results) -> Vec<AtOp
             }
         })
         .collect()
+}
+
+/// Whether the constraints hold, in words: the search found no feasible
+/// evaluation, or each holds within its error at the optimum, or not.
+fn constraints_state(feasible: bool, at_optimum: &[AtOptimum]) -> &'static str {
+    if !feasible {
+        "NO evaluation met every constraint"
+    } else if at_optimum.iter().all(|c| c.verdict == Verdict::Pass) {
+        "every constraint met at the optimum within its error"
+    } else {
+        "a constraint is NOT MET within its error at the optimum"
+    }
 }
 
 /// A verdict as optimize.json writes it.
@@ -311,13 +317,7 @@ fn report_section(spec: &Optimize, o: &Optimum, params: &BTreeMap<String, f64>, 
         spec.design + 1,
         100.0 * spec.accuracy,
         o.stop,
-        if !o.feasible {
-            "NO evaluation met every constraint"
-        } else if at_optimum.iter().all(|c| c.verdict == Verdict::Pass) {
-            "every constraint met at the optimum within its error"
-        } else {
-            "a constraint is NOT MET within its error at the optimum"
-        }
+        constraints_state(o.feasible, at_optimum)
     );
     for (n, b) in &spec.vary {
         s += &format!("| {n} | {} .. {} | {:.6} |\n", b[0], b[1], params[n]);
