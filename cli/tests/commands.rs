@@ -324,11 +324,23 @@ point = [0, 10]
 fn every_value_carries_its_error_and_a_bound_within_it_is_undecided() {
     let dir = temp("errors");
     let case = dir.join("c.toml");
-    std::fs::write(&case, limited_case("")).unwrap();
+    std::fs::write(&case, limited_case("").replace("report = false\n", "")).unwrap();
     let out = dir.join("out");
     let (code, text) = run(exe().args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()]));
     assert_eq!(code, 0, "{text}");
     assert!(text.contains("|B| = ") && text.contains(" \u{b1} "), "summary without error bars: {text}");
+    // The part's mean |B| and the magnet's margin too, in the summary and
+    // in the report's tables, and the stray field's figures in the report.
+    let with_error = |s: &str, head: &str| s.lines().any(|l| l.contains(head) && l.contains(" \u{b1} "));
+    assert!(with_error(&text, "part magnet (N42): |B| mean"), "{text}");
+    assert!(with_error(&text, "magnet magnet (N42 at 20 degC): margin"), "{text}");
+    let report = std::fs::read_to_string(out.join("report.md")).unwrap();
+    // Its row in the parts table and in the magnets table.
+    let rows = report.lines().filter(|l| l.starts_with("| magnet | N42 |") && l.contains(" \u{b1} ")).count();
+    assert_eq!(rows, 2, "{report}");
+    for stray in ["- reach along the axis", "- dipole moment", "- |B| falls to 0.5 mT", "- |H| at 2.1 m"] {
+        assert!(with_error(&report, stray), "{stray}: {report}");
+    }
     let json: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(out.join("results.json")).unwrap()).unwrap();
     let (values, errors) = (json["values"].as_object().unwrap(), json["errors"].as_object().unwrap());
     assert!(!errors.is_empty());
