@@ -54,7 +54,7 @@ fn evaluate(loaded: &Loaded, base: &Variant, spec: &Optimize, x: &[f64], limits:
             at()
         )));
     }
-    let Some((objective, _)) = spec.objective.evaluate(&results.values, &results.errors) else {
+    let Some((objective, objective_error)) = spec.objective.evaluate(&results.values, &results.errors) else {
         return Err(Failure::Input(format!(
             "error: {}: the objective '{}' has no value at {}\n",
             loaded.path.display(),
@@ -65,11 +65,17 @@ fn evaluate(loaded: &Loaded, base: &Variant, spec: &Optimize, x: &[f64], limits:
     // A constraint counts as met where it holds for every value within the
     // evaluation's estimated error, so the search does not settle on a
     // point whose constraint its own accuracy cannot confirm.
-    let margins = spec
+    let found: Vec<[f64; 2]> = spec
         .constraints
         .iter()
-        .map(|c| c.margin(results.values.get(&c.value).copied().unwrap_or(f64::NAN)) - results.errors.get(&c.value).copied().unwrap_or(0.0))
-        .collect::<Vec<_>>();
+        .map(|c| {
+            [
+                results.values.get(&c.value).copied().unwrap_or(f64::NAN),
+                results.errors.get(&c.value).copied().unwrap_or(0.0),
+            ]
+        })
+        .collect();
+    let margins = spec.constraints.iter().zip(&found).map(|(c, [v, e])| c.margin(*v) - e).collect::<Vec<_>>();
     let k = count.fetch_add(1, Ordering::Relaxed) + 1;
     progress.note(&format!(
         "{}: optimize #{k}: {}: {} = {objective:.6e}",
@@ -81,6 +87,10 @@ fn evaluate(loaded: &Loaded, base: &Variant, spec: &Optimize, x: &[f64], limits:
         x: x.to_vec(),
         objective: if spec.objective.maximize { -objective } else { objective },
         margins: margins.into_iter().map(|m| if m.is_nan() { -f64::INFINITY } else { m }).collect(),
+        // The log's columns: the objective's error, then each constrained
+        // value and its error as solved (the margins above hold the error
+        // back, so the value cannot be read off them).
+        reported: std::iter::once(objective_error).chain(found.into_iter().flatten()).collect(),
     })
 }
 
@@ -226,15 +236,17 @@ fn natural(spec: &Optimize, p: &Point) -> f64 {
 }
 
 /// optimize.csv: every evaluation in order, parameters, objective, each
-/// constrained value and whether all constraints held.
+/// constrained value, each with its estimated error, and whether all
+/// constraints held within those errors.
 fn evaluations_csv(spec: &Optimize, o: &Optimum) -> String {
     let mut s = String::from("evaluation");
     for (n, _) in &spec.vary {
         s += &format!(",{n}");
     }
-    s += &format!(",objective [{}]", if spec.objective.unit.is_empty() { "SI" } else { spec.objective.unit });
+    let unit = if spec.objective.unit.is_empty() { "SI" } else { spec.objective.unit };
+    s += &format!(",objective [{unit}],objective.error [{unit}]");
     for c in &spec.constraints {
-        s += &format!(",{}", c.value);
+        s += &format!(",{0},{0}.error", c.value);
     }
     s += ",feasible\n";
     for (i, p) in o.evaluations.iter().enumerate() {
@@ -243,8 +255,8 @@ fn evaluations_csv(spec: &Optimize, o: &Optimum) -> String {
             s += &format!(",{v}");
         }
         s += &format!(",{}", natural(spec, p));
-        for (c, m) in spec.constraints.iter().zip(&p.margins) {
-            s += &format!(",{}", if c.at_most { c.bound - m } else { c.bound + m });
+        for v in &p.reported {
+            s += &format!(",{v}");
         }
         s += &format!(",{}\n", p.violation() == 0.0);
     }

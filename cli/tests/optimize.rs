@@ -124,7 +124,21 @@ fn minimizes_a_cost_of_volumes_subject_to_a_field() {
     let r = json["params"]["r"].as_f64().unwrap();
     let volume = VOLUME * r / 10.0 * 1e-9;
     assert!((cost / (2.5e5 * volume) - 1.0).abs() < 1e-6, "{cost} against {}", 2.5e5 * volume);
+    // optimize.csv logs each evaluation's field as solved, with its error:
+    // the first (the case's own r) is the same solve as the case at that r
+    // at the search's accuracy, to the bit; the cost, a volume, carries no
+    // field error.
+    let csv = std::fs::read_to_string(out.join("optimize.csv")).unwrap();
+    let head: Vec<&str> = csv.lines().next().unwrap().split(',').collect();
+    let first: Vec<f64> = csv.lines().nth(1).unwrap().split(',').map(|c| c.parse().unwrap_or(f64::NAN)).collect();
+    let column = |name: &str| first[head.iter().position(|h| *h == name).unwrap_or_else(|| panic!("no column {name} in {head:?}"))];
     let _ = std::fs::remove_dir_all(out.parent().unwrap());
+    let alone = case[..case.find("[optimize]").unwrap()].replace("[study]", "[study]\naccuracy = \"0.01 %\"");
+    let (values, errors) = common::solved("optimize-first-point", &alone);
+    let (v, e) = (values["probe.target.bz"].as_f64().unwrap(), errors["probe.target.bz"].as_f64().unwrap());
+    assert_eq!(column("probe.target.bz"), v, "the logged field is not the solved one");
+    assert!((column("probe.target.bz.error") / e - 1.0).abs() < 1e-12, "{csv}");
+    assert!(column("objective.error [SI]") <= 1e-9 * column("objective [SI]"), "{csv}");
 }
 
 #[test]

@@ -182,6 +182,7 @@ mod tests {
                 x: x.to_vec(),
                 objective: (x[0] - 2.0).powi(2) + (x[1] - 1.0).powi(2),
                 margins: vec![1.0 - x[0] * x[0] - x[1] * x[1]],
+                reported: vec![],
             })
         })
         .unwrap();
@@ -209,6 +210,7 @@ mod tests {
                 x: x.to_vec(),
                 objective: -(x[0] * (-x[0] / 4.0).exp()),
                 margins: vec![],
+                reported: vec![],
             })
         })
         .unwrap();
@@ -222,6 +224,7 @@ mod tests {
                     x: x.to_vec(),
                     objective: x[0],
                     margins: vec![],
+                    reported: vec![],
                 })
             }
         });
@@ -285,6 +288,7 @@ mod holding_magnet_like {
                 x: x.to_vec(),
                 objective: cost(x),
                 margins: vec![pull(x) - 20.0],
+                reported: vec![],
             })
         })
         .unwrap();

@@ -11,6 +11,9 @@ pub struct Point {
     pub objective: f64,
     /// Constraint margins: at least 0 where the constraint holds.
     pub margins: Vec<f64>,
+    /// What the caller keeps beside the point for its log (the values
+    /// behind the margins and their errors); the search never reads it.
+    pub reported: Vec<f64>,
 }
 
 impl Point {

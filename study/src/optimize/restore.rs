@@ -159,6 +159,7 @@ mod tests {
         let point = |x: Vec<f64>| Point {
             objective: x[0] + x[1],
             margins: vec![margin(&x)],
+            reported: vec![],
             x,
         };
         let search = Search {
