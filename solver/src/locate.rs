@@ -105,28 +105,27 @@ impl Locator {
         out
     }
 
-    /// Every triangle of the grid that contains p (on an edge: several), with barycentrics.
-    pub fn containing(&self, els: &Elements, p: [f64; 2]) -> Vec<(usize, [f64; 3])> {
+    /// Every triangle of the grid that contains p (on an edge: several),
+    /// with barycentrics; an iterator, since every point search of a
+    /// picture or a profile would otherwise allocate for one or two hits.
+    pub fn containing<'a>(&'a self, els: &'a Elements, p: [f64; 2]) -> impl Iterator<Item = (usize, [f64; 3])> + 'a {
         let fx = (p[0] - self.origin[0]) / self.cell;
         let fy = (p[1] - self.origin[1]) / self.cell;
-        if !fx.is_finite() || !fy.is_finite() || fx < -1e-9 || fy < -1e-9 {
-            return Vec::new();
-        }
+        let inside = fx.is_finite() && fy.is_finite() && fx >= -1e-9 && fy >= -1e-9;
         let (ix, iy) = ((fx.max(0.0)) as usize, (fy.max(0.0)) as usize);
-        if ix >= self.dims[0] || iy >= self.dims[1] {
-            return Vec::new();
-        }
-        let c = iy * self.dims[0] + ix;
-        self.items[self.start[c]..self.start[c + 1]]
-            .iter()
-            .filter_map(|&e| {
-                let geometry = els.geometry(e);
-                if geometry.is_curved() && geometry.clearly_outside(p, OUTSIDE_MARGIN) {
-                    return None;
-                }
-                let lam = geometry.barycentric(p);
-                lam.iter().all(|&l| l >= -INSIDE_TOLERANCE).then(|| (e, lam.map(|l| l.max(0.0))))
-            })
-            .collect()
+        let items = if inside && ix < self.dims[0] && iy < self.dims[1] {
+            let c = iy * self.dims[0] + ix;
+            &self.items[self.start[c]..self.start[c + 1]]
+        } else {
+            &[]
+        };
+        items.iter().filter_map(move |&e| {
+            let geometry = els.geometry(e);
+            if geometry.is_curved() && geometry.clearly_outside(p, OUTSIDE_MARGIN) {
+                return None;
+            }
+            let lam = geometry.barycentric(p);
+            lam.iter().all(|&l| l >= -INSIDE_TOLERANCE).then(|| (e, lam.map(|l| l.max(0.0))))
+        })
     }
 }

@@ -77,7 +77,7 @@ pub fn to_nested(coarse: &Solution, fine: &Elements) -> Option<Vec<f64>> {
                 continue;
             }
             let p = fine.positions[node];
-            let Some((e, lam)) = grid.containing(els, p).into_iter().next() else {
+            let Some((e, lam)) = grid.containing(els, p).next() else {
                 missing += 1;
                 continue;
             };

@@ -195,7 +195,7 @@ impl<'m> Solution<'m> {
             };
             (self.is_vacuum(e), part, axis_edge(e), usize::MAX - e)
         };
-        self.locator.containing(&self.elements, p).into_iter().max_by_key(|(e, _)| rank(*e))
+        self.locator.containing(&self.elements, p).max_by_key(|(e, _)| rank(*e))
     }
 
     /// Whether element e is vacuum without current (air, or a part of a
