@@ -25,6 +25,7 @@ pub enum Kind {
     Inductance,
     Energy,
     Moment,
+    Volume,
     Dimensionless,
 }
 
@@ -46,6 +47,7 @@ impl Kind {
             Kind::Inductance => "an inductance (H, mH, uH)",
             Kind::Energy => "an energy (J, mJ)",
             Kind::Moment => "a magnetic moment (A m2)",
+            Kind::Volume => "a volume (m3, cm3, mm3, in3)",
             Kind::Dimensionless => "a plain number",
         }
     }
@@ -98,6 +100,10 @@ pub const UNITS: &[(&str, Kind, f64)] = &[
     ("mJ", Kind::Energy, 1e-3),
     ("A m2", Kind::Moment, 1.0),
     ("A*m2", Kind::Moment, 1.0),
+    ("m3", Kind::Volume, 1.0),
+    ("cm3", Kind::Volume, 1e-6),
+    ("mm3", Kind::Volume, 1e-9),
+    ("in3", Kind::Volume, 0.0254 * 0.0254 * 0.0254),
 ];
 
 /// Offset added after scaling, for absolute temperatures (K to degC).
@@ -158,6 +164,9 @@ pub fn suggestion(word: &str, kind: Kind) -> String {
         .or_else(|| crate::case::suggest::closest(word, symbols.iter().copied()));
     match meant {
         Some(s) => format!("did you mean '{s}'?"),
+        // A value with no units of its own (an optimizer's objective, a
+        // bound on a value whose unit has no entries) is written bare, in SI.
+        None if symbols.is_empty() => "write it without a unit, in SI units".to_string(),
         None => format!("the units of {}: {}", kind.describe().split(" (").next().unwrap_or(""), symbols.join(", ")),
     }
 }
@@ -189,6 +198,9 @@ mod tests {
         );
         // A spelling of another kind's unit is not offered.
         assert!(!suggestion("tesla", Kind::Length).contains("'T'"));
+        // A kind without units of its own says so instead of an empty list.
+        assert_eq!(suggestion("furlong", Kind::Dimensionless), "write it without a unit, in SI units");
+        assert_eq!(suggestion("mm^3", Kind::Volume), "did you mean 'mm3'?");
     }
 
     #[test]
@@ -207,5 +219,8 @@ mod tests {
         assert_eq!(unit("kgf").unwrap().1, 9.806_65);
         // 1 MGOe = 7.957747 kJ/m3 (from G and Oe above).
         assert!((unit("MGOe").unwrap().1 - 7957.747).abs() < 1e-3);
+        // NIST SP 811 B.8: cubic inch = 1.638706e-5 m3.
+        assert!((unit("in3").unwrap().1 - 1.638_706e-5).abs() < 1e-11);
+        assert_eq!(unit("mm3").unwrap().1, 1e-9);
     }
 }

@@ -40,9 +40,7 @@ fn significant(x: f64) -> String {
 /// error's second significant digit: `-333.2 N ± 0.12 N`, `526.88 mT ±
 /// 0.020 mT`, `527 mT ± 12 mT`. Without a finite error, the value alone.
 pub fn eng_pm(value: f64, error: Option<f64>, unit: &str) -> String {
-    // An error below a billionth of the value (a volume of straight-sided
-    // parts) is no error worth printing.
-    let Some(e) = error.filter(|e| e.is_finite() && *e > 1e-9 * value.abs()) else {
+    let Some(e) = error.filter(|e| worth_printing(*e, value)) else {
         return eng(value, unit);
     };
     if !value.is_finite() {
@@ -55,10 +53,18 @@ pub fn eng_pm(value: f64, error: Option<f64>, unit: &str) -> String {
 /// As `eng_pm`, in `unit` as given, without an SI prefix (lengths in the
 /// case's own unit, such as "mm").
 pub fn plain_pm(value: f64, error: Option<f64>, unit: &str) -> String {
-    match error.filter(|e| e.is_finite() && *e > 1e-9 * value.abs()) {
+    match error.filter(|e| worth_printing(*e, value)) {
         Some(e) if value.is_finite() => pm_scaled(value, e, 0, "", unit),
         _ => format!("{} {unit}", significant(value)).trim_end().to_string(),
     }
+}
+
+/// Whether an error is worth printing beside its value: not at the
+/// estimates' rounding floor (a billionth of the value: a volume of
+/// straight-sided parts, a cost made of such volumes, whose sum lands on
+/// either side of that floor by rounding), nor under ten times it.
+fn worth_printing(e: f64, value: f64) -> bool {
+    e.is_finite() && e > 1e-8 * value.abs()
 }
 
 /// `value +- e` divided by 10^exponent, to the error's second significant
@@ -75,7 +81,7 @@ fn pm_scaled(value: f64, e: f64, exponent: i32, prefix: &str, unit: &str) -> Str
 
 /// Whether a unit takes SI prefixes (not a ratio, degC, %, deg, kgf, ...).
 fn prefixable(unit: &str) -> bool {
-    !unit.is_empty() && !matches!(unit, "degC" | "%" | "deg" | "kgf" | "lbf" | "A/mm2" | "K" | "m3")
+    !unit.is_empty() && !matches!(unit, "degC" | "%" | "deg" | "kgf" | "lbf" | "A/mm2" | "K")
 }
 
 /// The power of ten (a multiple of 3) and SI prefix that bring `reference`
@@ -84,6 +90,16 @@ pub fn prefix_of(reference: f64, unit: &str) -> (i32, &'static str) {
     const PREFIXES: [(i32, &str); 9] = [(-12, "p"), (-9, "n"), (-6, "u"), (-3, "m"), (0, ""), (3, "k"), (6, "M"), (9, "G"), (12, "T")];
     if !(prefixable(unit) && reference.is_finite() && reference > 0.0) {
         return (0, "");
+    }
+    // A volume's prefix cubes with its metre: mm3, cm3, m3 as people write them.
+    if unit == "m3" {
+        return if reference < 1e-6 {
+            (-9, "m")
+        } else if reference < 1e-3 {
+            (-6, "c")
+        } else {
+            (0, "")
+        };
     }
     let exponent = ((reference.log10() / 3.0).floor() as i32 * 3).clamp(-12, 12);
     (exponent, PREFIXES.iter().find(|p| p.0 == exponent).map_or("", |p| p.1))
@@ -100,6 +116,17 @@ mod tests {
         assert_eq!(eng_pm(0.527, Some(0.012), "T"), "527 mT \u{b1} 12 mT");
         assert_eq!(eng_pm(0.4279, Some(0.0012), ""), "0.4279 \u{b1} 0.0012");
         assert_eq!(eng_pm(5.0, None, "N"), "5 N");
+        // At the estimates' rounding floor: no error printed.
+        assert_eq!(eng_pm(0.1556, Some(1.0000001e-9 * 0.1556), ""), "0.1556");
+    }
+
+    /// Volumes as people write them: mm3 below a cubic centimetre, cm3
+    /// below a litre.
+    #[test]
+    fn volumes_take_cubed_prefixes() {
+        assert_eq!(eng(1.5708e-6, "m3"), "1.571 cm3");
+        assert_eq!(eng(2.175e-7, "m3"), "217.5 mm3");
+        assert_eq!(eng(0.25, "m3"), "0.25 m3");
     }
 
     /// Lengths in the case's own unit keep it: no "kmm" past 1000 mm.

@@ -29,8 +29,9 @@ fn bound_kind(unit: Unit) -> Option<Kind> {
         Unit::Ratio => Some(Kind::Dimensionless),
         Unit::Ampere => Some(Kind::Current),
         Unit::AmperePerSquareMetre => Some(Kind::CurrentDensity),
+        Unit::CubicMetre => Some(Kind::Volume),
         // No unit table entries for these yet: bounds are plain SI numbers.
-        Unit::NewtonMetre | Unit::Ohm | Unit::Watt | Unit::Kelvin | Unit::CubicMetre => None,
+        Unit::NewtonMetre | Unit::Ohm | Unit::Watt | Unit::Kelvin => None,
     }
 }
 
