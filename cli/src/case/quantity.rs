@@ -76,10 +76,21 @@ impl Context<'_> {
 
     /// A quantity whose kind the unit decides (for expectation bounds), in SI.
     pub fn any_quantity(&self, item: &Item, what: &str) -> Result<(f64, Option<Kind>), Diagnostic> {
+        self.any_quantity_for(item, what, Kind::Dimensionless)
+    }
+
+    /// As `any_quantity`, where `wanted` is the kind the value compared
+    /// with has: an unknown unit is reported against it ("1 mm^3" on a
+    /// volume: did you mean 'mm3'?), not as a plain number's. A bare number
+    /// stays SI whatever `wanted` is.
+    pub fn any_quantity_for(&self, item: &Item, what: &str, wanted: Kind) -> Result<(f64, Option<Kind>), Diagnostic> {
         if let Value::Str(s) = &item.value {
             if let Ok(parsed) = expr::parse(s, self.params) {
                 if let Some((k, _)) = units::unit(parsed.unit) {
                     return Ok((self.quantity(item, k, what)?, Some(k)));
+                }
+                if !parsed.unit.is_empty() {
+                    return Ok((self.quantity(item, wanted, what)?, None));
                 }
             }
         }

@@ -38,7 +38,7 @@ fn bound_kind(unit: Unit) -> Option<Kind> {
 /// A quantity compared with a value (a bound, a target) in SI, its unit
 /// checked against the value's: a bare number is taken as SI.
 pub(super) fn value_quantity(ctx: &Context, i: &Item, value: &ValueName, what: &str, role: &str) -> Result<f64, Diagnostic> {
-    let (v, kind) = ctx.any_quantity(i, what)?;
+    let (v, kind) = ctx.any_quantity_for(i, what, bound_kind(value.unit).unwrap_or(Kind::Dimensionless))?;
     match (kind, bound_kind(value.unit)) {
         (None, _) => Ok(v),
         (Some(Kind::Percent), Some(Kind::Dimensionless)) => Ok(v / 100.0),
