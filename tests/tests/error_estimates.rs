@@ -9,14 +9,22 @@ use validation::{record_estimated, rel, solve_case_text};
 
 const TARGET: f64 = 1e-3;
 
-/// The value and its estimated error from a solved case.
-fn value_and_error(r: &study::Results, name: &str) -> (f64, f64) {
-    (r.values[name], r.errors[name])
+/// A check and its source, as docs/validation.md lists them.
+struct Check<'a> {
+    what: &'a str,
+    source: &'a str,
 }
 
-/// The honesty bounds at the default target, relative to the exact value.
-fn assert_honest(what: &str, value: f64, error: f64, exact: f64) {
-    validation::assert_honest(what, value, error, exact, exact.abs(), TARGET);
+/// Holds the value `name` of `r` to `exact` at the default target and
+/// within twice its estimate (the estimate at most 20 times the true error
+/// or below a tenth of the target), and records it for docs/validation.md
+/// under `check`; `label` names the point in a failure. Returns the
+/// estimate.
+fn held_to_exact(r: &study::Results, name: &str, exact: f64, check: &Check, label: &str) -> f64 {
+    let (v, e) = (r.values[name], r.errors[name]);
+    record_estimated(check.what, check.source, TARGET, rel(v, exact), e / exact.abs());
+    validation::assert_honest(label, v, e, exact, exact.abs(), TARGET);
+    e
 }
 
 const RIGID: &str = r#"
@@ -47,15 +55,11 @@ fn cylinder_axis_field_within_its_error_at_default_settings() {
     let res = solve_case_text(&p1_case(""), &[]);
     for (i, d) in distances.iter().enumerate() {
         let exact = cylinder_axis_bz(1.26, r, l, l + d * 1e-3);
-        let (v, e) = value_and_error(&res, &format!("probe.d{i}.bz"));
-        record_estimated(
-            "cylinder on-axis B_z at default settings, within its error",
-            "Derby & Olbert 2010",
-            TARGET,
-            rel(v, exact),
-            e / exact.abs(),
-        );
-        assert_honest(&format!("P1 d = {d} mm"), v, e, exact);
+        let check = Check {
+            what: "cylinder on-axis B_z at default settings, within its error",
+            source: "Derby & Olbert 2010",
+        };
+        held_to_exact(&res, &format!("probe.d{i}.bz"), exact, &check, &format!("P1 d = {d} mm"));
     }
 }
 
@@ -78,7 +82,8 @@ fn cylinder_axis_field_from_coarse_hand_set_meshes_is_never_overclaimed() {
             let res = solve_case_text(&text, &[]);
             for (i, d) in P1_DISTANCES.iter().enumerate() {
                 let exact = cylinder_axis_bz(1.26, r, l, l + d * 1e-3);
-                let (v, e) = value_and_error(&res, &format!("probe.d{i}.bz"));
+                let name = format!("probe.d{i}.bz");
+                let (v, e) = (res.values[&name], res.errors[&name]);
                 let truth = (v - exact).abs();
                 eprintln!(
                     "size {size} mm, target {target}, d = {d} mm: true {:.2e} estimated {:.2e}",
@@ -108,15 +113,11 @@ fn coaxial_pull_within_its_error_at_default_settings() {
         let text = format!("[study]\ntitle = \"P2\"\ngeometry = \"axisymmetric\"\nunit = \"mm\"\n{RIGID}\n[output]\nvtk = false\nplots = false\nreport = false\n\n[[part]]\nname = \"lower\"\nmaterial = \"rigid\"\nmagnetization = \"+z\"\nrect = {{ from = [0, -25.4], to = [9.525, 0] }}\n\n[[part]]\nname = \"upper\"\nmaterial = \"rigid\"\nmagnetization = \"+z\"\nrect = {{ from = [0, {gap}], to = [9.525, {}] }}\n\n[[force]]\nname = \"pull\"\nparts = [\"upper\"]\n", gap + 25.4);
         let res = solve_case_text(&text, &[]);
         let exact = -coaxial_cylinders_force(1.26, 1.26, r, r, l, l, gap * 1e-3);
-        let (v, e) = value_and_error(&res, "force.pull.z");
-        record_estimated(
-            "coaxial magnets attracting at default settings, within its error",
-            "Vokoun et al. 2009 (charge model)",
-            TARGET,
-            rel(v, exact),
-            e / exact.abs(),
-        );
-        assert_honest(&format!("P2 gap {gap} mm"), v, e, exact);
+        let check = Check {
+            what: "coaxial magnets attracting at default settings, within its error",
+            source: "Vokoun et al. 2009 (charge model)",
+        };
+        held_to_exact(&res, "force.pull.z", exact, &check, &format!("P2 gap {gap} mm"));
     }
 }
 
@@ -135,15 +136,11 @@ fn off_axis_field_within_its_error_at_default_settings() {
     for (i, (rho, z)) in points.iter().enumerate() {
         let exact = cylinder_field(1.26, a, b, rho * 1e-3, z * 1e-3);
         let magnitude = exact[0].hypot(exact[1]);
-        let (v, e) = value_and_error(&res, &format!("probe.p{i}.b"));
-        record_estimated(
-            "cylinder off-axis B magnitude at default settings, within its error",
-            "Derby & Olbert 2010 (elliptic integral)",
-            TARGET,
-            rel(v, magnitude),
-            e / magnitude.abs(),
-        );
-        assert_honest(&format!("off-axis ({rho}, {z}) mm"), v, e, magnitude);
+        let check = Check {
+            what: "cylinder off-axis B magnitude at default settings, within its error",
+            source: "Derby & Olbert 2010 (elliptic integral)",
+        };
+        held_to_exact(&res, &format!("probe.p{i}.b"), magnitude, &check, &format!("off-axis ({rho}, {z}) mm"));
     }
 }
 
@@ -158,15 +155,11 @@ fn round_magnet_field_within_its_error_at_default_settings() {
     let res = solve_case_text(&text, &[]);
     // Above: Br R^2 / (2 r^2) along +y; beside (m.r = 0): -Br R^2 / (2 r^2) along y.
     for (name, exact) in [("probe.above.by", 1.26 * 25.0 / 200.0), ("probe.beside.by", -1.26 * 25.0 / 288.0)] {
-        let (v, e) = value_and_error(&res, name);
-        record_estimated(
-            "round planar magnet, exterior dipole field at default settings, within its error",
-            "Jackson 1999 sec. 5.10 (uniformly magnetized cylinder)",
-            TARGET,
-            rel(v, exact),
-            e / exact.abs(),
-        );
-        assert_honest(name, v, e, exact);
+        let check = Check {
+            what: "round planar magnet, exterior dipole field at default settings, within its error",
+            source: "Jackson 1999 sec. 5.10 (uniformly magnetized cylinder)",
+        };
+        held_to_exact(&res, name, exact, &check, name);
     }
 }
 
@@ -184,15 +177,11 @@ fn round_parts_volumes_are_exact_within_their_errors() {
         ("part.ring.volume", 2.0 * pi * 0.02 * pi * 0.005f64.powi(2)),
         ("part.ball.volume", 4.0 / 3.0 * pi * 0.006f64.powi(3)),
     ] {
-        let (v, e) = value_and_error(&res, name);
-        record_estimated(
-            "a round part's volume at default settings, within its error",
-            "Pappus's centroid theorem; the sphere's volume",
-            TARGET,
-            rel(v, exact),
-            e / exact.abs(),
-        );
-        assert_honest(name, v, e, exact);
+        let check = Check {
+            what: "a round part's volume at default settings, within its error",
+            source: "Pappus's centroid theorem; the sphere's volume",
+        };
+        let e = held_to_exact(&res, name, exact, &check, name);
         // The field's floor (a twentieth of the target) is not laid on it.
         assert!(e < 1e-6 * exact, "{name}: {e} against {exact}");
     }
