@@ -138,7 +138,9 @@ fn minimizes_a_cost_of_volumes_subject_to_a_field() {
     let (v, e) = (values["probe.target.bz"].as_f64().unwrap(), errors["probe.target.bz"].as_f64().unwrap());
     assert_eq!(column("probe.target.bz"), v, "the logged field is not the solved one");
     assert!((column("probe.target.bz.error") / e - 1.0).abs() < 1e-12, "{csv}");
-    assert!(column("objective.error [SI]") <= 1e-9 * column("objective [SI]"), "{csv}");
+    // Rounding only (a billionth, the estimates' floor), where the field's
+    // floor would give 5e-6 of it at 0.01 %.
+    assert!(column("objective.error [SI]") < 1e-8 * column("objective [SI]"), "{csv}");
 }
 
 #[test]
