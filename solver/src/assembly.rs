@@ -369,7 +369,7 @@ fn pack(local: &LocalSystem, m: usize, out: &mut [f64]) {
 
 /// The signs of element e's node potentials against their unknowns, when
 /// one of them is -1 (a node tied across an anti-periodic pair).
-fn element_signs(els: &Elements, sign_of_node: &[f64], e: usize) -> Option<[f64; MAX_NODES]> {
+pub(crate) fn element_signs(els: &Elements, sign_of_node: &[f64], e: usize) -> Option<[f64; MAX_NODES]> {
     if sign_of_node.is_empty() {
         return None;
     }

@@ -60,6 +60,7 @@ pub mod quadrature;
 mod reduction;
 mod segment_grid;
 pub mod solution;
+pub mod source_response;
 pub mod space;
 
 pub use bh_curve::{BhCurve, CurveError};

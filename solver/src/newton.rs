@@ -95,10 +95,24 @@ fn norm(v: &[f64]) -> f64 {
     v.iter().map(|x| x * x).sum::<f64>().sqrt()
 }
 
-/// Solves the problem from zero potential; returns the potential at every
-/// node (reduced field: the applied field's potential is not included) and
-/// the report. Residuals are reported relative to the one at zero potential.
-pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(usize, f64)) -> Result<(Vec<f64>, SolveReport), SolveError> {
+/// Where a solve ended.
+pub struct NewtonEnd {
+    /// The potential at every node (reduced field: the applied field's
+    /// potential is not included).
+    pub a: Vec<f64>,
+    /// How the solve went.
+    pub report: SolveReport,
+    /// The steps' solver with its last factor, for linear solves with the
+    /// tangent at `a` (None when no step was taken).
+    pub tangent: Option<TangentSolver>,
+    /// Whether the system's matrix holds the exact tangent at `a` (the last
+    /// line search assembled it there, of the kind its step asked).
+    pub exact_at_a: bool,
+}
+
+/// Solves the problem from zero potential (or its first guess).
+/// Residuals are reported relative to the one at zero potential.
+pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(usize, f64)) -> Result<NewtonEnd, SolveError> {
     let a = first_guess(problem, system);
     let warm = a.iter().any(|&v| v != 0.0);
     let mut report = SolveReport {
@@ -116,7 +130,12 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
     report.residual_history.push(1.0);
     if system.n_dofs == 0 {
         report.converged = true;
-        return Ok((a, report));
+        return Ok(NewtonEnd {
+            a,
+            report,
+            tangent: None,
+            exact_at_a: false,
+        });
     }
     // The symbolic analysis needs only the pattern: it runs on one core
     // while the first assembly runs on the other.
@@ -152,7 +171,12 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
     }
     if norm(&now.residual) == 0.0 {
         report.converged = true;
-        return Ok((now.a, report));
+        return Ok(NewtonEnd {
+            a: now.a,
+            report,
+            tangent: None,
+            exact_at_a: false,
+        });
     }
     let settings = problem.newton;
     // Exact Newton (no reuse of factorizations) keeps every factor in double precision.
@@ -165,6 +189,7 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
     // warm start (the previous mesh's field) it lands there too, where an
     // inexact first step stopped at its forcing term (6e-9) and took a second.
     let knee_only = !linear && !problem.laws.iter().any(|l| matches!(l, crate::material::Law::Saturating(_)));
+    let mut assembled = Tangent::ColdStart;
     for it in 1..=settings.max_iterations {
         let rel_now = report.residual_history.last().copied().unwrap_or(1.0);
         // Far from the solution the tangent moves too much between steps for an
@@ -185,7 +210,8 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
         if step.iter().any(|v| !v.is_finite()) {
             return Err(SolveError::NotFinite { iteration: it });
         }
-        let (next, alpha, seconds) = line_search(problem, system, &now, &step, kind(rel_now));
+        assembled = kind(rel_now);
+        let (next, alpha, seconds) = line_search(problem, system, &now, &step, assembled);
         report.seconds_assembly += seconds;
         let update = norm(&step) / norm_of_dofs(system, &next.a).max(f64::MIN_POSITIVE);
         let error = error_estimate(update, previous_update, alpha);
@@ -209,7 +235,12 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
             break;
         }
     }
-    Ok((now.a, report))
+    Ok(NewtonEnd {
+        a: now.a,
+        report,
+        tangent: Some(solver),
+        exact_at_a: assembled == Tangent::Exact,
+    })
 }
 
 /// Zero, or the problem's first guess for a saturating study (fixed nodes

@@ -65,6 +65,12 @@ pub struct Problem<'m> {
     /// magnetized ring each point their own way. None: every element takes
     /// its part's law.
     pub element_law: Option<std::sync::Arc<[u32]>>,
+    /// Changes of the parts' current densities (A/m2, per part) whose
+    /// first-order field responses the solve also returns
+    /// (`Solution::responses`): linear solves with the converged tangent,
+    /// preconditioned by the Newton steps' last factor. An empty entry asks
+    /// for nothing.
+    pub current_changes: Vec<Vec<f64>>,
 }
 
 /// Marks an element that takes its part's law (`Problem::element_law`).
@@ -83,6 +89,7 @@ impl<'m> Problem<'m> {
             initial: None,
             remanence: None,
             element_law: None,
+            current_changes: Vec::new(),
         }
     }
 

@@ -24,6 +24,10 @@ pub struct Solution<'m> {
     pub reduced: Vec<f64>,
     /// How the solve went.
     pub report: SolveReport,
+    /// The first-order change of `reduced` for each of the problem's
+    /// `current_changes`, in order (empty where that change is empty or its
+    /// solve failed).
+    pub responses: Vec<Vec<f64>>,
     /// For a linear study driven by remanence alone, the potential-dependent
     /// parts of its energy from the system itself (`System::affine_energy_terms`).
     pub affine_energy: Option<[f64; 2]>,
@@ -60,14 +64,47 @@ impl Solution<'_> {
                 initial: p.initial.clone(),
                 remanence: p.remanence.clone(),
                 element_law: p.element_law.clone(),
+                current_changes: p.current_changes.clone(),
             },
             elements: self.elements.clone(),
             reduced: self.reduced.clone(),
             report: self.report.clone(),
+            responses: self.responses.clone(),
             affine_energy: self.affine_energy,
             locator: self.locator.clone(),
             air: self.air.clone(),
         }
+    }
+}
+
+impl<'m> Solution<'m> {
+    /// The same problem and mesh with other nodal potentials (all nodes,
+    /// as `reduced`): a value linear in the potential, evaluated on it,
+    /// differs from this solution's by its change alone.
+    pub fn with_potential(&self, reduced: Vec<f64>) -> Solution<'m> {
+        Solution {
+            problem: self.problem.clone(),
+            elements: self.elements.clone(),
+            reduced,
+            report: self.report.clone(),
+            responses: Vec::new(),
+            affine_energy: None,
+            locator: self.locator.clone(),
+            air: self.air.clone(),
+        }
+    }
+
+    /// The nodal potentials (all nodes, as `reduced`) to first order in the
+    /// change of sources from this solution's problem to `changed`, which
+    /// must differ from it in its current densities alone (same mesh,
+    /// order, laws and applied field): one linear solve with the exact
+    /// tangent here (`source_response`), for a solution whose problem did
+    /// not ask for it in `current_changes`.
+    pub fn potential_after_current_change(&self, changed: &Problem) -> Result<Vec<f64>, SolveError> {
+        let base = &self.problem;
+        let change: Vec<f64> = changed.current_density.iter().zip(&base.current_density).map(|(c, b)| c - b).collect();
+        let delta = crate::source_response::response_afresh(base, &self.reduced, &change)?;
+        Ok(self.reduced.iter().zip(&delta).map(|(a, d)| a + d).collect())
     }
 }
 
@@ -84,7 +121,9 @@ pub fn solve_on<'m>(problem: &Problem<'m>, structure: Option<System>, progress: 
         Some(s) if s.fits(problem.mesh, problem.order) => s,
         _ => System::new(problem.mesh, problem.order)?,
     };
-    let (reduced, mut report) = newton_solve(problem, &mut system, progress)?;
+    let mut end = newton_solve(problem, &mut system, progress)?;
+    let responses = crate::source_response::responses(problem, &mut system, &mut end);
+    let (reduced, mut report) = (end.a, end.report);
     report.seconds_pattern = system.seconds_built;
     let affine_energy = driven_by_remanence_alone(problem)
         .then(|| system.affine_energy_terms(problem, &reduced))
@@ -95,6 +134,7 @@ pub fn solve_on<'m>(problem: &Problem<'m>, structure: Option<System>, progress: 
         elements: system.elements,
         reduced,
         report,
+        responses,
         affine_energy,
         locator,
         air: Law::air(),

@@ -267,7 +267,7 @@ fn to_whole(model: &Model, v: [f64; 2], torque: f64, about: [f64; 2]) -> ([f64; 
 fn flux_results(model: &Model, sol: &Solution, depth: f64, values: &mut BTreeMap<String, f64>) -> BTreeMap<String, FluxResult> {
     let mut out = BTreeMap::new();
     let has_magnets = model.parts.iter().any(|p| matches!(p.material.material, Material::Magnet(_)));
-    for f in &model.fluxes {
+    for (k, f) in model.fluxes.iter().enumerate() {
         let r = match f {
             FluxSpec::Line { from, to, .. } => FluxResult {
                 wb: flux::line_flux(sol, *from, *to).unwrap_or(f64::NAN) * depth,
@@ -281,7 +281,7 @@ fn flux_results(model: &Model, sol: &Solution, depth: f64, values: &mut BTreeMap
                 let current = ampere_turns / turns;
                 let inductance = (current > 0.0 && !has_magnets && sol.problem.applied_field == [0.0, 0.0]).then(|| linkage / current);
                 let incremental = (current > 0.0)
-                    .then(|| incremental_inductance(sol, parts, *turns, linkage / depth, current))
+                    .then(|| incremental_inductance(sol, k, parts, *turns, linkage / depth, current))
                     .flatten()
                     .map(|l| l * depth);
                 FluxResult {
@@ -441,23 +441,56 @@ fn modelling_warnings(model: &Model, sol: &Solution) -> Vec<String> {
 /// How far below the asked smallest angle the mesh may fall unremarked, degrees.
 const MIN_ANGLE_SLACK: f64 = 0.5;
 
-/// Relative current step of the perturbation solve.
-const CURRENT_STEP: f64 = 1e-3;
-
-/// d(linkage)/dI per metre of depth: re-solve with the winding's currents
-/// raised by CURRENT_STEP (for a linear study without magnets this equals
-/// the apparent inductance).
-fn incremental_inductance(sol: &Solution, parts: &[(usize, f64)], turns: f64, linkage: f64, current: f64) -> Option<f64> {
-    if !sol.problem.is_nonlinear() && !sol.problem.laws.iter().any(|l| matches!(l, solver::Law::Magnet { .. })) {
+/// d(linkage)/dI per metre of depth at the working point: the linkage's
+/// change along the field's first-order response to the winding's current
+/// (`solver::source_response`: a linear solve with the exact tangent, made
+/// at the end of the solve when `winding_current_changes` asked for it;
+/// for a linear study without magnets this equals the apparent inductance).
+fn incremental_inductance(sol: &Solution, flux: usize, parts: &[(usize, f64)], turns: f64, linkage: f64, current: f64) -> Option<f64> {
+    if !needs_response(&sol.problem) {
         return Some(linkage / current);
     }
-    let mut p = sol.problem.clone();
-    for &(i, _) in parts {
-        p.current_density[i] *= 1.0 + CURRENT_STEP;
-    }
-    let perturbed = solver::solve(&p, &|_, _| {}).ok()?;
-    let l2 = flux::winding_linkage(&perturbed, parts, turns);
-    Some((l2 - linkage) / (CURRENT_STEP * current))
+    // The response is linear in the change: the winding's own current is as good a step as any.
+    let after: Vec<f64> = match sol.responses.get(flux).filter(|r| !r.is_empty()) {
+        Some(delta) => sol.reduced.iter().zip(delta).map(|(a, d)| a + d).collect(),
+        None => {
+            let mut doubled = sol.problem.clone();
+            for &(i, _) in parts {
+                doubled.current_density[i] *= 2.0;
+            }
+            sol.potential_after_current_change(&doubled).ok()?
+        }
+    };
+    let l2 = flux::winding_linkage(&sol.with_potential(after), parts, turns);
+    Some((l2 - linkage) / current)
+}
+
+/// Whether a winding's incremental inductance differs from its apparent one
+/// and so needs the field's response (saturating steel or magnets).
+fn needs_response(problem: &solver::Problem) -> bool {
+    problem.is_nonlinear() || problem.laws.iter().any(|l| matches!(l, solver::Law::Magnet { .. }))
+}
+
+/// Per flux of the model, in order, the change of current density whose
+/// response gives its winding's incremental inductance (the winding's own
+/// current density once more), for the solve to make with its last tangent;
+/// empty where none is needed.
+pub fn winding_current_changes(model: &Model, problem: &solver::Problem) -> Vec<Vec<f64>> {
+    let wanted = needs_response(problem);
+    model
+        .fluxes
+        .iter()
+        .map(|f| match f {
+            FluxSpec::Winding { parts, .. } if wanted => {
+                let mut change = vec![0.0; problem.current_density.len()];
+                for &(i, _) in parts {
+                    change[i] = problem.current_density[i];
+                }
+                change
+            }
+            _ => Vec::new(),
+        })
+        .collect()
 }
 
 fn part_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f64>) -> BTreeMap<String, PartResult> {

@@ -86,6 +86,7 @@ pub struct Solved<'m> {
 pub fn solve_from<'m>(model: &Model, mesh: &'m mesher::Mesh, guess: FirstGuess, progress: &(dyn Fn(Stage) + Sync)) -> Result<Solved<'m>, StudyError> {
     let mut problem = lower::problem(model, mesh)?;
     problem.initial = guess.field;
+    problem.current_changes = crate::post::winding_current_changes(model, &problem);
     progress(Stage::Meshed {
         corners: mesh.n_nodes(),
         triangles: mesh.triangles.len(),

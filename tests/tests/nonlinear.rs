@@ -51,6 +51,52 @@ fn toroidal_core_flux_matches_amperes_law() {
 }
 
 #[test]
+fn the_cores_differential_flux_follows_amperes_law() {
+    // Source: Ampere's law (as the test above): the core flux per unit depth is the integral of
+    // B(H(r)) dr with H = N I / (2 pi r), so d(flux)/d(NI) is the integral of
+    // mu_d(H(r)) / (2 pi r) dr, mu_d = dB/dH of the law (central differences of the reference at
+    // 1e-4 of NI, whose own error is far below the tolerance). The solver's response to the
+    // wire's current (a linear solve with the converged tangent) gives it, from the start and
+    // from the unsaturated range into deep saturation (mu_d falling a thousandfold), within
+    // 0.5 %; both ways of making it (at the solve's end with Newton's last factor, and afresh
+    // from the solution) agree to 1e-8.
+    let (rc, r1, r2) = (0.003, 0.01, 0.02);
+    let law = Law::Saturating(Arc::new(BhCurve::new(&arctan_saturation_table()).unwrap()));
+    let circle = |radius: f64| Shape::Circle { center: [0.0, 0.0], radius };
+    let s = spec(
+        Symmetry::Planar,
+        vec![(circle(r2), 0.0008), (circle(r1), 0.0015), (circle(rc), 0.001)],
+        vec![],
+        OuterBoundary::Open,
+    );
+    let m = mesh(&s);
+    for ni in [10.0, 300.0, 3000.0] {
+        let j = ni / m.part_areas_curved(3)[2];
+        let mut problem = solver::Problem::new(&m, vec![law.clone(), Law::air(), Law::air()], vec![0.0, 0.0, j]);
+        problem.current_changes = vec![vec![0.0, 0.0, j]];
+        let sol = solver::solve(&problem, &|_, _| {}).expect("the core solves");
+        let flux = |reduced: Vec<f64>| solver::post::flux::line_flux(&sol.with_potential(reduced), [r1, 0.0], [r2, 0.0]).unwrap();
+        let at_end: Vec<f64> = sol.reduced.iter().zip(&sol.responses[0]).map(|(a, d)| a + d).collect();
+        let mut doubled = problem.clone();
+        doubled.current_density[2] *= 2.0;
+        let afresh = sol.potential_after_current_change(&doubled).expect("the response solves");
+        let base = flux(sol.reduced.clone());
+        let (slope, slope_afresh) = ((flux(at_end) - base) / ni, (flux(afresh) - base) / ni);
+        let h = 1e-4 * ni;
+        let exact = (toroidal_core_flux(arctan_saturation_b, ni + h, r1, r2) - toroidal_core_flux(arctan_saturation_b, ni - h, r1, r2)) / (2.0 * h);
+        eprintln!("NI {ni}: d(flux)/d(NI) {slope} (afresh {slope_afresh}), Ampere {exact}");
+        record(
+            "saturating core: differential flux d(flux)/d(NI)",
+            "Ampere's law",
+            0.005,
+            rel(slope.abs(), exact),
+        );
+        assert!(rel(slope.abs(), exact) < 0.005, "NI {ni}: {slope} vs {exact}");
+        assert!(rel(slope, slope_afresh) < 1e-8, "NI {ni}: at the end {slope}, afresh {slope_afresh}");
+    }
+}
+
+#[test]
 fn straight_line_table_equals_the_linear_material() {
     // Source: identity: a B-H table on a straight line through the origin is the linear law.
     let mu = 500.0;
@@ -192,6 +238,72 @@ fn saturation_lowers_the_incremental_inductance_below_the_apparent() {
     assert!(rel(inc, app) < 0.05, "unsaturated: apparent {app} H, incremental {inc} H");
 }
 
+/// A winding beside a ring magnet (a user grade on its recoil line, or the same body as a plain
+/// linear material of its recoil permeability), with the winding's linkage.
+fn winding_beside_ring(ring_material: &str) -> String {
+    let magnetization = if ring_material == "ring-grade" { "magnetization = \"+z\"" } else { "" };
+    format!(
+        r#"
+[study]
+geometry = "axisymmetric"
+unit = "mm"
+
+[materials.ring-grade]
+br = 1.2
+mur = 1.05
+
+[materials.ring-body]
+mur = 1.05
+
+[[part]]
+name = "ring"
+material = "{ring_material}"
+{magnetization}
+rect = {{ from = [4, 0], to = [10, 5] }}
+
+[[part]]
+name = "winding"
+material = "copper"
+current = "800 A"
+rect = {{ from = [4, 7], to = [10, 15] }}
+
+[[flux]]
+name = "linkage"
+winding = "winding"
+turns = 200
+"#
+    )
+}
+
+#[test]
+fn a_magnets_field_leaves_a_linear_windings_incremental_inductance_alone() {
+    // Source: superposition (linear media): with the magnet on its straight recoil line the
+    // linkage is the magnet's share plus L I, L that of the winding with the magnet's body as a
+    // plain material of the recoil permeability; so d(linkage)/dI, taken from the field's
+    // response on the tangent, equals that body's apparent inductance, here within the sum of
+    // the two values' estimated errors (each value carries its own mesh's error).
+    let magnet = solve_case_text(&winding_beside_ring("ring-grade"), &[]);
+    let body = solve_case_text(&winding_beside_ring("ring-body"), &[]);
+    let inc = magnet.values["flux.linkage.incremental_inductance"];
+    let app = body.values["flux.linkage.inductance"];
+    let within = magnet.errors["flux.linkage.incremental_inductance"] + body.errors["flux.linkage.inductance"];
+    eprintln!("incremental {inc} H beside the magnet, apparent {app} H without it, within {within} H");
+    record_estimated(
+        "winding beside a magnet: incremental = apparent without it",
+        "superposition (linear media)",
+        0.001,
+        rel(inc, app),
+        within / app,
+    );
+    assert!((inc - app).abs() <= within, "{inc} H vs {app} H (within {within} H)");
+    // Premise: the magnet's own share of the linkage (800 A-turns over 200 turns: 4 A) is not small.
+    let own = magnet.values["flux.linkage"] - app * 4.0;
+    assert!(
+        own.abs() > 0.2 * (app * 4.0).abs(),
+        "the magnet's share of the linkage, {own} Wb, should not be small"
+    );
+}
+
 /// A disk magnet under a thin steel plate `gap` mm above it (built-in low-carbon steel, which
 /// saturates in it), with the pull on the plate.
 fn magnet_under_thin_plate() -> String {
@@ -256,9 +368,11 @@ fn pull_on_saturating_steel_is_the_coenergy_derivative() {
 #[test]
 fn incremental_inductance_is_the_slope_of_the_linkage() {
     // Source: definition: the incremental inductance is d(linkage)/dI at the working point;
-    // reported from a perturbation solve on the converged tangent, checked here against central
-    // differences of the linkage from two full nonlinear solves 1 % of the current apart, at a
-    // short stroke (saturated) and a long one; within 1 %.
+    // reported from the field's response on the converged tangent (solver::source_response),
+    // checked here against central differences of the linkage from two full nonlinear solves 1 %
+    // of the current apart, at a short stroke (saturated) and a long one; within 0.01 %, ten
+    // times the central difference's own truncation at that step (1.6e-5 measured at 0.5 mm).
+    // The forward difference at 1e-3 of the current it replaced was 4.3e-4 off at 0.5 mm.
     let case = PLUNGER
         .replace("current = \"1500 A\"", "current = \"ni A\"")
         .replace("[params]\nstroke = 2", "[params]\nstroke = 2\nni = 1500");
@@ -275,10 +389,10 @@ fn incremental_inductance_is_the_slope_of_the_linkage() {
         record(
             "incremental inductance = slope of linkage",
             "definition (central differences)",
-            0.01,
+            1e-4,
             rel(reported, slope),
         );
-        assert!(rel(reported, slope) < 0.01, "stroke {stroke}: {reported} vs {slope}");
+        assert!(rel(reported, slope) < 1e-4, "stroke {stroke}: {reported} vs {slope}");
     }
 }
 
