@@ -195,9 +195,9 @@ impl PointOp {
         self.lam = lam;
         match symmetry {
             Symmetry::Planar => {
-                for i in 0..len {
-                    self.g[0][i] = dn[i][1];
-                    self.g[1][i] = -dn[i][0];
+                for (i, d) in dn.iter().enumerate().take(len) {
+                    self.g[0][i] = d[1];
+                    self.g[1][i] = -d[0];
                 }
                 self.weight = w * area;
             }
@@ -207,10 +207,10 @@ impl PointOp {
                     Placement::Physical => 1.0,
                     Placement::Exterior { center, radius } => ((p[0] - center[0]).powi(2) + (p[1] - center[1]).powi(2)) / (radius * radius),
                 };
-                for i in 0..len {
-                    self.g[0][i] = -dn[i][1];
+                for (i, d) in dn.iter().enumerate().take(len) {
+                    self.g[0][i] = -d[1];
                     // On the axis A vanishes, so A/r tends to dA/dr there.
-                    self.g[1][i] = if r > 0.0 { dn[i][0] + self.n[i] / r } else { 2.0 * dn[i][0] };
+                    self.g[1][i] = if r > 0.0 { d[0] + self.n[i] / r } else { 2.0 * d[0] };
                 }
                 self.weight = w * area * 2.0 * std::f64::consts::PI * r * kelvin;
             }
