@@ -79,6 +79,10 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
         if let Some(l) = fl.inductance_h {
             s += &format!(", inductance {}", eng_pm(l, err(format!("flux.{name}.inductance")), "H"));
         }
+        if let Some(l) = fl.distinct_incremental_inductance() {
+            let key = format!("flux.{name}.incremental_inductance");
+            s += &format!(", incremental inductance {}", eng_pm(l, err(key), "H"));
+        }
         s.push('\n');
     }
     for (name, p) in &r.probes {

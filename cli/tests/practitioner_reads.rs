@@ -176,3 +176,40 @@ fn the_reach_is_measured_from_the_point_the_case_gives() {
     assert!(report.contains("from (0, 10) mm, the case's reach_from"), "{report}");
     let _ = std::fs::remove_dir_all(&d);
 }
+
+/// A winding in saturating steel: the summary and the report give its
+/// incremental inductance d(linkage)/dI beside the apparent one, each with
+/// its error (they differ: the steel's differential permeability falls
+/// below its secant one); a winding in air alone, whose two are one number,
+/// shows it once.
+#[test]
+fn a_saturating_winding_shows_both_inductances() {
+    let d = dir("inductances");
+    let case = d.join("case.toml");
+    let core = "[study]\ngeometry = \"axisymmetric\"\nunit = \"mm\"\n\
+        [[part]]\nname = \"core\"\nmaterial = \"DC01\"\nrect = { from = [0, -10], to = [4, 10] }\n\
+        [[part]]\nname = \"winding\"\nmaterial = \"copper\"\ncurrent = \"3000 A\"\nrect = { from = [5, -8], to = [9, 8] }\n\
+        [[flux]]\nname = \"linkage\"\nwinding = \"winding\"\nturns = 300\n";
+    for (text, distinct) in [(core.to_string(), true), (core.replace("material = \"DC01\"", "material = \"copper\""), false)] {
+        std::fs::write(&case, text).unwrap();
+        let out = d.join(if distinct { "steel" } else { "air" });
+        let (code, stdout, err) = run(&["solve", case.to_str().unwrap(), "-o", out.to_str().unwrap(), "--quiet"]);
+        assert_eq!(code, 0, "{err}");
+        let line = stdout.lines().find(|l| l.contains("flux linkage:")).unwrap_or_else(|| panic!("{stdout}"));
+        let report = std::fs::read_to_string(out.join("report.md")).unwrap();
+        let row = report.lines().find(|l| l.starts_with("| linkage |")).unwrap_or_else(|| panic!("{report}"));
+        assert!(
+            line.contains(", inductance ") && report.contains("| incremental inductance |"),
+            "{line}\n{report}"
+        );
+        eprintln!("{line}\n{row}");
+        if distinct {
+            assert!(line.contains(", incremental inductance ") && line.matches('\u{b1}').count() == 3, "{line}");
+            assert!(row.matches('\u{b1}').count() == 3 && !row.ends_with("| - |"), "{row}");
+        } else {
+            assert!(!line.contains("incremental"), "{line}");
+            assert!(row.ends_with("| - |"), "{row}");
+        }
+    }
+    let _ = std::fs::remove_dir_all(&d);
+}

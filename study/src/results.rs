@@ -163,9 +163,20 @@ pub struct FluxResult {
     /// Apparent inductance: linkage over current (no magnets, no applied field).
     #[cfg_attr(feature = "serde", serde(skip_serializing_if = "Option::is_none"))]
     pub inductance_h: Option<f64>,
-    /// Incremental inductance d(linkage)/dI, by a perturbation solve.
+    /// Incremental inductance d(linkage)/dI at the working point, from the
+    /// field's first-order response on the converged tangent.
     #[cfg_attr(feature = "serde", serde(skip_serializing_if = "Option::is_none"))]
     pub incremental_inductance_h: Option<f64>,
+}
+
+impl FluxResult {
+    /// The incremental inductance where it says something the apparent one
+    /// does not: with saturating steel or magnets (without them the two are
+    /// one number, linkage over current).
+    pub fn distinct_incremental_inductance(&self) -> Option<f64> {
+        self.incremental_inductance_h
+            .filter(|&l| self.inductance_h.is_none_or(|a| (a - l).abs() > 1e-9 * a.abs()))
+    }
 }
 
 /// Energy of the whole field.

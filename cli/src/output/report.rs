@@ -87,14 +87,18 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
         s.push('\n');
     }
     if !r.flux.is_empty() {
-        let _ = writeln!(s, "## Flux\n\n| name | flux or linkage | inductance |\n|---|---|---|");
+        let _ = writeln!(
+            s,
+            "## Flux\n\n| name | flux or linkage | inductance | incremental inductance |\n|---|---|---|---|"
+        );
+        let henry = |l: Option<f64>, key: String| l.map_or("-".into(), |l| eng_pm(l, r.errors.get(&key).copied(), "H"));
         for (n, fl) in &r.flux {
             let _ = writeln!(
                 s,
-                "| {n} | {} | {} |",
+                "| {n} | {} | {} | {} |",
                 eng_pm(fl.wb, r.errors.get(&format!("flux.{n}")).copied(), "Wb"),
-                fl.inductance_h
-                    .map_or("-".into(), |l| eng_pm(l, r.errors.get(&format!("flux.{n}.inductance")).copied(), "H"))
+                henry(fl.inductance_h, format!("flux.{n}.inductance")),
+                henry(fl.distinct_incremental_inductance(), format!("flux.{n}.incremental_inductance")),
             );
         }
         s.push('\n');
