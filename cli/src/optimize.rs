@@ -43,6 +43,14 @@ fn evaluate(loaded: &Loaded, base: &Variant, spec: &Optimize, x: &[f64], limits:
     // pay for at each of its last steps: 6 s each in cheapest-holding-magnet).
     // The constraints are met within the evaluation's error below.
     model.expects.clear();
+    // Nor does an evaluation make the stray field's values unless the
+    // search reads one (they refine nothing: the rest is the same).
+    model.stray_field = spec
+        .objective
+        .names
+        .iter()
+        .chain(spec.constraints.iter().map(|c| &c.value))
+        .any(|n| study::model::is_stray_value(n));
     let results = study::run::run(&model, &|_| {}).map_err(|e| match e.origin {
         Some(_) => loaded.study_error(&resolved.spans, &e),
         None => Failure::Input(format!("error: {}: at {}: {e}\n", loaded.path.display(), at())),

@@ -58,7 +58,10 @@ fn evaluate(ctx: &Context, x: f64, need: Need, kept: &Mutex<Option<Kept>>) -> Re
     let (results, side_only) = match scan_limits(need, loaded, &at, limits)? {
         Some(scan) => {
             let resolved = run::resolve(loaded, &at.params, &scan)?;
-            let results = study::run::run(&resolved.model, &|_| {}).map_err(|e| match e.origin {
+            // The scan reads one value: the stray field's only when it is that.
+            let mut model = resolved.model.clone();
+            model.stray_field = study::model::is_stray_value(&spec.value);
+            let results = study::run::run(&model, &|_| {}).map_err(|e| match e.origin {
                 Some(_) => loaded.study_error(&resolved.spans, &e),
                 None => Failure::Input(format!("error: {}: at {} = {x}: {e}\n", loaded.path.display(), spec.vary)),
             })?;

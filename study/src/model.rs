@@ -45,6 +45,13 @@ pub struct Model {
     /// The point the reach is measured from (m); None: the centre of the
     /// box around every part.
     pub reach_from: Option<[f64; 2]>,
+    /// Whether the stray field's values are made (the reach along the
+    /// axis, the dipole moment, the implant distances and the air-transport
+    /// screen): a search's evaluation whose objective and constraints read
+    /// none of them leaves them out (on cheapest-holding-magnet their rays
+    /// and extractions were a fifth of each evaluation). They drive no
+    /// refinement, so the other values are the same either way.
+    pub stray_field: bool,
     /// Parameter values of this variant.
     pub params: BTreeMap<String, f64>,
     /// Design-check failures that `check` lets pass (`"demagnetization"`).
@@ -299,6 +306,11 @@ pub struct OutputFlags {
     pub chart_log: Option<bool>,
     /// |B| range of the charts of flux density, T.
     pub chart_range: Option<(f64, f64)>,
+}
+
+/// Whether a value name is one of the stray field's (`Model::stray_field`).
+pub fn is_stray_value(name: &str) -> bool {
+    name.starts_with("reach.") || name.starts_with("stray.")
 }
 
 impl Model {

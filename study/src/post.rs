@@ -65,7 +65,10 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
     let coils = coil_results(model, &mut values);
     let mut warnings = Vec::new();
     let magnets = crate::checks::magnet_results(model, sol, &mut values, &mut warnings);
-    let stray = crate::checks::stray_results(model, sol, &mut values);
+    let stray = match model.stray_field {
+        true => crate::checks::stray_results(model, sol, &mut values),
+        false => StrayResult::default(),
+    };
     for (name, f) in &forces {
         if f.unreliable {
             warnings.push(format!(

@@ -52,3 +52,27 @@ fn an_accuracy_given_beside_the_case_sizes_the_model_as_the_key_does() {
     let off = resolve(&text, Some(None));
     assert_eq!(off.accuracy, None);
 }
+
+/// A search's evaluation that reads no stray-field value leaves those
+/// values out (`Model::stray_field`): they refine nothing, so every other
+/// value and its error are the same to the bit, and the stray ones (the
+/// reach, the moment, the implant distances) are absent rather than wrong.
+#[test]
+fn leaving_out_the_stray_field_changes_no_other_value() {
+    let case = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/pot-magnet.toml");
+    let text = std::fs::read_to_string(&case).unwrap();
+    let doc = lodestone::case::document::parse(&text).unwrap();
+    let params = lodestone::case::resolve::params(&doc, &Default::default()).unwrap();
+    let (mut model, _) = lodestone::case::resolve::resolve(&doc, &params, case.parent().unwrap()).unwrap();
+    let full = study::run::run(&model, &|_| {}).unwrap();
+    model.stray_field = false;
+    let lean = study::run::run(&model, &|_| {}).unwrap();
+    let stray: Vec<&String> = full.values.keys().filter(|k| study::model::is_stray_value(k)).collect();
+    assert!(stray.len() >= 5, "the pot magnet should report its stray field: {stray:?}");
+    assert!(lean.values.keys().all(|k| !study::model::is_stray_value(k)), "{:?}", lean.values.keys());
+    for (k, v) in &lean.values {
+        assert_eq!(v.to_bits(), full.values[k].to_bits(), "{k}");
+        assert_eq!(lean.errors.get(k).map(|e| e.to_bits()), full.errors.get(k).map(|e| e.to_bits()), "{k}");
+    }
+    assert_eq!(lean.values.len() + stray.len(), full.values.len());
+}

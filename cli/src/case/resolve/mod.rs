@@ -227,6 +227,7 @@ fn resolve_at(
             None => 5e-3,
         },
         reach_from: study.get("reach_from").map(|p| ctx.point(p, "study.reach_from")).transpose()?,
+        stray_field: true,
         params: params.clone(),
         allow: study_table::allowed(&study)?,
         accuracy,
