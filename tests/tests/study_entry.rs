@@ -3,13 +3,19 @@
 
 use std::path::Path;
 
-#[test]
-fn a_study_run_without_files_gives_the_command_lines_values() {
-    let case = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/pot-magnet.toml");
+/// An example case's text and its model, resolved as the command line does.
+fn example_model(name: &str) -> (String, study::model::Model) {
+    let case = Path::new(env!("CARGO_MANIFEST_DIR")).join(format!("../cases/{name}.toml"));
     let text = std::fs::read_to_string(&case).unwrap();
     let doc = lodestone::case::document::parse(&text).unwrap();
     let params = lodestone::case::resolve::params(&doc, &Default::default()).unwrap();
     let (model, _) = lodestone::case::resolve::resolve(&doc, &params, case.parent().unwrap()).unwrap();
+    (text, model)
+}
+
+#[test]
+fn a_study_run_without_files_gives_the_command_lines_values() {
+    let (text, model) = example_model("pot-magnet");
     let stages = std::sync::Mutex::new(Vec::new());
     let direct = study::run::run(&model, &|s| stages.lock().unwrap().push(s)).unwrap();
     let through_cli = validation::solve_case_text(&text, &[]);
@@ -59,11 +65,7 @@ fn an_accuracy_given_beside_the_case_sizes_the_model_as_the_key_does() {
 /// reach, the moment, the implant distances) are absent rather than wrong.
 #[test]
 fn leaving_out_the_stray_field_changes_no_other_value() {
-    let case = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/pot-magnet.toml");
-    let text = std::fs::read_to_string(&case).unwrap();
-    let doc = lodestone::case::document::parse(&text).unwrap();
-    let params = lodestone::case::resolve::params(&doc, &Default::default()).unwrap();
-    let (mut model, _) = lodestone::case::resolve::resolve(&doc, &params, case.parent().unwrap()).unwrap();
+    let (_, mut model) = example_model("pot-magnet");
     let full = study::run::run(&model, &|_| {}).unwrap();
     model.stray_field = false;
     let lean = study::run::run(&model, &|_| {}).unwrap();
