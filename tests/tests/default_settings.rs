@@ -497,6 +497,42 @@ fn solenoid_energy_is_half_its_linkage_times_its_current_at_default_settings() {
     );
 }
 
+/// The same solenoid beside a rigid magnet (Br 1.2 T, recoil permeability
+/// one, a disk on the axis past the winding's end): the magnet adds its own
+/// linkage, but with a permeability of one it leaves the winding's own
+/// field as in air, so by superposition d(linkage)/dI is still the
+/// winding's exact inductance (`thick_coil_inductance`). A magnet in the
+/// study sends the incremental inductance through the field's response on
+/// the tangent (`solver::source_response`), which this holds, with its
+/// estimate, to the exact value.
+#[test]
+fn incremental_inductance_beside_a_rigid_magnet_at_default_settings() {
+    let (ampere_turns, turns) = (1000.0, 100.0);
+    let text = format!(
+        "[study]\ntitle = \"solenoid and magnet\"\ngeometry = \"axisymmetric\"\nunit = \"mm\"\n{OUTPUT}\
+         [materials.rigid]\nbr = \"1.2 T\"\nmur = 1\ndescription = \"rigid magnet for superposition\"\n\
+         [[part]]\nname = \"coil\"\nmaterial = \"copper\"\ncurrent = \"{ampere_turns} A\"\nrect = {{ from = [20, -50], to = [22, 50] }}\n\
+         [[part]]\nname = \"magnet\"\nmaterial = \"rigid\"\nmagnetization = \"+z\"\nrect = {{ from = [0, 60], to = [10, 70] }}\n\
+         [[flux]]\nname = \"linkage\"\nwinding = \"coil\"\nturns = {turns}\n"
+    );
+    let r = solve_case_text(&text, &[]);
+    let inductance = validation::reference::thick_coil_inductance(0.02, 0.022, 0.1, turns);
+    check_at_default(
+        "incremental inductance beside a rigid magnet at default settings, within its error",
+        "superposition; ring mutual inductance, Bessel form (Smythe 1968), integrated over the winding",
+        &r,
+        "flux.linkage.incremental_inductance",
+        inductance,
+        inductance,
+    );
+    // Premise: the magnet does add to the linkage, so the linkage alone is not L I.
+    let own = r.values["flux.linkage"] - inductance * ampere_turns / turns;
+    assert!(
+        own.abs() > 0.01 * inductance * ampere_turns / turns,
+        "the magnet's share of the linkage: {own} Wb"
+    );
+}
+
 /// A saturating study: a ring core (10 to 20 mm radius) of a smooth
 /// saturating law around a straight conductor (3 mm radius), planar, 1 m
 /// deep, at ampere-turns from the linear range to deep saturation. By
