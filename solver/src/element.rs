@@ -107,6 +107,15 @@ fn affine_point(x: &[[f64; 2]; 3], lam: [f64; 3]) -> [f64; 2] {
 /// `n` and `dn` (written out without array maps: this runs at every
 /// quadrature point of every assembly; entries past the order's nodes are
 /// left as they are, zero).
+/// The shape functions' values at `lam` alone (zero past the element's
+/// nodes): they depend on the reference point only, whatever the element's
+/// shape, so a table of them serves every element (`prolong`).
+pub(crate) fn shape_values(order: ElementOrder, lam: [f64; 3]) -> [f64; MAX_NODES] {
+    let (mut n, mut dn) = ([0.0; MAX_NODES], [[0.0; 2]; MAX_NODES]);
+    shape(order, lam, [[0.0; 2]; 3], &mut n, &mut dn);
+    n
+}
+
 fn shape(order: ElementOrder, lam: [f64; 3], grad_lam: [[f64; 2]; 3], n: &mut [f64; MAX_NODES], dn: &mut [[f64; 2]; MAX_NODES]) {
     match order {
         ElementOrder::Linear => {

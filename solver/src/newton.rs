@@ -138,10 +138,11 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
         });
     }
     // The symbolic analysis needs only the pattern: it runs on one core
-    // while the first assembly runs on the other.
+    // while the first assembly runs on the other (and, from a warm start,
+    // the residual at zero: the symbolic analysis is the longer of the two).
     let pattern = system.matrix.pattern().clone();
     let elimination = system.elimination;
-    let ((analysis, seconds_symbolic), (mut now, seconds_assembly)) = rayon::join(
+    let ((analysis, seconds_symbolic), (mut now, r0, seconds_assembly)) = rayon::join(
         || {
             let t = Instant::now();
             (CholeskySolver::analyse(&pattern, elimination), t.elapsed().as_secs_f64())
@@ -151,21 +152,20 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
             let affine = system.affine_residual(problem, &a);
             let first = if warm { kind(1.0) } else { Tangent::ColdStart };
             let residual = system.assemble_with(problem, &a, first, affine.clone());
-            (Iterate { a, residual, affine }, t.elapsed().as_secs_f64())
+            // Residuals stay relative to the one at zero potential, so a warm
+            // start is held to the same tolerance as a cold one.
+            let r0 = if warm {
+                let zero = vec![0.0; system.dof_of_node.len()];
+                norm(&system.residual(problem, &zero))
+            } else {
+                norm(&residual)
+            };
+            (Iterate { a, residual, affine }, r0.max(f64::MIN_POSITIVE), t.elapsed().as_secs_f64())
         },
     );
     drop(pattern);
     report.seconds_symbolic = seconds_symbolic;
     report.seconds_assembly += seconds_assembly;
-    // Residuals stay relative to the one at zero potential, so a warm start
-    // is held to the same tolerance as a cold one.
-    let r0 = if warm {
-        let zero = vec![0.0; system.dof_of_node.len()];
-        let r = system.residual(problem, &zero);
-        norm(&r).max(f64::MIN_POSITIVE)
-    } else {
-        norm(&now.residual).max(f64::MIN_POSITIVE)
-    };
     if warm {
         report.residual_history[0] = norm(&now.residual) / r0;
     }

@@ -46,6 +46,10 @@ pub struct PointField {
     pub part: Option<usize>,
 }
 
+/// A barycentric coordinate above this puts a point well inside its
+/// element, clear of every edge and of rounding (`b_and_potential_near`).
+const HINT_INTERIOR: f64 = 1e-9;
+
 impl Solution<'_> {
     /// The same solution over another copy of its mesh (which must be a
     /// clone of it): for a caller that must own the mesh beside the
@@ -264,7 +268,25 @@ impl<'m> Solution<'m> {
     /// B and the total potential at a physical point from one search, or
     /// None outside: for pictures that sample both on a grid.
     pub fn b_and_potential_at(&self, p: [f64; 2]) -> Option<([f64; 2], f64)> {
-        let (e, lam) = self.element_at(p)?;
+        self.b_and_potential_near(p, &mut None)
+    }
+
+    /// As `b_and_potential_at`, first trying element `hint` (the previous
+    /// sample's, on a picture's row): a point well inside it (every
+    /// barycentric above `HINT_INTERIOR`) lies in no other element, so the
+    /// bucket search and its ranking of edge points are not needed. Sets
+    /// `hint` to the element found. A picture's 64 000 samples spent most
+    /// of their time in the search.
+    pub fn b_and_potential_near(&self, p: [f64; 2], hint: &mut Option<usize>) -> Option<([f64; 2], f64)> {
+        let hinted = hint.and_then(|e| {
+            let lam = self.elements.geometry(e).barycentric(p);
+            lam.iter().all(|&l| l > HINT_INTERIOR).then_some((e, lam))
+        });
+        let (e, lam) = match hinted {
+            Some(found) => found,
+            None => self.element_at(p)?,
+        };
+        *hint = Some(e);
         let op = self.op_at(e, lam);
         let a = self.elements.gather(e, &self.reduced);
         Some((
