@@ -179,9 +179,12 @@ pub(super) fn accuracy(study: &Fields) -> Result<Option<f64>, Diagnostic> {
         _ => a.number("study.accuracy")?,
     };
     if !(FINEST_ACCURACY..=0.5).contains(&x) {
+        // In percent, as the key is written, rounded past the binary noise of x * 100.
+        let percent = |v: f64| (v * 100.0 * 1e12).round() / 1e12;
         return Err(bad(format!(
-            "study.accuracy: {x:e} is out of range; it must lie between {FINEST_ACCURACY:e} ({} %) and 0.5 (50 %)",
-            FINEST_ACCURACY * 100.0
+            "study.accuracy: {} % is out of range; it must lie between {} % and 50 %",
+            percent(x),
+            percent(FINEST_ACCURACY)
         )));
     }
     Ok(Some(x))
