@@ -103,10 +103,6 @@ fn affine_point(x: &[[f64; 2]; 3], lam: [f64; 3]) -> [f64; 2] {
     ]
 }
 
-/// Shape functions and their gradients at barycentric point `lam`, into
-/// `n` and `dn` (written out without array maps: this runs at every
-/// quadrature point of every assembly; entries past the order's nodes are
-/// left as they are, zero).
 /// The shape functions' values at `lam` alone (zero past the element's
 /// nodes): they depend on the reference point only, whatever the element's
 /// shape, so a table of them serves every element (`prolong`).
@@ -116,6 +112,10 @@ pub(crate) fn shape_values(order: ElementOrder, lam: [f64; 3]) -> [f64; MAX_NODE
     n
 }
 
+/// Shape functions and their gradients at barycentric point `lam`, into
+/// `n` and `dn` (written out without array maps: this runs at every
+/// quadrature point of every assembly; entries past the order's nodes are
+/// left as they are, zero).
 fn shape(order: ElementOrder, lam: [f64; 3], grad_lam: [[f64; 2]; 3], n: &mut [f64; MAX_NODES], dn: &mut [[f64; 2]; MAX_NODES]) {
     match order {
         ElementOrder::Linear => {

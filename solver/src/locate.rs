@@ -20,7 +20,7 @@ const INSIDE_TOLERANCE: f64 = 1e-9;
 /// lies this far beyond one of its straight edges (a hundredth of the
 /// triangle's height: far past any rounding, so the elements kept and
 /// their coordinates are those of the full test).
-const OUTSIDE_MARGIN: f64 = 1e-2;
+pub(crate) const OUTSIDE_MARGIN: f64 = 1e-2;
 
 impl Locator {
     /// The grid over the physical triangles.

@@ -279,7 +279,13 @@ impl<'m> Solution<'m> {
     /// of their time in the search.
     pub fn b_and_potential_near(&self, p: [f64; 2], hint: &mut Option<usize>) -> Option<([f64; 2], f64)> {
         let hinted = hint.and_then(|e| {
-            let lam = self.elements.geometry(e).barycentric(p);
+            // A curved element's coordinates come from Newton's method on its
+            // map, which is not asked about points far past it (as the locator).
+            let geometry = self.elements.geometry(e);
+            if geometry.is_curved() && geometry.clearly_outside(p, crate::locate::OUTSIDE_MARGIN) {
+                return None;
+            }
+            let lam = geometry.barycentric(p);
             lam.iter().all(|&l| l > HINT_INTERIOR).then_some((e, lam))
         });
         let (e, lam) = match hinted {
