@@ -2,7 +2,8 @@
 //! (`solver::post::extraction`), against closed forms: far more accurate
 //! than B read in the one element that holds the point, faster convergence
 //! on nested meshes, both components about the axis, and no extraction
-//! where the field is not harmonic.
+//! where the field is not harmonic. Also the pictures' point search along
+//! a row, against the plain search.
 
 use mesher::{OuterBoundary, Refinement, Symmetry};
 use solver::element::ElementOrder;
@@ -158,4 +159,41 @@ fn a_probe_on_a_steel_face_reads_the_air_side() {
     let mu0 = 4e-7 * std::f64::consts::PI;
     assert!(b > 1e-3, "no field at the face: {b} T");
     assert!((h * mu0 / b - 1.0).abs() < 1e-9, "|H| mu0 / |B| = {} at the face (1 in air)", h * mu0 / b);
+}
+
+/// A picture samples B and the potential along rows, each search starting
+/// from the previous sample's element (`Solution::b_and_potential_near`):
+/// over a grid crossing a round magnet (curved elements), a steel block,
+/// the air between and the domain's edge, every sample equals the plain
+/// search's to the bit, outside points included.
+#[test]
+fn the_row_search_from_the_last_element_finds_what_the_plain_search_finds() {
+    let parts = vec![
+        magnet(
+            mesher::Shape::Circle {
+                center: [0.0, 0.0],
+                radius: 0.005,
+            },
+            0.001,
+            [0.0, 1.2],
+        ),
+        linear(rect(0.008, -0.004, 0.016, 0.004), 0.001, 1000.0),
+    ];
+    let (checked, inside) = solve_nested(ElementOrder::Cubic, Symmetry::Planar, parts, vec![], 1, |sol| {
+        let (mut checked, mut inside) = (0, 0);
+        for j in 0..120 {
+            let mut hint = None;
+            for i in 0..160 {
+                // Steps of 0.37 mm, finer than the elements near the parts and coarser than far out.
+                let p = [-0.03 + 0.00037 * i as f64, 0.022 - 0.00037 * j as f64];
+                let hinted = sol.b_and_potential_near(p, &mut hint);
+                assert_eq!(hinted, sol.b_and_potential_at(p), "sample ({i}, {j}) at {p:?}");
+                checked += 1;
+                inside += usize::from(hinted.is_some());
+            }
+        }
+        (checked, inside)
+    })[0];
+    // Both kinds of sample were met: thousands inside, the rest past the domain's rim.
+    assert!(inside > checked / 4 && inside < checked, "{inside} of {checked} samples inside the mesh");
 }
