@@ -305,13 +305,16 @@ pub fn report(rows: &[Row], charts: &[(String, String, String)]) -> String {
     );
     s += &format!("|---|{}---|{}\n", "---|".repeat(params.len()), "---|".repeat(shown.len()));
     for r in rows {
-        let p: Vec<String> = r.swept.iter().map(|(_, v)| format!("{v}")).collect();
+        // Swept values to six significant digits (a log-spaced 0.4472135955
+        // reads 0.447214; sweep.csv keeps every digit).
+        let p: Vec<String> = r.swept.iter().map(|(_, v)| crate::output::engineering::significant_digits(*v, 6)).collect();
+        // Each value with its estimated error, as the summary shows it.
         let v: Vec<String> = shown
             .iter()
             .map(|n| {
-                r.values
-                    .get(*n)
-                    .map_or("-".into(), |x| crate::output::engineering::eng(*x, r.units.get(*n).map_or("", String::as_str)))
+                r.values.get(*n).map_or("-".into(), |x| {
+                    crate::output::engineering::eng_pm(*x, r.errors.get(*n).copied(), r.units.get(*n).map_or("", String::as_str))
+                })
             })
             .collect();
         s += &format!("| {} | {} | {} | {} |\n", r.index, p.join(" | "), r.converged, v.join(" | "));

@@ -24,10 +24,16 @@ pub fn eng(value: f64, unit: &str) -> String {
 
 /// Four significant digits, trailing zeros after the point dropped.
 fn significant(x: f64) -> String {
-    if x == 0.0 {
-        return "0".into();
+    significant_digits(x, 4)
+}
+
+/// `digits` significant digits (at most 12 decimals), trailing zeros after
+/// the point dropped.
+pub fn significant_digits(x: f64, digits: i32) -> String {
+    if x == 0.0 || !x.is_finite() {
+        return format!("{x}");
     }
-    let decimals = (3 - x.abs().log10().floor() as i32).clamp(0, 12) as usize;
+    let decimals = (digits - 1 - x.abs().log10().floor() as i32).clamp(0, 12) as usize;
     let s = format!("{x:.decimals$}");
     if s.contains('.') {
         s.trim_end_matches('0').trim_end_matches('.').to_string()
