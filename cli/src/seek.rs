@@ -165,13 +165,14 @@ pub fn solve(loaded: &Loaded, spec: &Seek, base: &Variant, folder: &OutputFolder
     outcome.files.push(("seek.json".into(), seek_json(spec, &found, &at.params, value, error)?));
     outcome.files.push(("seek.csv".into(), seek_csv(spec, &found).into_bytes()));
     outcome.files.push(("seek.svg".into(), seek_chart(spec, &found).into_bytes()));
+    // The answer to its uncertainty's second digit, as every value with its error is shown.
+    let answer = crate::output::engineering::plain_pm(found.x, Some(found.uncertainty), "");
     let section = format!(
-        "## Goal seek\n\n`{}` reaches {} at {} = {:.6} \u{b1} {:.2e} (the case's own units), found in {} evaluations by a scan (at a looser accuracy: it needs only the side of the target each point lies on) and Brent's method; the case above is solved there. Every evaluation is in seek.csv, the answer in seek.json.\n\n![goal seek](seek.svg)\n",
+        "## Goal seek\n\n`{}` reaches {} at {} = {} (the case's own units), found in {} evaluations by a scan (at a looser accuracy: it needs only the side of the target each point lies on) and Brent's method; the case above is solved there. Every evaluation is in seek.csv, the answer in seek.json.\n\n![goal seek](seek.svg)\n",
         spec.value,
         crate::output::engineering::eng(spec.target, spec.unit),
         spec.vary,
-        found.x,
-        found.uncertainty,
+        answer,
         found.evaluations.len()
     );
     crate::output::report::add_section(&mut outcome.files, &section);
@@ -180,10 +181,9 @@ pub fn solve(loaded: &Loaded, spec: &Seek, base: &Variant, folder: &OutputFolder
         .map_err(|e| Failure::Input(format!("error: {e}\n")))?;
     print!("{}", crate::summary::summary(&outcome, folder.path()));
     println!(
-        "  seek: {} = {:.6} ± {:.2e} gives {} = {} (target {}), {} evaluations",
+        "  seek: {} = {} gives {} = {} (target {}), {} evaluations",
         spec.vary,
-        found.x,
-        found.uncertainty,
+        answer,
         spec.value,
         value.map_or("-".into(), |v| crate::output::engineering::eng_pm(v, error, spec.unit)),
         crate::output::engineering::eng(spec.target, spec.unit),

@@ -76,6 +76,14 @@ fn the_smallest_cylinder_for_5_mt_at_100_mm_matches_the_closed_form() {
     );
     assert!(std::fs::read_to_string(out.join("seek.svg")).unwrap().contains("target 5 mT"), "no seek chart");
     assert!(text.contains("seek: d = "), "{text}");
+    // The answer with its uncertainty to the uncertainty's second digit, as
+    // every value with its error is shown (not "37.383036 ± 1.47e-3").
+    let line = text.lines().find(|l| l.contains("seek: d = ")).unwrap();
+    let answer = line.split("seek: d = ").nth(1).unwrap().split(" gives").next().unwrap();
+    let (x, e) = answer.split_once(" \u{b1} ").unwrap_or_else(|| panic!("no uncertainty: {line}"));
+    assert!(!e.contains('e'), "scientific notation: {line}");
+    let digits = |s: &str| s.split('.').nth(1).map_or(0, str::len);
+    assert_eq!(digits(x), digits(e), "answer and uncertainty to different places: {line}");
     let _ = std::fs::remove_dir_all(out.parent().unwrap());
 }
 
