@@ -30,7 +30,10 @@ fn significant(x: f64) -> String {
 /// `digits` significant digits (at most 12 decimals), trailing zeros after
 /// the point dropped.
 pub fn significant_digits(x: f64, digits: i32) -> String {
-    if x == 0.0 || !x.is_finite() {
+    if x == 0.0 {
+        return "0".into();
+    }
+    if !x.is_finite() {
         return format!("{x}");
     }
     let decimals = (digits - 1 - x.abs().log10().floor() as i32).clamp(0, 12) as usize;
