@@ -132,6 +132,15 @@ mod tests {
     /// Volumes as people write them: mm3 below a cubic centimetre, cm3
     /// below a litre.
     #[test]
+    fn significant_digits_drop_trailing_zeros_and_keep_zero_plain() {
+        assert_eq!(significant_digits(0.4472135955, 6), "0.447214");
+        assert_eq!(significant_digits(2.5, 6), "2.5");
+        assert_eq!(significant_digits(1234567.0, 6), "1234567");
+        assert_eq!(significant_digits(-0.0, 6), "0");
+        assert_eq!(eng(-0.0, "N"), "0 N");
+    }
+
+    #[test]
     fn volumes_take_cubed_prefixes() {
         assert_eq!(eng(1.5708e-6, "m3"), "1.571 cm3");
         assert_eq!(eng(2.175e-7, "m3"), "217.5 mm3");
