@@ -116,7 +116,7 @@ pub fn prefix_of(reference: f64, unit: &str) -> (i32, &'static str) {
 
 #[cfg(test)]
 mod tests {
-    use super::{eng, eng_pm, plain_pm};
+    use super::{eng, eng_pm, plain_pm, significant_digits};
 
     #[test]
     fn values_with_errors_show_the_errors_digits() {
