@@ -51,22 +51,29 @@ fn a_unit_given_to_set_gets_the_plain_number_hint() {
     let _ = std::fs::remove_dir_all(&d);
 }
 
+/// Solves the sweep `text` as case.toml in `d` into `d`/out: the output
+/// folder and its sweep-report.md.
+fn solved_sweep(d: &std::path::Path, text: &str) -> (std::path::PathBuf, String) {
+    let case = d.join("case.toml");
+    std::fs::write(&case, text).unwrap();
+    let out = d.join("out");
+    let (code, _, err) = run(&["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()]);
+    assert_eq!(code, 0, "{err}");
+    let report = std::fs::read_to_string(out.join("sweep-report.md")).unwrap();
+    (out, report)
+}
+
 /// The sweep's report shows each value with its estimated error, as the
 /// summary and sweep.csv do, and its swept values to six digits (a
 /// log-spaced step is not printed to the last bit).
 #[test]
 fn a_sweep_report_shows_each_value_with_its_error() {
     let d = dir("sweep-errors");
-    let case = d.join("case.toml");
     let text = SWEPT
         .replace("accuracy = \"off\"", "accuracy = \"1 %\"")
         .replace("[mesh]\nsize = 2\n", "")
         .replace("t = { from = 1, to = 3, steps = 3 }", "t = { from = 1, to = 3, steps = 3, spacing = \"log\" }");
-    std::fs::write(&case, text).unwrap();
-    let out = d.join("out");
-    let (code, _, err) = run(&["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()]);
-    assert_eq!(code, 0, "{err}");
-    let report = std::fs::read_to_string(out.join("sweep-report.md")).unwrap();
+    let (_, report) = solved_sweep(&d, &text);
     let row = report.lines().find(|l| l.starts_with("| 1 |")).unwrap();
     // The probe's field and the force's components, each with its error.
     assert!(row.matches('\u{b1}').count() >= 3, "values without their errors: {row}");
@@ -79,11 +86,7 @@ fn a_sweep_report_shows_each_value_with_its_error() {
 fn sweeps_lead_with_what_the_case_asks_for() {
     let d = dir("sweep");
     let case = d.join("case.toml");
-    std::fs::write(&case, SWEPT).unwrap();
-    let out = d.join("out");
-    let (code, _, err) = run(&["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()]);
-    assert_eq!(code, 0, "{err}");
-    let report = std::fs::read_to_string(out.join("sweep-report.md")).unwrap();
+    let (out, report) = solved_sweep(&d, SWEPT);
     let header = report.lines().find(|l| l.starts_with("| variant")).unwrap();
     let (probe, force) = (header.find("probe.zfront").unwrap(), header.find("force.apull").unwrap());
     assert!(probe < force, "columns not in the case's order: {header}");
