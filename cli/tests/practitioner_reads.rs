@@ -3,6 +3,8 @@
 //! case asks for and name variants by their parameters, and a progress
 //! line whose counts agree with the summary's.
 
+mod common;
+
 use std::path::PathBuf;
 use std::process::Command;
 
@@ -51,14 +53,11 @@ fn a_unit_given_to_set_gets_the_plain_number_hint() {
     let _ = std::fs::remove_dir_all(&d);
 }
 
-/// Solves the sweep `text` as case.toml in `d` into `d`/out: the output
-/// folder and its sweep-report.md.
-fn solved_sweep(d: &std::path::Path, text: &str) -> (std::path::PathBuf, String) {
-    let case = d.join("case.toml");
-    std::fs::write(&case, text).unwrap();
-    let out = d.join("out");
-    let (code, _, err) = run(&["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()]);
-    assert_eq!(code, 0, "{err}");
+/// Solves the sweep `text` (`common::solve_text`, which must succeed):
+/// its output folder and sweep-report.md.
+fn solved_sweep(name: &str, text: &str) -> (PathBuf, String) {
+    let (code, said, out) = common::solve_text(name, text);
+    assert_eq!(code, Some(0), "{said}");
     let report = std::fs::read_to_string(out.join("sweep-report.md")).unwrap();
     (out, report)
 }
@@ -68,25 +67,23 @@ fn solved_sweep(d: &std::path::Path, text: &str) -> (std::path::PathBuf, String)
 /// log-spaced step is not printed to the last bit).
 #[test]
 fn a_sweep_report_shows_each_value_with_its_error() {
-    let d = dir("sweep-errors");
     let text = SWEPT
         .replace("accuracy = \"off\"", "accuracy = \"1 %\"")
         .replace("[mesh]\nsize = 2\n", "")
         .replace("t = { from = 1, to = 3, steps = 3 }", "t = { from = 1, to = 3, steps = 3, spacing = \"log\" }");
-    let (_, report) = solved_sweep(&d, &text);
+    let (out, report) = solved_sweep("reads-sweep-errors", &text);
     let row = report.lines().find(|l| l.starts_with("| 1 |")).unwrap();
     // The probe's field and the force's components, each with its error.
     assert!(row.matches('\u{b1}').count() >= 3, "values without their errors: {row}");
     // The middle of a log sweep from 1 to 3 is sqrt(3) = 1.7320508...
     assert!(row.starts_with("| 1 | 1.73205 |"), "the swept value: {row}");
-    let _ = std::fs::remove_dir_all(&d);
+    let _ = std::fs::remove_dir_all(out.parent().unwrap());
 }
 
 #[test]
 fn sweeps_lead_with_what_the_case_asks_for() {
-    let d = dir("sweep");
-    let case = d.join("case.toml");
-    let (out, report) = solved_sweep(&d, SWEPT);
+    let (out, report) = solved_sweep("reads-sweep", SWEPT);
+    let (d, case) = (out.parent().unwrap().to_path_buf(), out.parent().unwrap().join("case.toml"));
     let header = report.lines().find(|l| l.starts_with("| variant")).unwrap();
     let (probe, force) = (header.find("probe.zfront").unwrap(), header.find("force.apull").unwrap());
     assert!(probe < force, "columns not in the case's order: {header}");

@@ -184,7 +184,8 @@ fn the_row_search_from_the_last_element_finds_what_the_plain_search_finds() {
         for j in 0..120 {
             let mut hint = None;
             for i in 0..160 {
-                // Steps of 0.37 mm, finer than the elements near the parts and coarser than far out.
+                // Steps of 0.37 mm, under the parts' 1 mm elements: most samples stay in the
+                // previous one's element, the rest cross into another.
                 let p = [-0.03 + 0.00037 * i as f64, 0.022 - 0.00037 * j as f64];
                 let hinted = sol.b_and_potential_near(p, &mut hint);
                 assert_eq!(hinted, sol.b_and_potential_at(p), "sample ({i}, {j}) at {p:?}");
