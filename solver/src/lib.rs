@@ -62,6 +62,7 @@ mod segment_grid;
 pub mod solution;
 pub mod source_response;
 pub mod space;
+mod substitution;
 
 pub use bh_curve::{BhCurve, CurveError};
 pub use material::Law;

@@ -37,12 +37,24 @@ pub(crate) fn responses(problem: &Problem, system: &mut System, end: &mut Newton
     if !end.exact_at_a {
         let _ = system.assemble(problem, &end.a, Tangent::Exact);
     }
+    // A saturating study's kept factor is of the tangent some Newton steps
+    // back, which preconditions a solve to RESPONSE_TOLERANCE too poorly to
+    // finish within conjugate gradients' budget: on a plunger's 67 000
+    // unknowns the attempt gave up after four iterations (34 ms) before the
+    // fresh factor (27 ms) and three iterations that the solve then needed.
+    // The first response therefore factorizes afresh; a linear study's
+    // tangent never moved, so its kept factor serves every response.
+    let mut reuse = !problem.is_nonlinear();
     problem
         .current_changes
         .iter()
         .map(|change| match change.is_empty() {
             true => Vec::new(),
-            false => response(problem, system, tangent, &end.a, change).unwrap_or_default(),
+            false => {
+                let delta = response(problem, system, tangent, &end.a, change, reuse).unwrap_or_default();
+                reuse = true;
+                delta
+            }
         })
         .collect()
 }
@@ -56,19 +68,20 @@ pub(crate) fn response_afresh(problem: &Problem, a: &[f64], change: &[f64]) -> R
     let _ = system.assemble(problem, a, Tangent::Exact);
     let analysis = CholeskySolver::analyse(system.matrix.pattern(), system.elimination).map_err(SolveError::Linear)?;
     let mut tangent = TangentSolver::new(analysis, problem.newton.reuse_factorization);
-    response(problem, &system, &mut tangent, a, change)
+    response(problem, &system, &mut tangent, a, change, false)
 }
 
 /// The first-order change of the nodal potentials for the current-density
-/// change `change` (per part), with the exact tangent at `a` in `system`.
-fn response(problem: &Problem, system: &System, tangent: &mut TangentSolver, a: &[f64], change: &[f64]) -> Result<Vec<f64>, SolveError> {
+/// change `change` (per part), with the exact tangent at `a` in `system`;
+/// `reuse`: the kept factor may precondition it (else a fresh one is made).
+fn response(problem: &Problem, system: &System, tangent: &mut TangentSolver, a: &[f64], change: &[f64], reuse: bool) -> Result<Vec<f64>, SolveError> {
     let mut delta = vec![0.0; a.len()];
     let load = current_load_change(system, problem, change, a);
     if load.iter().all(|&r| r == 0.0) {
         return Ok(delta);
     }
-    // A fresh factor when the kept one does not precondition well enough.
-    let (step, _) = tangent.step(&system.matrix, &load, RESPONSE_TOLERANCE, true).map_err(SolveError::Linear)?;
+    // A fresh factor when the kept one may not serve or does not precondition well enough.
+    let (step, _) = tangent.step(&system.matrix, &load, RESPONSE_TOLERANCE, reuse).map_err(SolveError::Linear)?;
     if step.iter().any(|v| !v.is_finite()) {
         return Err(SolveError::NotFinite { iteration: 1 });
     }
