@@ -153,3 +153,63 @@ pub fn read_case(text: &str) -> bool {
         _ => false,
     }
 }
+
+/// How a fuzzing run went: inputs tried, how many each fate took, and the
+/// inputs that panicked (written beside the bad cases for triage).
+pub struct FuzzTally {
+    pub inputs: u64,
+    pub fates: std::collections::BTreeMap<&'static str, u64>,
+    pub panics: u64,
+}
+
+/// The fuzzing loop both harnesses share: for `seconds` (or `max_inputs`),
+/// takes an example case, mutates it one to three times and hands it to
+/// `judge`, which names its fate; a panic is caught and the input written to
+/// tests/bad-cases/`prefix`-NNN.toml. Arguments from the command line:
+/// `SECONDS [SEED] [MAX_INPUTS]`.
+pub fn fuzz(prefix: &str, judge: impl Fn(&str) -> &'static str + std::panic::RefUnwindSafe) -> FuzzTally {
+    let args: Vec<String> = std::env::args().collect();
+    let seconds: f64 = args.get(1).and_then(|s| s.parse().ok()).unwrap_or(60.0);
+    let seed: u64 = args.get(2).and_then(|s| s.parse().ok()).unwrap_or(7);
+    let max_inputs: u64 = args.get(3).and_then(|s| s.parse().ok()).unwrap_or(u64::MAX);
+    let dir = concat!(env!("CARGO_MANIFEST_DIR"), "/../cases");
+    let seeds: Vec<String> = std::fs::read_dir(dir)
+        .expect("cases folder")
+        .flatten()
+        .filter(|e| e.path().extension().is_some_and(|x| x == "toml"))
+        .filter_map(|e| std::fs::read_to_string(e.path()).ok())
+        .collect();
+    std::panic::set_hook(Box::new(|_| {}));
+    let mut rng = Rng::new(seed);
+    let start = std::time::Instant::now();
+    let mut tally = FuzzTally {
+        inputs: 0,
+        fates: Default::default(),
+        panics: 0,
+    };
+    while start.elapsed().as_secs_f64() < seconds && tally.inputs < max_inputs {
+        let mut text = seeds[rng.below(seeds.len())].clone();
+        for _ in 0..1 + rng.below(3) {
+            text = mutate(&text, &mut rng);
+        }
+        tally.inputs += 1;
+        match std::panic::catch_unwind(|| judge(&text)) {
+            Ok(fate) => *tally.fates.entry(fate).or_default() += 1,
+            Err(_) => {
+                tally.panics += 1;
+                let path = format!("{}/../tests/bad-cases/{prefix}-{:03}.toml", env!("CARGO_MANIFEST_DIR"), tally.panics);
+                let _ = std::fs::write(&path, &text);
+                eprintln!("crash #{} written to {path}", tally.panics);
+            }
+        }
+    }
+    let fates: Vec<String> = tally.fates.iter().map(|(k, v)| format!("{v} {k}")).collect();
+    println!(
+        "{prefix}: {} inputs in {:.0} s, {}, {} panics (seed {seed})",
+        tally.inputs,
+        start.elapsed().as_secs_f64(),
+        fates.join(", "),
+        tally.panics
+    );
+    tally
+}
