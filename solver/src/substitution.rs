@@ -9,8 +9,8 @@
 //! outweighed their arithmetic. Here each supernode's columns are walked
 //! as contiguous slices (the factor stores a supernode column by column:
 //! its dense diagonal block, then the rows of its pattern), which the
-//! compiler vectorizes. Same operations as faer's, in the same order per
-//! column; results agree to rounding (tests below).
+//! compiler vectorizes. The same operations as faer's, their sums taken in
+//! another order: results agree to rounding (linear_system's tests).
 
 use faer::sparse::linalg::cholesky::supernodal::SymbolicSupernodalCholesky;
 use std::ops::{Add, Div, Mul, Sub};
@@ -23,7 +23,7 @@ impl Real for f64 {}
 
 /// Solves L L^T x = b in place (`x` holds b on entry), in the factor's
 /// own elimination order (a permutation, if any, is the caller's).
-/// `work` is scratch kept by the caller between calls.
+/// `work` is scratch, reused from one supernode to the next.
 pub(crate) fn solve_in_place<T: Real>(symbolic: &SymbolicSupernodalCholesky<u32>, values: &[T], x: &mut [T], work: &mut Vec<T>) {
     forward(symbolic, values, x, work);
     backward(symbolic, values, x, work);
