@@ -158,7 +158,7 @@ pub fn newton_solve(problem: &Problem, system: &mut System, progress: &dyn Fn(us
         || {
             let t = Instant::now();
             let affine = system.affine_residual(problem, &a);
-            let first = if warm { kind(1.0) } else { Tangent::ColdStart };
+            let first = if warm { Tangent::Exact } else { Tangent::ColdStart };
             let residual = system.assemble_with(problem, &a, first, affine.clone());
             // Residuals stay relative to the one at zero potential, so a warm
             // start is held to the same tolerance as a cold one.
