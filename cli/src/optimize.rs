@@ -85,8 +85,19 @@ fn evaluate(loaded: &Loaded, base: &Variant, spec: &Optimize, x: &[f64], limits:
         .collect();
     let margins = spec.constraints.iter().zip(&found).map(|(c, [v, e])| c.margin(*v) - e).collect::<Vec<_>>();
     let k = count.fetch_add(1, Ordering::Relaxed) + 1;
+    let held: String = spec
+        .constraints
+        .iter()
+        .zip(&found)
+        .zip(&margins)
+        .map(|((c, [v, e]), m)| {
+            let unit = results.units.get(&c.value).copied().unwrap_or("");
+            let status = constraint_status(c.margin(*v), *m);
+            format!("; {} = {} ({status})", c.value, crate::output::engineering::eng_pm(*v, Some(*e), unit))
+        })
+        .collect();
     progress.note(&format!(
-        "{}: optimize #{k}: {}: {} = {objective:.6e}",
+        "{}: optimize #{k}: {}: {} = {objective:.6e}{held}",
         loaded.stem(),
         at(),
         spec.objective.text
@@ -100,6 +111,19 @@ fn evaluate(loaded: &Loaded, base: &Variant, spec: &Optimize, x: &[f64], limits:
         // back, so the value cannot be read off them).
         reported: std::iter::once(objective_error).chain(found.into_iter().flatten()).collect(),
     })
+}
+
+/// How an evaluation stands against a constraint, for its progress line:
+/// `margin` as solved and `net` with the evaluation's error held back (what
+/// the search counts as met).
+fn constraint_status(margin: f64, net: f64) -> &'static str {
+    if net >= 0.0 {
+        "met"
+    } else if margin >= 0.0 {
+        "met, but not beyond its error"
+    } else {
+        "broken"
+    }
 }
 
 /// Runs the optimization, then the full case at the optimum; exit code as

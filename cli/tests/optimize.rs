@@ -100,16 +100,21 @@ fn finds_the_fixed_volume_optimum_of_the_closed_form() {
 /// constraint: the field there is 10 mT within the search's tolerance (and
 /// at least 10 mT within its estimated error), and the cost is the
 /// magnet's volume times its price.
-#[test]
-fn minimizes_a_cost_of_volumes_subject_to_a_field() {
-    let case = CASE
-        .replace("k = 318.30988618379067", "k = 318.30988618379067\nr0 = 8.9")
+/// The cost case: the magnet's radius varied at fixed height (its volume
+/// grows with r) for at least 10 mT 20 mm above it, at 0.01 %.
+fn cost_case() -> String {
+    CASE.replace("k = 318.30988618379067", "k = 318.30988618379067\nr0 = 8.9")
         .replace("to = [\"r\", \"k / (r * r)\"]", "to = [\"r0\", \"k * r / (r0 * r0 * 10)\"]")
         .replace("point = [0, \"k / (r * r) + 20\"]", "point = [0, \"k * r / (r0 * r0 * 10) + 20\"]")
         .replace(
             "maximize = \"probe.target.bz\"\nvary = { r = [2, 20] }",
             "minimize = \"2.5e5 * part.magnet.volume\"\nvary = { r = [2, 20] }\nsubject_to = [\"probe.target.bz >= 10 mT\"]\naccuracy = \"0.01 %\"",
-        );
+        )
+}
+
+#[test]
+fn minimizes_a_cost_of_volumes_subject_to_a_field() {
+    let case = cost_case();
     let (code, said, out) = common::solve_text("optimize-cost", &case);
     assert_eq!(code, Some(0), "{said}");
     let json: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(out.join("optimize.json")).unwrap()).unwrap();
@@ -191,5 +196,52 @@ fn a_constraint_on_the_stray_field_is_evaluated_at_every_point() {
     let json: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(out.join("optimize.json")).unwrap()).unwrap();
     let reach = json["values"]["reach.axis"].as_f64().unwrap();
     assert!(json["feasible"] == true && reach <= 0.060, "{json}");
+    let _ = std::fs::remove_dir_all(out.parent().unwrap());
+}
+
+/// Each evaluation's progress line says how it stands against the
+/// constraint, as optimize.csv logs it: broken below 10 mT, met beyond its
+/// estimated error, or met only within it (which the search counts as
+/// broken). The line is matched to its row by the radius it prints.
+#[test]
+fn each_evaluation_says_whether_it_meets_the_constraint() {
+    let (code, said, out) = common::solve_text_showing("optimize-says", &cost_case(), true);
+    assert_eq!(code, Some(0), "{said}");
+    let csv = std::fs::read_to_string(out.join("optimize.csv")).unwrap();
+    let head: Vec<&str> = csv.lines().next().unwrap().split(',').collect();
+    let column = |name: &str| head.iter().position(|h| *h == name).unwrap_or_else(|| panic!("no column {name} in {head:?}"));
+    let (r, b, e) = (column("r"), column("probe.target.bz"), column("probe.target.bz.error"));
+    let rows: Vec<Vec<f64>> = csv
+        .lines()
+        .skip(1)
+        .map(|l| l.split(',').map(|c| c.parse().unwrap_or(f64::NAN)).collect())
+        .collect();
+    let lines: Vec<&str> = said.lines().filter(|l| l.contains(": optimize #")).collect();
+    assert_eq!(lines.len(), rows.len(), "{said}");
+    let mut seen = std::collections::BTreeSet::new();
+    for line in lines {
+        let printed: f64 = line
+            .split("r = ")
+            .nth(1)
+            .and_then(|t| t.split(':').next())
+            .and_then(|t| t.parse().ok())
+            .unwrap_or_else(|| panic!("{line}"));
+        let row = rows
+            .iter()
+            .find(|row| (row[r] - printed).abs() <= 5e-7)
+            .unwrap_or_else(|| panic!("no row for {line}\n{csv}"));
+        let want = if row[b] < 0.01 {
+            "(broken)"
+        } else if row[b] - row[e] >= 0.01 {
+            "(met)"
+        } else {
+            "(met, but not beyond its error)"
+        };
+        assert!(line.ends_with(want), "{line}: want {want} for {} T +- {} T", row[b], row[e]);
+        assert!(line.contains("probe.target.bz = "), "{line}");
+        seen.insert(want);
+    }
+    // The search sits on its constraint: it tries points on both sides.
+    assert!(seen.contains("(broken)") && seen.contains("(met)"), "{said}");
     let _ = std::fs::remove_dir_all(out.parent().unwrap());
 }

@@ -46,6 +46,11 @@ pub fn cylinder_for_axis_field(br: f64, z: f64, b: f64) -> f64 {
 /// after `name`: the exit code, the terminal text, and the output folder
 /// (the caller removes `dir`, its parent, when done).
 pub fn solve_text(name: &str, text: &str) -> (Option<i32>, String, PathBuf) {
+    solve_text_showing(name, text, false)
+}
+
+/// As `solve_text`, with the progress lines on stderr when `progress`.
+pub fn solve_text_showing(name: &str, text: &str, progress: bool) -> (Option<i32>, String, PathBuf) {
     let dir = std::env::temp_dir().join(format!("lodestone-{name}-{}", std::process::id()));
     let _ = std::fs::remove_dir_all(&dir);
     std::fs::create_dir_all(&dir).unwrap();
@@ -53,7 +58,8 @@ pub fn solve_text(name: &str, text: &str) -> (Option<i32>, String, PathBuf) {
     std::fs::write(&case, text).unwrap();
     let out = dir.join("out");
     let o = std::process::Command::new(env!("CARGO_BIN_EXE_lodestone"))
-        .args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()])
+        .args(["solve", case.to_str().unwrap(), "-o", out.to_str().unwrap()])
+        .args((!progress).then_some("--quiet"))
         .output()
         .unwrap();
     let said = format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr));
