@@ -172,55 +172,105 @@ def _accuracy(accuracy: Union[None, str, float]) -> Optional[float]:
     """None (the case's), a fraction, or -1 for "off"."""
     if accuracy is None:
         return None
+    what = "accuracy: a fraction from 1e-7 to 0.5, a percentage such as '0.1 %', or 'off'"
     if isinstance(accuracy, str):
         a = accuracy.strip()
         if a == "off":
             return -1.0
-        if a.endswith("%"):
-            return float(a[:-1]) / 100.0
-        return float(a)
-    a = float(accuracy)
-    if not (1e-7 <= a <= 0.5):
-        raise ValueError("accuracy: a fraction from 1e-7 to 0.5, a percentage such as '0.1 %', or 'off'")
-    return a
+        try:
+            fraction = float(a[:-1]) / 100.0 if a.endswith("%") else float(a)
+        except ValueError:
+            raise CaseError(f"error: {what}, not {accuracy!r}") from None
+    elif isinstance(accuracy, (int, float)) and not isinstance(accuracy, bool):
+        fraction = float(accuracy)
+    else:
+        raise CaseError(f"error: {what}, not {accuracy!r}")
+    if not (1e-7 <= fraction <= 0.5):
+        raise CaseError(f"error: {what}, not {accuracy!r}")
+    return fraction
 
 
-def _toml_value(v: Any) -> str:
+# Deeper than any case's tables (a point in an array in an inline table in a
+# table is four): a guard against self-referencing or runaway structures,
+# which would otherwise end in Python's own RecursionError.
+_MAX_DEPTH = 32
+
+
+def _bad(where: str, why: str) -> CaseError:
+    return CaseError(f"error: <dict>: {where}: {why}")
+
+
+def _toml_string(v: str, where: str) -> str:
+    """A TOML basic string: quotes, backslashes and control characters
+    escaped, every other character as it is (TOML reads UTF-8; a \\u
+    escape cannot carry a character beyond the basic plane, as JSON's
+    surrogate pairs try to)."""
+    try:
+        v.encode("utf-8")
+    except UnicodeEncodeError:
+        raise _bad(where, "the text is not valid Unicode (a lone surrogate)") from None
+    out = []
+    for ch in v:
+        if ch in '"\\':
+            out.append("\\" + ch)
+        elif ord(ch) < 0x20 or ord(ch) == 0x7F:
+            out.append(f"\\u{ord(ch):04X}")
+        else:
+            out.append(ch)
+    return '"' + "".join(out) + '"'
+
+
+def _toml_value(v: Any, where: str, depth: int = 0) -> str:
+    if depth > _MAX_DEPTH:
+        raise _bad(where, f"nested deeper than {_MAX_DEPTH} levels (a case needs four at most)")
+    if isinstance(v, np.generic):
+        v = v.item()
     if isinstance(v, bool):
         return "true" if v else "false"
-    if isinstance(v, (int, float)):
-        if isinstance(v, float) and not math.isfinite(v):
-            raise ValueError(f"a case holds finite numbers only, not {v}")
+    if isinstance(v, int):
+        if not -(2**63) <= v < 2**63:
+            raise _bad(where, f"the integer {v} does not fit in 64 bits, the most TOML holds; give it as a float")
+        return repr(v)
+    if isinstance(v, float):
+        if not math.isfinite(v):
+            raise _bad(where, f"a case holds finite numbers only, not {v}")
         return repr(v)
     if isinstance(v, str):
-        return json.dumps(v)
+        return _toml_string(v, where)
+    if isinstance(v, (bytes, bytearray)):
+        raise _bad(where, "bytes are not text: decode them to a str first")
     if isinstance(v, Mapping):
-        return "{ " + ", ".join(f"{_toml_key(k)} = {_toml_value(x)}" for k, x in v.items()) + " }"
-    if isinstance(v, Sequence):
-        return "[" + ", ".join(_toml_value(x) for x in v) + "]"
+        return "{ " + ", ".join(f"{_toml_key(k, where)} = {_toml_value(x, f'{where}[{k!r}]', depth + 1)}" for k, x in v.items()) + " }"
     if isinstance(v, np.ndarray):
-        return _toml_value(v.tolist())
-    raise TypeError(f"cannot write {type(v).__name__} into a case")
+        return _toml_value(v.tolist(), where, depth)
+    if isinstance(v, Sequence):
+        return "[" + ", ".join(_toml_value(x, f"{where}[{i}]", depth + 1) for i, x in enumerate(v)) + "]"
+    raise _bad(where, f"cannot write {type(v).__name__} into a case (numbers, strings, booleans, lists and dicts)")
 
 
-def _toml_key(k: str) -> str:
-    return k if re.fullmatch(r"[A-Za-z0-9_-]+", k) else json.dumps(k)
+def _toml_key(k: Any, where: str) -> str:
+    if not isinstance(k, str):
+        raise _bad(where, f"keys are names (strings), not {k!r}")
+    return k if re.fullmatch(r"[A-Za-z0-9_-]+", k) else _toml_string(k, where)
 
 
 def _to_toml(case: Mapping[str, Any]) -> str:
     """A dict of tables as case text: a dict is a table, a list of dicts an
-    array of tables ([[part]]), everything else a value."""
+    array of tables ([[part]]), everything else a value. A value that TOML
+    cannot hold raises CaseError naming where it sits in the dict."""
     lines: List[str] = []
     for name, body in case.items():
+        where = f"case[{name!r}]"
+        key = _toml_key(name, where)
         if isinstance(body, Mapping):
-            lines.append(f"[{_toml_key(name)}]")
-            lines += [f"{_toml_key(k)} = {_toml_value(v)}" for k, v in body.items()]
+            lines.append(f"[{key}]")
+            lines += [f"{_toml_key(k, where)} = {_toml_value(v, f'{where}[{k!r}]')}" for k, v in body.items()]
         elif isinstance(body, Sequence) and not isinstance(body, str) and body and all(isinstance(b, Mapping) for b in body):
-            for b in body:
-                lines.append(f"[[{_toml_key(name)}]]")
-                lines += [f"{_toml_key(k)} = {_toml_value(v)}" for k, v in b.items()]
+            for i, b in enumerate(body):
+                lines.append(f"[[{key}]]")
+                lines += [f"{_toml_key(k, where)} = {_toml_value(v, f'{where}[{i}][{k!r}]')}" for k, v in b.items()]
         else:
-            raise TypeError(f"case['{name}'] must be a table (dict) or a list of tables")
+            raise _bad(where, "must be a table (dict) or a list of tables")
         lines.append("")
     return "\n".join(lines)
 

@@ -85,3 +85,51 @@ def test_set_overrides_a_parameter():
     assert near.values["force.pull.z"] < far.values["force.pull.z"] < 0.0
     with pytest.raises(lodestone.CaseError):
         lodestone.solve(case, set={"nope": 1.0})
+
+
+def small_disk(**study):
+    return {
+        "study": {"geometry": "axisymmetric", "unit": "mm", **study},
+        "part": [{"name": "m", "material": "N42", "magnetization": "+z", "rect": {"from": [0, 0], "to": [5, 5]}}],
+    }
+
+
+def test_a_dict_case_carries_any_text():
+    """Text beyond the basic plane, quotes and backslashes reach the case
+    as written (JSON's escapes had sent the emoji as a surrogate pair, which
+    TOML refuses)."""
+    title = 'Rückplatte 😀 "top" \\ 2'
+    r = lodestone.solve(small_disk(title=title), accuracy="1 %")
+    assert json.loads(r.to_json())["study"]["title"] == title
+
+
+def test_what_a_case_cannot_hold_raises_case_error_where_it_sits():
+    deep = []
+    inner = deep
+    for _ in range(100):
+        inner.append([])
+        inner = inner[0]
+    bad = [
+        (("part", 0, "rect", "to"), [float("nan"), 5], "finite numbers only", "case['part'][0]['rect']['to'][0]"),
+        (("part", 0, "rect", "to"), [10**30, 5], "does not fit in 64 bits", "case['part'][0]['rect']['to'][0]"),
+        (("part", 0, "rect"), None, "cannot write NoneType", "case['part'][0]['rect']"),
+        (("part", 0, "name"), b"m", "bytes are not text", "case['part'][0]['name']"),
+        (("part", 0, "name"), "m\ud800", "lone surrogate", "case['part'][0]['name']"),
+        (("part", 0, "extra"), deep, "nested deeper than", "case['part'][0]['extra'][0]"),
+    ]
+    for keys, value, why, where in bad:
+        case = small_disk()
+        holder = case
+        for k in keys[:-1]:
+            holder = holder[k]
+        holder[keys[-1]] = value
+        with pytest.raises(lodestone.CaseError) as e:
+            lodestone.solve(case)
+        assert why in e.value.message and where in e.value.message, e.value.message
+    case = small_disk()
+    case["study"][3] = "x"
+    with pytest.raises(lodestone.CaseError, match="keys are names"):
+        lodestone.solve(case)
+    for accuracy in ["abc", "5000 %", 0.0, True]:
+        with pytest.raises(lodestone.CaseError, match="accuracy"):
+            lodestone.solve(small_disk(), accuracy=accuracy)

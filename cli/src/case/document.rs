@@ -37,7 +37,7 @@ pub fn parse(text: &str) -> Result<Item, Diagnostic> {
         Ok(t) => {
             let span = t.span();
             Ok(Item {
-                value: Value::Table(convert_table(t.get_ref())),
+                value: Value::Table(convert_table(t.get_ref())?),
                 span,
             })
         }
@@ -45,31 +45,41 @@ pub fn parse(text: &str) -> Result<Item, Diagnostic> {
     }
 }
 
-fn convert_table(t: &DeTable<'_>) -> Vec<(Key, Item)> {
+fn convert_table(t: &DeTable<'_>) -> Result<Vec<(Key, Item)>, Diagnostic> {
     t.iter()
         .map(|(k, v)| {
-            (
+            Ok((
                 Key {
                     name: k.get_ref().to_string(),
                     span: k.span(),
                 },
-                convert(v.get_ref(), v.span()),
-            )
+                convert(v.get_ref(), v.span())?,
+            ))
         })
         .collect()
 }
 
-fn convert(v: &DeValue<'_>, span: Range<usize>) -> Item {
+fn convert(v: &DeValue<'_>, span: Range<usize>) -> Result<Item, Diagnostic> {
     let value = match v {
         DeValue::String(s) => Value::Str(s.to_string()),
-        DeValue::Integer(i) => Value::Num(i64::from_str_radix(&i.as_str().replace('_', ""), i.radix()).map_or(f64::NAN, |x| x as f64)),
+        DeValue::Integer(i) => match i64::from_str_radix(&i.as_str().replace('_', ""), i.radix()) {
+            Ok(x) => Value::Num(x as f64),
+            // TOML holds integers to 64 bits and asks readers to refuse the
+            // rest; read as NaN, this one was refused as "not finite".
+            Err(_) => {
+                return Err(Diagnostic::new(
+                    "this integer does not fit in 64 bits, the most TOML holds; write a larger number as a float, such as 1e20",
+                    Some(span),
+                ))
+            }
+        },
         DeValue::Float(f) => Value::Num(parse_float(f.as_str())),
         DeValue::Boolean(b) => Value::Bool(*b),
         DeValue::Datetime(_) => Value::Datetime,
-        DeValue::Array(a) => Value::Array(a.iter().map(|x| convert(x.get_ref(), x.span())).collect()),
-        DeValue::Table(t) => Value::Table(convert_table(t)),
+        DeValue::Array(a) => Value::Array(a.iter().map(|x| convert(x.get_ref(), x.span())).collect::<Result<_, _>>()?),
+        DeValue::Table(t) => Value::Table(convert_table(t)?),
     };
-    Item { value, span }
+    Ok(Item { value, span })
 }
 
 fn parse_float(s: &str) -> f64 {
