@@ -277,3 +277,42 @@ fn an_expectation_on_the_bound_is_named_as_the_reason_refinement_stopped() {
     assert!(!out.contains("NOT REACHED"), "{out}");
     assert!(json.contains("\"undecided\""), "{json}");
 }
+
+/// A grade of the case's own `[materials]` at another temperature than
+/// 20 degC must say how it changes: without `br_coeff` (and `hcj_coeff`
+/// where it has a coercivity) it was read as unchanged, so a hot magnet
+/// kept its 20 degC remanence and knee without a word. Coefficients of 0
+/// state that, and are taken; so is a grade with no coercivity and only
+/// `br_coeff`; and 20 degC needs none.
+#[test]
+fn a_case_grade_away_from_20_degc_must_give_its_coefficients() {
+    let case = |celsius: f64, coefficients: &str, hcj: &str| {
+        format!(
+            "[study]\ngeometry = \"axisymmetric\"\nunit = \"mm\"\ntemperature = \"{celsius} degC\"\n{OUTPUT}\
+             [materials.sheet-grade]\nbr = \"1.25 T\"\n{hcj}mur = 1.05\n{coefficients}description = \"a supplier's sheet\"\n\
+             [[part]]\nname = \"disk\"\nmaterial = \"sheet-grade\"\nmagnetization = \"+z\"\nrect = {{ from = [0, 0], to = [5, 3] }}\n"
+        )
+    };
+    let hcj = "hcj = \"1000 kA/m\"\n";
+    let (code, text, _) = solve("coeff-none", &case(80.0, "", hcj));
+    assert_eq!(code, 2, "{text}");
+    assert!(text.contains("gives no br_coeff and no hcj_coeff") && text.contains("4:15"), "{text}");
+    let (code, text, _) = solve("coeff-br", &case(80.0, "br_coeff = \"-0.12 %/K\"\n", hcj));
+    assert_eq!(code, 2, "{text}");
+    assert!(text.contains("gives no hcj_coeff,"), "{text}");
+    let (code, text, json) = solve("coeff-zero", &case(80.0, "br_coeff = 0\nhcj_coeff = 0\n", hcj));
+    assert_eq!(code, 0, "{text}");
+    assert!(json.contains("\"temperature_c\": 80"), "{json}");
+    let (code, text, _) = solve("coeff-recoil", &case(80.0, "br_coeff = \"-0.12 %/K\"\n", ""));
+    assert_eq!(code, 0, "{text}");
+    let (code, text, _) = solve("coeff-room", &case(20.0, "", hcj));
+    assert_eq!(code, 0, "{text}");
+    // A bake at 110 degC before a study at 20 degC: the same question.
+    let baked = case(20.0, "", hcj).replace(
+        "temperature = \"20 degC\"\n",
+        "temperature = \"20 degC\"\nexposure = { temperature = \"110 degC\" }\n",
+    );
+    let (code, text, _) = solve("coeff-bake", &baked);
+    assert_eq!(code, 2, "{text}");
+    assert!(text.contains("study.exposure 110 degC") && text.contains("gives no br_coeff"), "{text}");
+}

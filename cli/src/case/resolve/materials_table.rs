@@ -266,3 +266,47 @@ pub(super) fn lookup_material(item: &Item, user: &BTreeMap<String, (Entry, std::
         .with_help(Some(crate::case::material_names::help(name, &names)))
     })
 }
+
+/// Refuses a temperature other than 20 degC for a magnet of a
+/// `[materials]` grade that does not say how it changes with temperature:
+/// a missing `br_coeff` (or `hcj_coeff`, where the grade has a coercivity)
+/// would otherwise read as 0, and a hot magnet would silently keep its
+/// 20 degC remanence and knee. Writing 0 states it.
+pub(super) fn check_coefficients_known(top: &Fields, study: &Fields, temperature: f64, parts: &[study::model::Part], key: &str) -> Result<(), Diagnostic> {
+    if temperature == 20.0 {
+        return Ok(());
+    }
+    for p in parts {
+        let (Material::Magnet(grade), "user") = (&p.material.material, p.material.family.as_str()) else {
+            continue;
+        };
+        let Some(Value::Table(entries)) = top.get("materials").map(|m| &m.value) else {
+            continue;
+        };
+        let Some((_, table)) = entries.iter().find(|(k, _)| k.name == p.material.name) else {
+            continue;
+        };
+        let given = |name: &str| matches!(&table.value, Value::Table(t) if t.iter().any(|(k, _)| k.name == name));
+        let needed: Vec<&str> = ["br_coeff", "hcj_coeff"]
+            .into_iter()
+            .filter(|c| !given(c) && (*c == "br_coeff" || grade.hcj.is_finite()))
+            .collect();
+        if needed.is_empty() {
+            continue;
+        }
+        return Err(Diagnostic::new(
+            format!(
+                "study.{key} {temperature} degC: magnet '{}' is of [materials.{}], which gives no {}, so how it changes from 20 degC is unknown",
+                p.name,
+                p.material.name,
+                needed.join(" and no ")
+            ),
+            study.get(key).map(|t| t.span.clone()),
+        )
+        .with_help(Some(format!(
+            "give its reversible temperature coefficients (%/K) from its data sheet in [materials.{}] (the built-in grades' are listed by `lodestone materials NAME`), or 0 to keep it as it is at 20 degC",
+            p.material.name
+        ))));
+    }
+    Ok(())
+}

@@ -197,9 +197,11 @@ fn resolve_at(
         p.mesh_size = if size_given { mesh.size } else { mesh_table::part_size(mesh.size, &p.shape) };
     }
     check_temperature(&study, temperature, &parts, "temperature")?;
+    materials_table::check_coefficients_known(&top, &study, temperature, &parts, "temperature")?;
     let exposure = study_table::exposure(&study, &ctx, symmetry, temperature)?;
     if let Some(e) = &exposure {
         check_temperature(&study, e.temperature, &parts, "exposure")?;
+        materials_table::check_coefficients_known(&top, &study, e.temperature, &parts, "exposure")?;
     }
     let mut model = Model {
         title: study
