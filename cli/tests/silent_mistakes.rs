@@ -316,3 +316,34 @@ fn a_case_grade_away_from_20_degc_must_give_its_coefficients() {
     assert_eq!(code, 2, "{text}");
     assert!(text.contains("study.exposure 110 degC") && text.contains("gives no br_coeff"), "{text}");
 }
+
+/// Steel given as a linear material cannot saturate: where a real share of
+/// it carries more than the highest knee of the library's steels and irons
+/// (9SMnPb28's 1.70 T), a warning says the flux and forces are overstated.
+/// A pot magnet's cup at contact does (mu_r 1000); the same cup with the
+/// magnet a tenth as thick, whose flux stays below the knee, does not, and
+/// a library steel gets the saturation warning of its own curve instead.
+#[test]
+fn linear_steel_past_every_knee_is_warned() {
+    let case = |material: &str, magnet_top: f64| {
+        format!(
+            "[study]\ngeometry = \"axisymmetric\"\nunit = \"mm\"\naccuracy = \"1 %\"\n{OUTPUT}\
+             [materials.lin-steel]\nmur = 1000\ndescription = \"steel taken as linear\"\n\
+             [[part]]\nname = \"cup\"\nmaterial = \"{material}\"\npolygon = [[0, -3], [12, -3], [12, 5], [10, 5], [10, 0], [0, 0]]\n\
+             [[part]]\nname = \"magnet\"\nmaterial = \"N42\"\nmagnetization = \"+z\"\nrect = {{ from = [0, 0], to = [8, {magnet_top}] }}\n\
+             [[part]]\nname = \"plate\"\nmaterial = \"{material}\"\nrect = {{ from = [0, 5], to = [30, 10] }}\n\
+             [[force]]\nname = \"pull\"\nparts = [\"plate\"]\n"
+        )
+    };
+    let said = |text: &str| text.contains("part 'cup' (lin-steel): linear (mu_r 1000), so it never saturates here") && text.contains("9SMnPb28's");
+    let (code, text, json) = solve("linear-steel", &case("lin-steel", 5.0));
+    assert_eq!(code, 0, "{text}");
+    assert!(said(&text), "{text}");
+    assert!(json.contains("\"above_steel_knees_share\""), "{json}");
+    let (code, text, _) = solve("linear-steel-thin", &case("lin-steel", 0.5));
+    assert_eq!(code, 0, "{text}");
+    assert!(!said(&text) && !text.contains("never saturates"), "{text}");
+    let (code, text, _) = solve("real-steel", &case("DC01", 5.0));
+    assert_eq!(code, 0, "{text}");
+    assert!(!text.contains("never saturates") && text.contains("above the knee of its B-H curve"), "{text}");
+}

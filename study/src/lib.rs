@@ -20,6 +20,7 @@ pub mod lower;
 pub mod materials;
 pub mod model;
 pub mod optimize;
+mod part_fields;
 pub mod post;
 pub mod quantity;
 pub mod results;

@@ -61,7 +61,7 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
     };
     values.insert("energy".into(), energy.stored_j);
     values.insert("coenergy".into(), energy.coenergy_j);
-    let parts = part_results(model, sol, &mut values);
+    let parts = crate::part_fields::part_results(model, sol, &mut values);
     let coils = coil_results(model, &mut values);
     let mut warnings = Vec::new();
     let magnets = crate::checks::magnet_results(model, sol, &mut values, &mut warnings);
@@ -76,16 +76,7 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
             ));
         }
     }
-    for (name, p) in &parts {
-        if p.saturated == Some(true) {
-            warnings.push(format!(
-                "part '{name}' ({}): {:.0} % of it runs above the knee of its B-H curve ({:.2} T): it saturates",
-                p.material,
-                100.0 * p.saturated_share.unwrap_or(0.0),
-                p.knee_t.unwrap_or(0.0)
-            ));
-        }
-    }
+    warnings.extend(crate::part_fields::saturation_warnings(model, &parts));
     // With an accuracy the mesh is refined until the estimates meet it, so
     // a first mesh coarse across a thin part is not a warning (it said "2
     // elements across" of a mesh later split four times over).
@@ -494,78 +485,6 @@ pub fn winding_current_changes(model: &Model, problem: &solver::Problem) -> Vec<
             _ => Vec::new(),
         })
         .collect()
-}
-
-fn part_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f64>) -> BTreeMap<String, PartResult> {
-    let n = model.parts.len();
-    let mut max = vec![0.0f64; n];
-    let mut sum = vec![0.0; n];
-    let mut vol = vec![0.0; n];
-    let mut above = vec![0.0; n];
-    let knees: Vec<Option<f64>> = model
-        .parts
-        .iter()
-        .map(|p| match &p.material.material {
-            Material::Soft { curve } => solver::BhCurve::new(curve).ok().map(|c| c.knee_b()),
-            _ => None,
-        })
-        .collect();
-    let els = &sol.elements;
-    // Per element (in parallel): part, peak |B|, integral of |B|, volume, volume above the knee.
-    use rayon::prelude::*;
-    let stats: Vec<(usize, f64, f64, f64, f64)> = (0..els.n_physical)
-        .into_par_iter()
-        .filter_map(|e| {
-            let ElementKind::Part(i) = els.kinds[e] else { return None };
-            let mut st = (i, 0.0f64, 0.0, 0.0, 0.0);
-            solver::post::integrate::for_each_field_point(sol, e, |p| {
-                let bm = p.b[0].hypot(p.b[1]);
-                st.1 = st.1.max(bm);
-                st.2 += bm * p.weight;
-                st.3 += p.weight;
-                if knees[i].is_some_and(|k| bm > k) {
-                    st.4 += p.weight;
-                }
-            });
-            Some(st)
-        })
-        .collect();
-    for (i, m, s_, v, ab) in stats {
-        max[i] = max[i].max(m);
-        sum[i] += s_;
-        vol[i] += v;
-        above[i] += ab;
-    }
-    let mut out = BTreeMap::new();
-    for (i, p) in model.parts.iter().enumerate() {
-        let mean = if vol[i] > 0.0 { sum[i] / vol[i] } else { 0.0 };
-        let knee = knees[i];
-        let share = if vol[i] > 0.0 { above[i] / vol[i] } else { 0.0 };
-        values.insert(format!("part.{}.b.max", p.name), max[i]);
-        values.insert(format!("part.{}.b.mean", p.name), mean);
-        // Its volume as meshed (the whole depth of a planar study): for a
-        // cost or a fixed-volume design.
-        let depth = if model.symmetry == mesher::Symmetry::Planar { model.depth } else { 1.0 };
-        values.insert(format!("part.{}.volume", p.name), vol[i] * depth);
-        if knee.is_some() {
-            values.insert(format!("part.{}.saturated_share", p.name), share);
-        }
-        // Saturated when more than SATURATED_SHARE of the part runs above its knee
-        // (the peak alone sits at a corner, where the field is singular).
-        let saturated = knee.map(|_| share > SATURATED_SHARE);
-        out.insert(
-            p.name.clone(),
-            PartResult {
-                material: p.material.name.clone(),
-                b_max: max[i],
-                b_mean: mean,
-                knee_t: knee,
-                saturated_share: knee.map(|_| share),
-                saturated,
-            },
-        );
-    }
-    out
 }
 
 /// Evaluates every `[[expect]]` against the values, within their errors

@@ -208,6 +208,10 @@ pub struct PartResult {
     /// Whether more than SATURATED_SHARE of it runs above its knee.
     #[cfg_attr(feature = "serde", serde(skip_serializing_if = "Option::is_none"))]
     pub saturated: Option<bool>,
+    /// For a linear stand-in for steel (mu_r 100 or more), the volume share
+    /// above the highest knee of the library's steels and irons.
+    #[cfg_attr(feature = "serde", serde(skip_serializing_if = "Option::is_none"))]
+    pub above_steel_knees_share: Option<f64>,
 }
 
 /// Volume share above the knee from which a steel part counts as saturated.

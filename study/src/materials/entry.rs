@@ -10,13 +10,11 @@ pub enum Material {
     /// Non-magnetic conductor that may carry a winding current (mu_r = 1).
     Conductor,
     /// Linear permeable material.
-    /// Linear permeable material.
     Linear {
         /// mu_r
         relative_permeability: f64,
     },
     /// Soft magnetic material with a B-H curve (H in A/m, B in T).
-    /// Soft magnetic material with a B-H curve.
     Soft {
         /// rows [H (A/m), B (T)] from the origin
         curve: Vec<[f64; 2]>,

@@ -17,3 +17,4 @@ pub use curves::{bh_points, check_table, h_at, knee, CurveError};
 pub use entry::{Entry, Material};
 pub use grade::MagnetGrade;
 pub use library::{lookup, names};
+pub use soft::highest_knee as highest_soft_knee;

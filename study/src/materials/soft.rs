@@ -67,9 +67,40 @@ pub fn names() -> Vec<String> {
     all().map(|c| c.0.to_string()).collect()
 }
 
+/// The library curve with the highest knee, and that knee in T (the
+/// leaded free-machining steel 9SMnPb28's, 1.70 T): above it every steel
+/// and iron the library holds saturates, so a linear stand-in for steel
+/// carrying more is outside its model.
+pub fn highest_knee() -> (&'static str, f64) {
+    all()
+        .filter_map(|c| Some((c.0, super::curves::knee(c.2)?)))
+        .fold(("", 0.0), |best, c| if c.1 > best.1 { c } else { best })
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// The highest knee is no lower than any library curve's, and is one of
+    /// them: the leaded free-machining steel's 1.70 T, as `lodestone
+    /// materials 9SMnPb28` prints it (relay iron 1.60 T, low-carbon steels
+    /// 1.40 T).
+    #[test]
+    fn the_highest_knee_is_the_highest_of_the_library() {
+        let (name, knee) = highest_knee();
+        for n in names() {
+            let Some(Entry {
+                material: Material::Soft { curve },
+                ..
+            }) = lookup(&n)
+            else {
+                panic!("{n}")
+            };
+            assert!(super::super::curves::knee(&curve).unwrap() <= knee, "{n}");
+        }
+        assert_eq!(name, "9SMnPb28");
+        assert!((1.65..1.75).contains(&knee), "{knee}");
+    }
 
     /// Every curve must pass the solver's own table check, and no curve may
     /// carry a from-memory label: the library holds sourced curves only.
