@@ -99,8 +99,8 @@ pub fn solve_loaded(
     // Input errors that every variant shares (a misspelled name, a bad unit)
     // are found before any folder is made or mesh built.
     let (mut seek, mut tolerance, mut optimize) = (None, None, None);
-    if let Some(first) = variants.first() {
-        let resolved = run::resolve(loaded, &first.params, limits)?;
+    if !variants.is_empty() {
+        let (first, resolved) = first_resolved(loaded, &variants, limits)?;
         seek = crate::case::resolve::seek(&loaded.doc, &first.params, &resolved.model).map_err(|d| loaded.input(&d))?;
         tolerance = crate::case::resolve::tolerance(&loaded.doc, &first.params, &resolved.model).map_err(|d| loaded.input(&d))?;
         optimize = crate::case::resolve::optimize(&loaded.doc, &first.params, &resolved.model).map_err(|d| loaded.input(&d))?;
@@ -260,6 +260,26 @@ fn unused_sweep_parameter(loaded: &Loaded, variants: &[Variant], keys: &[Result<
 }
 
 /// A variant's swept parameters, `gap = 0.5, t = 2`.
+/// The first variant that resolves, and its model. A swept value may break
+/// only some variants (a plate of thickness 0): those fail one by one as
+/// the sweep solves them, as they did when they were not the first; the
+/// run stops here, before any folder is made, only when none resolves,
+/// with the first one's error named by its variant.
+fn first_resolved<'v>(loaded: &Loaded, variants: &'v [Variant], limits: &Limits) -> Result<(&'v Variant, run::Resolved), Failure> {
+    let first = &variants[0];
+    let error = match run::resolve(loaded, &first.params, limits) {
+        Ok(r) => return Ok((first, r)),
+        Err(f) => f,
+    };
+    if let Some(found) = variants[1..].iter().find_map(|v| run::resolve(loaded, &v.params, limits).ok().map(|r| (v, r))) {
+        return Ok(found);
+    }
+    Err(match error {
+        Failure::Input(m) if !first.swept.is_empty() => Failure::Input(format!("error: variant {} ({}) failed:\n{m}", first.label, describe(first))),
+        f => f,
+    })
+}
+
 fn describe(v: &Variant) -> String {
     v.swept.iter().map(|(k, x)| format!("{k} = {x}")).collect::<Vec<_>>().join(", ")
 }

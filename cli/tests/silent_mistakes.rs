@@ -371,3 +371,34 @@ fn a_line_sample_on_a_corner_is_left_out() {
     assert_eq!(r["adaptive"]["reached"], true, "{}", r["adaptive"]);
     assert!(r["values"]["probe.face.b.max"].as_f64().unwrap() < 1.0, "{}", r["values"]);
 }
+
+/// A swept value that breaks the first variant's geometry (a plate of
+/// thickness 0) refused the whole sweep as if the case were wrong, without
+/// naming the variant, while the same value in a later variant failed that
+/// variant alone. Now the others are solved either way and each broken one
+/// is named with its values; a sweep where every variant breaks stops
+/// before any folder is made, naming the first.
+#[test]
+fn a_swept_value_that_breaks_the_first_variant_fails_that_variant_alone() {
+    let case = |plates: &str| {
+        format!(
+            "[study]\ngeometry = \"axisymmetric\"\nunit = \"mm\"\naccuracy = \"1 %\"\n{OUTPUT}\
+             [params]\nplate = 2\n[sweep]\nplate = {plates}\n{MAGNET}\
+             [[part]]\nname = \"plate\"\nmaterial = \"DC01\"\nrect = {{ from = [0, 6], to = [20, \"6 + plate\"] }}\n"
+        )
+        .replace("+y", "+z")
+    };
+    let (code, text, _) = solve("sweep-first-broken", &case("[0, 2]"));
+    assert_eq!(code, 2, "{text}");
+    assert!(
+        text.contains("variant variant-0000 (plate = 0) failed:") && text.contains("zero area"),
+        "{text}"
+    );
+    assert!(text.contains("1 variants solved (0 already whole, 1 failed)"), "{text}");
+    let (code, text, _) = solve("sweep-all-broken", &case("[0]"));
+    assert_eq!(code, 2, "{text}");
+    assert!(
+        text.contains("variant variant-0000 (plate = 0) failed:") && !text.contains("variants solved"),
+        "{text}"
+    );
+}
