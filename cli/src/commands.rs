@@ -396,11 +396,20 @@ fn check_case(case: &Path, over: &BTreeMap<String, f64>, limits: &Limits, progre
                 (Verdict::Fail, _) => "FAIL",
             };
             println!("  {:<36} {:<24} {:>24}  {verdict}", e.value, e.bound, actual);
+            if let Some(note) = &e.note {
+                println!("    ({note})");
+            }
             if !pass {
                 code = code.max(1);
             }
             let message = match e.verdict {
-                Verdict::Fail => Some(format!("{} = {} is outside {}", e.value, actual, e.bound)),
+                Verdict::Fail => Some(format!(
+                    "{} = {} is outside {}{}",
+                    e.value,
+                    actual,
+                    e.bound,
+                    e.note.as_ref().map_or(String::new(), |n| format!(" ({n})"))
+                )),
                 Verdict::Undecided => Some(format!(
                     "{} = {}: the bound {} lies within the value's estimated error, and refinement stopped at max_elements; tighten [study] accuracy or raise [mesh] max_elements",
                     e.value, actual, e.bound

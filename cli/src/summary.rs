@@ -145,7 +145,7 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
     for e in &r.expect {
         let unit = r.units.get(&e.value).copied().unwrap_or("");
         s += &format!(
-            "  expect {} {}: {} ({})\n",
+            "  expect {} {}: {} ({}{})\n",
             e.value,
             e.bound,
             e.actual.map_or("-".into(), |a| eng_pm(a, e.error, unit)),
@@ -153,7 +153,8 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
                 Verdict::Pass => "pass",
                 Verdict::Fail => "FAIL",
                 Verdict::Undecided => "UNDECIDED: the bound lies within the value's error",
-            }
+            },
+            e.note.as_ref().map_or(String::new(), |n| format!("; {n}"))
         );
     }
     for w in &r.warnings {

@@ -402,3 +402,34 @@ fn a_swept_value_that_breaks_the_first_variant_fails_that_variant_alone() {
         "{text}"
     );
 }
+
+/// A bound on a force component written for its size (">= 200 N" on a
+/// pull that is negative z, towards the magnet below) fails however hard it
+/// pulls: the failure says the bound would hold with the opposite sign and
+/// names the magnitude, in the summary and in results.json; a failure
+/// that no sign would mend gets no such note.
+#[test]
+fn a_force_bound_that_holds_for_the_opposite_sign_says_so() {
+    let case = |bound: &str| {
+        format!(
+            "[study]\ngeometry = \"axisymmetric\"\nunit = \"mm\"\naccuracy = \"1 %\"\n{OUTPUT}\
+             [[part]]\nname = \"magnet\"\nmaterial = \"N42\"\nmagnetization = \"+z\"\nrect = {{ from = [0, 0], to = [5, 3] }}\n\
+             [[part]]\nname = \"plate\"\nmaterial = \"DC01\"\nrect = {{ from = [0, 4], to = [15, 6] }}\n\
+             [[force]]\nname = \"pull\"\nparts = [\"plate\"]\n[[expect]]\nvalue = \"force.pull.z\"\nmin = \"{bound}\"\n"
+        )
+    };
+    let (code, text, json) = solve("sign-flipped", &case("1 N"));
+    assert_eq!(code, 1, "{text}");
+    assert!(
+        text.contains("(FAIL; the bound would hold with the opposite sign") && text.contains("force.pull.magnitude"),
+        "{text}"
+    );
+    let r: serde_json::Value = serde_json::from_str(&json).unwrap();
+    assert!(r["values"]["force.pull.z"].as_f64().unwrap() < -1.0, "{}", r["values"]);
+    assert!(r["expect"][0]["note"].as_str().is_some_and(|n| n.contains("opposite sign")), "{}", r["expect"]);
+    let (code, text, json) = solve("sign-real", &case("1 kN"));
+    assert_eq!(code, 1, "{text}");
+    assert!(text.contains("(FAIL)") && !text.contains("opposite sign"), "{text}");
+    let r: serde_json::Value = serde_json::from_str(&json).unwrap();
+    assert!(r["expect"][0].get("note").is_none(), "{}", r["expect"]);
+}

@@ -528,6 +528,10 @@ pub fn evaluate(model: &Model, values: &BTreeMap<String, f64>, errors: &BTreeMap
                 None => Verdict::Fail,
                 Some(v) => crate::estimate::verdict(&e.bound, v, error.unwrap_or(0.0)),
             };
+            let note = match (verdict, actual) {
+                (Verdict::Fail, Some(v)) => sign_note(&e.value.name, crate::estimate::verdict(&e.bound, -v, error.unwrap_or(0.0))),
+                _ => None,
+            };
             ExpectResult {
                 value: e.value.name.clone(),
                 bound: e.text.clone(),
@@ -535,7 +539,26 @@ pub fn evaluate(model: &Model, values: &BTreeMap<String, f64>, errors: &BTreeMap
                 pass: verdict == Verdict::Pass,
                 verdict,
                 error,
+                note,
             }
         })
         .collect()
+}
+
+/// Why a failed bound on a force or torque component may be a sign
+/// mistake: the bound holds for the opposite sign (`flipped`). Components
+/// are signed along their axis, so a pull towards a magnet below the plate
+/// is negative z, and a bound such as ">= 200 N" on it fails however hard it
+/// pulls.
+fn sign_note(name: &str, flipped: Verdict) -> Option<String> {
+    let parts: Vec<&str> = name.split('.').collect();
+    let ["force", force, component] = parts.as_slice() else { return None };
+    let what = match *component {
+        "x" | "y" | "r" | "z" => {
+            format!("components are signed (negative {component} points towards -{component}); for the force's size use force.{force}.magnitude")
+        }
+        "torque" => "torques are signed (positive turns counter-clockwise)".to_string(),
+        _ => return None,
+    };
+    (flipped == Verdict::Pass).then(|| format!("the bound would hold with the opposite sign: {what}"))
 }

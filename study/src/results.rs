@@ -299,6 +299,10 @@ pub struct ExpectResult {
     /// The value's estimated absolute error, if estimated.
     #[cfg_attr(feature = "serde", serde(skip_serializing_if = "Option::is_none"))]
     pub error: Option<f64>,
+    /// A hint beside a failure, such as a force component whose bound holds
+    /// for the opposite sign.
+    #[cfg_attr(feature = "serde", serde(skip_serializing_if = "Option::is_none"))]
+    pub note: Option<String>,
 }
 
 /// An expectation's outcome.

@@ -195,7 +195,7 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
         for e in &r.expect {
             let _ = writeln!(
                 s,
-                "| {} | {} | {} | {} |",
+                "| {} | {} | {} | {}{} |",
                 e.value,
                 e.bound,
                 e.actual
@@ -204,7 +204,8 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
                     study::results::Verdict::Pass => "pass",
                     study::results::Verdict::Fail => "FAIL",
                     study::results::Verdict::Undecided => "UNDECIDED (the bound lies within the error)",
-                }
+                },
+                e.note.as_ref().map_or(String::new(), |n| format!(": {n}"))
             );
         }
         s.push('\n');
