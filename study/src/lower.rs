@@ -96,8 +96,8 @@ impl<'m> SingularCorners<'m> {
 /// Refuses a point probe on a corner of a part: asked there, a pot
 /// magnet's probe refined to 376 000 triangles and reported 2.4 T +- 4.9 T.
 /// (A line probe's sample on a corner is left out instead: `post`.)
-fn check_probe_off_corners(model: &Model, i: usize, at: [f64; 2]) -> Result<(), StudyError> {
-    match SingularCorners::of(model).part_at(at) {
+fn check_probe_off_corners(model: &Model, corners: &SingularCorners, i: usize, at: [f64; 2]) -> Result<(), StudyError> {
+    match corners.part_at(at) {
         Some(p) => Err(StudyError::new(
             format!(
                 "probe '{}' sits on a corner of part '{}', where the field is singular (it grows without bound as the mesh refines); move it off the corner, to the side you mean, by a small distance",
@@ -437,6 +437,7 @@ pub fn check_probes_inside(model: &Model) -> Result<(), StudyError> {
         OuterBoundary::FluxParallel { from_to: Some((a, b)), .. } => Some(([a[0].min(b[0]), a[1].min(b[1])], [a[0].max(b[0]), a[1].max(b[1])])),
         _ => None,
     };
+    let corners = SingularCorners::of(model);
     for (i, probe) in model.probes.iter().enumerate() {
         let pts = match probe.shape {
             ProbeShape::Point(p) => vec![p],
@@ -444,7 +445,7 @@ pub fn check_probes_inside(model: &Model) -> Result<(), StudyError> {
         };
         let at = Some(Origin::Probe(i));
         if let ProbeShape::Point(p) = probe.shape {
-            check_probe_off_corners(model, i, p)?;
+            check_probe_off_corners(model, &corners, i, p)?;
         }
         if model.symmetry == Symmetry::Axisymmetric && pts.iter().any(|p| p[0] < 0.0) {
             return Err(StudyError::new(

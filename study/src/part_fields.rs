@@ -27,12 +27,15 @@ pub(crate) fn part_results(model: &Model, sol: &Solution, values: &mut BTreeMap<
     let mut beyond = vec![0.0; n];
     // A linear stand-in for steel (mu_r from LINEAR_STEEL_FROM) is held
     // against the highest knee of the library's steels and irons.
-    let (_, steel_knee) = crate::materials::highest_soft_knee();
     let linear_steel: Vec<bool> = model
         .parts
         .iter()
         .map(|p| matches!(p.material.material, Material::Linear { relative_permeability } if relative_permeability >= LINEAR_STEEL_FROM))
         .collect();
+    let steel_knee = match linear_steel.contains(&true) {
+        true => crate::materials::highest_soft_knee().1,
+        false => f64::INFINITY,
+    };
     let knees: Vec<Option<f64>> = model
         .parts
         .iter()
@@ -43,7 +46,8 @@ pub(crate) fn part_results(model: &Model, sol: &Solution, values: &mut BTreeMap<
         .collect();
     let els = &sol.elements;
     // Per element (in parallel): part, peak |B|, integral of |B|, volume,
-    // volume above the knee, volume past any soft material's saturation.
+    // volume above its curve's knee, volume of linear steel above every
+    // library steel's knee.
     use rayon::prelude::*;
     let stats: Vec<(usize, f64, f64, f64, f64, f64)> = (0..els.n_physical)
         .into_par_iter()

@@ -50,7 +50,8 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
     let mesh = sol.problem.mesh;
     let depth = if model.symmetry == Symmetry::Planar { model.depth } else { 1.0 };
     let mut values = BTreeMap::new();
-    let probes = probe_results(model, sol, &mut values);
+    let corners = crate::lower::SingularCorners::of(model);
+    let probes = probe_results(model, sol, &corners, &mut values);
     let forces = force_results(model, sol, depth, &mut values);
     let flux = flux_results(model, sol, depth, &mut values);
     let e = energy::stored_energy(sol);
@@ -83,7 +84,7 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
     if model.accuracy.is_none() {
         warnings.extend(thin_parts(model));
     }
-    warnings.extend(modelling_warnings(model, sol));
+    warnings.extend(modelling_warnings(model, sol, &corners));
     // Local refinement bisects triangles at their longest edge, which keeps
     // at least half of the first mesh's smallest angle (mesher::bisect):
     // only a smaller angle says the mesher fell short.
@@ -179,10 +180,9 @@ fn point_field(sol: &Solution, x: [f64; 2]) -> Option<solver::PointField> {
     })
 }
 
-fn probe_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f64>) -> BTreeMap<String, ProbeResult> {
+fn probe_results(model: &Model, sol: &Solution, corners: &crate::lower::SingularCorners, values: &mut BTreeMap<String, f64>) -> BTreeMap<String, ProbeResult> {
     let mut out = BTreeMap::new();
     let (c0, c1) = if model.symmetry == Symmetry::Planar { ("bx", "by") } else { ("br", "bz") };
-    let corners = crate::lower::SingularCorners::of(model);
     for p in &model.probes {
         let points = probe_points(&p.shape);
         let fields: Vec<_> = match p.shape {
@@ -399,7 +399,7 @@ const COVERED_SHARE: f64 = 0.01;
 /// without depth (results per metre: 26 kN for a 50 mm part), a point probe
 /// inside material, a magnet or winding partly covered by a later part (a
 /// plate drawn into a magnet cut its pull from 38 N to 9.6 N).
-fn modelling_warnings(model: &Model, sol: &Solution) -> Vec<String> {
+fn modelling_warnings(model: &Model, sol: &Solution, corners: &crate::lower::SingularCorners) -> Vec<String> {
     let mut out = Vec::new();
     if model.symmetry == Symmetry::Planar && !model.depth_given {
         out.push(
@@ -421,7 +421,6 @@ fn modelling_warnings(model: &Model, sol: &Solution) -> Vec<String> {
             }
         }
     }
-    let corners = crate::lower::SingularCorners::of(model);
     for p in model.probes.iter().filter(|p| matches!(p.shape, ProbeShape::Line { .. })) {
         let on: Vec<(String, &str)> = probe_points(&p.shape)
             .into_iter()

@@ -273,7 +273,8 @@ pub(super) fn lookup_material(item: &Item, user: &BTreeMap<String, (Entry, std::
 /// would otherwise read as 0, and a hot magnet would silently keep its
 /// 20 degC remanence and knee. Writing 0 states it.
 pub(super) fn check_coefficients_known(top: &Fields, study: &Fields, temperature: f64, parts: &[study::model::Part], key: &str) -> Result<(), Diagnostic> {
-    if temperature == 20.0 {
+    // 20 degC within the rounding of a unit conversion (kelvin).
+    if (temperature - 20.0).abs() < 1e-9 {
         return Ok(());
     }
     for p in parts {
