@@ -71,7 +71,8 @@ pub(super) fn forces(top: &Fields, ctx: &Context, model: &Model) -> Result<Vec<F
     Ok(out)
 }
 
-/// Refuses a force on every part that makes or guides flux, in open space
+/// Refuses a force on parts that neither make nor guide flux (zero), and
+/// a force on every part that makes or guides flux, in open space
 /// and no applied field: the parts' forces on each other cancel (action and
 /// reaction), so its net force and torque are zero, and the refinement,
 /// asked for a relative accuracy of zero, ran to its element limit (a pot
@@ -87,6 +88,22 @@ fn refuse_whole_assembly(model: &Model, name: &str, parts: &[usize], span: Range
                 _ => false,
             }
     };
+    // Parts that neither make nor guide flux feel no magnetic force: the
+    // refinement chased 0.1 % of zero on a plastic spacer to 780 000
+    // triangles ("758 %" not reached, 17 s).
+    if parts.iter().all(|&i| inert(&model.parts[i])) {
+        let listed: Vec<String> = parts
+            .iter()
+            .map(|&i| format!("'{}' ({})", model.parts[i].name, model.parts[i].material.name))
+            .collect();
+        return Err(Diagnostic::new(
+            format!(
+                "force '{name}' acts only on parts that neither make nor guide flux ({}): with mu_r 1 and no current they feel no magnetic force; list a magnet, a winding or a permeable part",
+                listed.join(", ")
+            ),
+            Some(span),
+        ));
+    }
     let open = matches!(model.boundary, mesher::OuterBoundary::Open) && model.applied_field == [0.0, 0.0];
     let outside_inert = model.parts.iter().enumerate().all(|(i, p)| parts.contains(&i) || inert(p));
     if !open || !outside_inert {
