@@ -61,7 +61,7 @@ pub(super) fn forces(top: &Fields, ctx: &Context, model: &Model) -> Result<Vec<F
         let name = super::names::name(t.require("name")?, "force.name")?;
         let listed = t.require("parts")?;
         let parts = part_list(listed, model, &format!("force '{name}' parts"))?;
-        refuse_whole_assembly(model, &name, &parts, listed.span.clone())?;
+        refuse_vanishing_force(model, &name, &parts, listed.span.clone())?;
         let torque_about = match t.get("torque_about") {
             Some(p) => ctx.point(p, "force.torque_about")?,
             None => [0.0, 0.0],
@@ -79,7 +79,7 @@ pub(super) fn forces(top: &Fields, ctx: &Context, model: &Model) -> Result<Vec<F
 /// magnet's cup, magnet and plate listed together: 220 000 triangles,
 /// "11 352 %"). A box or a symmetry plane pushes back, and an applied
 /// field turns a magnet: those keep a net torque or force.
-fn refuse_whole_assembly(model: &Model, name: &str, parts: &[usize], span: Range<usize>) -> Result<(), Diagnostic> {
+fn refuse_vanishing_force(model: &Model, name: &str, parts: &[usize], span: Range<usize>) -> Result<(), Diagnostic> {
     let inert = |p: &Part| {
         p.current.is_none()
             && match p.material.material {
