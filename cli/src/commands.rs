@@ -234,6 +234,9 @@ fn solve_sweep(loaded: &Loaded, variants: &[Variant], folder: &OutputFolder, lim
         rows.len(),
         out.join("sweep.csv").display()
     );
+    for line in crate::many_warnings::summary_lines("variants", rows.len(), &sweep::warned(&rows), "sweep-report.md") {
+        println!("{line}");
+    }
     Ok(failed.into_iter().fold(code, i32::max))
 }
 
@@ -438,39 +441,13 @@ fn check_case(case: &Path, over: &BTreeMap<String, f64>, limits: &Limits, progre
         if o.results.expect.is_empty() && !o.model.expects.iter().any(|x| x.statistic.is_some()) {
             println!("  (no [[expect]] in this case)");
         }
-        code = code.max(check_statistics(&loaded, v, &o, limits, progress, &mut suite)?);
+        // The design's warnings, as `solve` shows them (they fail nothing by themselves).
+        for w in &o.results.warnings {
+            println!("  warning: {w}");
+        }
+        code = code.max(crate::tolerance::check(&loaded, v, &o, limits, progress, &mut suite)?);
     }
     Ok((code, suite))
-}
-
-/// Expectations on a statistic (`statistic = "p99"`): `check` runs the
-/// case's tolerance samples and judges them; 1 when one fails.
-fn check_statistics(loaded: &Loaded, v: &Variant, o: &Outcome, limits: &Limits, progress: &Progress, suite: &mut crate::junit::Suite) -> Result<i32, Failure> {
-    if !o.model.expects.iter().any(|x| x.statistic.is_some()) {
-        return Ok(0);
-    }
-    let Some(tol) = crate::case::resolve::tolerance(&loaded.doc, &v.params, &o.model).map_err(|d| loaded.input(&d))? else {
-        return Ok(0);
-    };
-    let samples = crate::tolerance::samples(loaded, &tol, v, limits, progress)?;
-    progress.finish();
-    println!("  over {} tolerance samples:", samples.sets.len());
-    let mut code = 0;
-    for j in crate::tolerance::judge(&o.model, &samples.stats) {
-        println!("  {}", j.line());
-        if !j.pass() {
-            code = 1;
-        }
-        suite.cases.push(crate::junit::Case {
-            name: j.name.clone(),
-            message: match j.verdict {
-                study::results::Verdict::Pass => None,
-                study::results::Verdict::Fail => Some(format!("{} over the tolerance samples is outside {}", j.name, j.bound)),
-                study::results::Verdict::Undecided => Some(format!("{} over the tolerance samples is undecided against {}: {}", j.name, j.bound, j.why)),
-            },
-        });
-    }
-    Ok(code)
 }
 
 pub fn mesh(case: &Path, output: Option<PathBuf>, set: &[String], max_elements: Option<usize>, quiet: bool) -> i32 {
@@ -575,15 +552,5 @@ pub fn merge(folders: &[PathBuf], out: &Path) -> i32 {
 
 /// Why a magnet fails `check` for demagnetization, or None.
 fn demagnetization(m: &study::results::MagnetResult) -> Option<String> {
-    let loss = m.irreversible_loss > study::checks::LOSS_WARNING;
-    let past = m.margin < 0.0;
-    match (loss, past) {
-        (false, false) => None,
-        (true, _) => Some(format!(
-            "loses {:.1} % of its flux irreversibly, past its knee over {:.1} % of its volume",
-            100.0 * m.irreversible_loss,
-            100.0 * m.share_past_knee
-        )),
-        (false, true) => Some(format!("past its knee over {:.1} % of its volume", 100.0 * m.share_past_knee)),
-    }
+    study::checks::demagnetized(m.irreversible_loss, m.margin, m.share_past_knee)
 }

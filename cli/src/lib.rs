@@ -7,6 +7,7 @@ pub mod input_file;
 pub mod interrupt;
 pub mod junit;
 pub mod library_text;
+pub mod many_warnings;
 pub mod optimize;
 pub mod output;
 pub mod progress;

@@ -194,8 +194,16 @@ pub fn solve(loaded: &Loaded, spec: &Optimize, base: &Variant, folder: &OutputFo
         optimum.stop
     );
     for c in at_optimum.iter().filter(|c| c.verdict != Verdict::Pass) {
+        // Only an undecided constraint is helped by a tighter accuracy; a
+        // broken one needs the design space (the bounds of `vary`) or the
+        // bound itself moved.
+        let hint = match (c.verdict, optimum.feasible) {
+            (Verdict::Undecided, _) => "a tighter [study] accuracy would decide it",
+            (_, true) => "the search's evaluation met it and the optimum's own solve does not: tighten [optimize] accuracy",
+            (_, false) => "no design the search reached within the bounds of `vary` meets it; widen them or relax the bound",
+        };
         println!(
-            "  constraint {}: {} at the optimum ({}); a tighter [study] accuracy would decide an undecided one",
+            "  constraint {}: {} at the optimum ({}); {hint}",
             c.text,
             verdict_word(c.verdict),
             c.value.map_or("no value".into(), |v| crate::output::engineering::eng_pm(v, c.error, c.unit))

@@ -81,6 +81,31 @@ pub struct Row {
     pub geometry: String,
     /// The run line of the variant's key.
     pub run: String,
+    /// The variant's design warnings.
+    pub warnings: Vec<String>,
+}
+
+impl Row {
+    /// The variant's folder and swept values, as the summary names it.
+    fn label(&self) -> String {
+        let swept: Vec<String> = self
+            .swept
+            .iter()
+            .map(|(k, v)| format!("{k} = {}", crate::output::engineering::significant_digits(*v, 6)))
+            .collect();
+        format!("variant-{:04} ({})", self.index, swept.join(", "))
+    }
+}
+
+/// The variants that warned, for the summary and the report.
+pub fn warned(rows: &[Row]) -> Vec<crate::many_warnings::Warned> {
+    rows.iter()
+        .filter(|r| !r.warnings.is_empty())
+        .map(|r| crate::many_warnings::Warned {
+            label: r.label(),
+            warnings: r.warnings.clone(),
+        })
+        .collect()
 }
 
 /// Reads every `variant-*` folder below the folders, for `merge`: each
@@ -165,12 +190,14 @@ fn read_row(file: &Path, key: &str) -> Result<Row, String> {
         .as_object()
         .map(|m| m.iter().map(|(k, x)| (k.clone(), x.as_str().unwrap_or("").to_string())).collect())
         .unwrap_or_default();
-    let asked: Vec<String> = v["asked"]
-        .as_array()
-        .map(|a| a.iter().filter_map(|x| x.as_str().map(str::to_string)).collect())
-        .unwrap_or_default();
+    let strings = |x: &Value| -> Vec<String> {
+        x.as_array()
+            .map(|a| a.iter().filter_map(|x| x.as_str().map(str::to_string)).collect())
+            .unwrap_or_default()
+    };
     Ok(Row {
-        asked,
+        warnings: strings(&v["warnings"]),
+        asked: strings(&v["asked"]),
         index: variant.index,
         swept: variant.swept,
         values,
@@ -191,7 +218,8 @@ fn header(rows: &[Row], name: &str, open: &str, close: &str) -> String {
     }
 }
 
-/// The table: variant, swept parameters, converged, then every value (units in the header).
+/// The table: variant, swept parameters, converged, how many warnings the
+/// variant gave, then every value (units in the header).
 pub fn table(rows: &[Row]) -> String {
     let params: Vec<String> = rows.first().map(|r| r.swept.iter().map(|(k, _)| k.clone()).collect()).unwrap_or_default();
     let mut names: Vec<String> = rows.iter().flat_map(|r| r.values.keys().cloned()).collect();
@@ -201,7 +229,7 @@ pub fn table(rows: &[Row]) -> String {
     for p in &params {
         s += &format!(",{p}");
     }
-    s += ",converged";
+    s += ",converged,warnings";
     // Each value with an estimate gets its error in the next column.
     let with_error = |n: &String| rows.iter().any(|r| r.errors.contains_key(n));
     for n in &names {
@@ -217,7 +245,7 @@ pub fn table(rows: &[Row]) -> String {
             let v = r.swept.iter().find(|(k, _)| k == p).map_or(f64::NAN, |x| x.1);
             s += &format!(",{v}");
         }
-        s += &format!(",{}", r.converged);
+        s += &format!(",{},{}", r.converged, r.warnings.len());
         for n in &names {
             s += &r.values.get(n).map_or_else(|| ",".to_string(), |v| format!(",{v:.9e}"));
             if with_error(n) {
@@ -320,6 +348,7 @@ pub fn report(rows: &[Row], charts: &[(String, String, String)]) -> String {
         s += &format!("| {} | {} | {} | {} |\n", r.index, p.join(" | "), r.converged, v.join(" | "));
     }
     s.push('\n');
+    s += &crate::many_warnings::markdown("variants", rows.len(), &warned(rows));
     for (file, name, _) in charts {
         s += &format!("![{name}]({file})\n\n");
     }

@@ -433,3 +433,226 @@ fn a_force_bound_that_holds_for_the_opposite_sign_says_so() {
     let r: serde_json::Value = serde_json::from_str(&json).unwrap();
     assert!(r["expect"][0].get("note").is_none(), "{}", r["expect"]);
 }
+
+/// Solves `text` as a case and keeps its output folder: exit code,
+/// terminal text and the folder.
+fn solve_kept(name: &str, text: &str) -> (i32, String, PathBuf) {
+    let dir = temp(name);
+    let case = dir.join("case.toml");
+    std::fs::write(&case, text).unwrap();
+    let out = dir.join("out");
+    let o = Command::new(env!("CARGO_BIN_EXE_lodestone"))
+        .args(["solve", "--quiet", case.to_str().unwrap(), "-o", out.to_str().unwrap()])
+        .output()
+        .unwrap();
+    let text = format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr));
+    (o.status.code().unwrap_or(-1), text, out)
+}
+
+/// A magnet under a plate `gap` above it (a negative gap puts the plate
+/// into the magnet, which a single solve warns of).
+fn magnet_under_plate(extra: &str) -> String {
+    format!(
+        "[study]\ngeometry = \"axisymmetric\"\nunit = \"mm\"\naccuracy = \"1 %\"\n{OUTPUT}[params]\ngap = 0.5\n{extra}\n{}\
+         [[part]]\nname = \"plate\"\nmaterial = \"DC01\"\nrect = {{ from = [0, \"5 + gap\"], to = [20, \"11 + gap\"] }}\n\
+         [[force]]\nname = \"pull\"\nparts = [\"plate\"]\n",
+        MAGNET.replace("+y", "+z")
+    )
+}
+
+/// A sweep variant's warnings stayed in its own results.json: the summary,
+/// sweep-report.md and sweep.csv said nothing of a variant whose plate lay
+/// inside its magnet.
+#[test]
+fn a_sweep_shows_its_variants_warnings() {
+    let (code, text, out) = solve_kept("sweep-warnings", &magnet_under_plate("[sweep]\ngap = [-0.3, 0.5]\n"));
+    assert_eq!(code, 0, "{text}");
+    assert!(text.contains("WARNING: 1 of 2 variants gave warnings"), "{text}");
+    assert!(
+        text.contains("variant-0000 (gap = -0.3): magnet 'magnet' is 6 % covered by later parts ('plate')"),
+        "{text}"
+    );
+    let report = std::fs::read_to_string(out.join("sweep-report.md")).unwrap();
+    assert!(report.contains("- variant-0000 (gap = -0.3): magnet 'magnet' is 6 % covered"), "{report}");
+    assert!(!report.contains("variant-0001 ("), "{report}");
+    let table = std::fs::read_to_string(out.join("sweep.csv")).unwrap();
+    let counts: Vec<&str> = table.lines().skip(1).map(|l| l.split(',').nth(3).unwrap()).collect();
+    assert!(table.starts_with("variant,gap,converged,warnings,"), "{table}");
+    assert_eq!(counts, ["1", "0"], "{table}");
+}
+
+/// A tolerance study's samples are solved without files: a spread that put
+/// the plate into the magnet in a quarter of the samples counted them in
+/// the statistics with no word said. Now each warned sample is named in
+/// the summary and tolerance.json and counted in tolerance.csv; exactly the
+/// samples with a negative gap warn.
+#[test]
+fn a_tolerance_study_shows_its_samples_warnings() {
+    let tolerance = "[tolerance]\nmethod = \"monte-carlo\"\nsamples = 8\nspread = { gap = { plus_minus = \"1 mm\" } }\n";
+    let (code, text, out) = solve_kept("tolerance-warnings", &magnet_under_plate(tolerance));
+    assert_eq!(code, 0, "{text}");
+    let csv = std::fs::read_to_string(out.join("tolerance.csv")).unwrap();
+    assert!(csv.starts_with("sample,gap,warnings,"), "{csv}");
+    let rows: Vec<(f64, usize)> = csv
+        .lines()
+        .skip(1)
+        .map(|l| {
+            let f: Vec<&str> = l.split(',').collect();
+            (f[1].parse().unwrap(), f[2].parse().unwrap())
+        })
+        .collect();
+    let overlapping = rows.iter().filter(|r| r.0 < 0.0).count();
+    assert!(overlapping > 0 && overlapping < rows.len(), "{csv}");
+    for (gap, warnings) in &rows {
+        assert_eq!(*warnings > 0, *gap < 0.0, "gap {gap}: {csv}");
+    }
+    assert!(text.contains(&format!("WARNING: {overlapping} of 8 tolerance samples gave warnings")), "{text}");
+    let json: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(out.join("tolerance.json")).unwrap()).unwrap();
+    assert_eq!(json["warnings"].as_array().unwrap().len(), overlapping, "{json}");
+}
+
+/// `check` on a tolerance study judged its statistics only: a sample whose
+/// magnet ran past its knee passed unseen, while the same magnet at its
+/// nominal size failed. Each magnet demagnetized in some samples now fails
+/// `check` too, unless the case allows it.
+#[test]
+fn check_fails_a_tolerance_sample_whose_magnet_is_demagnetized() {
+    // A 10 mm disk at 60 degC, t nominal 7 mm: N42's knee falls with its
+    // HcJ (library sources S1 and S5), and a disk 2 mm thick runs past it
+    // (its permeance coefficient is low) where 7 and 12 mm do not.
+    let case = |allow: &str| {
+        format!(
+            "[study]\ngeometry = \"axisymmetric\"\nunit = \"mm\"\naccuracy = \"1 %\"\ntemperature = \"60 degC\"\n{allow}\n{OUTPUT}\
+             [params]\nt = 7\n[[part]]\nname = \"disk\"\nmaterial = \"N42\"\nmagnetization = \"+z\"\nrect = {{ from = [0, 0], to = [5, \"t\"] }}\n\
+             [[probe]]\nname = \"p\"\npoint = [0, 12]\n\
+             [tolerance]\nmethod = \"corners\"\nspread = {{ t = {{ plus_minus = \"5 mm\" }} }}\n\
+             [[expect]]\nvalue = \"probe.p.b\"\nstatistic = \"worst\"\nmin = \"0.1 mT\"\n"
+        )
+    };
+    let (code, text) = check("tolerance-demagnetized", &case(""));
+    assert_eq!(code, 1, "{text}");
+    assert!(text.contains("magnet disk: demagnetized in 1 of 2 tolerance samples"), "{text}");
+    assert!(!text.contains("magnet disk: past its knee"), "the nominal disk holds: {text}");
+    let (code, text) = check("tolerance-demagnetized-allowed", &case("allow = [\"demagnetization\"]"));
+    assert_eq!(code, 0, "{text}");
+    assert!(text.contains("gave warnings"), "{text}");
+}
+
+/// A steel's B-H curve with H written in kA/m (0.3 T at 0.1, 1.4 T at 1)
+/// is read in A/m: a steel a thousand times too permeable (mu_r 2.65e6),
+/// whose pull came out with no sign of it. Now the curve's permeability
+/// past the most permeable nickel-iron alloys' is warned of; the same curve
+/// in A/m is not.
+#[test]
+fn a_curve_with_h_in_kiloamperes_per_metre_is_warned() {
+    let case = |per_unit: f64| {
+        let rows: Vec<String> = [[0.0, 0.0], [0.1, 0.3], [0.3, 1.0], [1.0, 1.4], [5.0, 1.7], [20.0, 1.9], [100.0, 2.1]]
+            .iter()
+            .map(|[h, b]| format!("[{}, {b}]", h * per_unit))
+            .collect();
+        format!(
+            "[study]\ngeometry = \"axisymmetric\"\nunit = \"mm\"\naccuracy = \"1 %\"\n{OUTPUT}[materials.mysteel]\nbh = [{}]\n{}\
+             [[part]]\nname = \"plate\"\nmaterial = \"mysteel\"\nrect = {{ from = [0, 5.5], to = [20, 8] }}\n",
+            rows.join(", "),
+            MAGNET.replace("+y", "+z")
+        )
+    };
+    let (code, text, _) = solve("curve-in-ka", &case(1.0));
+    assert_eq!(code, 0, "{text}");
+    assert!(
+        text.contains("material 'mysteel' (part 'plate'): its B-H curve reaches a relative permeability of 2.65e6 (B / (mu0 H) at H = 0.3 A/m)")
+            && text.contains("kA/m"),
+        "{text}"
+    );
+    let (code, text, _) = solve("curve-in-a", &case(1000.0));
+    assert_eq!(code, 0, "{text}");
+    assert!(!text.contains("relative permeability of"), "{text}");
+}
+
+/// A line probe along the axis from below a magnet to above it took its
+/// largest |B| inside the magnet (561 mT at its middle), and a bound on
+/// `b.max` meant for the field in the air failed or passed on it with no
+/// sign. Now warned, with where; the same line from the magnet's face up
+/// is not.
+#[test]
+fn a_line_probe_whose_peak_lies_inside_a_part_is_warned() {
+    let case = |from: f64| {
+        format!(
+            "[study]\ngeometry = \"axisymmetric\"\nunit = \"mm\"\naccuracy = \"1 %\"\n{OUTPUT}{}\
+             [[probe]]\nname = \"axis\"\nline = {{ from = [0, {from}], to = [0, 30], points = 41 }}\n",
+            MAGNET.replace("+y", "+z")
+        )
+    };
+    let (code, text, _) = solve("line-through-magnet", &case(-10.0));
+    assert_eq!(code, 0, "{text}");
+    assert!(
+        text.contains("probe 'axis': its largest |B| lies inside part 'magnet' (N42) at (0, ")
+            && text.contains("so probe.axis.b.max is the field inside that material"),
+        "{text}"
+    );
+    let (code, text, _) = solve("line-from-the-face", &case(5.0));
+    assert_eq!(code, 0, "{text}");
+    assert!(!text.contains("largest |B| lies inside"), "{text}");
+}
+
+/// A planar study of a 10 mm cube magnet (depth 10 mm) read 45 mm away
+/// gave 8.07 mT +- 0.0003 mT where the cube's field is about 1.65 mT (its
+/// dipole moment Br V / mu0 on the axis: mu0 2m / (4 pi r^3)), with no
+/// sign that the model, not the mesh, was off. Now warned; the same probe
+/// of a part 1 m long is not.
+#[test]
+fn a_planar_study_read_far_from_a_short_part_is_warned() {
+    let case = |depth: f64| {
+        format!(
+            "[study]\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = {depth}\naccuracy = \"1 %\"\n{OUTPUT}\
+             [[part]]\nname = \"magnet\"\nmaterial = \"N42\"\nmagnetization = \"+y\"\nrect = {{ from = [-5, -5], to = [5, 5] }}\n\
+             [[probe]]\nname = \"far\"\npoint = [0, 50]\n"
+        )
+    };
+    let (code, text, _) = solve("planar-short", &case(10.0));
+    assert_eq!(code, 0, "{text}");
+    assert!(
+        text.contains("planar study of depth 10 mm, read far from its parts for their length: probe 'far' (45 mm from the nearest part)"),
+        "{text}"
+    );
+    let (code, text, _) = solve("planar-long", &case(1000.0));
+    assert_eq!(code, 0, "{text}");
+    assert!(!text.contains("read far from its parts"), "{text}");
+}
+
+/// A symmetry plane models the mirror image beyond it. A +y magnet halved
+/// at x = 0 needs a flux-parallel plane; under a flux-normal one it became
+/// two half-magnets magnetized against each other (119 mT at a probe where
+/// the whole magnet gives 187 mT), silently. A winding halved by a
+/// flux-parallel plane became a go-and-return pair. Now each is warned of;
+/// the right plane is not.
+#[test]
+fn a_symmetry_plane_that_mirrors_a_part_into_another_is_warned() {
+    let case = |kind: &str, part: &str| {
+        format!(
+            "[study]\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = 100\naccuracy = \"1 %\"\n{OUTPUT}\
+             [[boundary]]\nkind = \"{kind}\"\nline = {{ from = [0, -50], to = [0, 50] }}\n\
+             [[part]]\nname = \"half\"\n{part}\nrect = {{ from = [0, -5], to = [5, 5] }}\n\
+             [[probe]]\nname = \"above\"\npoint = [0, 10]\n"
+        )
+    };
+    let magnet = "material = \"N42\"\nmagnetization = \"+y\"";
+    let (code, text, _) = solve("plane-magnet-wrong", &case("flux-normal", magnet));
+    assert_eq!(code, 0, "{text}");
+    assert!(
+        text.contains("magnet 'half' is halved by the flux-normal plane x = 0, which mirrors it with its magnetization along the plane reversed")
+            && text.contains("needs a flux-parallel plane here"),
+        "{text}"
+    );
+    let (_, text, _) = solve("plane-magnet-right", &case("flux-parallel", magnet));
+    assert!(!text.contains("is halved by"), "{text}");
+    let winding = "material = \"copper\"\ncurrent = \"100 A\"";
+    let (code, text, _) = solve("plane-winding-wrong", &case("flux-parallel", winding));
+    assert_eq!(code, 0, "{text}");
+    assert!(
+        text.contains("winding 'half' is halved by the flux-parallel plane x = 0, which mirrors it with its current reversed"),
+        "{text}"
+    );
+    let (_, text, _) = solve("plane-winding-right", &case("flux-normal", winding));
+    assert!(!text.contains("is halved by"), "{text}");
+}

@@ -48,7 +48,25 @@ pub enum CurveError {
         /// the row
         row: usize,
     },
+    /// The polarization B - mu0 H passes what any bulk material reaches
+    /// (from `check_polarization`, which a case's tables pass through; the
+    /// curve itself takes any rising table, a test's straight line too).
+    PolarizationBeyondAnyMaterial {
+        /// the row
+        row: usize,
+        /// B - mu0 H there, T
+        polarization: f64,
+    },
 }
+
+/// Largest polarization B - mu0 H a soft material's table may reach, T.
+/// The Slater-Pauling curve peaks at about 2.45 T for iron-cobalt near
+/// Fe70Co30 (the highest saturation of any bulk ferromagnet: neomag.jp
+/// glossary, "Slater-Pauling Curve"; R. M. Bozorth, Ferromagnetism, 1951,
+/// from memory); pure iron saturates at about 2.15 T. A table past 2.6 T
+/// is in other units (B in kilogauss reads ten times too high), not a
+/// material.
+pub const MAX_POLARIZATION: f64 = 2.6;
 
 impl std::fmt::Display for CurveError {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
@@ -61,7 +79,20 @@ impl std::fmt::Display for CurveError {
                 f,
                 "row {row}: the curve rises more slowly than mu0 (dB/dH below the permeability of free space), which no magnetic material does"
             ),
+            CurveError::PolarizationBeyondAnyMaterial { row, polarization } => write!(
+                f,
+                "row {row}: the polarization B - mu0 H is {polarization:.3} T, past the {MAX_POLARIZATION} T no material reaches (iron-cobalt, the highest, saturates near 2.45 T; iron near 2.15 T): give B in tesla (1 T = 10 kG = 10 000 G) and H in A/m"
+            ),
         }
+    }
+}
+
+/// Refuses a table whose polarization passes `MAX_POLARIZATION`: a soft
+/// material's data in kilogauss or gauss.
+pub fn check_polarization(points: &[[f64; 2]]) -> Result<(), CurveError> {
+    match points.iter().map(|p| p[1] - MU0 * p[0]).enumerate().find(|(_, j)| *j > MAX_POLARIZATION) {
+        Some((row, polarization)) => Err(CurveError::PolarizationBeyondAnyMaterial { row, polarization }),
+        None => Ok(()),
     }
 }
 
@@ -266,6 +297,18 @@ mod tests {
             let w = c.energy_density(b);
             assert!((w - trapezoid).abs() <= 1e-6 * trapezoid, "W({b}) = {w} against {trapezoid}");
         }
+    }
+
+    #[test]
+    fn rejects_a_curve_in_kilogauss() {
+        // A mild steel's curve with B written in kilogauss: 15 kG at 2 kA/m.
+        let kg = [[0.0, 0.0], [200.0, 8.0], [2000.0, 15.0], [10000.0, 18.0]];
+        assert!(matches!(check_polarization(&kg), Err(CurveError::PolarizationBeyondAnyMaterial { row: 1, .. })));
+        let tesla = kg.map(|[h, b]| [h, b / 10.0]);
+        assert!(check_polarization(&tesla).is_ok());
+        // Far into saturation B keeps rising with mu0: B = 2.2 T + mu0 H is no error.
+        let deep = [[0.0, 0.0], [1e3, 1.5], [1e6, 2.2 + MU0 * 1e6]];
+        assert!(check_polarization(&deep).is_ok());
     }
 
     #[test]

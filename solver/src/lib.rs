@@ -64,7 +64,7 @@ pub mod source_response;
 pub mod space;
 mod substitution;
 
-pub use bh_curve::{BhCurve, CurveError};
+pub use bh_curve::{check_polarization, BhCurve, CurveError};
 pub use material::Law;
 pub use newton::{SolveError, SolveReport};
 pub use problem::{NewtonSettings, Problem, OWN_LAW_NONE};

@@ -62,7 +62,10 @@ pub fn magnet_results(model: &Model, sol: &Solution, values: &mut BTreeMap<Strin
         // Past the knee over more than WORST_SHARE of the volume (the margin
         // is taken at that percentile): a corner alone does not warn.
         if wp.margin < 0.0 {
-            let when = onset.map_or(String::new(), |c| format!("; by the linear model the knee is first reached near {c:.0} degC"));
+            let when = onset.map_or(String::new(), |(c, above)| {
+                let side = if above { "above" } else { "below" };
+                format!("; by the linear model it is past its knee {side} about {c:.0} degC")
+            });
             warnings.push(format!(
                 "magnet '{}' ({}) is driven past its knee at {t} degC over {:.1} % of its volume: it will lose magnetization{when}",
                 p.name,
@@ -85,7 +88,8 @@ pub fn magnet_results(model: &Model, sol: &Solution, values: &mut BTreeMap<Strin
                 permeance: wp.permeance,
                 mean_b_t: wp.mean_b,
                 mean_h_a_per_m: wp.mean_h,
-                knee_onset_c: onset,
+                knee_onset_c: onset.map(|o| o.0),
+                knee_past_above_onset: onset.map(|o| o.1),
                 points: wp.points,
             },
         );
@@ -93,10 +97,29 @@ pub fn magnet_results(model: &Model, sol: &Solution, values: &mut BTreeMap<Strin
     out
 }
 
+/// Why a magnet with this irreversible loss, margin over its worst 1 % and
+/// share past its knee counts as demagnetized (`check` fails it unless the
+/// case allows it), or None: one rule for a solve and for each tolerance
+/// sample.
+pub fn demagnetized(loss: f64, margin: f64, share_past_knee: f64) -> Option<String> {
+    match (loss > LOSS_WARNING, margin < 0.0) {
+        (false, false) => None,
+        (true, _) => Some(format!(
+            "loses {:.1} % of its flux irreversibly, past its knee over {:.1} % of its volume",
+            100.0 * loss,
+            100.0 * share_past_knee
+        )),
+        (false, true) => Some(format!("past its knee over {:.1} % of its volume", 100.0 * share_past_knee)),
+    }
+}
+
 /// Temperature at which the most demagnetized 1 % of the volume meets the knee, by the
 /// linear model: the demagnetizing field scales with Br(T) and the knee with
 /// HcJ(T), both by their reversible coefficients from 20 degC.
-fn onset_temperature(worst_h: f64, t0: f64, br_coeff: f64, hcj_coeff: f64, knee20: f64) -> Option<f64> {
+/// Also whether the magnet is past its knee above that temperature (NdFeB
+/// and SmCo, whose coercivity falls as they warm) or below it (ferrite,
+/// whose coercivity falls as it cools).
+fn onset_temperature(worst_h: f64, t0: f64, br_coeff: f64, hcj_coeff: f64, knee20: f64) -> Option<(f64, bool)> {
     if worst_h.is_nan() || worst_h >= 0.0 || !knee20.is_finite() {
         return None;
     }
@@ -108,7 +131,9 @@ fn onset_temperature(worst_h: f64, t0: f64, br_coeff: f64, hcj_coeff: f64, knee2
     }
     let u = (-knee20 - worst_h / s) / denominator;
     let t = 20.0 + u;
-    (-100.0..=400.0).contains(&t).then_some(t)
+    // The distance to the knee, knee20 (1 + aj u) + worst_h (1 + ab u) / s,
+    // changes by `denominator` per kelvin: falling, the knee lies above.
+    (-100.0..=400.0).contains(&t).then_some((t, denominator < 0.0))
 }
 
 /// The stray field: dipole moment, implant and reach distances, air-transport screen.
@@ -199,4 +224,32 @@ fn air_screen(h21: f64, h46: f64) -> String {
         "below both the current and the older threshold at 2.1 m"
     };
     format!("{verdict}. Screening estimate for one bare assembly from its dipole moment, measured from its centre, not a packaging verdict: shielding, packing and several items change it; follow the current IATA Dangerous Goods Regulations and the carrier.")
+}
+
+#[cfg(test)]
+mod tests {
+    use super::onset_temperature;
+
+    /// The distance to the knee at `t` (negative: past it), by the model's own scaling.
+    fn distance(worst_h: f64, t0: f64, br_coeff: f64, hcj_coeff: f64, knee20: f64, t: f64) -> f64 {
+        let s = 1.0 + br_coeff / 100.0 * (t0 - 20.0);
+        knee20 * (1.0 + hcj_coeff / 100.0 * (t - 20.0)) + worst_h * (1.0 + br_coeff / 100.0 * (t - 20.0)) / s
+    }
+
+    /// NdFeB's coercivity falls as it warms (about -0.6 %/K, sources S1 and
+    /// S5 of docs/materials.md), ferrite's as it cools (Y30: +0.27 %/K, Br
+    /// -0.2 %/K, source S23): the onset is where the distance to the knee is
+    /// zero, and the side past it is the warmer one for NdFeB, the colder
+    /// for ferrite.
+    #[test]
+    fn the_onset_is_where_the_knee_is_met_and_on_the_right_side() {
+        for (br, hcj, above) in [(-0.12, -0.6, true), (-0.2, 0.27, false)] {
+            let (knee20, worst_h, t0) = (900e3, -700e3, 40.0);
+            let (t, past_above) = onset_temperature(worst_h, t0, br, hcj, knee20).unwrap();
+            assert!(distance(worst_h, t0, br, hcj, knee20, t).abs() < 1e-6 * knee20, "{t}");
+            assert_eq!(past_above, above);
+            let side = if above { t + 10.0 } else { t - 10.0 };
+            assert!(distance(worst_h, t0, br, hcj, knee20, side) < 0.0, "past the knee beyond the onset");
+        }
+    }
 }

@@ -139,3 +139,26 @@ pub(crate) fn saturation_warnings(model: &Model, parts: &BTreeMap<String, PartRe
     }
     warnings
 }
+
+/// Parts whose B-H curve is more permeable than any soft material: most
+/// often a steel's curve with H in kA/m (or oersted) read as A/m, which
+/// makes the steel a thousand times too permeable and the pull too high,
+/// with no other sign.
+pub(crate) fn implausible_curve_warnings(model: &Model) -> Vec<String> {
+    let mut seen = Vec::new();
+    let mut warnings = Vec::new();
+    for p in &model.parts {
+        let Material::Soft { curve } = &p.material.material else { continue };
+        let (mu, h) = crate::materials::largest_relative_permeability(curve);
+        if mu > crate::materials::PLAUSIBLE_RELATIVE_PERMEABILITY && !seen.contains(&&p.material.name) {
+            seen.push(&p.material.name);
+            warnings.push(format!(
+                "material '{}' (part '{}'): its B-H curve reaches a relative permeability of {mu:.2e} (B / (mu0 H) at H = {h} A/m), past the {:.0e} of the most permeable nickel-iron alloys: is H in kA/m or oersted rather than A/m (1 kA/m = 1000 A/m, 1 Oe = 79.6 A/m)?",
+                p.material.name,
+                p.name,
+                crate::materials::PLAUSIBLE_RELATIVE_PERMEABILITY
+            ));
+        }
+    }
+    warnings
+}

@@ -8,7 +8,6 @@ use crate::results::*;
 use mesher::Symmetry;
 use rayon::prelude::*;
 use solver::post::{energy, flux, force};
-use solver::space::ElementKind;
 use solver::Solution;
 use std::collections::BTreeMap;
 
@@ -78,13 +77,17 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
         }
     }
     warnings.extend(crate::part_fields::saturation_warnings(model, &parts));
+    warnings.extend(crate::part_fields::implausible_curve_warnings(model));
     // With an accuracy the mesh is refined until the estimates meet it, so
     // a first mesh coarse across a thin part is not a warning (it said "2
     // elements across" of a mesh later split four times over).
     if model.accuracy.is_none() {
         warnings.extend(thin_parts(model));
     }
-    warnings.extend(modelling_warnings(model, sol, &corners));
+    warnings.extend(modelling_warnings(model, sol));
+    warnings.extend(crate::probe_warnings::probe_warnings(model, sol, &corners, &probes));
+    warnings.extend(crate::probe_warnings::planar_far_field(model, &probes, stray.reach_axis_m));
+    warnings.extend(crate::plane_warnings::mirrored_parts(model));
     // Local refinement bisects triangles at their longest edge, which keeps
     // at least half of the first mesh's smallest angle (mesher::bisect):
     // only a smaller angle says the mesher fell short.
@@ -396,48 +399,15 @@ fn cautions(model: &Model) -> Vec<&'static str> {
 const COVERED_SHARE: f64 = 0.01;
 
 /// Mistakes that give plausible-looking but wrong numbers: a planar study
-/// without depth (results per metre: 26 kN for a 50 mm part), a point probe
-/// inside material, a magnet or winding partly covered by a later part (a
-/// plate drawn into a magnet cut its pull from 38 N to 9.6 N).
-fn modelling_warnings(model: &Model, sol: &Solution, corners: &crate::lower::SingularCorners) -> Vec<String> {
+/// without depth (results per metre: 26 kN for a 50 mm part), a magnet or
+/// winding partly covered by a later part (a plate drawn into a magnet cut
+/// its pull from 38 N to 9.6 N); the probes' own in `probe_warnings`.
+fn modelling_warnings(model: &Model, sol: &Solution) -> Vec<String> {
     let mut out = Vec::new();
     if model.symmetry == Symmetry::Planar && !model.depth_given {
         out.push(
             "planar study without study.depth: forces, fluxes and energies are per metre of depth; give the assembly's length along z as depth".to_string(),
         );
-    }
-    for p in &model.probes {
-        if let ProbeShape::Point(x) = p.shape {
-            if let Some((e, _)) = sol.element_at(x) {
-                if let ElementKind::Part(i) = sol.elements.kinds[e] {
-                    let part = &model.parts[i];
-                    if !matches!(part.material.material, Material::Air | Material::Conductor) {
-                        out.push(format!(
-                            "probe '{}' lies inside part '{}' ({}): its field is the field inside that material",
-                            p.name, part.name, part.material.name
-                        ));
-                    }
-                }
-            }
-        }
-    }
-    for p in model.probes.iter().filter(|p| matches!(p.shape, ProbeShape::Line { .. })) {
-        let on: Vec<(String, &str)> = probe_points(&p.shape)
-            .into_iter()
-            .filter_map(|x| {
-                corners
-                    .part_at(x)
-                    .map(|part| (format!("({}, {})", x[0] / model.length_unit.1, x[1] / model.length_unit.1), part.name.as_str()))
-            })
-            .collect();
-        if let Some((at, part)) = on.first() {
-            out.push(format!(
-                "probe '{}': {} sample(s) on a corner of a part (the first at {at} {}, a corner of '{part}'), where the field is singular, left out (NaN in its CSV and results)",
-                p.name,
-                on.len(),
-                model.length_unit.0
-            ));
-        }
     }
     let meshed = sol.problem.mesh.part_areas_curved(model.parts.len());
     for (i, (p, area)) in model.parts.iter().zip(meshed).enumerate() {

@@ -249,6 +249,9 @@ pub struct MagnetResult {
     pub mean_h_a_per_m: f64,
     /// Temperature at which the most demagnetized 1 % of the volume reaches the knee (linear model estimate).
     pub knee_onset_c: Option<f64>,
+    /// Whether the magnet is past its knee above the onset (NdFeB, SmCo)
+    /// or below it (ferrite, whose coercivity falls as it cools).
+    pub knee_past_above_onset: Option<bool>,
     /// (H, B) along the magnetization at each quadrature point, for plots.
     #[cfg_attr(feature = "serde", serde(skip))]
     pub points: Vec<[f64; 2]>,

@@ -128,7 +128,7 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
     }
     s.push('\n');
     if !r.magnets.is_empty() {
-        let _ = writeln!(s, "## Magnets at {} degC\n\nThe knee is taken at {:.0} % of HcJ at the study temperature; the margin is 1 - H/H_knee over the most demagnetized 1 % of the volume (0: at the knee; the value at the single worst point, `margin_local` in results.json, follows the mesh at corners and is not judged). The onset temperature is a linear-model estimate (field scaled with Br, knee with HcJ).\n\n| magnet | grade | Br (T) | HcJ (kA/m) | margin | past knee | permeance | onset (degC) |\n|---|---|---|---|---|---|---|---|", model.temperature, 100.0 * study::checks::KNEE_FRACTION);
+        let _ = writeln!(s, "## Magnets at {} degC\n\nThe knee is taken at {:.0} % of HcJ at the study temperature; the margin is 1 - H/H_knee over the most demagnetized 1 % of the volume (0: at the knee; the value at the single worst point, `margin_local` in results.json, follows the mesh at corners and is not judged). The onset is the temperature past which the magnet runs past its knee (above it for NdFeB and SmCo, below it for ferrite, whose coercivity falls as it cools), a linear-model estimate (field scaled with Br, knee with HcJ).\n\n| magnet | grade | Br (T) | HcJ (kA/m) | margin | past knee | permeance | onset (degC) |\n|---|---|---|---|---|---|---|---|", model.temperature, 100.0 * study::checks::KNEE_FRACTION);
         for (n, m) in &r.magnets {
             let _ = writeln!(
                 s,
@@ -139,7 +139,10 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
                 eng_pm(m.margin, err(format!("magnet.{n}.margin")), ""),
                 percent_pm(m.share_past_knee, err(format!("magnet.{n}.share_past_knee"))),
                 eng_pm(m.permeance, err(format!("magnet.{n}.permeance")), ""),
-                opt(m.knee_onset_c, 1.0, 0)
+                m.knee_onset_c.map_or("-".into(), |c| format!(
+                    "past it {} {c:.0}",
+                    if m.knee_past_above_onset == Some(false) { "below" } else { "above" }
+                ))
             );
         }
         s.push('\n');

@@ -8,7 +8,8 @@ use crate::run::Failure;
 use std::collections::BTreeMap;
 use study::tolerance::Statistics;
 
-/// tolerance.csv: each sample's parameters, then each value and its
+/// tolerance.csv: each sample's parameters, how many warnings it gave,
+/// then each value and its
 /// estimated error (`NAME.error`, for values that have one), as sweep.csv.
 pub(super) fn csv(tol: &Tolerance, sets: &[Vec<f64>], samples: &[Sample]) -> String {
     let names: Vec<String> = samples.first().map(|v| v.values.keys().cloned().collect()).unwrap_or_default();
@@ -16,6 +17,7 @@ pub(super) fn csv(tol: &Tolerance, sets: &[Vec<f64>], samples: &[Sample]) -> Str
     for sp in &tol.spreads {
         s += &format!(",{}", sp.name);
     }
+    s += ",warnings";
     let with_error = |n: &String| samples.iter().any(|v| v.errors.contains_key(n));
     for n in &names {
         s += &format!(",{n}");
@@ -29,6 +31,7 @@ pub(super) fn csv(tol: &Tolerance, sets: &[Vec<f64>], samples: &[Sample]) -> Str
         for x in set {
             s += &format!(",{x}");
         }
+        s += &format!(",{}", v.warnings.len());
         for n in &names {
             s += &format!(",{}", v.values.get(n).copied().unwrap_or(f64::NAN));
             if with_error(n) {
@@ -40,7 +43,18 @@ pub(super) fn csv(tol: &Tolerance, sets: &[Vec<f64>], samples: &[Sample]) -> Str
     s
 }
 
-pub(super) fn json(tol: &Tolerance, stats: &BTreeMap<String, Statistics>, off_corner: &[String], n: usize, judged: &[Judged]) -> Result<Vec<u8>, Failure> {
+pub(super) fn json(
+    tol: &Tolerance,
+    stats: &BTreeMap<String, Statistics>,
+    off_corner: &[String],
+    n: usize,
+    judged: &[Judged],
+    warned: &[crate::many_warnings::Warned],
+) -> Result<Vec<u8>, Failure> {
+    let warnings: Vec<_> = warned
+        .iter()
+        .map(|w| serde_json::json!({ "sample": w.label, "warnings": w.warnings }))
+        .collect();
     let spreads: Vec<_> = tol
         .spreads
         .iter()
@@ -69,7 +83,7 @@ pub(super) fn json(tol: &Tolerance, stats: &BTreeMap<String, Statistics>, off_co
             serde_json::json!({ "value": j.name, "bound": j.bound, "figures": j.figures, "ranges": ranges, "verdict": j.verdict_text().to_lowercase(), "why": j.why, "pass": j.pass() })
         })
         .collect();
-    let json = serde_json::json!({ "method": method, "samples": n, "spreads": spreads, "statistics": statistics, "expect": expect, "note": "values in SI; percentiles interpolate between order statistics (Hyndman and Fan type 7); error: the samples' largest estimated numerical error, which bounds every statistic's; interval_95 (Monte Carlo): the distribution-free 95 % interval of each percentile between two order statistics (null: the samples cannot bound that end), before the numerical error; an expectation on a statistic is undecided where the bound lies within these; a normal spread's plus_minus is three standard deviations" });
+    let json = serde_json::json!({ "method": method, "samples": n, "spreads": spreads, "statistics": statistics, "expect": expect, "warnings": warnings, "note": "values in SI; percentiles interpolate between order statistics (Hyndman and Fan type 7); error: the samples' largest estimated numerical error, which bounds every statistic's; interval_95 (Monte Carlo): the distribution-free 95 % interval of each percentile between two order statistics (null: the samples cannot bound that end), before the numerical error; an expectation on a statistic is undecided where the bound lies within these; a normal spread's plus_minus is three standard deviations" });
     serde_json::to_vec_pretty(&json).map_err(|e| Failure::Input(format!("error: cannot encode tolerance.json: {e}\n")))
 }
 

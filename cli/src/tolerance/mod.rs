@@ -3,14 +3,17 @@
 //! nominal case solved in full and written with tolerance.csv and
 //! tolerance.json as one set.
 
+mod check;
 mod files;
 mod judge;
 mod store;
 
+pub use check::check;
 pub use judge::{judge, Judged};
 pub use store::{gather, Run, Sample};
 
 use crate::case::resolve::{Method, Tolerance};
+use crate::many_warnings::{markdown, summary_lines, Warned};
 use crate::output::folder::OutputFolder;
 use crate::progress::Progress;
 use crate::run::{self, Failure, Limits, Loaded, Variant};
@@ -40,6 +43,7 @@ fn sample(loaded: &Loaded, base: &Variant, tol: &Tolerance, at: &[f64], limits: 
     Ok(Sample {
         values: results.values,
         errors: results.errors,
+        warnings: results.warnings,
     })
 }
 
@@ -121,6 +125,32 @@ pub struct Samples {
     pub stats: BTreeMap<String, Statistics>,
     /// Values whose worst case is not at a corner (corners method).
     pub off_corner: Vec<String>,
+    /// The samples (and face centres) that gave warnings.
+    pub warned: Vec<Warned>,
+    /// How many solves the samples took (corners and face centres).
+    pub solves: usize,
+}
+
+/// The samples of one kind (`sample`, `corner`, `face centre`) that gave
+/// warnings, each named with its parameters.
+fn warned_of(tol: &Tolerance, what: &str, sets: &[Vec<f64>], samples: &[Sample]) -> Vec<Warned> {
+    sets.iter()
+        .zip(samples)
+        .enumerate()
+        .filter(|(_, (_, s))| !s.warnings.is_empty())
+        .map(|(i, (set, s))| {
+            let at: Vec<String> = tol
+                .spreads
+                .iter()
+                .zip(set)
+                .map(|(p, x)| format!("{} = {}", p.name, crate::output::engineering::significant_digits(*x, 6)))
+                .collect();
+            Warned {
+                label: format!("{what} {i} ({})", at.join(", ")),
+                warnings: s.warnings.clone(),
+            }
+        })
+        .collect()
 }
 
 /// Solves the samples of a tolerance study, or, with a store, keeps each
@@ -143,14 +173,16 @@ fn samples_kept(
             Ok(v.into_iter().flatten().collect())
         }
     };
-    let (sets, values, off_corner) = match tol.method {
+    let (sets, values, off_corner, warned, solves) = match tol.method {
         Method::MonteCarlo { samples, seed } => {
             let sets = latin_hypercube(&tol.spreads, samples, seed);
             let values = match whole(solve_all(&job, &sets, progress, "sample", store)?) {
                 Ok(v) => v,
                 Err(m) => return Ok(Err(m)),
             };
-            (sets, values, Vec::new())
+            let warned = warned_of(tol, "sample", &sets, &values);
+            let solves = values.len();
+            (sets, values, Vec::new(), warned, solves)
         }
         Method::Corners => {
             let (corner_sets, inside_sets) = corners(&tol.spreads);
@@ -161,7 +193,10 @@ fn samples_kept(
                 (a, b) => return Ok(Err(a.err().unwrap_or(0) + b.err().unwrap_or(0))),
             };
             let off = not_at_corners(&all_statistics(&values, false), &inside);
-            (corner_sets, values, off)
+            let mut warned = warned_of(tol, "corner", &corner_sets, &values);
+            warned.extend(warned_of(tol, "face centre", &inside_sets, &inside));
+            let solves = values.len() + inside.len();
+            (corner_sets, values, off, warned, solves)
         }
     };
     let stats = all_statistics(&values, matches!(tol.method, Method::MonteCarlo { .. }));
@@ -170,6 +205,8 @@ fn samples_kept(
         values,
         stats,
         off_corner,
+        warned,
+        solves,
     }))
 }
 
@@ -192,6 +229,8 @@ pub fn solve(loaded: &Loaded, tol: &Tolerance, base: &Variant, folder: &OutputFo
         values,
         stats,
         off_corner,
+        warned,
+        solves,
     } = match samples_kept(loaded, tol, base, limits, progress, Some(&store))? {
         Ok(s) => s,
         Err(missing) => {
@@ -212,11 +251,11 @@ pub fn solve(loaded: &Loaded, tol: &Tolerance, base: &Variant, folder: &OutputFo
     let judged = judge(&outcome.model, &stats);
     crate::output::report::add_section(
         &mut outcome.files,
-        &report_section(tol, &stats, &outcome.results, sets.len(), &off_corner, &judged),
+        &(report_section(tol, &stats, &outcome.results, sets.len(), &off_corner, &judged) + &markdown("tolerance samples", solves, &warned)),
     );
     outcome
         .files
-        .push(("tolerance.json".into(), json(tol, &stats, &off_corner, sets.len(), &judged)?));
+        .push(("tolerance.json".into(), json(tol, &stats, &off_corner, sets.len(), &judged, &warned)?));
     folder
         .commit(Path::new(""), &outcome.files)
         .map_err(|e| Failure::Input(format!("error: {e}\n")))?;
@@ -246,6 +285,9 @@ pub fn solve(loaded: &Loaded, tol: &Tolerance, base: &Variant, folder: &OutputFo
                 }
             }
         }
+    }
+    for line in summary_lines("tolerance samples", solves, &warned, "tolerance.json") {
+        println!("{line}");
     }
     for name in &off_corner {
         println!("  WARNING: {name}: a face centre of the tolerance box goes past the corners' extremes, so its worst case is not at a corner; use method = \"monte-carlo\"");

@@ -16,6 +16,8 @@ pub struct Sample {
     pub values: Values,
     /// Estimated absolute errors by name, SI (not every value has one).
     pub errors: Values,
+    /// The sample's design warnings.
+    pub warnings: Vec<String>,
 }
 
 /// How a tolerance run keeps its samples: each solved sample is committed
@@ -48,8 +50,9 @@ impl Store<'_> {
         format!("{h:016x}")
     }
 
-    /// A kept sample's values and errors, when whole and of this case (a
-    /// sample kept before errors were, without errors.json, is solved again).
+    /// A kept sample's values, errors and warnings, when whole and of this
+    /// case (a sample kept before errors or warnings were, without
+    /// errors.json or warnings.json, is solved again).
     pub(super) fn kept(&self, label: &str, key: &str) -> Option<Sample> {
         if self.run.force {
             return None;
@@ -65,6 +68,7 @@ impl Store<'_> {
         Some(Sample {
             values: read("values.json")?,
             errors: read("errors.json")?,
+            warnings: serde_json::from_str(&std::fs::read_to_string(dir.join("warnings.json")).ok()?).ok()?,
         })
     }
 
@@ -77,6 +81,10 @@ impl Store<'_> {
         let files: crate::output::FileSet = vec![
             ("values.json".into(), encode(&sample.values)?),
             ("errors.json".into(), encode(&sample.errors)?),
+            (
+                "warnings.json".into(),
+                serde_json::to_vec(&sample.warnings).map_err(|e| Failure::Input(format!("error: cannot encode a sample: {e}\n")))?,
+            ),
             ("sample.hash".into(), key.as_bytes().to_vec()),
         ];
         self.folder
@@ -91,7 +99,7 @@ impl Store<'_> {
 }
 
 /// `merge` of tolerance shards: every kept sample of the folders, each a
-/// whole set (values, errors and key), copied into `out/samples`; a sample found
+/// whole set (values, errors, warnings and key), copied into `out/samples`; a sample found
 /// twice must be the same. The number gathered.
 pub fn gather(folders: &[std::path::PathBuf], out: &Path) -> Result<usize, String> {
     let folder = OutputFolder::open(out)?;
@@ -100,10 +108,11 @@ pub fn gather(folders: &[std::path::PathBuf], out: &Path) -> Result<usize, Strin
         let Ok(entries) = std::fs::read_dir(f.join("samples")) else { continue };
         for e in entries.flatten() {
             let label = e.file_name().to_string_lossy().into_owned();
-            let (Ok(key), Ok(values), Ok(errors)) = (
+            let (Ok(key), Ok(values), Ok(errors), Ok(warnings)) = (
                 std::fs::read_to_string(e.path().join("sample.hash")),
                 std::fs::read(e.path().join("values.json")),
                 std::fs::read(e.path().join("errors.json")),
+                std::fs::read(e.path().join("warnings.json")),
             ) else {
                 continue;
             };
@@ -115,6 +124,7 @@ pub fn gather(folders: &[std::path::PathBuf], out: &Path) -> Result<usize, Strin
             let files: crate::output::FileSet = vec![
                 ("values.json".into(), values),
                 ("errors.json".into(), errors),
+                ("warnings.json".into(), warnings),
                 ("sample.hash".into(), key.clone().into_bytes()),
             ];
             folder.commit(&Path::new("samples").join(&label), &files)?;

@@ -7,10 +7,12 @@ use solver::{BhCurve, MU0};
 
 pub use solver::CurveError;
 
-/// Whether a B-H table makes a valid curve (starts at the origin, rises,
-/// slope above mu0, finite), and if not, the row at fault.
+/// Whether a B-H table makes a valid curve of a material (starts at the
+/// origin, rises, slope above mu0, finite, polarization within what any
+/// material reaches), and if not, the row at fault.
 pub fn check_table(table: &[[f64; 2]]) -> Result<(), CurveError> {
-    BhCurve::new(table).map(|_| ())
+    BhCurve::new(table)?;
+    solver::check_polarization(table)
 }
 
 /// The interpolated (Fritsch-Carlson) B-H curve from B = 0 to `b_top`,
@@ -63,4 +65,22 @@ impl MagnetGrade {
         let h_end = -hcb.min(self.hcj_at(celsius));
         [[h_end, self.recoil_b(h_end, celsius)], [0.0, self.br_at(celsius)]]
     }
+}
+
+/// Highest relative permeability a soft material's curve is taken to
+/// reach without a warning. The best nickel-iron alloys reach a few
+/// hundred thousand in steady fields (Mumetal up to 350 000: Imphy Alloys,
+/// "Mumetal, Permimphy, Supermimphy" data sheet), the very best about a
+/// million (from memory); mild steels a few thousand. A curve past this
+/// is most often an ordinary steel's with H in kA/m or oersted read as A/m.
+pub const PLAUSIBLE_RELATIVE_PERMEABILITY: f64 = 1e6;
+
+/// The largest secant relative permeability B / (mu0 H) over a table's
+/// rows with H > 0, and the H (A/m) of that row.
+pub fn largest_relative_permeability(table: &[[f64; 2]]) -> (f64, f64) {
+    table
+        .iter()
+        .filter(|p| p[0] > 0.0)
+        .map(|p| (p[1] / (MU0 * p[0]), p[0]))
+        .fold((0.0, 0.0), |best, x| if x.0 > best.0 { x } else { best })
 }

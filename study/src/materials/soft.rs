@@ -102,12 +102,16 @@ mod tests {
         assert!((1.65..1.75).contains(&knee), "{knee}");
     }
 
-    /// Every curve must pass the solver's own table check, and no curve may
-    /// carry a from-memory label: the library holds sourced curves only.
+    /// Every curve must pass the solver's own table check (its polarization
+    /// within what iron-cobalt reaches among them), stay within the
+    /// permeability a case's curve is warned past, and carry no
+    /// from-memory label: the library holds sourced curves only.
     #[test]
     fn every_curve_is_valid_and_sourced() {
         for (name, _, points, source) in all() {
             assert!(super::super::check_table(points).is_ok(), "{name}");
+            let (mu, _) = super::super::largest_relative_permeability(points);
+            assert!(mu > 100.0 && mu < super::super::PLAUSIBLE_RELATIVE_PERMEABILITY, "{name}: {mu}");
             assert!(!source.to_lowercase().contains("from memory"), "{name}: {source}");
         }
     }

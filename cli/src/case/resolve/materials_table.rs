@@ -70,6 +70,7 @@ fn user_material(t: &Fields, ctx: &Context, dir: &Path, what: &str) -> Result<Ma
     }
     if let Some(br) = t.get("br") {
         let br_v = ctx.quantity(br, Kind::FluxDensity, &format!("{what} br"))?;
+        within_any_material(br_v, br, &format!("{what} br: a remanence"))?;
         let mu = match (t.get("mur"), t.get("hcb")) {
             (Some(m), None) => positive_number(m, &format!("{what} mur"))?,
             (None, Some(h)) => MagnetGrade::recoil_permeability_from(br_v, ctx.positive(h, Kind::FieldStrength, &format!("{what} hcb"))?),
@@ -179,6 +180,9 @@ fn table_magnet(t: &Fields, ctx: &Context, jh: &Item, what: &str) -> Result<Mate
         }
         pts.push([r[0].number("H")?, r[1].number("J")?]);
     }
+    for (row, p) in jh.array(&format!("{what} jh"))?.iter().zip(&pts) {
+        within_any_material(p[1], row, &format!("{what} jh: a polarization"))?;
+    }
     let mu = match t.get("mur") {
         Some(m) => positive_number(m, &format!("{what} mur"))?,
         None => MagnetGrade::DEFAULT_RECOIL_PERMEABILITY,
@@ -194,6 +198,22 @@ fn table_magnet(t: &Fields, ctx: &Context, jh: &Item, what: &str) -> Result<Mate
         .map_err(|msg| Diagnostic::new(format!("{what} jh: {msg}"), Some(jh.span.clone())))
 }
 
+/// Refuses a remanence or polarization past what any material reaches
+/// (`solver::bh_curve::MAX_POLARIZATION`): the strongest sintered NdFeB
+/// grades give about 1.5 T, so 13 T is a figure in kilogauss.
+fn within_any_material(tesla: f64, item: &Item, what: &str) -> Result<(), Diagnostic> {
+    if tesla > solver::bh_curve::MAX_POLARIZATION {
+        return Err(Diagnostic::new(
+            format!(
+                "{what} of {tesla} T is past the {} T no material reaches (the strongest magnets give about 1.5 T): give it in tesla, or with its unit (\"12.6 kG\")",
+                solver::bh_curve::MAX_POLARIZATION
+            ),
+            Some(item.span.clone()),
+        ));
+    }
+    Ok(())
+}
+
 pub(super) fn positive_number(item: &Item, what: &str) -> Result<f64, Diagnostic> {
     let v = item.number(what)?;
     if v > 0.0 {
@@ -207,7 +227,10 @@ pub(super) fn positive_number(item: &Item, what: &str) -> Result<f64, Diagnostic
 fn check_curve(pts: &[[f64; 2]], item: &Item, what: &str, csv: Option<(&Path, &[usize])>) -> Result<(), Diagnostic> {
     materials::check_table(pts).map_err(|e| {
         let row = match e {
-            materials::CurveError::NotFinite { row } | materials::CurveError::NotIncreasing { row } | materials::CurveError::SlopeBelowMu0 { row } => Some(row),
+            materials::CurveError::NotFinite { row }
+            | materials::CurveError::NotIncreasing { row }
+            | materials::CurveError::SlopeBelowMu0 { row }
+            | materials::CurveError::PolarizationBeyondAnyMaterial { row, .. } => Some(row),
             materials::CurveError::DoesNotStartAtOrigin => Some(0),
             materials::CurveError::TooFewPoints(_) => None,
         };
