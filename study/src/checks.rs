@@ -48,6 +48,12 @@ pub fn magnet_results(model: &Model, sol: &Solution, values: &mut BTreeMap<Strin
         values.insert(format!("magnet.{}.permeance", p.name), wp.permeance);
         values.insert(format!("magnet.{}.share_past_knee", p.name), wp.share_past_knee);
         values.insert(format!("magnet.{}.loss", p.name), wp.loss);
+        if let Some(rated) = g.max_temperature.filter(|&rated| t > rated) {
+            warnings.push(format!(
+                "magnet '{}' ({}) runs at {t} degC, above its grade's rated maximum working temperature ({rated} degC): its Br, knee and losses come from the linear temperature model carried past the catalogue's range; confirm them with the maker's curves at that temperature",
+                p.name, p.material.name
+            ));
+        }
         if wp.loss > LOSS_WARNING {
             let after = model
                 .exposure
