@@ -13,6 +13,7 @@
 
 #![warn(missing_docs)]
 
+mod boundary_warnings;
 pub mod checks;
 pub mod coil;
 pub mod estimate;
@@ -21,7 +22,6 @@ pub mod materials;
 pub mod model;
 pub mod optimize;
 mod part_fields;
-mod plane_warnings;
 pub mod post;
 mod probe_warnings;
 pub mod quantity;

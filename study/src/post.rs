@@ -87,7 +87,11 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
     warnings.extend(modelling_warnings(model, sol));
     warnings.extend(crate::probe_warnings::probe_warnings(model, sol, &corners, &probes));
     warnings.extend(crate::probe_warnings::planar_far_field(model, &probes, stray.reach_axis_m));
-    warnings.extend(crate::plane_warnings::mirrored_parts(model));
+    warnings.extend(crate::boundary_warnings::mirrored_parts(model));
+    warnings.extend(crate::boundary_warnings::near_far_walls(
+        model,
+        mesher::geometry::bbox(mesh.nodes[..mesh.n_physical].iter().copied()),
+    ));
     // Local refinement bisects triangles at their longest edge, which keeps
     // at least half of the first mesh's smallest angle (mesher::bisect):
     // only a smaller angle says the mesher fell short.

@@ -109,3 +109,50 @@ pub(crate) fn mirrored_parts(model: &Model) -> Vec<String> {
     }
     out
 }
+
+/// How many times the parts' extent a far wall of a flux-parallel box must
+/// stand from them. A wall holds the flux in, and the box's truncation is
+/// not in the error estimates. Measured on a 10 x 5 mm N42 disk under a
+/// 16 x 2 mm DC01 plate (axisymmetric, walls k extents from the parts'
+/// box, against the open boundary): the pull 1.9 % off at k = 1, 0.43 % at
+/// 2, 0.10 % at 4, 0.014 % at 8; a probe 4 mm above the plate 56 %, 17 %,
+/// 3.8 % and 0.65 % off. A box with a periodic pair is left out: across a
+/// period the field dies away exponentially (the linear coupling's pull
+/// moved by 2e-6 with its walls from 0.55 to 3.5 periods away).
+const FAR_WALL_EXTENTS: f64 = 4.0;
+
+/// The far walls of a flux-parallel box (`domain`: the meshed box) that
+/// stand within FAR_WALL_EXTENTS of the parts, as a warning.
+pub(crate) fn near_far_walls(model: &Model, domain: ([f64; 2], [f64; 2])) -> Option<String> {
+    let OuterBoundary::FluxParallel { sides, .. } = &model.boundary else {
+        return None;
+    };
+    if sides.iter().any(|s| matches!(s, SideKind::Periodic { .. })) || model.parts.is_empty() {
+        return None;
+    }
+    let bounds: Vec<_> = model.parts.iter().map(|p| p.shape.bounds()).collect();
+    let lo = [0, 1].map(|k| bounds.iter().map(|b| b.0[k]).fold(f64::INFINITY, f64::min));
+    let hi = [0, 1].map(|k| bounds.iter().map(|b| b.1[k]).fold(f64::NEG_INFINITY, f64::max));
+    let extent = (hi[0] - lo[0]).max(hi[1] - lo[1]);
+    let (b0, b1) = domain;
+    // bottom, right, top, left: the gap from the parts' box to each wall
+    let gaps = [lo[1] - b0[1], b1[0] - hi[0], b1[1] - hi[1], lo[0] - b0[0]];
+    let axisym = model.symmetry == mesher::Symmetry::Axisymmetric;
+    let unit = &model.length_unit;
+    let near: Vec<String> = ["bottom", "right", "top", "left"]
+        .iter()
+        .zip(gaps)
+        .zip(sides)
+        .enumerate()
+        .filter(|(k, ((_, gap), side))| **side == SideKind::Far && !(axisym && *k == mesher::LEFT) && *gap < FAR_WALL_EXTENTS * extent)
+        .map(|(_, ((name, gap), _))| format!("{name} {} {}", (gap / unit.1 * 1e3).round() / 1e3, unit.0))
+        .collect();
+    (!near.is_empty()).then(|| {
+        format!(
+            "the flux-parallel box's far walls stand close to the parts (from them: {}; their extent {} {}): a wall holds the flux in, and this truncation is not in the error estimates (a magnet under a plate: its pull 1.9 % off with the walls one extent away, 0.1 % at four; a probe between the parts and a wall far more). Move the walls out to {FAR_WALL_EXTENTS} extents, or use boundary = \"open\", which is exact",
+            near.join(", "),
+            (extent / unit.1 * 1e3).round() / 1e3,
+            unit.0
+        )
+    })
+}
