@@ -21,6 +21,12 @@ pub struct Domain {
     pub cut: Option<Option<bool>>,
 }
 
+/// The default flux-parallel box's margin around the parts and probes, in
+/// their extent: a wall holds the flux in, and at four extents a magnet's
+/// pull on a plate is 0.1 % off open space (half an extent: 3.4 %, and a
+/// probe above the plate 61 %; docs/measurement-log.md).
+const DEFAULT_BOX_PAD: f64 = 4.0;
+
 /// Number of chords of the open boundary's circle.
 const RIM_SEGMENTS: usize = 64;
 
@@ -64,7 +70,7 @@ impl Domain {
                     Some((a, b)) => ([a[0].min(b[0]), a[1].min(b[1])], [a[0].max(b[0]), a[1].max(b[1])]),
                     None => {
                         let (rlo, rhi) = bbox(refinement_points(&spec.refinements).chain([lo, hi]));
-                        let pad = (rhi[0] - rlo[0]).max(rhi[1] - rlo[1]) * 0.5;
+                        let pad = (rhi[0] - rlo[0]).max(rhi[1] - rlo[1]) * DEFAULT_BOX_PAD;
                         let x0 = if axisym { 0.0 } else { rlo[0] - pad };
                         ([x0, rlo[1] - pad], [rhi[0] + pad, rhi[1] + pad])
                     }

@@ -149,7 +149,7 @@ pub(crate) fn near_far_walls(model: &Model, domain: ([f64; 2], [f64; 2])) -> Opt
         .collect();
     (!near.is_empty()).then(|| {
         format!(
-            "the flux-parallel box's far walls stand close to the parts (from them: {}; their extent {} {}): a wall holds the flux in, and this truncation is not in the error estimates (a magnet under a plate: its pull 1.9 % off with the walls one extent away, 0.1 % at four; a probe between the parts and a wall far more). Move the walls out to {FAR_WALL_EXTENTS} extents, or use boundary = \"open\", which is exact",
+            "the flux-parallel box's far walls stand close to the parts (from them: {}; their extent {} {}): a wall holds the flux in, and this truncation is not in the error estimates (a magnet under a plate: its pull 1.9 % off with the walls one extent away, 0.1 % at four; a probe between the parts and a wall far more). Move the walls out to {FAR_WALL_EXTENTS} extents, or use boundary = \"open\", which is exact; a wall that is a symmetry plane of the assembly is named so with [[boundary]]",
             near.join(", "),
             (extent / unit.1 * 1e3).round() / 1e3,
             unit.0
