@@ -1,12 +1,15 @@
-//! Symmetry planes that mirror a part into something else than its other
-//! half. A plane models the assembly's mirror image beyond it: a
+//! Boundaries that change the problem unseen: symmetry planes that mirror
+//! a part into something else than its other half, and a flux-parallel
+//! box's far walls standing close to the parts. A plane models the assembly's mirror image beyond it: a
 //! flux-normal plane keeps the magnetization's component across it and
 //! reverses the one along it (and keeps a winding's current), a
 //! flux-parallel plane the other way round (and reverses the current). A
 //! magnet halved through its middle must therefore be magnetized across a
 //! flux-normal plane or along a flux-parallel one; a +y magnet halved at
 //! x = 0 under a flux-normal plane became two opposite half-magnets (119 mT
-//! at a probe where the whole magnet gives 187 mT), with no warning.
+//! at a probe where the whole magnet gives 187 mT), with no warning. A far
+//! wall holds the flux in, and its truncation is not in the error
+//! estimates (`near_far_walls`).
 
 use crate::materials::Material;
 use crate::model::Model;
