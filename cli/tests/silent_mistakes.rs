@@ -686,3 +686,25 @@ fn a_flux_parallel_box_close_to_the_parts_is_warned() {
         warns_only_the_first("box", &close, &clean, warning, "far walls stand close");
     }
 }
+
+/// A winding whose still-air estimate put its surface at 613 degC said so
+/// in figures only ("592.8 K above 20 degC"), and the field and forces
+/// went on as if the wire survived. Past insulation class H it now warns;
+/// the same winding at 1 A does not.
+#[test]
+fn a_winding_past_its_insulation_class_is_warned() {
+    let case = |amperes: f64| {
+        format!(
+            "[study]\ngeometry = \"axisymmetric\"\nunit = \"mm\"\naccuracy = \"1 %\"\n{OUTPUT}\
+             [[part]]\nname = \"coil\"\nmaterial = \"copper\"\nrect = {{ from = [5, 0], to = [6, 1] }}\ncurrent = \"{amperes} A\"\nturns = 1\nwire = \"AWG 20\"\n\
+             [[probe]]\nname = \"p\"\npoint = [0, 0.5]\n"
+        )
+    };
+    warns_only_the_first(
+        "hot-winding",
+        &case(30.0),
+        &case(1.0),
+        "winding 'coil': its surface would run at about 613 degC in still air",
+        "past insulation class H (180 degC, IEC 60085)",
+    );
+}

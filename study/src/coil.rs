@@ -25,6 +25,26 @@ const EMISSIVITY: f64 = 0.9;
 const STEFAN_BOLTZMANN: f64 = 5.670_374_419e-8;
 /// Ambient temperature of the heat balance, degC.
 pub const AMBIENT_C: f64 = 20.0;
+/// The densest packing of round wires: hexagonal, pi / (2 sqrt 3) of the
+/// window. A winding's copper cannot fill more of its part.
+pub const MAX_FILL: f64 = 0.907;
+/// Class H of the thermal classes of electrical insulation (IEC 60085):
+/// 180 degC. Most magnet wire is rated at or below it (common practice).
+pub const CLASS_H_C: f64 = 180.0;
+
+/// A winding whose estimated surface temperature (still air, from 20 degC)
+/// passes class H: the estimate is rough, but past it most magnet wire's
+/// insulation fails, and the summary's "659 K above 20 degC" said so in
+/// figures only.
+pub fn too_hot(name: &str, c: &CoilFigures) -> Option<String> {
+    let surface = AMBIENT_C + c.temperature_rise;
+    (surface > CLASS_H_C).then(|| {
+        format!(
+            "winding '{name}': its surface would run at about {surface:.0} degC in still air ({:.3} W), past insulation class H ({CLASS_H_C} degC, IEC 60085) that most magnet wire is rated for: less current, more copper, or cooling; the field and forces assume it survives",
+            c.power
+        )
+    })
+}
 
 /// Bare copper diameter of an AWG size, m (ASTM B258).
 pub fn awg_diameter(gauge: f64) -> f64 {

@@ -77,6 +77,7 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
         }
     }
     warnings.extend(crate::part_fields::saturation_warnings(model, &parts));
+    warnings.extend(coils.iter().filter_map(|(name, c)| crate::coil::too_hot(name, c)));
     warnings.extend(crate::part_fields::implausible_curve_warnings(model));
     // With an accuracy the mesh is refined until the estimates meet it, so
     // a first mesh coarse across a thin part is not a warning (it said "2

@@ -172,10 +172,26 @@ fn winding(t: &Fields, ctx: &Context, what: &str, carries_current: bool, area: f
         return Err(Diagnostic::new(format!("{what}: turns must be from 1 to 1e7"), Some(turns_item.span.clone())));
     }
     let wire_area = match (t.get("wire"), t.get("fill_factor")) {
-        (Some(w), None) => wire_area(w, ctx, what)?,
+        (Some(w), None) => {
+            let one = wire_area(w, ctx, what)?;
+            // The copper of every turn must fit the part's window.
+            if turns * one > study::coil::MAX_FILL * area {
+                return Err(Diagnostic::new(
+                    format!(
+                        "{what}: {turns} turns of this wire ({:.4} mm2 of copper each, {:.4} mm2 in all) do not fit the part's {:.4} mm2 (copper fills at most {} of it, round wires packed hexagonally): fewer turns, a finer wire or a larger part",
+                        one * 1e6,
+                        turns * one * 1e6,
+                        area * 1e6,
+                        study::coil::MAX_FILL
+                    ),
+                    Some(w.span.clone()),
+                ));
+            }
+            one
+        }
         (None, Some(f)) => {
             let share = f.number(&format!("{what} fill_factor"))?;
-            if !(share > 0.0 && share <= 0.907) {
+            if !(share > 0.0 && share <= study::coil::MAX_FILL) {
                 return Err(Diagnostic::new(
                     format!("{what}: fill_factor is the copper share of the part's area, above 0 and at most 0.907 (round wires packed hexagonally)"),
                     Some(f.span.clone()),
