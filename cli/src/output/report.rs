@@ -85,6 +85,10 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
             );
         }
         s.push('\n');
+        if r.forces.values().any(|f| f.contact && !f.unreliable) {
+            let note = crate::summary::CONTACT_NOTE;
+            let _ = writeln!(s, "Note: {}{}.\n", note[..1].to_uppercase(), &note[1..]);
+        }
     }
     if !r.flux.is_empty() {
         let _ = writeln!(
