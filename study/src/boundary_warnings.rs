@@ -82,7 +82,7 @@ pub(crate) fn mirrored_parts(model: &Model) -> Vec<String> {
         } else {
             ("flux-parallel", "flux-normal")
         };
-        let line = format!("{kind} plane {} = {}", names[plane.axis], plane.at / model.length_unit.1);
+        let line = format!("{kind} plane {} = {}", names[plane.axis], model.in_unit(plane.at));
         for p in model.parts.iter().filter(|p| halved_by(&p.shape, &plane)) {
             if let (Material::Magnet(_), Some(d), None) = (&p.material.material, p.magnetization, p.radial) {
                 let (across, along) = (d[plane.axis].abs(), d[1 - plane.axis].abs());
@@ -141,21 +141,19 @@ pub(crate) fn near_far_walls(model: &Model, domain: ([f64; 2], [f64; 2])) -> Opt
     // bottom, right, top, left: the gap from the parts' box to each wall
     let gaps = [lo[1] - b0[1], b1[0] - hi[0], b1[1] - hi[1], lo[0] - b0[0]];
     let axisym = model.symmetry == mesher::Symmetry::Axisymmetric;
-    let unit = &model.length_unit;
     let near: Vec<String> = ["bottom", "right", "top", "left"]
         .iter()
         .zip(gaps)
         .zip(sides)
         .enumerate()
         .filter(|(k, ((_, gap), side))| **side == SideKind::Far && !(axisym && *k == mesher::LEFT) && *gap < FAR_WALL_EXTENTS * extent)
-        .map(|(_, ((name, gap), _))| format!("{name} {} {}", (gap / unit.1 * 1e3).round() / 1e3, unit.0))
+        .map(|(_, ((name, gap), _))| format!("{name} {}", model.length_text(gap)))
         .collect();
     (!near.is_empty()).then(|| {
         format!(
-            "the flux-parallel box's far walls stand close to the parts (from them: {}; their extent {} {}): a wall holds the flux in, and this truncation is not in the error estimates (a magnet under a plate: its pull 1.9 % off with the walls one extent away, 0.1 % at four; a probe between the parts and a wall far more). Move the walls out to {FAR_WALL_EXTENTS} extents, or use boundary = \"open\", which is exact; a wall that is a symmetry plane of the assembly is named so with [[boundary]]",
+            "the flux-parallel box's far walls stand close to the parts (from them: {}; their extent {}): a wall holds the flux in, and this truncation is not in the error estimates (a magnet under a plate: its pull 1.9 % off with the walls one extent away, 0.1 % at four; a probe between the parts and a wall far more). Move the walls out to {FAR_WALL_EXTENTS} extents, or use boundary = \"open\", which is exact; a wall that is a symmetry plane of the assembly is named so with [[boundary]]",
             near.join(", "),
-            (extent / unit.1 * 1e3).round() / 1e3,
-            unit.0
+            model.length_text(extent)
         )
     })
 }

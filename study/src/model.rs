@@ -318,4 +318,25 @@ impl Model {
     pub fn part_index(&self, name: &str) -> Option<usize> {
         self.parts.iter().position(|p| p.name == name)
     }
+
+    /// A length in the case's unit for a warning, to six significant
+    /// digits: 3.000000000000001 mm reads "3 mm", 63.53490177 mm "63.5349 mm".
+    pub fn length_text(&self, metres: f64) -> String {
+        format!("{} {}", self.in_unit(metres), self.length_unit.0)
+    }
+
+    /// A point in the case's unit for a warning: "(0, 2.5) mm".
+    pub fn point_text(&self, x: [f64; 2]) -> String {
+        format!("({}, {}) {}", self.in_unit(x[0]), self.in_unit(x[1]), self.length_unit.0)
+    }
+
+    /// Metres in the case's unit, to six significant digits.
+    pub fn in_unit(&self, metres: f64) -> f64 {
+        let v = metres / self.length_unit.1;
+        if v == 0.0 || !v.is_finite() {
+            return v;
+        }
+        let scale = 10f64.powi(5 - v.abs().log10().floor() as i32);
+        (v * scale).round() / scale
+    }
 }

@@ -20,10 +20,6 @@ fn material_part_at<'m>(model: &'m Model, sol: &Solution, x: [f64; 2]) -> Option
 /// Every probe warning of a solved study.
 pub(crate) fn probe_warnings(model: &Model, sol: &Solution, corners: &crate::lower::SingularCorners, probes: &BTreeMap<String, ProbeResult>) -> Vec<String> {
     let mut out = Vec::new();
-    let unit = &model.length_unit;
-    // In the case's unit, rounded to a millionth of it (3.000000000000001 mm reads 3 mm).
-    let round = |v: f64| (v / unit.1 * 1e6).round() / 1e6;
-    let at = |x: [f64; 2]| format!("({}, {}) {}", round(x[0]), round(x[1]), unit.0);
     for p in &model.probes {
         match p.shape {
             ProbeShape::Point(x) => {
@@ -46,10 +42,10 @@ pub(crate) fn probe_warnings(model: &Model, sol: &Solution, corners: &crate::low
                         "probe '{}': {} sample(s) on a corner of a part (the first at {}, a corner of '{part}'), where the field is singular, left out (NaN in its CSV and results)",
                         p.name,
                         on.len(),
-                        at(*x)
+                        model.point_text(*x)
                     ));
                 }
-                out.extend(peak_inside_material(model, sol, &p.name, r, &at));
+                out.extend(peak_inside_material(model, sol, &p.name, r));
             }
         }
     }
@@ -60,7 +56,7 @@ pub(crate) fn probe_warnings(model: &Model, sol: &Solution, corners: &crate::low
 /// to the sensor, say) takes its largest |B| inside the part, and
 /// `b.max`, which a bound on the field reaching the air reads, is then the
 /// field in the material with no sign of it.
-fn peak_inside_material(model: &Model, sol: &Solution, name: &str, r: &ProbeResult, at: &dyn Fn([f64; 2]) -> String) -> Option<String> {
+fn peak_inside_material(model: &Model, sol: &Solution, name: &str, r: &ProbeResult) -> Option<String> {
     let peak = r.bmag.iter().enumerate().filter(|(_, b)| b.is_finite()).max_by(|a, b| a.1.total_cmp(b.1))?.0;
     let x = r.points[peak];
     let part = material_part_at(model, sol, x)?;
@@ -78,7 +74,7 @@ fn peak_inside_material(model: &Model, sol: &Solution, name: &str, r: &ProbeResu
         "probe '{name}': its largest |B| lies inside part '{}' ({}) at {}, so probe.{name}.b.max is the field inside that material; end the line at the part's face if the field in the air is meant",
         part.name,
         part.material.name,
-        at(r.points[peak])
+        model.point_text(r.points[peak])
     ))
 }
 
@@ -107,16 +103,14 @@ pub(crate) fn planar_far_field(model: &Model, probes: &BTreeMap<String, ProbeRes
     if model.symmetry != mesher::Symmetry::Planar || !model.depth_given {
         return None;
     }
-    let unit = &model.length_unit;
-    let shown = |d: f64| format!("{} {}", (d / unit.1 * 1e3).round() / 1e3, unit.0);
     let mut far: Vec<(String, f64)> = Vec::new();
     for p in &model.probes {
         let Some(r) = probes.get(&p.name) else { continue };
         let d = r.points.iter().map(|&x| crate::lower::box_clearance(model, x)).fold(0.0, f64::max);
-        far.push((format!("probe '{}' ({} from the nearest part)", p.name, shown(d)), d));
+        far.push((format!("probe '{}' ({} from the nearest part)", p.name, model.length_text(d)), d));
     }
     if let Some(d) = reach {
-        far.push((format!("the reach ({})", shown(d)), d));
+        far.push((format!("the reach ({})", model.length_text(d)), d));
     }
     far.retain(|(_, d)| finite_length_share(model.depth, *d) < FAR_FIELD_SHARE);
     let farthest = far.iter().map(|f| f.1).fold(0.0, f64::max);
@@ -124,11 +118,11 @@ pub(crate) fn planar_far_field(model: &Model, probes: &BTreeMap<String, ProbeRes
         let names: Vec<&str> = far.iter().map(|f| f.0.as_str()).collect();
         format!(
             "planar study of depth {}, read far from its parts for their length: {}. A planar study's parts are infinitely long; a real part's field falls faster away from it (as 1/r^3, not 1/r^2), and a line of dipoles {} long gives {:.2} of the planar field {} away, so these values overstate it. Give depth the real length, or model a round part as axisymmetric",
-            shown(model.depth),
+            model.length_text(model.depth),
             names.join(", "),
-            shown(model.depth),
+            model.length_text(model.depth),
             finite_length_share(model.depth, farthest),
-            shown(farthest)
+            model.length_text(farthest)
         )
     })
 }
