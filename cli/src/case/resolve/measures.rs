@@ -3,7 +3,7 @@
 use super::materials_table::positive_number;
 use super::names::{named_tables, part_list};
 use crate::case::diagnostic::Diagnostic;
-use crate::case::document::Fields;
+use crate::case::document::{Fields, Item};
 use crate::case::quantity::Context;
 use std::ops::Range;
 use study::model::*;
@@ -36,11 +36,8 @@ pub(super) fn probes(top: &Fields, ctx: &Context) -> Result<Vec<(Probe, Range<us
                         v as usize
                     }
                 };
-                ProbeShape::Line {
-                    from: ctx.point(lt.require("from")?, &what)?,
-                    to: ctx.point(lt.require("to")?, &what)?,
-                    points,
-                }
+                let (from, to) = line_ends(&lt, l, ctx, &what, ", or use point = [x, y]")?;
+                ProbeShape::Line { from, to, points }
             }
             _ => {
                 return Err(Diagnostic::new(
@@ -52,6 +49,20 @@ pub(super) fn probes(top: &Fields, ctx: &Context) -> Result<Vec<(Probe, Range<us
         out.push((Probe { name, shape }, item.span.clone()));
     }
     Ok(out)
+}
+
+/// A probe's or flux line's two ends, which must differ: a line whose ends
+/// coincide samples one point many times (a probe) or crosses nothing (a
+/// flux, 0 Wb): its end was copied from its start and not edited.
+fn line_ends(lt: &Fields, line: &Item, ctx: &Context, what: &str, hint: &str) -> Result<([f64; 2], [f64; 2]), Diagnostic> {
+    let (from, to) = (ctx.point(lt.require("from")?, what)?, ctx.point(lt.require("to")?, what)?);
+    if from == to {
+        return Err(Diagnostic::new(
+            format!("{what}: the line starts and ends at the same point; give two different ends{hint}"),
+            Some(line.span.clone()),
+        ));
+    }
+    Ok((from, to))
 }
 
 pub(super) fn forces(top: &Fields, ctx: &Context, model: &Model) -> Result<Vec<ForceSpec>, Diagnostic> {
@@ -132,11 +143,8 @@ pub(super) fn fluxes(top: &Fields, ctx: &Context, model: &Model) -> Result<Vec<F
         match (t.get("line"), t.get("winding")) {
             (Some(l), None) => {
                 let lt = l.table(&format!("{what} line"), &["from", "to"])?;
-                out.push(FluxSpec::Line {
-                    name,
-                    from: ctx.point(lt.require("from")?, &what)?,
-                    to: ctx.point(lt.require("to")?, &what)?,
-                });
+                let (from, to) = line_ends(&lt, l, ctx, &what, "")?;
+                out.push(FluxSpec::Line { name, from, to });
             }
             (None, Some(w)) => {
                 let parts = part_list(w, model, &format!("{what} winding"))?;
