@@ -11,12 +11,20 @@ use crate::run::{self, Failure, Limits, Loaded, Variant};
 use std::collections::BTreeMap;
 use std::path::Path;
 use std::sync::atomic::{AtomicUsize, Ordering};
+use std::sync::Mutex;
 use study::optimize::{Optimum, Point, Search};
 use study::results::Verdict;
 
 /// One evaluation: the study at `x` solved to the search's accuracy; the
 /// objective (negated when maximized) and each constraint's margin.
-fn evaluate(loaded: &Loaded, base: &Variant, spec: &Optimize, x: &[f64], limits: &Limits, progress: &Progress, count: &AtomicUsize) -> Result<Point, Failure> {
+/// What every evaluation shares: the evaluations' count (their numbers in
+/// the progress lines) and the warnings they gave, by number.
+struct Log {
+    count: AtomicUsize,
+    warned: Mutex<Vec<(usize, crate::many_warnings::Warned)>>,
+}
+
+fn evaluate(loaded: &Loaded, base: &Variant, spec: &Optimize, x: &[f64], limits: &Limits, progress: &Progress, log: &Log) -> Result<Point, Failure> {
     let mut params = base.params.clone();
     for ((name, _), v) in spec.vary.iter().zip(x) {
         params.insert(name.clone(), *v);
@@ -84,7 +92,16 @@ fn evaluate(loaded: &Loaded, base: &Variant, spec: &Optimize, x: &[f64], limits:
         })
         .collect();
     let margins = spec.constraints.iter().zip(&found).map(|(c, [v, e])| c.margin(*v) - e).collect::<Vec<_>>();
-    let k = count.fetch_add(1, Ordering::Relaxed) + 1;
+    let k = log.count.fetch_add(1, Ordering::Relaxed) + 1;
+    // An evaluation's warnings (a design the search passed through with a
+    // plate inside its magnet) are listed beside the optimum's own.
+    if !results.warnings.is_empty() {
+        let warned = crate::many_warnings::Warned {
+            label: format!("evaluation #{k} ({})", at()),
+            warnings: results.warnings.clone(),
+        };
+        log.warned.lock().unwrap_or_else(|e| e.into_inner()).push((k, warned));
+    }
     let held: String = spec
         .constraints
         .iter()
@@ -142,8 +159,14 @@ pub fn solve(loaded: &Loaded, spec: &Optimize, base: &Variant, folder: &OutputFo
         x_tolerance: spec.tolerance,
         seed: spec.seed,
     };
-    let count = AtomicUsize::new(0);
-    let optimum = study::optimize::optimize(&search, |x| evaluate(loaded, base, spec, x, limits, progress, &count))?;
+    let log = Log {
+        count: AtomicUsize::new(0),
+        warned: Mutex::new(Vec::new()),
+    };
+    let optimum = study::optimize::optimize(&search, |x| evaluate(loaded, base, spec, x, limits, progress, &log))?;
+    let mut warned = log.warned.into_inner().unwrap_or_else(|e| e.into_inner());
+    warned.sort_by_key(|w| w.0);
+    let warned: Vec<crate::many_warnings::Warned> = warned.into_iter().map(|w| w.1).collect();
     let mut at = base.clone();
     for ((name, _), v) in spec.vary.iter().zip(&optimum.best.x) {
         at.params.insert(name.clone(), *v);
@@ -168,6 +191,7 @@ pub fn solve(loaded: &Loaded, spec: &Optimize, base: &Variant, folder: &OutputFo
         "subject_to": spec.constraints.iter().map(|c| c.text.clone()).collect::<Vec<_>>(),
         "constraints_at_optimum": at_optimum.iter().map(|c| serde_json::json!({ "constraint": c.text, "value": c.value, "error": c.error, "verdict": verdict_word(c.verdict) })).collect::<Vec<_>>(),
         "evaluations": optimum.evaluations.len(),
+        "warnings": warned.iter().map(|w| serde_json::json!({ "evaluation": w.label, "warnings": w.warnings })).collect::<Vec<_>>(),
         "stop": optimum.stop,
         "accuracy_of_evaluations": spec.accuracy,
         "note": "values and errors in SI; params in the case's own units. The optimum is the best evaluation found by COBYLA after a parallel Latin-hypercube start, then up to three steps of feasibility restoration where COBYLA's own best breaks a constraint by a hair; the search stops when its steps fall below the tolerance share of each range. Evaluations are solved to accuracy_of_evaluations, and a constraint counts as met there where it holds within the evaluation's estimated error; the case at the optimum is solved to the case's own accuracy, and constraints_at_optimum judges each constraint there within that solve's error."
@@ -177,7 +201,9 @@ pub fn solve(loaded: &Loaded, spec: &Optimize, base: &Variant, folder: &OutputFo
     outcome.files.push(("optimize.csv".into(), evaluations_csv(spec, &optimum).into_bytes()));
     outcome.files.push(("optimize.svg".into(), history_chart(spec, &optimum).into_bytes()));
     outcome.files.push(("optimum.toml".into(), optimum_case(&loaded.text, &params).into_bytes()));
-    crate::output::report::add_section(&mut outcome.files, &report_section(spec, &optimum, &params, objective, &at_optimum));
+    let section =
+        report_section(spec, &optimum, &params, objective, &at_optimum) + &crate::many_warnings::markdown("evaluations", optimum.evaluations.len(), &warned);
+    crate::output::report::add_section(&mut outcome.files, &section);
     folder
         .commit(Path::new(""), &outcome.files)
         .map_err(|e| Failure::Input(format!("error: {e}\n")))?;
@@ -207,6 +233,16 @@ pub fn solve(loaded: &Loaded, spec: &Optimize, base: &Variant, folder: &OutputFo
             c.text,
             verdict_word(c.verdict),
             c.value.map_or("no value".into(), |v| crate::output::engineering::eng_pm(v, c.error, c.unit))
+        );
+    }
+    // One line: the search's designs are not the answer, and most of what
+    // they warn of (a plate saturating at a corner of the box) is the design
+    // space, not a mistake; the optimum's own warnings are above.
+    if !warned.is_empty() {
+        println!(
+            "  note: {} of {} evaluations gave warnings, listed in optimize.json and the report (the optimum's own are above)",
+            warned.len(),
+            optimum.evaluations.len()
         );
     }
     if !optimum.feasible || at_optimum.iter().any(|c| c.verdict != Verdict::Pass) {

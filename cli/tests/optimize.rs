@@ -245,3 +245,30 @@ fn each_evaluation_says_whether_it_meets_the_constraint() {
     assert!(seen.contains("(broken)") && seen.contains("(met)"), "{said}");
     let _ = std::fs::remove_dir_all(out.parent().unwrap());
 }
+
+/// An evaluation's warnings stayed inside it: with the probe fixed 30 mm
+/// up, the search's slender magnets (r < 3.26 mm, taller than 30 mm) put
+/// the probe inside the magnet, which the optimum's own solve would show
+/// only if it landed there. Every evaluation that warned is now listed in
+/// optimize.json and counted in one line of the summary.
+#[test]
+fn the_evaluations_warnings_are_listed() {
+    let case = CASE.replace(r#"point = [0, "k / (r * r) + 20"]"#, "point = [0, 30]");
+    assert_ne!(case, CASE);
+    let (code, said, out) = common::solve_text("optimize-warned", &case);
+    assert!(code == Some(0) || code == Some(1), "{said}");
+    let json: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(out.join("optimize.json")).unwrap()).unwrap();
+    let warned = json["warnings"].as_array().unwrap();
+    let evaluations = json["evaluations"].as_u64().unwrap() as usize;
+    assert!(!warned.is_empty() && warned.len() < evaluations, "{json}");
+    for w in warned {
+        let label = w["evaluation"].as_str().unwrap();
+        let r: f64 = label.split("r = ").nth(1).unwrap().trim_end_matches(')').parse().unwrap();
+        assert!(r < 3.27, "{label}");
+        assert!(w["warnings"][0].as_str().unwrap().contains("probe 'target' lies inside part 'magnet'"), "{w}");
+    }
+    assert!(
+        said.contains(&format!("note: {} of {evaluations} evaluations gave warnings", warned.len())),
+        "{said}"
+    );
+}
