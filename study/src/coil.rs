@@ -34,7 +34,7 @@ pub const CLASS_H_C: f64 = 180.0;
 
 /// A winding whose estimated surface temperature (still air, from 20 degC)
 /// passes class H: the estimate is rough, but past it most magnet wire's
-/// insulation fails, and the summary's "659 K above 20 degC" said so in
+/// insulation fails, and the summary's "592.8 K above 20 degC" said so in
 /// figures only.
 pub fn too_hot(name: &str, c: &CoilFigures) -> Option<String> {
     let surface = AMBIENT_C + c.temperature_rise;
