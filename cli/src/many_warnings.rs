@@ -12,6 +12,16 @@ pub struct Warned {
     pub warnings: Vec<String>,
 }
 
+/// A solve's label: `what` and its parameters to six significant digits
+/// (`variant-0002 (gap = 0.447214)`, `sample 7 (gap = -0.31)`).
+pub fn label<'a>(what: &str, params: impl IntoIterator<Item = (&'a str, f64)>) -> String {
+    let at: Vec<String> = params
+        .into_iter()
+        .map(|(k, v)| format!("{k} = {}", crate::output::engineering::significant_digits(v, 6)))
+        .collect();
+    format!("{what} ({})", at.join(", "))
+}
+
 /// Most solves the summary lists by name; the rest are counted.
 const LISTED: usize = 5;
 

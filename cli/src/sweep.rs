@@ -88,12 +88,7 @@ pub struct Row {
 impl Row {
     /// The variant's folder and swept values, as the summary names it.
     fn label(&self) -> String {
-        let swept: Vec<String> = self
-            .swept
-            .iter()
-            .map(|(k, v)| format!("{k} = {}", crate::output::engineering::significant_digits(*v, 6)))
-            .collect();
-        format!("variant-{:04} ({})", self.index, swept.join(", "))
+        crate::many_warnings::label(&format!("variant-{:04}", self.index), self.swept.iter().map(|(k, v)| (k.as_str(), *v)))
     }
 }
 

@@ -138,17 +138,9 @@ fn warned_of(tol: &Tolerance, what: &str, sets: &[Vec<f64>], samples: &[Sample])
         .zip(samples)
         .enumerate()
         .filter(|(_, (_, s))| !s.warnings.is_empty())
-        .map(|(i, (set, s))| {
-            let at: Vec<String> = tol
-                .spreads
-                .iter()
-                .zip(set)
-                .map(|(p, x)| format!("{} = {}", p.name, crate::output::engineering::significant_digits(*x, 6)))
-                .collect();
-            Warned {
-                label: format!("{what} {i} ({})", at.join(", ")),
-                warnings: s.warnings.clone(),
-            }
+        .map(|(i, (set, s))| Warned {
+            label: crate::many_warnings::label(&format!("{what} {i}"), tol.spreads.iter().map(|p| p.name.as_str()).zip(set.iter().copied())),
+            warnings: s.warnings.clone(),
         })
         .collect()
 }
