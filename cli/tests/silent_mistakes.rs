@@ -734,3 +734,26 @@ fn a_pull_at_contact_says_what_it_assumes() {
         "a pull at contact assumes",
     );
 }
+
+/// Millimetre dimensions under `unit = "m"`: a 10 m N42 disk pulled its
+/// plate with 37.6 MN and said nothing; metre dimensions under `unit =
+/// "mm"` give a magnet of micrometres. Both now name the unit; the same
+/// numbers in the unit meant do not warn.
+#[test]
+fn a_magnet_sized_beyond_any_made_names_the_unit() {
+    let case = |unit: &str| magnet_under_plate("").replace("unit = \"mm\"", &format!("unit = \"{unit}\""));
+    warns_only_the_first(
+        "size-metres",
+        &case("m"),
+        &case("mm"),
+        "magnet 'magnet' spans 20 m, larger than magnets are made (about 1 m at most, an assembly modelled whole): check [study] unit (\"m\")",
+        "larger than magnets are made",
+    );
+    warns_only_the_first(
+        "size-micrometres",
+        &case("um"),
+        &case("cm"),
+        "magnet 'magnet' spans 20 um, smaller than magnets are made as parts (0.1 mm): check [study] unit (\"um\")",
+        "smaller than magnets are made",
+    );
+}

@@ -30,6 +30,48 @@ pub const IATA_CURRENT: f64 = 0.418;
 /// The older air-transport screen, A/m at 2.1 m.
 pub const IATA_LEGACY: f64 = 0.159;
 
+/// The span of a magnet part beyond which the case's length unit is more
+/// likely wrong than the magnet real, metres: single sintered blocks are
+/// made to about 0.1 to 0.2 m a side and one-piece rings and arcs smaller;
+/// a part of an assembly modelled whole (a ring of segments) may reach a
+/// metre (common practice). Millimetre dimensions under `unit = "m"` give
+/// magnets of 5 to 100 m, pulls of meganewtons.
+pub const MAGNET_SPAN_MAX: f64 = 1.0;
+/// The span under which it is, metres: 0.1 mm, below the smallest magnets
+/// sold as parts (about 0.3 to 1 mm, common practice); metre dimensions
+/// under `unit = "mm"` give magnets of 5 to 100 um.
+pub const MAGNET_SPAN_MIN: f64 = 1e-4;
+
+/// A warning for each magnet whose size says the case's length unit is
+/// likely wrong: a study of a 10 m N42 disk reported 37.6 MN with no word.
+/// The span is the part's largest dimension: its diameter about the axis
+/// in an axisymmetric study, its width or height in a planar section.
+pub fn implausible_magnet_sizes(model: &Model) -> Vec<String> {
+    let mut out = Vec::new();
+    for p in model.parts.iter().filter(|p| matches!(p.material.material, Material::Magnet(_))) {
+        let (lo, hi) = p.shape.bounds();
+        let across = match model.symmetry {
+            Symmetry::Axisymmetric => 2.0 * hi[0],
+            Symmetry::Planar => hi[0] - lo[0],
+        };
+        let span = across.max(hi[1] - lo[1]);
+        let side = if span > MAGNET_SPAN_MAX {
+            "larger than magnets are made (about 1 m at most, an assembly modelled whole)"
+        } else if span < MAGNET_SPAN_MIN {
+            "smaller than magnets are made as parts (0.1 mm)"
+        } else {
+            continue;
+        };
+        out.push(format!(
+            "magnet '{}' spans {}, {side}: check [study] unit (\"{}\"), in which every dimension of the case is read",
+            p.name,
+            model.length_text(span),
+            model.length_unit.0
+        ));
+    }
+    out
+}
+
 /// Each magnet's working point against its knee at the study temperature, with its values and warnings.
 pub fn magnet_results(model: &Model, sol: &Solution, values: &mut BTreeMap<String, f64>, warnings: &mut Vec<String>) -> BTreeMap<String, MagnetResult> {
     let mut out = BTreeMap::new();

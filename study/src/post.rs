@@ -414,6 +414,7 @@ fn modelling_warnings(model: &Model, sol: &Solution) -> Vec<String> {
             "planar study without study.depth: forces, fluxes and energies are per metre of depth; give the assembly's length along z as depth".to_string(),
         );
     }
+    out.extend(crate::checks::implausible_magnet_sizes(model));
     let meshed = sol.problem.mesh.part_areas_curved(model.parts.len());
     for (i, (p, area)) in model.parts.iter().zip(meshed).enumerate() {
         let source = matches!(p.material.material, Material::Magnet(_)) || p.current.is_some();

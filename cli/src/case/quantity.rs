@@ -51,7 +51,7 @@ impl Context<'_> {
                 let at = at_offset(parsed.unit_offset);
                 let span = Some(at..at + if exact { parsed.unit.len() } else { 1 });
                 match units::unit(parsed.unit) {
-                    Some((k, factor)) if k == kind => Ok(parsed.value * factor + units::offset(parsed.unit)),
+                    Some((k, factor)) if k == kind => Ok(units::shifted(parsed.value * factor, parsed.unit)),
                     Some((k, _)) => Err(Diagnostic::new(
                         format!("{what}: '{}' is {}, but {} is needed", parsed.unit, k.describe(), kind.describe()),
                         span,

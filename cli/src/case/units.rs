@@ -115,6 +115,18 @@ pub fn offset(symbol: &str) -> f64 {
     }
 }
 
+/// A scaled value with its unit's offset added, rounded to a nanokelvin: 20 K
+/// is -253.15 degC, not the -253.14999999999998 that the sum leaves and that
+/// messages would quote.
+pub fn shifted(scaled: f64, symbol: &str) -> f64 {
+    let v = scaled + offset(symbol);
+    if offset(symbol) != 0.0 && v.abs() < 1e9 {
+        (v * 1e9).round() / 1e9
+    } else {
+        v
+    }
+}
+
 /// Spellings people write for a unit, with the symbol meant: a word that
 /// is a different unit of the same kind by edit distance ("80 C" was met by
 /// "did you mean 'K'?", i.e. 80 kelvin) must lead to the unit meant.
@@ -215,6 +227,8 @@ mod tests {
         assert!((unit("lbf").unwrap().1 - 4.448_222).abs() < 1e-6);
         // SI Brochure 9th ed.: T = 0 K corresponds to -273.15 degC.
         assert_eq!(offset("K"), -273.15);
+        assert_eq!(shifted(20.0, "K"), -253.15);
+        assert_eq!(shifted(353.15, "K"), 80.0);
         // NIST SP 811 B.8: kilogram-force = 9.80665 N (standard gravity, exact).
         assert_eq!(unit("kgf").unwrap().1, 9.806_65);
         // 1 MGOe = 7.957747 kJ/m3 (from G and Oe above).

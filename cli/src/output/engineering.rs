@@ -9,6 +9,9 @@ pub fn eng(value: f64, unit: &str) -> String {
     if !value.is_finite() {
         return format!("{value} {unit}").trim_end().to_string();
     }
+    if beyond_prefixes(value.abs(), unit) {
+        return format!("{value:.3e} {unit}");
+    }
     let (exponent, prefix) = prefix_of(value.abs(), unit);
     if value == 0.0 || !prefixable(unit) {
         return format!("{} {unit}", significant(value)).trim_end().to_string();
@@ -55,8 +58,22 @@ pub fn eng_pm(value: f64, error: Option<f64>, unit: &str) -> String {
     if !value.is_finite() {
         return eng(value, unit);
     }
-    let (exponent, prefix) = prefix_of(if value != 0.0 { value.abs() } else { e }, unit);
+    let reference = if value != 0.0 { value.abs() } else { e };
+    let (exponent, prefix) = prefix_of(reference, unit);
+    if beyond_prefixes(reference, unit) || e / 10f64.powi(exponent) < 1e-8 {
+        // The value to the error's second significant digit, as pm_scaled does.
+        let digits = (reference.log10().floor() - e.log10().floor() + 1.0).clamp(3.0, 12.0) as usize;
+        return format!("{value:.digits$e} {unit} \u{b1} {e:.1e} {unit}").trim_end().to_string();
+    }
     pm_scaled(value, e, exponent, prefix, unit)
+}
+
+/// Whether a magnitude lies outside the SI prefixes' reach (pico to tera,
+/// with three decimals below pico to spare): a force of 1.5e-18 N read
+/// "0.000001519 pN ± 0.000000000 pN", an error of nothing. Such numbers are
+/// written in scientific notation.
+fn beyond_prefixes(magnitude: f64, unit: &str) -> bool {
+    prefixable(unit) && unit != "m3" && magnitude > 0.0 && magnitude.is_finite() && !(1e-15..1e15).contains(&magnitude)
 }
 
 /// As `eng_pm`, in `unit` as given, without an SI prefix (lengths in the
@@ -166,5 +183,10 @@ mod tests {
         assert_eq!(eng(0.0, "T"), "0 T");
         assert_eq!(eng(999.96, "N"), "1 kN");
         assert_eq!(eng(1.389e-2, "H"), "13.89 mH");
+        // Beyond the prefixes: scientific notation, never an error of "0.000000000".
+        assert_eq!(eng(-1.519e-18, "N"), "-1.519e-18 N");
+        assert_eq!(eng_pm(-1.519e-18, Some(2.1e-23), "N"), "-1.519000e-18 N \u{b1} 2.1e-23 N");
+        assert_eq!(eng_pm(3.2e-13, Some(2.0e-17), "N"), "0.320000 pN \u{b1} 0.000020 pN");
+        assert_eq!(eng_pm(5.0e-15, Some(5.0e-21), "N"), "5.0000000e-15 N \u{b1} 5.0e-21 N");
     }
 }
