@@ -68,6 +68,30 @@ pub fn eng_pm(value: f64, error: Option<f64>, unit: &str) -> String {
     pm_scaled(value, e, exponent, prefix, unit)
 }
 
+/// Several values of one quantity that share one estimated error (a
+/// tolerance study's extremes and percentiles), each in one prefix to the
+/// error's second significant digit, and the error in that prefix:
+/// `["49.3341 mT", "59.3050 mT"]` and "0.0010 mT", where each alone read
+/// "49.33 mT .. 59.3 mT (each ± 1.003 uT)". Without a printable error,
+/// each value as `eng` gives it (and the error, if any, as `eng` does).
+pub fn eng_shared(values: &[f64], error: Option<f64>, unit: &str) -> (Vec<String>, Option<String>) {
+    let reference = values.iter().map(|v| v.abs()).filter(|v| v.is_finite()).fold(0.0, f64::max);
+    let printable = error.filter(|&e| values.iter().all(|v| v.is_finite()) && worth_printing(e, reference) && !beyond_prefixes(reference, unit));
+    let Some(e) = printable else {
+        let error = error.filter(|e| e.is_finite() && *e > 0.0).map(|e| eng(e, unit));
+        return (values.iter().map(|&v| eng(v, unit)).collect(), error);
+    };
+    let (exponent, prefix) = prefix_of(reference, unit);
+    // pm_scaled writes "V U ± E U": keep each value, and the error once.
+    let texts: Vec<String> = values.iter().map(|&v| pm_scaled(v, e, exponent, prefix, unit)).collect();
+    let error = texts.first().and_then(|t| t.split_once(" \u{b1} ")).map(|(_, err)| err.to_string());
+    let values = texts
+        .iter()
+        .map(|t| t.split_once(" \u{b1} ").map_or(t.clone(), |(v, _)| v.to_string()))
+        .collect();
+    (values, error)
+}
+
 /// Whether a magnitude lies outside the SI prefixes' reach (pico to tera,
 /// with three decimals below pico to spare): a force of 1.5e-18 N read
 /// "0.000001519 pN ± 0.000000000 pN", an error of nothing. Such numbers are
@@ -133,7 +157,7 @@ pub fn prefix_of(reference: f64, unit: &str) -> (i32, &'static str) {
 
 #[cfg(test)]
 mod tests {
-    use super::{eng, eng_pm, plain_pm, significant_digits};
+    use super::{eng, eng_pm, eng_shared, plain_pm, significant_digits};
 
     #[test]
     fn values_with_errors_show_the_errors_digits() {
@@ -144,6 +168,16 @@ mod tests {
         assert_eq!(eng_pm(5.0, None, "N"), "5 N");
         // At the estimates' rounding floor: no error printed.
         assert_eq!(eng_pm(0.1556, Some(1.0000001e-9 * 0.1556), ""), "0.1556");
+    }
+
+    #[test]
+    fn values_sharing_an_error_share_its_digits() {
+        let (values, each) = eng_shared(&[0.0493341, 0.059305], Some(1.003e-6), "T");
+        assert_eq!(values, ["49.3341 mT", "59.3050 mT"]);
+        assert_eq!(each.as_deref(), Some("0.0010 mT"));
+        let (values, each) = eng_shared(&[0.0493341, 0.059305], None, "T");
+        assert_eq!(values, ["49.33 mT", "59.3 mT"]);
+        assert_eq!(each, None);
     }
 
     /// Volumes as people write them: mm3 below a cubic centimetre, cm3

@@ -87,12 +87,6 @@ pub(super) fn json(
     serde_json::to_vec_pretty(&json).map_err(|e| Failure::Input(format!("error: cannot encode tolerance.json: {e}\n")))
 }
 
-/// " (each +- E)" for a statistics' numerical error, empty where unknown.
-pub(super) fn error_text(s: &Statistics, unit: &str) -> String {
-    s.error
-        .map_or(String::new(), |e| format!(" (each \u{b1} {})", crate::output::engineering::eng(e, unit)))
-}
-
 /// The percentiles' 95 % sampling intervals as read: "p1 unbounded ..
 /// 49.4 mT, p50 ..., p99 ..."; None without sampling (corners).
 pub(super) fn intervals_text(s: &Statistics, unit: &str) -> Option<String> {
@@ -141,20 +135,18 @@ pub(super) fn report_section(
     for name in &results.asked {
         let Some(st) = stats.get(name) else { continue };
         let unit = results.units.get(name).copied().unwrap_or("");
-        let e = |v: f64| crate::output::engineering::eng(v, unit);
-        let err = st.error.map_or("-".to_string(), |x| format!("\u{b1} {}", e(x)));
+        let figures: &[f64] = if corners {
+            &[st.min, st.max]
+        } else {
+            &[st.min, st.p1, st.p50, st.p99, st.max]
+        };
+        let (v, err) = crate::output::engineering::eng_shared(figures, st.error, unit);
+        let err = err.map_or("-".to_string(), |x| format!("\u{b1} {x}"));
         s += &if corners {
-            format!("| {name} | {} | {} | {err} |\n", e(st.min), e(st.max))
+            format!("| {name} | {} | {err} |\n", v.join(" | "))
         } else {
             let intervals = intervals_text(st, unit).unwrap_or_default();
-            format!(
-                "| {name} | {} | {} | {} | {} | {} | {err} | {intervals} |\n",
-                e(st.min),
-                e(st.p1),
-                e(st.p50),
-                e(st.p99),
-                e(st.max)
-            )
+            format!("| {name} | {} | {err} | {intervals} |\n", v.join(" | "))
         };
     }
     for name in off_corner {

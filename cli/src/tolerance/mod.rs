@@ -14,10 +14,16 @@ pub use store::{gather, Run, Sample};
 
 use crate::case::resolve::{Method, Tolerance};
 use crate::many_warnings::{markdown, summary_lines, Warned};
+use crate::output::engineering::eng_shared;
 use crate::output::folder::OutputFolder;
 use crate::progress::Progress;
 use crate::run::{self, Failure, Limits, Loaded, Variant};
-use files::{csv, error_text, intervals_text, json, report_section};
+use files::{csv, intervals_text, json, report_section};
+
+/// " (each +- E)" after a statistics' values, empty where the error is unknown.
+fn each(error: Option<String>) -> String {
+    error.map_or(String::new(), |e| format!(" (each \u{b1} {e})"))
+}
 use std::collections::BTreeMap;
 use std::path::Path;
 use store::Store;
@@ -266,12 +272,12 @@ pub fn solve(loaded: &Loaded, tol: &Tolerance, base: &Variant, folder: &OutputFo
     for name in &outcome.results.asked {
         if let Some(s) = stats.get(name) {
             let unit = outcome.results.units.get(name).copied().unwrap_or("");
-            let e = |v: f64| crate::output::engineering::eng(v, unit);
-            let pm = error_text(s, unit);
             if corners_only {
-                println!("    {name}: {} .. {}{pm}", e(s.min), e(s.max));
+                let (v, e) = eng_shared(&[s.min, s.max], s.error, unit);
+                println!("    {name}: {} .. {}{}", v[0], v[1], each(e));
             } else {
-                println!("    {name}: {}, {}, {}, {}, {}{pm}", e(s.min), e(s.p1), e(s.p50), e(s.p99), e(s.max));
+                let (v, e) = eng_shared(&[s.min, s.p1, s.p50, s.p99, s.max], s.error, unit);
+                println!("    {name}: {}{}", v.join(", "), each(e));
                 if let Some(text) = intervals_text(s, unit) {
                     println!("      95 % intervals: {text}");
                 }
