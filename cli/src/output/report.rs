@@ -10,9 +10,28 @@ fn opt(v: Option<f64>, scale: f64, digits: usize) -> String {
     v.map_or("-".into(), |x| format!("{:.*}", digits, x * scale))
 }
 
+/// report.md's text: the study and its mesh, every value with its error in
+/// tables, the warnings and pictures, the stray field and the cautions.
 pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> String {
     let mut s = String::new();
-    let (u, f) = (&model.length_unit.0, model.length_unit.1);
+    heading(&mut s, model, r);
+    accuracy(&mut s, r);
+    notices(&mut s, r, pictures);
+    forces(&mut s, model, r);
+    flux_and_energy(&mut s, r);
+    parts(&mut s, r);
+    magnets(&mut s, model, r);
+    stray_field(&mut s, model, r);
+    expectations(&mut s, r);
+    let _ = writeln!(s, "## Cautions\n");
+    for c in &r.cautions {
+        let _ = writeln!(s, "- {c}");
+    }
+    s
+}
+
+/// The title, the study, its mesh and how Newton-Raphson went.
+fn heading(s: &mut String, model: &Model, r: &Results) {
     let _ = writeln!(s, "# {}\n", model.title);
     let _ = writeln!(
         s,
@@ -28,6 +47,10 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
         r.solve.residual,
         r.solve.seconds
     );
+}
+
+/// The accuracy asked and reached, and the largest estimated error.
+fn accuracy(s: &mut String, r: &Results) {
     match &r.adaptive {
         Some(a) => {
             let worst = match a.worst() {
@@ -52,6 +75,10 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
             let _ = writeln!(s, "Accuracy: off (the mesh as given; no error estimates).\n");
         }
     }
+}
+
+/// The parameters, the warnings and the pictures, before the tables.
+fn notices(s: &mut String, r: &Results, pictures: &[(String, String)]) {
     if !r.study.parameters.is_empty() {
         let p: Vec<String> = r.study.parameters.iter().map(|(k, v)| format!("{k} = {v}")).collect();
         let _ = writeln!(s, "Parameters: {}.\n", p.join(", "));
@@ -66,6 +93,10 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
     for (title, file) in pictures {
         let _ = writeln!(s, "![{title}]({file})\n");
     }
+}
+
+/// Each force set's components and magnitude, and what a pull at contact assumes.
+fn forces(s: &mut String, model: &Model, r: &Results) {
     if !r.forces.is_empty() {
         let _ = writeln!(s, "## Forces\n\n| set | F1 | F2 | magnitude | note |\n|---|---|---|---|---|");
         for (n, fr) in &r.forces {
@@ -90,6 +121,10 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
             let _ = writeln!(s, "Note: {}{}.\n", note[..1].to_uppercase(), &note[1..]);
         }
     }
+}
+
+/// Fluxes, linkages and inductances, then the stored energy and co-energy.
+fn flux_and_energy(s: &mut String, r: &Results) {
     if !r.flux.is_empty() {
         let _ = writeln!(
             s,
@@ -113,11 +148,15 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
         eng_pm(r.energy.stored_j, r.errors.get("energy").copied(), "J"),
         eng_pm(r.energy.coenergy_j, r.errors.get("coenergy").copied(), "J")
     );
+}
+
+/// Each part's flux density and saturation.
+fn parts(s: &mut String, r: &Results) {
+    let err = |name: String| r.errors.get(&name).copied();
     let _ = writeln!(
         s,
         "## Parts\n\n| part | material | peak B (T, local) | mean B | knee (T) | share above knee |\n|---|---|---|---|---|---|"
     );
-    let err = |name: String| r.errors.get(&name).copied();
     for (n, p) in &r.parts {
         let _ = writeln!(
             s,
@@ -131,6 +170,11 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
         );
     }
     s.push('\n');
+}
+
+/// Each magnet's working point against its knee.
+fn magnets(s: &mut String, model: &Model, r: &Results) {
+    let err = |name: String| r.errors.get(&name).copied();
     if !r.magnets.is_empty() {
         let _ = writeln!(s, "## Magnets at {} degC\n\nThe knee is taken at {:.0} % of HcJ at the study temperature; the margin is 1 - H/H_knee over the most demagnetized 1 % of the volume (0: at the knee; the value at the single worst point, `margin_local` in results.json, follows the mesh at corners and is not judged). The onset is the temperature past which the magnet runs past its knee (above it for NdFeB and SmCo, below it for ferrite, whose coercivity falls as it cools), a linear-model estimate (field scaled with Br, knee with HcJ).\n\n| magnet | grade | Br (T) | HcJ (kA/m) | margin | past knee | permeance | onset (degC) |\n|---|---|---|---|---|---|---|---|", model.temperature, 100.0 * study::checks::KNEE_FRACTION);
         for (n, m) in &r.magnets {
@@ -151,6 +195,12 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
         }
         s.push('\n');
     }
+}
+
+/// How far the stray field reaches, its moment and the screens it is held to.
+fn stray_field(s: &mut String, model: &Model, r: &Results) {
+    let err = |name: String| r.errors.get(&name).copied();
+    let (u, f) = (&model.length_unit.0, model.length_unit.1);
     let st = &r.stray;
     // A distance in the case's unit, with its error.
     let length = |v: Option<f64>, name: &str| v.map_or("-".into(), |v| plain_pm(v / f, err(name.into()).map(|e| e / f), u));
@@ -197,6 +247,10 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
         let _ = writeln!(s, "- air transport: {a}");
     }
     s.push('\n');
+}
+
+/// Each expectation's verdict.
+fn expectations(s: &mut String, r: &Results) {
     if !r.expect.is_empty() {
         let _ = writeln!(s, "## Expectations\n\n| value | bound | actual | result |\n|---|---|---|---|");
         for e in &r.expect {
@@ -217,11 +271,6 @@ pub fn report(model: &Model, r: &Results, pictures: &[(String, String)]) -> Stri
         }
         s.push('\n');
     }
-    let _ = writeln!(s, "## Cautions\n");
-    for c in &r.cautions {
-        let _ = writeln!(s, "- {c}");
-    }
-    s
 }
 
 /// Puts a section into report.md before its cautions, and report.html anew.
