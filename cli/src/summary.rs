@@ -63,6 +63,24 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
         r.solve.seconds
     );
     s += &accuracy_line(r);
+    s += &force_lines(r, m.symmetry);
+    s += &flux_lines(r);
+    s += &probe_lines(r, m);
+    s += &part_lines(r);
+    s += &magnet_lines(r);
+    s += &coil_lines(r);
+    s += &format!("  energy: {}\n", eng_pm(r.energy.stored_j, r.errors.get("energy").copied(), "J"));
+    s += &expectation_lines(r);
+    for w in &r.warnings {
+        s += &format!("  WARNING: {w}\n");
+    }
+    s += &format!("  results in {}\n", out.display());
+    s
+}
+
+/// Each force set, and what a pull at contact assumes.
+fn force_lines(r: &study::Results, symmetry: mesher::Symmetry) -> String {
+    let mut s = String::new();
     let err = |name: String| r.errors.get(&name).copied();
     for (name, fr) in &r.forces {
         let contact = if fr.unreliable {
@@ -74,14 +92,21 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
         };
         s += &format!(
             "  force {name}: [{}, {}], |F| = {}{contact}\n",
-            force_component(r, name, fr, 0, m.symmetry),
-            force_component(r, name, fr, 1, m.symmetry),
+            force_component(r, name, fr, 0, symmetry),
+            force_component(r, name, fr, 1, symmetry),
             eng_pm(fr.magnitude, err(format!("force.{name}.magnitude")), "N")
         );
     }
     if r.forces.values().any(|f| f.contact && !f.unreliable) {
         s += &format!("  note: {CONTACT_NOTE}\n");
     }
+    s
+}
+
+/// Each flux or linkage, with its inductances.
+fn flux_lines(r: &study::Results) -> String {
+    let mut s = String::new();
+    let err = |name: String| r.errors.get(&name).copied();
     for (name, fl) in &r.flux {
         s += &format!("  flux {name}: {}", eng_pm(fl.wb, err(format!("flux.{name}")), "Wb"));
         if let Some(l) = fl.inductance_h {
@@ -93,6 +118,14 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
         }
         s.push('\n');
     }
+    s
+}
+
+/// Each point probe's |B|, each line probe's peak.
+fn probe_lines(r: &study::Results, m: &study::model::Model) -> String {
+    let mut s = String::new();
+    let err = |name: String| r.errors.get(&name).copied();
+    let (u, f) = (&m.length_unit.0, m.length_unit.1);
     for (name, p) in &r.probes {
         if p.points.len() == 1 {
             s += &format!(
@@ -111,6 +144,13 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
             );
         }
     }
+    s
+}
+
+/// Each part's mean and peak |B|, and whether it saturates.
+fn part_lines(r: &study::Results) -> String {
+    let mut s = String::new();
+    let err = |name: String| r.errors.get(&name).copied();
     for (name, p) in &r.parts {
         let sat = match p.saturated {
             Some(true) => "  SATURATED (above the knee of its curve)",
@@ -123,6 +163,13 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
             eng(p.b_max, "T")
         );
     }
+    s
+}
+
+/// Each magnet's margin to its knee and its loss.
+fn magnet_lines(r: &study::Results) -> String {
+    let mut s = String::new();
+    let err = |name: String| r.errors.get(&name).copied();
     for (name, m) in &r.magnets {
         s += &format!(
             "  magnet {name} ({} at {} degC): margin {} over its worst 1 %, {} past the knee, irreversible loss {}{}\n",
@@ -138,6 +185,12 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
             }
         );
     }
+    s
+}
+
+/// Each winding's current, resistance, loss and warming.
+fn coil_lines(r: &study::Results) -> String {
+    let mut s = String::new();
     for (name, c) in &r.coils {
         s += &format!(
             "  coil {name}: {} in {}, {} dissipated, {} in the copper, surface about {} above {} degC (still air; an estimate)\n",
@@ -149,7 +202,12 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
             study::coil::AMBIENT_C
         );
     }
-    s += &format!("  energy: {}\n", eng_pm(r.energy.stored_j, err("energy".into()), "J"));
+    s
+}
+
+/// Each expectation's verdict.
+fn expectation_lines(r: &study::Results) -> String {
+    let mut s = String::new();
     for e in &r.expect {
         let unit = r.units.get(&e.value).copied().unwrap_or("");
         s += &format!(
@@ -165,10 +223,6 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
             e.note.as_ref().map_or(String::new(), |n| format!("; {n}"))
         );
     }
-    for w in &r.warnings {
-        s += &format!("  WARNING: {w}\n");
-    }
-    s += &format!("  results in {}\n", out.display());
     s
 }
 
