@@ -757,3 +757,40 @@ fn a_magnet_sized_beyond_any_made_names_the_unit() {
         "smaller than magnets are made",
     );
 }
+
+/// A flux line whose end lay past the open boundary's rim gave "NaN Wb"
+/// (its potential was read outside the mesh), and one along the axis of an
+/// axisymmetric study "0 Wb" (it sweeps no surface). The first is now
+/// solved, the domain grown to hold its ends: the flux up through a disk
+/// of 30 mm radius 200 mm above the magnet (far past the rim the parts
+/// alone set) matches the integral of 2 pi r B_z over the disk, sampled by
+/// a line probe in a second study and summed by Simpson's rule (61 points:
+/// its error is far below the field's). The second is refused.
+#[test]
+fn a_flux_line_beyond_the_rim_is_solved_and_one_on_the_axis_refused() {
+    let line = |name: &str, from: [f64; 2], to: [f64; 2]| format!("[[flux]]\nname = \"{name}\"\nline = {{ from = {from:?}, to = {to:?} }}\n");
+    let top = magnet_under_plate(&line("top", [0.0, 200.0], [30.0, 200.0])).replace("accuracy = \"1 %\"", "accuracy = \"0.1 %\"");
+    let (code, text, json) = solve("flux-beyond-rim", &top);
+    assert_eq!(code, 0, "{text}");
+    let v: serde_json::Value = serde_json::from_str(&json).unwrap();
+    let (flux, error) = (v["values"]["flux.top"].as_f64().unwrap(), v["errors"]["flux.top"].as_f64().unwrap());
+    let sampled = magnet_under_plate("[[probe]]\nname = \"disk\"\nline = { from = [0, 200], to = [30, 200], points = 61 }\n")
+        .replace("accuracy = \"1 %\"", "accuracy = \"0.1 %\"");
+    let (code, text, json) = solve("flux-by-probe", &sampled);
+    assert_eq!(code, 0, "{text}");
+    let v: serde_json::Value = serde_json::from_str(&json).unwrap();
+    let probe = &v["probes"]["disk"];
+    let f: Vec<f64> = (0..61)
+        .map(|i| 2.0 * std::f64::consts::PI * probe["points"][i][0].as_f64().unwrap() * probe["b"][i][1].as_f64().unwrap())
+        .collect();
+    let h = 0.03 / 60.0;
+    let simpson = h / 3.0 * (f[0] + f[60] + (1..60).map(|i| if i % 2 == 1 { 4.0 * f[i] } else { 2.0 * f[i] }).sum::<f64>());
+    // The probe's samples are each within the 0.1 % asked of the study.
+    assert!(
+        (flux - simpson).abs() <= 2.0 * error + 1e-3 * simpson.abs(),
+        "flux {flux} +- {error} against {simpson}"
+    );
+    let (code, text, _) = solve("flux-on-axis", &magnet_under_plate(&line("axis", [0.0, 12.0], [0.0, 40.0])));
+    assert_eq!(code, 2, "{text}");
+    assert!(text.contains("flux 'axis': the line lies on the axis"), "{text}");
+}

@@ -45,7 +45,7 @@ impl Domain {
                 let cut = half_plane.is_some() || axisym;
                 if half_plane.is_some() && (lo[0] < 0.0 || refinement_points(&spec.refinements).any(|p| p[0] < 0.0)) {
                     return Err(MeshError::Triangulation(
-                        "with a symmetry plane on x = 0 the model is the half x >= 0: every part and probe must lie there".into(),
+                        "with a symmetry plane on x = 0 the model is the half x >= 0: every part, probe and flux line must lie there".into(),
                     ));
                 }
                 let c = if cut {
@@ -131,7 +131,7 @@ fn check_sides(sides: &BoxSides, axisymmetric: bool) -> Result<(), MeshError> {
 
 fn refinement_points(refinements: &[Refinement]) -> impl Iterator<Item = [f64; 2]> + Clone + '_ {
     refinements.iter().flat_map(|r| match r {
-        Refinement::Point { at, .. } => vec![*at],
+        Refinement::Point { at, .. } | Refinement::Enclose { at } => vec![*at],
         Refinement::Line { from, to, .. } => vec![*from, *to],
     })
 }

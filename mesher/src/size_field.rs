@@ -36,6 +36,7 @@ pub fn sources(spec: &MeshSpec, rings: &PartRings) -> Vec<SizeSource> {
         match *r {
             Refinement::Point { at, size } => out.push(SizeSource { a: at, b: at, size }),
             Refinement::Line { from, to, size } => out.push(SizeSource { a: from, b: to, size }),
+            Refinement::Enclose { .. } => {}
         }
     }
     out

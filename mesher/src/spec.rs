@@ -141,6 +141,13 @@ pub enum Refinement {
         /// target edge length along it
         size: f64,
     },
+    /// A point the domain must hold, with no mesh size of its own: the end
+    /// of a flux line, whose flux is read from the potential there (an end
+    /// past the open boundary's rim gave NaN).
+    Enclose {
+        /// the point
+        at: [f64; 2],
+    },
 }
 
 /// Everything the mesher needs, in consistent length units (metres in practice).

@@ -3,7 +3,7 @@
 //! its line.
 
 use crate::materials::Material;
-use crate::model::{Model, Part, ProbeShape};
+use crate::model::{FluxSpec, Model, Part, ProbeShape};
 use mesher::{MeshError, MeshSpec, OuterBoundary, PartSpec, Refinement, Symmetry};
 use solver::element::ElementOrder;
 use solver::{BhCurve, Law, Problem};
@@ -209,6 +209,14 @@ fn point_box_distance((lo, hi): ([f64; 2], [f64; 2]), at: [f64; 2]) -> f64 {
     dx.hypot(dy)
 }
 
+/// The ends of the flux lines, where the flux is read from the potential.
+fn flux_line_ends(model: &Model) -> impl Iterator<Item = [f64; 2]> + '_ {
+    model.fluxes.iter().flat_map(|f| match f {
+        FluxSpec::Line { from, to, .. } => vec![*from, *to],
+        FluxSpec::Winding { .. } => Vec::new(),
+    })
+}
+
 /// The mesh spec of a model: every part, every probe as a refinement, and
 /// the parts' corners graded.
 pub fn mesh_spec(model: &Model) -> MeshSpec {
@@ -227,6 +235,7 @@ pub fn mesh_spec(model: &Model) -> MeshSpec {
             },
         })
         .collect();
+    refinements.extend(flux_line_ends(model).map(|at| Refinement::Enclose { at }));
     if model.accuracy.is_some() {
         refinements.extend(corner_refinements(model));
     }

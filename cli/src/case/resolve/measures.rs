@@ -65,6 +65,36 @@ fn line_ends(lt: &Fields, line: &Item, ctx: &Context, what: &str, hint: &str) ->
     Ok((from, to))
 }
 
+/// Refuses an axisymmetric flux line with an end at r < 0, or lying on the
+/// axis: it sweeps no surface about the axis, and its flux came out as 0 Wb
+/// with no sign that nothing was measured.
+fn refuse_axial_sweep(from: [f64; 2], to: [f64; 2], line: &Item, what: &str) -> Result<(), Diagnostic> {
+    let problem = if from[0] < 0.0 || to[0] < 0.0 {
+        "has an end at r < 0; axisymmetric points lie in r >= 0"
+    } else if from[0] == 0.0 && to[0] == 0.0 {
+        "lies on the axis, so the surface it sweeps about the axis has no area; the flux through a face is a line from the axis outwards, such as from [0, z] to [R, z]"
+    } else {
+        return Ok(());
+    };
+    Err(Diagnostic::new(format!("{what}: the line {problem}"), Some(line.span.clone())))
+}
+
+/// Refuses a flux line with an end outside the flux-parallel box, where
+/// there is no field to read (as a probe there is refused).
+fn refuse_outside_box(model: &Model, ends: [[f64; 2]; 2], line: &Item, what: &str) -> Result<(), Diagnostic> {
+    let mesher::OuterBoundary::FluxParallel { from_to: Some((a, b)), .. } = model.boundary else {
+        return Ok(());
+    };
+    let (lo, hi) = ([a[0].min(b[0]), a[1].min(b[1])], [a[0].max(b[0]), a[1].max(b[1])]);
+    if ends.iter().any(|p| p[0] < lo[0] || p[1] < lo[1] || p[0] > hi[0] || p[1] > hi[1]) {
+        return Err(Diagnostic::new(
+            format!("{what}: the line ends outside the flux-parallel box"),
+            Some(line.span.clone()),
+        ));
+    }
+    Ok(())
+}
+
 pub(super) fn forces(top: &Fields, ctx: &Context, model: &Model) -> Result<Vec<ForceSpec>, Diagnostic> {
     let mut out = Vec::new();
     for item in named_tables(top, "force")? {
@@ -144,6 +174,10 @@ pub(super) fn fluxes(top: &Fields, ctx: &Context, model: &Model) -> Result<Vec<F
             (Some(l), None) => {
                 let lt = l.table(&format!("{what} line"), &["from", "to"])?;
                 let (from, to) = line_ends(&lt, l, ctx, &what, "")?;
+                if model.symmetry == mesher::Symmetry::Axisymmetric {
+                    refuse_axial_sweep(from, to, l, &what)?;
+                }
+                refuse_outside_box(model, [from, to], l, &what)?;
                 out.push(FluxSpec::Line { name, from, to });
             }
             (None, Some(w)) => {
