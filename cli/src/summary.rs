@@ -171,6 +171,14 @@ fn magnet_lines(r: &study::Results) -> String {
     let mut s = String::new();
     let err = |name: String| r.errors.get(&name).copied();
     for (name, m) in &r.magnets {
+        if !m.knee_checked() {
+            let permeance = eng_pm(m.permeance, err(format!("magnet.{name}.permeance")), "");
+            s += &format!(
+                "  magnet {name} ({} at {} degC): permeance coefficient {permeance}; its knee is not checked (no hcj given)\n",
+                m.grade, m.temperature_c
+            );
+            continue;
+        }
         s += &format!(
             "  magnet {name} ({} at {} degC): margin {} over its worst 1 %, {} past the knee, irreversible loss {}{}\n",
             m.grade,

@@ -85,11 +85,28 @@ pub fn magnet_results(model: &Model, sol: &Solution, values: &mut BTreeMap<Strin
         let knee = -KNEE_FRACTION * hcj;
         let wp = magnet_check::working_point(sol, i, dir, knee);
         let onset = onset_temperature(wp.worst_share_h, t, g.br_coeff, g.hcj_coeff, KNEE_FRACTION * g.hcj);
-        values.insert(format!("magnet.{}.margin", p.name), wp.margin);
-        values.insert(format!("magnet.{}.margin_local", p.name), wp.margin_local);
         values.insert(format!("magnet.{}.permeance", p.name), wp.permeance);
-        values.insert(format!("magnet.{}.share_past_knee", p.name), wp.share_past_knee);
-        values.insert(format!("magnet.{}.loss", p.name), wp.loss);
+        // A grade without a coercivity has no knee to be checked against:
+        // its margin came out as 1 (a knee at minus infinity), read as safe.
+        let wp = if g.hcj.is_finite() {
+            values.insert(format!("magnet.{}.margin", p.name), wp.margin);
+            values.insert(format!("magnet.{}.margin_local", p.name), wp.margin_local);
+            values.insert(format!("magnet.{}.share_past_knee", p.name), wp.share_past_knee);
+            values.insert(format!("magnet.{}.loss", p.name), wp.loss);
+            wp
+        } else {
+            warnings.push(format!(
+                "magnet '{}' ({}): its grade gives no intrinsic coercivity (hcj), so whether it demagnetizes is not checked; give hcj, or the intrinsic curve jh, from its data sheet",
+                p.name, p.material.name
+            ));
+            magnet_check::WorkingPoint {
+                margin: f64::NAN,
+                margin_local: f64::NAN,
+                share_past_knee: f64::NAN,
+                loss: f64::NAN,
+                ..wp
+            }
+        };
         if let Some(rated) = g.max_temperature.filter(|&rated| t > rated) {
             warnings.push(format!(
                 "magnet '{}' ({}) runs at {t} degC, above its grade's rated maximum working temperature ({rated} degC): its Br, knee and losses come from the linear temperature model carried past the catalogue's range; confirm them with the maker's curves at that temperature",

@@ -257,6 +257,15 @@ pub struct MagnetResult {
     pub points: Vec<[f64; 2]>,
 }
 
+impl MagnetResult {
+    /// Whether the magnet was checked against a knee: a grade without an
+    /// intrinsic coercivity has none, and its margin, share past the knee
+    /// and loss are NaN (null in results.json), not a margin of 1.
+    pub fn knee_checked(&self) -> bool {
+        self.margin.is_finite()
+    }
+}
+
 /// The stray field beyond the assembly.
 #[derive(Clone, Debug, Default)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]

@@ -51,8 +51,10 @@ pub fn value_names(model: &Model) -> Vec<ValueName> {
         push(format!("part.{}.volume", p.name), Unit::CubicMetre);
         match p.material.material {
             Material::Soft { .. } => push(format!("part.{}.saturated_share", p.name), Unit::Ratio),
-            Material::Magnet(_) => {
-                for s in ["margin", "margin_local", "permeance", "share_past_knee", "loss"] {
+            Material::Magnet(ref g) => {
+                // Without a coercivity there is no knee to measure against (checks::magnet_results).
+                let knee = ["margin", "margin_local", "share_past_knee", "loss"];
+                for s in std::iter::once("permeance").chain(knee.into_iter().filter(|_| g.hcj.is_finite())) {
                     push(format!("magnet.{}.{s}", p.name), Unit::Ratio);
                 }
             }

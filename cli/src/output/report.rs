@@ -180,12 +180,24 @@ fn magnets(s: &mut String, model: &Model, r: &Results) {
         for (n, m) in &r.magnets {
             let _ = writeln!(
                 s,
-                "| {n} | {} | {:.3} | {:.0} | {} | {} | {} | {} |",
+                "| {n} | {} | {:.3} | {} | {} | {} | {} | {} |",
                 m.grade,
                 m.br_t,
-                m.hcj_a_per_m / 1e3,
-                eng_pm(m.margin, err(format!("magnet.{n}.margin")), ""),
-                percent_pm(m.share_past_knee, err(format!("magnet.{n}.share_past_knee"))),
+                if m.hcj_a_per_m.is_finite() {
+                    format!("{:.0}", m.hcj_a_per_m / 1e3)
+                } else {
+                    "-".into()
+                },
+                if m.knee_checked() {
+                    eng_pm(m.margin, err(format!("magnet.{n}.margin")), "")
+                } else {
+                    "not checked (no HcJ)".into()
+                },
+                if m.knee_checked() {
+                    percent_pm(m.share_past_knee, err(format!("magnet.{n}.share_past_knee")))
+                } else {
+                    "-".into()
+                },
                 eng_pm(m.permeance, err(format!("magnet.{n}.permeance")), ""),
                 m.knee_onset_c.map_or("-".into(), |c| format!(
                     "past it {} {c:.0}",

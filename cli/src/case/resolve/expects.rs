@@ -78,6 +78,11 @@ pub(super) fn value_name(item: &Item, model: &Model) -> Result<ValueName, Diagno
             let name = format!("{head}.{to}");
             names.iter().any(|n| n.name == name).then_some(name)
         });
+        if let Some(grade) = knee_less_grade(model, written) {
+            return err.with_help(Some(format!(
+                "the magnet's grade '{grade}' gives no intrinsic coercivity (hcj), so it has no knee to measure a margin, share or loss against; give hcj, or jh, from its data sheet"
+            )));
+        }
         match mapped {
             Some(m) => err.with_help(Some(format!(
                 "components in {} study are {}; did you mean '{m}'?",
@@ -87,6 +92,20 @@ pub(super) fn value_name(item: &Item, model: &Model) -> Result<ValueName, Diagno
             None => err.suggest(written, names.iter().map(|n| n.name.as_str())),
         }
     })
+}
+
+/// The grade of the magnet a knee value (`magnet.NAME.margin`, ...) names,
+/// where that grade has no coercivity and so no such value.
+fn knee_less_grade<'m>(model: &'m Model, written: &str) -> Option<&'m str> {
+    let (name, value) = written.strip_prefix("magnet.")?.rsplit_once('.')?;
+    if !["margin", "margin_local", "share_past_knee", "loss"].contains(&value) {
+        return None;
+    }
+    let part = model.parts.iter().find(|p| p.name == name)?;
+    match &part.material.material {
+        study::materials::Material::Magnet(g) if !g.hcj.is_finite() => Some(&part.material.name),
+        _ => None,
+    }
 }
 
 /// `[[expect]]` tables with their spans, their values checked against the model.
