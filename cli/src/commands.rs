@@ -83,6 +83,29 @@ fn solve_inner(
     solve_loaded(&loaded, output, &overrides(set)?, &limits, shard, force, &progress)
 }
 
+/// The case's `[seek]`, `[tolerance]` and `[optimize]` tables, resolved
+/// against its first variant that resolves: their input errors are the
+/// case's, for `solve` before any folder is made and for `check`, which
+/// runs none of them but must not pass a case that `solve` refuses.
+type DesignQuestions = (
+    Option<crate::case::resolve::Seek>,
+    Option<crate::case::resolve::Tolerance>,
+    Option<crate::case::resolve::Optimize>,
+);
+
+fn design_questions(loaded: &Loaded, variants: &[Variant], limits: &Limits) -> Result<DesignQuestions, Failure> {
+    if variants.is_empty() {
+        return Ok((None, None, None));
+    }
+    let (first, resolved) = first_resolved(loaded, variants, limits)?;
+    let input = |d: crate::case::Diagnostic| loaded.input(&d);
+    Ok((
+        crate::case::resolve::seek(&loaded.doc, &first.params, &resolved.model).map_err(input)?,
+        crate::case::resolve::tolerance(&loaded.doc, &first.params, &resolved.model).map_err(input)?,
+        crate::case::resolve::optimize(&loaded.doc, &first.params, &resolved.model).map_err(input)?,
+    ))
+}
+
 /// `solve` on a case already read (from a file, or the Python package's
 /// text): a single study, a sweep, a seek, a tolerance study or an
 /// optimization, into its output folder; the exit code.
@@ -98,13 +121,7 @@ pub fn solve_loaded(
     let mut variants = run::variants(loaded, overrides)?;
     // Input errors that every variant shares (a misspelled name, a bad unit)
     // are found before any folder is made or mesh built.
-    let (mut seek, mut tolerance, mut optimize) = (None, None, None);
-    if !variants.is_empty() {
-        let (first, resolved) = first_resolved(loaded, &variants, limits)?;
-        seek = crate::case::resolve::seek(&loaded.doc, &first.params, &resolved.model).map_err(|d| loaded.input(&d))?;
-        tolerance = crate::case::resolve::tolerance(&loaded.doc, &first.params, &resolved.model).map_err(|d| loaded.input(&d))?;
-        optimize = crate::case::resolve::optimize(&loaded.doc, &first.params, &resolved.model).map_err(|d| loaded.input(&d))?;
-    }
+    let (seek, tolerance, optimize) = design_questions(loaded, &variants, limits)?;
     let shard = shard.map(|s| parse_shard(s).map(|kn| (s, kn))).transpose()?;
     if (seek.is_some() || optimize.is_some()) && shard.is_some() {
         return Err(Failure::Input(
@@ -352,6 +369,7 @@ pub fn check(cases: &[PathBuf], junit: Option<PathBuf>, set: &[String], max_elem
 fn check_case(case: &Path, over: &BTreeMap<String, f64>, limits: &Limits, progress: &Progress) -> Result<(i32, crate::junit::Suite), Failure> {
     let loaded = run::load(case)?;
     let variants = run::variants(&loaded, over)?;
+    design_questions(&loaded, &variants, limits)?;
     let outcomes: Vec<Result<Outcome, Failure>> = variants.par_iter().map(|v| run::solve_variant(&loaded, v, limits, progress)).collect();
     progress.finish();
     let mut suite = crate::junit::Suite {

@@ -798,8 +798,8 @@ fn a_flux_line_beyond_the_rim_is_solved_and_one_on_the_axis_refused() {
 /// A grade of the case's own with a remanence and no coercivity: a 1 mm
 /// disk (permeance coefficient 0.18, where sintered NdFeB can lose flux)
 /// showed "margin 1.00000 over its worst 1 %, 0.0 % past the knee" (a knee
-/// at minus infinity), read as safe. It now says the knee is not checked,
-/// warns, and reports no margin; the same disk with hcj keeps its margin.
+/// at minus infinity), read as safe. It now says the knee is not checked
+/// and reports no margin; the same disk with hcj keeps its margin.
 #[test]
 fn a_grade_without_coercivity_says_its_knee_is_not_checked() {
     let case = |hcj: &str| {
@@ -810,18 +810,17 @@ fn a_grade_without_coercivity_says_its_knee_is_not_checked() {
             .replace("11 + gap", "7 + gap")
             + &format!("[materials.lot]\nbr = \"1.2 T\"\nmur = 1.05\n{hcj}")
     };
-    warns_only_the_first(
-        "no-hcj",
-        &case(""),
-        &case("hcj = \"1000 kA/m\"\nbr_coeff = -0.12\nhcj_coeff = -0.6\n"),
-        "magnet 'magnet' (lot): its grade gives no intrinsic coercivity (hcj), so whether it demagnetizes is not checked",
-        "no intrinsic coercivity",
-    );
-    let (_, text, json) = solve("no-hcj-values", &case(""));
+    let (code, text, json) = solve("no-hcj", &case(""));
+    assert_eq!(code, 0, "{text}");
     assert!(text.contains("its knee is not checked (no hcj given)") && !text.contains("margin 1"), "{text}");
     let v: serde_json::Value = serde_json::from_str(&json).unwrap();
     assert!(
         v["values"].get("magnet.magnet.margin").is_none() && v["values"]["magnet.magnet.permeance"].is_number(),
         "{json}"
     );
+    let (code, text, json) = solve("with-hcj", &case("hcj = \"1000 kA/m\"\n"));
+    assert_eq!(code, 0, "{text}");
+    assert!(text.contains("margin 0.") && !text.contains("not checked"), "{text}");
+    let v: serde_json::Value = serde_json::from_str(&json).unwrap();
+    assert!(v["values"]["magnet.magnet.margin"].is_number(), "{json}");
 }

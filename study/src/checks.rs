@@ -95,10 +95,8 @@ pub fn magnet_results(model: &Model, sol: &Solution, values: &mut BTreeMap<Strin
             values.insert(format!("magnet.{}.loss", p.name), wp.loss);
             wp
         } else {
-            warnings.push(format!(
-                "magnet '{}' ({}): its grade gives no intrinsic coercivity (hcj), so whether it demagnetizes is not checked; give hcj, or the intrinsic curve jh, from its data sheet",
-                p.name, p.material.name
-            ));
+            // No warning: an ideal magnet (a validation's rigid one) is meant
+            // so; the summary and report say "not checked" in its place.
             magnet_check::WorkingPoint {
                 margin: f64::NAN,
                 margin_local: f64::NAN,

@@ -58,7 +58,7 @@ pub fn optimize<E: Send>(search: &Search, evaluate: impl Fn(&[f64]) -> Result<Po
                 distribution: Distribution::Uniform,
             })
             .collect();
-        design.extend(latin_hypercube(&box_, search.design_points, search.seed));
+        design.extend(latin_hypercube(&box_, search.design_points.min(design_room(search)), search.seed));
     }
     let evaluated: Vec<Result<Point, E>> = design.par_iter().map(|x| evaluate(x)).collect();
     let mut log = Vec::new();
@@ -79,6 +79,19 @@ pub fn optimize<E: Send>(search: &Search, evaluate: impl Fn(&[f64]) -> Result<Po
         evaluations: log,
         stop,
     })
+}
+
+/// The fewest evaluations a search needs: the start, COBYLA's first
+/// linear model (n + 1 points and one step) and the restoring steps.
+pub fn least_evaluations(n: usize) -> usize {
+    1 + (n + 2) + restore::RESTORE_STEPS
+}
+
+/// How many design candidates fit in `max_evaluations` beside the least
+/// the search needs: `max_evaluations = 8` with a design of 6 had solved
+/// ten studies (the search's minimum came on top).
+fn design_room(search: &Search) -> usize {
+    search.max_evaluations.saturating_sub(least_evaluations(search.bounds.len()))
 }
 
 /// Key of a point for the cache: its bits.
@@ -194,6 +207,30 @@ mod tests {
             got.best.x
         );
         assert!(got.evaluations.len() <= 80, "{}", got.evaluations.len());
+    }
+
+    /// The search stays within `max_evaluations`, the design included,
+    /// however tight the budget: a problem whose constraint cannot be met
+    /// (the restoring steps all taken) at the least budget the search needs.
+    #[test]
+    fn the_budget_holds_the_design_and_the_restoring_steps() {
+        for max_evaluations in [least_evaluations(2), least_evaluations(2) + 2, 12] {
+            let s = Search {
+                max_evaluations,
+                ..search(vec![[-2.0, 2.0], [-2.0, 2.0]], vec![0.0, 0.0], 1)
+            };
+            let got = optimize::<()>(&s, |x| {
+                Ok(Point {
+                    x: x.to_vec(),
+                    objective: x[0] + x[1],
+                    margins: vec![x[0] * x[0] + x[1] * x[1] - 100.0],
+                    reported: vec![],
+                })
+            })
+            .unwrap();
+            assert!(!got.feasible);
+            assert!(got.evaluations.len() <= max_evaluations, "{} > {max_evaluations}", got.evaluations.len());
+        }
     }
 
     /// A smooth one-parameter maximum, as the fixed-volume magnet: found

@@ -152,7 +152,15 @@ pub fn optimize(top: &Fields, ctx: &Context, model: &Model) -> Result<Option<Opt
         Ok(n as usize)
     };
     let n = vary.len();
-    let max_evaluations = count("max_evaluations", 60, 10_000)?.max(n + 3);
+    let max_evaluations = count("max_evaluations", 60, 10_000)?;
+    let least = study::optimize::least_evaluations(n);
+    if max_evaluations < least {
+        let span = t.get("max_evaluations").map(|i| i.span.clone());
+        return Err(Diagnostic::new(
+            format!("optimize.max_evaluations: {max_evaluations} is below the {least} studies a search over {n} parameter(s) needs (the start, {} for COBYLA's first model and step, {} restoring steps)", n + 2, least - n - 3),
+            span,
+        ));
+    }
     let design = count("design", 2 * n + 2, 1_000)?;
     let seed = count("seed", 1, usize::MAX)? as u64;
     let tolerance = fraction(t.get("tolerance"), ctx, "optimize.tolerance", 1e-3)?;
