@@ -1,5 +1,6 @@
-//! The warnings of the many solves behind one answer: a sweep's variants
-//! and a tolerance study's samples. Each solve's warnings used to stay in
+//! The warnings of the many solves behind one answer: a sweep's variants,
+//! a tolerance study's samples, a search's evaluations (an optimizer's, a
+//! seek's). Each solve's warnings used to stay in
 //! its own results.json (or nowhere, for a sample), so a tolerance study
 //! whose spread put a plate into its magnet in a quarter of its samples
 //! counted them in its statistics with no word said.
@@ -43,6 +44,25 @@ pub fn summary_lines(what: &str, total: usize, warned: &[Warned], listed_in: &st
         lines.push(format!("    and {} more", warned.len() - LISTED));
     }
     lines
+}
+
+/// One "note:" line for the evaluations of a search (an optimizer's, a
+/// seek's), whose points are not the answer: most of what they warn of is
+/// the design space, not a mistake, so they are counted and listed in
+/// `listed_in`, and the answer's own warnings stand above. None when none
+/// warned.
+pub fn search_note(warned: &[Warned], total: usize, listed_in: &str, answer: &str) -> Option<String> {
+    (!warned.is_empty()).then(|| {
+        format!(
+            "  note: {} of {total} evaluations gave warnings, listed in {listed_in} and the report (the {answer}'s own are above)",
+            warned.len()
+        )
+    })
+}
+
+/// The JSON list of each solve's warnings under `key` (its label).
+pub fn json(key: &str, warned: &[Warned]) -> Vec<serde_json::Value> {
+    warned.iter().map(|w| serde_json::json!({ key: w.label, "warnings": w.warnings })).collect()
 }
 
 /// A report's section listing every solve's warnings; empty when none warned.

@@ -191,7 +191,7 @@ pub fn solve(loaded: &Loaded, spec: &Optimize, base: &Variant, folder: &OutputFo
         "subject_to": spec.constraints.iter().map(|c| c.text.clone()).collect::<Vec<_>>(),
         "constraints_at_optimum": at_optimum.iter().map(|c| serde_json::json!({ "constraint": c.text, "value": c.value, "error": c.error, "verdict": verdict_word(c.verdict) })).collect::<Vec<_>>(),
         "evaluations": optimum.evaluations.len(),
-        "warnings": warned.iter().map(|w| serde_json::json!({ "evaluation": w.label, "warnings": w.warnings })).collect::<Vec<_>>(),
+        "warnings": crate::many_warnings::json("evaluation", &warned),
         "stop": optimum.stop,
         "accuracy_of_evaluations": spec.accuracy,
         "note": "values and errors in SI; params in the case's own units. The optimum is the best evaluation found by COBYLA after a parallel Latin-hypercube start, then up to three steps of feasibility restoration where COBYLA's own best breaks a constraint by a hair; the search stops when its steps fall below the tolerance share of each range. Evaluations are solved to accuracy_of_evaluations, and a constraint counts as met there where it holds within the evaluation's estimated error; the case at the optimum is solved to the case's own accuracy, and constraints_at_optimum judges each constraint there within that solve's error."
@@ -238,12 +238,8 @@ pub fn solve(loaded: &Loaded, spec: &Optimize, base: &Variant, folder: &OutputFo
     // One line: the search's designs are not the answer, and most of what
     // they warn of (a plate saturating at a corner of the box) is the design
     // space, not a mistake; the optimum's own warnings are above.
-    if !warned.is_empty() {
-        println!(
-            "  note: {} of {} evaluations gave warnings, listed in optimize.json and the report (the optimum's own are above)",
-            warned.len(),
-            optimum.evaluations.len()
-        );
+    if let Some(note) = crate::many_warnings::search_note(&warned, optimum.evaluations.len(), "optimize.json", "optimum") {
+        println!("{note}");
     }
     if !optimum.feasible || at_optimum.iter().any(|c| c.verdict != Verdict::Pass) {
         return Ok(1);

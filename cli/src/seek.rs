@@ -6,6 +6,7 @@
 //! solved there again.
 
 use crate::case::resolve::Seek;
+use crate::many_warnings::Warned;
 use crate::output::folder::OutputFolder;
 use crate::progress::Progress;
 use crate::run::{self, Failure, Limits, Loaded, Variant};
@@ -38,6 +39,8 @@ struct Context<'a> {
     spec: &'a Seek,
     limits: &'a Limits,
     progress: &'a Progress,
+    /// Each evaluation's warnings, by its parameter (listed beside the answer's own).
+    warned: &'a Mutex<Vec<(f64, Warned)>>,
 }
 
 /// One evaluation: the study at `x`, its value and estimated error. A
@@ -51,6 +54,7 @@ fn evaluate(ctx: &Context, x: f64, need: Need, kept: &Mutex<Option<Kept>>) -> Re
         spec,
         limits,
         progress,
+        warned,
     } = *ctx;
     let mut at = base.clone();
     at.params.insert(spec.vary.clone(), x);
@@ -91,6 +95,17 @@ fn evaluate(ctx: &Context, x: f64, need: Need, kept: &Mutex<Option<Kept>>) -> Re
             spec.vary
         )));
     }
+    // A scan's point the seek passed through (a plate inside its magnet at
+    // one end of the range) warned nowhere.
+    if !results.warnings.is_empty() {
+        let scan = if side_only { ", scan" } else { "" };
+        let label = crate::many_warnings::label("evaluation", [(spec.vary.as_str(), x)]).replacen(')', &format!("{scan})"), 1);
+        let w = Warned {
+            label,
+            warnings: results.warnings.clone(),
+        };
+        warned.lock().unwrap_or_else(|e| e.into_inner()).push((x, w));
+    }
     let value = results.values.get(&spec.value).copied().unwrap_or(f64::NAN);
     let error = results.errors.get(&spec.value).copied().unwrap_or(0.0);
     progress.note(&format!(
@@ -125,12 +140,14 @@ fn scan_limits(need: Need, loaded: &Loaded, at: &Variant, limits: &Limits) -> Re
 /// Runs the seek, then the full case at the answer; exit code as `solve`.
 pub fn solve(loaded: &Loaded, spec: &Seek, base: &Variant, folder: &OutputFolder, limits: &Limits, progress: &Progress) -> Result<i32, Failure> {
     let kept = Mutex::new(None);
+    let warned = Mutex::new(Vec::new());
     let ctx = Context {
         loaded,
         base,
         spec,
         limits,
         progress,
+        warned: &warned,
     };
     let found = study::seek::seek(spec.range[0], spec.range[1], spec.target, spec.tolerance, |x, need| {
         evaluate(&ctx, x, need, &kept)
@@ -153,6 +170,9 @@ pub fn solve(loaded: &Loaded, spec: &Seek, base: &Variant, folder: &OutputFolder
             return Ok(1);
         }
     };
+    let mut warned = warned.into_inner().unwrap_or_else(|e| e.into_inner());
+    warned.sort_by(|a, b| a.0.total_cmp(&b.0));
+    let warned: Vec<Warned> = warned.into_iter().map(|w| w.1).collect();
     let mut at = base.clone();
     at.params.insert(spec.vary.clone(), found.x);
     let mut outcome = match kept.into_inner().unwrap_or_else(|e| e.into_inner()) {
@@ -162,7 +182,9 @@ pub fn solve(loaded: &Loaded, spec: &Seek, base: &Variant, folder: &OutputFolder
     progress.finish();
     let value = outcome.results.values.get(&spec.value).copied();
     let error = outcome.results.errors.get(&spec.value).copied();
-    outcome.files.push(("seek.json".into(), seek_json(spec, &found, &at.params, value, error)?));
+    outcome
+        .files
+        .push(("seek.json".into(), seek_json(spec, &found, &at.params, [value, error], &warned)?));
     outcome.files.push(("seek.csv".into(), seek_csv(spec, &found).into_bytes()));
     outcome.files.push(("seek.svg".into(), seek_chart(spec, &found).into_bytes()));
     // The answer to its uncertainty's second digit, as every value with its error is shown.
@@ -174,7 +196,7 @@ pub fn solve(loaded: &Loaded, spec: &Seek, base: &Variant, folder: &OutputFolder
         spec.vary,
         answer,
         found.evaluations.len()
-    );
+    ) + &crate::many_warnings::markdown("evaluations", found.evaluations.len(), &warned);
     crate::output::report::add_section(&mut outcome.files, &section);
     folder
         .commit(Path::new(""), &outcome.files)
@@ -189,10 +211,19 @@ pub fn solve(loaded: &Loaded, spec: &Seek, base: &Variant, folder: &OutputFolder
         crate::output::engineering::eng(spec.target, spec.unit),
         found.evaluations.len()
     );
+    if let Some(note) = crate::many_warnings::search_note(&warned, found.evaluations.len(), "seek.json", "answer") {
+        println!("{note}");
+    }
     Ok(i32::from(!outcome.results.solve.converged) * 3)
 }
 
-fn seek_json(spec: &Seek, found: &study::seek::Found, params: &BTreeMap<String, f64>, value: Option<f64>, error: Option<f64>) -> Result<Vec<u8>, Failure> {
+fn seek_json(
+    spec: &Seek,
+    found: &study::seek::Found,
+    params: &BTreeMap<String, f64>,
+    [value, error]: [Option<f64>; 2],
+    warned: &[Warned],
+) -> Result<Vec<u8>, Failure> {
     let evaluations: Vec<_> = found
         .evaluations
         .iter()
@@ -208,6 +239,7 @@ fn seek_json(spec: &Seek, found: &study::seek::Found, params: &BTreeMap<String, 
         "error": error,
         "params": params,
         "evaluations": evaluations,
+        "warnings": crate::many_warnings::json("evaluation", warned),
         "note": "SI units for value, error and target; the parameter in the case's own units. The uncertainty is the value's estimated error over the slope, plus what is left of the final bracket; when the seek stopped at a point within the study's accuracy of the target, the value's distance from the target and its error over the slope. Evaluations marked scan were solved to a looser accuracy (ten times the study's, at most 5 %) only to find which side of the target they lie on; the answer is never one of them."
     });
     serde_json::to_vec_pretty(&json).map_err(|e| Failure::Input(format!("error: cannot encode seek.json: {e}\n")))

@@ -824,3 +824,29 @@ fn a_grade_without_coercivity_says_its_knee_is_not_checked() {
     let v: serde_json::Value = serde_json::from_str(&json).unwrap();
     assert!(v["values"]["magnet.magnet.margin"].is_number(), "{json}");
 }
+
+/// A seek's evaluations warned nowhere: a scan point at the range's end
+/// put the plate 0.3 mm into the magnet and said nothing (the answer, at
+/// 0.89 mm, is clean). They are now counted in the summary and listed in
+/// seek.json, as the optimizer's are.
+#[test]
+fn a_seeks_evaluations_warnings_are_listed() {
+    let case = magnet_under_plate("[seek]\nvary = \"gap\"\nrange = [-0.3, 4]\nvalue = \"force.pull.z\"\ntarget = \"-40 N\"\n");
+    let (code, text, out) = solve_kept("seek-warnings", &case);
+    assert_eq!(code, 0, "{text}");
+    assert!(
+        text.contains("note: 1 of ") && text.contains("evaluations gave warnings, listed in seek.json"),
+        "{text}"
+    );
+    let json: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(out.join("seek.json")).unwrap()).unwrap();
+    let warned = json["warnings"].as_array().unwrap();
+    assert_eq!(warned.len(), 1, "{json}");
+    assert_eq!(warned[0]["evaluation"], "evaluation (gap = -0.3, scan)");
+    assert!(
+        warned[0]["warnings"][0]
+            .as_str()
+            .unwrap()
+            .contains("magnet 'magnet' is 6 % covered by later parts ('plate')"),
+        "{json}"
+    );
+}

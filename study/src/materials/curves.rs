@@ -15,6 +15,34 @@ pub fn check_table(table: &[[f64; 2]]) -> Result<(), CurveError> {
     solver::check_polarization(table)
 }
 
+/// The lowest relative permeability of any material a case may hold:
+/// the strongest diamagnets stay above it (bismuth 0.999834, chi -1.66e-4:
+/// HyperPhysics, "Magnetic Susceptibilities of Paramagnetic and
+/// Diamagnetic Materials at 20 degC"; pyrolytic graphite across its planes
+/// about 0.9996, from memory). Only a superconductor excludes more flux.
+pub const LOWEST_RELATIVE_PERMEABILITY: f64 = 0.999;
+
+/// Why a linear relative permeability is no material's, or None: below
+/// `LOWEST_RELATIVE_PERMEABILITY` it is most often a permeability in H/m
+/// written as a relative one (a steel's 6.3e-3 H/m is mu_r 5000, and as
+/// `mur` it kept all flux out of the part, with no sign of it), and the
+/// reason offers mu / mu0.
+pub fn implausible_relative_permeability(mur: f64) -> Option<String> {
+    if mur >= LOWEST_RELATIVE_PERMEABILITY {
+        return None;
+    }
+    let absolute = if mur < 0.1 {
+        let relative = mur / MU0;
+        let digits = if relative >= 10.0 { 0 } else { 3 };
+        format!("; if {mur} is the permeability in H/m, mur is {relative:.digits$} (it over mu0, 1.2566e-6 H/m)")
+    } else {
+        String::new()
+    };
+    Some(format!(
+        "{mur} is below any material's relative permeability (air and copper 1, the strongest diamagnet, bismuth, 0.99983; steel hundreds to thousands){absolute}"
+    ))
+}
+
 /// The interpolated (Fritsch-Carlson) B-H curve from B = 0 to `b_top`,
 /// as `samples + 1` points [H (A/m), B (T)]; None for an invalid table.
 pub fn bh_points(table: &[[f64; 2]], b_top: f64, samples: usize) -> Option<Vec<[f64; 2]>> {

@@ -13,7 +13,10 @@ mod magnets;
 mod soft;
 mod sourced_curves;
 
-pub use curves::{bh_points, check_table, h_at, knee, largest_relative_permeability, CurveError, PLAUSIBLE_RELATIVE_PERMEABILITY};
+pub use curves::{
+    bh_points, check_table, h_at, implausible_relative_permeability, knee, largest_relative_permeability, CurveError, LOWEST_RELATIVE_PERMEABILITY,
+    PLAUSIBLE_RELATIVE_PERMEABILITY,
+};
 pub use entry::{Entry, Material};
 pub use grade::MagnetGrade;
 pub use library::{lookup, names};

@@ -64,31 +64,13 @@ pub(super) fn user_materials(top: &Fields, ctx: &Context, dir: &Path) -> Result<
     Ok(out)
 }
 
-/// The lowest relative permeability of any material a case may hold:
-/// the strongest diamagnets stay above it (bismuth 0.999834, chi -1.66e-4:
-/// HyperPhysics, "Magnetic Susceptibilities of Paramagnetic and
-/// Diamagnetic Materials at 20 degC"; pyrolytic graphite across its planes
-/// about 0.9996, from memory). Only a superconductor excludes more flux.
-pub const LOWEST_RELATIVE_PERMEABILITY: f64 = 0.999;
-
-/// Refuses a linear `mur` below any material's: most often a permeability
-/// in H/m written as a relative one (a steel's 6.3e-3 H/m is mu_r 5000, and
-/// as `mur` it kept all flux out of the part, with no sign of it).
+/// Refuses a linear `mur` below any material's
+/// (`study::materials::implausible_relative_permeability`).
 fn refuse_below_any_material(mur: f64, item: &Item, what: &str) -> Result<(), Diagnostic> {
-    if mur >= LOWEST_RELATIVE_PERMEABILITY {
-        return Ok(());
+    match study::materials::implausible_relative_permeability(mur) {
+        Some(why) => Err(Diagnostic::new(format!("{what} mur: {why}"), Some(item.span.clone()))),
+        None => Ok(()),
     }
-    let absolute = format!(
-        "; if {mur} is the permeability in H/m, mur is {} (it over mu0, 1.2566e-6 H/m)",
-        crate::output::engineering::significant_digits(mur / solver::MU0, 4)
-    );
-    Err(Diagnostic::new(
-        format!(
-            "{what} mur: {mur} is below any material's relative permeability (air and copper 1, the strongest diamagnet, bismuth, 0.99983; steel hundreds to thousands){}",
-            if mur < 0.1 { absolute } else { String::new() }
-        ),
-        Some(item.span.clone()),
-    ))
 }
 
 fn user_material(t: &Fields, ctx: &Context, dir: &Path, what: &str) -> Result<Material, Diagnostic> {
