@@ -98,10 +98,9 @@ fn evaluate(ctx: &Context, x: f64, need: Need, kept: &Mutex<Option<Kept>>) -> Re
     // A scan's point the seek passed through (a plate inside its magnet at
     // one end of the range) warned nowhere.
     if !results.warnings.is_empty() {
-        let scan = if side_only { ", scan" } else { "" };
-        let label = crate::many_warnings::label("evaluation", [(spec.vary.as_str(), x)]).replacen(')', &format!("{scan})"), 1);
+        let what = if side_only { "scan point" } else { "evaluation" };
         let w = Warned {
-            label,
+            label: crate::many_warnings::label(what, [(spec.vary.as_str(), x)]),
             warnings: results.warnings.clone(),
         };
         warned.lock().unwrap_or_else(|e| e.into_inner()).push((x, w));

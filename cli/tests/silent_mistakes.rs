@@ -841,7 +841,7 @@ fn a_seeks_evaluations_warnings_are_listed() {
     let json: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(out.join("seek.json")).unwrap()).unwrap();
     let warned = json["warnings"].as_array().unwrap();
     assert_eq!(warned.len(), 1, "{json}");
-    assert_eq!(warned[0]["evaluation"], "evaluation (gap = -0.3, scan)");
+    assert_eq!(warned[0]["evaluation"], "scan point (gap = -0.3)");
     assert!(
         warned[0]["warnings"][0]
             .as_str()

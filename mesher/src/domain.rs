@@ -67,7 +67,7 @@ impl Domain {
             }
             OuterBoundary::FluxParallel { from_to, sides } => {
                 let (b0, b1) = match from_to {
-                    Some((a, b)) => ([a[0].min(b[0]), a[1].min(b[1])], [a[0].max(b[0]), a[1].max(b[1])]),
+                    Some((a, b)) => crate::spec::ordered_box(*a, *b),
                     None => {
                         let (rlo, rhi) = bbox(refinement_points(&spec.refinements).chain([lo, hi]));
                         let pad = (rhi[0] - rlo[0]).max(rhi[1] - rlo[1]) * DEFAULT_BOX_PAD;

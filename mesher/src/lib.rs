@@ -42,8 +42,8 @@ pub use exterior::ExteriorDisk;
 pub use mesh::{BoundaryTag, Mesh, MeshQuality, Region};
 pub use refine::BoundaryCircle;
 pub use spec::{
-    BoxSides, MeshSpec, OuterBoundary, PartSpec, Refinement, Shape, SideKind, Symmetry, BOTTOM, DEFAULT_GRADING, DEFAULT_MIN_ANGLE, GRADING_RANGE, LEFT,
-    MIN_ANGLE_RANGE, RIGHT, TOP,
+    ordered_box, outside_box, BoxSides, MeshSpec, OuterBoundary, PartSpec, Refinement, Shape, SideKind, Symmetry, BOTTOM, DEFAULT_GRADING, DEFAULT_MIN_ANGLE,
+    GRADING_RANGE, LEFT, MIN_ANGLE_RANGE, RIGHT, TOP,
 };
 
 /// Builds the mesh of a study: validate shapes, triangulate, refine, tag.

@@ -79,6 +79,27 @@ pub enum OuterBoundary {
     },
 }
 
+impl OuterBoundary {
+    /// The flux-parallel box's lower-left and upper-right corners, where
+    /// the case gives the box (its two corners may come in any order).
+    pub fn given_box(&self) -> Option<([f64; 2], [f64; 2])> {
+        match self {
+            OuterBoundary::FluxParallel { from_to: Some((a, b)), .. } => Some(ordered_box(*a, *b)),
+            _ => None,
+        }
+    }
+}
+
+/// The lower-left and upper-right corners of the box with corners `a` and `b`.
+pub fn ordered_box(a: [f64; 2], b: [f64; 2]) -> ([f64; 2], [f64; 2]) {
+    ([a[0].min(b[0]), a[1].min(b[1])], [a[0].max(b[0]), a[1].max(b[1])])
+}
+
+/// Whether `p` lies outside the box `lo`..`hi` (its sides count as inside).
+pub fn outside_box((lo, hi): ([f64; 2], [f64; 2]), p: [f64; 2]) -> bool {
+    p[0] < lo[0] || p[1] < lo[1] || p[0] > hi[0] || p[1] > hi[1]
+}
+
 /// What one side of a flux-parallel box is.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Default)]
 pub enum SideKind {

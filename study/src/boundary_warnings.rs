@@ -33,7 +33,7 @@ fn planes(model: &Model) -> Vec<Plane> {
             flux_normal: *flux_normal,
         }],
         OuterBoundary::FluxParallel { from_to: Some((a, b)), sides } => {
-            let (lo, hi) = ([a[0].min(b[0]), a[1].min(b[1])], [a[0].max(b[0]), a[1].max(b[1])]);
+            let (lo, hi) = mesher::ordered_box(*a, *b);
             // bottom, right, top, left
             let place = [(1, lo[1]), (0, hi[0]), (1, hi[1]), (0, lo[0])];
             sides

@@ -4,7 +4,7 @@
 
 use crate::materials::Material;
 use crate::model::{FluxSpec, Model, Part, ProbeShape};
-use mesher::{MeshError, MeshSpec, OuterBoundary, PartSpec, Refinement, Symmetry};
+use mesher::{MeshError, MeshSpec, PartSpec, Refinement, Symmetry};
 use solver::element::ElementOrder;
 use solver::{BhCurve, Law, Problem};
 use std::sync::Arc;
@@ -442,10 +442,7 @@ pub fn element_order(model: &Model) -> ElementOrder {
 
 /// Probes that the mesh cannot reach are input errors, found before solving.
 pub fn check_probes_inside(model: &Model) -> Result<(), StudyError> {
-    let box_bounds = match model.boundary {
-        OuterBoundary::FluxParallel { from_to: Some((a, b)), .. } => Some(([a[0].min(b[0]), a[1].min(b[1])], [a[0].max(b[0]), a[1].max(b[1])])),
-        _ => None,
-    };
+    let box_bounds = model.boundary.given_box();
     let corners = SingularCorners::of(model);
     for (i, probe) in model.probes.iter().enumerate() {
         let pts = match probe.shape {
@@ -462,8 +459,8 @@ pub fn check_probes_inside(model: &Model) -> Result<(), StudyError> {
                 at,
             ));
         }
-        if let Some((lo, hi)) = box_bounds {
-            if pts.iter().any(|p| p[0] < lo[0] || p[1] < lo[1] || p[0] > hi[0] || p[1] > hi[1]) {
+        if let Some(b) = box_bounds {
+            if pts.iter().any(|&p| mesher::outside_box(b, p)) {
                 return Err(StudyError::new(format!("probe '{}' lies outside the flux-parallel box", probe.name), at));
             }
         }

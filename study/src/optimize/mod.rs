@@ -210,8 +210,9 @@ mod tests {
     }
 
     /// The search stays within `max_evaluations`, the design included,
-    /// however tight the budget: a problem whose constraint cannot be met
-    /// (the restoring steps all taken) at the least budget the search needs.
+    /// however tight the budget, from the least the search needs up: on a
+    /// problem whose constraint no point of the box meets (the search runs
+    /// until its budget is spent).
     #[test]
     fn the_budget_holds_the_design_and_the_restoring_steps() {
         for max_evaluations in [least_evaluations(2), least_evaluations(2) + 2, 12] {

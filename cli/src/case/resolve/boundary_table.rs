@@ -57,7 +57,7 @@ pub(super) fn boundaries(
             Some(first.span.start..first.span.start + 1),
         ));
     };
-    let (lo, hi) = ([a[0].min(b[0]), a[1].min(b[1])], [a[0].max(b[0]), a[1].max(b[1])]);
+    let (lo, hi) = mesher::ordered_box(*a, *b);
     let mut cells = 1.0;
     for item in items {
         cells *= named_side(item, ctx, symmetry, (lo, hi), sides)?;

@@ -82,17 +82,13 @@ fn refuse_axial_sweep(from: [f64; 2], to: [f64; 2], line: &Item, what: &str) -> 
 /// Refuses a flux line with an end outside the flux-parallel box, where
 /// there is no field to read (as a probe there is refused).
 fn refuse_outside_box(model: &Model, ends: [[f64; 2]; 2], line: &Item, what: &str) -> Result<(), Diagnostic> {
-    let mesher::OuterBoundary::FluxParallel { from_to: Some((a, b)), .. } = model.boundary else {
-        return Ok(());
-    };
-    let (lo, hi) = ([a[0].min(b[0]), a[1].min(b[1])], [a[0].max(b[0]), a[1].max(b[1])]);
-    if ends.iter().any(|p| p[0] < lo[0] || p[1] < lo[1] || p[0] > hi[0] || p[1] > hi[1]) {
-        return Err(Diagnostic::new(
+    match model.boundary.given_box() {
+        Some(b) if ends.iter().any(|&p| mesher::outside_box(b, p)) => Err(Diagnostic::new(
             format!("{what}: the line ends outside the flux-parallel box"),
             Some(line.span.clone()),
-        ));
+        )),
+        _ => Ok(()),
     }
-    Ok(())
 }
 
 pub(super) fn forces(top: &Fields, ctx: &Context, model: &Model) -> Result<Vec<ForceSpec>, Diagnostic> {

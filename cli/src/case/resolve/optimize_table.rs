@@ -157,7 +157,7 @@ pub fn optimize(top: &Fields, ctx: &Context, model: &Model) -> Result<Option<Opt
     if max_evaluations < least {
         let span = t.get("max_evaluations").map(|i| i.span.clone());
         return Err(Diagnostic::new(
-            format!("optimize.max_evaluations: {max_evaluations} is below the {least} studies a search over {n} parameter(s) needs (the start, {} for COBYLA's first model and step, {} restoring steps)", n + 2, least - n - 3),
+            format!("optimize.max_evaluations: {max_evaluations} is below the {least} studies a search over {n} parameter(s) needs (the start, {} for COBYLA's first model and step, {} restoring steps)", n + 2, least - 1 - (n + 2)),
             span,
         ));
     }
