@@ -32,12 +32,16 @@ pub fn variant_key(case: u64, v: &Variant, model: &study::Model) -> String {
         run = fnv1a(k.as_bytes(), run);
         run = fnv1a(&x.to_bits().to_le_bytes(), run);
     }
-    // The parameter values themselves are left out: two variants whose
-    // models agree otherwise would solve to the same answer.
+    format!("model {:016x}\nrun {run:016x}\n", model_key(model))
+}
+
+/// A hash of what a model solves: its parameter values themselves are
+/// left out, so two parameter sets whose models agree otherwise (one
+/// differing only in a parameter nothing uses) share it.
+pub fn model_key(model: &study::Model) -> u64 {
     let mut bare = model.clone();
     bare.params.clear();
-    let model = fnv1a(format!("{}{bare:?}", env!("CARGO_PKG_VERSION")).as_bytes(), 0xcbf2_9ce4_8422_2325);
-    format!("model {model:016x}\nrun {run:016x}\n")
+    fnv1a(format!("{}{bare:?}", env!("CARGO_PKG_VERSION")).as_bytes(), 0xcbf2_9ce4_8422_2325)
 }
 
 /// The run line of a variant key.
