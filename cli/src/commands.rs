@@ -99,11 +99,48 @@ fn design_questions(loaded: &Loaded, variants: &[Variant], limits: &Limits) -> R
     }
     let (first, resolved) = first_resolved(loaded, variants, limits)?;
     let input = |d: crate::case::Diagnostic| loaded.input(&d);
-    Ok((
+    let questions = (
         crate::case::resolve::seek(&loaded.doc, &first.params, &resolved.model).map_err(input)?,
         crate::case::resolve::tolerance(&loaded.doc, &first.params, &resolved.model).map_err(input)?,
         crate::case::resolve::optimize(&loaded.doc, &first.params, &resolved.model).map_err(input)?,
-    ))
+    );
+    unused_question_parameter(loaded, first, limits, &questions)?;
+    Ok(questions)
+}
+
+/// Refuses a design question over a parameter nothing in the case uses:
+/// the model at the two ends of its range is the same, so a tolerance
+/// study's samples all solved the nominal design and its statistics came
+/// out narrower than the tolerances meant, with no word; a seek found its
+/// value flat, and an optimizer searched a direction that moves nothing.
+/// (A sweep over one is refused by `unused_sweep_parameter`.)
+fn unused_question_parameter(loaded: &Loaded, base: &Variant, limits: &Limits, (seek, tolerance, optimize): &DesignQuestions) -> Result<(), Failure> {
+    let mut asked: Vec<(&str, &str, [f64; 2])> = Vec::new();
+    if let Some(s) = seek {
+        asked.push(("[seek] vary", &s.vary, s.range));
+    }
+    for s in tolerance.iter().flat_map(|t| &t.spreads) {
+        asked.push(("[tolerance] spread", &s.name, [s.nominal - s.half_width, s.nominal + s.half_width]));
+    }
+    for (name, range) in optimize.iter().flat_map(|o| &o.vary) {
+        asked.push(("[optimize] vary", name, *range));
+    }
+    let key_at = |name: &str, x: f64| {
+        let mut params = base.params.clone();
+        params.insert(name.to_string(), x);
+        run::resolve(loaded, &params, limits).map(|r| sweep::model_key(&r.model))
+    };
+    for (table, name, [a, b]) in asked {
+        // An end that breaks the model (a part of zero size) does use it.
+        let unused = a != b && matches!((key_at(name, a), key_at(name, b)), (Ok(ka), Ok(kb)) if ka == kb);
+        if unused {
+            return Err(Failure::Input(format!(
+                "error: {}: {table} '{name}' changes nothing in the case: nothing uses '{name}'; write it into a part's dimensions or a material, or remove it from {table}\n",
+                loaded.path.display()
+            )));
+        }
+    }
+    Ok(())
 }
 
 /// `solve` on a case already read (from a file, or the Python package's

@@ -53,29 +53,6 @@ fn sample(loaded: &Loaded, base: &Variant, tol: &Tolerance, at: &[f64], limits: 
     })
 }
 
-/// Refuses a spread on a parameter that nothing in the case uses: its
-/// samples all solve the nominal model, and the statistics came out
-/// narrower than the tolerances meant, with no word (a spread on a
-/// parameter left over from an edit, the gap it was meant for fixed).
-fn unused_spread(loaded: &Loaded, tol: &Tolerance, base: &Variant, limits: &Limits) -> Result<(), Failure> {
-    let key = |params: &BTreeMap<String, f64>| run::resolve(loaded, params, limits).map(|r| crate::sweep::model_key(&r.model));
-    let nominal = key(&base.params)?;
-    for s in tol.spreads.iter().filter(|s| s.half_width > 0.0) {
-        let mut moved = base.params.clone();
-        moved.insert(s.name.clone(), s.nominal + s.half_width);
-        // A moved value that breaks the model (a part of zero size) does use it.
-        if key(&moved).is_ok_and(|k| k == nominal) {
-            return Err(Failure::Input(format!(
-                "error: {}: the spread on '{}' changes nothing in the case: nothing uses '{}'; write it into a part's dimensions or a material, or remove it from [tolerance] spread\n",
-                loaded.path.display(),
-                s.name,
-                s.name
-            )));
-        }
-    }
-    Ok(())
-}
-
 /// What every sample of one study shares.
 struct Job<'a> {
     loaded: &'a Loaded,
@@ -185,7 +162,6 @@ fn samples_kept(
     progress: &Progress,
     store: Option<&Store>,
 ) -> Result<Result<Samples, usize>, Failure> {
-    unused_spread(loaded, tol, base, limits)?;
     let job = Job { loaded, base, tol, limits };
     let whole = |v: Vec<Option<Sample>>| -> Result<Vec<Sample>, usize> {
         let missing = v.iter().filter(|x| x.is_none()).count();
