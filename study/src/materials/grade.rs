@@ -92,6 +92,48 @@ impl MagnetGrade {
     }
 }
 
+/// The highest reversible Br coefficient of any magnet family, %/K: every
+/// family in docs/materials.md loses remanence as it warms (sintered NdFeB
+/// -0.12, S1; SmCo -0.025 to -0.043, S17 to S20; hard ferrite about -0.2,
+/// S23; AlNiCo -0.02, S25; bonded NdFeB -0.11, S29), and temperature-
+/// compensated SmCo stays within about 0.01 of zero (from memory).
+pub const HIGHEST_BR_COEFF: f64 = 0.01;
+
+/// The HcJ coefficient above which a coercivity rises with temperature, %/K:
+/// hard ferrite's does (+0.27, S23), NdFeB's and SmCo's fall (-0.5 to -0.76,
+/// S1 and S10; -0.15 to -0.30, S20).
+pub const RISING_HCJ_COEFF: f64 = 0.1;
+
+/// The highest remanence of a hard ferrite, T (Y33's typical 0.42, S22;
+/// with margin): a rising coercivity with a remanence above it is no
+/// family's.
+pub const HIGHEST_FERRITE_BR: f64 = 0.5;
+
+/// Why a grade's reversible temperature coefficients are no magnet
+/// family's, with the key at fault: most often a data sheet's minus sign
+/// dropped. A user grade with `br_coeff = 0.12` gained 7 % of remanence at
+/// 80 degC, and an NdFeB grade with `hcj_coeff = 0.6` a coercivity that
+/// rises as it warms, hiding its demagnetization: both solved in silence.
+pub fn implausible_coefficients(br: f64, br_coeff: f64, hcj_coeff: f64) -> Option<(&'static str, String)> {
+    if br_coeff > HIGHEST_BR_COEFF {
+        return Some((
+            "br_coeff",
+            format!(
+                "{br_coeff} %/K makes the remanence rise as the magnet warms; every magnet family loses it (sintered NdFeB about -0.12, SmCo -0.03 to -0.04, ferrite -0.2, AlNiCo -0.02 %/K): give the data sheet's minus sign"
+            ),
+        ));
+    }
+    if hcj_coeff > RISING_HCJ_COEFF && br > HIGHEST_FERRITE_BR {
+        return Some((
+            "hcj_coeff",
+            format!(
+                "{hcj_coeff} %/K makes the coercivity rise as the magnet warms, which only hard ferrite's does (+0.27 %/K, with Br below {HIGHEST_FERRITE_BR} T); with Br {br} T this is a rare-earth magnet, whose HcJ falls (NdFeB -0.5 to -0.76, SmCo -0.15 to -0.3 %/K): give the data sheet's minus sign"
+            ),
+        ));
+    }
+    None
+}
+
 impl MagnetGrade {
     /// Lowest study temperature accepted, degC: catalogues quote the
     /// reversible coefficients from room temperature upward, and below

@@ -55,3 +55,35 @@ fn linear(name: &str) -> Option<Entry> {
         source: l.3.into(),
     })
 }
+
+#[cfg(test)]
+mod tests {
+    use super::{lookup, names};
+    use crate::materials::{implausible_coefficients, implausible_relative_permeability, Material};
+
+    /// Every library entry passes the checks a case's own material is
+    /// held to: a magnet's temperature coefficients are some family's (the
+    /// ferrites' rising coercivity included), a linear material's mu_r is
+    /// some material's. The checks refuse a dropped minus sign, not a grade.
+    #[test]
+    fn every_entry_passes_the_checks_a_cases_material_meets() {
+        let mut magnets = 0;
+        for name in names() {
+            match lookup(&name).map(|e| e.material) {
+                Some(Material::Magnet(g)) => {
+                    magnets += 1;
+                    assert_eq!(implausible_coefficients(g.br, g.br_coeff, g.hcj_coeff), None, "{name}");
+                }
+                Some(Material::Linear { relative_permeability }) => {
+                    assert_eq!(implausible_relative_permeability(relative_permeability), None, "{name}");
+                }
+                _ => {}
+            }
+        }
+        assert!(magnets > 20, "{magnets} magnet grades");
+        // A dropped sign on either coefficient is caught.
+        assert_eq!(implausible_coefficients(1.3, 0.12, -0.6).map(|c| c.0), Some("br_coeff"));
+        assert_eq!(implausible_coefficients(1.3, -0.12, 0.6).map(|c| c.0), Some("hcj_coeff"));
+        assert_eq!(implausible_coefficients(0.4, -0.2, 0.27), None, "a ferrite's rising coercivity");
+    }
+}

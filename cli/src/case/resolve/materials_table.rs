@@ -102,11 +102,7 @@ fn user_material(t: &Fields, ctx: &Context, dir: &Path, what: &str) -> Result<Ma
             Some(h) => ctx.positive(h, Kind::FieldStrength, &format!("{what} hcj"))?,
             None => f64::INFINITY,
         };
-        let coeff = |key: &str| {
-            t.get(key)
-                .map(|c| ctx.quantity(c, Kind::PercentPerKelvin, &format!("{what} {key}")))
-                .transpose()
-        };
+        let (br_coeff, hcj_coeff) = coefficients(t, ctx, what)?;
         let squareness = match t.get("squareness") {
             Some(q) => {
                 let v = positive_number(q, &format!("{what} squareness"))?;
@@ -120,17 +116,21 @@ fn user_material(t: &Fields, ctx: &Context, dir: &Path, what: &str) -> Result<Ma
             }
             None => MagnetGrade::DEFAULT_SQUARENESS,
         };
-        return Ok(Material::Magnet(MagnetGrade {
-            br: br_v,
-            squareness,
-            recoil_permeability: mu,
-            hcj,
-            hcb: None,
-            br_coeff: coeff("br_coeff")?.unwrap_or(0.0),
-            hcj_coeff: coeff("hcj_coeff")?.unwrap_or(0.0),
-            max_temperature: None,
-            intrinsic: None,
-        }));
+        return checked_coefficients(
+            t,
+            what,
+            MagnetGrade {
+                br: br_v,
+                squareness,
+                recoil_permeability: mu,
+                hcj,
+                hcb: None,
+                br_coeff,
+                hcj_coeff,
+                max_temperature: None,
+                intrinsic: None,
+            },
+        );
     }
     let given = t.present(&["bh", "bh_csv", "mur"]);
     if given.len() != 1 {
@@ -199,15 +199,31 @@ fn table_magnet(t: &Fields, ctx: &Context, jh: &Item, what: &str) -> Result<Mate
         Some(m) => positive_number(m, &format!("{what} mur"))?,
         None => MagnetGrade::DEFAULT_RECOIL_PERMEABILITY,
     };
+    let (br_coeff, hcj_coeff) = coefficients(t, ctx, what)?;
+    let grade =
+        MagnetGrade::from_intrinsic_curve(&pts, mu, br_coeff, hcj_coeff).map_err(|msg| Diagnostic::new(format!("{what} jh: {msg}"), Some(jh.span.clone())))?;
+    checked_coefficients(t, what, grade)
+}
+
+/// A magnet grade's reversible temperature coefficients (`br_coeff`,
+/// `hcj_coeff`, %/K; 0 where not given).
+fn coefficients(t: &Fields, ctx: &Context, what: &str) -> Result<(f64, f64), Diagnostic> {
     let coeff = |key: &str| {
         t.get(key)
             .map(|c| ctx.quantity(c, Kind::PercentPerKelvin, &format!("{what} {key}")))
             .transpose()
+            .map(|c| c.unwrap_or(0.0))
     };
-    let (br_coeff, hcj_coeff) = (coeff("br_coeff")?.unwrap_or(0.0), coeff("hcj_coeff")?.unwrap_or(0.0));
-    MagnetGrade::from_intrinsic_curve(&pts, mu, br_coeff, hcj_coeff)
-        .map(Material::Magnet)
-        .map_err(|msg| Diagnostic::new(format!("{what} jh: {msg}"), Some(jh.span.clone())))
+    Ok((coeff("br_coeff")?, coeff("hcj_coeff")?))
+}
+
+/// The grade, or a refusal at the coefficient no magnet family has
+/// (`study::materials::implausible_coefficients`: a minus sign dropped).
+fn checked_coefficients(t: &Fields, what: &str, g: MagnetGrade) -> Result<Material, Diagnostic> {
+    match study::materials::implausible_coefficients(g.br, g.br_coeff, g.hcj_coeff) {
+        Some((key, why)) => Err(Diagnostic::new(format!("{what} {key}: {why}"), t.get(key).map(|i| i.span.clone()))),
+        None => Ok(Material::Magnet(g)),
+    }
 }
 
 /// Refuses a remanence or polarization past what any material reaches
