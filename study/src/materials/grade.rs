@@ -109,6 +109,22 @@ pub const RISING_HCJ_COEFF: f64 = 0.1;
 /// family's.
 pub const HIGHEST_FERRITE_BR: f64 = 0.5;
 
+/// The lowest intrinsic coercivity of any permanent magnet family, A/m,
+/// with margin: cast AlNiCo 5's is about 48 kA/m (its HcB, S25), hard
+/// ferrite's 140 to 300 kA/m (S22), sintered NdFeB's from 955 kA/m (S1).
+/// A bare `hcj = 955` is read as 955 A/m (bare numbers are SI), and the
+/// magnet came out 99.9 % demagnetized with no word of the unit.
+pub const LOWEST_HCJ: f64 = 10e3;
+
+/// Why an intrinsic coercivity is no permanent magnet's, or None.
+pub fn implausible_coercivity(hcj: f64) -> Option<String> {
+    (hcj < LOWEST_HCJ).then(|| {
+        format!(
+            "{hcj} A/m is below any permanent magnet's (cast AlNiCo about 48 kA/m, ferrite 140 to 300 kA/m, sintered NdFeB from 955 kA/m); a bare number is A/m: write the data sheet's unit, as \"{hcj} kA/m\" or \"12 kOe\""
+        )
+    })
+}
+
 /// Why a grade's reversible temperature coefficients are no magnet
 /// family's, with the key at fault: most often a data sheet's minus sign
 /// dropped. A user grade with `br_coeff = 0.12` gained 7 % of remanence at

@@ -99,7 +99,13 @@ fn user_material(t: &Fields, ctx: &Context, dir: &Path, what: &str) -> Result<Ma
             ));
         }
         let hcj = match t.get("hcj") {
-            Some(h) => ctx.positive(h, Kind::FieldStrength, &format!("{what} hcj"))?,
+            Some(h) => {
+                let hcj = ctx.positive(h, Kind::FieldStrength, &format!("{what} hcj"))?;
+                if let Some(why) = study::materials::implausible_coercivity(hcj) {
+                    return Err(Diagnostic::new(format!("{what} hcj: {why}"), Some(h.span.clone())));
+                }
+                hcj
+            }
             None => f64::INFINITY,
         };
         let (br_coeff, hcj_coeff) = coefficients(t, ctx, what)?;
