@@ -125,6 +125,21 @@ pub fn implausible_coercivity(hcj: f64) -> Option<String> {
     })
 }
 
+/// The lowest remanence of any permanent magnet, T, with margin: isotropic
+/// ferrite's is 0.2 T (Y10T, S22), flexible bonded ferrite sheet's about
+/// 0.1 to 0.25 T (from memory). A remanence in mT or gauss written as tesla
+/// ("1.2 mT" for "1.2 T") gave a magnet a thousand times too weak.
+pub const LOWEST_BR: f64 = 0.05;
+
+/// Why a remanence is no permanent magnet's (below `LOWEST_BR`), or None.
+pub fn implausible_remanence(br: f64) -> Option<String> {
+    (br < LOWEST_BR).then(|| {
+        format!(
+            "{br} T is below any permanent magnet's remanence (isotropic ferrite 0.2 T, sintered NdFeB 1.2 to 1.45 T): check its unit (\"1.2 T\", \"12 kG\")"
+        )
+    })
+}
+
 /// Why a grade's reversible temperature coefficients are no magnet
 /// family's, with the key at fault: most often a data sheet's minus sign
 /// dropped. A user grade with `br_coeff = 0.12` gained 7 % of remanence at

@@ -59,7 +59,7 @@ fn linear(name: &str) -> Option<Entry> {
 #[cfg(test)]
 mod tests {
     use super::{lookup, names};
-    use crate::materials::{implausible_coefficients, implausible_coercivity, implausible_relative_permeability, Material};
+    use crate::materials::{implausible_coefficients, implausible_coercivity, implausible_relative_permeability, implausible_remanence, Material};
 
     /// Every library entry passes the checks a case's own material is
     /// held to: a magnet's temperature coefficients are some family's (the
@@ -74,6 +74,7 @@ mod tests {
                     magnets += 1;
                     assert_eq!(implausible_coefficients(g.br, g.br_coeff, g.hcj_coeff), None, "{name}");
                     assert_eq!(implausible_coercivity(g.hcj), None, "{name}");
+                    assert_eq!(implausible_remanence(g.br), None, "{name}");
                 }
                 Some(Material::Linear { relative_permeability }) => {
                     assert_eq!(implausible_relative_permeability(relative_permeability), None, "{name}");

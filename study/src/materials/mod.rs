@@ -18,6 +18,9 @@ pub use curves::{
     PLAUSIBLE_RELATIVE_PERMEABILITY,
 };
 pub use entry::{Entry, Material};
-pub use grade::{implausible_coefficients, implausible_coercivity, MagnetGrade, HIGHEST_BR_COEFF, HIGHEST_FERRITE_BR, LOWEST_HCJ, RISING_HCJ_COEFF};
+pub use grade::{
+    implausible_coefficients, implausible_coercivity, implausible_remanence, MagnetGrade, HIGHEST_BR_COEFF, HIGHEST_FERRITE_BR, LOWEST_BR, LOWEST_HCJ,
+    RISING_HCJ_COEFF,
+};
 pub use library::{lookup, names};
 pub use soft::highest_knee as highest_soft_knee;

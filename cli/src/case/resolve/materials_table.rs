@@ -80,6 +80,9 @@ fn user_material(t: &Fields, ctx: &Context, dir: &Path, what: &str) -> Result<Ma
     if let Some(br) = t.get("br") {
         let br_v = ctx.quantity(br, Kind::FluxDensity, &format!("{what} br"))?;
         within_any_material(br_v, br, &format!("{what} br: a remanence"))?;
+        if let Some(why) = study::materials::implausible_remanence(br_v) {
+            return Err(Diagnostic::new(format!("{what} br: {why}"), Some(br.span.clone())));
+        }
         let mu = match (t.get("mur"), t.get("hcb")) {
             (Some(m), None) => positive_number(m, &format!("{what} mur"))?,
             (None, Some(h)) => MagnetGrade::recoil_permeability_from(br_v, ctx.positive(h, Kind::FieldStrength, &format!("{what} hcb"))?),
