@@ -42,7 +42,21 @@ pub(super) fn part_ref(item: &Item, model: &Model, what: &str) -> Result<usize, 
 pub(super) fn part_list(item: &Item, model: &Model, what: &str) -> Result<Vec<usize>, Diagnostic> {
     match &item.value {
         Value::Str(_) => Ok(vec![part_ref(item, model, what)?]),
-        Value::Array(a) if !a.is_empty() => a.iter().map(|x| part_ref(x, model, what)).collect(),
+        Value::Array(a) if !a.is_empty() => {
+            let mut parts = Vec::new();
+            for x in a {
+                let p = part_ref(x, model, what)?;
+                // A winding's part listed twice counted its linkage twice.
+                if parts.contains(&p) {
+                    return Err(Diagnostic::new(
+                        format!("{what}: '{}' is listed twice", model.parts[p].name),
+                        Some(x.span.clone()),
+                    ));
+                }
+                parts.push(p);
+            }
+            Ok(parts)
+        }
         _ => Err(Diagnostic::new(
             format!("{what}: expected a part name or a list of part names"),
             Some(item.span.clone()),
