@@ -82,14 +82,9 @@ pub fn eng_shared(values: &[f64], error: Option<f64>, unit: &str) -> (Vec<String
         return (values.iter().map(|&v| eng(v, unit)).collect(), error);
     };
     let (exponent, prefix) = prefix_of(reference, unit);
-    // pm_scaled writes "V U ± E U": keep each value, and the error once.
-    let texts: Vec<String> = values.iter().map(|&v| pm_scaled(v, e, exponent, prefix, unit)).collect();
-    let error = texts.first().and_then(|t| t.split_once(" \u{b1} ")).map(|(_, err)| err.to_string());
-    let values = texts
-        .iter()
-        .map(|t| t.split_once(" \u{b1} ").map_or(t.clone(), |(v, _)| v.to_string()))
-        .collect();
-    (values, error)
+    let u = format!("{prefix}{unit}");
+    let texts = values.iter().map(|&v| with_unit(&scaled_text(v, e, exponent), &u)).collect();
+    (texts, Some(with_unit(&scaled_text(e, e, exponent), &u)))
 }
 
 /// Whether a magnitude lies outside the SI prefixes' reach (pico to tera,
@@ -120,13 +115,22 @@ fn worth_printing(e: f64, value: f64) -> bool {
 /// `value +- e` divided by 10^exponent, to the error's second significant
 /// digit, in `prefix` `unit`.
 fn pm_scaled(value: f64, e: f64, exponent: i32, prefix: &str, unit: &str) -> String {
-    let (v, e) = (value / 10f64.powi(exponent), e / 10f64.powi(exponent));
-    let decimals = if e > 0.0 { (1 - e.log10().floor() as i32).clamp(0, 9) as usize } else { 4 };
     let u = format!("{prefix}{unit}");
-    format!("{v:.decimals$} {u} \u{b1} {e:.decimals$} {u}")
-        .replace("  ", " ")
-        .trim_end()
-        .to_string()
+    let [v, e] = [value, e].map(|x| with_unit(&scaled_text(x, e, exponent), &u));
+    format!("{v} \u{b1} {e}")
+}
+
+/// `x` to an error's second significant digit, both divided by
+/// 10^exponent (the error's decimals; four without an error).
+fn scaled_text(x: f64, error: f64, exponent: i32) -> String {
+    let e = error / 10f64.powi(exponent);
+    let decimals = if e > 0.0 { (1 - e.log10().floor() as i32).clamp(0, 9) as usize } else { 4 };
+    format!("{:.decimals$}", x / 10f64.powi(exponent))
+}
+
+/// "V U", or "V" alone for a unitless value.
+fn with_unit(number: &str, unit: &str) -> String {
+    format!("{number} {unit}").trim_end().to_string()
 }
 
 /// Whether a unit takes SI prefixes (not a ratio, degC, %, deg, kgf, ...).
