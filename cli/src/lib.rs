@@ -16,3 +16,4 @@ pub mod seek;
 pub mod summary;
 pub mod sweep;
 pub mod tolerance;
+pub mod variants;

@@ -850,3 +850,21 @@ fn a_seeks_evaluations_warnings_are_listed() {
         "{json}"
     );
 }
+
+/// A `reach_level` above the field outside the parts (2 T): the reach
+/// ended 0.04 mm from the centre of the parts' box and was reported as a
+/// reach, under the report's words for the default 5 mT ("a common rule of
+/// thumb for picking up small steel items"). It now warns, and the report
+/// names a level of the case's own as such; 0.3 T, reached past the plate,
+/// does not warn.
+#[test]
+fn a_reach_level_above_the_field_outside_the_parts_is_warned() {
+    let case = |level: &str| magnet_under_plate("").replace("accuracy = \"1 %\"", &format!("accuracy = \"1 %\"\nreach_level = \"{level}\""));
+    warns_only_the_first(
+        "reach-inside",
+        &case("2 T"),
+        &case("0.3 T"),
+        "the reach along the axis to 2000 mT ends",
+        "reach_level lies above the field outside them",
+    );
+}

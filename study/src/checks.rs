@@ -20,6 +20,11 @@ pub const KNEE_FRACTION: f64 = 0.9;
 /// maximum working temperature, from memory).
 pub const LOSS_WARNING: f64 = 0.01;
 
+/// The default level the reach along the axis runs to, T: 5 mT, a common
+/// rule of thumb for where small steel items are no longer picked up
+/// (common practice).
+pub const DEFAULT_REACH_LEVEL: f64 = 5e-3;
+
 /// 0.5 mT: implanted medical devices are generally not affected below it (ICNIRP 2009).
 pub const IMPLANT_LEVEL: f64 = 0.5e-3;
 
@@ -70,6 +75,36 @@ pub fn implausible_magnet_sizes(model: &Model) -> Vec<String> {
         ));
     }
     out
+}
+
+/// A warning when the reach along the axis ends inside the box around the
+/// parts: the level lies above the field outside them, and the reach
+/// measures none of the stray field (a `reach_level` of 2 T on a disk magnet
+/// under a plate ended 0.04 mm from the centre of their box, reported as
+/// a reach).
+pub fn reach_within_parts(model: &Model, stray: &StrayResult) -> Option<String> {
+    let (d, from, c) = (stray.reach_axis_m?, stray.reach_from_m?, stray.reference_point_m?);
+    let (lo, hi) = mesher::geometry::bbox(model.parts.iter().flat_map(|p| {
+        let (a, b) = p.shape.bounds();
+        [a, b]
+    }));
+    if mesher::outside_box((lo, hi), from) {
+        return None;
+    }
+    // The reach runs outwards from a point off the centre, both ways from it.
+    let leave = match from[1].partial_cmp(&c[1]) {
+        Some(std::cmp::Ordering::Greater) => hi[1] - from[1],
+        Some(std::cmp::Ordering::Less) => from[1] - lo[1],
+        _ => (hi[1] - from[1]).max(from[1] - lo[1]),
+    };
+    (d < leave).then(|| {
+        format!(
+            "the reach along the axis to {} mT ends {} from where it is measured, inside the box around the parts: reach_level lies above the field outside them, so the reach says nothing of the stray field (the default is {} mT)",
+            model.reach_level * 1e3,
+            model.length_text(d),
+            DEFAULT_REACH_LEVEL * 1e3
+        )
+    })
 }
 
 /// Each magnet's working point against its knee at the study temperature, with its values and warnings.

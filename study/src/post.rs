@@ -88,6 +88,7 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
     warnings.extend(modelling_warnings(model, sol));
     warnings.extend(crate::probe_warnings::probe_warnings(model, sol, &corners, &probes));
     warnings.extend(crate::probe_warnings::planar_far_field(model, &probes, stray.reach_axis_m));
+    warnings.extend(crate::checks::reach_within_parts(model, &stray));
     warnings.extend(crate::boundary_warnings::mirrored_parts(model));
     warnings.extend(crate::boundary_warnings::near_far_walls(
         model,

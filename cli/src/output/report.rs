@@ -1,6 +1,6 @@
 //! report.md: the study in tables and pictures, with the cautions.
 
-use super::engineering::{eng_pm, plain_pm};
+use super::engineering::{eng, eng_pm, plain_pm};
 use crate::case::Model;
 use crate::summary::percent_pm;
 use std::fmt::Write;
@@ -231,8 +231,13 @@ fn stray_field(s: &mut String, model: &Model, r: &Results) {
     };
     let _ = writeln!(
         s,
-        "- reach along the axis to {:.1} mT (a common rule of thumb for picking up small steel items), {from}: {}",
-        st.reach_level_t * 1e3,
+        "- reach along the axis to {} ({}), {from}: {}",
+        eng(st.reach_level_t, "T"),
+        if st.reach_level_t == study::checks::DEFAULT_REACH_LEVEL {
+            "a common rule of thumb for picking up small steel items"
+        } else {
+            "the case's reach_level"
+        },
         length(st.reach_axis_m, "reach.axis")
     );
     if let Some(m) = st.moment_a_m2 {

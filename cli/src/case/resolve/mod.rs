@@ -226,7 +226,7 @@ fn resolve_at(
         newton: solver_settings(&top)?,
         reach_level: match study.get("reach_level") {
             Some(r) => ctx.positive(r, Kind::FluxDensity, "study.reach_level")?,
-            None => 5e-3,
+            None => study::checks::DEFAULT_REACH_LEVEL,
         },
         reach_from: study.get("reach_from").map(|p| ctx.point(p, "study.reach_from")).transpose()?,
         stray_field: true,
