@@ -25,6 +25,13 @@ pub const LOSS_WARNING: f64 = 0.01;
 /// (common practice).
 pub const DEFAULT_REACH_LEVEL: f64 = 5e-3;
 
+/// The strongest applied field a case may hold, T: steady fields made in
+/// laboratories reach about 45 T (hybrid magnets, from memory). A field
+/// strength in A/m written bare (800 000 for 800 kA/m) is read as tesla,
+/// and a study of a magnet in 800 kT ran to 700 000 triangles before its
+/// accuracy gave out, with no word of the unit.
+pub const STRONGEST_APPLIED_FIELD: f64 = 50.0;
+
 /// 0.5 mT: implanted medical devices are generally not affected below it (ICNIRP 2009).
 pub const IMPLANT_LEVEL: f64 = 0.5e-3;
 

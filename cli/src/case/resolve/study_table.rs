@@ -115,6 +115,21 @@ fn field_of(table: &Fields, ctx: &Context, symmetry: Symmetry, what: &str) -> Re
     let Some(a) = table.get("applied_field") else {
         return Ok([0.0, 0.0]);
     };
+    let field = field_components(a, ctx, symmetry, what)?;
+    let magnitude = field[0].hypot(field[1]);
+    if magnitude > study::checks::STRONGEST_APPLIED_FIELD {
+        return Err(Diagnostic::new(
+            format!(
+                "{what}: {magnitude} T is past any steady field made (laboratories reach about 45 T); a bare number is tesla, so a field strength needs mu0 H in tesla, or a flux density its unit (\"500 mT\")"
+            ),
+            Some(a.span.clone()),
+        ));
+    }
+    Ok(field)
+}
+
+/// The components of an `applied_field` item, T.
+fn field_components(a: &crate::case::document::Item, ctx: &Context, symmetry: Symmetry, what: &str) -> Result<[f64; 2], Diagnostic> {
     match (&a.value, symmetry) {
         (Value::Array(v), Symmetry::Planar) if v.len() == 2 => {
             Ok([ctx.quantity(&v[0], Kind::FluxDensity, what)?, ctx.quantity(&v[1], Kind::FluxDensity, what)?])
