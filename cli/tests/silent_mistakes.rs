@@ -868,3 +868,33 @@ fn a_reach_level_above_the_field_outside_the_parts_is_warned() {
         "reach_level lies above the field outside them",
     );
 }
+
+/// A coil wound with 500 turns (`[[part]] turns`) whose `[[flux]]` gave no
+/// `turns` had its linkage counted for one turn (its inductance 108 nH
+/// where the coil's is 27 mH), and one whose `[[flux]]` said 50 for a
+/// current ten times the coil's own, beside a coil line with the right
+/// current. The linkage now counts the part's turns, and a different
+/// count is refused.
+#[test]
+fn a_windings_linkage_counts_the_coils_own_turns() {
+    let coil = |flux_turns: &str| {
+        format!(
+            "[study]\ngeometry = \"axisymmetric\"\nunit = \"mm\"\naccuracy = \"1 %\"\n{OUTPUT}\
+             [[part]]\nname = \"coil\"\nmaterial = \"copper\"\ncurrent = \"400 A\"\nturns = 200\nwire = \"AWG 24\"\nrect = {{ from = [5, 0], to = [10, 20] }}\n\
+             [[flux]]\nname = \"linkage\"\nwinding = \"coil\"\n{flux_turns}"
+        )
+    };
+    let inductance = |json: &str| {
+        let v: serde_json::Value = serde_json::from_str(json).unwrap();
+        v["values"]["flux.linkage.inductance"].as_f64().unwrap()
+    };
+    let (code, text, json) = solve("linkage-own-turns", &coil(""));
+    assert_eq!(code, 0, "{text}");
+    let (code, text, explicit) = solve("linkage-given-turns", &coil("turns = 200\n"));
+    assert_eq!(code, 0, "{text}");
+    let (l, l_given) = (inductance(&json), inductance(&explicit));
+    assert!((l - l_given).abs() <= 1e-9 * l_given, "{l} against {l_given}");
+    let (code, text, _) = solve("linkage-other-turns", &coil("turns = 50\n"));
+    assert_eq!(code, 2, "{text}");
+    assert!(text.contains("flux 'linkage' turns: 50, but part 'coil' is wound with 200"), "{text}");
+}

@@ -65,6 +65,42 @@ fn line_ends(lt: &Fields, line: &Item, ctx: &Context, what: &str, hint: &str) ->
     Ok((from, to))
 }
 
+/// The turns a winding's flux linkage counts: the flux table's `turns`,
+/// else the turns its parts give (`[[part]] turns`), else 1. Given in both
+/// places they must agree: a coil of 500 turns whose `[[flux]]` said 50 had
+/// its linkage counted for 50 and its inductance for a current ten times the
+/// coil's own, beside a coil line with the right current.
+fn linkage_turns(t: &Fields, model: &Model, parts: &[(usize, f64)], what: &str) -> Result<f64, Diagnostic> {
+    let given: Vec<(&str, f64)> = parts
+        .iter()
+        .filter_map(|&(p, _)| model.parts[p].winding.as_ref().map(|w| (model.parts[p].name.as_str(), w.turns)))
+        .collect();
+    let own = given.first().map(|g| g.1);
+    if let Some((other, n)) = given.iter().find(|g| Some(g.1) != own) {
+        return Err(Diagnostic::new(
+            format!(
+                "{what}: its parts give different turns ('{}' {}, '{other}' {n}); one winding's sides carry the same turns",
+                given[0].0, given[0].1
+            ),
+            Some(t.span.start..t.span.start + 1),
+        ));
+    }
+    match (t.get("turns"), own) {
+        (Some(item), Some(n)) => {
+            let turns = positive_number(item, &format!("{what} turns"))?;
+            if turns != n {
+                return Err(Diagnostic::new(
+                    format!("{what} turns: {turns}, but part '{}' is wound with {n}; the linkage counts the winding's own turns: leave turns out here, or make them agree", given[0].0),
+                    Some(item.span.clone()),
+                ));
+            }
+            Ok(turns)
+        }
+        (Some(item), None) => positive_number(item, &format!("{what} turns")),
+        (None, own) => Ok(own.unwrap_or(1.0)),
+    }
+}
+
 /// Refuses an axisymmetric flux line with an end at r < 0, or lying on the
 /// axis: it sweeps no surface about the axis, and its flux came out as 0 Wb
 /// with no sign that nothing was measured.
@@ -188,10 +224,7 @@ pub(super) fn fluxes(top: &Fields, ctx: &Context, model: &Model) -> Result<Vec<F
                     };
                     signed.push((p, if i < 0.0 { -1.0 } else { 1.0 }));
                 }
-                let turns = match t.get("turns") {
-                    Some(n) => positive_number(n, &format!("{what} turns"))?,
-                    None => 1.0,
-                };
+                let turns = linkage_turns(&t, model, &signed, &what)?;
                 out.push(FluxSpec::Winding { name, parts: signed, turns });
             }
             _ => {
