@@ -136,6 +136,13 @@ pub(super) fn forces(top: &Fields, ctx: &Context, model: &Model) -> Result<Vec<F
         let parts = part_list(listed, model, &format!("force '{name}' parts"))?;
         refuse_vanishing_force(model, &name, &parts, listed.span.clone())?;
         let torque_about = match t.get("torque_about") {
+            // It used to be taken and ignored: no torque is reported about the axis.
+            Some(p) if model.symmetry == mesher::Symmetry::Axisymmetric => {
+                return Err(Diagnostic::new(
+                    format!("force '{name}' torque_about: an axisymmetric study reports no torque (the forces on a body of revolution add up to a pull along the axis); torque_about is for planar studies"),
+                    Some(p.span.clone()),
+                ))
+            }
             Some(p) => ctx.point(p, "force.torque_about")?,
             None => [0.0, 0.0],
         };
