@@ -66,7 +66,16 @@ pub fn tolerance(top: &Fields, ctx: &Context) -> Result<Option<Tolerance>, Diagn
     let method = match t.get("method").map(|m| (m, m.str("tolerance.method"))) {
         None => Method::MonteCarlo { samples, seed },
         Some((_, Ok("monte-carlo"))) => Method::MonteCarlo { samples, seed },
-        Some((_, Ok("corners"))) => Method::Corners,
+        Some((_, Ok("corners"))) => {
+            // Taken and ignored before: 50 samples asked, 4 corners solved.
+            if let Some((key, item)) = ["samples", "seed"].into_iter().find_map(|k| t.get(k).map(|i| (k, i))) {
+                return Err(Diagnostic::new(
+                    format!("tolerance.{key}: the corners method solves the corners of the tolerance box (2^k of them), with no samples or seed; for {key} use method = \"monte-carlo\""),
+                    Some(item.span.clone()),
+                ));
+            }
+            Method::Corners
+        }
         Some((m, Ok(other))) => {
             return Err(Diagnostic::new(
                 format!("tolerance.method: '{other}' is not a method; use \"monte-carlo\" or \"corners\""),
