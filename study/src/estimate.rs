@@ -87,7 +87,7 @@ const COMPONENTS: [&str; 8] = ["x", "y", "r", "z", "bx", "by", "br", "bz"];
 /// on a cup holding magnet at 0.1 %: the worst point's margin moved 1 to 5
 /// % between two default-settings meshes and a 0.001 % solve, 2.4 to 34
 /// times its two-mesh change (docs/measurement-log.md, thirteenth session).
-pub(crate) fn is_local(name: &str) -> bool {
+pub fn is_local(name: &str) -> bool {
     (name.starts_with("part.") && name.ends_with(".b.max")) || (name.starts_with("magnet.") && name.ends_with(".margin_local"))
 }
 

@@ -61,8 +61,25 @@ pub(super) fn value_quantity(ctx: &Context, i: &Item, value: &ValueName, what: &
 }
 
 /// The value's typed name, or a located error listing the nearest names.
+/// A local peak (a part's `b.max`, a magnet's `margin_local`) is refused:
+/// it sits at a corner where the field grows with each refinement, so a
+/// bound on it passed or failed with the mesh (`part.plate.b.max <= 2 T`
+/// passed at 1.1 T on a plate whose corner reads more on a finer mesh).
 pub(super) fn value_name(item: &Item, model: &Model) -> Result<ValueName, Diagnostic> {
     let written = item.str("value")?;
+    if study::estimate::is_local(written) {
+        let instead = match written.strip_suffix(".b.max") {
+            Some(part) => format!("{part}.saturated_share (the share above its curve's knee) or {part}.b.mean"),
+            None => {
+                let magnet = written.trim_end_matches(".margin_local");
+                format!("{magnet}.margin (over the worst 1 % of its volume) or {magnet}.share_past_knee")
+            }
+        };
+        return Err(Diagnostic::new(
+            format!("[[expect]] on '{written}': a peak at one point, a corner where the field grows with each refinement, so no bound on it holds; bound {instead} instead, which converge"),
+            Some(item.span.clone()),
+        ));
+    }
     study::value_names::value_name(model, written).ok_or_else(|| {
         let names = study::value_names::value_names(model);
         let err = Diagnostic::new(format!("this study reports no value named '{written}'"), Some(item.span.clone()));
