@@ -133,9 +133,7 @@ pub(crate) fn near_far_walls(model: &Model, domain: ([f64; 2], [f64; 2])) -> Opt
     if sides.iter().any(|s| matches!(s, SideKind::Periodic { .. })) || model.parts.is_empty() {
         return None;
     }
-    let bounds: Vec<_> = model.parts.iter().map(|p| p.shape.bounds()).collect();
-    let lo = [0, 1].map(|k| bounds.iter().map(|b| b.0[k]).fold(f64::INFINITY, f64::min));
-    let hi = [0, 1].map(|k| bounds.iter().map(|b| b.1[k]).fold(f64::NEG_INFINITY, f64::max));
+    let (lo, hi) = model.parts_box();
     let extent = (hi[0] - lo[0]).max(hi[1] - lo[1]);
     let (b0, b1) = domain;
     // bottom, right, top, left: the gap from the parts' box to each wall

@@ -91,10 +91,7 @@ pub fn implausible_magnet_sizes(model: &Model) -> Vec<String> {
 /// a reach).
 pub fn reach_within_parts(model: &Model, stray: &StrayResult) -> Option<String> {
     let (d, from, c) = (stray.reach_axis_m?, stray.reach_from_m?, stray.reference_point_m?);
-    let (lo, hi) = mesher::geometry::bbox(model.parts.iter().flat_map(|p| {
-        let (a, b) = p.shape.bounds();
-        [a, b]
-    }));
+    let (lo, hi) = model.parts_box();
     if mesher::outside_box((lo, hi), from) {
         return None;
     }

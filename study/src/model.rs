@@ -319,6 +319,14 @@ impl Model {
         self.parts.iter().position(|p| p.name == name)
     }
 
+    /// The box around every part, lower-left and upper-right corners (m).
+    pub fn parts_box(&self) -> ([f64; 2], [f64; 2]) {
+        mesher::geometry::bbox(self.parts.iter().flat_map(|p| {
+            let (a, b) = p.shape.bounds();
+            [a, b]
+        }))
+    }
+
     /// A length in the case's unit for a warning, to six significant
     /// digits: 3.000000000000001 mm reads "3 mm", 63.53490177 mm "63.5349 mm".
     pub fn length_text(&self, metres: f64) -> String {

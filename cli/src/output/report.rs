@@ -178,26 +178,21 @@ fn magnets(s: &mut String, model: &Model, r: &Results) {
     if !r.magnets.is_empty() {
         let _ = writeln!(s, "## Magnets at {} degC\n\nThe knee is taken at {:.0} % of HcJ at the study temperature; the margin is 1 - H/H_knee over the most demagnetized 1 % of the volume (0: at the knee; the value at the single worst point, `margin_local` in results.json, follows the mesh at corners and is not judged). The onset is the temperature past which the magnet runs past its knee (above it for NdFeB and SmCo, below it for ferrite, whose coercivity falls as it cools), a linear-model estimate (field scaled with Br, knee with HcJ).\n\n| magnet | grade | Br (T) | HcJ (kA/m) | margin | past knee | permeance | onset (degC) |\n|---|---|---|---|---|---|---|---|", model.temperature, 100.0 * study::checks::KNEE_FRACTION);
         for (n, m) in &r.magnets {
+            // A grade without a coercivity has no knee: no HcJ, margin or share.
+            let (hcj, margin, past) = if m.knee_checked() {
+                (
+                    format!("{:.0}", m.hcj_a_per_m / 1e3),
+                    eng_pm(m.margin, err(format!("magnet.{n}.margin")), ""),
+                    percent_pm(m.share_past_knee, err(format!("magnet.{n}.share_past_knee"))),
+                )
+            } else {
+                ("-".into(), "not checked (no HcJ)".into(), "-".into())
+            };
             let _ = writeln!(
                 s,
-                "| {n} | {} | {:.3} | {} | {} | {} | {} | {} |",
+                "| {n} | {} | {:.3} | {hcj} | {margin} | {past} | {} | {} |",
                 m.grade,
                 m.br_t,
-                if m.hcj_a_per_m.is_finite() {
-                    format!("{:.0}", m.hcj_a_per_m / 1e3)
-                } else {
-                    "-".into()
-                },
-                if m.knee_checked() {
-                    eng_pm(m.margin, err(format!("magnet.{n}.margin")), "")
-                } else {
-                    "not checked (no HcJ)".into()
-                },
-                if m.knee_checked() {
-                    percent_pm(m.share_past_knee, err(format!("magnet.{n}.share_past_knee")))
-                } else {
-                    "-".into()
-                },
                 eng_pm(m.permeance, err(format!("magnet.{n}.permeance")), ""),
                 m.knee_onset_c.map_or("-".into(), |c| format!(
                     "past it {} {c:.0}",

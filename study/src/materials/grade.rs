@@ -158,7 +158,7 @@ pub fn implausible_coefficients(br: f64, br_coeff: f64, hcj_coeff: f64) -> Optio
         return Some((
             "hcj_coeff",
             format!(
-                "{hcj_coeff} %/K makes the coercivity rise as the magnet warms, which only hard ferrite's does (+0.27 %/K, with Br below {HIGHEST_FERRITE_BR} T); with Br {br} T this is a rare-earth magnet, whose HcJ falls (NdFeB -0.5 to -0.76, SmCo -0.15 to -0.3 %/K): give the data sheet's minus sign"
+                "{hcj_coeff} %/K makes the coercivity rise as the magnet warms, which only hard ferrite's does (+0.27 %/K, with Br below {HIGHEST_FERRITE_BR} T); with Br {br} T this is no ferrite, and NdFeB's and SmCo's HcJ fall (-0.5 to -0.76 and -0.15 to -0.3 %/K): give the data sheet's minus sign"
             ),
         ));
     }
