@@ -69,7 +69,10 @@ pub fn summary(o: &Outcome, out: &Path) -> String {
     s += &part_lines(r);
     s += &magnet_lines(r);
     s += &coil_lines(r);
-    s += &format!("  energy: {}\n", eng_pm(r.energy.stored_j, r.errors.get("energy").copied(), "J"));
+    s += &format!(
+        "  energy: {}\n",
+        crate::output::engineering::energy_text(r.energy.stored_j, r.errors.get("energy").copied())
+    );
     s += &expectation_lines(r);
     for w in &r.warnings {
         s += &format!("  WARNING: {w}\n");

@@ -24,6 +24,7 @@ impl Constraints {
     /// The conditions of a mesh: axis, outer box, symmetry planes, infinity, periodic ties.
     pub fn of_mesh(mesh: &Mesh, els: &Elements) -> Constraints {
         let mut fixed = fixed_nodes(mesh, els);
+        anchor_a_floating_potential(mesh, els, &mut fixed);
         let ties = periodic_ties(mesh, els, &mut fixed);
         Constraints { fixed, ties }
     }
@@ -72,6 +73,26 @@ fn fixed_nodes(mesh: &Mesh, els: &Elements) -> Vec<bool> {
         fixed[disk.global[disk.infinity]] = true;
     }
     fixed
+}
+
+/// A planar box whose every side is flux-normal or periodic holds the
+/// potential nowhere: it is fixed only up to a constant, which leaves the
+/// system singular (it was refused as "not positive definite"). The field
+/// is the curl of the potential and does not see the constant, so one
+/// corner node is held at zero. An anti-periodic pair already excludes the
+/// constant (it would have to equal its own negative). Where the currents
+/// do not sum to zero there is no field at all; the study refuses that
+/// case before it reaches the solver (`study::net_current`).
+fn anchor_a_floating_potential(mesh: &Mesh, els: &Elements, fixed: &mut [bool]) {
+    let anti = mesh.boundary.iter().any(|(_, t)| matches!(t, BoundaryTag::Periodic { anti: true, .. }));
+    if fixed.iter().any(|&f| f) || anti || els.is_empty() {
+        return;
+    }
+    // The lowest-numbered corner: the same point on every nested mesh,
+    // whose refinement keeps the first mesh's nodes in their order.
+    if let Some(&n) = els.nodes.iter().flat_map(|t| t[..3].iter()).min() {
+        fixed[n] = true;
+    }
 }
 
 /// The nodes (corners and the nodes inside edges) on each periodic side, by side index, with whether the pair is anti-periodic.

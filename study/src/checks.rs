@@ -101,13 +101,20 @@ pub fn reach_within_parts(model: &Model, stray: &StrayResult) -> Option<String> 
         Some(std::cmp::Ordering::Less) => from[1] - lo[1],
         _ => (hi[1] - from[1]).max(from[1] - lo[1]),
     };
-    (d < leave).then(|| {
-        format!(
-            "the reach along the axis to {} mT ends {} from where it is measured, inside the box around the parts: reach_level lies above the field outside them, so the reach says nothing of the stray field (the default is {} mT)",
-            model.reach_level * 1e3,
+    let level = model.reach_level * 1e3;
+    (d < leave).then(|| match model.reach_level == DEFAULT_REACH_LEVEL {
+        // Not given: a weak source (a pair of 100 A wires) whose field is
+        // below the default level everywhere outside its parts; the warning
+        // first blamed a reach_level the case never set.
+        true => format!(
+            "the reach along the axis to {level} mT (the default reach_level) ends {} from where it is measured, inside the box around the parts: the field outside them is weaker than that, so the reach says nothing of the stray field; give [study] reach_level lower to measure how far it reaches",
+            model.length_text(d)
+        ),
+        false => format!(
+            "the reach along the axis to {level} mT ends {} from where it is measured, inside the box around the parts: reach_level lies above the field outside them, so the reach says nothing of the stray field (the default is {} mT)",
             model.length_text(d),
             DEFAULT_REACH_LEVEL * 1e3
-        )
+        ),
     })
 }
 

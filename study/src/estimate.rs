@@ -292,7 +292,8 @@ pub(crate) fn energy_norm(values: &BTreeMap<String, f64>, errors: &BTreeMap<Stri
     })
 }
 
-/// The values that drive refinement: those asked for, else the energy.
+/// The values that drive refinement: those asked for, else the energy
+/// (else each part's mean |B|).
 /// A force on parts that touch the outer boundary is left out: no surface
 /// closes around them, it does not converge, and a warning already says so.
 pub(crate) fn driving(model: &Model, results: &crate::results::Results) -> Vec<String> {
@@ -304,8 +305,12 @@ pub(crate) fn driving(model: &Model, results: &crate::results::Results) -> Vec<S
             out.retain(|v| !v.starts_with(&prefix));
         }
     }
-    if out.is_empty() {
+    // Where the energy is unbounded (`net_current`) it is no value: each
+    // part's mean field stands in for it.
+    if out.is_empty() && results.values.contains_key("energy") {
         out.push("energy".into());
+    } else if out.is_empty() {
+        out.extend(results.values.keys().filter(|k| k.starts_with("part.") && k.ends_with(".b.mean")).cloned());
     }
     out.sort();
     out.dedup();

@@ -13,13 +13,14 @@
 
 #![warn(missing_docs)]
 
-mod boundary_warnings;
+pub mod boundary_warnings;
 pub mod checks;
 pub mod coil;
 pub mod estimate;
 pub mod lower;
 pub mod materials;
 pub mod model;
+pub mod net_current;
 pub mod optimize;
 mod part_fields;
 pub mod post;

@@ -55,15 +55,19 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
     let flux = flux_results(model, sol, depth, &mut values);
     let e = energy::stored_energy(sol);
     let whole = model.whole.as_ref().map_or(1.0, |w| w.factor);
+    // Neither a value nor a number where it is unbounded (`net_current`;
+    // NaN, null in results.json): the warning below says why.
+    let unbounded = crate::net_current::unbounded_energy_warning(model);
+    let bounded = if unbounded.is_some() { f64::NAN } else { depth * whole };
     let energy = EnergyResult {
-        stored_j: e.stored * depth * whole,
-        coenergy_j: e.coenergy * depth * whole,
+        stored_j: e.stored * bounded,
+        coenergy_j: e.coenergy * bounded,
     };
     values.insert("energy".into(), energy.stored_j);
     values.insert("coenergy".into(), energy.coenergy_j);
     let parts = crate::part_fields::part_results(model, sol, &mut values);
     let coils = coil_results(model, &mut values);
-    let mut warnings = Vec::new();
+    let mut warnings: Vec<String> = unbounded.into_iter().collect();
     let magnets = crate::checks::magnet_results(model, sol, &mut values, &mut warnings);
     let stray = match model.stray_field {
         true => crate::checks::stray_results(model, sol, &mut values),

@@ -43,8 +43,11 @@ pub fn value_names(model: &Model) -> Vec<ValueName> {
         push(format!("flux.{}.inductance", f.name()), Unit::Henry);
         push(format!("flux.{}.incremental_inductance", f.name()), Unit::Henry);
     }
-    push("energy".into(), Unit::Joule);
-    push("coenergy".into(), Unit::Joule);
+    // Unbounded where a planar study's currents do not return (`net_current`).
+    if !matches!(crate::net_current::anchor(model), crate::net_current::Anchor::OpenWithNetCurrent { .. }) {
+        push("energy".into(), Unit::Joule);
+        push("coenergy".into(), Unit::Joule);
+    }
     for p in &model.parts {
         push(format!("part.{}.b.max", p.name), Unit::Tesla);
         push(format!("part.{}.b.mean", p.name), Unit::Tesla);

@@ -48,6 +48,16 @@ pub fn significant_digits(x: f64, digits: i32) -> String {
     }
 }
 
+/// An energy or coenergy with its error; "unbounded" where the study's
+/// currents do not sum to zero in open space (NaN: `study::net_current`).
+pub fn energy_text(joules: f64, error: Option<f64>) -> String {
+    if joules.is_nan() {
+        "unbounded (the currents do not sum to zero; see the warning)".to_string()
+    } else {
+        eng_pm(joules, error, "J")
+    }
+}
+
 /// A value with its estimated error, both in the value's prefix and to the
 /// error's second significant digit: `-333.2 N ± 0.12 N`, `526.88 mT ±
 /// 0.020 mT`, `527 mT ± 12 mT`. Without a finite error, the value alone.

@@ -145,8 +145,8 @@ fn flux_and_energy(s: &mut String, r: &Results) {
     let _ = writeln!(
         s,
         "Stored energy {}, co-energy {}.\n",
-        eng_pm(r.energy.stored_j, r.errors.get("energy").copied(), "J"),
-        eng_pm(r.energy.coenergy_j, r.errors.get("coenergy").copied(), "J")
+        super::engineering::energy_text(r.energy.stored_j, r.errors.get("energy").copied()),
+        super::engineering::energy_text(r.energy.coenergy_j, r.errors.get("coenergy").copied())
     );
 }
 

@@ -95,6 +95,9 @@ pub(super) fn value_name(item: &Item, model: &Model) -> Result<ValueName, Diagno
             let name = format!("{head}.{to}");
             names.iter().any(|n| n.name == name).then_some(name)
         });
+        if let (Some(why), "energy" | "coenergy") = (study::net_current::unbounded_energy_warning(model), written) {
+            return err.with_help(Some(why));
+        }
         if let Some(grade) = knee_less_grade(model, written) {
             return err.with_help(Some(format!(
                 "the magnet's grade '{grade}' gives no intrinsic coercivity (hcj), so it has no knee to measure a margin, share or loss against; give hcj, or jh, from its data sheet"

@@ -237,6 +237,7 @@ fn resolve_at(
         whole: None,
     };
     model.whole = boundary_table::boundaries(&top, &study, &ctx, symmetry, &mut model.boundary)?;
+    boundary_table::refuse_floating_current(&top, &model)?;
     (model.probes, spans.probes) = probes(&top, &ctx)?.into_iter().unzip();
     model.forces = forces(&top, &ctx, &model)?;
     model.fluxes = fluxes(&top, &ctx, &model)?;
