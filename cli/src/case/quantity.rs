@@ -74,6 +74,16 @@ impl Context<'_> {
         }
     }
 
+    /// Whether a quantity is written without a unit (a number, or a string
+    /// whose expression names none): it is then read in SI.
+    pub fn is_bare(&self, item: &Item) -> bool {
+        match &item.value {
+            Value::Num(_) => true,
+            Value::Str(s) => expr::parse(s, self.params).is_ok_and(|p| p.unit.is_empty()),
+            _ => false,
+        }
+    }
+
     /// A quantity whose kind the unit decides (for expectation bounds), in SI.
     pub fn any_quantity(&self, item: &Item, what: &str) -> Result<(f64, Option<Kind>), Diagnostic> {
         self.any_quantity_for(item, what, Kind::Dimensionless)
