@@ -54,6 +54,36 @@ pub const MAGNET_SPAN_MAX: f64 = 1.0;
 /// under `unit = "mm"` give magnets of 5 to 100 um.
 pub const MAGNET_SPAN_MIN: f64 = 1e-4;
 
+/// The depth, as a share of the parts' extent in the section, under which
+/// a planar study's parts are too short for it: a planar section stands
+/// for parts much longer than their cross-section (common practice: end
+/// effects grow as the depth falls to the section's size; at a tenth of it
+/// the ends decide the field).
+pub const SHORT_DEPTH_SHARE: f64 = 0.1;
+
+/// A warning where a planar study's depth is under a tenth of its parts'
+/// extent: `depth = 0.02` under `unit = "mm"` (meant as metres) gave a
+/// 30 mm plate's pull as 25.8 mN, planar across a depth 1500 times thinner
+/// than the section, with only a stray-field warning that said "0.00 of
+/// the planar field". Axisymmetric studies and an unset depth (1 m, per
+/// metre) are not checked.
+pub fn short_depth(model: &Model) -> Option<String> {
+    if model.symmetry != Symmetry::Planar || !model.depth_given {
+        return None;
+    }
+    let (lo, hi) = model.parts_box();
+    let extent = (hi[0] - lo[0]).max(hi[1] - lo[1]);
+    (model.depth < SHORT_DEPTH_SHARE * extent).then(|| {
+        format!(
+            "planar study of depth {}, {:.0} times less than its parts' extent in the section ({}): a planar study stands for parts much longer than their cross-section, and at this depth their ends decide the field, so fields and forces are overstated; check depth's unit (a bare depth is in the study's unit, \"{}\"), or model a round part about the axis",
+            model.length_text(model.depth),
+            extent / model.depth,
+            model.length_text(extent),
+            model.length_unit.0
+        )
+    })
+}
+
 /// A warning for each magnet whose size says the case's length unit is
 /// likely wrong: a study of a 10 m N42 disk reported 37.6 MN with no word.
 /// The span is the part's largest dimension: its diameter about the axis

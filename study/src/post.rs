@@ -420,6 +420,7 @@ fn modelling_warnings(model: &Model, sol: &Solution) -> Vec<String> {
         );
     }
     out.extend(crate::checks::implausible_magnet_sizes(model));
+    out.extend(crate::checks::short_depth(model));
     let meshed = sol.problem.mesh.part_areas_curved(model.parts.len());
     for (i, (p, area)) in model.parts.iter().zip(meshed).enumerate() {
         let source = matches!(p.material.material, Material::Magnet(_)) || p.current.is_some();
