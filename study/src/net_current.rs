@@ -14,7 +14,7 @@
 //! wall has no field at all for a net current (Ampere's law around its
 //! sides asks the flux-normal walls for a field they hold at zero).
 
-use crate::model::{FluxSpec, Model};
+use crate::model::Model;
 use mesher::{OuterBoundary, SideKind, Symmetry};
 
 /// How a study's potential is anchored, as far as its currents and
@@ -69,13 +69,10 @@ pub fn anchor(model: &Model) -> Anchor {
     }
 }
 
-/// The windings whose turns do not return within the study (the signs of
-/// their parts' turns do not cancel: one side of a coil), by name.
-pub fn unreturned_windings(model: &Model) -> impl Iterator<Item = &str> {
-    model.fluxes.iter().filter_map(|f| match f {
-        FluxSpec::Winding { name, parts, .. } if parts.iter().map(|p| p.1).sum::<f64>().abs() > BALANCED * parts.len() as f64 => Some(name.as_str()),
-        _ => None,
-    })
+/// Whether a winding's turns return within it: the signs of its parts'
+/// turns (+1 or -1, from their currents) cancel, as a coil's two sides do.
+pub fn turns_return(signed: &[(usize, f64)]) -> bool {
+    signed.iter().map(|p| p.1).sum::<f64>() == 0.0
 }
 
 /// The warning of a planar study in open space whose currents do not sum

@@ -99,7 +99,10 @@ const MISSED_PEAK_SHARE: f64 = 0.01;
 /// there).
 fn peak_between_samples(model: &Model, sol: &Solution, corners: &crate::lower::SingularCorners, name: &str, r: &ProbeResult) -> Option<String> {
     let sampled = r.bmag.iter().copied().filter(|b| b.is_finite()).fold(f64::NAN, f64::max);
-    let between = r.points.windows(2).flat_map(|w| {
+    // Not beside a sample left out on a singular corner, where the field
+    // grows towards the corner without a peak to catch.
+    let pairs = r.points.windows(2).zip(r.bmag.windows(2)).filter(|(_, b)| b.iter().all(|v| v.is_finite()));
+    let between = pairs.flat_map(|(w, _)| {
         (1..BETWEEN_SAMPLES).map(move |k| {
             let t = k as f64 / BETWEEN_SAMPLES as f64;
             [w[0][0] + t * (w[1][0] - w[0][0]), w[0][1] + t * (w[1][1] - w[0][1])]

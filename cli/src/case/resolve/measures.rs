@@ -110,9 +110,8 @@ fn linkage_turns(t: &Fields, model: &Model, parts: &[(usize, f64)], what: &str) 
 /// mesh, never converging) or a box with no flux-parallel wall (the
 /// level is arbitrary there). `study::net_current` says why.
 fn refuse_unreturned_winding(model: &Model, signed: &[(usize, f64)], w: &Item, what: &str) -> Result<(), Diagnostic> {
-    let returned = signed.iter().map(|p| p.1).sum::<f64>() == 0.0;
     let why = match study::net_current::anchor(model) {
-        _ if returned => return Ok(()),
+        _ if study::net_current::turns_return(signed) => return Ok(()),
         study::net_current::Anchor::Held => return Ok(()),
         study::net_current::Anchor::OpenWithNetCurrent { net } => format!(
             "the study's currents sum to {net} A, so the flux between the winding and infinity, its linkage and inductance per depth, grow without bound"
