@@ -974,18 +974,19 @@ fn a_planar_current_without_a_return_reports_no_energy() {
 /// `depth = 0.02` under `unit = "mm"`, meant as 0.02 m: a 30 mm plate's
 /// pull came out as 25.8 mN, a planar section standing for parts 1500
 /// times shorter than they are wide, with no word of the depth. The same
-/// assembly 20 mm deep does not warn.
+/// assembly 20 mm deep does not warn, with a 400 mm air part drawn around
+/// it (air shapes no field and says nothing of the parts' length).
 #[test]
 fn a_planar_depth_far_below_the_section_warns() {
-    let case = |depth: &str| {
+    let case = |depth: &str, room: &str| {
         format!(
-            "[study]\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = {depth}\naccuracy = \"1 %\"\n{OUTPUT}{MAGNET}[[part]]\nname = \"plate\"\nmaterial = \"DC01\"\nrect = {{ from = [-5, 6], to = [25, 11] }}\n[[force]]\nname = \"pull\"\nparts = [\"plate\"]\n"
+            "[study]\ngeometry = \"planar\"\nunit = \"mm\"\ndepth = {depth}\naccuracy = \"1 %\"\n{OUTPUT}{room}{MAGNET}[[part]]\nname = \"plate\"\nmaterial = \"DC01\"\nrect = {{ from = [-5, 6], to = [25, 11] }}\n[[force]]\nname = \"pull\"\nparts = [\"plate\"]\n"
         )
     };
     warns_only_the_first(
         "short-depth",
-        &case("0.02"),
-        &case("20"),
+        &case("0.02", ""),
+        &case("20", "[[part]]\nname = \"room\"\nmaterial = \"air\"\nrect = { from = [-200, -200], to = [200, 200] }\n"),
         "planar study of depth 0.02 mm, 1500 times less than its parts' extent in the section (30 mm)",
         "times less than its parts' extent",
     );

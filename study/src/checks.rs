@@ -71,7 +71,9 @@ pub fn short_depth(model: &Model) -> Option<String> {
     if model.symmetry != Symmetry::Planar || !model.depth_given {
         return None;
     }
-    let (lo, hi) = model.parts_box();
+    // The parts that shape the field: a large air part drawn around them
+    // says nothing of their length.
+    let (lo, hi) = model.active_parts_box();
     let extent = (hi[0] - lo[0]).max(hi[1] - lo[1]);
     (model.depth < SHORT_DEPTH_SHARE * extent).then(|| {
         format!(

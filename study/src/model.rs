@@ -132,6 +132,21 @@ pub struct Part {
     pub winding: Option<Winding>,
 }
 
+impl Part {
+    /// Whether the part neither makes nor guides flux: no current, and air,
+    /// an unwound conductor or a material of mu_r 1 (a plastic spacer). It
+    /// feels no magnetic force and shapes no field.
+    pub fn is_inert(&self) -> bool {
+        use crate::materials::Material;
+        self.current.is_none()
+            && match self.material.material {
+                Material::Air | Material::Conductor => true,
+                Material::Linear { relative_permeability } => relative_permeability == 1.0,
+                _ => false,
+            }
+    }
+}
+
 /// Radial magnetization about a centre, planar (about the axis, `+r` and
 /// `-r` are radial already).
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -321,10 +336,16 @@ impl Model {
 
     /// The box around every part, lower-left and upper-right corners (m).
     pub fn parts_box(&self) -> ([f64; 2], [f64; 2]) {
-        mesher::geometry::bbox(self.parts.iter().flat_map(|p| {
-            let (a, b) = p.shape.bounds();
-            [a, b]
-        }))
+        bounds_of(self.parts.iter())
+    }
+
+    /// The box around the parts that make or guide flux (not
+    /// [`Part::is_inert`]), or around every part where none does.
+    pub fn active_parts_box(&self) -> ([f64; 2], [f64; 2]) {
+        match self.parts.iter().any(|p| !p.is_inert()) {
+            true => bounds_of(self.parts.iter().filter(|p| !p.is_inert())),
+            false => self.parts_box(),
+        }
     }
 
     /// A length in the case's unit for a warning, to six significant
@@ -347,4 +368,12 @@ impl Model {
         let scale = 10f64.powi(5 - v.abs().log10().floor() as i32);
         (v * scale).round() / scale
     }
+}
+
+/// The box around some parts' outlines, lower-left and upper-right corners (m).
+fn bounds_of<'a>(parts: impl Iterator<Item = &'a Part>) -> ([f64; 2], [f64; 2]) {
+    mesher::geometry::bbox(parts.flat_map(|p| {
+        let (a, b) = p.shape.bounds();
+        [a, b]
+    }))
 }

@@ -209,18 +209,10 @@ pub(super) fn forces(top: &Fields, ctx: &Context, model: &Model) -> Result<Vec<F
 /// "11 352 %"). A box or a symmetry plane pushes back, and an applied
 /// field turns a magnet: those keep a net torque or force.
 fn refuse_vanishing_force(model: &Model, name: &str, parts: &[usize], span: Range<usize>) -> Result<(), Diagnostic> {
-    let inert = |p: &Part| {
-        p.current.is_none()
-            && match p.material.material {
-                study::materials::Material::Air | study::materials::Material::Conductor => true,
-                study::materials::Material::Linear { relative_permeability } => relative_permeability == 1.0,
-                _ => false,
-            }
-    };
     // Parts that neither make nor guide flux feel no magnetic force: the
     // refinement chased 0.1 % of zero on a plastic spacer to 780 000
     // triangles ("758 %" not reached, 17 s).
-    if parts.iter().all(|&i| inert(&model.parts[i])) {
+    if parts.iter().all(|&i| model.parts[i].is_inert()) {
         let listed: Vec<String> = parts
             .iter()
             .map(|&i| format!("'{}' ({})", model.parts[i].name, model.parts[i].material.name))
@@ -234,13 +226,13 @@ fn refuse_vanishing_force(model: &Model, name: &str, parts: &[usize], span: Rang
         ));
     }
     let open = matches!(model.boundary, mesher::OuterBoundary::Open) && model.applied_field == [0.0, 0.0];
-    let outside_inert = model.parts.iter().enumerate().all(|(i, p)| parts.contains(&i) || inert(p));
+    let outside_inert = model.parts.iter().enumerate().all(|(i, p)| parts.contains(&i) || p.is_inert());
     if !open || !outside_inert {
         return Ok(());
     }
     let active: Vec<String> = parts
         .iter()
-        .filter(|&&i| !inert(&model.parts[i]))
+        .filter(|&&i| !model.parts[i].is_inert())
         .map(|&i| format!("'{}'", model.parts[i].name))
         .collect();
     Err(Diagnostic::new(
