@@ -986,7 +986,10 @@ fn a_planar_depth_far_below_the_section_warns() {
     warns_only_the_first(
         "short-depth",
         &case("0.02", ""),
-        &case("20", "[[part]]\nname = \"room\"\nmaterial = \"air\"\nrect = { from = [-200, -200], to = [200, 200] }\n"),
+        &case(
+            "20",
+            "[[part]]\nname = \"room\"\nmaterial = \"air\"\nrect = { from = [-200, -200], to = [200, 200] }\n",
+        ),
         "planar study of depth 0.02 mm, 1500 times less than its parts' extent in the section (30 mm)",
         "times less than its parts' extent",
     );
