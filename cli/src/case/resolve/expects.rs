@@ -161,11 +161,8 @@ pub(super) fn expects(top: &Fields, ctx: &Context, model: &Model) -> Result<Vec<
                 let n = t.require("near")?;
                 let target = q(n)?;
                 let tol = t.require("tolerance")?;
-                let abs = match ctx.any_quantity(tol, &what)? {
-                    (v, Some(Kind::Percent)) => v / 100.0 * target.abs(),
-                    (v, _) => v,
-                };
-                (Bound::Near(target, abs.abs()), format!("{} +- {}", text(n), text(tol)))
+                let abs = near_tolerance(ctx, tol, &value, target, &what)?;
+                (Bound::Near(target, abs), format!("{} +- {}", text(n), text(tol)))
             }
             _ => {
                 return Err(Diagnostic::new(
@@ -194,6 +191,32 @@ pub(super) fn expects(top: &Fields, ctx: &Context, model: &Model) -> Result<Vec<
         ));
     }
     Ok(out)
+}
+
+/// A `near` bound's tolerance, absolute, in SI: a percentage of the target,
+/// or a quantity of the value's own kind (checked as a bound is: it took
+/// any unit, and `"5 N"` around a field passed as 5 T). One as large as
+/// the target is refused: it passes values down to zero and of the other
+/// sign, so the check cannot fail for a design that works at all
+/// (`tolerance = 5` beside `near = "50 mT"`, read as 5 T where 5 % was
+/// meant, passed 42 mT and would pass anything under 5 T).
+fn near_tolerance(ctx: &Context, tol: &Item, value: &ValueName, target: f64, what: &str) -> Result<f64, Diagnostic> {
+    let abs = match ctx.any_quantity(tol, what)? {
+        (v, Some(Kind::Percent)) => v / 100.0 * target.abs(),
+        _ => value_quantity(ctx, tol, value, what, "tolerance")?,
+    }
+    .abs();
+    if target != 0.0 && abs >= target.abs() {
+        let hint = match ctx.is_bare(tol) && !value.unit.symbol().is_empty() {
+            true => format!(" (a bare number is in {}, SI; a percentage is written \"5 %\")", value.unit.symbol()),
+            false => String::new(),
+        };
+        return Err(Diagnostic::new(
+            format!("{what}: the tolerance is as large as the target itself{hint}, so the check passes values down to zero and of the other sign; give a tolerance smaller than the target"),
+            Some(tol.span.clone()),
+        ));
+    }
+    Ok(abs)
 }
 
 pub(super) fn output(top: &Fields, ctx: &Context) -> Result<OutputFlags, Diagnostic> {
