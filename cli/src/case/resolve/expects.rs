@@ -35,10 +35,28 @@ fn bound_kind(unit: Unit) -> Option<Kind> {
     }
 }
 
+/// A bare flux density bound from which the number was meant in mT (`value_quantity`), T.
+const BARE_TESLA_LIMIT: f64 = 10.0;
+
 /// A quantity compared with a value (a bound, a target) in SI, its unit
 /// checked against the value's: a bare number is taken as SI.
 pub(super) fn value_quantity(ctx: &Context, i: &Item, value: &ValueName, what: &str, role: &str) -> Result<f64, Diagnostic> {
     let (v, kind) = ctx.any_quantity_for(i, what, bound_kind(value.unit).unwrap_or(Kind::Dimensionless))?;
+    // `max = 50` on a probe, meant as 50 mT, was read as 50 T and passed
+    // every design: a bare flux density from 10 T up (past what permanent
+    // magnets give, about 5 T in the strongest Halbach cylinders, from
+    // memory), or any past the strongest steady field made, is refused.
+    let bare_tesla = ctx.is_bare(i) && v.abs() >= BARE_TESLA_LIMIT;
+    if value.unit == Unit::Tesla && (bare_tesla || v.abs() > study::checks::STRONGEST_APPLIED_FIELD) {
+        let hint = match bare_tesla {
+            true => format!("; a bare number is tesla: write the unit (\"{v} mT\")"),
+            false => " (laboratories' steady fields reach about 45 T)".to_string(),
+        };
+        return Err(Diagnostic::new(
+            format!("{what}: the {role} {v} T is past any field a magnet assembly gives, so no design meets or breaks it{hint}"),
+            Some(i.span.clone()),
+        ));
+    }
     match (kind, bound_kind(value.unit)) {
         (None, _) => Ok(v),
         (Some(Kind::Percent), Some(Kind::Dimensionless)) => Ok(v / 100.0),
