@@ -80,7 +80,8 @@ pub fn figures(model: &Model, part: &Part) -> Option<CoilFigures> {
             let centroid_r = 0.5 * (lo[0] + hi[0]);
             // Outer cylinder, inner cylinder and the two end annuli of the winding's box.
             let surface = 2.0 * std::f64::consts::PI * (hi[0] + lo[0]) * (hi[1] - lo[1]) + 2.0 * std::f64::consts::PI * (hi[0] * hi[0] - lo[0] * lo[0]);
-            (w.turn_length.unwrap_or(2.0 * std::f64::consts::PI * centroid_r), surface)
+            // The outline gives the turn (the case reader refuses a `turn_length` here).
+            (2.0 * std::f64::consts::PI * centroid_r, surface)
         }
         Symmetry::Planar => {
             // The bundle's outline carried along the mean turn (Pappus' rule).
