@@ -77,11 +77,10 @@ pub fn figures(model: &Model, part: &Part) -> Option<CoilFigures> {
     let (lo, hi) = part_box(part);
     let (turn, surface) = match model.symmetry {
         Symmetry::Axisymmetric => {
-            let centroid_r = 0.5 * (lo[0] + hi[0]);
             // Outer cylinder, inner cylinder and the two end annuli of the winding's box.
             let surface = 2.0 * std::f64::consts::PI * (hi[0] + lo[0]) * (hi[1] - lo[1]) + 2.0 * std::f64::consts::PI * (hi[0] * hi[0] - lo[0] * lo[0]);
             // The outline gives the turn (the case reader refuses a `turn_length` here).
-            (2.0 * std::f64::consts::PI * centroid_r, surface)
+            (turn_about_axis(&part.shape), surface)
         }
         Symmetry::Planar => {
             // The bundle's outline carried along the mean turn (Pappus' rule).
@@ -106,6 +105,13 @@ pub fn figures(model: &Model, part: &Part) -> Option<CoilFigures> {
 }
 
 /// The bounding box of a part's outline.
+/// The mean turn of a winding about the axis: 2 pi times the middle radius
+/// of its outline's box, m.
+pub fn turn_about_axis(shape: &mesher::Shape) -> f64 {
+    let (lo, hi) = shape.bounds();
+    std::f64::consts::PI * (lo[0] + hi[0])
+}
+
 fn part_box(part: &Part) -> ([f64; 2], [f64; 2]) {
     part.shape.bounds()
 }

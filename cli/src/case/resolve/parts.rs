@@ -177,8 +177,6 @@ fn current_density(j: &Item, ctx: &Context, what: &str) -> Result<f64, Diagnosti
 /// `winding_temperature` (default 20 degC).
 fn winding(t: &Fields, ctx: &Context, what: &str, carries_current: bool, shape: &Shape, symmetry: Symmetry) -> Result<Option<Winding>, Diagnostic> {
     let area = shape.exact_area(symmetry);
-    let (lo, hi) = shape.bounds();
-    let mean_turn = std::f64::consts::PI * (lo[0] + hi[0]);
     let keys = t.present(&["turns", "wire", "fill_factor", "turn_length", "winding_temperature"]);
     if keys.is_empty() {
         return Ok(None);
@@ -250,7 +248,7 @@ fn winding(t: &Fields, ctx: &Context, what: &str, carries_current: bool, shape: 
         return Err(Diagnostic::new(
             format!(
                 "{what}: about the axis each turn of this part is {:.1} mm long (2 pi times its mean radius), which the study takes from its outline; leave turn_length out (it is for planar coil sides)",
-                1e3 * mean_turn
+                1e3 * study::coil::turn_about_axis(shape)
             ),
             Some(l.span.clone()),
         ));
