@@ -14,7 +14,13 @@ fn material_part_at<'m>(model: &'m Model, sol: &Solution, x: [f64; 2]) -> Option
     let (e, _) = sol.element_at(x)?;
     let ElementKind::Part(i) = sol.elements.kinds[e] else { return None };
     let part = &model.parts[i];
-    (!matches!(part.material.material, Material::Air | Material::Conductor)).then_some(part)
+    is_material(part).then_some(part)
+}
+
+/// Whether a probe in the part reads the field inside a material (not air
+/// or a conductor, where a sensor sits).
+fn is_material(part: &crate::model::Part) -> bool {
+    !matches!(part.material.material, Material::Air | Material::Conductor)
 }
 
 /// Every probe warning of a solved study.
@@ -109,8 +115,10 @@ fn peak_between_samples(model: &Model, sol: &Solution, corners: &crate::lower::S
         })
     });
     let (x, b) = between
-        .filter(|&x| corners.part_at(x).is_none() && material_part_at(model, sol, x).is_none())
-        .filter_map(|x| sol.field_at(x).map(|f| (x, f.b[0].hypot(f.b[1]))))
+        .filter(|&x| corners.part_at(x).is_none())
+        .filter_map(|x| sol.field_at(x).map(|f| (x, f)))
+        .filter(|(_, f)| f.part.is_none_or(|i| !is_material(&model.parts[i])))
+        .map(|(x, f)| (x, f.b[0].hypot(f.b[1])))
         .max_by(|a, b| a.1.total_cmp(&b.1))?;
     (b > sampled * (1.0 + MISSED_PEAK_SHARE)).then(|| {
         format!(
