@@ -265,6 +265,7 @@ fn solve_variant_with<T>(
             "{tag}: refinement {step}: {unknowns} unknowns (order {order}), largest estimated error {:.3} % ({worst_value})",
             100.0 * worst_relative_error
         )),
+        Stage::Sampling { samples } => progress.note(&format!("{tag}: extracting the field at {samples} line-probe samples")),
     };
     let stamp = |results: &mut Results| {
         results.solve.seconds = start.elapsed().as_secs_f64();

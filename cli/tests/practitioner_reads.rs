@@ -237,3 +237,31 @@ fn a_saturating_winding_shows_both_inductances() {
     }
     let _ = std::fs::remove_dir_all(&d);
 }
+
+/// A line probe of 100 000 samples on an axis took 6.7 minutes of
+/// extraction after the last Newton line with nothing said. The samples'
+/// extraction is announced on the progress lines from
+/// `study::run::MANY_SAMPLES` together, and not below.
+#[test]
+fn a_long_line_probe_says_it_is_sampling() {
+    let d = dir("sampling");
+    let case = |points: usize| {
+        format!(
+            "[study]\ngeometry = \"axisymmetric\"\nunit = \"mm\"\naccuracy = \"off\"\n[mesh]\nsize = 2\n\
+             [[part]]\nname = \"magnet\"\nmaterial = \"N42\"\nmagnetization = \"+z\"\nrect = {{ from = [0, 0], to = [5, 3] }}\n\
+             [[probe]]\nname = \"axis\"\nline = {{ from = [0, 4], to = [0, 20], points = {points} }}\n"
+        )
+    };
+    let many = study::run::MANY_SAMPLES;
+    for (points, announced) in [(many, true), (many - 1, false)] {
+        let file = d.join(format!("case-{points}.toml"));
+        std::fs::write(&file, case(points)).unwrap();
+        let out = d.join(format!("out-{points}"));
+        let (code, said, err) = run(&["solve", file.to_str().unwrap(), "-o", out.to_str().unwrap()]);
+        assert_eq!(code, 0, "{said}{err}");
+        let line = format!("extracting the field at {points} line-probe samples");
+        assert_eq!(err.contains(&line), announced, "{err}");
+        assert!(said.contains(&format!("probe axis: {points} points")), "{said}");
+    }
+    let _ = std::fs::remove_dir_all(&d);
+}

@@ -709,6 +709,67 @@ fn a_winding_past_its_insulation_class_is_warned() {
     );
 }
 
+/// `current` is a part's ampere-turns. A winding of 500 turns of AWG 24
+/// given `current = "2 A"` (the wire's current, 1000 ampere-turns meant)
+/// was solved at 4 mA a turn, 0.02 A/mm2, its field 500 times too weak,
+/// and only the coil's figures showed it. It now warns with the line to
+/// write; the same winding at 1000 ampere-turns (9.8 A/mm2, within the 1
+/// to 10 A/mm2 windings carry, common practice) does not.
+#[test]
+fn a_winding_given_its_wire_current_is_warned() {
+    let case = |current: &str| {
+        format!(
+            "[study]\ngeometry = \"axisymmetric\"\nunit = \"mm\"\naccuracy = \"1 %\"\n{OUTPUT}\
+             [[part]]\nname = \"coil\"\nmaterial = \"copper\"\nrect = {{ from = [8, 5], to = [16, 25] }}\ncurrent = \"{current}\"\nturns = 500\nwire = \"AWG 24\"\n\
+             [[probe]]\nname = \"p\"\npoint = [0, 35]\n"
+        )
+    };
+    warns_only_the_first(
+        "faint-winding",
+        &case("2 A"),
+        &case("1000 A"),
+        "winding 'coil': 0.004 A in each of its 500 turns, 0.01954 A/mm2 in the copper",
+        "if the wire carries 2 A, write current = \"1000 A\"",
+    );
+}
+
+/// `magnetization = "+r"` on a solid disk (a slip for a disk magnetized
+/// across a diameter, as angle-sensor magnets are) was solved without a
+/// word as a field no magnet makes: radial all the way to the axis, where
+/// the direction has no meaning. It now warns; the same magnetization on a
+/// ring with a bore does not, nor a planar ring radial about its own
+/// centre, while a planar disk radial about its centre does.
+#[test]
+fn a_magnet_radial_to_its_own_centre_is_warned() {
+    let about_axis = |inner: f64| {
+        format!(
+            "[study]\ngeometry = \"axisymmetric\"\nunit = \"mm\"\naccuracy = \"1 %\"\n{OUTPUT}\
+             [[part]]\nname = \"magnet\"\nmaterial = \"N42\"\nmagnetization = \"+r\"\nrect = {{ from = [{inner}, 0], to = [5, 3] }}\n\
+             [[probe]]\nname = \"p\"\npoint = [0, 6]\n"
+        )
+    };
+    warns_only_the_first(
+        "radial-disk",
+        &about_axis(0.0),
+        &about_axis(2.0),
+        "magnet 'magnet' is magnetized radially and reaches the axis",
+        "model its cross-section in a planar study",
+    );
+    let planar = |shape: &str| {
+        format!(
+            "[study]\ngeometry = \"planar\"\nunit = \"mm\"\naccuracy = \"off\"\ndepth = 10\n{OUTPUT}[mesh]\nsize = 1\n\
+             [[part]]\nname = \"magnet\"\nmaterial = \"N42\"\nmagnetization = {{ radial = \"outward\", center = [0, 0] }}\n{shape}\n"
+        )
+    };
+    warns_only_the_first(
+        "radial-planar",
+        &planar("circle = { center = [0, 0], radius = 5 }"),
+        &planar("circle = { center = [0, 0], radius = 5 }\nholes = [{ circle = { center = [0, 0], radius = 3 } }]"),
+        "magnet 'magnet' is magnetized radially and holds its centre",
+        "is magnetized radially and",
+    );
+}
+
 /// A pull at contact is that of ideal flat faces; the example cup magnet
 /// loses 6 % of it to a 0.02 mm gap and 12 % to 0.05 mm, which paint or
 /// roughness make in practice. The summary gave the contact pull with an

@@ -116,6 +116,50 @@ pub fn implausible_magnet_sizes(model: &Model) -> Vec<String> {
     out
 }
 
+/// A warning for each magnet magnetized radially all the way to its own
+/// centre: about the axis, a part with a radial share of magnetization
+/// (`+r`, `-r`) that reaches the axis; in the plane, a `radial`
+/// magnetization whose centre lies in the part (`part_at` tells which part
+/// holds a point). The direction has no meaning there and the magnet has a
+/// line (a point) of magnetic charge, so no such magnet is made: radially
+/// magnetized rings have a bore (common practice). The likelier intent is a
+/// disk magnetized across a diameter, as angle-sensor magnets are, whose
+/// field is not axisymmetric: `+r` on a solid disk was solved without a
+/// word as a field no magnet makes.
+pub fn radial_to_its_centre(model: &Model, part_at: impl Fn([f64; 2]) -> Option<usize>) -> Vec<String> {
+    let mut out = Vec::new();
+    for (i, p) in model
+        .parts
+        .iter()
+        .enumerate()
+        .filter(|(_, p)| matches!(p.material.material, Material::Magnet(_)))
+    {
+        let (lo, hi) = p.shape.bounds();
+        let to_centre = match (&p.radial, model.symmetry) {
+            (Some(radial), Symmetry::Planar) => part_at(radial.center) == Some(i),
+            (None, Symmetry::Axisymmetric) => {
+                let radial_share = p.magnetization.map_or(0.0, |m| m[0].abs());
+                radial_share > 1e-6 && lo[0] <= 1e-9 * (hi[0] - lo[0]).max(hi[1] - lo[1])
+            }
+            _ => false,
+        };
+        if to_centre {
+            let (centre, across) = match model.symmetry {
+                Symmetry::Axisymmetric => (
+                    "reaches the axis",
+                    "its field is not axisymmetric: model its cross-section in a planar study (exact for a long bar)",
+                ),
+                Symmetry::Planar => ("holds its centre", "give it a uniform magnetization (\"+x\", \"+y\") instead"),
+            };
+            out.push(format!(
+                "magnet '{}' is magnetized radially and {centre}, where the direction has no meaning and the magnet carries a line of magnetic charge: no magnet is made like it (radially magnetized rings have a bore, common practice); if it is magnetized across a diameter, {across}",
+                p.name
+            ));
+        }
+    }
+    out
+}
+
 /// A warning when the reach along the axis ends inside the box around the
 /// parts: the level lies above the field outside them, and the reach
 /// measures none of the stray field (a `reach_level` of 2 T on a disk magnet

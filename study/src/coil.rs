@@ -46,6 +46,34 @@ pub fn too_hot(name: &str, c: &CoilFigures) -> Option<String> {
     })
 }
 
+/// Below this current density in the copper, A/m2 (0.1 A/mm2, a tenth of
+/// the least that windings are usually run at: 1 to 10 A/mm2, common
+/// practice), a winding's `current` was most likely the wire's current
+/// written where the ampere-turns go: "2 A" on 500 turns of AWG 24 gave 4
+/// mA a turn, 0.02 A/mm2, and a field 500 times too weak, with no word but
+/// the summary's figures.
+pub const FAINT_DENSITY: f64 = 1e5;
+
+/// A winding whose current density is below `FAINT_DENSITY`: the message
+/// says what `current` means and what to write if the wire carries it.
+pub fn faint_current(name: &str, turns: f64, c: &CoilFigures) -> Option<String> {
+    let ampere_turns = c.current * turns;
+    (c.current != 0.0 && c.current_density < FAINT_DENSITY && turns > 1.0).then(|| {
+        format!(
+            "winding '{name}': {} A in each of its {turns} turns, {} A/mm2 in the copper, under a tenth of the 1 to 10 A/mm2 windings usually carry (common practice): `current` is the ampere-turns through the part, its turns times the wire's current; if the wire carries {} A, write current = \"{} A\"",
+            short(c.current),
+            short(c.current_density * 1e-6),
+            short(ampere_turns),
+            short(ampere_turns * turns),
+        )
+    })
+}
+
+/// A number for a message, to four significant digits.
+fn short(x: f64) -> String {
+    format!("{}", format!("{x:.3e}").parse::<f64>().unwrap_or(x))
+}
+
 /// Bare copper diameter of an AWG size, m (ASTM B258).
 pub fn awg_diameter(gauge: f64) -> f64 {
     0.127e-3 * 92f64.powf((36.0 - gauge) / 39.0)

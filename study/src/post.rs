@@ -82,6 +82,10 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
     }
     warnings.extend(crate::part_fields::saturation_warnings(model, &parts));
     warnings.extend(coils.iter().filter_map(|(name, c)| crate::coil::too_hot(name, c)));
+    warnings.extend(coils.iter().filter_map(|(name, c)| {
+        let turns = model.parts.iter().find(|p| &p.name == name)?.winding.as_ref()?.turns;
+        crate::coil::faint_current(name, turns, c)
+    }));
     warnings.extend(crate::part_fields::implausible_curve_warnings(model));
     // With an accuracy the mesh is refined until the estimates meet it, so
     // a first mesh coarse across a thin part is not a warning (it said "2
@@ -421,6 +425,7 @@ fn modelling_warnings(model: &Model, sol: &Solution) -> Vec<String> {
     }
     out.extend(crate::checks::implausible_magnet_sizes(model));
     out.extend(crate::checks::short_depth(model));
+    out.extend(crate::checks::radial_to_its_centre(model, |at| sol.field_at(at).and_then(|f| f.part)));
     let meshed = sol.problem.mesh.part_areas_curved(model.parts.len());
     for (i, (p, area)) in model.parts.iter().zip(meshed).enumerate() {
         let source = matches!(p.material.material, Material::Magnet(_)) || p.current.is_some();

@@ -44,6 +44,32 @@ pub enum Stage {
         /// the value it belongs to
         worst_value: String,
     },
+    /// The field is being extracted at many line-probe samples (at least
+    /// `MANY_SAMPLES`), which takes a while: each is a weighted mean over a
+    /// ball of elements (100 000 samples on an axis took about a minute).
+    Sampling {
+        /// samples of every line probe together
+        samples: usize,
+    },
+}
+
+/// Line-probe samples from which their extraction is announced (`Stage::Sampling`).
+pub const MANY_SAMPLES: usize = 5000;
+
+/// Announces the extraction at the model's line-probe samples when they
+/// are many.
+fn announce_sampling(model: &Model, progress: &(dyn Fn(Stage) + Sync)) {
+    let samples: usize = model
+        .probes
+        .iter()
+        .map(|p| match p.shape {
+            ProbeShape::Line { points, .. } => points,
+            ProbeShape::Point(_) => 0,
+        })
+        .sum();
+    if samples >= MANY_SAMPLES {
+        progress(Stage::Sampling { samples });
+    }
 }
 
 /// Meshes a model after checking that its probes lie where the mesh reaches.
@@ -276,6 +302,7 @@ pub fn solve_to_accuracy<R>(
 ) -> Result<R, StudyError> {
     let Some(target) = model.accuracy else {
         let sol = solve(model, &first, progress)?;
+        announce_sampling(model, progress);
         return Ok(finish(&sol, Estimate::default()));
     };
     let mut mesh = first;
@@ -316,6 +343,7 @@ pub fn solve_to_accuracy<R>(
             let (solved, ahead) = solve_looking_ahead(&current, &mesh, std::mem::take(&mut guess), ahead, &round, progress);
             let (mesh_ahead, structure_ahead) = ahead.map_or((None, None), |(m, s)| (Some(m), s));
             let Solved { field: sol, exposure } = solved?;
+            announce_sampling(model, progress);
             let results = crate::post::results(&current, &sol, 0.0);
             (sol, exposure, results, mesh_ahead, structure_ahead)
         };
