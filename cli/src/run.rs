@@ -262,8 +262,8 @@ fn solve_variant_with<T>(
             worst_relative_error,
             worst_value,
         } => progress.note(&format!(
-            "{tag}: refinement {step}: {unknowns} unknowns (order {order}), largest estimated error {:.3} % ({worst_value})",
-            100.0 * worst_relative_error
+            "{tag}: refinement {step}: {unknowns} unknowns (order {order}), largest estimated error {} % ({worst_value})",
+            study::estimate::percent(worst_relative_error)
         )),
         Stage::Sampling { samples } => progress.note(&format!("{tag}: extracting the field at {samples} line-probe samples")),
     };

@@ -243,19 +243,19 @@ fn accuracy_line(r: &study::Results) -> String {
         return "  accuracy: off (mesh as given, no error estimates)\n".into();
     };
     let state = if a.reached { "reached" } else { "NOT REACHED:" };
-    let (target, meshes) = (100.0 * a.target, a.route());
+    let (target, meshes) = (study::estimate::target_percent(a.target), a.route());
     let field = a
         .energy_norm
         .map_or(String::new(), |e| format!("; the whole field: {:.3} % in the energy norm", 100.0 * e));
     match a.worst() {
         // Every value met the target; an expectation on its bound kept the refinement going.
         Some((worst, which)) if a.undecided_at_target(&r.expect) => format!(
-            "  accuracy: {target} % reached by every value after {meshes}, largest estimated error {:.3} % ({which}){field}; an expectation is UNDECIDED at the finest mesh allowed\n",
-            100.0 * worst
+            "  accuracy: {target} % reached by every value after {meshes}, largest estimated error {} % ({which}){field}; an expectation is UNDECIDED at the finest mesh allowed\n",
+            study::estimate::percent(worst)
         ),
         Some((worst, which)) => format!(
-            "  accuracy: {state} {target} % after {meshes}, largest estimated error {:.3} % ({which}){field}\n",
-            100.0 * worst
+            "  accuracy: {state} {target} % after {meshes}, largest estimated error {} % ({which}){field}\n",
+            study::estimate::percent(worst)
         ),
         None => format!("  accuracy: {state} {target} % after {meshes}, no error estimate (one mesh only)\n"),
     }

@@ -20,19 +20,20 @@ pub fn results_with_errors(model: &Model, sol: &Solution, estimate: crate::estim
     r.errors.retain(|k, e| e.is_finite() && r.values.contains_key(k));
     r.expect = evaluate(model, &r.values, &r.errors);
     if let Some(a) = estimate.adaptive.as_ref().filter(|a| !a.reached) {
-        let target = 100.0 * a.target;
+        let target = crate::estimate::target_percent(a.target);
         let (elements, limit) = (a.steps.last().map_or(0, |s| s.elements), model.mesh.max_elements);
         let undecided: Vec<&str> = r.expect.iter().filter(|e| e.verdict == Verdict::Undecided).map(|e| e.value.as_str()).collect();
         r.warnings.push(match a.worst() {
             // Every value met the target: refinement went on only to decide an expectation.
             Some((e, name)) if a.undecided_at_target(&r.expect) => format!(
-                "every value reached the accuracy asked ({target} %; the largest estimated error is {:.3} %, {name}), but the expectation on {} stays undecided: its bound lies within the value's error, and refining to {elements} triangles did not separate them (the next refinement would pass [mesh] max_elements ({limit})); move the design off the bound",
-                100.0 * e,
+                "every value reached the accuracy asked ({target} %; the largest estimated error is {} %, {name}), but the expectation on {} stays undecided: its bound lies within the value's error, and refining to {elements} triangles did not separate them (the next refinement would pass [mesh] max_elements ({limit})); move the design off the bound",
+                crate::estimate::percent(e),
                 undecided.join(", ")
             ),
             Some((e, name)) => format!(
-                "the accuracy asked ({target} %) was not reached: the largest estimated error is {:.3} % ({name}) on {elements} triangles, and the next refinement would pass [mesh] max_elements ({limit}) or the solution did not converge",
-                100.0 * e
+                "the accuracy asked ({target} %) was not reached: the largest estimated error is {} % ({name}) on {elements} triangles, and the next refinement would pass [mesh] max_elements ({limit}) or the solution did not converge{}",
+                crate::estimate::percent(e),
+                zero_within_error(&r, name)
             ),
             // One mesh only: there was no second one to compare with.
             None => format!(
@@ -42,6 +43,20 @@ pub fn results_with_errors(model: &Model, sol: &Solution, estimate: crate::estim
     }
     r.adaptive = estimate.adaptive;
     r
+}
+
+/// The end of the not-reached warning when its worst value is zero within
+/// its error: a force between two equal, opposite pulls (a plate midway
+/// between two magnets facing with like poles) came out at 1 uN +- 169 uN
+/// after four meshes, the pulls' own error, and "11423.704 %" said nothing
+/// of why.
+fn zero_within_error(r: &Results, name: &str) -> String {
+    match (r.values.get(name), r.errors.get(name)) {
+        (Some(v), Some(e)) if v.abs() <= *e => format!(
+            "; {name} is zero within its error: a value that vanishes (by symmetry, or as two pulls cancel) has no relative error to reach, so read it as zero within its error (an [[expect]] max in its unit can bound it), and give [mesh] max_elements lower to stop sooner"
+        ),
+        _ => String::new(),
+    }
 }
 
 /// Everything about a solved study, without error estimates.

@@ -68,7 +68,9 @@ pub fn eng_pm(value: f64, error: Option<f64>, unit: &str) -> String {
     if !value.is_finite() {
         return eng(value, unit);
     }
-    let reference = if value != 0.0 { value.abs() } else { e };
+    // An error larger than the value sets the prefix: a field that vanishes
+    // read "95 pT \u{b1} 64556 pT".
+    let reference = value.abs().max(e);
     let (exponent, prefix) = prefix_of(reference, unit);
     if beyond_prefixes(reference, unit) || e / 10f64.powi(exponent) < 1e-8 {
         // The value to the error's second significant digit, as pm_scaled does.
@@ -178,6 +180,7 @@ mod tests {
         assert_eq!(eng_pm(-333.16, Some(0.12), "N"), "-333.16 N \u{b1} 0.12 N");
         assert_eq!(eng_pm(0.52688, Some(2.0e-5), "T"), "526.880 mT \u{b1} 0.020 mT");
         assert_eq!(eng_pm(0.527, Some(0.012), "T"), "527 mT \u{b1} 12 mT");
+        assert_eq!(eng_pm(9.5e-11, Some(6.4556e-8), "T"), "0 nT \u{b1} 65 nT");
         assert_eq!(eng_pm(0.4279, Some(0.0012), ""), "0.4279 \u{b1} 0.0012");
         assert_eq!(eng_pm(5.0, None, "N"), "5 N");
         // At the estimates' rounding floor: no error printed.

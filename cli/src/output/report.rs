@@ -54,13 +54,13 @@ fn accuracy(s: &mut String, r: &Results) {
     match &r.adaptive {
         Some(a) => {
             let worst = match a.worst() {
-                Some((e, name)) => format!("largest estimated error {:.3} % ({name})", 100.0 * e),
+                Some((e, name)) => format!("largest estimated error {} % ({name})", study::estimate::percent(e)),
                 None => "no error estimate (one mesh only)".into(),
             };
             let _ = writeln!(
                 s,
                 "Accuracy: {} % asked, {} after {}; {worst}. Every value below carries its estimated error (\u{b1}); results.json has them all under `errors`.\n",
-                100.0 * a.target,
+                study::estimate::target_percent(a.target),
                 if a.reached {
                     "reached"
                 } else if a.undecided_at_target(&r.expect) {
