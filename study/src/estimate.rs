@@ -28,6 +28,7 @@
 //! grading at corners (see `lower::mesh_spec`) puts the fine elements where
 //! the field is singular, and each step keeps it.
 
+pub use crate::error_scale::{force_floors, percent, scale, target_percent};
 use crate::model::{Bound, Model};
 use std::collections::BTreeMap;
 
@@ -54,87 +55,6 @@ pub struct Estimate {
     pub results: Option<crate::results::Results>,
 }
 
-/// The scale a value's error is measured against: the value itself, or the
-/// magnitude of the vector it is a component of (a component that vanishes
-/// by symmetry is not asked to be accurate relative to zero), or the whole
-/// for a share of it (`is_share`).
-pub fn scale(name: &str, values: &BTreeMap<String, f64>) -> f64 {
-    let own = values.get(name).copied().unwrap_or(0.0).abs();
-    if is_share(name) {
-        return own.max(1.0);
-    }
-    let own = own.max(null_field(name, values));
-    // Only a component has a vector: a force's torque (N m) is not measured
-    // against the force's magnitude (N), nor a probe's H (A/m) against its B.
-    let Some((group, component)) = name.rsplit_once('.') else { return own };
-    if !COMPONENTS.contains(&component) {
-        return own;
-    }
-    ["b", "magnitude"]
-        .iter()
-        .filter_map(|m| values.get(&format!("{group}.{m}")))
-        .fold(own, |s, v| s.max(v.abs()))
-}
-
-/// The share of the study's field (the largest mean |B| of its parts)
-/// below which a probe's field is measured against that share, not
-/// against itself: 1e-4, for magnets and steel about the Earth's field
-/// (some 50 uT, common practice), so a weaker reading is held to a
-/// thousandth of that, tens of nanotesla, at 0.1 %. A probe where the field
-/// vanishes (on the axis midway between two magnets facing with like
-/// poles) was measured against its own noise: 0.1 % of 15 pT asked for four
-/// meshes and 1.2 million unknowns, and the study ended "not reached" at 75
-/// %, while a probe 3 mm away had 174 mT within 4e-8. With 1e-5 it still
-/// took four meshes: its estimates fell as 64 and 10 nT, where the probe
-/// beside it was asked for 174 uT (docs/measurement-log.md).
-const NULL_SHARE: f64 = 1e-4;
-
-/// The floor of a probe's field scale (`NULL_SHARE`), in its own unit (T,
-/// or A/m for H); 0 for every other value.
-fn null_field(name: &str, values: &BTreeMap<String, f64>) -> f64 {
-    const FIELDS: [&str; 9] = [".b", ".bx", ".by", ".br", ".bz", ".b.max", ".b.min", ".b.mean", ".h"];
-    if !name.starts_with("probe.") || !FIELDS.iter().any(|f| name.ends_with(f)) {
-        return 0.0;
-    }
-    let field = values
-        .iter()
-        .filter(|(k, _)| k.starts_with("part.") && k.ends_with(".b.mean"))
-        .fold(0.0, |m: f64, (_, v)| m.max(v.abs()));
-    let floor = NULL_SHARE * field;
-    if name.ends_with(".h") {
-        floor / solver::MU0
-    } else {
-        floor
-    }
-}
-
-/// A share as a percentage for messages: three decimals, as the targets'
-/// usual 0.1 % and 0.001 % read, and two significant digits below 0.001 %
-/// (at 0.0001 % asked, "largest estimated error 0.000 %" said nothing).
-pub fn percent(share: f64) -> String {
-    let p = 100.0 * share;
-    if p == 0.0 || !p.is_finite() || p.abs() >= 0.001 {
-        return format!("{p:.3}");
-    }
-    let decimals = (1.0 - p.abs().log10().floor()) as usize;
-    format!("{p:.decimals$}")
-}
-
-/// An accuracy asked, as a percentage in its shortest form: 1e-6 read
-/// "0.00009999999999999999 %" (100 times it, printed in full).
-pub fn target_percent(share: f64) -> String {
-    let p = 100.0 * share;
-    if p == 0.0 || !p.is_finite() {
-        return format!("{p}");
-    }
-    let digits = 12 - p.abs().log10().ceil() as i32;
-    let unit = 10f64.powi(digits);
-    format!("{}", (p * unit).round() / unit)
-}
-
-/// The last parts of the names of vector components (forces, probes).
-const COMPONENTS: [&str; 8] = ["x", "y", "r", "z", "bx", "by", "br", "bz"];
-
 /// Whether a value is the field's extreme at a single point of a part: a
 /// steel part's peak flux density and a magnet's margin at its worst
 /// point. Both sit at corners, where the field is singular (B grows
@@ -146,15 +66,6 @@ const COMPONENTS: [&str; 8] = ["x", "y", "r", "z", "bx", "by", "br", "bz"];
 /// times its two-mesh change (docs/measurement-log.md, thirteenth session).
 pub fn is_local(name: &str) -> bool {
     (name.starts_with("part.") && name.ends_with(".b.max")) || (name.starts_with("magnet.") && name.ends_with(".margin_local"))
-}
-
-/// Whether a value is a share of a whole (a volume past the knee or
-/// saturated, a flux lost, a margin to the knee as a share of H there):
-/// its error is measured against the whole, 1. Against itself, a loss of
-/// 2e-7 of the remanence asked for an absolute error of 2e-10, which no
-/// mesh gives and no verdict needs.
-fn is_share(name: &str) -> bool {
-    [".saturated_share", ".share_past_knee", ".loss", ".margin"].iter().any(|s| name.ends_with(s))
 }
 
 /// Whether a value is an integral over the field (energy, force, flux),
@@ -221,8 +132,10 @@ impl History {
         self.raising = true;
     }
 
-    /// The estimates for `values` (the finer mesh's, with `unknowns`) against the previous mesh's.
-    pub(crate) fn update(&mut self, values: &BTreeMap<String, f64>, unknowns: usize) {
+    /// The estimates for `values` (the finer mesh's, with `unknowns`) against
+    /// the previous mesh's, each error floored at a share of the value's
+    /// scale (`scale`, with the least scales `floors`).
+    pub(crate) fn update(&mut self, values: &BTreeMap<String, f64>, floors: &BTreeMap<String, f64>, unknowns: usize) {
         // The floor below looks back over the previous step too.
         let growth = unknowns as f64 / self.unknowns.max(1) as f64;
         let previous_growth = std::mem::replace(&mut self.growth, growth);
@@ -264,9 +177,9 @@ impl History {
                 }
             };
             change.insert(name.clone(), d);
-            estimate.insert(name.clone(), e.max(PRECISION * scale(name, values)));
+            estimate.insert(name.clone(), e.max(PRECISION * scale(name, values, floors)));
         }
-        pollution_floor(values, &mut estimate, self.target);
+        pollution_floor(values, floors, &mut estimate, self.target);
         self.after_raise = std::mem::take(&mut self.raising);
         self.previous = values.clone();
         self.change = change;
@@ -311,12 +224,12 @@ impl History {
 /// knee and saturated too, it made 19 estimates of shares loose, most of
 /// them 0 on every mesh, and none more honest; docs/measurement-log.md,
 /// thirteenth session.)
-fn pollution_floor(values: &BTreeMap<String, f64>, estimate: &mut BTreeMap<String, f64>, target: f64) {
+fn pollution_floor(values: &BTreeMap<String, f64>, floors: &BTreeMap<String, f64>, estimate: &mut BTreeMap<String, f64>, target: f64) {
     let Some(norm) = energy_norm(values, estimate) else { return };
     let square = norm * norm;
     for (name, e) in estimate.iter_mut().filter(|(n, _)| !NORM_MEASURES.contains(&n.as_str()) && !is_geometry(n)) {
         let floor = if is_percentile_margin(name) { square } else { square.min(0.05 * target) };
-        *e = e.max(floor * scale(name, values));
+        *e = e.max(floor * scale(name, values, floors));
     }
 }
 
@@ -375,11 +288,11 @@ pub(crate) fn driving(model: &Model, results: &crate::results::Results) -> Vec<S
 }
 
 /// The worst relative error among the driving values, and its name.
-pub(crate) fn worst(names: &[String], values: &BTreeMap<String, f64>, errors: &BTreeMap<String, f64>) -> (f64, String) {
+pub(crate) fn worst(names: &[String], values: &BTreeMap<String, f64>, floors: &BTreeMap<String, f64>, errors: &BTreeMap<String, f64>) -> (f64, String) {
     let mut w = (0.0, String::new());
     for n in names {
         let Some(&e) = errors.get(n) else { continue };
-        let s = scale(n, values);
+        let s = scale(n, values, floors);
         let rel = if s > 0.0 { e / s } else { 0.0 };
         if rel > w.0 || w.1.is_empty() {
             w = (rel, n.clone());
@@ -449,7 +362,7 @@ mod tests {
                 let exact = 3.0;
                 for k in 0..5 {
                     let err = 0.1 * 0.5f64.powf(p * k as f64);
-                    h.update(&map(&[(name, exact + err)]), 4usize.pow(k as u32));
+                    h.update(&map(&[(name, exact + err)]), &BTreeMap::new(), 4usize.pow(k as u32));
                     if k >= 1 {
                         let ratio = h.estimate[name] / err;
                         assert!(
@@ -469,9 +382,14 @@ mod tests {
     fn a_vanishing_change_of_a_force_is_floored_by_the_energy_norm() {
         for (w_change, floor) in [(1e-6, 1e-6), (1e-3, 0.05 * 1e-3)] {
             let mut h = History::new(2, 1e-3);
-            h.update(&map(&[("coenergy", 1.0), ("force.f.z", -100.0), ("part.p.volume", 2e-6)]), 1000);
+            h.update(
+                &map(&[("coenergy", 1.0), ("force.f.z", -100.0), ("part.p.volume", 2e-6)]),
+                &BTreeMap::new(),
+                1000,
+            );
             h.update(
                 &map(&[("coenergy", 1.0 - w_change), ("force.f.z", -100.000_000_1), ("part.p.volume", 2e-6)]),
+                &BTreeMap::new(),
                 4000,
             );
             let want = floor * 100.0;
@@ -497,7 +415,7 @@ mod tests {
             ("magnet.m.loss", 2e-7),
             ("probe.a.b.max", 0.2),
         ]);
-        h.update(&first, 1000);
+        h.update(&first, &BTreeMap::new(), 1000);
         h.update(
             &map(&[
                 ("part.plate.b.max", 2.1),
@@ -505,12 +423,13 @@ mod tests {
                 ("magnet.m.loss", 3e-7),
                 ("probe.a.b.max", 0.21),
             ]),
+            &BTreeMap::new(),
             4000,
         );
         assert!(!h.estimate.contains_key("part.plate.b.max") && !h.estimate.contains_key("magnet.m.margin_local"));
         assert!(h.estimate.contains_key("probe.a.b.max"));
-        assert_eq!(scale("magnet.m.loss", &first), 1.0);
-        assert_eq!(scale("magnet.m.margin", &map(&[("magnet.m.margin", -3.0)])), 3.0);
+        assert_eq!(scale("magnet.m.loss", &first, &BTreeMap::new()), 1.0);
+        assert_eq!(scale("magnet.m.margin", &map(&[("magnet.m.margin", -3.0)]), &BTreeMap::new()), 3.0);
     }
 
     /// A magnet's margin takes the energy norm's square as its floor
@@ -518,8 +437,16 @@ mod tests {
     #[test]
     fn margins_take_the_whole_square_as_their_floor() {
         let mut h = History::new(2, 1e-3);
-        h.update(&map(&[("coenergy", 1.0), ("magnet.m.margin", 0.4), ("force.f.z", 10.0)]), 1000);
-        h.update(&map(&[("coenergy", 1.0 - 4e-4), ("magnet.m.margin", 0.4), ("force.f.z", 10.0)]), 4000);
+        h.update(
+            &map(&[("coenergy", 1.0), ("magnet.m.margin", 0.4), ("force.f.z", 10.0)]),
+            &BTreeMap::new(),
+            1000,
+        );
+        h.update(
+            &map(&[("coenergy", 1.0 - 4e-4), ("magnet.m.margin", 0.4), ("force.f.z", 10.0)]),
+            &BTreeMap::new(),
+            4000,
+        );
         let square = 4e-4 / (1.0 - 4e-4);
         assert!((h.estimate["magnet.m.margin"] - square).abs() < 1e-12, "{}", h.estimate["magnet.m.margin"]);
         assert!((h.estimate["force.f.z"] - 0.05 * 1e-3 * 10.0).abs() < 1e-12, "{}", h.estimate["force.f.z"]);
@@ -542,41 +469,17 @@ mod tests {
     #[test]
     fn components_scale_with_their_vector() {
         let v = map(&[("probe.p.bx", 1e-9), ("probe.p.b", 0.5), ("force.f.magnitude", 3.0), ("force.f.x", 0.0)]);
-        assert_eq!(scale("probe.p.bx", &v), 0.5);
-        assert_eq!(scale("force.f.x", &v), 3.0);
-        assert_eq!(scale("energy", &map(&[("energy", -2.0)])), 2.0);
+        assert_eq!(scale("probe.p.bx", &v, &BTreeMap::new()), 0.5);
+        assert_eq!(scale("force.f.x", &v, &BTreeMap::new()), 3.0);
+        assert_eq!(scale("energy", &map(&[("energy", -2.0)]), &BTreeMap::new()), 2.0);
         // A torque is no component of the force beside it.
-        assert_eq!(scale("force.f.torque", &map(&[("force.f.torque", 0.01), ("force.f.magnitude", 3.0)])), 0.01);
-    }
-
-    #[test]
-    fn percentages_read_as_written() {
-        assert_eq!(target_percent(1e-6), "0.0001");
-        assert_eq!(target_percent(1e-3), "0.1");
-        assert_eq!(target_percent(5e-5), "0.005");
-        assert_eq!(percent(2.34567e-3), "0.235");
-        assert_eq!(percent(1.7706e-9), "0.00000018");
-        assert_eq!(percent(0.0), "0.000");
-    }
-
-    /// A probe's field is measured against at least `NULL_SHARE` of the
-    /// largest mean |B| of the parts (H against that over mu0); above it,
-    /// against itself; no other value has the floor.
-    #[test]
-    fn a_vanishing_probe_field_is_measured_against_the_studys_field() {
-        let v = map(&[
-            ("part.a.b.mean", 0.2),
-            ("part.b.b.mean", -0.5),
-            ("probe.p.b", 1e-11),
-            ("probe.p.h", 1e-5),
-            ("probe.q.b", 0.01),
-            ("probe.l.b.min", 0.0),
-            ("force.f.magnitude", 1e-11),
-        ]);
-        assert_eq!(scale("probe.p.b", &v), NULL_SHARE * 0.5);
-        assert_eq!(scale("probe.l.b.min", &v), NULL_SHARE * 0.5);
-        assert_eq!(scale("probe.p.h", &v), NULL_SHARE * 0.5 / solver::MU0);
-        assert_eq!(scale("probe.q.b", &v), 0.01);
-        assert_eq!(scale("force.f.magnitude", &v), 1e-11);
+        assert_eq!(
+            scale(
+                "force.f.torque",
+                &map(&[("force.f.torque", 0.01), ("force.f.magnitude", 3.0)]),
+                &BTreeMap::new()
+            ),
+            0.01
+        );
     }
 }

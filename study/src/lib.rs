@@ -16,6 +16,7 @@
 pub mod boundary_warnings;
 pub mod checks;
 pub mod coil;
+pub mod error_scale;
 pub mod estimate;
 pub mod lower;
 pub mod materials;

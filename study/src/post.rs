@@ -67,6 +67,7 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
     let corners = crate::lower::SingularCorners::of(model);
     let probes = probe_results(model, sol, &corners, &mut values);
     let forces = force_results(model, sol, depth, &mut values);
+    let floors = crate::estimate::force_floors(&forces, model.symmetry == Symmetry::Planar);
     let flux = flux_results(model, sol, depth, &mut values);
     let e = energy::stored_energy(sol);
     let whole = model.whole.as_ref().map_or(1.0, |w| w.factor);
@@ -176,6 +177,7 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
         energy,
         parts,
         values,
+        floors,
         errors: BTreeMap::new(),
         adaptive: None,
         asked,
@@ -273,6 +275,7 @@ fn force_results(model: &Model, sol: &Solution, depth: f64, values: &mut BTreeMa
                 torque,
                 contact: r.contact,
                 unreliable: r.at_boundary,
+                gross: r.gross * depth * model.whole.as_ref().map_or(1.0, |w| w.factor),
             },
         );
     }

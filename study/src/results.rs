@@ -43,6 +43,11 @@ pub struct Results {
     /// Estimated absolute error of each value, SI units (empty when
     /// `[study] accuracy = "off"`).
     pub errors: BTreeMap<String, f64>,
+    /// The least scale some values' errors are measured against, by name
+    /// (`estimate::scale`): a force's share of the gross pull that cancels
+    /// in it. Not written out.
+    #[cfg_attr(feature = "serde", serde(skip))]
+    pub floors: BTreeMap<String, f64>,
     /// The refinement steps that led to these values.
     #[cfg_attr(feature = "serde", serde(skip_serializing_if = "Option::is_none"))]
     pub adaptive: Option<Adaptive>,
@@ -149,6 +154,10 @@ pub struct ForceResult {
     pub contact: bool,
     /// Whether the set touches the outer boundary: the value is not reliable.
     pub unreliable: bool,
+    /// The gross pull of the stress in its band, N (`solver::post::force::Force::gross`):
+    /// the scale of the pulls that cancel in a force that vanishes.
+    #[cfg_attr(feature = "serde", serde(skip))]
+    pub gross: f64,
 }
 
 /// A flux result.

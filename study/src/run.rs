@@ -326,7 +326,7 @@ pub fn solve_to_accuracy<R>(
             // Both orders at once on the two cores, the lower order's values
             // entered first: this step is then the higher order's.
             let (lower, sol, results) = solve_order_pair(&current, model, &mesh, progress)?;
-            history.update(&lower.values, lower.unknowns);
+            history.update(&lower.values, &lower.floors, lower.unknowns);
             steps.push(lower.step(mesh.triangles.len(), current.mesh.order));
             current.mesh.order = model.mesh.order;
             history.raise_order(current.mesh.order);
@@ -351,10 +351,10 @@ pub fn solve_to_accuracy<R>(
         // default) are refined before any value's change is trusted.
         let first_step = steps.len() <= pilots;
         if steps.len() >= pilots {
-            history.update(&results.values, sol.report.n_dofs);
+            history.update(&results.values, &results.floors, sol.report.n_dofs);
         }
         let names = driving(model, &results);
-        let (rel, name) = worst(&names, &results.values, &history.estimate);
+        let (rel, name) = worst(&names, &results.values, &results.floors, &history.estimate);
         steps.push(Step {
             elements: mesh.triangles.len(),
             unknowns: sol.report.n_dofs,
@@ -469,6 +469,7 @@ const ORDER_PAIR_MAX_ELEMENTS: usize = 50_000;
 /// The lower order's solve of an order pair: what the estimate needs of it.
 struct LowerOrder {
     values: std::collections::BTreeMap<String, f64>,
+    floors: std::collections::BTreeMap<String, f64>,
     unknowns: usize,
     seconds: f64,
 }
@@ -508,6 +509,7 @@ fn solve_order_pair<'m>(
     let ((lo_sol, lo_results, lo_seconds), (sol, results, _)) = (lo?, hi?);
     let lower = LowerOrder {
         values: lo_results.values,
+        floors: lo_results.floors,
         unknowns: lo_sol.report.n_dofs,
         seconds: lo_seconds,
     };

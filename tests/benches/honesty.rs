@@ -84,7 +84,7 @@ fn audit(label: &str, own: &study::Results, reference: &study::Results, target: 
         let ref_err = reference.errors.get(name).copied().unwrap_or(f64::INFINITY);
         let diff = (v - r).abs();
         let verdict = judge(diff, est, ref_err);
-        let scale = study::estimate::scale(name, &own.values);
+        let scale = study::estimate::scale(name, &own.values, &own.floors);
         let loose = est > 20.0 * (diff + ref_err) && est > 0.1 * target * scale;
         counts[verdict as usize] += 1;
         counts[3] += usize::from(loose);

@@ -28,6 +28,11 @@ pub struct Force {
     /// True when the set touches the outer boundary: no surface closes around
     /// it, and the value is not reliable.
     pub at_boundary: bool,
+    /// The stress's gross pull: the integral of |T dg/dx| over the band (and
+    /// the contact's pull), in the vector's units. Where pulls cancel in the
+    /// net force (a plate midway between two magnets), the force's error is
+    /// theirs, a share of this, not a share of the force.
+    pub gross: f64,
 }
 
 /// Maxwell-stress force on the parts (a set) and torque about `torque_center` (planar), per metre of depth when planar.
@@ -62,8 +67,8 @@ pub fn force_on(solution: &Solution, parts: &[usize], torque_center: [f64; 2]) -
     let contact = across.is_some();
     let at_boundary = touches_outer_boundary(solution, &in_set_node);
     let axisym = solution.symmetry() == Symmetry::Axisymmetric;
-    let [fx, fy, mut torque] = element_sum(els.n_physical, |e| {
-        let mut sum = [0.0; 3];
+    let [fx, fy, mut torque, gross] = element_sum(els.n_physical, |e| {
+        let mut sum = [0.0; 4];
         let g = corners(e).map(|n| weight[n]);
         if els.kinds[e] != ElementKind::Air || g.iter().all(|&v| v == 0.0) {
             return sum;
@@ -83,6 +88,7 @@ pub fn force_on(solution: &Solution, parts: &[usize], torque_center: [f64; 2]) -
             sum[0] += tg[0];
             sum[1] += tg[1];
             sum[2] += arm[0] * tg[1] - arm[1] * tg[0];
+            sum[3] += if axisym { tg[1].abs() } else { tg[0].hypot(tg[1]) };
         });
         sum
     });
@@ -98,6 +104,7 @@ pub fn force_on(solution: &Solution, parts: &[usize], torque_center: [f64; 2]) -
         torque,
         contact,
         at_boundary,
+        gross: gross + cx.hypot(cy),
     }
 }
 
