@@ -104,7 +104,8 @@ pub fn force_on(solution: &Solution, parts: &[usize], torque_center: [f64; 2]) -
         torque,
         contact,
         at_boundary,
-        gross: gross + cx.hypot(cy),
+        // About the axis a ring's radial pull cancels round it, as above.
+        gross: gross + if axisym { cy.abs() } else { cx.hypot(cy) },
     }
 }
 
