@@ -121,13 +121,15 @@ pub(crate) fn is_share(name: &str) -> bool {
     [".saturated_share", ".share_past_knee", ".loss", ".margin"].iter().any(|s| name.ends_with(s))
 }
 
+/// A values map from pairs, for the tests here and in `estimate`.
+#[cfg(test)]
+pub(crate) fn map(pairs: &[(&str, f64)]) -> BTreeMap<String, f64> {
+    pairs.iter().map(|(k, v)| (k.to_string(), *v)).collect()
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    fn map(pairs: &[(&str, f64)]) -> BTreeMap<String, f64> {
-        pairs.iter().map(|(k, v)| (k.to_string(), *v)).collect()
-    }
 
     #[test]
     fn percentages_read_as_written() {

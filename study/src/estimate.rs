@@ -344,11 +344,8 @@ pub(crate) fn undecided(model: &Model, values: &BTreeMap<String, f64>, errors: &
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::error_scale::map;
     use crate::results::Verdict;
-
-    fn map(pairs: &[(&str, f64)]) -> BTreeMap<String, f64> {
-        pairs.iter().map(|(k, v)| (k.to_string(), *v)).collect()
-    }
 
     /// A sequence with error C h^p on halving meshes: the estimate after
     /// three meshes is within a factor two of the true error, from above,
