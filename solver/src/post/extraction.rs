@@ -238,13 +238,11 @@ fn element_sums(sol: &Solution, ball: &Ball, e: usize) -> [f64; 3] {
         let share = 0.25f64.powi(depth as i32);
         for (mu, wq) in rule.points.iter().zip(rule.weights) {
             let lam = [0, 1, 2].map(|k| mu[0] * lams[0][k] + mu[1] * lams[1][k] + mu[2] * lams[2][k]);
-            // The weight first: in an element the ball's edge cuts, many
-            // points lie outside it, and their operator is not needed.
-            let wt = ball.weights(geom.map(lam).0);
+            let op = point_op(geom, els.order, sol.symmetry(), Placement::Physical, lam, wq * share);
+            let wt = ball.weights(op.x);
             if wt == [0.0, 0.0] {
                 continue;
             }
-            let op = point_op(geom, els.order, sol.symmetry(), Placement::Physical, lam, wq * share);
             let b = flux_density(&op, &a, background);
             let dw = op.weight.abs();
             sums[0] += wt[0] * b[0] * dw;
