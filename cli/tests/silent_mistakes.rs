@@ -728,7 +728,7 @@ fn a_winding_given_its_wire_current_is_warned() {
         "faint-winding",
         &case("2 A"),
         &case("1000 A"),
-        "winding 'coil': 0.004 A in each of its 500 turns, 0.01954 A/mm2 in the copper",
+        "winding 'coil': 0.004 A in each of its 500 turns, 0.0195 A/mm2 in the copper",
         "if the wire carries 2 A, write current = \"1000 A\"",
     );
 }

@@ -61,17 +61,12 @@ pub fn faint_current(name: &str, turns: f64, c: &CoilFigures) -> Option<String> 
     (c.current != 0.0 && c.current_density < FAINT_DENSITY && turns > 1.0).then(|| {
         format!(
             "winding '{name}': {} A in each of its {turns} turns, {} A/mm2 in the copper, under a tenth of the 1 to 10 A/mm2 windings usually carry (common practice): `current` is the ampere-turns through the part, its turns times the wire's current; if the wire carries {} A, write current = \"{} A\"",
-            short(c.current),
-            short(c.current_density * 1e-6),
-            short(ampere_turns),
-            short(ampere_turns * turns),
+            crate::post::significant(c.current),
+            crate::post::significant(c.current_density * 1e-6),
+            crate::post::significant(ampere_turns),
+            crate::post::significant(ampere_turns * turns),
         )
     })
-}
-
-/// A number for a message, to four significant digits.
-fn short(x: f64) -> String {
-    format!("{}", format!("{x:.3e}").parse::<f64>().unwrap_or(x))
 }
 
 /// Bare copper diameter of an AWG size, m (ASTM B258).

@@ -1,5 +1,6 @@
 //! The scale each value's error is measured against (`scale`): the value,
-//! its vector, the whole of a share, or a floor where the value vanishes
+//! its vector, the whole of a share, or a floor (`Results::floors`, made
+//! by `probe_floors` and `force_floors`) where the value vanishes
 //! (a probe's field under a share of the study's field, a force under a
 //! share of the pulls that cancel in it), and percentages for messages.
 
@@ -14,7 +15,7 @@ pub fn scale(name: &str, values: &BTreeMap<String, f64>, floors: &BTreeMap<Strin
     if is_share(name) {
         return own.max(1.0);
     }
-    let own = own.max(null_field(name, values)).max(floors.get(name).copied().unwrap_or(0.0));
+    let own = own.max(floors.get(name).copied().unwrap_or(0.0));
     // Only a component has a vector: a force's torque (N m) is not measured
     // against the force's magnitude (N), nor a probe's H (A/m) against its B.
     let Some((group, component)) = name.rsplit_once('.') else { return own };
@@ -66,23 +67,21 @@ pub fn force_floors(forces: &BTreeMap<String, crate::results::ForceResult>, plan
 /// beside it was asked for 174 uT (docs/measurement-log.md).
 const NULL_SHARE: f64 = 1e-4;
 
-/// The floor of a probe's field scale (`NULL_SHARE`), in its own unit (T,
-/// or A/m for H); 0 for every other value.
-fn null_field(name: &str, values: &BTreeMap<String, f64>) -> f64 {
+/// The least scales of the probes' field values (`NULL_SHARE` of the
+/// parts' largest mean |B|, in each value's own unit: T, or A/m for H), by
+/// value name, from a study's values.
+pub fn probe_floors(values: &BTreeMap<String, f64>) -> BTreeMap<String, f64> {
     const FIELDS: [&str; 9] = [".b", ".bx", ".by", ".br", ".bz", ".b.max", ".b.min", ".b.mean", ".h"];
-    if !name.starts_with("probe.") || !FIELDS.iter().any(|f| name.ends_with(f)) {
-        return 0.0;
-    }
     let field = values
         .iter()
         .filter(|(k, _)| k.starts_with("part.") && k.ends_with(".b.mean"))
         .fold(0.0, |m: f64, (_, v)| m.max(v.abs()));
     let floor = NULL_SHARE * field;
-    if name.ends_with(".h") {
-        floor / solver::MU0
-    } else {
-        floor
-    }
+    values
+        .keys()
+        .filter(|k| k.starts_with("probe.") && FIELDS.iter().any(|f| k.ends_with(f)))
+        .map(|k| (k.clone(), if k.ends_with(".h") { floor / solver::MU0 } else { floor }))
+        .collect()
 }
 
 /// A share as a percentage for messages: three decimals, as the targets'
@@ -155,11 +154,12 @@ mod tests {
             ("probe.l.b.min", 0.0),
             ("force.f.magnitude", 1e-11),
         ]);
-        assert_eq!(scale("probe.p.b", &v, &BTreeMap::new()), NULL_SHARE * 0.5);
-        assert_eq!(scale("probe.l.b.min", &v, &BTreeMap::new()), NULL_SHARE * 0.5);
-        assert_eq!(scale("probe.p.h", &v, &BTreeMap::new()), NULL_SHARE * 0.5 / solver::MU0);
-        assert_eq!(scale("probe.q.b", &v, &BTreeMap::new()), 0.01);
-        assert_eq!(scale("force.f.magnitude", &v, &BTreeMap::new()), 1e-11);
+        let floors = probe_floors(&v);
+        assert_eq!(scale("probe.p.b", &v, &floors), NULL_SHARE * 0.5);
+        assert_eq!(scale("probe.l.b.min", &v, &floors), NULL_SHARE * 0.5);
+        assert_eq!(scale("probe.p.h", &v, &floors), NULL_SHARE * 0.5 / solver::MU0);
+        assert_eq!(scale("probe.q.b", &v, &floors), 0.01);
+        assert_eq!(scale("force.f.magnitude", &v, &floors), 1e-11);
     }
 
     /// A force's values (not its torque) are measured against at least

@@ -28,7 +28,7 @@
 //! grading at corners (see `lower::mesh_spec`) puts the fine elements where
 //! the field is singular, and each step keeps it.
 
-pub use crate::error_scale::{force_floors, percent, scale, target_percent};
+pub use crate::error_scale::{percent, scale, target_percent};
 use crate::model::{Bound, Model};
 use std::collections::BTreeMap;
 

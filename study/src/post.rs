@@ -67,7 +67,6 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
     let corners = crate::lower::SingularCorners::of(model);
     let probes = probe_results(model, sol, &corners, &mut values);
     let forces = force_results(model, sol, depth, &mut values);
-    let floors = crate::estimate::force_floors(&forces, model.symmetry == Symmetry::Planar);
     let flux = flux_results(model, sol, depth, &mut values);
     let e = energy::stored_energy(sol);
     let whole = model.whole.as_ref().map_or(1.0, |w| w.factor);
@@ -133,6 +132,8 @@ pub fn results(model: &Model, sol: &Solution, seconds: f64) -> Results {
         ));
     }
     values.retain(|_, v| v.is_finite());
+    let mut floors = crate::error_scale::force_floors(&forces, model.symmetry == Symmetry::Planar);
+    floors.extend(crate::error_scale::probe_floors(&values));
     let asked = asked(model, &values);
     let units = crate::value_names::value_names(model)
         .into_iter()
@@ -366,14 +367,14 @@ fn thin_parts(model: &Model) -> Vec<String> {
         .collect()
 }
 
-/// A length for a message with three significant digits, however small
-/// (a sliver's advice read "mesh_size = 0.000" with fixed decimals).
-fn significant(x: f64) -> String {
+/// A number for a message to three significant digits, however small (a
+/// sliver's advice read "mesh_size = 0.000" with fixed decimals), without
+/// trailing zeros ("2 A", not "2.00 A").
+pub(crate) fn significant(x: f64) -> String {
     if x == 0.0 || !x.is_finite() {
         return format!("{x}");
     }
-    let decimals = (2 - x.abs().log10().floor() as i32).max(0) as usize;
-    format!("{x:.decimals$}")
+    format!("{}", format!("{x:.2e}").parse::<f64>().unwrap_or(x))
 }
 
 /// Resistance, current, power, current density and temperature rise of each
