@@ -61,10 +61,10 @@ pub fn faint_current(name: &str, turns: f64, c: &CoilFigures) -> Option<String> 
     (c.current != 0.0 && c.current_density < FAINT_DENSITY && turns > 1.0).then(|| {
         format!(
             "winding '{name}': {} A in each of its {turns} turns, {} A/mm2 in the copper, under a tenth of the 1 to 10 A/mm2 windings usually carry (common practice): `current` is the ampere-turns through the part, its turns times the wire's current; if the wire carries {} A, write current = \"{} A\"",
-            crate::post::significant(c.current),
-            crate::post::significant(c.current_density * 1e-6),
-            crate::post::significant(ampere_turns),
-            crate::post::significant(ampere_turns * turns),
+            crate::message_number::significant(c.current),
+            crate::message_number::significant(c.current_density * 1e-6),
+            crate::message_number::significant(ampere_turns),
+            crate::message_number::significant(ampere_turns * turns),
         )
     })
 }

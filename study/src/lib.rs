@@ -20,6 +20,7 @@ pub mod error_scale;
 pub mod estimate;
 pub mod lower;
 pub mod materials;
+mod message_number;
 pub mod model;
 pub mod net_current;
 pub mod optimize;

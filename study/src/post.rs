@@ -357,24 +357,14 @@ fn thin_parts(model: &Model) -> Vec<String> {
                 format!(
                     "part '{}' is {} {u} thick but its mesh size is {} {u}: fewer than {MIN_ELEMENTS_ACROSS} elements across; set mesh_size = {} or less for accuracy inside it",
                     p.name,
-                    significant(thickness / f),
-                    significant(p.mesh_size / f),
-                    significant(thickness / f / 3.0),
+                    crate::message_number::significant(thickness / f),
+                    crate::message_number::significant(p.mesh_size / f),
+                    crate::message_number::significant(thickness / f / 3.0),
                     u = model.length_unit.0
                 )
             })
         })
         .collect()
-}
-
-/// A number for a message to three significant digits, however small (a
-/// sliver's advice read "mesh_size = 0.000" with fixed decimals), without
-/// trailing zeros ("2 A", not "2.00 A").
-pub(crate) fn significant(x: f64) -> String {
-    if x == 0.0 || !x.is_finite() {
-        return format!("{x}");
-    }
-    format!("{}", format!("{x:.2e}").parse::<f64>().unwrap_or(x))
 }
 
 /// Resistance, current, power, current density and temperature rise of each
